@@ -1,0 +1,353 @@
+"""The crude model: TBP curve on both bases plus density and sulfur distributions, built from an Assay.
+
+* Every curve in the assay is first put on the TBP basis: D86 by Daubert 1994 (or Riazi-Daubert 1986),
+  D2887 by API TDB 3A3.1, D1160 by Maxwell-Bonnell to the atmospheric equivalent temperature (AET, taken as
+  TBP: common practice for the back end, no source).  Vacuum curves extend the atmospheric one past its
+  last point.
+* Density is a monotone PCHIP of narrow-cut SG against mid-volume percent (light-ends components included),
+  held flat beyond the outermost points, integrated exactly over each cut.  Without narrow-cut densities,
+  SG = (1.8 T[K])^(1/3)/Kw along the curve at constant Watson K (reference sheet §5, common practice).
+  Either way the distribution is scaled so that the cuts reproduce the whole-crude SG; the scale is
+  reported as the density reconciliation.
+* Weight percent follows: W(V) = ∫0^V SG dv / SG_crude.
+* Sulfur is a monotone PCHIP of narrow-cut sulfur against mid-weight percent (light ends carry none),
+  scaled to reproduce the whole-crude sulfur; the scale is reported.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from . import conversions
+from .assay import Assay, CurveData
+from .curve import DistCurve, build_curve, staircase
+from .errors import CurveError
+from .lightends import find_component
+from .spline import Pchip
+
+D86_STD = (0, 10, 30, 50, 70, 90, 95)
+"""Standard ASTM D86 points of the TBP <-> D86 correlations. [vol %]"""
+SD_STD = (0, 10, 30, 50, 70, 90, 95, 100)
+"""Standard ASTM D2887 points of API TDB 3A3.1. [wt %]"""
+
+
+@dataclass
+class CrudeModel:
+    """Whole-crude model used by cutting and the studies.
+
+    Attributes
+    ----------
+    curve : DistCurve
+        TBP [°C] vs vol % distilled.
+    sg_dist : Pchip
+        SG 60/60 °F [-] against vol % distilled (reconciled).
+    sulfur_dist : Pchip or None
+        Sulfur [wt %] against wt % distilled (reconciled); None without narrow-cut sulfur.
+    sg : float
+        Whole-crude SG 60/60 °F. [-]
+    sulfur_wt_pct : float or None
+        Whole-crude sulfur. [wt %]
+    density_reconciliation_pct : float
+        Scale applied to the density distribution, (factor - 1) * 100. [%]
+    sulfur_reconciliation_pct : float or None
+        Scale applied to the sulfur distribution, (factor - 1) * 100. [%]
+    density_source : str
+        'narrow cuts' or 'constant Watson K'.
+    watson_k_fit : float or None
+        Watson K fitted to the whole-crude SG when density comes from constant Watson K. [-]
+    methods : dict
+    warnings : list of str
+    """
+
+    curve: DistCurve
+    sg_dist: Pchip
+    sulfur_dist: Pchip | None
+    sg: float
+    sulfur_wt_pct: float | None
+    density_reconciliation_pct: float
+    sulfur_reconciliation_pct: float | None
+    density_source: str
+    watson_k_fit: float | None = None
+    methods: dict[str, str] = field(default_factory=dict)
+    warnings: list[str] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+
+    def wt_at_vol(self, vol_pct):
+        """Cumulative wt % distilled at cumulative ``vol_pct`` [vol %]. [wt %]"""
+        v = np.asarray(vol_pct, dtype=float)
+        return (self.sg_dist.antiderivative(v) - self.sg_dist.antiderivative(0.0)) / self.sg
+
+    def vol_at_wt(self, wt_pct):
+        """Cumulative vol % at cumulative ``wt_pct`` [wt %] (vectorised bisection on W(V)). [vol %]"""
+        w = np.asarray(wt_pct, dtype=float)
+        lo = np.zeros_like(w)
+        hi = np.full_like(w, 100.0)
+        for _ in range(50):
+            mid = 0.5 * (lo + hi)
+            below = self.wt_at_vol(mid) < w
+            lo = np.where(below, mid, lo)
+            hi = np.where(below, hi, mid)
+        return 0.5 * (lo + hi)
+
+    def mean_sg(self, va, vb):
+        """Volume-average SG over [va, vb] vol %; the point value for an empty interval. [-]"""
+        va, vb = np.asarray(va, float), np.asarray(vb, float)
+        width = vb - va
+        ok = width > 1e-12
+        with np.errstate(invalid="ignore", divide="ignore"):
+            return np.where(ok, self.sg_dist.integral(va, vb) / np.where(ok, width, 1.0), self.sg_dist(va))
+
+    def mean_sulfur(self, wa, wb):
+        """Weight-average sulfur over [wa, wb] wt %; NaN without a sulfur distribution. [wt %]"""
+        wa, wb = np.asarray(wa, float), np.asarray(wb, float)
+        if self.sulfur_dist is None:
+            return np.full(np.broadcast(wa, wb).shape, np.nan)
+        width = wb - wa
+        ok = width > 1e-12
+        with np.errstate(invalid="ignore", divide="ignore"):
+            return np.where(ok, self.sulfur_dist.integral(wa, wb) / np.where(ok, width, 1.0),
+                            self.sulfur_dist(wa))
+
+
+def _std_points(curve: CurveData, std) -> dict[float, float]:
+    """The curve's temperatures at the standard percents it covers (PCHIP through its points)."""
+    p, t = curve.percent, curve.temp_c
+    keep = np.concatenate([[True], np.diff(p) > 0])
+    p, t = p[keep], t[keep]
+    if p.size < 2:
+        raise CurveError(f"{curve.where}: a {curve.method} curve needs at least 2 points")
+    sp = Pchip(p, t)
+    return {s: float(sp(s)) for s in std if p[0] - 1e-9 <= s <= p[-1] + 1e-9}
+
+
+def to_tbp(curve: CurveData, method: str = "daubert-1994") -> tuple[np.ndarray, np.ndarray, list[str], str]:
+    """Put one measured curve on the TBP (or AET) basis.
+
+    Parameters
+    ----------
+    curve : CurveData
+    method : str
+        TBP <-> D86 method name, 'daubert-1994' or 'riazi-daubert-1986'.
+
+    Returns
+    -------
+    (percent [%], temperature [°C], warnings, description of the method used)
+    """
+    warnings: list[str] = []
+    if curve.method == "TBP":
+        return curve.percent.copy(), curve.temp_c.copy(), warnings, "TBP as measured"
+    if curve.method == "D1160":
+        aet = conversions.maxwell_bonnell(curve.temp_c, curve.pressure_mmhg)
+        return curve.percent.copy(), np.asarray(aet, float), warnings, (
+            f"D1160 at {curve.pressure_mmhg:g} mmHg to AET by Maxwell-Bonnell (API TDB 5A1.19), AET taken as TBP")
+    if curve.method == "D86":
+        pts = _std_points(curve, D86_STD)
+        out, used, w = conversions.convert(pts, "D86", "TBP", method=method)
+        desc = f"D86 to TBP by {used}"
+    elif curve.method == "D2887":
+        pts = _std_points(curve, SD_STD)
+        out, used, w = conversions.convert(pts, "D2887", "TBP")
+        desc = "D2887 to TBP by API TDB 3A3.1"
+    else:
+        raise CurveError(f"{curve.where}: unknown distillation method {curve.method!r}")
+    warnings += [f"{curve.where}: {m}" for m in w]
+    if len(out) < 2:
+        raise CurveError(f"{curve.where}: the {curve.method} curve covers too few standard points "
+                         f"({', '.join(f'{k:g} %' for k in pts)}) to convert to TBP")
+    ks = sorted(out)
+    return np.array(ks, float), np.array([out[k] for k in ks]), warnings, desc
+
+
+def _kw_of_crude(t50_c: float, sg: float) -> float:
+    """Rough crude Watson K from its 50 % TBP point, for basis conversion only. [-]"""
+    return float(np.cbrt(1.8 * (t50_c + 273.15)) / sg)
+
+
+def _wt_to_vol(pct_w, temp_c, assay: Assay) -> np.ndarray:
+    """Convert cumulative wt % points to vol %: dV = dW * SG_crude / SG(interval).
+
+    SG of each interval is the narrow-cut SG covering its mid temperature, else constant Watson K from the
+    crude's own 50 % point.  An approximation used only for weight-basis input curves.
+    """
+    t_mid = np.concatenate([[temp_c[0]], 0.5 * (temp_c[1:] + temp_c[:-1])])
+    kw = _kw_of_crude(float(np.interp(50.0, pct_w, temp_c)), assay.sg)
+    sg = np.cbrt(1.8 * (t_mid + 273.15)) / kw
+    nc = assay.narrow_cuts
+    if nc is not None:
+        for s, e, g in zip(nc.start_c, nc.end_c, nc.sg):
+            if np.isfinite(g):
+                lo = -np.inf if np.isnan(s) else s
+                hi = np.inf if np.isnan(e) else e
+                sg = np.where((t_mid > lo) & (t_mid <= hi), g, sg)
+    dw = np.diff(np.concatenate([[0.0], pct_w]))
+    return np.cumsum(dw * assay.sg / sg)
+
+
+def _light_ends_nodes(assay: Assay, first_t: float):
+    """Light-ends staircase nodes, component vol % of crude and the per-component (mid vol %, SG)."""
+    le = assay.light_ends
+    if le is None or not le.amounts:
+        return None, None, []
+    comps = []
+    for key, amt in le.amounts.items():
+        c = find_component(key)
+        if c is None or amt <= 0:
+            continue
+        vol = amt * assay.sg / c.sg if le.basis == "wt" else amt
+        comps.append((c, vol))
+    comps.sort(key=lambda cv: cv[0].nbp_c)
+    comps = [(c, v) for c, v in comps if c.nbp_c < first_t]
+    if not comps:
+        return None, None, []
+    cum = np.cumsum([v for _, v in comps])
+    t, v = staircase([c.nbp_c for c, _ in comps], cum)
+    mids = [(float(cu - vo / 2), c.sg) for (c, vo), cu in zip(comps, cum)]
+    return t, v, mids
+
+
+def build_model(assay: Assay, method: str = "daubert-1994") -> CrudeModel:
+    """Build the crude model from an assay.
+
+    Parameters
+    ----------
+    assay : Assay
+    method : str
+        TBP <-> D86 method for D86 input curves: 'daubert-1994' (default) or 'riazi-daubert-1986'.
+
+    Returns
+    -------
+    CrudeModel
+    """
+    warnings: list[str] = []
+    methods: dict[str, str] = {}
+    main = assay.curves[0]
+    p, t, w, desc = to_tbp(main, method)
+    warnings += w
+    methods["curve"] = desc
+    basis = main.basis
+    for extra in assay.curves[1:]:
+        pe, te, we, de = to_tbp(extra, method)
+        warnings += we
+        if extra.basis != basis:
+            raise CurveError(f"{extra.where}: the vacuum curve is on the {extra.basis} basis but the main curve "
+                             f"is on the {basis} basis; give both on one basis")
+        keep = (pe > p[-1]) & (te > t[-1])
+        if not np.any(keep):
+            warnings.append(f"{extra.where}: no point lies beyond the main curve ({p[-1]:g} %, {t[-1]:.1f} °C); "
+                            f"the vacuum curve is not used")
+            continue
+        if np.any(~keep):
+            warnings.append(f"{extra.where}: {int((~keep).sum())} point(s) overlapping the main curve are not used")
+        p = np.concatenate([p, pe[keep]])
+        t = np.concatenate([t, te[keep]])
+        methods["vacuum curve"] = de
+    if basis == "wt":
+        p = _wt_to_vol(p, t, assay)
+        methods["basis"] = ("weight-basis curve converted to volume with narrow-cut SG (constant Watson K "
+                            "between them); approximate")
+        if p[-1] > 100.0 + 1e-6:
+            raise CurveError(f"the weight-basis curve converts to {p[-1]:.1f} vol %, above 100 %: the crude "
+                             f"gravity and the cut densities disagree")
+    le_t, le_v, le_mids = _light_ends_nodes(assay, float(t[0]))
+    curve = build_curve(p, t, front_t=le_t, front_v=le_v)
+    warnings += curve.warnings
+    if curve.light_ends_pct == 0.0:
+        le_mids = []
+    if curve.fit is not None:
+        methods["extension"] = (f"Riazi distribution fitted to {curve.fit.npoints} points "
+                                f"(RMS {curve.fit.rms_c:.1f} °C); used past {curve.measured_hi:g} vol %"
+                                + (f" and before {curve.measured_lo:g} vol %" if curve.measured_lo > 0 else ""))
+    sg_dist, dens_rec, dens_src, kw_fit = _density_distribution(assay, curve, le_mids, warnings)
+    methods["density"] = (f"{dens_src}; scaled by {dens_rec:+.2f} % to reproduce the whole-crude SG "
+                          f"{assay.sg:.4f}")
+    model = CrudeModel(curve, sg_dist, None, assay.sg, assay.sulfur_wt_pct, dens_rec, None, dens_src,
+                       kw_fit, methods, warnings)
+    _sulfur_distribution(model, assay, le_mids)
+    return model
+
+
+def narrow_cut_positions(assay: Assay, curve: DistCurve):
+    """Start and end vol % of each narrow cut on the curve (open start 0 %, open end 100 %). [vol %]"""
+    nc = assay.narrow_cuts
+    va = np.where(np.isnan(nc.start_c), 0.0, curve.pct_at(np.nan_to_num(nc.start_c)))
+    vb = np.where(np.isnan(nc.end_c), 100.0, curve.pct_at(np.nan_to_num(nc.end_c)))
+    return va, vb
+
+
+def _density_distribution(assay: Assay, curve: DistCurve, le_mids, warnings):
+    nc = assay.narrow_cuts
+    pts: list[tuple[float, float]] = []
+    if nc is not None and np.isfinite(nc.sg).sum() >= 2:
+        va, vb = narrow_cut_positions(assay, curve)
+        ok = np.isfinite(nc.sg) & (vb > va)
+        pts = [(float((a + b) / 2), float(g)) for a, b, g in zip(va[ok], vb[ok], nc.sg[ok])]
+        first = float(va[ok].min()) if ok.any() else 0.0
+        pts += [(m, g) for m, g in le_mids if m < first]
+        source = "narrow-cut densities (monotone spline against mid-volume %)"
+        kw = None
+    else:
+        if nc is not None:
+            warnings.append("fewer than 2 narrow cuts have a density: cut densities are estimated at constant "
+                            "Watson K fitted to the whole-crude gravity")
+        grid = np.linspace(0.0, 100.0, 201)
+        mids = 0.5 * (grid[1:] + grid[:-1])
+        cbrt = np.cbrt(1.8 * (curve.temp_at(mids) + 273.15))
+        le_end = curve.light_ends_pct
+        fixed = mids < le_end
+        le_sg = np.full_like(mids, np.nan)
+        if le_mids:
+            lm = np.array([m for m, _ in le_mids])
+            lg = np.array([g for _, g in le_mids])
+            le_sg = lg[np.clip(np.searchsorted(lm, mids), 0, lm.size - 1)]
+        dv = 0.5
+        fixed_mass = float((le_sg[fixed] * dv).sum()) if fixed.any() else 0.0
+        kw = float((cbrt[~fixed] * dv).sum() / (100.0 * assay.sg - fixed_mass))
+        sgs = np.where(fixed, le_sg, cbrt / kw)
+        pts = list(zip(mids.tolist(), sgs.tolist()))
+        source = f"constant Watson K {kw:.2f} fitted to the whole-crude gravity (no narrow-cut densities)"
+    pts.sort()
+    x = np.array([q[0] for q in pts])
+    y = np.array([q[1] for q in pts])
+    keep = np.concatenate([[True], np.diff(x) > 1e-9])
+    x, y = x[keep], y[keep]
+    if x.size == 1:
+        x, y = np.array([0.0, 100.0]), np.array([y[0], y[0]])
+    raw = Pchip(x, y)
+    total = raw.integral(0.0, 100.0)
+    factor = 100.0 * assay.sg / total
+    return Pchip(x, y * factor), (factor - 1.0) * 100.0, source, kw
+
+
+def _sulfur_distribution(model: CrudeModel, assay: Assay, le_mids) -> None:
+    nc = assay.narrow_cuts
+    if nc is None or np.isfinite(nc.sulfur_wt_pct).sum() < 2:
+        model.warnings.append("no narrow-cut sulfur (fewer than 2 values): cut sulfur is left empty")
+        model.methods["sulfur"] = "not estimated (no narrow-cut sulfur)"
+        return
+    va, vb = narrow_cut_positions(assay, model.curve)
+    wa, wb = model.wt_at_vol(va), model.wt_at_vol(vb)
+    ok = np.isfinite(nc.sulfur_wt_pct) & (wb > wa)
+    pts = [(float((a + b) / 2), float(s)) for a, b, s in zip(wa[ok], wb[ok], nc.sulfur_wt_pct[ok])]
+    first = float(wa[ok].min())
+    pts += [(float(model.wt_at_vol(m)), 0.0) for m, _ in le_mids if model.wt_at_vol(m) < first]
+    pts.sort()
+    x = np.array([q[0] for q in pts])
+    y = np.array([q[1] for q in pts])
+    keep = np.concatenate([[True], np.diff(x) > 1e-9])
+    x, y = x[keep], y[keep]
+    raw = Pchip(x, y)
+    total = raw.integral(0.0, 100.0) / 100.0
+    if model.sulfur_wt_pct is None:
+        model.sulfur_wt_pct = float(total)
+        model.sulfur_reconciliation_pct = 0.0
+        model.warnings.append(f"no whole-crude sulfur given: {total:.3f} wt % is taken from the narrow cuts")
+        model.sulfur_dist = raw
+    else:
+        factor = model.sulfur_wt_pct / total if total > 0 else 1.0
+        model.sulfur_dist = Pchip(x, y * factor)
+        model.sulfur_reconciliation_pct = (factor - 1.0) * 100.0
+    model.methods["sulfur"] = (f"narrow-cut sulfur (monotone spline against mid-weight %); scaled by "
+                               f"{model.sulfur_reconciliation_pct:+.2f} % to reproduce the whole-crude sulfur "
+                               f"{model.sulfur_wt_pct:.3f} wt %")
