@@ -29,6 +29,8 @@ class CurveData:
         Distillation pressure for D1160. [mmHg]
     where : str
         Where the curve came from, for messages (e.g. "assay.xlsx, sheet 'distillation'").
+    warnings : list of str
+        What the reader accepted with a warning (fractions read as percent, flat steps...).
     """
 
     method: str
@@ -37,6 +39,7 @@ class CurveData:
     temp_c: np.ndarray
     pressure_mmhg: float | None = None
     where: str = ""
+    warnings: list[str] = field(default_factory=list)
 
 
 @dataclass

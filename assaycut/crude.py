@@ -220,7 +220,7 @@ def build_model(assay: Assay, method: str = "daubert-1994") -> CrudeModel:
     -------
     CrudeModel
     """
-    warnings: list[str] = []
+    warnings: list[str] = [w for c in assay.curves for w in c.warnings]
     methods: dict[str, str] = {}
     main = assay.curves[0]
     p, t, w, desc = to_tbp(main, method)

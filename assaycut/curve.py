@@ -28,6 +28,8 @@ END_FRACTION = 0.9995
 """The curve's 100 % point is placed at this fraction of the fitted distribution."""
 POOR_FIT_RMS_C = 5.0
 """RMS deviation of the distribution fit above which a warning is given. [°C]"""
+LIGHT_ENDS_TOL_PCT = 0.1
+"""Light ends that miss the first measured point by at most this much are scaled to meet it. [vol %]"""
 STEP_C = 0.01
 """Width given to a pure component's (or repeated temperature's) vertical step. [°C]"""
 
@@ -261,6 +263,16 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> DistCurve:
         if v[0] == 0.0:
             warnings.append("the curve starts at 0 %, so the light-ends analysis is not placed on it")
             le_pct = 0.0
+        elif abs(fv[-1] - v[0]) <= LIGHT_ENDS_TOL_PCT and fv[-1] != v[0] and ft[-1] < t[0]:
+            if abs(v[0] / fv[-1] - 1.0) > 0.01:
+                warnings.append(f"the light ends add up to {fv[-1]:.3f} vol %, the first measured point is "
+                                    f"{v[0]:g} %; the light-ends volumes are scaled by "
+                                f"{(v[0] / fv[-1] - 1) * 100:+.2f} % to meet it")
+            fv = fv * (v[0] / fv[-1])
+            le_pct = float(fv[-1])
+            tt.insert(0, ft)
+            vv.insert(0, fv)
+            measured_lo = 0.0
         elif fv[-1] > v[0] + 1e-9 or ft[-1] >= t[0]:
             warnings.append(f"the light ends ({fv[-1]:.2f} vol % up to {ft[-1]:.1f} °C) do not fit before the "
                             f"first measured point ({v[0]:g} % at {t[0]:.1f} °C); not placed on the curve, and "

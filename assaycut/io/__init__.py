@@ -1,0 +1,39 @@
+"""Readers and file formats around the computational core: assay workbooks, curve CSVs, TOML files."""
+
+from __future__ import annotations
+
+from ..assay import Assay
+from ..errors import InputError
+from .workbook import read_bytes
+
+
+def load_assay(path: str, *, api: float | None = None, sg: float | None = None, density: float | None = None,
+               sulfur: float | None = None) -> Assay:
+    """Read an assay from an .xlsx workbook or a quick-curve .csv, chosen by content and extension.
+
+    Parameters
+    ----------
+    path : str
+        Assay file.
+    api, sg, density, sulfur : float, optional
+        Whole-crude data for a curve CSV ([°API], [-], [kg/m3 at 15 °C], [wt %]); refused for a workbook,
+        which carries its own.
+
+    Returns
+    -------
+    Assay
+    """
+    from .csvcurve import read_curve_csv
+    from .workbook import read_workbook
+
+    ext = path.lower().rsplit(".", 1)[-1] if "." in path else ""
+    if ext not in ("xlsx", "xlsm", "csv", "txt"):
+        raise InputError(f"unknown assay file type {'.' + ext if ext else '(no extension)'}; expected .xlsx "
+                         f"(assay workbook) or .csv (quick curve)", file=path)
+    data = read_bytes(path)
+    if ext in ("xlsx", "xlsm"):
+        if any(v is not None for v in (api, sg, density, sulfur)):
+            raise InputError("--api/--sg/--density/--sulfur apply to a curve CSV; a workbook carries its own "
+                             "whole-crude data", file=path)
+        return read_workbook(path, data)
+    return read_curve_csv(path, api=api, sg=sg, density=density, sulfur=sulfur, data=data)

@@ -1,0 +1,65 @@
+"""Build the demo assay workbooks from their plain-text TOML sources.
+
+    python assays_demo/build.py
+
+Writes ``assays_demo/<name>.xlsx`` (for people to open) and the same workbook into the package
+(``assaycut/data/``), so that the demo is found after a plain ``pip install .`` from any folder.
+The crudes, fields and refinery of the demo are invented: Kestrel Bay refinery on the Varrow coast is
+offered three crudes of clearly different character.
+"""
+
+from __future__ import annotations
+
+import shutil
+import sys
+import tomllib
+from pathlib import Path
+
+import numpy as np
+
+HERE = Path(__file__).resolve().parent
+sys.path.insert(0, str(HERE.parent))
+
+from assaycut.assay import Assay, CurveData, LightEnds, NarrowCuts  # noqa: E402
+from assaycut.io.assaywriter import write_assay_workbook  # noqa: E402
+from assaycut.units import api_to_sg  # noqa: E402
+
+ORDER = ["selkie_light", "brannock_blend", "tarn_heavy"]
+"""Demo assays in order; the first is the default of every command."""
+
+
+def assay_from_toml(path: Path) -> Assay:
+    """An Assay from a demo TOML source (temperatures in °C, percents of whole crude)."""
+    src = tomllib.loads(path.read_text(encoding="utf-8"))
+    crude = src["crude"]
+    curves = []
+    for key in ("distillation", "vacuum_distillation"):
+        if key in src:
+            d = src[key]
+            pts = np.array(d["points"], dtype=float)
+            curves.append(CurveData(d["method"], d.get("basis", "vol"), pts[:, 0], pts[:, 1],
+                                    d.get("pressure_mmhg"), f"{path.name} [{key}]"))
+    cuts = src.get("narrow_cut", [])
+    col = lambda k: np.array([c.get(k, np.nan) for c in cuts], dtype=float)  # noqa: E731
+    narrow = NarrowCuts(col("start_c"), col("end_c"), col("vol_pct"), col("wt_pct"), col("sg_60f"),
+                        col("sulfur_wt_pct"))
+    le = dict(src.get("light_ends", {}))
+    basis = le.pop("basis", "wt")
+    extras = {k: v for k, v in crude.items() if k not in ("name", "origin", "api_gravity", "sulfur_wt_pct", "notes")}
+    return Assay(name=crude["name"], origin=crude["origin"], sg=api_to_sg(crude["api_gravity"]),
+                 sulfur_wt_pct=crude["sulfur_wt_pct"], curves=curves, narrow_cuts=narrow,
+                 light_ends=LightEnds(le, basis), extras=extras, notes=[crude["notes"]])
+
+
+def main() -> None:
+    pkg = HERE.parent / "assaycut" / "data"
+    for stem in ORDER:
+        assay = assay_from_toml(HERE / f"{stem}.toml")
+        out = HERE / f"{stem}.xlsx"
+        write_assay_workbook(assay, str(out))
+        shutil.copyfile(out, pkg / out.name)
+        print(f"wrote {out.relative_to(HERE.parent)} and assaycut/data/{out.name}")
+
+
+if __name__ == "__main__":
+    main()
