@@ -266,7 +266,7 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> DistCurve:
         elif abs(fv[-1] - v[0]) <= LIGHT_ENDS_TOL_PCT and fv[-1] != v[0] and ft[-1] < t[0]:
             if abs(v[0] / fv[-1] - 1.0) > 0.01:
                 warnings.append(f"the light ends add up to {fv[-1]:.3f} vol %, the first measured point is "
-                                    f"{v[0]:g} %; the light-ends volumes are scaled by "
+                                f"{v[0]:g} %; the light-ends volumes are scaled by "
                                 f"{(v[0] / fv[-1] - 1) * 100:+.2f} % to meet it")
             fv = fv * (v[0] / fv[-1])
             le_pct = float(fv[-1])

@@ -19,7 +19,7 @@ Per-cut results (one DataFrame row per cut):
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -64,7 +64,6 @@ class CutSet:
 
     cuts: list[Cut]
     label: str = "cut set"
-    overlaps: dict[str, float] = field(default_factory=dict)
 
     def __post_init__(self):
         validate_cut_set(self.cuts, self.label)
@@ -89,7 +88,7 @@ class CutSet:
                               f"and has no end to change")
         cuts = [Cut(c.name, float(changes[c.name]) if c.name in changes else c.end_c, c.swing)
                 for c in self.cuts]
-        return CutSet(cuts, label or self.label, dict(self.overlaps))
+        return CutSet(cuts, label or self.label)
 
 
 def validate_cut_set(cuts: list[Cut], label: str) -> None:

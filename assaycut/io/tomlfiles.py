@@ -1,0 +1,108 @@
+"""TOML files of assaycut: cut sets (``[[cut]]``) and product limits (``[[limit]]``)."""
+
+from __future__ import annotations
+
+import math
+import tomllib
+from importlib import resources
+
+from ..cutting import Cut, CutSet
+from ..errors import AssaycutError, InputError
+from ..limits import Limit, limits_from_dicts
+from .workbook import read_bytes
+
+
+def _load(path: str) -> dict:
+    data = read_bytes(path)
+    try:
+        text = data.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        raise InputError("not a UTF-8 text file; expected TOML", file=path) from None
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(f"not valid TOML: {exc}", file=path) from None
+
+
+def _temp(v, key: str, i: int, path: str) -> float:
+    if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v):
+        raise InputError(f"[[cut]] {i}: '{key}' must be a number; found {v!r}", file=path)
+    return float(v) if key == "end_c" else (float(v) - 32.0) / 1.8
+
+
+def cut_set_from_dict(doc: dict, path: str) -> CutSet:
+    """A CutSet from a parsed cut-set TOML document (``[[cut]]`` tables: name, end_c or end_f, swing)."""
+    items = doc.get("cut")
+    unknown_top = set(doc) - {"cut"}
+    if unknown_top:
+        raise InputError(f"unknown table or key {sorted(unknown_top)[0]!r}; a cut set has only [[cut]] tables",
+                         file=path)
+    if not isinstance(items, list) or not items:
+        raise InputError("no cuts; expected [[cut]] tables with name and end_c", file=path)
+    cuts = []
+    for i, it in enumerate(items, start=1):
+        if not isinstance(it, dict):
+            raise InputError(f"[[cut]] {i} is not a table", file=path)
+        unknown = set(it) - {"name", "end_c", "end_f", "swing"}
+        if unknown:
+            raise InputError(f"[[cut]] {i}: unknown key {sorted(unknown)[0]!r}; expected name, end_c or end_f, "
+                             f"swing", file=path)
+        name = it.get("name")
+        if not isinstance(name, str) or not name.strip():
+            raise InputError(f"[[cut]] {i}: 'name' must be a non-empty text", file=path)
+        if "end_c" in it and "end_f" in it:
+            raise InputError(f"[[cut]] {i} ({name!r}): give end_c or end_f, not both", file=path)
+        end = None
+        for key in ("end_c", "end_f"):
+            if key in it:
+                end = _temp(it[key], key, i, path)
+        swing = it.get("swing", False)
+        if not isinstance(swing, bool):
+            raise InputError(f"[[cut]] {i} ({name!r}): 'swing' must be true or false", file=path)
+        cuts.append(Cut(name.strip(), end, swing))
+    try:
+        return CutSet(cuts, path)
+    except AssaycutError as exc:
+        raise InputError(str(exc).removeprefix(f"{path}: "), file=path) from None
+
+
+def read_cut_set(path: str) -> CutSet:
+    """Read a cut-set TOML file.
+
+    Parameters
+    ----------
+    path : str
+
+    Returns
+    -------
+    CutSet
+    """
+    return cut_set_from_dict(_load(path), path)
+
+
+def read_limits(path: str | None = None) -> list[Limit]:
+    """Read a product-limits TOML file (``[[limit]]`` tables); None reads the shipped defaults."""
+    if path is None:
+        ref = resources.files("assaycut.data").joinpath("limits_default.toml")
+        return limits_from_dicts(tomllib.loads(ref.read_text(encoding="utf-8")).get("limit", []),
+                                 "limits_default.toml")
+    doc = _load(path)
+    unknown = set(doc) - {"limit"}
+    if unknown:
+        raise InputError(f"unknown table or key {sorted(unknown)[0]!r}; a limits file has only [[limit]] tables",
+                         file=path)
+    items = doc.get("limit")
+    if not isinstance(items, list) or not items:
+        raise InputError("no limits; expected [[limit]] tables with cut, property and min and/or max", file=path)
+    return limits_from_dicts(items, path)
+
+
+def default_cut_set_path():
+    """Path-like of the shipped default cut set (cuts_default.toml)."""
+    return resources.files("assaycut.data").joinpath("cuts_default.toml")
+
+
+def demo_assay_paths() -> list[str]:
+    """Paths of the shipped demo assays, the default one first."""
+    base = resources.files("assaycut.data")
+    return [str(base.joinpath(n)) for n in ("selkie_light.xlsx", "brannock_blend.xlsx", "tarn_heavy.xlsx")]

@@ -1,0 +1,125 @@
+"""PNG plots of a yield report (matplotlib, Agg backend, imported only when a plot is drawn)."""
+
+from __future__ import annotations
+
+import numpy as np
+
+CUT_COLOURS = ["#cfd8dc", "#b3e5fc", "#81d4fa", "#fff59d", "#ffcc80", "#bcaaa4", "#8d6e63", "#a5d6a7",
+               "#ce93d8", "#ef9a9a"]
+"""Fill colours of the cuts, in order (our own palette)."""
+PLOT_TOP_PCT = 99.0
+"""The TBP plot stops at this percent: the last fraction of a percent of the extension is not informative."""
+
+
+def _plt():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    return plt
+
+
+def _save(fig, target) -> None:
+    """Render ``fig`` as PNG to ``target`` (a binary file object; the report writer places it atomically)."""
+    fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
+
+
+def plot_tbp(result, target) -> None:
+    """TBP curve with the cuts shaded and named; measured part solid, extrapolated part dashed."""
+    plt = _plt()
+    m = result.model
+    c = m.curve
+    v = np.linspace(0.0, PLOT_TOP_PCT, 600)
+    t = c.temp_at(v)
+    fig, ax = plt.subplots(figsize=(9, 5.5))
+    meas = (v >= c.measured_lo) & (v <= c.measured_hi)
+    ax.plot(np.where(meas, v, np.nan), np.where(meas, t, np.nan), color="#1a237e", lw=2, label="TBP, measured")
+    ext = ~meas
+    ax.plot(np.where(ext, v, np.nan), np.where(ext, t, np.nan), color="#c62828", lw=2, ls="--",
+            label="TBP, extrapolated (fitted distribution)")
+    pts = np.asarray(c.spline.x)
+    pv = np.asarray(c.spline.y)
+    keep = (pv >= c.measured_lo) & (pv <= c.measured_hi)
+    ax.plot(pv[keep], pts[keep], "o", ms=3.5, color="#1a237e", label="curve nodes")
+    tmin, tmax = float(t.min()), float(t.max())
+    for i, r in enumerate(result.cuts.to_dict("records")):
+        lo, hi = r["cum_vol_pct"] - r["vol_pct"], min(r["cum_vol_pct"], PLOT_TOP_PCT)
+        if hi <= lo:
+            continue
+        ax.axvspan(lo, hi, color=CUT_COLOURS[i % len(CUT_COLOURS)], alpha=0.55, lw=0)
+        ax.text((lo + hi) / 2, tmin + 0.03 * (tmax - tmin), f"{r['name']}\n{r['vol_pct']:.1f}%", rotation=90,
+                ha="center", va="bottom", fontsize=8)
+    for e in result.cut_set.ends_c:
+        ax.axhline(e, color="#616161", lw=0.6, ls=":")
+    ax.set_xlim(0, 100)
+    ax.set_xlabel("Distilled [vol % of crude]")
+    ax.set_ylabel("TBP [°C]")
+    ax.set_title(f"{result.assay.name}: TBP curve and cuts (estimates for screening)")
+    ax.grid(alpha=0.3)
+    ax.legend(loc="upper left", fontsize=8)
+    _save(fig, target)
+    plt.close(fig)
+
+
+def plot_yields(result, target) -> None:
+    """Yield bar chart on the volume and weight bases."""
+    plt = _plt()
+    cuts = result.cuts
+    x = np.arange(len(cuts))
+    fig, ax = plt.subplots(figsize=(9, 4.8))
+    b1 = ax.bar(x - 0.2, cuts["vol_pct"], 0.4, label="vol %", color="#3949ab")
+    b2 = ax.bar(x + 0.2, cuts["wt_pct"], 0.4, label="wt %", color="#ef6c00")
+    for bars in (b1, b2):
+        for rect in bars:
+            ax.text(rect.get_x() + rect.get_width() / 2, rect.get_height(), f"{rect.get_height():.1f}",
+                    ha="center", va="bottom", fontsize=7)
+    ax.set_xticks(x, [str(n) for n in cuts["name"]], rotation=25, ha="right")
+    ax.set_ylabel("Yield [% of crude]")
+    ax.set_title(f"{result.assay.name}: yields by cut")
+    ax.legend()
+    ax.grid(axis="y", alpha=0.3)
+    _save(fig, target)
+    plt.close(fig)
+
+
+def plot_properties(result, target) -> None:
+    """Local density (volume basis) and sulfur (weight basis) against percent distilled, with narrow cuts."""
+    plt = _plt()
+    m = result.model
+    v = np.linspace(0.0, 100.0, 401)
+    fig, (a1, a2) = plt.subplots(1, 2, figsize=(11, 4.5))
+    a1.plot(v, m.sg_dist(v), color="#2e7d32", label="density distribution (reconciled)")
+    nc = result.assay.narrow_cuts
+    if nc is not None and m.density_source.startswith("narrow"):
+        from ..crude import narrow_cut_positions
+
+        va, vb = narrow_cut_positions(result.assay, m.curve)
+        ok = np.isfinite(nc.sg)
+        a1.plot(((va + vb) / 2)[ok], nc.sg[ok], "s", color="#1b5e20", ms=4, label="narrow cuts (measured)")
+    a1.set_xlabel("Distilled [vol %]")
+    a1.set_ylabel("SG 60/60 °F [-]")
+    a1.set_title("Density")
+    a1.grid(alpha=0.3)
+    a1.legend(fontsize=8)
+    w = np.linspace(0.0, 100.0, 401)
+    if m.sulfur_dist is not None:
+        a2.plot(w, m.sulfur_dist(w), color="#f9a825", label="sulfur distribution (reconciled)")
+        if nc is not None:
+            from ..crude import narrow_cut_positions
+
+            va, vb = narrow_cut_positions(result.assay, m.curve)
+            wa, wb = m.wt_at_vol(va), m.wt_at_vol(vb)
+            ok = np.isfinite(nc.sulfur_wt_pct)
+            a2.plot(((wa + wb) / 2)[ok], nc.sulfur_wt_pct[ok], "s", color="#e65100", ms=4,
+                    label="narrow cuts (measured)")
+        a2.legend(fontsize=8)
+    else:
+        a2.text(0.5, 0.5, "no sulfur data", ha="center", transform=a2.transAxes)
+    a2.set_xlabel("Distilled [wt %]")
+    a2.set_ylabel("Sulfur [wt %]")
+    a2.set_title("Sulfur")
+    a2.grid(alpha=0.3)
+    fig.suptitle(f"{result.assay.name}: property distributions (estimates)")
+    _save(fig, target)
+    plt.close(fig)

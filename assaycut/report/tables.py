@@ -1,0 +1,121 @@
+"""Column labels with units, the terminal cut table and the Markdown summary."""
+
+from __future__ import annotations
+
+import math
+
+from ..crude import D86_STD
+from ..io.safe import safe_text
+
+LABELS = {
+    "name": "Cut",
+    "start_c": "Start TBP [°C]",
+    "end_c": "End TBP [°C]",
+    "vol_pct": "Yield [vol %]",
+    "wt_pct": "Yield [wt %]",
+    "cum_vol_pct": "Cumulative [vol %]",
+    "cum_wt_pct": "Cumulative [wt %]",
+    "mid_vol_c": "Mid-volume TBP [°C]",
+    "vabp_c": "VABP [°C]",
+    "meabp_c": "MeABP [°C]",
+    "sg": "SG 60/60 °F [-]",
+    "api": "API gravity [°API]",
+    "density_15c_kg_m3": "Density 15 °C [kg/m3]",
+    "watson_k": "Watson K [-]",
+    "sulfur_wt_pct": "Sulfur [wt %]",
+    "sulfur_share_pct": "Share of crude sulfur [%]",
+    "mw": "Molecular weight [g/mol]",
+    "cetane_index_d4737": "Cetane index D4737 [-]",
+    "flash_c_est": "Flash point est. [°C]",
+    "extrapolated": "Extrapolated",
+}
+"""Report header of each cut-table column, with its unit."""
+for _p in D86_STD:
+    LABELS[f"d86_{_p}_c"] = f"D86 {_p} % [°C]"
+
+FORMATS = {"vol_pct": "0.00", "wt_pct": "0.00", "cum_vol_pct": "0.00", "cum_wt_pct": "0.00", "sg": "0.0000",
+           "api": "0.0", "density_15c_kg_m3": "0.0", "watson_k": "0.00", "sulfur_wt_pct": "0.000",
+           "sulfur_share_pct": "0.0", "mw": "0", "cetane_index_d4737": "0.0"}
+"""Spreadsheet number formats by column; temperatures default to 0.0."""
+
+
+def flat_cut_rows(cuts) -> tuple[list[str], list[list]]:
+    """Cut table as flat rows (D86 expanded into one column per point), with machine column names."""
+    cols = [c for c in cuts.columns if c != "d86_c"]
+    cols.insert(cols.index("cetane_index_d4737"), "__d86__")
+    names = []
+    for c in cols:
+        names += [f"d86_{p}_c" for p in D86_STD] if c == "__d86__" else [c]
+    rows = []
+    for rec in cuts.to_dict("records"):
+        row = []
+        for c in cols:
+            if c == "__d86__":
+                d = rec["d86_c"] or {}
+                row += [d.get(str(p)) for p in D86_STD]
+            else:
+                row.append(rec[c])
+        rows.append(row)
+    return names, rows
+
+
+def _fmt(v, nd=1):
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return "-"
+    if isinstance(v, bool):
+        return "yes" if v else ""
+    if isinstance(v, float):
+        return f"{v:.{nd}f}"
+    return str(v)
+
+
+TERMINAL_COLUMNS = [("name", "Cut", 0), ("start_c", "Start °C", 0), ("end_c", "End °C", 0),
+                    ("vol_pct", "vol %", 2), ("wt_pct", "wt %", 2), ("api", "API", 1), ("sg", "SG", 4),
+                    ("sulfur_wt_pct", "S wt %", 3), ("watson_k", "Kw", 2), ("mid_vol_c", "Mid °C", 0),
+                    ("cetane_index_d4737", "CCI", 1), ("flash_c_est", "Flash °C*", 0), ("extrapolated", "Extrap.", 0)]
+
+
+def text_table(cuts) -> str:
+    """The cut table as aligned plain text for the terminal."""
+    head = [h for _, h, _ in TERMINAL_COLUMNS]
+    body = [[_fmt(r[c], nd) if c != "name" else str(r[c]) for c, _, nd in TERMINAL_COLUMNS]
+            for r in cuts.to_dict("records")]
+    widths = [max(len(x) for x in col) for col in zip(head, *body)]
+    lines = ["  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, (h, w) in enumerate(zip(head, widths)))]
+    lines.append("  ".join("-" * w for w in widths))
+    for row in body:
+        lines.append("  ".join(x.ljust(w) if i == 0 else x.rjust(w) for i, (x, w) in enumerate(zip(row, widths))))
+    return "\n".join(lines)
+
+
+def markdown_summary(result) -> str:
+    """A short Markdown summary of one yield result."""
+    a = result.assay
+    m = result.model
+    out = [f"# Yield report: {a.name}", "",
+           "*Estimates for screening and planning, not measured properties.*", "",
+           f"- Source: `{a.source}` (sha256 `{a.sha256[:16]}...`)",
+           f"- Origin: {a.origin or '-'}",
+           f"- Whole crude: {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
+           + (f"{m.sulfur_wt_pct:.3f} wt %" if m.sulfur_wt_pct is not None else "not given"),
+           f"- Curve measured to {m.curve.measured_hi:g} vol % "
+           f"({float(m.curve.temp_at(m.curve.measured_hi)):.0f} °C TBP)",
+           f"- Closure: vol {result.closure['vol_pct']:+.1e} %, wt {result.closure['wt_pct']:+.1e} %", "",
+           "| Cut | TBP range °C | vol % | wt % | API | S wt % | Watson K | CCI | Flash est. °C |",
+           "|---|---|---:|---:|---:|---:|---:|---:|---:|"]
+    for r in result.cuts.to_dict("records"):
+        rng = f"{_fmt(r['start_c'], 0) if r['start_c'] == r['start_c'] else 'IBP'}-" \
+              f"{_fmt(r['end_c'], 0) if r['end_c'] == r['end_c'] else 'end'}"
+        name = str(safe_text(r["name"])).replace("|", "/") + (" (extrap.)" if r["extrapolated"] else "")
+        out.append(f"| {name} | {rng} | {_fmt(r['vol_pct'], 2)} | {_fmt(r['wt_pct'], 2)} | {_fmt(r['api'], 1)} | "
+                   f"{_fmt(r['sulfur_wt_pct'], 3)} | {_fmt(r['watson_k'], 2)} | "
+                   f"{_fmt(r['cetane_index_d4737'], 1)} | {_fmt(r['flash_c_est'], 0)} |")
+    if len(result.limits):
+        out += ["", "## Product limits", "", "| Cut | Limit | Required | Value | Status |", "|---|---|---|---:|---|"]
+        for r in result.limits.to_dict("records"):
+            out.append(f"| {r['cut']} | {r['label'] or r['property']} | {r['limit']} | {_fmt(r['value'], 1)} | "
+                       f"{r['status'].upper()} |")
+    if result.warnings:
+        out += ["", "## Warnings", ""] + [f"- {w}" for w in result.warnings]
+    out += ["", "## Cautions", ""] + [f"- {n}" for n in result.notes]
+    return "\n".join(out) + "\n"

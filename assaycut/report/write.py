@@ -1,0 +1,84 @@
+"""Write a yield report: every file is rendered in memory first, then placed atomically, so a report is
+whole or absent."""
+
+from __future__ import annotations
+
+import csv
+import io
+import re
+from pathlib import Path
+
+from ..io.atomic import atomic_write
+from ..io.safe import safe_text
+from .tables import LABELS, flat_cut_rows, markdown_summary
+
+
+def slug(name: str) -> str:
+    """A file-name-safe version of a crude name."""
+    s = re.sub(r"[^A-Za-z0-9._-]+", "_", name.strip()).strip("._")
+    return s[:60] or "assay"
+
+
+def _bytes_writer(data: bytes):
+    def write(tmp):
+        with open(tmp, "wb") as fh:
+            fh.write(data)
+    return write
+
+
+def csv_text(headers: list[str], rows: list[list]) -> str:
+    """CSV text with text cells escaped against formula injection; NaN written as empty."""
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow([safe_text(h) for h in headers])
+    for r in rows:
+        out = []
+        for v in r:
+            if isinstance(v, float) and v != v:
+                out.append("")
+            elif isinstance(v, str):
+                out.append(safe_text(v))
+            else:
+                out.append(v)
+        w.writerow(out)
+    return buf.getvalue()
+
+
+def place_files(outdir: Path, files: dict[str, bytes], inputs: tuple[str, ...]) -> list[Path]:
+    """Write rendered files into ``outdir``, each atomically."""
+    return [atomic_write(outdir / name, _bytes_writer(data), inputs=inputs) for name, data in files.items()]
+
+
+def render_figure(plot, result) -> bytes:
+    """PNG bytes of one plot function applied to ``result``."""
+    buf = io.BytesIO()
+    plot(result, buf)
+    return buf.getvalue()
+
+
+def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ()) -> list[Path]:
+    """Write the full yield report of one assay into ``outdir``.
+
+    Files: ``<crude>_yields.xlsx`` (summary, cuts, curve, curve wt basis, limits, notes), ``<crude>_cuts.csv``,
+    ``<crude>_summary.md``, ``<crude>_tbp.png``, ``<crude>_yields.png``, ``<crude>_properties.png``.
+
+    Returns
+    -------
+    list of pathlib.Path
+    """
+    from . import plots
+    from .xlsx import yield_workbook
+
+    outdir = Path(outdir)
+    base = slug(result.assay.name)
+    files: dict[str, bytes] = {}
+    buf = io.BytesIO()
+    yield_workbook(result).save(buf)
+    files[f"{base}_yields.xlsx"] = buf.getvalue()
+    names, rows = flat_cut_rows(result.cuts)
+    files[f"{base}_cuts.csv"] = csv_text([LABELS.get(n, n) for n in names], rows).encode("utf-8")
+    files[f"{base}_summary.md"] = markdown_summary(result).encode("utf-8")
+    files[f"{base}_tbp.png"] = render_figure(plots.plot_tbp, result)
+    files[f"{base}_yields.png"] = render_figure(plots.plot_yields, result)
+    files[f"{base}_properties.png"] = render_figure(plots.plot_properties, result)
+    return place_files(outdir, files, inputs)

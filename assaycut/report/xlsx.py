@@ -1,0 +1,150 @@
+"""Spreadsheet reports: real numeric cells, unit-bearing headers, frozen header rows, number formats.
+
+Every text cell goes through :func:`assaycut.io.safe.safe_text`, so that nothing from an input file can
+become a formula in the report.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ..io.safe import safe_text
+from .tables import FORMATS, LABELS, flat_cut_rows
+
+HEADER_FILL = "DDE6EE"
+
+
+def _cell(v):
+    if v is None:
+        return None
+    if isinstance(v, (np.bool_, bool)):
+        return "yes" if bool(v) else "no"
+    if isinstance(v, (np.integer,)):
+        return int(v)
+    if isinstance(v, (float, np.floating)):
+        return None if not math.isfinite(float(v)) else float(v)
+    return safe_text(str(v))
+
+
+def write_table(ws, headers: list[str], rows: list[list], formats: list[str | None] | None = None,
+                start_row: int = 1, widths: list[int] | None = None) -> None:
+    """Write a header row and data rows; bold shaded header, frozen below it, number formats per column."""
+    from openpyxl.styles import Alignment, Font, PatternFill
+    from openpyxl.utils import get_column_letter
+
+    for j, h in enumerate(headers, start=1):
+        c = ws.cell(row=start_row, column=j, value=safe_text(h))
+        c.font = Font(bold=True)
+        c.fill = PatternFill("solid", fgColor=HEADER_FILL)
+        c.alignment = Alignment(wrap_text=True, vertical="top")
+    for i, row in enumerate(rows, start=start_row + 1):
+        for j, v in enumerate(row, start=1):
+            c = ws.cell(row=i, column=j, value=_cell(v))
+            if formats and formats[j - 1] and isinstance(c.value, (int, float)):
+                c.number_format = formats[j - 1]
+    ws.freeze_panes = ws.cell(row=start_row + 1, column=2 if len(headers) > 1 else 1)
+    for j, h in enumerate(headers, start=1):
+        w = widths[j - 1] if widths else max(10, min(28, len(str(h)) + 2))
+        ws.column_dimensions[get_column_letter(j)].width = w
+
+
+def _fmt_for(col: str) -> str | None:
+    if col in FORMATS:
+        return FORMATS[col]
+    if col.endswith("_c"):
+        return "0.0"
+    return None
+
+
+def curve_rows(result, step: float = 0.5) -> list[list]:
+    """Interpolated curve on a vol % grid: vol %, TBP, wt %, local SG, local sulfur, extrapolated."""
+    m = result.model
+    v = np.arange(0.0, 100.0 + step / 2, step)
+    t = m.curve.temp_at(v)
+    w = m.wt_at_vol(v)
+    sg = m.sg_dist(v)
+    s = m.sulfur_dist(w) if m.sulfur_dist is not None else np.full_like(v, np.nan)
+    ext = (v > m.curve.measured_hi + 1e-9) | (v < m.curve.measured_lo - 1e-9)
+    return [list(r) for r in zip(v, t, w, sg, s, ext)]
+
+
+def wt_curve_rows(result, step: float = 1.0) -> list[list]:
+    """Interpolated curve on a wt % grid: wt %, TBP, vol %."""
+    m = result.model
+    w = np.arange(0.0, 100.0 + step / 2, step)
+    v = m.vol_at_wt(w)
+    return [list(r) for r in zip(w, m.curve.temp_at(v), v)]
+
+
+def yield_workbook(result):
+    """The openpyxl Workbook of one yield report (sheets: summary, cuts, curve, limits, notes)."""
+    import openpyxl
+    from openpyxl.styles import Font
+
+    from .. import __version__
+
+    a, m = result.assay, result.model
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "summary"
+    ws["A1"] = safe_text(f"Yield report: {a.name}")
+    ws["A1"].font = Font(bold=True, size=14)
+    ws["A2"] = "Estimates for screening and planning, not measured properties. See the notes sheet."
+    ws["A2"].font = Font(italic=True)
+    info = [("Crude", a.name, None), ("Origin", a.origin, None), ("API gravity [°API]", a.api, "0.0"),
+            ("SG 60/60 °F [-]", a.sg, "0.0000"), ("Density 15 °C [kg/m3]", result.to_dict()["assay"]["density_15c_kg_m3"], "0.0"),
+            ("Sulfur [wt %]", m.sulfur_wt_pct, "0.000"),
+            ("Curve measured to [vol %]", m.curve.measured_hi, "0.0"),
+            ("Density reconciliation [%]", m.density_reconciliation_pct, "0.00"),
+            ("Sulfur reconciliation [%]", m.sulfur_reconciliation_pct, "0.00"),
+            ("Closure residual, vol [%]", result.closure["vol_pct"], "0.0E+00"),
+            ("Closure residual, wt [%]", result.closure["wt_pct"], "0.0E+00"),
+            ("Cut set", result.cut_set.label, None)]
+    for k, v in a.extras.items():
+        info.append((k, v, None))
+    write_table(ws, ["Item", "Value"], [[k, v] for k, v, _ in info], [None, None], start_row=4, widths=[30, 44])
+    for i, (_, _, f) in enumerate(info, start=5):
+        if f and isinstance(ws.cell(row=i, column=2).value, (int, float)):
+            ws.cell(row=i, column=2).number_format = f
+    r0 = 6 + len(info)
+    ws.cell(row=r0, column=1, value="Yields").font = Font(bold=True)
+    yrows = [[rec["name"], rec["vol_pct"], rec["wt_pct"], rec["api"], rec["sulfur_wt_pct"]]
+             for rec in result.cuts.to_dict("records")]
+    write_table(ws, ["Cut", LABELS["vol_pct"], LABELS["wt_pct"], LABELS["api"], LABELS["sulfur_wt_pct"]], yrows,
+                [None, "0.00", "0.00", "0.0", "0.000"], start_row=r0 + 1, widths=[30, 44, 14, 14, 14])
+    ws.freeze_panes = "A4"
+
+    names, rows = flat_cut_rows(result.cuts)
+    ws = wb.create_sheet("cuts")
+    write_table(ws, [LABELS.get(n, n) for n in names], rows, [_fmt_for(n) for n in names])
+    ws.column_dimensions["A"].width = 20
+
+    ws = wb.create_sheet("curve")
+    write_table(ws, ["Distilled [vol %]", "TBP [°C]", "Distilled [wt %]", "Local SG 60/60 °F [-]",
+                     "Local sulfur [wt %]", "Extrapolated"], curve_rows(result),
+                ["0.0", "0.0", "0.00", "0.0000", "0.000", None], widths=[16, 12, 16, 20, 18, 13])
+    ws = wb.create_sheet("curve wt basis")
+    write_table(ws, ["Distilled [wt %]", "TBP [°C]", "Distilled [vol %]"], wt_curve_rows(result),
+                ["0.0", "0.0", "0.00"], widths=[16, 12, 16])
+
+    ws = wb.create_sheet("limits")
+    lim = result.limits
+    write_table(ws, ["Cut", "Property", "Limit", "Required", "Value", "Status", "Note", "Source"],
+                [[r["cut"], r["property"], r["label"], r["limit"], r["value"], r["status"].upper(), r["note"],
+                  r["source"]] for r in lim.to_dict("records")],
+                [None, None, None, None, "0.0", None, None, None], widths=[16, 24, 40, 14, 10, 8, 40, 50])
+    from openpyxl.styles import PatternFill
+    colors = {"PASS": "C6EFCE", "FAIL": "FFC7CE", "N/A": "EDEDED"}
+    for i in range(2, len(lim) + 2):
+        c = ws.cell(row=i, column=6)
+        if c.value in colors:
+            c.fill = PatternFill("solid", fgColor=colors[c.value])
+
+    ws = wb.create_sheet("notes")
+    notes = [("Cautions", n) for n in result.notes] + [("Warning", w) for w in result.warnings]
+    notes += [(f"Method: {k}", v) for k, v in result.methods.items()]
+    notes += [("Input file", a.source), ("Input sha256", a.sha256), ("assaycut version", __version__)]
+    write_table(ws, ["Topic", "Text"], [list(n) for n in notes], widths=[28, 120])
+    return wb

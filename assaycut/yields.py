@@ -1,0 +1,146 @@
+"""The main job in one call: model an assay, cut it, check product limits, and gather warnings and notes.
+
+Pure computation: takes an :class:`~assaycut.assay.Assay`, a :class:`~assaycut.cutting.CutSet` and limits,
+returns a :class:`YieldResult`.  Readers, report writers and the CLI sit around it.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from . import __version__
+from .assay import Assay
+from .crude import CrudeModel, build_model
+from .cutting import CutSet, closure, cut_table
+from .limits import Limit, check_limits
+from .units import sg_to_density15
+
+CAUTIONS = [
+    "Estimates for screening and planning, not measured properties: confirm against laboratory data before "
+    "commercial or operating decisions.",
+    "Flash point is a safety property: the values here are correlation estimates and must be measured "
+    "(ASTM D93) before any product is stored, shipped or sold.",
+    "Crude oil and its light ends can carry hydrogen sulfide (H2S), which is toxic, and are flammable: "
+    "sample and handle them under your site's gas-testing and hot-oil procedures.",
+    "Follow local codes, measured data and licensed practice; these results do not replace them.",
+]
+"""Cautions carried by every report and every JSON ``notes`` list."""
+
+
+@dataclass
+class YieldResult:
+    """Everything a yield report shows for one assay.
+
+    Attributes
+    ----------
+    assay : Assay
+    model : CrudeModel
+    cut_set : CutSet
+    cuts : pandas.DataFrame
+        The cut table (see :data:`assaycut.cutting.CUT_COLUMNS`).
+    limits : pandas.DataFrame
+        Product-limit status (see :func:`assaycut.limits.check_limits`).
+    closure : dict
+        Σ vol % - 100 and Σ wt % - 100. [%]
+    warnings, notes : list of str
+    methods : dict of str to str
+    """
+
+    assay: Assay
+    model: CrudeModel
+    cut_set: CutSet
+    cuts: object
+    limits: object
+    closure: dict[str, float]
+    warnings: list[str] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+    methods: dict[str, str] = field(default_factory=dict)
+
+    def to_dict(self) -> dict:
+        """The JSON object of one assay's yields (field names are part of the interface)."""
+        a = self.assay
+        cuts = []
+        for rec in self.cuts.to_dict("records"):
+            cuts.append({k: _clean(v) for k, v in rec.items()})
+        lim = [{k: _clean(v) for k, v in r.items()} for r in self.limits.to_dict("records")]
+        return {
+            "assay": {"name": a.name, "source": a.source, "sha256": a.sha256, "api": _clean(a.api),
+                      "sg": _clean(a.sg), "density_15c_kg_m3": _clean(sg_to_density15(a.sg)),
+                      "sulfur_wt_pct": _clean(self.model.sulfur_wt_pct)},
+            "cuts": cuts,
+            "limits": lim,
+            "closure": {k: _clean(v) for k, v in self.closure.items()},
+            "warnings": list(self.warnings),
+            "notes": list(self.notes),
+            "methods": dict(self.methods),
+            "version": __version__,
+        }
+
+
+def _clean(v):
+    """JSON-safe value: NaN/inf become None, numpy scalars become Python numbers."""
+    if isinstance(v, dict):
+        return {k: _clean(x) for k, x in v.items()}
+    if isinstance(v, (np.bool_, bool)):
+        return bool(v)
+    if isinstance(v, (np.integer,)):
+        return int(v)
+    if isinstance(v, (float, np.floating)):
+        return None if not math.isfinite(float(v)) else float(v)
+    return v
+
+
+METHOD_NOTES = {
+    "cut points": "TBP cut points; each cut starts where the one before ends",
+    "d86": "cut D86 at 0/10/30/50/70/90/95 % from the cut's own TBP slice by Daubert 1994 (API TDB 3A1.1)",
+    "meabp": "MeABP from the cut's D86 by API TDB 2B1.1",
+    "watson_k": "Watson K from MeABP (from the TBP slice's VABP where the cut has no D86 estimate)",
+    "mw": "molecular weight by Riazi-Daubert 1987 (API TDB 2B2.1), only inside its range",
+    "cetane_index_d4737": "ASTM D4737 Procedure A, for cuts inside 150-400 °C TBP",
+    "flash_c_est": "closed-cup flash estimate from D86 10 % by API TDB 2B7.1, for cuts starting at 150 °C or above",
+    "density_15c": "SG 60/60 °F to 15 °C by the API MPMS 11.1 crude-oil form (K0 from memory)",
+}
+
+
+def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
+               method: str = "daubert-1994", model: CrudeModel | None = None) -> YieldResult:
+    """Model, cut and check one assay.
+
+    Parameters
+    ----------
+    assay : Assay
+    cut_set : CutSet
+    limits : list of Limit, optional
+    method : str
+        TBP <-> D86 method for D86 input curves.
+    model : CrudeModel, optional
+        A model already built for this assay (saves rebuilding it in studies).
+
+    Returns
+    -------
+    YieldResult
+    """
+    model = model or build_model(assay, method)
+    cuts = cut_table(model, cut_set)
+    lim = check_limits(cuts, limits or [])
+    clo = closure(cuts)
+    warnings = list(model.warnings)
+    ext = cuts.loc[cuts["extrapolated"], "name"].tolist()
+    if ext:
+        warnings.append(f"cut(s) {', '.join(ext)} reach beyond the measured curve ({model.curve.measured_hi:g} "
+                        f"vol %): their qualities depend on the fitted extension")
+    empty = cuts.loc[cuts["vol_pct"] <= 1e-9, "name"].tolist()
+    if empty:
+        warnings.append(f"cut(s) {', '.join(empty)} have no yield: their qualities are left empty")
+    methods = dict(model.methods)
+    methods.update(METHOD_NOTES)
+    notes = list(CAUTIONS)
+    notes.append(f"density reconciliation {model.density_reconciliation_pct:+.2f} %"
+                 + (f"; sulfur reconciliation {model.sulfur_reconciliation_pct:+.2f} %"
+                    if model.sulfur_reconciliation_pct is not None else ""))
+    notes.append(f"closure residual: vol {clo['vol_pct']:+.2e} %, wt {clo['wt_pct']:+.2e} %")
+    notes += [f"assay note: {n}" for n in assay.notes]
+    return YieldResult(assay, model, cut_set, cuts, lim, clo, warnings, notes, methods)
