@@ -50,7 +50,7 @@ def pchip_slopes(x: np.ndarray, y: np.ndarray) -> np.ndarray:
     w1 = 2.0 * h1 + h0
     w2 = h1 + 2.0 * h0
     same = (np.sign(m0) * np.sign(m1)) > 0
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         whmean = (w1 / m0 + w2 / m1) / (w1 + w2)
         d[1:-1] = np.where(same, 1.0 / np.where(same, whmean, 1.0), 0.0)
     d[0] = _edge_slope(h[0], h[1], m[0], m[1])
@@ -147,4 +147,7 @@ class Pchip:
             below = self._hermite(i, mid) < yq
             lo = np.where(below, mid, lo)
             hi = np.where(below, hi, mid)
-        return self.x[i] + hi * self.h[i]
+        x = self.x[i] + hi * self.h[i]
+        # exact at the nodes, where a zero end slope would leave the bisection ~sqrt(eps) short
+        x = np.where(yq == self.y[i + 1], self.x[i + 1], x)
+        return np.where(yq == self.y[i], self.x[i], x)

@@ -159,9 +159,15 @@ def _open_workbook(data: bytes, path: str):
     except InputError:
         raise
     except Exception as exc:  # openpyxl and defusedxml raise many types; all mean "unreadable"
-        kind = type(exc).__name__
-        hint = " (XML entities are refused as unsafe)" if "Entit" in kind or "DTD" in kind else ""
-        raise InputError(f"not a readable .xlsx workbook: {kind}{hint}", file=path) from None
+        chain, e = [], exc
+        while e is not None and len(chain) < 5:
+            chain.append(type(e).__name__)
+            e = e.__cause__ or e.__context__
+        if any("Entit" in k or "DTD" in k for k in chain):
+            raise InputError("refused: the workbook's XML declares entities (a possible XML bomb); assaycut does "
+                             "not expand XML entities", file=path) from None
+        raise InputError(f"not a readable .xlsx workbook ({chain[-1]}); save it again from a spreadsheet program "
+                         f"as .xlsx", file=path) from None
 
 
 def _rows(ws, loc: _Loc):

@@ -1,0 +1,227 @@
+"""The command line as a user runs it: yields, check, template, convert (exit codes, JSON shape, files)."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+from typer.testing import CliRunner
+
+from assaycut.cli import app
+
+from .conftest import sha256
+from .test_readers import cli_error
+
+runner = CliRunner()
+
+CUT_FIELDS = {"name", "start_c", "end_c", "vol_pct", "wt_pct", "cum_vol_pct", "cum_wt_pct", "mid_vol_c", "vabp_c",
+              "meabp_c", "sg", "api", "density_15c_kg_m3", "watson_k", "sulfur_wt_pct", "sulfur_share_pct", "mw",
+              "d86_c", "cetane_index_d4737", "flash_c_est", "extrapolated"}
+
+
+def test_yields_json_shape_and_no_files(tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    r = runner.invoke(app, ["yields", "--json"])
+    assert r.exit_code == 0, r.stderr
+    d = json.loads(r.stdout)
+    assert set(d) >= {"assay", "cuts", "warnings", "notes", "methods", "version"}
+    assert set(d["assay"]) == {"name", "source", "sha256", "api", "sg", "density_15c_kg_m3", "sulfur_wt_pct"}
+    assert d["assay"]["name"] == "Selkie Light"
+    assert [c["name"] for c in d["cuts"]][0] == "light ends"
+    for c in d["cuts"]:
+        assert set(c) == CUT_FIELDS
+    diesel = next(c for c in d["cuts"] if c["name"] == "diesel")
+    assert set(diesel["d86_c"]) == {"0", "10", "30", "50", "70", "90", "95"}
+    assert diesel["start_c"] == 232.0 and d["cuts"][0]["start_c"] is None and d["cuts"][-1]["end_c"] is None
+    assert sum(c["vol_pct"] for c in d["cuts"]) == pytest.approx(100.0, abs=1e-9)
+    assert sum(c["wt_pct"] for c in d["cuts"]) == pytest.approx(100.0, abs=1e-9)
+    assert any("ASTM D93" in n for n in d["notes"]) and any("H2S" in n for n in d["notes"])
+    assert not (tmp_path / "reports").exists()  # --json without --out writes nothing
+
+
+def test_several_assays_json(demo_paths):
+    r = runner.invoke(app, ["yields", *demo_paths, "--json"])
+    assert r.exit_code == 0, r.stderr
+    d = json.loads(r.stdout)
+    assert [a["assay"]["name"] for a in d["assays"]] == ["Selkie Light", "Brannock Blend", "Tarn Heavy"]
+
+
+def test_bare_command_writes_full_report(tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    r = runner.invoke(app, [])
+    assert r.exit_code == 0, r.stderr
+    assert "Selkie Light" in r.stdout and "vacuum residue" in r.stdout
+    folder = tmp_path / "reports" / "Selkie_Light"
+    names = sorted(p.name for p in folder.iterdir())
+    assert names == sorted(f"Selkie_Light_{s}" for s in ("yields.xlsx", "cuts.csv", "summary.md", "tbp.png",
+                                                          "yields.png", "properties.png"))
+    assert not [p for p in folder.iterdir() if p.name.startswith(".")]  # no temporary files left
+
+
+def test_xlsx_report_has_numeric_cells_and_sheets(tmp_path):
+    import openpyxl
+
+    r = runner.invoke(app, ["yields", "--out", str(tmp_path)])
+    assert r.exit_code == 0, r.stderr
+    wb = openpyxl.load_workbook(tmp_path / "Selkie_Light_yields.xlsx")
+    assert wb.sheetnames == ["summary", "cuts", "curve", "curve wt basis", "limits", "notes"]
+    ws = wb["cuts"]
+    headers = [c.value for c in ws[1]]
+    assert "Yield [vol %]" in headers and "Yield [wt %]" in headers and "D86 50 % [°C]" in headers
+    assert ws.freeze_panes == "B2"
+    col = headers.index("Yield [vol %]") + 1
+    vals = [ws.cell(row=i, column=col).value for i in range(2, ws.max_row + 1)]
+    assert all(isinstance(v, float) for v in vals)  # real numbers, never numbers as text
+    assert sum(vals) == pytest.approx(100.0, abs=1e-9)
+    notes = " ".join(str(c.value) for row in wb["notes"].iter_rows() for c in row)
+    assert "ASTM D93" in notes and "sha256" in notes
+
+
+def test_end_override_moves_only_neighbours():
+    base = json.loads(runner.invoke(app, ["yields", "--json"]).stdout)
+    new = json.loads(runner.invoke(app, ["yields", "--json", "--end", "diesel=360"]).stdout)
+    b = {c["name"]: c["vol_pct"] for c in base["cuts"]}
+    n = {c["name"]: c["vol_pct"] for c in new["cuts"]}
+    assert n["diesel"] > b["diesel"] and n["vacuum gas oil"] < b["vacuum gas oil"]
+    assert n["kerosene"] == pytest.approx(b["kerosene"], abs=1e-12)
+
+
+def test_end_override_errors():
+    cli_error(["yields", "--end", "dieselx=360"], r"no cut named 'dieselx'")
+    cli_error(["yields", "--end", "diesel=abc"], r"--end 'diesel=abc': 'abc' is not a temperature")
+    cli_error(["yields", "--end", "diesel=200"], r"cut points must increase")
+
+
+def test_cut_file_errors(tmp_path):
+    p = tmp_path / "cuts.toml"
+    p.write_text('[[cut]]\nname = "a"\nend_c = 200\n[[cut]]\nname = "b"\nend_c = 150\n[[cut]]\nname = "c"\n')
+    cli_error(["yields", "--cuts", str(p)], r"cuts.toml: cut points must increase: 'b' ends at 150 °C")
+    p.write_text('[[cut]]\nname = "a"\nend_c = 200\n[[cut]]\nname = "a"\n')
+    cli_error(["yields", "--cuts", str(p)], r"cuts.toml: duplicate cut name 'a'")
+    p.write_text("title = 'x'\n")
+    cli_error(["yields", "--cuts", str(p)], r"cuts.toml: unknown table or key 'title'")
+    p.write_text("[[cut]\n")
+    cli_error(["yields", "--cuts", str(p)], r"cuts.toml: not valid TOML")
+
+
+def test_limits_file_errors(tmp_path):
+    p = tmp_path / "lim.toml"
+    p.write_text('[[limit]]\ncut = "diesel"\nproperty = "colour"\nmax = 3\n')
+    cli_error(["yields", "--limits", str(p)], r"lim.toml: \[\[limit\]\] 1: unknown property 'colour'")
+    p.write_text('[[limit]]\ncut = "diesel"\nproperty = "flash_c_est"\n')
+    cli_error(["yields", "--limits", str(p)], r"give 'min', 'max' or both")
+
+
+def test_custom_limit_fails_and_is_reported(tmp_path):
+    p = tmp_path / "lim.toml"
+    p.write_text('[[limit]]\ncut = "diesel"\nproperty = "sulfur_wt_pct"\nmax = 0.001\nlabel = "ULSD sulfur"\n')
+    r = runner.invoke(app, ["yields", "--limits", str(p), "--json"])
+    d = json.loads(r.stdout)
+    assert d["limits"][0]["status"] == "fail"
+
+
+def test_check_demo_assays_pass(demo_paths):
+    for p in demo_paths:
+        r = runner.invoke(app, ["check", p, "--json"])
+        assert r.exit_code == 0, r.stdout
+        d = json.loads(r.stdout)
+        assert d["ok"] is True
+        assert all(set(f) == {"severity", "where", "message"} for f in d["findings"])
+
+
+def test_check_flags_gravity_disagreement(book):
+    def mutate(s):
+        s["crude"].append(["sg_60f", 0.95])  # 33 °API is SG 0.860: an error-size disagreement
+    r = runner.invoke(app, ["check", str(book(mutate)), "--json"])
+    assert r.exit_code == 1
+    d = json.loads(r.stdout)
+    assert d["ok"] is False
+    assert any(f["severity"] == "error" and "gravity figures disagree" in f["message"] for f in d["findings"])
+
+
+def test_template_written_and_readable_layout(tmp_path):
+    import openpyxl
+
+    p = tmp_path / "blank.xlsx"
+    r = runner.invoke(app, ["template", str(p)])
+    assert r.exit_code == 0, r.stderr
+    wb = openpyxl.load_workbook(p)
+    assert wb.sheetnames == ["crude", "distillation", "vacuum distillation", "narrow cuts", "light ends"]
+    assert all(ws["A1"].value for ws in wb.worksheets)  # an instruction row per sheet
+    cli_error(["template", str(p)], r"already exists")
+
+
+def test_template_round_trip_when_filled(tmp_path):
+    """A lab fills in the template: it then reads as an assay."""
+    import openpyxl
+
+    from assaycut.io import load_assay
+
+    p = tmp_path / "lab.xlsx"
+    runner.invoke(app, ["template", str(p)])
+    wb = openpyxl.load_workbook(p)
+    ws = wb["crude"]
+    ws["B3"], ws["B5"] = "Lab Crude", 30.0
+    ws = wb["distillation"]
+    for i, (v, t) in enumerate([(5, 60), (20, 150), (50, 320), (70, 450)], start=6):
+        ws.cell(row=i, column=1, value=v)
+        ws.cell(row=i, column=2, value=t)
+    for name in ("vacuum distillation", "narrow cuts", "light ends"):
+        del wb[name]
+    wb.save(p)
+    a = load_assay(str(p))
+    assert a.name == "Lab Crude" and len(a.curves[0].percent) == 4
+
+
+def test_convert_points_and_json():
+    # Riazi MNL50 Table 3.8 kerosene, Daubert 1994: TBP 50 % = 210.6 °C (published).
+    r = runner.invoke(app, ["convert", "--from", "D86", "--to", "TBP", "--json", "0=165.6", "10=176.7",
+                            "30=193.3", "50=206.7", "70=222.8", "90=242.8"])
+    assert r.exit_code == 0, r.stderr
+    d = json.loads(r.stdout)
+    assert set(d) == {"from", "to", "method", "points", "warnings"}
+    p50 = next(p for p in d["points"] if p["percent"] == 50)
+    assert abs(p50["temp_c"] - 210.6) < 0.2
+
+
+def test_convert_fahrenheit_and_d1160():
+    # Reference sheet §4: 200 °C at 10 mmHg is about 348.8 °C AET (Maxwell-Bonnell).
+    r = runner.invoke(app, ["convert", "--from", "D1160", "--to", "AET", "--pressure-mmhg", "10", "--json", "50=200"])
+    assert json.loads(r.stdout)["points"][0]["temp_c"] == pytest.approx(348.8, abs=0.1)
+    r = runner.invoke(app, ["convert", "--from", "D1160", "--to", "AET", "--pressure-mmhg", "10", "--unit", "F",
+                            "--json", "50=392"])
+    assert json.loads(r.stdout)["points"][0]["temp_c"] == pytest.approx(348.8, abs=0.1)
+
+
+def test_convert_errors():
+    cli_error(["convert", "--from", "D86", "--to", "TBP", "10=150", "30=180"], r"needs the 50 % point")
+    cli_error(["convert", "--from", "D1160", "--to", "AET", "50=200"], r"pressure")
+    cli_error(["convert", "50=abc"], r"expected PERCENT=TEMP with numbers")
+    cli_error(["convert"], r"no points")
+
+
+def test_convert_from_file(tmp_path):
+    p = tmp_path / "d86.csv"
+    p.write_text("vol_pct,temp_c\n10,176.7\n30,193.3\n50,206.7\n70,222.8\n90,242.8\n")
+    r = runner.invoke(app, ["convert", "--file", str(p), "--from", "D86", "--to", "TBP"])
+    assert r.exit_code == 0, r.stderr
+    row = next(line.split() for line in r.stdout.splitlines() if line.split()[:1] == ["50"])
+    assert abs(float(row[2]) - 210.6) < 0.2  # Riazi MNL50 Table 3.8, Daubert 1994 TBP 50 % (printed 0.1 °C)
+
+
+def test_every_command_leaves_input_unchanged(good_book, tmp_path):
+    before = sha256(good_book)
+    for args in (["yields", str(good_book), "--out", str(tmp_path / "o")], ["yields", str(good_book), "--json"],
+                 ["check", str(good_book)], ["check", str(good_book), "--json"]):
+        r = runner.invoke(app, args)
+        assert r.exit_code in (0, 1), (args, r.stderr)
+    assert sha256(good_book) == before
+
+
+def test_report_never_written_over_input(good_book):
+    # --out pointing at the folder holding the input is fine; a report file named like the input is refused.
+    from assaycut.errors import InputError
+    from assaycut.io.atomic import atomic_write
+
+    with pytest.raises(InputError, match="refusing to write the report over the input file"):
+        atomic_write(good_book, lambda tmp: None, inputs=(str(good_book),))

@@ -1,0 +1,225 @@
+"""Readers: good and bad assay inputs, through the library and through the CLI (exit code and message)."""
+
+from __future__ import annotations
+
+import math
+import zipfile
+
+import numpy as np
+import pytest
+from typer.testing import CliRunner
+
+from assaycut.cli import app
+from assaycut.errors import AssaycutError, InputError
+from assaycut.io import load_assay
+
+from .bombs import entity_bomb
+from .conftest import sha256
+
+runner = CliRunner()
+
+
+def cli_error(args, match):
+    """Run the CLI; assert exit code 2, one error line on stderr matching ``match``, no traceback."""
+    import re
+
+    r = runner.invoke(app, args)
+    assert r.exit_code == 2, (r.exit_code, r.stdout, r.stderr)
+    lines = [x for x in r.stderr.splitlines() if x.strip()]
+    assert len(lines) == 1, r.stderr
+    assert "Traceback" not in r.stderr + r.stdout
+    assert re.search(match, lines[0]), lines[0]
+    return lines[0]
+
+
+def test_good_workbook_reads_and_normalises(good_book):
+    a = load_assay(str(good_book))
+    assert a.name == "Test Crude"
+    assert a.sg == pytest.approx(141.5 / (33.0 + 131.5))  # API MPMS Ch. 11 definition
+    assert a.curves[0].method == "TBP" and a.curves[0].basis == "vol"
+    assert len(a.narrow_cuts) == 7 and math.isnan(a.narrow_cuts.start_c[0])
+    assert a.light_ends.amounts == {"C3": 0.3, "iC4": 0.25, "nC4": 0.7}
+    assert len(a.sha256) == 64
+
+
+def test_fractions_float_noise_and_flat_step_accepted(book):
+    def mutate(s):
+        rows = s["distillation"]
+        for r in rows[5:]:
+            r[0] = r[0] / 100.0
+        rows[7][1] = 150.00000000000003
+        rows.insert(8, [0.20, 170.0])  # same cumulative percent at two temperatures: a flat step
+    a = load_assay(str(book(mutate)))
+    c = a.curves[0]
+    assert c.percent.max() == pytest.approx(82.0)
+    assert c.temp_c[2] == 150.0
+    assert any("fractions" in w for w in c.warnings)
+    assert any("flat step" in w for w in c.warnings)
+
+
+def test_curve_starting_late_and_stopping_at_45(book):
+    def mutate(s):
+        s["distillation"] = s["distillation"][:5] + [[8.0, 70.0], [20.0, 150.0], [35.0, 230.0], [45.0, 290.0]]
+    from assaycut.crude import build_model
+
+    m = build_model(load_assay(str(book(mutate))))
+    assert m.curve.measured_hi == 45.0
+    assert m.curve.fbp_c > 290.0
+
+
+def test_temperature_units_converted(book):
+    def mutate(s):
+        rows = s["distillation"]
+        rows[4] = ["vol_pct", "temp_f"]
+        for r in rows[5:]:
+            r[1] = r[1] * 1.8 + 32.0
+    a = load_assay(str(book(mutate)))
+    assert a.curves[0].temp_c[1] == pytest.approx(70.0)
+
+
+def set_cell(sheet, row, col, value):
+    def mutate(s):
+        r = s[sheet][row]
+        r.extend([None] * (col + 1 - len(r)))
+        r[col] = value
+    return mutate
+
+
+BAD_CASES = [
+    ("text_number", set_cell("distillation", 7, 1, "abc"), r"sheet 'distillation', row 8, column 'temp_c': found text 'abc'; expected a number"),
+    ("formula", set_cell("distillation", 7, 1, "=A1*2"), r"row 8, column 'temp_c': found the formula '=A1\*2'; expected a number"),
+    ("nan_text", set_cell("distillation", 7, 1, "nan"), r"row 8, column 'temp_c': found text 'nan'; expected a number"),
+    ("inf_text", set_cell("distillation", 7, 0, "inf"), r"row 8, column 'vol_pct': found text 'inf'"),
+    ("falling", set_cell("distillation", 7, 1, 60.0), r"row 8, column 'temp_c': temperature falls from 70.00 °C to 60.00 °C"),
+    ("pct_above_100", set_cell("distillation", 11, 0, 120.0), r"row 12, column 'vol_pct': vol_pct 120 is outside 0-100 %"),
+    ("pct_below_0", set_cell("distillation", 5, 0, -3.0), r"row 6, column 'vol_pct': vol_pct -3 is outside 0-100 %"),
+    ("below_abs_zero", set_cell("distillation", 5, 1, -300.0), r"row 6, column 'temp_c': temperature -300 °C is below absolute zero"),
+    ("unknown_column", set_cell("distillation", 4, 2, "colour"), r"row 5, column 'colour': unknown column 'colour'"),
+    ("missing_gravity", set_cell("crude", 4, 1, None), r"sheet 'crude': missing gravity"),
+    ("absurd_gravity", set_cell("crude", 4, 1, 130.0), r"row 5, column 'api_gravity': api_gravity 130 °API is outside 0-100 °API"),
+    ("unknown_field", set_cell("crude", 5, 0, "flavour"), r"row 6, column 'field': unknown field 'flavour'"),
+    ("bad_method", set_cell("distillation", 1, 1, "XYZ"), r"row 2, column 'B': method 'XYZ' is not one of TBP, D86, D2887, D1160"),
+    ("unknown_component", set_cell("light ends", 2, 0, "unobtainium"), r"sheet 'light ends', row 3, column 'component': unknown component 'unobtainium'"),
+    ("cut_end_below_start", set_cell("narrow cuts", 3, 1, 10.0), r"sheet 'narrow cuts', row 4, column 'end_c': the cut ends at 10.0 °C, not above its start 15.0 °C"),
+]
+
+
+@pytest.mark.parametrize("name,mutate,match", BAD_CASES, ids=[c[0] for c in BAD_CASES])
+def test_bad_workbook_cases(book, name, mutate, match):
+    path = book(mutate, name=f"{name}.xlsx")
+    before = sha256(path)
+    with pytest.raises(InputError, match=match):
+        load_assay(str(path))
+    cli_error(["yields", str(path)], match)
+    assert sha256(path) == before
+
+
+def test_date_where_number_belongs(book):
+    import datetime
+
+    path = book(set_cell("distillation", 7, 1, datetime.datetime(2024, 3, 1)))
+    cli_error(["yields", str(path)], r"row 8, column 'temp_c': found a date/time \(2024-03-01 00:00:00\); expected a number")
+
+
+def test_single_point(book):
+    def mutate(s):
+        s["distillation"] = s["distillation"][:6]
+    cli_error(["yields", str(book(mutate))], r"row 6: a single point is not a curve")
+
+
+def test_empty_sheet(book):
+    def mutate(s):
+        s["distillation"] = []
+    cli_error(["check", str(book(mutate))], r"sheet 'distillation': the sheet is empty")
+
+
+def test_missing_sheet(book):
+    def mutate(s):
+        del s["crude"]
+    cli_error(["yields", str(book(mutate))], r"no sheet named 'crude'")
+
+
+def test_empty_file(tmp_path):
+    p = tmp_path / "empty.xlsx"
+    p.write_bytes(b"")
+    cli_error(["yields", str(p)], r"empty.xlsx: the file is empty")
+
+
+def test_random_bytes_as_xlsx(tmp_path):
+    p = tmp_path / "noise.xlsx"
+    p.write_bytes(np.random.default_rng(1).bytes(4096))
+    cli_error(["yields", str(p)], r"noise.xlsx: not an .xlsx workbook \(the file is not a zip archive\)")
+
+
+def test_zip_that_is_not_a_workbook(tmp_path):
+    p = tmp_path / "other.xlsx"
+    with zipfile.ZipFile(p, "w") as z:
+        z.writestr("hello.txt", "not a workbook")
+    cli_error(["yields", str(p)], r"other.xlsx: a zip archive but not an .xlsx workbook")
+
+
+def test_missing_file(tmp_path):
+    cli_error(["yields", str(tmp_path / "nope.xlsx")], r"nope.xlsx: file not found")
+
+
+def test_unknown_extension(tmp_path):
+    p = tmp_path / "assay.pdf"
+    p.write_bytes(b"%PDF")
+    cli_error(["yields", str(p)], r"assay.pdf: unknown assay file type .pdf")
+
+
+def test_entity_bomb_refused_quickly(good_book, tmp_path):
+    import time
+
+    bomb = entity_bomb(good_book, tmp_path / "bomb.xlsx")
+    before = sha256(bomb)
+    t = time.perf_counter()
+    cli_error(["yields", str(bomb)], r"bomb.xlsx: refused: the workbook's XML declares entities")
+    assert time.perf_counter() - t < 5.0
+    assert sha256(bomb) == before
+
+
+def test_defusedxml_active():
+    # openpyxl uses defusedxml when it is installed (openpyxl.xml.DEFUSEDXML).
+    from openpyxl.xml import DEFUSEDXML
+
+    assert DEFUSEDXML
+
+
+# -- quick-curve CSV -----------------------------------------------------------------------------------------
+def test_csv_good_with_bom_and_semicolons(tmp_path):
+    p = tmp_path / "c.csv"
+    p.write_bytes("\ufeffvol_pct;temp_c\n5;40,5\n30;180\n60;330\n80;460\n".encode("utf-8"))
+    a = load_assay(str(p), api=35.0, sulfur=0.8)
+    assert a.curves[0].temp_c[0] == 40.5
+    assert a.sg == pytest.approx(141.5 / 166.5)
+
+
+def test_csv_needs_gravity(tmp_path):
+    p = tmp_path / "c.csv"
+    p.write_text("vol_pct,temp_c\n5,40\n30,180\n60,330\n")
+    cli_error(["yields", str(p)], r"c.csv: missing gravity: a curve CSV needs the whole-crude gravity")
+
+
+def test_csv_bad_header(tmp_path):
+    p = tmp_path / "c.csv"
+    p.write_text("percent,temperature\n5,40\n30,180\n")
+    cli_error(["yields", str(p), "--api", "30"], r"c.csv, row 1: the header must name one percent column")
+
+
+def test_csv_yields_run(tmp_path):
+    p = tmp_path / "quick.csv"
+    p.write_text("vol_pct,temp_c\n3,30\n10,80\n30,190\n50,310\n70,440\n")
+    r = runner.invoke(app, ["yields", str(p), "--api", "32", "--sulfur", "1.2", "--json"])
+    assert r.exit_code == 0, r.stderr
+    import json
+
+    d = json.loads(r.stdout)
+    assert d["assay"]["name"] == "quick"
+    assert any("constant Watson K" in m for m in d["methods"].values())
+    assert any("sulfur" in w for w in d["warnings"])
+
+
+def test_library_errors_are_value_errors():
+    # One base class whose instances are also ValueErrors (style guide).
+    assert issubclass(InputError, AssaycutError) and issubclass(InputError, ValueError)
