@@ -50,6 +50,10 @@ def guarded(func):
         except AssaycutError as exc:
             _err(str(exc))
             raise typer.Exit(EXIT_INPUT) from None
+        except BrokenPipeError:  # output piped into e.g. `head`: stop quietly
+            devnull = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(devnull, sys.stdout.fileno())
+            raise typer.Exit(0) from None
         except KeyboardInterrupt:
             from .io.atomic import cleanup_pending
 

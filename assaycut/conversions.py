@@ -426,6 +426,30 @@ _FUNCS = {
 }
 
 
+VALID_RANGE_C = {
+    "daubert_1994": (-18.0, 400.0),
+    "daubert_1994_inverse": (-18.0, 430.0),
+    "riazi_daubert_1986": (0.0, 400.0),
+    "riazi_daubert_1986_inverse": (0.0, 430.0),
+    "api_tdb_3a3_1": (0.0, 540.0),
+    "api_tdb_3a3_2": (0.0, 540.0),
+}
+"""Approximate temperature range of the data behind each correlation [°C] (petroleum fractions with D86 up to
+about 750 °F, D2887 end points up to about 1000 °F; from Riazi MNL50 ch. 3, recalled from memory).  Points
+outside it are converted but warned about."""
+
+
+def range_warnings(points: Mapping[float, float], frm: str, func_name: str) -> list[str]:
+    """Warnings for input points outside the correlation's data range (:data:`VALID_RANGE_C`)."""
+    lo, hi = VALID_RANGE_C.get(func_name, (-math.inf, math.inf))
+    bad = {p: t for p, t in points.items() if not lo <= t <= hi}
+    if not bad:
+        return []
+    pts = ", ".join(f"{t:.1f} °C at {p:g} %" for p, t in sorted(bad.items()))
+    return [f"{frm} point(s) {pts} lie outside the {lo:g} to {hi:g} °C range of the data behind "
+            f"{func_name.replace('_', '-')}: the result is an extrapolation of the correlation"]
+
+
 def convert(points: Mapping[float, float], frm: str, to: str, method: str = "daubert-1994",
             pressure_mmhg: float | None = None) -> tuple[dict[float, float], str, list[str]]:
     """Convert a curve between methods by name.
@@ -468,6 +492,7 @@ def convert(points: Mapping[float, float], frm: str, to: str, method: str = "dau
         raise ConversionError(f"no conversion from {frm} to {to}"
                               + (f" by {method}" if frm in ("TBP", "D86") else ""))
     func = _FUNCS[key]
+    warnings += range_warnings(pts, frm, func.__name__)
     out = func(pts)
     used = method if key[2] else func.__name__.replace("_", "-")
     warnings += check_monotone(out, f"{frm} -> {to}")

@@ -132,6 +132,10 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     if ext:
         warnings.append(f"cut(s) {', '.join(ext)} reach beyond the measured curve ({model.curve.measured_hi:g} "
                         f"vol %): their qualities depend on the fitted extension")
+    hot = [r["name"] for r in cuts.to_dict("records") if r["d86_c"] and max(r["d86_c"].values()) > 400.0]
+    if hot:
+        warnings.append(f"the D86 estimate of {', '.join(hot)} goes above 400 °C, beyond the data behind "
+                        f"Daubert 1994 (and a D86 is not run on such material): treat it as indicative only")
     empty = cuts.loc[cuts["vol_pct"] <= 1e-9, "name"].tolist()
     if empty:
         warnings.append(f"cut(s) {', '.join(empty)} have no yield: their qualities are left empty")

@@ -139,3 +139,11 @@ def test_conversion_never_crashes_and_daubert_stays_monotone(d86, method):
     if method == "daubert-1994":  # segment differences are positive powers of positive differences
         vals = [out[p] for p in sorted(out)]
         assert all(b >= a for a, b in zip(vals, vals[1:]))
+
+
+def test_out_of_range_input_warned():
+    # Riazi MNL50 ch. 3: the D86 correlations rest on fractions with D86 below about 400 °C.
+    out, used, warnings = cv.convert({30: 400.0, 50: 450.0}, "D86", "TBP")
+    assert any("outside the -18 to 400 °C range" in w and "450.0 °C at 50 %" in w for w in warnings)
+    _, _, ok = cv.convert(KERO_D86, "D86", "TBP")
+    assert ok == []
