@@ -210,6 +210,12 @@ def test_convert_from_file(tmp_path):
 
 
 def test_every_command_leaves_input_unchanged(good_book, tmp_path):
+    csv_in = tmp_path / "pts.csv"
+    csv_in.write_text("vol_pct,temp_c\n10,176.7\n30,193.3\n50,206.7\n")
+    csv_before = sha256(csv_in)
+    assert runner.invoke(app, ["convert", "--file", str(csv_in)]).exit_code == 0
+    assert runner.invoke(app, ["yields", str(csv_in), "--api", "35", "--json"]).exit_code == 0
+    assert sha256(csv_in) == csv_before
     before = sha256(good_book)
     for args in (["yields", str(good_book), "--out", str(tmp_path / "o")], ["yields", str(good_book), "--json"],
                  ["check", str(good_book)], ["check", str(good_book), "--json"]):

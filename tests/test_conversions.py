@@ -132,6 +132,15 @@ def test_daubert_round_trip(d86):
 
 
 @settings(max_examples=150, deadline=None)
+@given(monotone_d86)
+def test_daubert_round_trip_from_tbp(tbp):
+    # Identity: TBP -> D86 -> TBP round-trips within 0.5 °C for Daubert 1994 (the stated tolerance).
+    d86 = cv.daubert_1994_inverse(tbp)
+    back = cv.daubert_1994(d86)
+    assert_allclose([back[p] for p in tbp], list(tbp.values()), atol=0.5)
+
+
+@settings(max_examples=150, deadline=None)
 @given(monotone_d86, st.sampled_from(["daubert-1994", "riazi-daubert-1986"]))
 def test_conversion_never_crashes_and_daubert_stays_monotone(d86, method):
     out, used, warnings = cv.convert(d86, "D86", "TBP", method=method)

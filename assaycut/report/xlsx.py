@@ -84,6 +84,7 @@ def yield_workbook(result):
     from openpyxl.styles import Font
 
     from .. import __version__
+    from ..yields import CAUTIONS
 
     a, m = result.assay, result.model
     wb = openpyxl.Workbook()
@@ -143,7 +144,7 @@ def yield_workbook(result):
             c.fill = PatternFill("solid", fgColor=colors[c.value])
 
     ws = wb.create_sheet("notes")
-    notes = [("Cautions", n) for n in result.notes] + [("Warning", w) for w in result.warnings]
+    notes = [("Caution" if n in CAUTIONS else "Note", n) for n in result.notes] + [("Warning", w) for w in result.warnings]
     notes += [(f"Method: {k}", v) for k, v in result.methods.items()]
     notes += [("Input file", a.source), ("Input sha256", a.sha256), ("assaycut version", __version__)]
     write_table(ws, ["Topic", "Text"], [list(n) for n in notes], widths=[28, 120])
