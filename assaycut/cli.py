@@ -359,6 +359,229 @@ def convert(
         typer.echo(f"warning: {w}", err=True)
 
 
+class Basis(str, enum.Enum):
+    vol = "vol"
+    wt = "wt"
+
+
+PricesOpt = Annotated[Optional[Path], typer.Option("--prices", help="Price file (TOML): [products] price per cut "
+                                                    "per_bbl or per_t, optional [crudes] prices.", dir_okay=False)]
+
+
+@app.command()
+@guarded
+def compare(
+    assays: Annotated[list[str], typer.Argument(help="Two or more assays (files, folders or globs).")],
+    cuts: CutsOpt = None,
+    limits: LimitsOpt = None,
+    prices: PricesOpt = None,
+    json_out: JsonOpt = False,
+    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/compare/.",
+                                                file_okay=False)] = None,
+    end: EndOpt = None,
+) -> None:
+    """Compare crudes for crude selection: every assay cut with the same cut set, side by side.
+
+    Shows yields on both bases and the key qualities per product (API, sulfur, Watson K, limit status).
+    With --prices, ranks the crudes by gross product worth and margin over the crude price per barrel and
+    per tonne. Worth ignores operating costs, unit capacities, quality give-away and freight.
+    """
+    from .io.tomlfiles import read_limits, read_prices
+    from .studies import WORTH_CAVEAT, comparison_table, worth_table
+    from .yields import run_yields
+
+    paths = resolve_assays(assays)
+    if len(paths) < 2:
+        raise AssaycutError("compare needs at least two assays")
+    cs = load_cut_set(cuts, end)
+    lim = read_limits(str(limits) if limits else None)
+    ps = read_prices(str(prices)) if prices else None
+    results = [run_yields(_load(p, None, None, None, None), cs, lim) for p in paths]
+    table = comparison_table(results)
+    worth = worth_table(results, ps) if ps else None
+    if out is not None or not json_out:
+        from .report.studyreports import compare_workbook, plot_compare
+        from .report.write import place_files, png_bytes
+
+        buf = __import__("io").BytesIO()
+        compare_workbook(results, table, worth, ps.currency if ps else None).save(buf)
+        files = {"comparison.xlsx": buf.getvalue(), "comparison_yields.png": png_bytes(plot_compare, table)}
+        inputs = tuple(paths) + tuple(str(x) for x in (cuts, limits, prices) if x)
+        written = place_files(out or Path("reports") / "compare", files, inputs)
+    if json_out:
+        from .yields import _clean
+
+        typer.echo(json.dumps({"assays": [r.to_dict() for r in results],
+                               "worth": [{k: _clean(v) for k, v in r.items()} for r in worth.to_dict("records")]
+                               if worth is not None else [],
+                               "notes": [WORTH_CAVEAT] if worth is not None else []}, indent=2, ensure_ascii=False))
+        return
+    from .report.studyreports import compare_wide
+
+    crudes, rows = compare_wide(table)
+    w = max(len(c) for c in crudes) + 2
+    typer.echo(f"{'Cut':<16}{'Quality':<22}" + "".join(f"{c:>{w}}" for c in crudes))
+    for r in rows:
+        vals = "".join(f"{(f'{v:.3f}' if isinstance(v, float) and v == v else (v or '-')):>{w}}" for v in r[2:])
+        typer.echo(f"{r[0]:<16}{r[1]:<22}{vals}")
+    if worth is not None:
+        typer.echo(f"\nGross product worth and margin [{ps.currency}] -- {WORTH_CAVEAT}")
+        for r in worth.to_dict("records"):
+            m = r["margin_per_bbl"]
+            typer.echo(f"  {r['rank']}. {r['crude']:<24} worth {r['worth_per_bbl']:8.2f}/bbl {r['worth_per_t']:8.2f}/t"
+                       + (f"   margin {m:+7.2f}/bbl {r['margin_per_t']:+7.2f}/t" if m == m else "   (no crude price)"))
+    typer.echo(f"Report written to {written[0].parent} ({len(written)} files).")
+
+
+def _parse_shares(items: list[str]) -> list[tuple[str, float]]:
+    out = []
+    for it in items:
+        path, sep, pct = it.rpartition("=")
+        if not sep or not path:
+            raise AssaycutError(f"{it!r}: expected ASSAY=PERCENT, e.g. selkie.xlsx=60")
+        try:
+            out.append((path, float(pct)))
+        except ValueError:
+            raise AssaycutError(f"{it!r}: {pct!r} is not a percent") from None
+    return out
+
+
+@app.command()
+@guarded
+def blend(
+    shares: Annotated[list[str], typer.Argument(help="ASSAY=PERCENT for each crude; the percents add up to 100.",
+                                                metavar="ASSAY=PCT")],
+    out: Annotated[Path, typer.Option("--out", help="New assay workbook to write (.xlsx).", dir_okay=False)],
+    basis: Annotated[Basis, typer.Option("--basis", help="Basis of the shares and of the blended curve.")] = Basis.vol,
+    name: Annotated[Optional[str], typer.Option("--name", help="Name of the blend.")] = None,
+    shrinkage: Annotated[bool, typer.Option("--shrinkage", help="Apply API MPMS 12.3 light-ends shrinkage "
+                                            "(off by default).")] = False,
+) -> None:
+    """Blend crudes into a new assay workbook that every command can read.
+
+    The blended TBP curve is the share-weighted sum of the parents' cumulative curves on the chosen basis,
+    over the range all parents measured. Gravity blends by volume on SG (never by averaging API); sulfur and
+    other mass-based properties by weight; viscosity by the Refutas blending number. The new assay's notes
+    record its parents and their sha256.
+    """
+    from .blending import blend as do_blend
+    from .crude import build_model
+    from .io.assaywriter import write_assay_workbook
+
+    if out.suffix.lower() != ".xlsx":
+        raise AssaycutError(f"{out}: the blend is written as an assay workbook; give a path ending in .xlsx")
+    items = _parse_shares(shares)
+    parents = []
+    for path, pct in items:
+        a = _load(path, None, None, None, None)
+        parents.append((a, build_model(a), pct))
+    new = do_blend(parents, basis=basis.value, name=name, shrinkage=shrinkage)
+    write_assay_workbook(new, str(out), inputs=tuple(p for p, _ in items))
+    typer.echo(f"Blend {new.name}: {new.api:.1f} °API, SG {new.sg:.4f}, sulfur "
+               + (f"{new.sulfur_wt_pct:.3f} wt %" if new.sulfur_wt_pct is not None else "n/a"))
+    for n in new.notes:
+        typer.echo(f"  {n}")
+    typer.echo(f"Assay workbook written to {out}")
+
+
+@app.command()
+@guarded
+def shift(
+    assay: Annotated[Optional[str], typer.Argument(help="Assay. Default: the demo.")] = None,
+    end: EndOpt = None,
+    cuts: CutsOpt = None,
+    limits: LimitsOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Show what a change of cut point moves: per-cut deltas in yield, SG, sulfur, D86, CCI, flash and limits.
+
+    Compares the base cut set with the one changed by --end NAME=TEMP_C (repeatable). Changed cuts are marked
+    with '*'; limits that flip are listed. Shift deltas add up to zero on each basis.
+    """
+    from .crude import build_model
+    from .io.tomlfiles import read_limits
+    from .studies import shift_delta
+    from .yields import _clean, run_yields
+
+    if not end:
+        raise AssaycutError("give at least one --end NAME=TEMP_C to change")
+    base_cs = load_cut_set(cuts, None)
+    new_cs = load_cut_set(cuts, end)
+    lim = read_limits(str(limits) if limits else None)
+    path = resolve_assays([assay] if assay else None)[0]
+    a = _load(path, None, None, None, None)
+    model = build_model(a)
+    base = run_yields(a, base_cs, lim, model=model)
+    new = run_yields(a, new_cs, lim, model=model)
+    delta = shift_delta(base, new)
+    if json_out:
+        typer.echo(json.dumps({"base": base.to_dict(), "new": new.to_dict(),
+                               "delta": [{k: _clean(v) for k, v in r.items()} for r in delta.to_dict("records")]},
+                              indent=2, ensure_ascii=False))
+        return
+    from .report.studyreports import shift_text
+
+    typer.echo(f"{a.name}: cut-point change " + ", ".join(f"{k} -> {v:g} °C" for k, v in parse_ends(end).items()))
+    typer.echo(shift_text(delta))
+
+
+@app.command()
+@guarded
+def sweep(
+    assay: Annotated[Optional[str], typer.Argument(help="Assay. Default: the demo.")] = None,
+    end: Annotated[str, typer.Option("--end", help="Name of the cut whose end point moves.")] = "kerosene",
+    t_from: Annotated[float, typer.Option("--from", help="First cut point [°C TBP].")] = 200.0,
+    t_to: Annotated[float, typer.Option("--to", help="Last cut point [°C TBP].")] = 260.0,
+    step: Annotated[float, typer.Option("--step", help="Step [°C].", min=1e-3)] = 5.0,
+    cuts: CutsOpt = None,
+    limits: LimitsOpt = None,
+    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/.",
+                                                file_okay=False)] = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Sweep one cut point and show the yield and key qualities of the two neighbouring cuts.
+
+    The curve an engineer reads to pick a cut point against a product limit: yields on both bases,
+    density, D86 10 % / 95 % at the boundary, flash estimate and cetane index, as a table, a CSV and a PNG
+    with the product limits drawn in.
+    """
+    from .crude import build_model
+    from .io.tomlfiles import read_limits
+    from .studies import sweep as do_sweep
+
+    cs = load_cut_set(cuts, None)
+    lim = read_limits(str(limits) if limits else None)
+    path = resolve_assays([assay] if assay else None)[0]
+    a = _load(path, None, None, None, None)
+    df = do_sweep(build_model(a), cs, end, t_from, t_to, step)
+    lo, hi = df.attrs["lower"], df.attrs["upper"]
+    if out is not None or not json_out:
+        from .report.studyreports import plot_sweep
+        from .report.write import csv_text, place_files, png_bytes, slug
+
+        rel = [x for x in lim if x.cut in (lo, hi)]
+        base = f"{slug(a.name)}_sweep_{slug(end)}"
+        files = {f"{base}.csv": csv_text(list(df.columns), df.values.tolist()).encode("utf-8"),
+                 f"{base}.png": png_bytes(plot_sweep, df, a.name, rel)}
+        written = place_files(out or Path("reports") / slug(a.name), files, (path,))
+    if json_out:
+        from .yields import _clean
+
+        typer.echo(json.dumps({"assay": a.name, "lower": lo, "upper": hi,
+                               "points": [{k: _clean(v) for k, v in r.items()} for r in df.to_dict("records")]},
+                              indent=2, ensure_ascii=False))
+        return
+    typer.echo(f"{a.name}: cut point between {lo!r} and {hi!r}")
+    typer.echo(f"{'cut °C':>7} {'lower vol%':>10} {'upper vol%':>10} {'lower SG':>9} {'upper SG':>9} "
+               f"{'lower D86 95':>12} {'upper D86 10':>12} {'upper flash*':>12}")
+    for r in df.to_dict("records"):
+        typer.echo(f"{r['cut_point_c']:7.1f} {r['lower_vol_pct']:10.2f} {r['upper_vol_pct']:10.2f} "
+                   f"{r['lower_sg']:9.4f} {r['upper_sg']:9.4f} {r['lower_d86_95_c']:12.1f} {r['upper_d86_10_c']:12.1f} "
+                   f"{r['upper_flash_c_est']:12.1f}")
+    typer.echo("* flash estimates must be measured (ASTM D93).")
+    typer.echo(f"Sweep written to {written[0].parent} ({len(written)} files).")
+
+
 def _points_from_csv(path: str) -> dict[float, float]:
     from .io.csvcurve import read_curve_csv
 

@@ -276,16 +276,65 @@ def narrow_cut_positions(assay: Assay, curve: DistCurve):
     return va, vb
 
 
+def property_spline(lo, hi, values, fixed=(), iterations: int = 30) -> Pchip:
+    """Monotone property curve through narrow-cut values placed at their mid percent, adjusted so that its
+    average over each narrow cut reproduces the measured value.
+
+    Each measured value sits at the middle of its cut [lo, hi]; the PCHIP through them (held flat beyond the
+    outermost points) is then corrected by fixed-point iteration, y_i <- y_i + (measured_i - mean_i), until
+    the spline's mean over every cut matches its measurement (to 1e-9, or the best found in ``iterations``).
+
+    Parameters
+    ----------
+    lo, hi : array_like
+        Cut boundaries on the property's basis. [%]
+    values : array_like
+        Measured cut averages (SG [-] or sulfur [wt %]).
+    fixed : sequence of (x [%], value)
+        Extra points held as given (pure light-ends components).
+
+    Returns
+    -------
+    Pchip
+        Property against percent distilled.
+    """
+    lo, hi, vals = (np.asarray(z, dtype=float) for z in (lo, hi, values))
+    mids = 0.5 * (lo + hi)
+    fx = np.array([q[0] for q in fixed], dtype=float)
+    fy = np.array([q[1] for q in fixed], dtype=float)
+    x = np.concatenate([mids, fx])
+    order = np.argsort(x, kind="stable")
+    x = x[order]
+    keep = np.concatenate([[True], np.diff(x) > 1e-9])
+    is_cut = (order < mids.size)[keep]
+    x = x[keep]
+    y0 = np.concatenate([vals, fy])[order][keep]
+    if x.size == 1:
+        return Pchip(np.array([0.0, 100.0]), np.array([y0[0], y0[0]]))
+    cut_idx = order[keep][is_cut]
+    a, b, target = lo[cut_idx], hi[cut_idx], vals[cut_idx]
+    y = y0.copy()
+    best, best_err = y.copy(), np.inf
+    for _ in range(iterations):
+        sp = Pchip(x, y)
+        err = target - sp.integral(a, b) / (b - a)
+        worst = float(np.max(np.abs(err))) if err.size else 0.0
+        if worst < best_err:
+            best, best_err = y.copy(), worst
+        if worst < 1e-9:
+            break
+        y[is_cut] = np.maximum(y[is_cut] + err, 0.0)
+    return Pchip(x, best)
+
+
 def _density_distribution(assay: Assay, curve: DistCurve, le_mids, warnings):
     nc = assay.narrow_cuts
-    pts: list[tuple[float, float]] = []
     if nc is not None and np.isfinite(nc.sg).sum() >= 2:
         va, vb = narrow_cut_positions(assay, curve)
         ok = np.isfinite(nc.sg) & (vb > va)
-        pts = [(float((a + b) / 2), float(g)) for a, b, g in zip(va[ok], vb[ok], nc.sg[ok])]
         first = float(va[ok].min()) if ok.any() else 0.0
-        pts += [(m, g) for m, g in le_mids if m < first]
-        source = "narrow-cut densities (monotone spline against mid-volume %)"
+        raw = property_spline(va[ok], vb[ok], nc.sg[ok], [(m, g) for m, g in le_mids if m < first])
+        source = "narrow-cut densities (monotone spline against mid-volume %, matching each cut's mean)"
         kw = None
     else:
         if nc is not None:
@@ -294,8 +343,7 @@ def _density_distribution(assay: Assay, curve: DistCurve, le_mids, warnings):
         grid = np.linspace(0.0, 100.0, 201)
         mids = 0.5 * (grid[1:] + grid[:-1])
         cbrt = np.cbrt(1.8 * (curve.temp_at(mids) + 273.15))
-        le_end = curve.light_ends_pct
-        fixed = mids < le_end
+        fixed = mids < curve.light_ends_pct
         le_sg = np.full_like(mids, np.nan)
         if le_mids:
             lm = np.array([m for m, _ in le_mids])
@@ -304,20 +352,10 @@ def _density_distribution(assay: Assay, curve: DistCurve, le_mids, warnings):
         dv = 0.5
         fixed_mass = float((le_sg[fixed] * dv).sum()) if fixed.any() else 0.0
         kw = float((cbrt[~fixed] * dv).sum() / (100.0 * assay.sg - fixed_mass))
-        sgs = np.where(fixed, le_sg, cbrt / kw)
-        pts = list(zip(mids.tolist(), sgs.tolist()))
+        raw = Pchip(mids, np.where(fixed, le_sg, cbrt / kw))
         source = f"constant Watson K {kw:.2f} fitted to the whole-crude gravity (no narrow-cut densities)"
-    pts.sort()
-    x = np.array([q[0] for q in pts])
-    y = np.array([q[1] for q in pts])
-    keep = np.concatenate([[True], np.diff(x) > 1e-9])
-    x, y = x[keep], y[keep]
-    if x.size == 1:
-        x, y = np.array([0.0, 100.0]), np.array([y[0], y[0]])
-    raw = Pchip(x, y)
-    total = raw.integral(0.0, 100.0)
-    factor = 100.0 * assay.sg / total
-    return Pchip(x, y * factor), (factor - 1.0) * 100.0, source, kw
+    factor = 100.0 * assay.sg / raw.integral(0.0, 100.0)
+    return Pchip(raw.x, raw.y * factor), (factor - 1.0) * 100.0, source, kw
 
 
 def _sulfur_distribution(model: CrudeModel, assay: Assay, le_mids) -> None:
@@ -329,15 +367,9 @@ def _sulfur_distribution(model: CrudeModel, assay: Assay, le_mids) -> None:
     va, vb = narrow_cut_positions(assay, model.curve)
     wa, wb = model.wt_at_vol(va), model.wt_at_vol(vb)
     ok = np.isfinite(nc.sulfur_wt_pct) & (wb > wa)
-    pts = [(float((a + b) / 2), float(s)) for a, b, s in zip(wa[ok], wb[ok], nc.sulfur_wt_pct[ok])]
     first = float(wa[ok].min())
-    pts += [(float(model.wt_at_vol(m)), 0.0) for m, _ in le_mids if model.wt_at_vol(m) < first]
-    pts.sort()
-    x = np.array([q[0] for q in pts])
-    y = np.array([q[1] for q in pts])
-    keep = np.concatenate([[True], np.diff(x) > 1e-9])
-    x, y = x[keep], y[keep]
-    raw = Pchip(x, y)
+    fixed = [(float(model.wt_at_vol(m)), 0.0) for m, _ in le_mids if model.wt_at_vol(m) < first]
+    raw = property_spline(wa[ok], wb[ok], nc.sulfur_wt_pct[ok], fixed)
     total = raw.integral(0.0, 100.0) / 100.0
     if model.sulfur_wt_pct is None:
         model.sulfur_wt_pct = float(total)
@@ -346,8 +378,8 @@ def _sulfur_distribution(model: CrudeModel, assay: Assay, le_mids) -> None:
         model.sulfur_dist = raw
     else:
         factor = model.sulfur_wt_pct / total if total > 0 else 1.0
-        model.sulfur_dist = Pchip(x, y * factor)
+        model.sulfur_dist = Pchip(raw.x, raw.y * factor)
         model.sulfur_reconciliation_pct = (factor - 1.0) * 100.0
-    model.methods["sulfur"] = (f"narrow-cut sulfur (monotone spline against mid-weight %); scaled by "
-                               f"{model.sulfur_reconciliation_pct:+.2f} % to reproduce the whole-crude sulfur "
-                               f"{model.sulfur_wt_pct:.3f} wt %")
+    model.methods["sulfur"] = (f"narrow-cut sulfur (monotone spline against mid-weight %, matching each cut's "
+                               f"mean); scaled by {model.sulfur_reconciliation_pct:+.2f} % to reproduce the "
+                               f"whole-crude sulfur {model.sulfur_wt_pct:.3f} wt %")

@@ -131,6 +131,8 @@ class DistCurve:
     fit: RiaziFit | None = None
     warnings: list[str] = field(default_factory=list)
     light_ends_pct: float = 0.0
+    first_measured_c: float = float("nan")
+    """Temperature of the first measured point, light ends not counted. [°C]"""
 
     @property
     def ibp_c(self) -> float:
@@ -294,4 +296,4 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> DistCurve:
     if np.any(np.diff(T) <= 0):
         raise CurveError("the curve's extension does not join the measured points monotonically; "
                          "check the last points of the curve")
-    return DistCurve(Pchip(T, V), measured_lo, measured_hi, fit, warnings, le_pct)
+    return DistCurve(Pchip(T, V), measured_lo, measured_hi, fit, warnings, le_pct, float(t[0]))

@@ -72,6 +72,23 @@ class CutSet:
     def names(self) -> list[str]:
         return [c.name for c in self.cuts]
 
+    def reported(self) -> tuple[list[str], np.ndarray]:
+        """Names and cut points as reported: each swing cut split at its mid temperature into a light and a
+        heavy half, so that a planner can allocate either half to the product below or above. [°C]"""
+        names: list[str] = []
+        ends: list[float] = []
+        start = None
+        for c in self.cuts:
+            if c.swing:
+                mid = 0.5 * (start + c.end_c)
+                names += [f"{c.name} (light half)", f"{c.name} (heavy half)"]
+                ends += [mid, c.end_c]
+            else:
+                names.append(c.name)
+                ends.append(c.end_c)
+            start = c.end_c
+        return names, np.array(ends[:-1], dtype=float)
+
     @property
     def ends_c(self) -> np.ndarray:
         """Cut points (ends of all but the last cut). [°C]"""
@@ -108,6 +125,9 @@ def validate_cut_set(cuts: list[Cut], label: str) -> None:
         if last and c.end_c is not None:
             raise CutSetError(f"{label}: the last cut {c.name!r} has an end ({c.end_c:g} °C); the last cut must "
                               f"have none, as it runs to the end of the curve")
+        if c.swing and (i == 0 or last):
+            raise CutSetError(f"{label}: cut {c.name!r} is marked swing but is the {'first' if i == 0 else 'last'} "
+                              f"cut; a swing cut lies between two cut points")
         if c.end_c is not None and not (-273.15 < c.end_c < 1500.0):
             raise CutSetError(f"{label}: cut {c.name!r} ends at {c.end_c:g} °C; expected a TBP between "
                               f"-273.15 and 1500 °C")
@@ -187,10 +207,11 @@ def cut_table(model: CrudeModel, cut_set: CutSet):
     """
     import pandas as pd
 
-    cols = cut_columns(model, np.asarray(cut_set.ends_c, float)[None, :])
+    names, ends = cut_set.reported()
+    cols = cut_columns(model, ends[None, :])
     df = pd.DataFrame({k: v[0] for k, v in cols.items() if k != "d86"})
     d86 = cols["d86"][0]
-    df.insert(0, "name", cut_set.names)
+    df.insert(0, "name", names)
     df["d86_c"] = [None if not np.all(np.isfinite(r)) else {str(p): float(x) for p, x in zip(D86_STD, r)}
                    for r in d86]
     return df[CUT_COLUMNS]

@@ -140,3 +140,17 @@ def test_demo_assays_close_and_have_plausible_character(demo_paths):
     light, heavy = res["Selkie Light"], res["Tarn Heavy"]
     assert heavy["vacuum residue"] > 3 * light["vacuum residue"]
     assert heavy["diesel"] < light["diesel"]
+
+
+def test_swing_cut_split_into_halves_that_add_up():
+    # Identity: the two halves of a swing cut add up to the whole cut on both bases, and split at the
+    # mid temperature of the cut's TBP range.
+    m = simple_model()
+    plain = cut_table(m, CutSet([Cut("naphtha", 150.0), Cut("swing", 200.0), Cut("rest", None)]))
+    swung = cut_table(m, CutSet([Cut("naphtha", 150.0), Cut("swing", 200.0, swing=True), Cut("rest", None)]))
+    assert swung["name"].tolist() == ["naphtha", "swing (light half)", "swing (heavy half)", "rest"]
+    assert swung.loc[1, "end_c"] == 175.0
+    for col in ("vol_pct", "wt_pct"):
+        assert swung.loc[1, col] + swung.loc[2, col] == pytest.approx(plain.loc[1, col], abs=1e-12)
+    with pytest.raises(CutSetError, match="marked swing but is the last cut"):
+        CutSet([Cut("a", 100.0), Cut("b", None, swing=True)], "x.toml")

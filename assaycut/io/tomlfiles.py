@@ -106,3 +106,52 @@ def demo_assay_paths() -> list[str]:
     """Paths of the shipped demo assays, the default one first."""
     base = resources.files("assaycut.data")
     return [str(base.joinpath(n)) for n in ("selkie_light.xlsx", "brannock_blend.xlsx", "tarn_heavy.xlsx")]
+
+
+def read_prices(path: str):
+    """Read a price file (TOML).
+
+    Layout::
+
+        currency = "USD"
+        [products]                      # one entry per cut of the cut set
+        "light ends" = { per_t = 420.0 }
+        "diesel" = { per_bbl = 96.0 }
+        [crudes]                        # optional: crude prices, by crude name
+        "Selkie Light" = { per_bbl = 82.0 }
+
+    Prices must be positive numbers, each given per_bbl or per_t (not both).
+    """
+    from ..studies import Price, PriceSet
+
+    doc = _load(path)
+    unknown = set(doc) - {"currency", "products", "crudes"}
+    if unknown:
+        raise InputError(f"unknown key {sorted(unknown)[0]!r}; a price file has currency, [products] and [crudes]",
+                         file=path)
+    cur = doc.get("currency", "USD")
+    if not isinstance(cur, str) or not cur.strip():
+        raise InputError("'currency' must be a text such as \"USD\"", file=path)
+
+    def table(key: str, required: bool) -> dict:
+        t = doc.get(key, {})
+        if not isinstance(t, dict):
+            raise InputError(f"[{key}] must be a table", file=path)
+        if required and not t:
+            raise InputError(f"no [{key}] prices; give one per cut, e.g. \"diesel\" = {{ per_bbl = 95.0 }}", file=path)
+        out = {}
+        for name, spec in t.items():
+            if isinstance(spec, (int, float)) and not isinstance(spec, bool):
+                raise InputError(f"[{key}] {name!r}: give the unit, e.g. {{ per_bbl = {spec} }} or {{ per_t = {spec} }}",
+                                 file=path)
+            if not isinstance(spec, dict) or len(spec) != 1 or next(iter(spec)) not in ("per_bbl", "per_t"):
+                raise InputError(f"[{key}] {name!r}: expected {{ per_bbl = PRICE }} or {{ per_t = PRICE }}", file=path)
+            unit, val = next(iter(spec.items()))
+            if isinstance(val, bool) or not isinstance(val, (int, float)) or not math.isfinite(val):
+                raise InputError(f"[{key}] {name!r}: the price must be a number; found {val!r}", file=path)
+            if val <= 0:
+                raise InputError(f"[{key}] {name!r}: the price {val:g} must be positive", file=path)
+            out[name] = Price(float(val), "bbl" if unit == "per_bbl" else "t")
+        return out
+
+    return PriceSet(table("products", True), table("crudes", False), cur.strip(), path)

@@ -359,6 +359,7 @@ def parse_curve_rows(rows, loc: _Loc, *, header_index: int, method: str, pressur
     p = np.array(pct)
     t = np.array(temp)
     warnings = []
+    steps = []
     if p.max() <= 1.0 and p.min() >= 0.0:
         p = p * 100.0
         warnings.append(f"{where}: percents are given as fractions (0-1); read as percent")
@@ -375,8 +376,11 @@ def parse_curve_rows(rows, loc: _Loc, *, header_index: int, method: str, pressur
         if p[k] == p[k - 1] and t[k] == t[k - 1]:
             raise loc.err(f"the point ({p[k]:g} %, {t[k]:.2f} °C) is repeated", rnum[k])
         if p[k] == p[k - 1]:
-            warnings.append(f"{where}, rows {rnum[k - 1]}-{rnum[k]}: {p[k]:g} % is given at {t[k - 1]:.2f} and "
-                            f"{t[k]:.2f} °C; kept as a flat step (nothing distils between them)")
+            steps.append(f"rows {rnum[k - 1]}-{rnum[k]}: {p[k]:g} % at {t[k - 1]:.2f} and {t[k]:.2f} °C")
+    if steps:
+        warnings.append(f"{where}: the same cumulative percent at two temperatures, kept as a flat step (nothing "
+                        f"distils between them): {'; '.join(steps[:3])}"
+                        + (f" and {len(steps) - 3} more" if len(steps) > 3 else ""))
     return CurveData(method, PCT_COLUMNS[pcol[0]], p, t, pressure, where, warnings)
 
 

@@ -49,10 +49,10 @@ def place_files(outdir: Path, files: dict[str, bytes], inputs: tuple[str, ...]) 
     return [atomic_write(outdir / name, _bytes_writer(data), inputs=inputs) for name, data in files.items()]
 
 
-def render_figure(plot, result) -> bytes:
-    """PNG bytes of one plot function applied to ``result``."""
+def png_bytes(plot, first, *rest, **kwargs) -> bytes:
+    """PNG bytes of ``plot(first, target, *rest, **kwargs)``, a plot function that draws into ``target``."""
     buf = io.BytesIO()
-    plot(result, buf)
+    plot(first, buf, *rest, **kwargs)
     return buf.getvalue()
 
 
@@ -78,7 +78,7 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ())
     names, rows = flat_cut_rows(result.cuts)
     files[f"{base}_cuts.csv"] = csv_text([LABELS.get(n, n) for n in names], rows).encode("utf-8")
     files[f"{base}_summary.md"] = markdown_summary(result).encode("utf-8")
-    files[f"{base}_tbp.png"] = render_figure(plots.plot_tbp, result)
-    files[f"{base}_yields.png"] = render_figure(plots.plot_yields, result)
-    files[f"{base}_properties.png"] = render_figure(plots.plot_properties, result)
+    files[f"{base}_tbp.png"] = png_bytes(plots.plot_tbp, result)
+    files[f"{base}_yields.png"] = png_bytes(plots.plot_yields, result)
+    files[f"{base}_properties.png"] = png_bytes(plots.plot_properties, result)
     return place_files(outdir, files, inputs)

@@ -1,0 +1,159 @@
+"""Reports of the studies: crude comparison (xlsx + grouped yield chart), sweep (CSV + chart), shift (text)."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ..studies import WORTH_CAVEAT
+from ..units import sg_to_density15
+from .plots import _plt
+from .xlsx import write_table
+
+COMPARE_LABELS = {"vol_pct": "Yield [vol %]", "wt_pct": "Yield [wt %]", "api": "API gravity [°API]",
+                  "sg": "SG 60/60 °F [-]", "sulfur_wt_pct": "Sulfur [wt %]", "watson_k": "Watson K [-]",
+                  "limits": "Limits"}
+COMPARE_FORMATS = {"vol_pct": "0.00", "wt_pct": "0.00", "api": "0.0", "sg": "0.0000", "sulfur_wt_pct": "0.000",
+                   "watson_k": "0.00", "limits": None}
+
+
+def compare_wide(table):
+    """Comparison as rows (cut, quality) with one column per crude."""
+    crudes = list(dict.fromkeys(table["crude"]))
+    cuts = list(dict.fromkeys(table["cut"]))
+    idx = table.set_index(["cut", "crude"])
+    rows = []
+    for cut in cuts:
+        for q, label in COMPARE_LABELS.items():
+            rows.append([cut, label] + [idx.loc[(cut, c), q] for c in crudes])
+    return crudes, rows
+
+
+def compare_workbook(results, table, worth, currency: str | None):
+    """openpyxl Workbook: sheets 'comparison', 'worth' (when priced), 'crudes', 'notes'."""
+    import openpyxl
+
+    from ..yields import CAUTIONS
+
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "comparison"
+    crudes, rows = compare_wide(table)
+    fmts = [None, None] + [None] * len(crudes)
+    write_table(ws, ["Cut", "Quality"] + crudes, rows, fmts, widths=[20, 22] + [18] * len(crudes))
+    labels = {v: COMPARE_FORMATS[k] for k, v in COMPARE_LABELS.items()}
+    for i, r in enumerate(rows, start=2):
+        for j in range(3, 3 + len(crudes)):
+            c = ws.cell(row=i, column=j)
+            if isinstance(c.value, (int, float)) and labels.get(r[1]):
+                c.number_format = labels[r[1]]
+    if worth is not None:
+        ws = wb.create_sheet("worth")
+        cur = currency or ""
+        heads = ["Rank", "Crude", f"Worth [{cur}/bbl]", f"Worth [{cur}/t]", f"Crude price [{cur}/bbl]",
+                 f"Crude price [{cur}/t]", f"Margin [{cur}/bbl]", f"Margin [{cur}/t]"]
+        write_table(ws, heads, worth.values.tolist(), [None, None] + ["0.00"] * 6, widths=[6, 22] + [16] * 6)
+        ws.cell(row=len(worth) + 3, column=1, value=WORTH_CAVEAT)
+    ws = wb.create_sheet("crudes")
+    write_table(ws, ["Crude", "Source", "sha256", "API gravity [°API]", "Sulfur [wt %]", "Measured to [vol %]"],
+                [[r.assay.name, r.assay.source, r.assay.sha256, r.assay.api, r.model.sulfur_wt_pct,
+                  r.model.curve.measured_hi] for r in results], [None, None, None, "0.0", "0.000", "0.0"],
+                widths=[20, 50, 66, 14, 14, 14])
+    ws = wb.create_sheet("notes")
+    notes = [("Caution", c) for c in CAUTIONS] + [("Note", WORTH_CAVEAT)]
+    notes += [(f"Warning ({r.assay.name})", w) for r in results for w in r.warnings]
+    write_table(ws, ["Topic", "Text"], [list(n) for n in notes], widths=[28, 120])
+    return wb
+
+
+def plot_compare(table, target) -> None:
+    """Grouped bar chart of volume yields: one group per cut, one bar per crude."""
+    plt = _plt()
+    crudes = list(dict.fromkeys(table["crude"]))
+    cuts = list(dict.fromkeys(table["cut"]))
+    idx = table.set_index(["cut", "crude"])
+    x = np.arange(len(cuts))
+    width = 0.8 / max(len(crudes), 1)
+    colours = ["#283593", "#ef6c00", "#2e7d32", "#6a1b9a", "#00838f", "#c62828", "#5d4037", "#9e9d24"]
+    fig, ax = plt.subplots(figsize=(max(9, 1.4 * len(cuts)), 5))
+    for i, c in enumerate(crudes):
+        vals = [idx.loc[(cut, c), "vol_pct"] for cut in cuts]
+        ax.bar(x + (i - (len(crudes) - 1) / 2) * width, vals, width, label=c, color=colours[i % len(colours)])
+    ax.set_xticks(x, cuts, rotation=25, ha="right")
+    ax.set_ylabel("Yield [vol % of crude]")
+    ax.set_title("Crude comparison: yields by cut (estimates for screening)")
+    ax.grid(axis="y", alpha=0.3)
+    ax.legend()
+    fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
+    plt.close(fig)
+
+
+def plot_sweep(df, target, crude: str, limits: list | None = None) -> None:
+    """Yields and key qualities of the two neighbouring cuts against the moving cut point."""
+    plt = _plt()
+    lo, hi = df.attrs.get("lower", "lower cut"), df.attrs.get("upper", "upper cut")
+    t = df["cut_point_c"]
+    fig, axs = plt.subplots(2, 2, figsize=(11, 7.5), sharex=True)
+    (a1, a2), (a3, a4) = axs
+    a1.plot(t, df["lower_vol_pct"], color="#283593", label=f"{lo} vol %")
+    a1.plot(t, df["upper_vol_pct"], color="#ef6c00", label=f"{hi} vol %")
+    a1.plot(t, df["lower_wt_pct"], color="#283593", ls="--", label=f"{lo} wt %")
+    a1.plot(t, df["upper_wt_pct"], color="#ef6c00", ls="--", label=f"{hi} wt %")
+    a1.set_ylabel("Yield [% of crude]")
+    a1.set_title("Yields")
+    a2.plot(t, sg_to_density15(df["lower_sg"].to_numpy()), color="#283593", label=lo)
+    a2.plot(t, sg_to_density15(df["upper_sg"].to_numpy()), color="#ef6c00", label=hi)
+    a2.set_ylabel("Density at 15 °C [kg/m3]")
+    a2.set_title("Density")
+    a3.plot(t, df["lower_d86_95_c"], color="#283593", label=f"{lo} D86 95 %")
+    a3.plot(t, df["upper_d86_10_c"], color="#ef6c00", label=f"{hi} D86 10 %")
+    a3.set_ylabel("D86 estimate [°C]")
+    a3.set_title("Distillation at the boundary")
+    a4.plot(t, df["lower_flash_c_est"], color="#283593", label=f"{lo} flash est.")
+    a4.plot(t, df["upper_flash_c_est"], color="#ef6c00", label=f"{hi} flash est.")
+    if np.isfinite(df["lower_cetane_index_d4737"]).any() or np.isfinite(df["upper_cetane_index_d4737"]).any():
+        a4.plot(t, df["lower_cetane_index_d4737"], color="#283593", ls=":", label=f"{lo} CCI")
+        a4.plot(t, df["upper_cetane_index_d4737"], color="#ef6c00", ls=":", label=f"{hi} CCI")
+    a4.set_ylabel("°C / index")
+    a4.set_title("Flash estimate (measure by ASTM D93) and CCI")
+    drawn = {(lo, "d86_95_c"): a3, (hi, "d86_10_c"): a3, (lo, "flash_c_est"): a4, (hi, "flash_c_est"): a4,
+             (lo, "cetane_index_d4737"): a4, (hi, "cetane_index_d4737"): a4, (lo, "density_15c_kg_m3"): a2,
+             (hi, "density_15c_kg_m3"): a2}
+    for lim in limits or []:
+        ax = drawn.get((lim.cut, lim.property))  # only limits on a quality that is plotted for that cut
+        if ax is not None:
+            for v in (lim.min, lim.max):
+                if v is not None:
+                    ax.axhline(v, color="#c62828", lw=0.8, ls="-.")
+                    ax.text(t.iloc[0], v, f" {lim.label or lim.cut + ' ' + lim.property}: {v:g}", color="#c62828", fontsize=7,
+                            va="bottom")
+    for ax in (a1, a2, a3, a4):
+        ax.grid(alpha=0.3)
+        ax.legend(fontsize=7)
+    for ax in (a3, a4):
+        ax.set_xlabel(f"Cut point {lo} / {hi} [°C TBP]")
+    fig.suptitle(f"{crude}: cut-point sweep (estimates for screening)")
+    fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
+    plt.close(fig)
+
+
+def shift_text(delta) -> str:
+    """The shift deltas as aligned text, changed cuts marked with '*'."""
+    head = ["", "Cut", "End °C", "-> End °C", "Δ vol %", "Δ wt %", "Δ SG", "Δ S wt %", "Δ D86 95 °C", "Δ CCI",
+            "Δ flash °C", "Limit flips"]
+
+    def f(v, nd):
+        return "-" if v is None or (isinstance(v, float) and math.isnan(v)) else f"{v:+.{nd}f}"
+
+    def e(v):
+        return "end" if v is None or (isinstance(v, float) and math.isnan(v)) else f"{v:g}"
+
+    body = [["*" if r["changed"] else "", r["name"], e(r["end_c_base"]), e(r["end_c_new"]), f(r["vol_pct"], 2),
+             f(r["wt_pct"], 2), f(r["sg"], 4), f(r["sulfur_wt_pct"], 3), f(r["d86_95_c"], 1),
+             f(r["cetane_index_d4737"], 1), f(r["flash_c_est"], 1), r["limit_flips"]]
+            for r in delta.to_dict("records")]
+    widths = [max(len(str(x)) for x in col) for col in zip(head, *body)]
+    lines = ["  ".join(str(h).ljust(w) for h, w in zip(head, widths)).rstrip()]
+    lines += ["  ".join(str(x).ljust(w) for x, w in zip(row, widths)).rstrip() for row in body]
+    return "\n".join(lines)
