@@ -5,7 +5,8 @@ The curve is a monotone PCHIP (:mod:`assaycut.spline`) through the measured poin
 * light ends placed at the front as a staircase at each component's normal boiling point;
 * an extension past the last measured point (and before the first, when neither light ends nor a 0 %
   point exist) from the Riazi distribution fitted to the measured points; every value depending on it is
-  marked as extrapolated.  The end of the curve (100 %) is placed at the distribution's 99.95 % point.
+  marked as extrapolated.  The end of the curve (100 %) is placed at the distribution's 99.95 % point, but
+  never above :data:`END_CAP_C`: residue beyond it is lumped up to that end point.
 
 Riazi distribution (Riazi, *Characterization and Properties of Petroleum Fractions*, ASTM MNL50 (2005)
 §4.5; Riazi, Ind. Eng. Chem. Res. 28 (1989) 1731):
@@ -26,6 +27,9 @@ from .spline import Pchip
 
 END_FRACTION = 0.9995
 """The curve's 100 % point is placed at this fraction of the fitted distribution."""
+END_CAP_C = 850.0
+"""Highest end point given to an extended curve: above about 750-850 °C no TBP or simulated distillation is
+measured, and the heaviest residue is lumped up to this point (common practice, no source). [°C]"""
 POOR_FIT_RMS_C = 5.0
 """RMS deviation of the distribution fit above which a warning is given. [°C]"""
 LIGHT_ENDS_TOL_PCT = 0.1
@@ -86,7 +90,17 @@ def fit_riazi_distribution(percent, temp_c) -> RiaziFit:
     if v.size < 3:
         raise CurveError(f"the curve has {v.size} point(s) strictly between 0 and 100 %; at least 3 are "
                          f"needed to fit its extension")
-    xx = np.log(np.log(1.0 / (1.0 - v)))
+    with np.errstate(all="ignore"):
+        best = _fit_grid(v, t)
+    if best is None or not all(np.isfinite(best)) or best[1] <= 0 or best[2] <= 0:
+        raise CurveError("the curve's extension cannot be fitted: the measured points do not follow a distillation "
+                         "curve's shape (check percents and temperatures)")
+    return RiaziFit(best[0], best[1], best[2], best[3], int(v.size))
+
+
+def _fit_grid(v, t):
+    """Grid search over T0 with linear least squares for A, B; returns (T0, A, B, rms) or None."""
+    xx = np.log(-np.log1p(-v))
     tmin = t.min()
     lo, hi = 0.2 * tmin, tmin * (1 - 1e-6)
     best = None
@@ -102,11 +116,13 @@ def fit_riazi_distribution(percent, temp_c) -> RiaziFit:
         a = b * np.exp(icpt * b)
         pred = t0 * (1.0 + np.exp(icpt + slope * xx))
         sse = ((pred - t) ** 2).sum(axis=1)
-        k = int(np.nanargmin(sse))
+        if not np.isfinite(sse).any():
+            return None
+        k = int(np.nanargmin(np.where(np.isfinite(sse), sse, np.nan)))
         best = (float(t0[k, 0]), float(a[k, 0]), float(b[k, 0]), float(np.sqrt(sse[k] / v.size)))
         step = (hi - lo) / 399
         lo, hi = max(best[0] - step, 1e-3), min(best[0] + step, tmin * (1 - 1e-9))
-    return RiaziFit(best[0], best[1], best[2], best[3], int(v.size))
+    return best
 
 
 @dataclass
@@ -218,6 +234,9 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> DistCurve:
         raise CurveError(f"a distillation curve needs at least 2 points; got {v.size}")
     order = np.argsort(v, kind="stable")
     v, t = v[order], t[order]
+    if t[-1] - t[0] < 1.0 or v[-1] - v[0] <= 0.0:
+        raise CurveError(f"the curve runs from {v[0]:g} % at {t[0]:.2f} °C to {v[-1]:g} % at {t[-1]:.2f} °C; a "
+                         f"distillation curve must rise by at least 1 °C and some percent")
     if np.any(np.diff(t) < 0):
         k = int(np.argmax(np.diff(t) < 0))
         raise CurveError(f"temperature falls from {t[k]:.2f} °C at {v[k]:g} % to {t[k + 1]:.2f} °C at "
@@ -246,9 +265,16 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> DistCurve:
         z = np.linspace(np.log(1 / (1 - x_last)), np.log(1 / (1 - END_FRACTION)), 40)[1:]
         xs = 1.0 - np.exp(-z)
         off = t[-1] - fit.temp_c(x_last)
-        tx = fit.temp_c(xs) + off
+        with np.errstate(over="ignore", invalid="ignore"):
+            tx = fit.temp_c(xs) + off
         vx = 100.0 * xs
-        vx[-1] = 100.0
+        cap = max(END_CAP_C, t[-1] + 50.0)
+        under = np.isfinite(tx) & (tx < cap)
+        tx = np.concatenate([tx[under][:-1], [cap if not under.all() else tx[-1]]])
+        vx = np.concatenate([vx[under][:-1], [100.0]])
+        if not under.all():
+            warnings.append(f"the fitted extension passes {cap:.0f} °C at {100.0 * xs[~under][0]:.1f} vol %; the "
+                            f"material above is lumped up to an end point of {cap:.0f} °C")
         tt.append(tx)
         vv.append(vx)
     if need_front:

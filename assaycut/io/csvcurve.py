@@ -66,7 +66,10 @@ def read_curve_csv(path: str, *, api: float | None = None, sg: float | None = No
             row = [c.replace(",", ".") if c.replace(",", "").replace(".", "").lstrip("+-").isdigit() else c
                    for c in row]
         rows.append(row)
-    h = next(i for i, r in enumerate(rows) if any(c for c in r))
+    h = next((i for i, r in enumerate(rows) if any(c for c in r)), None)
+    if h is None:
+        raise InputError("the file has no values; expected a header vol_pct/wt_pct, temp_c/temp_f/temp_k and points",
+                         file=path)
     curve = parse_curve_rows(rows, loc, header_index=h, method="TBP", pressure=None, where=path)
     grav = {k: v for k, v in (("api_gravity", api), ("sg_60f", sg), ("density_15c_kg_m3", density))
             if v is not None}
