@@ -16,10 +16,32 @@ from pathlib import Path
 from typing import Annotated, Optional
 
 import typer
+from typer.core import TyperGroup
 
 from .errors import AssaycutError
 
+class _OneLineErrors(TyperGroup):
+    """Command group whose usage errors (bad option, missing argument...) are one line on stderr, exit 2."""
+
+    def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True, **extra):
+        if not standalone_mode:
+            return super().main(args, prog_name, complete_var, standalone_mode=False, **extra)
+        # the base class of click's usage errors, whether typer vendors click or depends on it
+        ClickException = next(c for c in typer.BadParameter.__mro__ if c.__name__ == "ClickException")
+        try:
+            rv = super().main(args, prog_name, complete_var, standalone_mode=False, **extra)
+        except ClickException as exc:
+            where = f" (see '{exc.ctx.command_path} --help')" if getattr(exc, "ctx", None) else ""
+            _err(" ".join(exc.format_message().split()) + where)
+            sys.exit(exc.exit_code)
+        except typer.Abort:
+            _err("aborted")
+            sys.exit(1)
+        sys.exit(rv if isinstance(rv, int) else 0)
+
+
 app = typer.Typer(
+    cls=_OneLineErrors,
     name="assaycut",
     help="Cut crude-oil assays at your refinery's TBP cut points: yields, cut qualities and limit checks, "
          "distillation conversions and reports. Results are estimates for screening and planning, not "

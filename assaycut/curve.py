@@ -30,6 +30,8 @@ END_FRACTION = 0.9995
 END_CAP_C = 850.0
 """Highest end point given to an extended curve: above about 750-850 °C no TBP or simulated distillation is
 measured, and the heaviest residue is lumped up to this point (common practice, no source). [°C]"""
+MAX_FIT_POINTS = 400
+"""Curves with more points are fitted on an even subsample of this many (bounds time and memory)."""
 POOR_FIT_RMS_C = 5.0
 """RMS deviation of the distribution fit above which a warning is given. [°C]"""
 LIGHT_ENDS_TOL_PCT = 0.1
@@ -87,6 +89,9 @@ def fit_riazi_distribution(percent, temp_c) -> RiaziFit:
     t = np.asarray(temp_c, dtype=float) + 273.15
     keep = (v > 0) & (v < 1)
     v, t = v[keep], t[keep]
+    if v.size > MAX_FIT_POINTS:  # long curves: an even subsample keeps the fit's memory bounded
+        idx = np.unique(np.linspace(0, v.size - 1, MAX_FIT_POINTS).round().astype(int))
+        v, t = v[idx], t[idx]
     if v.size < 3:
         raise CurveError(f"the curve has {v.size} point(s) strictly between 0 and 100 %; at least 3 are "
                          f"needed to fit its extension")

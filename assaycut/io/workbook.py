@@ -50,7 +50,7 @@ UNIT_SUFFIX = re.compile(r"^[a-z][a-z0-9_]*_(c|f|k|pct|wt_pct|cst|cp|mg_koh_g|kg
                          r"g_ml|bar|mmhg|api|sg|degc|degf)$")
 MAX_ROWS = 100_000
 """Largest number of rows read from one sheet; larger tables are refused."""
-MAX_BYTES = 64 * 1024 * 1024
+MAX_BYTES = 20 * 1024 * 1024
 """Largest input file read. [bytes]"""
 
 INSTRUCTIONS = {
@@ -430,7 +430,12 @@ def _read_narrow_cuts(ws, loc: _Loc) -> NarrowCuts | None:
         return None
     h = _find_header(rows, {"start_c", "start_f", "end_c", "end_f"}, loc, "start_c/end_c")
     hdr = [_text(v).lower() for v in rows[h]]
-    unit = "F" if ("start_f" in hdr or "end_f" in hdr) else "C"
+    has_c = [c for c in ("start_c", "end_c") if c in hdr]
+    has_f = [c for c in ("start_f", "end_f") if c in hdr]
+    if has_c and has_f:
+        raise loc.err(f"mixed temperature units: {has_f[0]!r} beside {has_c[0]!r}; give both in °C (start_c, "
+                      f"end_c) or both in °F (start_f, end_f)", h + 1, has_f[0])
+    unit = "F" if has_f else "C"
     s_col, e_col = ("start_f", "end_f") if unit == "F" else ("start_c", "end_c")
     for need in (s_col, e_col):
         if need not in hdr:

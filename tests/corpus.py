@@ -1,0 +1,334 @@
+"""The bad-input corpus: every case is built by code in a fresh folder (no committed binaries).
+
+Each case returns (command-line arguments, input files, expected stderr pattern or None when the input is
+rightly accepted).  ``python -m tests.corpus OUTDIR`` writes the whole corpus to a folder for inspection.
+"""
+
+from __future__ import annotations
+
+import datetime
+import zipfile
+from pathlib import Path
+
+from .bombs import entity_bomb
+from .conftest import base_sheets, write_book
+
+CASES = []
+
+
+def case(name, expect):
+    def deco(fn):
+        CASES.append((name, fn, expect))
+        return fn
+    return deco
+
+
+def _book(d: Path, name: str, mutate=None, hide=None, merge=None) -> Path:
+    sheets = base_sheets()
+    if mutate:
+        mutate(sheets)
+    p = write_book(d / name, sheets)
+    if hide or merge:
+        import openpyxl
+
+        wb = openpyxl.load_workbook(p)
+        if hide:
+            wb[hide].sheet_state = "hidden"
+        if merge:
+            wb[merge[0]].merge_cells(merge[1])
+        wb.save(p)
+    return p
+
+
+def _set(sheet, row, col, value):
+    def m(s):
+        r = s[sheet][row]
+        r.extend([None] * (col + 1 - len(r)))
+        r[col] = value
+    return m
+
+
+def _wb_case(name, mutate, expect, cmd="yields"):
+    @case(name, expect)
+    def _(d):
+        p = _book(d, f"{name}.xlsx", mutate)
+        return [cmd, str(p)], [p]
+
+
+for _name, _mut, _exp in [
+    ("text_in_number", _set("distillation", 7, 1, "abc"), r"row 8, column 'temp_c': found text 'abc'"),
+    ("formula_in_number", _set("distillation", 7, 1, "=1+1"), r"found the formula '=1\+1'"),
+    ("nan_text", _set("distillation", 7, 1, "NaN"), r"found text 'NaN'; expected a number"),
+    ("inf_text", _set("distillation", 7, 1, "-inf"), r"found text '-inf'"),
+    ("falling_temperature", _set("distillation", 8, 1, 100.0), r"row 9, column 'temp_c': temperature falls"),
+    ("percent_above_100", _set("distillation", 11, 0, 101.0), r"vol_pct 101 is outside 0-100 %"),
+    ("percent_below_0", _set("distillation", 5, 0, -1.0), r"vol_pct -1 is outside 0-100 %"),
+    ("below_absolute_zero", _set("distillation", 5, 1, -274.0), r"below absolute zero"),
+    ("unknown_curve_column", _set("distillation", 4, 2, "density"), r"unknown column 'density'"),
+    ("mixed_units_in_curve", _set("distillation", 4, 2, "temp_f"), r"one temperature column"),
+    ("missing_gravity", _set("crude", 4, 1, None), r"missing gravity"),
+    ("absurd_gravity", _set("crude", 4, 1, -5.0), r"api_gravity -5 °API is outside 0-100 °API"),
+    ("absurd_sulfur", _set("crude", 5, 1, 40.0), r"sulfur_wt_pct 40 is outside 0-15 wt %"),
+    ("unknown_crude_field", _set("crude", 5, 0, "colour"), r"unknown field 'colour'"),
+    ("unknown_method", _set("distillation", 1, 1, "ASTM"), r"method 'ASTM' is not one of"),
+    ("d1160_without_pressure", _set("distillation", 1, 1, "D1160"), r"a D1160 curve needs its pressure"),
+    ("tbp_with_pressure", _set("distillation", 2, 1, 10.0), r"pressure_mmhg 10 applies to D1160 only"),
+    ("unknown_component", _set("light ends", 2, 0, "C9"), r"unknown component 'C9'"),
+    ("light_end_too_large", _set("light ends", 2, 1, 70.0), r"wt_pct 70 is outside 0-50 %"),
+    ("duplicate_component", _set("light ends", 3, 0, "C3"), r"component C3 is listed twice"),
+    ("narrow_cut_reversed", _set("narrow cuts", 3, 1, 10.0), r"the cut ends at 10.0 °C, not above its start"),
+    ("narrow_cut_mixed_units", _set("narrow cuts", 1, 6, "end_f"), r"mixed temperature units"),
+    ("narrow_cut_bad_gravity", _set("narrow cuts", 4, 4, 7.5), r"sg_60f 7.5 is not a plausible cut gravity"),
+    ("narrow_cut_unknown_column", _set("narrow cuts", 1, 6, "colour"), r"unknown column 'colour'"),
+    ("date_in_number", _set("distillation", 7, 1, datetime.datetime(2025, 1, 2)), r"found a date/time"),
+    ("bool_in_number", _set("distillation", 7, 1, True), r"found True; expected a number"),
+    ("check_on_bad_curve", _set("distillation", 7, 1, "x"), r"found text 'x'"),
+]:
+    _wb_case(_name, _mut, _exp, "check" if _name.startswith("check") else "yields")
+
+
+@case("single_point", r"a single point is not a curve")
+def _(d):
+    p = _book(d, "single.xlsx", lambda s: s.__setitem__("distillation", s["distillation"][:6]))
+    return ["yields", str(p)], [p]
+
+
+@case("empty_sheet", r"sheet 'crude': the sheet is empty")
+def _(d):
+    p = _book(d, "empty_sheet.xlsx", lambda s: s.__setitem__("crude", []))
+    return ["yields", str(p)], [p]
+
+
+@case("merged_cells_in_curve", r"row 9, column 'temp_c': empty cell; expected a number")
+def _(d):
+    p = _book(d, "merged.xlsx", merge=("distillation", "B8:B9"))
+    return ["yields", str(p)], [p]
+
+
+@case("hidden_sheet_is_read", None)
+def _(d):
+    p = _book(d, "hidden.xlsx", hide="narrow cuts")
+    return ["yields", str(p), "--json"], [p]
+
+
+@case("empty_file", r"the file is empty")
+def _(d):
+    p = d / "empty.xlsx"
+    p.write_bytes(b"")
+    return ["yields", str(p)], [p]
+
+
+@case("random_bytes_as_xlsx", r"not an .xlsx workbook")
+def _(d):
+    p = d / "noise.xlsx"
+    p.write_bytes(bytes(range(256)) * 40)
+    return ["yields", str(p)], [p]
+
+
+@case("zip_not_workbook", r"a zip archive but not an .xlsx workbook")
+def _(d):
+    p = d / "zip.xlsx"
+    with zipfile.ZipFile(p, "w") as z:
+        z.writestr("a.txt", "x")
+    return ["yields", str(p)], [p]
+
+
+@case("missing_file", r"file not found")
+def _(d):
+    return ["yields", str(d / "absent.xlsx")], []
+
+
+@case("folder_as_assay", r"holds no .xlsx or .csv assays")
+def _(d):
+    (d / "sub").mkdir()
+    return ["yields", str(d / "sub")], []
+
+
+@case("entity_bomb", r"refused: the workbook's XML declares entities")
+def _(d):
+    good = _book(d, "good_for_bomb.xlsx")
+    p = entity_bomb(good, d / "bomb.xlsx")
+    return ["yields", str(p)], [p]
+
+
+@case("workbook_50_mb", r"the file is 5\d MB; assaycut reads files up to")
+def _(d):
+    import os
+
+    p = _book(d, "big.xlsx")
+    with zipfile.ZipFile(p, "a", zipfile.ZIP_STORED) as z:
+        z.writestr("xl/media/padding.bin", os.urandom(50 * 1024 * 1024))
+    return ["yields", str(p)], [p]
+
+
+@case("csv_100k_rows", None)
+def _(d):
+    import numpy as np
+
+    p = d / "long.csv"
+    v = np.linspace(1.0, 70.0, 100_000)
+    t = 20.0 + 6.5 * v + 0.02 * v ** 2
+    p.write_text("vol_pct,temp_c\n" + "\n".join(f"{a:.6f},{b:.4f}" for a, b in zip(v, t)) + "\n")
+    return ["yields", str(p), "--api", "33", "--json"], [p]
+
+
+@case("csv_too_many_rows", r"more than 100000 rows")
+def _(d):
+    p = d / "huge.csv"
+    p.write_text("vol_pct,temp_c\n" + "\n".join(f"{i / 2000:.5f},{20 + i / 100:.3f}" for i in range(100_002)) + "\n")
+    return ["yields", str(p), "--api", "33"], [p]
+
+
+@case("csv_bom_accepted", None)
+def _(d):
+    p = d / "bom.csv"
+    p.write_bytes("\ufeffvol_pct,temp_c\n3,30\n20,150\n50,320\n70,450\n".encode())
+    return ["yields", str(p), "--api", "30", "--json"], [p]
+
+
+@case("csv_semicolon_decimal_comma_accepted", None)
+def _(d):
+    p = d / "semi.csv"
+    p.write_text("vol_pct;temp_c\n3;30,5\n20;150,2\n50;320\n70;450,75\n")
+    return ["yields", str(p), "--api", "30", "--json"], [p]
+
+
+@case("csv_mixed_units", r"the header must name one percent column .* and one temperature column")
+def _(d):
+    p = d / "mixed.csv"
+    p.write_text("vol_pct,temp_c,temp_f\n3,30,86\n20,150,302\n")
+    return ["yields", str(p), "--api", "30"], [p]
+
+
+@case("csv_binary", r"not a UTF-8 text file|contains binary data")
+def _(d):
+    p = d / "bin.csv"
+    p.write_bytes(b"\xff\xfe\x00\x01" * 100)
+    return ["yields", str(p), "--api", "30"], [p]
+
+
+@case("csv_gravity_twice", r"give one of --api, --sg or --density")
+def _(d):
+    p = d / "c.csv"
+    p.write_text("vol_pct,temp_c\n3,30\n20,150\n50,320\n")
+    return ["yields", str(p), "--api", "30", "--sg", "0.87"], [p]
+
+
+def _toml_case(name, text, expect, opt="--cuts"):
+    @case(name, expect)
+    def _(d):
+        p = d / f"{name}.toml"
+        p.write_text(text)
+        return ["yields", opt, str(p)], [p]
+
+
+_toml_case("cuts_overlapping", '[[cut]]\nname="a"\nend_c=200\n[[cut]]\nname="b"\nend_c=180\n[[cut]]\nname="c"\n',
+           r"cut points must increase")
+_toml_case("cuts_none", "# nothing here\n", r"no cuts; expected \[\[cut\]\] tables")
+_toml_case("cuts_absurd_temperature", '[[cut]]\nname="a"\nend_c=5000\n[[cut]]\nname="b"\n',
+           r"cut 'a' ends at 5000 °C; expected a TBP between")
+_toml_case("cuts_duplicate_names", '[[cut]]\nname="a"\nend_c=100\n[[cut]]\nname="a"\n', r"duplicate cut name 'a'")
+_toml_case("cuts_last_has_end", '[[cut]]\nname="a"\nend_c=100\n[[cut]]\nname="b"\nend_c=200\n',
+           r"the last cut 'b' has an end")
+_toml_case("cuts_text_temperature", '[[cut]]\nname="a"\nend_c="hot"\n[[cut]]\nname="b"\n', r"'end_c' must be a number")
+_toml_case("cuts_not_toml", "[[cut\nname=", r"not valid TOML")
+_toml_case("cuts_swing_last", '[[cut]]\nname="a"\nend_c=100\n[[cut]]\nname="b"\nswing=true\n',
+           r"marked swing but is the last cut")
+_toml_case("limits_unknown_property", '[[limit]]\ncut="diesel"\nproperty="smell"\nmax=1\n', r"unknown property 'smell'",
+           "--limits")
+_toml_case("limits_min_above_max", '[[limit]]\ncut="diesel"\nproperty="sg"\nmin=0.9\nmax=0.8\n',
+           r"min 0.9 is above max 0.8", "--limits")
+
+
+def _price_case(name, text, expect):
+    @case(name, expect)
+    def _(d):
+        from assaycut.io.tomlfiles import demo_assay_paths
+
+        p = d / f"{name}.toml"
+        p.write_text(text)
+        return ["compare", *demo_assay_paths()[:2], "--prices", str(p), "--json"], [p]
+
+
+_ALL = "".join(f'"{n}" = {{ per_bbl = 80.0 }}\n' for n in ("light ends", "light naphtha", "heavy naphtha", "kerosene",
+                                                          "diesel", "vacuum gas oil"))
+_price_case("prices_negative", "[products]\n" + _ALL + '"vacuum residue" = { per_t = -3 }\n', r"the price -3 must be positive")
+_price_case("prices_missing_product", "[products]\n" + _ALL, r"no price for cut 'vacuum residue'")
+_price_case("prices_zero", "[products]\n" + _ALL + '"vacuum residue" = { per_t = 0 }\n', r"the price 0 must be positive")
+_price_case("prices_text", "[products]\n" + _ALL + '"vacuum residue" = { per_t = "cheap" }\n', r"the price must be a number")
+
+
+@case("blend_not_100", r"the shares add up to 95 %, not 100 %")
+def _(d):
+    from assaycut.io.tomlfiles import demo_assay_paths
+
+    a, b = demo_assay_paths()[:2]
+    return ["blend", f"{a}=50", f"{b}=45", "--out", str(d / "mix.xlsx")], []
+
+
+@case("blend_negative_share", r"every share must be a positive percent")
+def _(d):
+    from assaycut.io.tomlfiles import demo_assay_paths
+
+    a, b = demo_assay_paths()[:2]
+    return ["blend", f"{a}=120", f"{b}=-20", "--out", str(d / "mix.xlsx")], []
+
+
+@case("blend_onto_input", r"refusing to write the report over the input file")
+def _(d):
+    a = _book(d, "parent.xlsx")
+    return ["blend", f"{a}=100", "--out", str(a)], [a]
+
+
+@case("blend_bad_syntax", r"expected ASSAY=PERCENT")
+def _(d):
+    return ["blend", "just_a_file.xlsx", "--out", str(d / "m.xlsx")], []
+
+
+@case("convert_missing_50", r"needs the 50 % point")
+def _(d):
+    return ["convert", "10=100", "30=150"], []
+
+
+@case("convert_percent_out_of_range", r"expected PERCENT=TEMP with a percent between 0 and 100")
+def _(d):
+    return ["convert", "150=100"], []
+
+
+@case("convert_file_bad", r"found text 'hot'")
+def _(d):
+    p = d / "pts.csv"
+    p.write_text("vol_pct,temp_c\n10,hot\n50,200\n")
+    return ["convert", "--file", str(p)], [p]
+
+
+@case("sweep_outside_neighbours", r"must stay strictly between the neighbouring cut points")
+def _(d):
+    return ["sweep", "--end", "diesel", "--from", "200", "--to", "400", "--out", str(d)], []
+
+
+@case("shift_unknown_cut", r"no cut named 'jet'")
+def _(d):
+    return ["shift", "--end", "jet=250"], []
+
+
+@case("usage_error_one_line", r"No such option: --colour")
+def _(d):
+    return ["yields", "--colour"], []
+
+
+@case("template_wrong_suffix", r"give a path ending in .xlsx")
+def _(d):
+    return ["template", str(d / "blank.ods")], []
+
+
+if __name__ == "__main__":  # pragma: no cover - writes the corpus for inspection
+    import sys
+
+    out = Path(sys.argv[1] if len(sys.argv) > 1 else "corpus")
+    for name, fn, expect in CASES:
+        folder = out / name
+        folder.mkdir(parents=True, exist_ok=True)
+        args, _ = fn(folder)
+        (folder / "command.txt").write_text("assaycut " + " ".join(args) + f"\nexpect: {expect or 'accepted'}\n")
+    print(f"{len(CASES)} cases written to {out}")

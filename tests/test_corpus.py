@@ -1,0 +1,39 @@
+"""Every case of the bad-input corpus: one clear line on stderr (or accepted), right exit code, no traceback,
+inputs unchanged (sha256 before and after)."""
+
+from __future__ import annotations
+
+import re
+
+import pytest
+from typer.testing import CliRunner
+
+from assaycut.cli import app
+
+from .conftest import sha256
+from .corpus import CASES
+
+runner = CliRunner()
+
+
+def test_corpus_is_large_enough():
+    assert len(CASES) >= 40
+
+
+@pytest.mark.parametrize("name,build,expect", CASES, ids=[c[0] for c in CASES])
+def test_corpus_case(tmp_path, monkeypatch, name, build, expect):
+    monkeypatch.chdir(tmp_path)
+    args, inputs = build(tmp_path)
+    before = {str(p): sha256(p) for p in inputs}
+    r = runner.invoke(app, args)
+    out = r.stdout + r.stderr
+    assert "Traceback" not in out
+    if expect is None:
+        assert r.exit_code == 0, (r.exit_code, r.stderr)
+    else:
+        assert r.exit_code == 2, (r.exit_code, r.stdout, r.stderr)
+        lines = [x for x in r.stderr.splitlines() if x.strip()]
+        assert len(lines) == 1, r.stderr
+        assert lines[0].startswith("assaycut: error: ")
+        assert re.search(expect, lines[0]), lines[0]
+    assert {str(p): sha256(p) for p in inputs} == before
