@@ -282,7 +282,8 @@ def property_spline(lo, hi, values, fixed=(), iterations: int = 30) -> Pchip:
 
     Each measured value sits at the middle of its cut [lo, hi]; the PCHIP through them (held flat beyond the
     outermost points) is then corrected by fixed-point iteration, y_i <- y_i + (measured_i - mean_i), until
-    the spline's mean over every cut matches its measurement (to 1e-9, or the best found in ``iterations``).
+    the spline's mean over every cut matches its measurement (to 1e-7 of the largest value, or the best found
+    before the correction stops improving).
 
     Parameters
     ----------
@@ -315,13 +316,15 @@ def property_spline(lo, hi, values, fixed=(), iterations: int = 30) -> Pchip:
     a, b, target = lo[cut_idx], hi[cut_idx], vals[cut_idx]
     y = y0.copy()
     best, best_err = y.copy(), np.inf
+    tol = 1e-7 * max(float(np.max(np.abs(vals))), 1e-12)
     for _ in range(iterations):
         sp = Pchip(x, y)
         err = target - sp.integral(a, b) / (b - a)
         worst = float(np.max(np.abs(err))) if err.size else 0.0
-        if worst < best_err:
-            best, best_err = y.copy(), worst
-        if worst < 1e-9:
+        if worst >= 0.95 * best_err:  # no longer improving
+            break
+        best, best_err = y.copy(), worst
+        if worst < tol:
             break
         y[is_cut] = np.maximum(y[is_cut] + err, 0.0)
     return Pchip(x, best)

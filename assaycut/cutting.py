@@ -265,8 +265,9 @@ def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
     cci = np.where(mid_dist, cetane_index_d4737(d86[..., 1], d86[..., 3], d86[..., 5], dens15 / 1000.0), np.nan)
     flash_ok = (np.nan_to_num(t_start, nan=-np.inf) >= FLASH_FROM_C) & has_d86
     flash = np.where(flash_ok, flash_point_api_2b7_1(d86[..., 1]), np.nan)
-    s_crude = model.sulfur_wt_pct
-    share = sulfur * wt / s_crude if s_crude else np.full_like(wt, np.nan)
+    s_crude = np.nan if model.sulfur_wt_pct is None else model.sulfur_wt_pct
+    with np.errstate(invalid="ignore", divide="ignore"):
+        share = sulfur * wt / s_crude
     extrap = curve.is_extrapolated(va, vb) & (vol > 1e-9)
     return {
         "start_c": t_start, "end_c": t_end, "vol_pct": vol, "wt_pct": wt,

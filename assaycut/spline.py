@@ -140,14 +140,49 @@ class Pchip:
             raise ValueError("inverse needs non-decreasing values")
         yq = np.clip(np.asarray(yq, dtype=float), self.y[0], self.y[-1])
         i = np.clip(np.searchsorted(self.y, yq, side="left") - 1, 0, self.x.size - 2)
-        lo = np.zeros_like(yq)
-        hi = np.ones_like(yq)
-        for _ in range(56):  # 2**-56 of a segment: below 1e-12 °C on any real curve
-            mid = 0.5 * (lo + hi)
-            below = self._hermite(i, mid) < yq
-            lo = np.where(below, mid, lo)
-            hi = np.where(below, hi, mid)
-        x = self.x[i] + hi * self.h[i]
+        h = self.h[i]
+        t = hermite_solve(self.y[i], self.y[i + 1], h * self.d[i], h * self.d[i + 1], yq)
+        x = self.x[i] + t * h
         # exact at the nodes, where a zero end slope would leave the bisection ~sqrt(eps) short
         x = np.where(yq == self.y[i + 1], self.x[i + 1], x)
         return np.where(yq == self.y[i], self.x[i], x)
+
+
+def hermite_solve(y0, y1, m0, m1, target, bisections: int = 24, newton: int = 4):
+    """Solve p(t) = target for t in [0, 1] on monotone non-decreasing cubic Hermite segments, vectorised.
+
+    p(t) = (2t³-3t²+1) y0 + (t³-2t²+t) m0 + (-2t³+3t²) y1 + (t³-t²) m1, with m = h·slope.  Bisection brackets
+    the root to 2**-24, then safeguarded Newton steps (kept only inside the bracket) polish it to machine
+    precision.  Where the target lies in a flat part, the smallest solution is approached from the left.
+
+    Parameters
+    ----------
+    y0, y1, m0, m1, target : numpy.ndarray
+        Segment end values, end slopes times segment width, and the value sought (same shapes).
+
+    Returns
+    -------
+    numpy.ndarray
+        t in [0, 1].
+    """
+    c3 = 2 * y0 - 2 * y1 + m0 + m1
+    c2 = -3 * y0 + 3 * y1 - 2 * m0 - m1
+    c1 = m0
+    c0 = y0 - target
+    lo = np.zeros(np.shape(target))
+    hi = np.ones(np.shape(target))
+    for _ in range(bisections):
+        mid = 0.5 * (lo + hi)
+        below = ((c3 * mid + c2) * mid + c1) * mid + c0 < 0
+        lo = np.where(below, mid, lo)
+        hi = np.where(below, hi, mid)
+    t = hi
+    for _ in range(newton):
+        f = ((c3 * t + c2) * t + c1) * t + c0
+        fp = (3 * c3 * t + 2 * c2) * t + c1
+        with np.errstate(divide="ignore", invalid="ignore"):
+            step = np.where(fp > 0, f / np.where(fp > 0, fp, 1.0), 0.0)
+        cand = t - step
+        ok = (cand >= lo) & (cand <= hi)
+        t = np.where(ok, cand, t)
+    return t
