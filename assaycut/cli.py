@@ -177,7 +177,7 @@ def _root(ctx: typer.Context) -> None:
     """Bare `assaycut` runs the yield report on the demo assay."""
     if ctx.invoked_subcommand is None:
         ctx.invoke(yields, assays=None, cuts=None, limits=None, out=None, json_out=False, end=None,
-                   api=None, sg=None, density=None, sulfur=None, method=TdMethod.daubert_1994)
+                   api=None, sg=None, density=None, sulfur=None, method=TdMethod.daubert_1994, summary_only=False)
 
 
 @app.command()
@@ -198,38 +198,52 @@ def yields(
     sulfur: SulfurOpt = None,
     method: Annotated[TdMethod, typer.Option("--method", help="TBP <-> D86 correlation for D86 input curves.")]
     = TdMethod.daubert_1994,
+    summary_only: Annotated[bool, typer.Option("--summary-only", help="With several assays, write only the "
+                                               "library summary (xlsx and CSV), not each assay's report.")] = False,
 ) -> None:
     """Cut assays at the cut points and report yields and qualities per cut (the main job).
 
     Prints the cut table, writes an xlsx report (summary, cuts, curve on both bases, limit status, notes),
     a CSV of the cuts, a Markdown summary and PNG plots. Yields are on the volume and weight basis of the
     whole crude; qualities are correlation estimates for screening, not measured properties.
+
+    With several assays (files, folders or globs) it also writes a library summary, one row per assay;
+    large batches run in worker processes with a progress bar, and a bad file is reported and skipped
+    (exit code 2 at the end).
     """
+    from .batch import YieldJob, run_batch
     from .io.tomlfiles import read_limits
-    from .yields import run_yields
 
     cs = load_cut_set(cuts, end)
     lim = read_limits(str(limits) if limits else None)
     paths = resolve_assays(assays)
-    results = []
-    for p in paths:
-        assay = _load(p, api, sg, density, sulfur)
-        results.append(run_yields(assay, cs, lim, method=method.value))
     inputs = tuple(paths) + tuple(str(x) for x in (cuts, limits) if x)
-    written = []
-    if out is not None or not json_out:
-        from .report.write import slug, write_yield_report
-
-        for r in results:
-            folder = out if (out is not None and len(results) == 1) else (out or Path("reports")) / slug(r.assay.name)
-            written += write_yield_report(r, folder, inputs)
+    write = out is not None or not json_out
+    root = (out or Path("reports")) if write and not summary_only else None
+    job = YieldJob(cs, lim, method.value, (api, sg, density, sulfur), root,
+                   single_folder=out is not None and len(paths) == 1, inputs=inputs)
+    results, written, failures = run_batch(paths, job)
+    if len(paths) == 1 and failures:
+        raise AssaycutError(failures[0][1])
+    for _, msg in failures:
+        _err(f"skipped: {msg}")
+    if write and len(paths) > 1 and results:
+        written += _write_summary(results, cs, out or Path("reports"), inputs)
     if json_out:
         objs = [r.to_dict() for r in results]
-        typer.echo(json.dumps(objs[0] if len(objs) == 1 else {"assays": objs}, indent=2, ensure_ascii=False))
+        doc = objs[0] if len(paths) == 1 else {"assays": objs, "errors": [m for _, m in failures]}
+        typer.echo(json.dumps(doc, indent=2, ensure_ascii=False))
+        if failures:
+            raise typer.Exit(EXIT_INPUT)
         return
+    if len(results) > BRIEF_OVER:
+        typer.echo(f"{len(results)} assays cut with {len(cs.names)} cuts; see the library summary.")
+        results_shown = []
+    else:
+        results_shown = results
     from .report.tables import text_table
 
-    for r in results:
+    for r in results_shown:
         a = r.assay
         typer.echo(f"\n{a.name}  ({a.origin or 'origin not given'})  {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
                    + (f"{r.model.sulfur_wt_pct:.3f} wt %" if r.model.sulfur_wt_pct is not None else "n/a"))
@@ -245,7 +259,47 @@ def yields(
                "screening estimates; see the notes sheet of the report for methods and cautions.")
     if written:
         folders = sorted({str(p.parent) for p in written})
-        typer.echo(f"Report written to {', '.join(folders)} ({len(written)} files).")
+        shown = ", ".join(folders[:3]) + (f" and {len(folders) - 3} more folders" if len(folders) > 3 else "")
+        typer.echo(f"Report written to {shown} ({len(written)} files).")
+    if failures:
+        _err(f"{len(failures)} of {len(paths)} assays failed and were skipped (see above)")
+        raise typer.Exit(EXIT_INPUT)
+
+
+BRIEF_OVER = 10
+"""Batches larger than this print a one-line summary instead of every cut table."""
+
+
+def _write_summary(results, cs, folder: Path, inputs) -> list[Path]:
+    """Library summary (xlsx and CSV), one row per assay."""
+    import io as _io
+
+    from .library import library_summary
+    from .report.write import csv_text, place_files
+    from .report.xlsx import write_table
+
+    df = library_summary([r.assay for r in results], [r.model for r in results], cs)
+    import openpyxl
+
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "library"
+    heads = [{"crude": "Crude", "source": "Source file", "sha256": "sha256", "api": "API gravity [°API]",
+              "sulfur_wt_pct": "Sulfur [wt %]", "extrapolated_cuts": "Cuts using the extension"}.get(c, c)
+             for c in df.columns]
+    fmts = [None, None, None, "0.0", "0.000"] + ["0.00"] * (len(df.columns) - 6) + [None]
+    write_table(ws, heads, df.values.tolist(), fmts, widths=[22, 40, 20] + [12] * (len(df.columns) - 3))
+    ws.freeze_panes = "B2"
+    ws2 = wb.create_sheet("notes")
+    from .yields import CAUTIONS
+
+    write_table(ws2, ["Topic", "Text"], [["Caution", c] for c in CAUTIONS]
+                + [["Cut set", cs.label], ["Assays", str(len(df))]], widths=[20, 120])
+    buf = _io.BytesIO()
+    wb.save(buf)
+    files = {"library_summary.xlsx": buf.getvalue(),
+             "library_summary.csv": csv_text(heads, df.values.tolist()).encode("utf-8")}
+    return place_files(folder, files, tuple(inputs))
 
 
 @app.command()

@@ -44,3 +44,46 @@ def test_library_summary_rows(models):
     assert list(df["crude"]) == ["Selkie Light", "Brannock Blend", "Tarn Heavy"]
     vol = df[[c for c in df.columns if c.endswith(" vol %")]].sum(axis=1)
     np.testing.assert_allclose(vol, 100.0, atol=1e-9)
+
+
+def test_parallel_run_identical_to_serial(tmp_path, demo_paths):
+    import json
+    import shutil
+
+    from assaycut.batch import YieldJob, run_batch
+    from assaycut.io.tomlfiles import read_limits
+
+    paths = []
+    for i in range(6):
+        p = tmp_path / f"a{i}.xlsx"
+        shutil.copy(demo_paths[i % 3], p)
+        paths.append(str(p))
+    job = YieldJob(default_cut_set(), read_limits())
+    serial, _, f1 = run_batch(paths, job, parallel=False, progress=False)
+    para, _, f2 = run_batch(paths, job, parallel=True, progress=False)
+    assert f1 == f2 == []
+    assert json.dumps([r.to_dict() for r in serial]) == json.dumps([r.to_dict() for r in para])
+
+
+def test_batch_skips_bad_file_and_writes_summary(tmp_path, demo_paths):
+    import shutil
+
+    from typer.testing import CliRunner
+
+    from assaycut.cli import app
+
+    lib = tmp_path / "lib"
+    lib.mkdir()
+    for p in demo_paths:
+        shutil.copy(p, lib)
+    (lib / "broken.xlsx").write_bytes(b"not a workbook")
+    r = CliRunner().invoke(app, ["yields", str(lib), "--out", str(tmp_path / "o"), "--summary-only"])
+    assert r.exit_code == 2
+    assert "skipped:" in r.stderr and "broken.xlsx" in r.stderr and "1 of 4 assays failed" in r.stderr
+    assert "Traceback" not in r.stderr
+    assert sorted(p.name for p in (tmp_path / "o").iterdir()) == ["library_summary.csv", "library_summary.xlsx"]
+    import openpyxl
+
+    ws = openpyxl.load_workbook(tmp_path / "o" / "library_summary.xlsx")["library"]
+    assert ws.max_row == 4  # header + three crudes
+    assert isinstance(ws.cell(row=2, column=4).value, float)
