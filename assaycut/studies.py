@@ -246,11 +246,15 @@ def sweep(model: CrudeModel, cut_set: CutSet, name: str, t_from: float, t_to: fl
         raise StudyError(f"the sweep {t_from:g}-{t_to:g} °C must stay strictly between the neighbouring cut points "
                          f"({lo:g} and {hi:g} °C)")
     pts = t_from + step * np.arange(n_steps)
-    grid = np.repeat(ends[None, :], n_steps, axis=0)
-    grid[:, k] = pts
+    # only the two neighbours change: cut with the cut points around them (prev end, moving point, next end)
+    sub = [ends[k - 1]] if k > 0 else []
+    j_lo = len(sub)
+    sub += [np.nan] + ([ends[k + 1]] if k + 1 < len(ends) else [])
+    grid = np.repeat(np.array(sub)[None, :], n_steps, axis=0)
+    grid[:, j_lo] = pts
     cols = cut_columns(model, grid)
     out = {"cut_point_c": pts}
-    for side, j in (("lower", k), ("upper", k + 1)):
+    for side, j in (("lower", j_lo), ("upper", j_lo + 1)):
         for q in SWEEP_QUALITIES:
             if q == "d86_10_c":
                 out[f"{side}_{q}"] = cols["d86"][:, j, 1]

@@ -1,0 +1,206 @@
+"""Benchmark of the assay-library engine.
+
+    python benchmarks/run.py            # full run: 10,000 generated assays
+    python benchmarks/run.py --smoke    # tiny sizes, for CI (never judged on speed)
+
+Prints a readable table, then as its last line one JSON object with library_vs_floor, library_vs_naive,
+sweep_ms, help_vs_bare, scaling_10k_vs_1k and peak_mb (and the raw timings).  Figures are medians of
+several runs.  The generated library perturbs the three invented demo crudes (temperatures, percents,
+gravity and sulfur), so every assay has its own curve, density and sulfur distribution.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+import numpy as np
+
+ROOT = Path(__file__).resolve().parent.parent
+sys.path.insert(0, str(ROOT))
+
+from assaycut.assay import Assay, CurveData, LightEnds, NarrowCuts  # noqa: E402
+from assaycut.crude import build_model  # noqa: E402
+from assaycut.cutting import Cut, CutSet  # noqa: E402
+
+CUTS8 = CutSet([Cut("light ends", 15.0), Cut("light naphtha", 85.0), Cut("heavy naphtha", 177.0),
+                Cut("kerosene", 232.0), Cut("light gas oil", 290.0), Cut("heavy gas oil", 343.0),
+                Cut("vacuum gas oil", 566.0), Cut("vacuum residue", None)], "benchmark 8 cuts")
+
+
+def median_time(fn, repeats: int) -> float:
+    out = []
+    for _ in range(repeats):
+        t = time.perf_counter()
+        fn()
+        out.append(time.perf_counter() - t)
+    return statistics.median(out)
+
+
+def generate_library(n: int, seed: int = 7) -> list[Assay]:
+    """n assays made by perturbing the demo crudes (temperatures +-4 %, gravity +-2 %, sulfur +-20 %)."""
+    from assaycut.io import load_assay
+    from assaycut.io.tomlfiles import demo_assay_paths
+
+    bases = [load_assay(p) for p in demo_assay_paths()]
+    rng = np.random.default_rng(seed)
+    out = []
+    for i in range(n):
+        b = bases[i % len(bases)]
+        f_t = rng.uniform(0.96, 1.04)
+        f_sg = rng.uniform(0.98, 1.02)
+        f_s = rng.uniform(0.8, 1.2)
+        curves = [CurveData(c.method, c.basis, c.percent.copy(), (c.temp_c + 273.15) * f_t - 273.15,
+                            c.pressure_mmhg, c.where) for c in b.curves]
+        nc = b.narrow_cuts
+        narrow = NarrowCuts((nc.start_c + 273.15) * f_t - 273.15, (nc.end_c + 273.15) * f_t - 273.15, nc.vol_pct,
+                            nc.wt_pct, nc.sg * f_sg, nc.sulfur_wt_pct * f_s)
+        out.append(Assay(f"gen{i:05d}", b.sg * f_sg, curves, sulfur_wt_pct=b.sulfur_wt_pct * f_s, narrow_cuts=narrow,
+                         light_ends=LightEnds(dict(b.light_ends.amounts), b.light_ends.basis)))
+    return out
+
+
+def floor_interp(models, ends) -> None:
+    """One numpy.interp call evaluating the cut points on every assay's curve nodes at once (offset trick)."""
+    xs = [m.curve.spline.x for m in models]
+    span = max(float(x[-1] - x[0]) for x in xs) + 10.0
+    off = np.arange(len(models)) * span
+    X = np.concatenate([x + o for x, o in zip(xs, off)])
+    Y = np.concatenate([m.curve.spline.y for m in models])
+    q = (ends[None, :] + off[:, None]).ravel()
+    return X, Y, q
+
+
+def naive_cut(models, cut_set) -> None:
+    """A plain per-assay, per-cut scipy implementation of the same property set, for comparison.
+
+    One PchipInterpolator per assay for V(T), T(V), SG(v) and S(w); scipy.integrate.quad for each cut's
+    volume-average TBP, mean SG, mass and mean sulfur; the cut's D86 by the dict-based Daubert 1994 inverse.
+    """
+    from scipy.integrate import quad
+    from scipy.interpolate import PchipInterpolator
+
+    from assaycut.conversions import daubert_1994_inverse
+
+    ends = cut_set.ends_c
+    for m in models:
+        c = m.curve.spline
+        v_of_t = PchipInterpolator(c.x, c.y)
+        keep = np.concatenate([[True], np.diff(c.y) > 0])
+        t_of_v = PchipInterpolator(c.y[keep], c.x[keep])
+        sg = PchipInterpolator(m.sg_dist.x, m.sg_dist.y, extrapolate=True)
+        sul = PchipInterpolator(m.sulfur_dist.x, m.sulfur_dist.y, extrapolate=True) if m.sulfur_dist else None
+        v = np.concatenate([[0.0], v_of_t(ends), [100.0]])
+        mass = [quad(lambda x: float(sg(x)), 0.0, b, limit=100)[0] for b in v]
+        for a, b, ma, mb in zip(v[:-1], v[1:], mass[:-1], mass[1:]):
+            if b - a <= 1e-9:
+                continue
+            quad(lambda x: float(t_of_v(x)), a, b, limit=100)
+            wa, wb = ma / m.sg, mb / m.sg
+            if sul is not None:
+                quad(lambda x: float(sul(x)), wa, wb, limit=100)
+            tb = {p: float(t_of_v(a + p / 100.0 * (b - a))) for p in (0, 10, 30, 50, 70, 90, 95)}
+            daubert_1994_inverse(tb)
+
+
+def help_time(cmd: list[str], repeats: int) -> float:
+    times = []
+    for _ in range(repeats):
+        t = time.perf_counter()
+        subprocess.run(cmd, capture_output=True, check=True)
+        times.append(time.perf_counter() - t)
+    return statistics.median(times)
+
+
+BARE_APP = '''
+import typer
+app = typer.Typer(add_completion=False)
+for _n in ("yields", "check", "template", "convert", "compare", "blend", "shift", "sweep"):
+    app.command(name=_n)(lambda: None)
+app()
+'''
+
+
+def peak_child(n: int) -> None:
+    """Child process: generate, model and cut n assays; print the peak resident memory in MB."""
+    import resource
+
+    from assaycut.library import cut_library
+
+    models = [build_model(a) for a in generate_library(n)]
+    cut_library(models, CUTS8)
+    print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0)
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--smoke", action="store_true", help="tiny sizes for CI")
+    ap.add_argument("--peak-child", type=int, help=argparse.SUPPRESS)
+    args = ap.parse_args()
+    if args.peak_child:
+        peak_child(args.peak_child)
+        return
+    from assaycut.cutting import default_cut_set
+    from assaycut.library import cut_library
+    from assaycut.studies import sweep
+
+    big, small, naive_n, reps = (10_000, 1_000, 100, 5) if not args.smoke else (30, 10, 3, 1)
+    t0 = time.perf_counter()
+    lib = generate_library(big)
+    t_gen = time.perf_counter() - t0
+    t0 = time.perf_counter()
+    models = [build_model(a) for a in lib]
+    t_models = time.perf_counter() - t0
+    t_lib = median_time(lambda: cut_library(models, CUTS8), reps)
+    t_small = median_time(lambda: cut_library(models[:small], CUTS8), reps)
+    X, Y, q = floor_interp(models, CUTS8.ends_c)
+    t_floor = median_time(lambda: np.interp(q, X, Y), max(reps, 5))
+    t_naive_sub = median_time(lambda: naive_cut(models[:naive_n], CUTS8), 1 if args.smoke else 3)
+    t_naive = t_naive_sub * big / naive_n
+    sweep(models[0], default_cut_set(), "kerosene", 180.0, 200.0, 1.0)  # warm-up: first-use imports
+    t_sweep = median_time(lambda: sweep(models[0], default_cut_set(), "kerosene", 180.0, 339.84, 0.16), reps)
+    exe = [sys.executable, "-m", "assaycut", "--help"]
+    with tempfile.TemporaryDirectory() as d:
+        bare = Path(d) / "bare.py"
+        bare.write_text(BARE_APP)
+        t_help = help_time(exe, 5 if not args.smoke else 1)
+        t_bare = help_time([sys.executable, str(bare), "--help"], 5 if not args.smoke else 1)
+    peak = float(subprocess.run([sys.executable, __file__, "--peak-child", str(big)], capture_output=True,
+                                text=True, check=True).stdout.strip().splitlines()[-1])
+    figures = {
+        "library_vs_floor": t_lib / t_floor,
+        "library_vs_naive": t_naive / t_lib,
+        "sweep_ms": t_sweep * 1000.0,
+        "help_vs_bare": t_help / t_bare,
+        "scaling_10k_vs_1k": t_lib / t_small,
+        "peak_mb": peak,
+    }
+    raw = {"assays": big, "cuts": len(CUTS8.cuts), "cores": os.cpu_count(), "generate_s": t_gen,
+           "model_build_s": t_models, "library_cut_s": t_lib, "library_cut_small_s": t_small,
+           "floor_s": t_floor, "naive_estimated_s": t_naive, "naive_subsample": naive_n,
+           "help_s": t_help, "bare_help_s": t_bare, "smoke": args.smoke}
+    goals = {"library_vs_floor": "<= 10", "library_vs_naive": ">= 20", "sweep_ms": "<= 50", "help_vs_bare": "<= 1.3",
+             "scaling_10k_vs_1k": "8 to 12", "peak_mb": "<= 300"}
+    print(f"assaycut library benchmark: {big} assays, {len(CUTS8.cuts)} cuts, {os.cpu_count()} cores"
+          + (" (smoke sizes)" if args.smoke else ""))
+    print(f"  generate library            {t_gen:9.3f} s")
+    print(f"  build models (read+model)   {t_models:9.3f} s   ({t_models / big * 1000:.2f} ms per assay)")
+    print(f"  cut library, all properties {t_lib:9.3f} s")
+    print(f"  cut {small} assays           {t_small:9.3f} s")
+    print(f"  floor (one numpy.interp)    {t_floor * 1000:9.3f} ms")
+    print(f"  naive scipy (est. from {naive_n}) {t_naive:9.3f} s")
+    print(f"  {'figure':<20}{'value':>12}  goal")
+    for k, v in figures.items():
+        print(f"  {k:<20}{v:12.2f}  {goals[k]}")
+    print(json.dumps({**{k: round(v, 3) for k, v in figures.items()}, "raw": raw}))
+
+
+if __name__ == "__main__":
+    main()
