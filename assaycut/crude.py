@@ -25,7 +25,7 @@ from .assay import Assay, CurveData
 from .curve import DistCurve, build_curve, staircase
 from .errors import CurveError
 from .lightends import find_component
-from .spline import Pchip
+from .spline import Pchip, interval_mean
 
 D86_STD = (0, 10, 30, 50, 70, 90, 95)
 """Standard ASTM D86 points of the TBP <-> D86 correlations. [vol %]"""
@@ -93,22 +93,13 @@ class CrudeModel:
 
     def mean_sg(self, va, vb):
         """Volume-average SG over [va, vb] vol %; the point value for an empty interval. [-]"""
-        va, vb = np.asarray(va, float), np.asarray(vb, float)
-        width = vb - va
-        ok = width > 1e-12
-        with np.errstate(invalid="ignore", divide="ignore"):
-            return np.where(ok, self.sg_dist.integral(va, vb) / np.where(ok, width, 1.0), self.sg_dist(va))
+        return interval_mean(self.sg_dist, va, vb)
 
     def mean_sulfur(self, wa, wb):
         """Weight-average sulfur over [wa, wb] wt %; NaN without a sulfur distribution. [wt %]"""
-        wa, wb = np.asarray(wa, float), np.asarray(wb, float)
         if self.sulfur_dist is None:
-            return np.full(np.broadcast(wa, wb).shape, np.nan)
-        width = wb - wa
-        ok = width > 1e-12
-        with np.errstate(invalid="ignore", divide="ignore"):
-            return np.where(ok, self.sulfur_dist.integral(wa, wb) / np.where(ok, width, 1.0),
-                            self.sulfur_dist(wa))
+            return np.full(np.broadcast(np.asarray(wa), np.asarray(wb)).shape, np.nan)
+        return interval_mean(self.sulfur_dist, wa, wb)
 
 
 def _std_points(curve: CurveData, std) -> dict[float, float]:

@@ -13,7 +13,8 @@ import numpy as np
 
 from .crude import CrudeModel
 from .cutting import CutSet, cut_columns
-from .spline import Pchip, hermite_solve
+from .curve import DistCurve
+from .spline import Pchip, hermite_solve, interval_mean
 
 
 class BatchPchip:
@@ -120,12 +121,7 @@ class BatchCurve:
     def temp_at(self, pct):
         return self.spline.inverse(pct)
 
-    def mean_temp(self, pct_a, pct_b):
-        ta, tb = self.temp_at(pct_a), self.temp_at(pct_b)
-        area = tb * pct_b - ta * pct_a - self.spline.integral(ta, tb)
-        width = pct_b - pct_a
-        with np.errstate(invalid="ignore", divide="ignore"):
-            return np.where(width > 1e-12, area / np.where(width > 1e-12, width, 1.0), ta)
+    mean_temp = DistCurve.mean_temp  # same formula; works row-wise through temp_at and spline.integral
 
     def is_extrapolated(self, pct_a, pct_b):
         lo = self.measured_lo.reshape((-1,) + (1,) * (np.ndim(pct_a) - 1))
@@ -153,19 +149,10 @@ class BatchModel:
         v = np.asarray(vol_pct, dtype=float)
         return (self.sg_dist.antiderivative(v) - self._col(self._a0, v)) / self._col(self.sg, v)
 
-    def mean_sg(self, va, vb):
-        va, vb = np.asarray(va, float), np.asarray(vb, float)
-        width = vb - va
-        ok = width > 1e-12
-        with np.errstate(invalid="ignore", divide="ignore"):
-            return np.where(ok, self.sg_dist.integral(va, vb) / np.where(ok, width, 1.0), self.sg_dist(va))
+    mean_sg = CrudeModel.mean_sg  # same formula; works row-wise through sg_dist
 
     def mean_sulfur(self, wa, wb):
-        wa, wb = np.asarray(wa, float), np.asarray(wb, float)
-        width = wb - wa
-        ok = width > 1e-12
-        with np.errstate(invalid="ignore", divide="ignore"):
-            out = np.where(ok, self.sulfur_dist.integral(wa, wb) / np.where(ok, width, 1.0), self.sulfur_dist(wa))
+        out = interval_mean(self.sulfur_dist, wa, wb)
         return np.where(self._col(self.sulfur_dist.missing, out), np.nan, out)
 
 

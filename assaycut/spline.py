@@ -148,6 +148,22 @@ class Pchip:
         return np.where(yq == self.y[i], self.x[i], x)
 
 
+def interval_mean(spline, a, b):
+    """Mean of ``spline`` over [a, b] (its exact integral over the width); the value at ``a`` where the interval
+    has no width.  Works for :class:`Pchip` and for the row-wise batch splines of the library engine.
+
+    Examples
+    --------
+    >>> float(interval_mean(Pchip([0.0, 10.0], [1.0, 3.0]), 0.0, 10.0))
+    2.0
+    """
+    a, b = np.asarray(a, dtype=float), np.asarray(b, dtype=float)
+    width = b - a
+    ok = width > 1e-12
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(ok, spline.integral(a, b) / np.where(ok, width, 1.0), spline(a))
+
+
 def hermite_solve(y0, y1, m0, m1, target, bisections: int = 30, newton: int = 3):
     """Solve p(t) = target for t in [0, 1] on monotone non-decreasing cubic Hermite segments, vectorised.
 
