@@ -30,18 +30,22 @@ class BatchPchip:
         n = len(splines)
         self.missing = np.array([s is None for s in splines])
         real = [s if s is not None else Pchip([0.0, 1.0], [0.0, 0.0]) for s in splines]
-        k = max(s.x.size for s in real)
-        X = np.empty((n, k))
-        Y = np.empty((n, k))
+        lens = np.array([s.x.size for s in real])
+        k = int(lens.max())
+        inside = np.arange(k)[None, :] < lens[:, None]
+        X = np.zeros((n, k))
+        Y = np.zeros((n, k))
         D = np.zeros((n, k))
-        self.lo = np.empty(n)
-        self.hi = np.empty(n)
-        for r, s in enumerate(real):
-            m = s.x.size
-            X[r, :m], Y[r, :m], D[r, :m] = s.x, s.y, s.d
-            X[r, m:] = s.x[-1] + np.arange(1, k - m + 1)  # padding: flat continuation past the last node
-            Y[r, m:] = s.y[-1]
-            self.lo[r], self.hi[r] = s.x[0], s.x[-1]
+        X[inside] = np.concatenate([s.x for s in real])
+        Y[inside] = np.concatenate([s.y for s in real])
+        D[inside] = np.concatenate([s.d for s in real])
+        last = lens - 1
+        rows = np.arange(n)
+        self.lo, self.hi = X[:, 0].copy(), X[rows, last]
+        # padding: flat continuation past each spline's last node
+        extra = np.arange(k)[None, :] - last[:, None]
+        X = np.where(inside, X, self.hi[:, None] + extra)
+        Y = np.where(inside, Y, Y[rows, last][:, None])
         self.X, self.Y, self.D = X, Y, D
         self.H = np.diff(X, axis=1)
         seg = self.H * (0.5 * (Y[:, :-1] + Y[:, 1:]) + self.H * (D[:, :-1] - D[:, 1:]) / 12.0)

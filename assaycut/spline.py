@@ -164,12 +164,13 @@ def interval_mean(spline, a, b):
         return np.where(ok, spline.integral(a, b) / np.where(ok, width, 1.0), spline(a))
 
 
-def hermite_solve(y0, y1, m0, m1, target, bisections: int = 30, newton: int = 3):
+def hermite_solve(y0, y1, m0, m1, target, newton: int = 8, bisections: int = 40):
     """Solve p(t) = target for t in [0, 1] on monotone non-decreasing cubic Hermite segments, vectorised.
 
-    p(t) = (2t³-3t²+1) y0 + (t³-2t²+t) m0 + (-2t³+3t²) y1 + (t³-t²) m1, with m = h·slope.  Bisection brackets
-    the root to 2**-30 (1e-7 °C on a 100 °C segment, also where a slope is zero), then safeguarded Newton
-    steps (kept inside the bracket) polish it to machine precision.  Where the target lies in a flat part, the smallest solution is approached from the left.
+    p(t) = (2t³-3t²+1) y0 + (t³-2t²+t) m0 + (-2t³+3t²) y1 + (t³-t²) m1, with m = h·slope.  Newton steps from
+    the linear guess, kept inside a shrinking bracket (a step leaving it is replaced by bisection), converge
+    to machine precision in a few steps; the rare points not converged then (a zero slope at the root) are
+    finished by bisection.  On a flat segment the left end (t = 0) is returned.
 
     Parameters
     ----------
@@ -180,25 +181,48 @@ def hermite_solve(y0, y1, m0, m1, target, bisections: int = 30, newton: int = 3)
     -------
     numpy.ndarray
         t in [0, 1].
+
+    Examples
+    --------
+    A straight segment from 0 to 10 reaches 2.5 a quarter of the way:
+
+    >>> float(hermite_solve(np.array(0.0), np.array(10.0), np.array(10.0), np.array(10.0), np.array(2.5)))
+    0.25
     """
+    shape = np.broadcast_shapes(*(np.shape(z) for z in (y0, y1, m0, m1, target)))
+    y0, y1, m0, m1, target = (np.broadcast_to(np.asarray(z, dtype=float), shape).ravel()
+                              for z in (y0, y1, m0, m1, target))
     c3 = 2 * y0 - 2 * y1 + m0 + m1
     c2 = -3 * y0 + 3 * y1 - 2 * m0 - m1
     c1 = m0
     c0 = y0 - target
-    lo = np.zeros(np.shape(target))
-    hi = np.ones(np.shape(target))
-    for _ in range(bisections):
-        mid = 0.5 * (lo + hi)
-        below = ((c3 * mid + c2) * mid + c1) * mid + c0 < 0
-        lo = np.where(below, mid, lo)
-        hi = np.where(below, hi, mid)
-    t = hi
+    rise = y1 - y0
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = np.where(rise > 0, np.clip(-c0 / np.where(rise > 0, rise, 1.0), 0.0, 1.0), 0.0)
+    lo = np.zeros_like(t)
+    hi = np.ones_like(t)
     for _ in range(newton):
         f = ((c3 * t + c2) * t + c1) * t + c0
         fp = (3 * c3 * t + 2 * c2) * t + c1
         lo = np.where(f < 0, t, lo)
         hi = np.where(f >= 0, t, hi)
         with np.errstate(divide="ignore", invalid="ignore"):
-            step = np.where(fp > 0, f / np.where(fp > 0, fp, 1.0), 0.0)
-        t = np.clip(t - step, lo, hi)  # Newton, kept inside the bracket
-    return t
+            cand = np.where(fp > 0, t - f / np.where(fp > 0, fp, 1.0), -1.0)
+        new = np.where(rise > 0, np.where((cand > lo) & (cand < hi), cand, 0.5 * (lo + hi)), 0.0)
+        done = np.max(np.abs(new - t), initial=0.0) < 1e-15
+        t = new
+        if done:
+            break
+    f = ((c3 * t + c2) * t + c1) * t + c0
+    scale = np.maximum(np.abs(y0) + np.abs(y1), 1e-300)
+    todo = np.nonzero((np.abs(f) > 1e-13 * scale) & (rise > 0))
+    if todo[0].size:  # finish the slow cases by bisection on their bracket
+        a, b = np.where(f < 0, t, lo)[todo], np.where(f >= 0, t, hi)[todo]
+        k3, k2, k1, k0 = c3[todo], c2[todo], c1[todo], c0[todo]
+        for _ in range(bisections):
+            mid = 0.5 * (a + b)
+            below = ((k3 * mid + k2) * mid + k1) * mid + k0 < 0
+            a = np.where(below, mid, a)
+            b = np.where(below, b, mid)
+        t[todo] = b
+    return t.reshape(shape)
