@@ -9,6 +9,7 @@ from __future__ import annotations
 import enum
 import functools
 import json
+import math
 import os
 import signal
 import sys
@@ -114,30 +115,37 @@ SulfurOpt = Annotated[Optional[float], typer.Option("--sulfur", help="Whole-crud
 JsonOpt = Annotated[bool, typer.Option("--json", help="Print JSON on stdout.")]
 
 
-def parse_ends(items: list[str] | None) -> dict[str, float]:
-    """{cut name: TEMP_C} from NAME=TEMP_C texts."""
+def parse_ends(items: list[str] | None, option: str = "--end", what: str = "a temperature in °C") -> dict[str, float]:
+    """{cut name: number} from NAME=VALUE texts (``--end diesel=350``, ``--overlap diesel=25``)."""
     out: dict[str, float] = {}
     for it in items or []:
         if "=" not in it:
-            raise AssaycutError(f"--end {it!r}: expected NAME=TEMP_C, e.g. --end diesel=350")
+            raise AssaycutError(f"{option} {it!r}: expected NAME=VALUE, e.g. {option} diesel=350")
         name, _, val = it.rpartition("=")
         try:
             t = float(val)
         except ValueError:
-            raise AssaycutError(f"--end {it!r}: {val!r} is not a temperature in °C") from None
+            raise AssaycutError(f"{option} {it!r}: {val!r} is not {what}") from None
+        if not math.isfinite(t):
+            raise AssaycutError(f"{option} {it!r}: {val!r} is not {what}")
         if not name.strip():
-            raise AssaycutError(f"--end {it!r}: the cut name is empty")
+            raise AssaycutError(f"{option} {it!r}: the cut name is empty")
         out[name.strip()] = t
     return out
 
 
-def load_cut_set(cuts: Path | None, ends: list[str] | None):
+def load_cut_set(cuts: Path | None, ends: list[str] | None, overlaps: list[str] | None = None):
     from .cutting import default_cut_set
+    from .fractionation import widths_for
     from .io.tomlfiles import read_cut_set
 
     cs = read_cut_set(str(cuts)) if cuts else default_cut_set()
     changes = parse_ends(ends)
-    return cs.with_ends(changes, cs.label + " with --end changes") if changes else cs
+    cs = cs.with_ends(changes, cs.label + " with --end changes") if changes else cs
+    if overlaps:
+        cs.overlaps.update(parse_ends(overlaps, option="--overlap", what="a TBP width in °C"))
+        widths_for(cs, cs.overlaps)  # refuses unknown cuts and absurd widths now
+    return cs
 
 
 def resolve_assays(paths: list[str] | None) -> list[str]:
@@ -177,7 +185,8 @@ def _root(ctx: typer.Context) -> None:
     """Bare `assaycut` runs the yield report on the demo assay."""
     if ctx.invoked_subcommand is None:
         ctx.invoke(yields, assays=None, cuts=None, limits=None, out=None, json_out=False, end=None,
-                   api=None, sg=None, density=None, sulfur=None, method=TdMethod.daubert_1994, summary_only=False)
+                   api=None, sg=None, density=None, sulfur=None, method=TdMethod.daubert_1994, summary_only=False,
+                   overlap=None)
 
 
 @app.command()
@@ -200,6 +209,11 @@ def yields(
     = TdMethod.daubert_1994,
     summary_only: Annotated[bool, typer.Option("--summary-only", help="With several assays, write only the "
                                                "library summary (xlsx and CSV), not each assay's report.")] = False,
+    overlap: Annotated[Optional[list[str]], typer.Option(
+        "--overlap", metavar="NAME=WIDTH_C",
+        help="Real-column products: the TBP 5-95 overlap at the end of cut NAME, in °C (0 = ideal cut). The "
+             "heavy tail of one product then reaches into the next; yields, D86, flash and limit checks use "
+             "the products' own curves. Repeatable; also `overlap_c` in the cut file.")] = None,
 ) -> None:
     """Cut assays at the cut points and report yields and qualities per cut (the main job).
 
@@ -214,7 +228,7 @@ def yields(
     from .batch import YieldJob, run_batch
     from .io.tomlfiles import read_limits
 
-    cs = load_cut_set(cuts, end)
+    cs = load_cut_set(cuts, end, overlap)
     lim = read_limits(str(limits) if limits else None)
     paths = resolve_assays(assays)
     inputs = tuple(paths) + tuple(str(x) for x in (cuts, limits) if x)

@@ -19,7 +19,7 @@ Per-cut results (one DataFrame row per cut):
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -64,6 +64,8 @@ class CutSet:
 
     cuts: list[Cut]
     label: str = "cut set"
+    overlaps: dict[str, float] = field(default_factory=dict)
+    """TBP 5-95 overlap [°C] at the end of named cuts, for a real column's products (empty: ideal cuts)."""
 
     def __post_init__(self):
         validate_cut_set(self.cuts, self.label)
@@ -105,7 +107,7 @@ class CutSet:
                               f"and has no end to change")
         cuts = [Cut(c.name, float(changes[c.name]) if c.name in changes else c.end_c, c.swing)
                 for c in self.cuts]
-        return CutSet(cuts, label or self.label)
+        return CutSet(cuts, label or self.label, dict(self.overlaps))
 
 
 def validate_cut_set(cuts: list[Cut], label: str) -> None:
@@ -205,15 +207,18 @@ def cut_table(model: CrudeModel, cut_set: CutSet):
     pandas.DataFrame
         Columns :data:`CUT_COLUMNS`; ``d86_c`` holds a dict {"0": .., "10": .., ...} [°C] or None.
     """
+    names, ends = cut_set.reported()
+    return columns_frame(names, {k: v[0] for k, v in cut_columns(model, ends[None, :]).items()})
+
+
+def columns_frame(names: list[str], cols: dict[str, np.ndarray]):
+    """The cut-table DataFrame from one row of :func:`cut_columns`-style arrays (``d86`` as a dict per cut)."""
     import pandas as pd
 
-    names, ends = cut_set.reported()
-    cols = cut_columns(model, ends[None, :])
-    df = pd.DataFrame({k: v[0] for k, v in cols.items() if k != "d86"})
-    d86 = cols["d86"][0]
+    df = pd.DataFrame({k: v for k, v in cols.items() if k != "d86"})
     df.insert(0, "name", names)
     df["d86_c"] = [None if not np.all(np.isfinite(r)) else {str(p): float(x) for p, x in zip(D86_STD, r)}
-                   for r in d86]
+                   for r in cols["d86"]]
     return df[CUT_COLUMNS]
 
 
@@ -244,15 +249,47 @@ def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
     vol = vb - va
     wt = wb - wa
     curve = model.curve
-    mid_vol_c = curve.temp_at(0.5 * (va + vb))
+    mid_vol_c = np.where(vol > 1e-9, curve.temp_at(0.5 * (va + vb)), np.nan)
     vabp = curve.mean_temp(va, vb)
     sg = model.mean_sg(va, vb)
     sulfur = model.mean_sulfur(wa, wb)
     fr = np.array(D86_STD, float) / 100.0
     slice_v = va[..., None] + fr * vol[..., None]
     tbp = curve.temp_at(slice_v)
+    s_crude = np.nan if model.sulfur_wt_pct is None else model.sulfur_wt_pct
+    out = {"start_c": t_start, "end_c": t_end, "vol_pct": vol, "wt_pct": wt, "cum_vol_pct": vb, "cum_wt_pct": wb,
+           "mid_vol_c": mid_vol_c}
+    out.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude))
+    out["extrapolated"] = curve.is_extrapolated(va, vb) & (vol > 1e-9)
+    return out
+
+
+def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude) -> dict[str, np.ndarray]:
+    """Qualities that follow from a cut's yields, mean properties and TBP slice, for ideal cuts and real
+    products alike (the correlations named in the module docstring).
+
+    Parameters
+    ----------
+    t_start, t_end : numpy.ndarray
+        Cut points around each cut, NaN at the IBP and the end of the curve. [°C]
+    vol, wt : numpy.ndarray
+        Yields. [vol %], [wt %]
+    vabp, sg, sulfur : numpy.ndarray
+        Volume-average TBP [°C], mean SG [-], mean sulfur [wt %].
+    tbp : numpy.ndarray
+        The cut's own TBP at 0/10/30/50/70/90/95 % (last axis of 7). [°C]
+    s_crude : float or numpy.ndarray
+        Whole-crude sulfur (NaN when unknown). [wt %]
+
+    Returns
+    -------
+    dict of str to numpy.ndarray
+        vabp_c, meabp_c, sg, api, density_15c_kg_m3, watson_k, sulfur_wt_pct, sulfur_share_pct, mw, d86,
+        cetane_index_d4737, flash_c_est (empty cuts give NaN, a zero sulfur share).
+    """
+    shape = vol.shape
     has_d86 = np.isfinite(t_end) & ~(t_end <= LIGHT_ENDS_MAX_C) & (vol > 1e-9)
-    d86 = d86_from_tbp_slices(tbp.reshape(-1, 7)).reshape(m, k + 1, 7)
+    d86 = d86_from_tbp_slices(tbp.reshape(-1, 7)).reshape(shape + (7,))
     d86 = np.where(has_d86[..., None], d86, np.nan)
     abp = average_boiling_points(np.where(has_d86[..., None], d86, 100.0)[..., 1:6])
     meabp = np.where(has_d86, abp["meabp"], np.nan)
@@ -265,21 +302,15 @@ def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
     cci = np.where(mid_dist, cetane_index_d4737(d86[..., 1], d86[..., 3], d86[..., 5], dens15 / 1000.0), np.nan)
     flash_ok = (np.nan_to_num(t_start, nan=-np.inf) >= FLASH_FROM_C) & has_d86
     flash = np.where(flash_ok, flash_point_api_2b7_1(d86[..., 1]), np.nan)
-    s_crude = np.nan if model.sulfur_wt_pct is None else model.sulfur_wt_pct
     with np.errstate(invalid="ignore", divide="ignore"):
         share = sulfur * wt / s_crude
-    extrap = curve.is_extrapolated(va, vb) & (vol > 1e-9)
+    some = vol > 1e-9
     return {
-        "start_c": t_start, "end_c": t_end, "vol_pct": vol, "wt_pct": wt,
-        "cum_vol_pct": vb, "cum_wt_pct": wb, "mid_vol_c": np.where(vol > 1e-9, mid_vol_c, np.nan),
-        "vabp_c": np.where(vol > 1e-9, vabp, np.nan), "meabp_c": meabp, "sg": np.where(vol > 1e-9, sg, np.nan),
-        "api": np.where(vol > 1e-9, sg_to_api(sg), np.nan),
-        "density_15c_kg_m3": np.where(vol > 1e-9, dens15, np.nan),
-        "watson_k": np.where(vol > 1e-9, kw, np.nan),
-        "sulfur_wt_pct": np.where(vol > 1e-9, sulfur, np.nan),
-        "sulfur_share_pct": np.where(vol > 1e-9, share, 0.0),
-        "mw": np.where(vol > 1e-9, mw, np.nan), "d86": d86,
-        "cetane_index_d4737": cci, "flash_c_est": flash, "extrapolated": extrap,
+        "vabp_c": np.where(some, vabp, np.nan), "meabp_c": meabp, "sg": np.where(some, sg, np.nan),
+        "api": np.where(some, sg_to_api(sg), np.nan), "density_15c_kg_m3": np.where(some, dens15, np.nan),
+        "watson_k": np.where(some, kw, np.nan), "sulfur_wt_pct": np.where(some, sulfur, np.nan),
+        "sulfur_share_pct": np.where(some, share, 0.0), "mw": np.where(some, mw, np.nan), "d86": d86,
+        "cetane_index_d4737": cci, "flash_c_est": flash,
     }
 
 

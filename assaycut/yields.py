@@ -58,6 +58,8 @@ class YieldResult:
     warnings: list[str] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
     methods: dict[str, str] = field(default_factory=dict)
+    products: dict | None = None
+    """Product curves of a real column (see :func:`assaycut.fractionation.fractionate`); None for ideal cuts."""
 
     def to_dict(self) -> dict:
         """The JSON object of one assay's yields (field names are part of the interface)."""
@@ -124,7 +126,13 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     YieldResult
     """
     model = model or build_model(assay, method)
-    cuts = cut_table(model, cut_set)
+    products = None
+    if any(w > 0 for w in cut_set.overlaps.values()):
+        from .fractionation import fractionate
+
+        cuts, products = fractionate(model, cut_set, cut_set.overlaps)
+    else:
+        cuts = cut_table(model, cut_set)
     lim = check_limits(cuts, limits or [])
     clo = closure(cuts)
     warnings = list(model.warnings)
@@ -141,10 +149,15 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         warnings.append(f"cut(s) {', '.join(empty)} have no yield: their qualities are left empty")
     methods = dict(model.methods)
     methods.update(METHOD_NOTES)
+    if products is not None:
+        methods["fractionation"] = (
+            "real-column products: each cut point splits smoothly (normal split) with the TBP 5-95 overlap "
+            + ", ".join(f"{n} {w:g} °C" for n, w in cut_set.overlaps.items() if w > 0)
+            + "; other cut points ideal; product D86 from each product's own TBP curve (0 % taken at 0.5 %)")
     notes = list(CAUTIONS)
     notes.append(f"density reconciliation {model.density_reconciliation_pct:+.2f} %"
                  + (f"; sulfur reconciliation {model.sulfur_reconciliation_pct:+.2f} %"
                     if model.sulfur_reconciliation_pct is not None else ""))
     notes.append(f"closure residual: vol {clo['vol_pct']:+.2e} %, wt {clo['wt_pct']:+.2e} %")
     notes += [f"assay note: {n}" for n in assay.notes]
-    return YieldResult(assay, model, cut_set, cuts, lim, clo, warnings, notes, methods)
+    return YieldResult(assay, model, cut_set, cuts, lim, clo, warnings, notes, methods, products)

@@ -40,13 +40,14 @@ def cut_set_from_dict(doc: dict, path: str) -> CutSet:
     if not isinstance(items, list) or not items:
         raise InputError("no cuts; expected [[cut]] tables with name and end_c", file=path)
     cuts = []
+    overlaps: dict[str, float] = {}
     for i, it in enumerate(items, start=1):
         if not isinstance(it, dict):
             raise InputError(f"[[cut]] {i} is not a table", file=path)
-        unknown = set(it) - {"name", "end_c", "end_f", "swing"}
+        unknown = set(it) - {"name", "end_c", "end_f", "swing", "overlap_c"}
         if unknown:
             raise InputError(f"[[cut]] {i}: unknown key {sorted(unknown)[0]!r}; expected name, end_c or end_f, "
-                             f"swing", file=path)
+                             f"swing, overlap_c", file=path)
         name = it.get("name")
         if not isinstance(name, str) or not name.strip():
             raise InputError(f"[[cut]] {i}: 'name' must be a non-empty text", file=path)
@@ -59,9 +60,15 @@ def cut_set_from_dict(doc: dict, path: str) -> CutSet:
         swing = it.get("swing", False)
         if not isinstance(swing, bool):
             raise InputError(f"[[cut]] {i} ({name!r}): 'swing' must be true or false", file=path)
+        if "overlap_c" in it:
+            w = it["overlap_c"]
+            if isinstance(w, bool) or not isinstance(w, (int, float)) or not 0.0 <= w <= 200.0:
+                raise InputError(f"[[cut]] {i} ({name!r}): 'overlap_c' must be a TBP width of 0-200 °C; found {w!r}",
+                                 file=path)
+            overlaps[name.strip()] = float(w)
         cuts.append(Cut(name.strip(), end, swing))
     try:
-        return CutSet(cuts, path)
+        return CutSet(cuts, path, overlaps)
     except AssaycutError as exc:
         raise InputError(str(exc).removeprefix(f"{path}: "), file=path) from None
 

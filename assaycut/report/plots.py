@@ -123,3 +123,57 @@ def plot_properties(result, target) -> None:
     fig.suptitle(f"{result.assay.name}: property distributions (estimates)")
     _save(fig, target)
     plt.close(fig)
+
+
+def plot_products(result, target) -> None:
+    """Real-column products over the crude: how each product's material spreads over TBP (tails into the
+    neighbours), and each product's own TBP curve against the ideal cut's."""
+    plt = _plt()
+    pc = result.products
+    fig, (a1, a2) = plt.subplots(1, 2, figsize=(12, 5))
+    t = pc["slice_temp_c"]
+    dv = pc["slice_pct"]
+    edges = pc["temp_c"]
+    top = float(np.quantile(t, 0.98))
+    bins = np.arange(np.floor(t.min() / BIN_C) * BIN_C, top + BIN_C, BIN_C)
+    mids = 0.5 * (bins[1:] + bins[:-1])
+    crude, _ = np.histogram(t, bins=bins, weights=dv)
+    a1.fill_between(mids, crude / BIN_C, color="#bdbdbd", alpha=0.6, label="crude", step="mid")
+    names = list(result.cuts["name"])
+    for j, n in enumerate(names):
+        h, _ = np.histogram(t, bins=bins, weights=pc["fractions"][:, j] * dv)
+        a1.step(mids, h / BIN_C, where="mid", color=CUT_COLOURS_DARK[j % len(CUT_COLOURS_DARK)], lw=1.3, label=n)
+    a1.set_xlabel("TBP [°C]")
+    a1.set_ylabel(f"Distribution [vol % of crude per °C, {BIN_C:g} °C bins]")
+    a1.set_title("Where each product's material boils")
+    a1.grid(alpha=0.3)
+    a1.legend(fontsize=7)
+    c = result.model.curve
+    ideal = result.cuts
+    p = np.linspace(0.5, 99.5, 100)
+    for j, r in enumerate(ideal.to_dict("records")):
+        if r["vol_pct"] <= 1e-9:
+            continue
+        colour = CUT_COLOURS_DARK[j % len(CUT_COLOURS_DARK)]
+        a2.plot(p, np.interp(p, pc["cum"][:, j], edges), color=colour, lw=1.6, label=f"{r['name']} (real column)")
+        va = (r["cum_vol_pct"] - r["vol_pct"]) if np.isnan(r["start_c"]) else float(c.pct_at(r["start_c"]))
+        vb = 100.0 if np.isnan(r["end_c"]) else float(c.pct_at(r["end_c"]))
+        if vb > va:
+            a2.plot(p, c.temp_at(va + p / 100.0 * (vb - va)), color=colour, lw=0.9, ls="--")
+    a2.set_ylim(top=min(float(np.nanmax(edges)), 900.0))
+    a2.set_xlabel("Distilled [vol % of the product]")
+    a2.set_ylabel("TBP [°C]")
+    a2.set_title("Product TBP curves (dashed: ideal cuts)")
+    a2.grid(alpha=0.3)
+    a2.legend(fontsize=6, loc="upper left")
+    fig.suptitle(f"{result.assay.name}: real-column products, TBP 5-95 overlaps "
+                 + ", ".join(f"{n} {w:g} °C" for n, w in result.cut_set.overlaps.items() if w > 0))
+    _save(fig, target)
+    plt.close(fig)
+
+
+BIN_C = 5.0
+"""Temperature bin of the product distribution plot. [°C]"""
+CUT_COLOURS_DARK = ["#546e7a", "#0277bd", "#00838f", "#f9a825", "#ef6c00", "#6d4c41", "#3e2723", "#2e7d32",
+                    "#6a1b9a", "#c62828"]
+"""Line colours of the products, in order (our own palette)."""

@@ -60,7 +60,8 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ())
     """Write the full yield report of one assay into ``outdir``.
 
     Files: ``<crude>_yields.xlsx`` (summary, cuts, curve, curve wt basis, limits, notes), ``<crude>_cuts.csv``,
-    ``<crude>_summary.md``, ``<crude>_tbp.png``, ``<crude>_yields.png``, ``<crude>_properties.png``.
+    ``<crude>_summary.md``, ``<crude>_tbp.png``, ``<crude>_yields.png``, ``<crude>_properties.png``, and with
+    real-column overlaps ``<crude>_products.png``.
 
     Returns
     -------
@@ -81,4 +82,6 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ())
     files[f"{base}_tbp.png"] = png_bytes(plots.plot_tbp, result)
     files[f"{base}_yields.png"] = png_bytes(plots.plot_yields, result)
     files[f"{base}_properties.png"] = png_bytes(plots.plot_properties, result)
+    if result.products is not None:
+        files[f"{base}_products.png"] = png_bytes(plots.plot_products, result)
     return place_files(outdir, files, inputs)
