@@ -672,6 +672,90 @@ def sweep(
     typer.echo(f"Sweep written to {written[0].parent} ({len(written)} files).")
 
 
+@app.command()
+@guarded
+def optimize(
+    assay: Annotated[Optional[str], typer.Argument(help="Assay. Default: the demo.")] = None,
+    maximize: Annotated[Optional[str], typer.Option("--maximize", help="Product (cut name) whose volume yield "
+                                                    "is maximised by moving its two cut points.")] = None,
+    prices: PricesOpt = None,
+    cuts: CutsOpt = None,
+    limits: LimitsOpt = None,
+    span: Annotated[float, typer.Option("--span", help="How far each cut point may move from its starting "
+                                        "value [°C].", min=1.0, max=400.0)] = 60.0,
+    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/.",
+                                                file_okay=False)] = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Find the cut points that maximise a product's yield (--maximize NAME) or the crude's worth
+    (--prices FILE) while every product limit is met.
+
+    With --maximize, the two cut points around the product move (each within --span of where it starts;
+    the other cut points stay); the limits of the product and its two neighbours apply. With --prices, every
+    cut point moves and every limit applies. The search starts from a brute-force grid and refines with
+    scipy's SLSQP; the answer is checked against every limit and never breaks one. Limits the estimates
+    cannot evaluate (n/a) do not constrain, and a limit that can be evaluated at the start must stay so:
+    e.g. the flash estimate is made for cuts starting at 150 °C or above, so a kerosene start is held there.
+    The answer rests on estimated qualities: confirm with the laboratory and your column's real
+    fractionation before moving cut points.
+    """
+    from .crude import build_model
+    from .io.tomlfiles import read_limits, read_prices
+    from .optimize import optimize_cut_points
+    from .yields import run_yields
+
+    cs = load_cut_set(cuts, None)
+    lim = read_limits(str(limits) if limits else None)
+    ps = read_prices(str(prices)) if prices else None
+    path = resolve_assays([assay] if assay else None)[0]
+    a = _load(path, None, None, None, None)
+    model = build_model(a)
+    res = optimize_cut_points(model, cs, lim, maximize=maximize, prices=ps, span_c=span)
+    new_cs = cs.with_ends({c.name: float(e) for c, e in zip(cs.cuts, res.ends_c)}, cs.label + " optimised")
+    before = run_yields(a, cs, lim, model=model)
+    after = run_yields(a, new_cs, lim, model=model)
+    unit = "vol %" if maximize else f"{ps.currency}/bbl"
+    what = f"{maximize} yield" if maximize else "gross product worth"
+    if out is not None or not json_out:
+        from .report.studyreports import plot_optimum
+        from .report.write import place_files, png_bytes, slug
+
+        moved = [f"end of {cs.names[i]}" for i in res.var_index]
+        title = f"{a.name}: maximise {what} inside the product limits (estimates)"
+        files = {f"{slug(a.name)}_optimum.png": png_bytes(plot_optimum, res, moved, title=title,
+                                                           objective_label=f"{what} [{unit}]",
+                                                           before=before.cuts, after=after.cuts)}
+        written = place_files(out or Path("reports") / slug(a.name), files, (path,))
+    if json_out:
+        from .yields import _clean
+
+        typer.echo(json.dumps({
+            "assay": a.name, "objective": what, "unit": unit, "feasible": res.feasible,
+            "start": {"cut_points_c": dict(zip(cs.names, map(float, res.start_ends_c))), "value": res.start_objective},
+            "optimum": {"cut_points_c": dict(zip(cs.names, map(float, res.ends_c))), "value": res.objective},
+            "grid_best": _clean(res.grid_best), "active_limits": res.active,
+            "limits_broken_at_start": res.violated_at_start, "limits_not_evaluated": res.not_evaluated,
+            "cuts": after.to_dict()["cuts"]}, indent=2, ensure_ascii=False))
+        return
+    typer.echo(f"{a.name}: maximise {what}")
+    if not res.feasible:
+        typer.echo("No cut points within the span meet every limit. Limits broken at the start: "
+                   + "; ".join(res.violated_at_start))
+    typer.echo(f"{'cut':<18}{'start °C':>10}{'optimum °C':>12}")
+    for c, s0, s1 in zip(cs.cuts[:-1], res.start_ends_c, res.ends_c):
+        typer.echo(f"{c.name:<18}{s0:10.1f}{s1:12.1f}" + ("  *" if abs(s1 - s0) > 1e-9 else ""))
+    typer.echo(f"{what}: {res.start_objective:.2f} -> {res.objective:.2f} {unit} (brute-force grid best "
+               f"{res.grid_best:.2f})")
+    if res.active:
+        typer.echo("Active limits: " + "; ".join(res.active))
+    if res.violated_at_start:
+        typer.echo("Limits broken at the start: " + "; ".join(res.violated_at_start))
+    if res.not_evaluated:
+        typer.echo("Not evaluated (n/a, not constraining): " + "; ".join(res.not_evaluated))
+    typer.echo("Qualities are estimates; flash points must be measured (ASTM D93).")
+    typer.echo(f"Plot written to {written[0]}")
+
+
 def _points_from_csv(path: str) -> dict[float, float]:
     from .io.csvcurve import read_curve_csv
 

@@ -157,3 +157,36 @@ def shift_text(delta) -> str:
     lines = ["  ".join(str(h).ljust(w) for h, w in zip(head, widths)).rstrip()]
     lines += ["  ".join(str(x).ljust(w) for x, w in zip(row, widths)).rstrip() for row in body]
     return "\n".join(lines)
+
+
+def plot_optimum(res, target, names_moved: list[str], title: str, objective_label: str, before=None,
+                 after=None) -> None:
+    """The optimiser's answer: for two moving cut points, the objective over the brute-force grid with the
+    region breaking a limit greyed out, the start and the optimum marked; otherwise yields before and after."""
+    plt = _plt()
+    g = res.grid
+    if "x" in g:
+        fig, ax = plt.subplots(figsize=(8, 6))
+        obj = g["objective"].reshape(g["shape"])
+        ok = g["feasible"].reshape(g["shape"])
+        cs = ax.contourf(g["x"], g["y"], obj.T, levels=20, cmap="viridis")
+        fig.colorbar(cs, ax=ax, label=objective_label)
+        ax.contourf(g["x"], g["y"], (~ok).T.astype(float), levels=[0.5, 1.5], colors=["#eeeeee"], alpha=0.85)
+        ax.plot(*res.start_ends_c[res.var_index], "o", color="#c62828", ms=9, label="start")
+        ax.plot(*res.ends_c[res.var_index], "*", color="#ffeb3b", mec="black", ms=16, label="optimum")
+        ax.set_xlabel(f"{names_moved[0]} [°C TBP]")
+        ax.set_ylabel(f"{names_moved[1]} [°C TBP]")
+        ax.legend(loc="lower right", fontsize=8)
+        ax.text(0.01, 0.99, "grey: breaks a product limit", transform=ax.transAxes, va="top", fontsize=8)
+    else:
+        fig, ax = plt.subplots(figsize=(9, 5))
+        x = np.arange(len(before))
+        ax.bar(x - 0.2, before["vol_pct"], 0.4, label="start", color="#90a4ae")
+        ax.bar(x + 0.2, after["vol_pct"], 0.4, label="optimum", color="#2e7d32")
+        ax.set_xticks(x, list(before["name"]), rotation=25, ha="right")
+        ax.set_ylabel("Yield [vol % of crude]")
+        ax.legend()
+        ax.grid(axis="y", alpha=0.3)
+    ax.set_title(title)
+    fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
+    plt.close(fig)

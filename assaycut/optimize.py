@@ -1,0 +1,277 @@
+"""Cut-point optimiser: the cut points that maximise a product's yield, or the crude's worth, inside the
+product limits.
+
+* ``maximize=NAME`` moves the two cut points around product NAME (its start and end), each between its
+  fixed neighbouring cut points, and keeps every limit on NAME and its two neighbours.
+* ``prices=...`` moves every cut point (each between its neighbours) to maximise the gross product worth
+  per barrel of crude, keeping every limit.
+
+The search is scipy.optimize.minimize (SLSQP) on the limit margins, started from the best feasible point
+of a coarse vectorised grid; the answer is checked against every limit again and is never returned when it
+breaks one (the best feasible grid point is returned instead).  Limits whose value the estimates cannot
+give (n/a) cannot constrain and are listed.  Pure computation on the crude model.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .crude import D86_STD, CrudeModel
+from .cutting import CutSet, cut_columns
+from .errors import StudyError
+from .limits import _D86, _REC, UNAVAILABLE, Limit
+from .studies import PriceSet
+
+TOL = 1e-6
+"""A limit counts as active when its margin is below this (in the limit's unit), or below 0.5 % of its value."""
+GAP_C = 1.0
+"""Smallest distance kept between neighbouring cut points. [°C]"""
+
+
+@dataclass
+class OptimResult:
+    """Outcome of the optimiser.
+
+    Attributes
+    ----------
+    ends_c : numpy.ndarray
+        Optimised cut points (ends of all but the last cut). [°C]
+    start_ends_c : numpy.ndarray
+        The cut points it started from. [°C]
+    objective, start_objective : float
+        Yield [vol %] of the product, or worth [currency/bbl], at the optimum and at the start.
+    feasible : bool
+        False when no cut points inside the bounds meet every limit (then ends_c is the start).
+    active : list of str
+        Limits at their bound at the optimum.
+    violated_at_start : list of str
+    not_evaluated : list of str
+        Limits the estimates cannot evaluate (n/a): they do not constrain.
+    grid_best : float
+        Best objective on the brute-force grid (a check on the optimiser).
+    variables : list of str
+        Which cut points moved ("end of kerosene"...).
+    grid : dict
+        The brute-force grid (for plots): 'x', 'y' (2-variable cases), 'objective', 'feasible'.
+    """
+
+    ends_c: np.ndarray
+    start_ends_c: np.ndarray
+    objective: float
+    start_objective: float
+    feasible: bool
+    active: list[str] = field(default_factory=list)
+    violated_at_start: list[str] = field(default_factory=list)
+    not_evaluated: list[str] = field(default_factory=list)
+    grid_best: float = math.nan
+    variables: list[str] = field(default_factory=list)
+    grid: dict = field(default_factory=dict)
+    var_index: list[int] = field(default_factory=list)
+    """Indices of the moving cut points in ``ends_c``."""
+
+
+def _limit_values(cols: dict, j: int, prop: str) -> np.ndarray:
+    """Values of ``prop`` for cut j over all candidate rows of cut_columns output (vectorised form of
+    :func:`assaycut.limits.property_value`)."""
+    m = cols["vol_pct"].shape[0]
+    if prop in UNAVAILABLE:
+        return np.full(m, np.nan)
+    d = _D86.match(prop)
+    if d:
+        return cols["d86"][:, j, D86_STD.index(int(d.group(1)))]
+    r = _REC.match(prop)
+    if r:
+        t = float(r.group(1))
+        d86 = cols["d86"][:, j, :]
+        pct = np.array(D86_STD, dtype=float)
+        k = np.clip((d86 <= t).sum(axis=1) - 1, 0, len(D86_STD) - 2)
+        rows = np.arange(m)
+        t0, t1 = d86[rows, k], d86[rows, k + 1]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            frac = np.clip((t - t0) / (t1 - t0), 0.0, 1.0)
+        val = pct[k] + frac * (pct[k + 1] - pct[k])
+        val = np.where(t < d86[:, 0], 0.0, np.where(t > d86[:, -1], 95.0, val))
+        return np.where(np.all(np.isfinite(d86), axis=1), val, np.nan)
+    return np.asarray(cols[prop][:, j], dtype=float)
+
+
+def limit_margins(cols: dict, names: list[str], limits: list[Limit]):
+    """Margins of every limit over candidate cut-point rows: >= 0 means met.
+
+    Returns
+    -------
+    (numpy.ndarray, list of str)
+        Margins (candidates x limits) in each limit's unit, NaN where not evaluable; labels of the limits.
+    """
+    out, labels = [], []
+    for lim in limits:
+        if lim.cut not in names:
+            continue
+        vals = _limit_values(cols, names.index(lim.cut), lim.property)
+        eps = TOL if lim.strict else 0.0
+        m = np.full(vals.shape, np.inf)
+        if lim.min is not None:
+            m = np.minimum(m, vals - lim.min - eps)
+        if lim.max is not None:
+            m = np.minimum(m, lim.max - vals - eps)
+        out.append(np.where(np.isfinite(vals), m, np.nan))
+        labels.append(f"{lim.cut}: {lim.label or lim.property} {lim.bounds_text()}")
+    if not out:
+        return np.zeros((cols["vol_pct"].shape[0], 0)), labels
+    return np.stack(out, axis=1), labels
+
+
+def _objective(cols: dict, names: list[str], maximize: str | None, prices: PriceSet | None) -> np.ndarray:
+    if maximize is not None:
+        return cols["vol_pct"][:, names.index(maximize)]
+    total = np.zeros(cols["vol_pct"].shape[0])
+    for j, n in enumerate(names):
+        p = prices.products.get(n)
+        if p is None:
+            raise StudyError(f"{prices.label}: no price for cut {n!r}")
+        rho = np.nan_to_num(cols["density_15c_kg_m3"][:, j], nan=1000.0)
+        per_bbl = p.value if p.unit == "bbl" else p.value * rho * 0.158987294928 / 1000.0
+        total = total + cols["vol_pct"][:, j] / 100.0 * per_bbl
+    return total
+
+
+def optimize_cut_points(model: CrudeModel, cut_set: CutSet, limits: list[Limit], *, maximize: str | None = None,
+                        prices: PriceSet | None = None, span_c: float = 60.0, grid_points: int = 4000) -> OptimResult:
+    """Find the cut points that maximise a product's yield or the crude's worth inside the limits.
+
+    Parameters
+    ----------
+    model : CrudeModel
+    cut_set : CutSet
+        Starting cut points (no swing cuts).
+    limits : list of Limit
+    maximize : str, optional
+        Name of the product whose volume yield is maximised.
+    prices : PriceSet, optional
+        Maximise worth per barrel instead.
+    span_c : float
+        Each moving cut point stays within this distance of its starting value (the column's practical
+        range). [°C]
+    grid_points : int
+        Size of the brute-force grid that starts the search and checks it.
+
+    Returns
+    -------
+    OptimResult
+    """
+    from scipy.optimize import minimize
+
+    if (maximize is None) == (prices is None):
+        raise StudyError("give one objective: --maximize NAME or --prices FILE")
+    if any(c.swing for c in cut_set.cuts):
+        raise StudyError("the optimiser works on cut sets without swing cuts")
+    names = cut_set.names
+    ends0 = cut_set.ends_c.copy()
+    n = ends0.size
+    lo_curve, hi_curve = model.curve.ibp_c + GAP_C, model.curve.fbp_c - GAP_C
+    if maximize is not None:
+        if maximize not in names:
+            raise StudyError(f"no cut named {maximize!r}; the cuts are {', '.join(repr(x) for x in names)}")
+        k = names.index(maximize)
+        var = [i for i in (k - 1, k) if 0 <= i < n]
+        rel = {names[i] for i in (k - 1, k, k + 1) if 0 <= i < len(names)}
+        lims = [x for x in limits if x.cut in rel]
+    else:
+        var = list(range(n))
+        lims = list(limits)
+    if not (span_c > 0 and math.isfinite(span_c)):
+        raise StudyError(f"the span must be a positive number of °C; got {span_c:g}")
+    labels_all = [f"end of {names[i]}" for i in var]
+    fixed_lo, fixed_hi = [], []
+    for i in var:
+        lo = max([lo_curve] + [b + GAP_C * (i - j) for j, b in zip(range(i), ends0[:i]) if j not in var])
+        hi = min([hi_curve] + [a - GAP_C * (j - i) for j, a in zip(range(i + 1, n), ends0[i + 1:]) if j not in var])
+        fixed_lo.append(max(lo, ends0[i] - span_c))
+        fixed_hi.append(min(hi, ends0[i] + span_c))
+
+    def full(x):
+        e = np.repeat(ends0[None, :], x.shape[0], axis=0)
+        e[:, var] = x
+        return e
+
+    def evaluate(x):
+        cols = cut_columns(model, full(np.atleast_2d(x)))
+        obj = _objective(cols, names, maximize, prices)
+        marg, labs = limit_margins(cols, names, lims)
+        order = np.diff(np.atleast_2d(x), axis=1) - GAP_C if len(var) > 1 else np.zeros((np.atleast_2d(x).shape[0], 0))
+        return obj, marg, labs, order
+
+    obj0, m0, labels, _ = evaluate(ends0[var][None, :])
+    not_eval = [lab for lab, v in zip(labels, m0[0]) if np.isnan(v)]
+    use = [i for i, v in enumerate(m0[0]) if not np.isnan(v)]
+    violated0 = [labels[i] for i in use if m0[0, i] < 0]
+
+    # brute-force grid: full 2-D grid for two variables, else per-variable sweeps around the start
+    if len(var) <= 2:
+        per_axis = max(int(grid_points ** (1.0 / len(var))), 3)
+        axes = [np.linspace(fl, fh, per_axis) for fl, fh in zip(fixed_lo, fixed_hi)]
+        mesh = np.meshgrid(*axes, indexing="ij")
+        cand = np.stack([g.ravel() for g in mesh], axis=1)
+    else:
+        pts = [ends0[var][None, :]]
+        for j, (fl, fh) in enumerate(zip(fixed_lo, fixed_hi)):
+            lo_j = max(fl, ends0[var][j - 1] + GAP_C) if j > 0 else fl
+            hi_j = min(fh, ends0[var][j + 1] - GAP_C) if j + 1 < len(var) else fh
+            vals = np.linspace(lo_j, hi_j, 41)
+            block = np.repeat(ends0[var][None, :], vals.size, axis=0)
+            block[:, j] = vals
+            pts.append(block)
+        cand = np.concatenate(pts)
+    obj_g, marg_g, _, order_g = evaluate(cand)
+    # a limit evaluable at the start that becomes n/a at a candidate (e.g. the flash estimate's range left
+    # behind) counts as broken there: the optimiser must not escape a limit through an estimate's gap
+    ok_g = np.all(np.nan_to_num(marg_g[:, use], nan=-1.0) >= 0, axis=1) & np.all(order_g >= -1e-9, axis=1)
+    grid = {"objective": obj_g, "feasible": ok_g}
+    if len(var) == 2:
+        grid.update(x=axes[0], y=axes[1], shape=mesh[0].shape)
+    if not ok_g.any():
+        return OptimResult(ends0, ends0, float(obj0[0]), float(obj0[0]), False, [], violated0, not_eval, math.nan,
+                           labels_all, grid, var)
+    best_i = int(np.argmax(np.where(ok_g, obj_g, -np.inf)))
+    x_grid = cand[best_i]
+
+    scale = max(abs(float(obj_g[best_i])), 1.0)
+    cache: dict = {}
+
+    def at(x):  # SLSQP asks for the objective and each constraint at the same point: evaluate once
+        key = np.asarray(x, dtype=float).tobytes()
+        if key not in cache:
+            if len(cache) > 256:
+                cache.clear()
+            cache[key] = evaluate(np.asarray(x, dtype=float))
+        return cache[key]
+
+    cons = [{"type": "ineq", "fun": (lambda x, i=i: float(np.nan_to_num(at(x)[1][0, i], nan=-1e3)))}
+            for i in use]
+    if len(var) > 1:
+        cons.append({"type": "ineq", "fun": lambda x: at(x)[3][0]})
+    res = minimize(lambda x: -float(at(x)[0][0]) / scale, x_grid, method="SLSQP",
+                   bounds=list(zip(fixed_lo, fixed_hi)), constraints=cons,
+                   options={"maxiter": 100, "ftol": 1e-10})
+    x_opt = np.clip(res.x, fixed_lo, fixed_hi)
+    # walk from the feasible grid point towards the SLSQP answer and keep the best point meeting every limit
+    # (SLSQP may stop a hair outside an active limit; the answer must never break one)
+    lam = np.linspace(0.0, 1.0, 65)[:, None]
+    line = x_grid[None, :] + lam * (x_opt - x_grid)[None, :]
+    obj_l, marg_l, _, order_l = evaluate(line)
+    ok_l = np.all(np.nan_to_num(marg_l[:, use], nan=-1.0) >= 0, axis=1) & np.all(order_l >= -1e-9, axis=1)
+    j = int(np.argmax(np.where(ok_l, obj_l, -np.inf)))
+    x_opt, obj_o, marg_o = line[j], obj_l[j:j + 1], marg_l[j:j + 1]
+    ends = full(x_opt[None, :])[0]
+    active = [labels[i] for i in use
+              if marg_o[0, i] <= max(TOL, 0.005 * abs(_bound(lims, labels, i)))]
+    return OptimResult(ends, ends0, float(obj_o[0]), float(obj0[0]), True, active, violated0, not_eval,
+                       float(obj_g[best_i]), labels_all, grid, var)
+
+
+def _bound(lims, labels, i) -> float:
+    lim = [x for x in lims if f"{x.cut}: {x.label or x.property} {x.bounds_text()}" == labels[i]][0]
+    return lim.max if lim.max is not None else (lim.min or 0.0)
