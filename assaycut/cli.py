@@ -536,30 +536,74 @@ def _parse_shares(items: list[str]) -> list[tuple[str, float]]:
     return out
 
 
+class BlendObjective(str, enum.Enum):
+    worth = "worth"
+    cost = "cost"
+
+
 @app.command()
 @guarded
 def blend(
-    shares: Annotated[list[str], typer.Argument(help="ASSAY=PERCENT for each crude; the percents add up to 100.",
+    shares: Annotated[list[str], typer.Argument(help="ASSAY=PERCENT for each crude (the percents add up to 100); "
+                                                "with --optimize, ASSAY or ASSAY=MIN:MAX share bounds in %.",
                                                 metavar="ASSAY=PCT")],
-    out: Annotated[Path, typer.Option("--out", help="New assay workbook to write (.xlsx).", dir_okay=False)],
+    out: Annotated[Optional[Path], typer.Option("--out", help="New assay workbook to write (.xlsx).",
+                                                dir_okay=False)] = None,
     basis: Annotated[Basis, typer.Option("--basis", help="Basis of the shares and of the blended curve.")] = Basis.vol,
     name: Annotated[Optional[str], typer.Option("--name", help="Name of the blend.")] = None,
     shrinkage: Annotated[bool, typer.Option("--shrinkage", help="Apply API MPMS 12.3 light-ends shrinkage "
                                             "(off by default).")] = False,
+    optimize_: Annotated[bool, typer.Option("--optimize", help="Find the shares that meet the targets at the "
+                                            "best worth (or lowest crude cost) instead of taking them.")] = False,
+    prices: PricesOpt = None,
+    objective: Annotated[BlendObjective, typer.Option("--objective", help="With --optimize: 'worth' (margin "
+                                                      "when crude prices are given) or 'cost' (cheapest crude "
+                                                      "slate).")] = BlendObjective.worth,
+    api_min: Annotated[Optional[float], typer.Option("--api-min", help="Target: blend API at least [°API].")] = None,
+    api_max: Annotated[Optional[float], typer.Option("--api-max", help="Target: blend API at most [°API].")] = None,
+    sulfur_max: Annotated[Optional[float], typer.Option("--sulfur-max", help="Target: blend sulfur at most "
+                                                        "[wt %].")] = None,
+    min_yield: Annotated[Optional[list[str]], typer.Option("--min-yield", metavar="CUT=PCT",
+                                                           help="Target: a cut's yield at least PCT vol %. "
+                                                                "Repeatable.")] = None,
+    cuts: CutsOpt = None,
 ) -> None:
-    """Blend crudes into a new assay workbook that every command can read.
+    """Blend crudes into a new assay workbook that every command can read, or (--optimize) find the blend.
 
     The blended TBP curve is the share-weighted sum of the parents' cumulative curves on the chosen basis,
     over the range all parents measured. Gravity blends by volume on SG (never by averaging API); sulfur and
     other mass-based properties by weight; viscosity by the Refutas blending number. The new assay's notes
     record its parents and their sha256.
+
+    With --optimize, the shares (volume basis, within each crude's MIN:MAX bounds) are chosen by linear
+    programming to meet the targets (--api-min/--api-max, --sulfur-max, --min-yield) at the best margin or
+    gross worth per barrel, or the lowest crude cost. These linear blending rules ignore shrinkage and
+    operating costs. Where the targets cannot all be met, it says which ones, and by how much, and exits
+    with code 1. A plot of the plan (blend_plan.png) goes beside --out, or to reports/blend/.
     """
     from .blending import blend as do_blend
     from .crude import build_model
     from .io.assaywriter import write_assay_workbook
 
-    if out.suffix.lower() != ".xlsx":
+    if out is not None and out.suffix.lower() != ".xlsx":
         raise AssaycutError(f"{out}: the blend is written as an assay workbook; give a path ending in .xlsx")
+    if optimize_:
+        plan, parents = _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield, cuts,
+                                        out.parent if out is not None else Path("reports") / "blend")
+        if not plan.feasible:
+            raise typer.Exit(1)
+        items = [(p, plan.shares_pct[a.name]) for p, a, _ in parents if plan.shares_pct[a.name] > 1e-6]
+        chosen = [(a, m, plan.shares_pct[a.name]) for _, a, m in parents if plan.shares_pct[a.name] > 1e-6]
+        total = sum(x for _, _, x in chosen)
+        chosen = [(a, m, x * 100.0 / total) for a, m, x in chosen]
+        if out is None:
+            return
+        new = do_blend(chosen, basis="vol", name=name, shrinkage=shrinkage)
+        write_assay_workbook(new, str(out), inputs=tuple(p for p, _ in items))
+        typer.echo(f"Optimal blend written to {out}")
+        return
+    if out is None:
+        raise AssaycutError("give --out NEW.xlsx for the blended assay")
     items = _parse_shares(shares)
     parents = []
     for path, pct in items:
@@ -572,6 +616,51 @@ def blend(
     for n in new.notes:
         typer.echo(f"  {n}")
     typer.echo(f"Assay workbook written to {out}")
+
+
+def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield, cuts, folder: Path):
+    """Run the blend optimiser for the CLI and print (and plot) its plan."""
+    from .blendopt import BlendTargets, optimize_blend
+    from .crude import build_model
+    from .io.tomlfiles import read_prices
+    from .report.studyreports import plot_blend_plan
+    from .report.write import place_files, png_bytes
+    from .yields import run_yields
+
+    cs = load_cut_set(cuts, None)
+    ps = read_prices(str(prices)) if prices else None
+    parents, bounds = [], {}
+    for it in shares:
+        path, sep, rng = it.rpartition("=") if "=" in it else (it, "", "")
+        a = _load(path, None, None, None, None)
+        m = build_model(a)
+        parents.append((path, a, m))
+        if sep:
+            lo, colon, hi = rng.partition(":")
+            try:
+                bounds[a.name] = (float(lo), float(hi)) if colon else (float(lo), float(lo))
+            except ValueError:
+                raise AssaycutError(f"{it!r}: expected ASSAY=MIN:MAX share bounds in %, e.g. crude.xlsx=10:60") from None
+    results = [run_yields(a, cs, None, model=m) for _, a, m in parents]
+    targets = BlendTargets(api_min, api_max, sulfur_max, parse_ends(min_yield, option="--min-yield",
+                                                                    what="a yield in vol %"))
+    plan = optimize_blend(results, bounds, targets, ps, objective.value)
+    head = "Optimal blend" if plan.feasible else "The targets cannot all be met; the closest blend"
+    typer.echo(f"{head} ({plan.objective} {plan.value:.2f}):")
+    for nm, x in plan.shares_pct.items():
+        typer.echo(f"  {nm:<28}{x:7.2f} %")
+    typer.echo(f"  blend API {plan.api:.2f} °API, sulfur {plan.sulfur_wt_pct:.3f} wt %; yields "
+               + ", ".join(f"{k} {v:.1f}" for k, v in plan.yields.items()) + " vol %")
+    if plan.binding:
+        typer.echo("  binding targets: " + "; ".join(plan.binding))
+    for lab, amount in plan.shortfalls.items():
+        unit = "°API" if "API" in lab else ("wt %" if "sulfur" in lab else "vol %")
+        typer.echo(f"  target not met: {lab}, short by {amount:.3f} {unit}")
+    typer.echo("  Linear blending rules (no shrinkage); worth ignores operating costs and unit limits.")
+    written = place_files(folder, {"blend_plan.png": png_bytes(plot_blend_plan, plan)},
+                          tuple(p for p, _, _ in parents))
+    typer.echo(f"  Plot written to {written[0]}")
+    return plan, parents
 
 
 @app.command()

@@ -190,3 +190,26 @@ def plot_optimum(res, target, names_moved: list[str], title: str, objective_labe
     ax.set_title(title)
     fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
     plt.close(fig)
+
+
+def plot_blend_plan(plan, target) -> None:
+    """The blend optimiser's shares, and each target against what the blend achieves."""
+    plt = _plt()
+    fig, (a1, a2) = plt.subplots(1, 2, figsize=(11, 4.5), gridspec_kw={"width_ratios": [1, 1.3]})
+    names = list(plan.shares_pct)
+    a1.barh(names, [plan.shares_pct[n] for n in names], color="#00838f")
+    a1.set_xlabel("Share of the blend [vol %]")
+    a1.set_xlim(0, 100)
+    a1.set_title("Shares")
+    a1.grid(axis="x", alpha=0.3)
+    lines = [f"blend API {plan.api:.2f} °API", f"blend sulfur {plan.sulfur_wt_pct:.3f} wt %"]
+    lines += [f"{k} {v:.1f} vol %" for k, v in plan.yields.items()]
+    lines += [""] + ([f"binding: {b}" for b in plan.binding] or ["no target binding"])
+    lines += [f"NOT MET: {k} (short by {v:.3f})" for k, v in plan.shortfalls.items()]
+    a2.axis("off")
+    a2.text(0.0, 1.0, "\n".join(lines), va="top", family="monospace", fontsize=8,
+            color="#b71c1c" if plan.shortfalls else "black")
+    a2.set_title(f"{plan.objective}: {plan.value:.2f}")
+    fig.suptitle("Blend optimiser (linear blending rules; estimates for screening)")
+    fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
+    plt.close(fig)

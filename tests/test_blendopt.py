@@ -1,0 +1,95 @@
+"""Blend optimiser: feasibility of its answer, agreement with a brute-force search, infeasible targets."""
+
+from __future__ import annotations
+
+import itertools
+
+import numpy as np
+import pytest
+from typer.testing import CliRunner
+
+from assaycut.blendopt import BlendTargets, optimize_blend
+from assaycut.cutting import default_cut_set
+from assaycut.errors import StudyError
+from assaycut.io import load_assay
+from assaycut.io.tomlfiles import demo_assay_paths, read_prices
+from assaycut.studies import worth_table
+from assaycut.yields import run_yields
+
+from .test_optimize import demo_prices
+
+runner = CliRunner()
+
+
+@pytest.fixture(scope="module")
+def results():
+    return [run_yields(load_assay(p), default_cut_set()) for p in demo_assay_paths()]
+
+
+def blend_props(results, v):
+    # Reference sheet §8: SG by volume, sulfur by weight, cut volumes by volume (no shrinkage).
+    sg = np.array([r.assay.sg for r in results])
+    s = np.array([r.model.sulfur_wt_pct for r in results])
+    sg_b = float(v @ sg)
+    api = 141.5 / sg_b - 131.5
+    sulfur = float((v * sg * s).sum() / sg_b)
+    diesel = float(v @ np.array([r.cuts.set_index("name").loc["diesel", "vol_pct"] for r in results]))
+    return api, sulfur, diesel
+
+
+def test_optimal_blend_meets_targets_and_beats_grid(results):
+    prices = read_prices(str(demo_prices()))
+    t = BlendTargets(api_min=28.0, sulfur_max=1.5, min_yield={"diesel": 16.0})
+    bounds = {"Selkie Light": (0.0, 70.0), "Tarn Heavy": (10.0, 100.0)}
+    plan = optimize_blend(results, bounds, t, prices)
+    assert plan.feasible
+    v = np.array([plan.shares_pct[r.assay.name] for r in results]) / 100.0
+    assert v.sum() == pytest.approx(1.0, abs=1e-9)
+    api, sulfur, diesel = blend_props(results, v)
+    assert api >= 28.0 - 1e-6 and sulfur <= 1.5 + 1e-6 and diesel >= 16.0 - 1e-6
+    assert 0.0 <= v[0] <= 0.7 + 1e-9 and v[2] >= 0.1 - 1e-9
+    # brute force over a 1 % grid of shares
+    margin = worth_table(results, prices).set_index("crude").loc[[r.assay.name for r in results], "margin_per_bbl"]
+    best = -np.inf
+    for a, b in itertools.product(range(0, 71), range(0, 101)):
+        c = 100 - a - b
+        if c < 10:
+            continue
+        w = np.array([a, b, c]) / 100.0
+        ap, su, di = blend_props(results, w)
+        if ap >= 28.0 and su <= 1.5 and di >= 16.0:
+            best = max(best, float(w @ margin.to_numpy()))
+    assert plan.value >= best - 1e-9
+    assert plan.value <= best + 0.05  # the LP optimum lies within one grid step of the grid's best
+
+
+def test_infeasible_targets_reported(results):
+    prices = read_prices(str(demo_prices()))
+    plan = optimize_blend(results, {}, BlendTargets(api_min=45.0), prices)
+    assert not plan.feasible
+    (label, short), = plan.shortfalls.items()
+    assert label == "blend API >= 45"
+    # the best one can do is the lightest crude alone: 40.6 °API (invented demo data), 4.4 °API short
+    assert short == pytest.approx(45.0 - results[0].assay.api, abs=1e-3)
+
+
+def test_bounds_errors(results):
+    prices = read_prices(str(demo_prices()))
+    with pytest.raises(StudyError, match="cannot add up to 100 %"):
+        optimize_blend(results, {"Selkie Light": (60, 100), "Tarn Heavy": (50, 100)}, BlendTargets(), prices)
+
+
+def test_cli_blend_optimize(tmp_path):
+    from assaycut.cli import app
+
+    paths = demo_assay_paths()
+    out = tmp_path / "best.xlsx"
+    r = runner.invoke(app, ["blend", "--optimize", paths[0], paths[1], f"{paths[2]}=10:60", "--prices",
+                            str(demo_prices()), "--sulfur-max", "1.2", "--out", str(out)])
+    assert r.exit_code == 0, r.stderr
+    assert out.exists() and (tmp_path / "blend_plan.png").exists()
+    assert load_assay(str(out)).sulfur_wt_pct <= 1.2 + 1e-6
+    r = runner.invoke(app, ["blend", "--optimize", paths[0], paths[2], "--prices", str(demo_prices()),
+                            "--sulfur-max", "0.05", "--out", str(tmp_path / "x.xlsx")])
+    assert r.exit_code == 1
+    assert "target not met: blend sulfur <= 0.05 wt %" in r.stdout
