@@ -27,6 +27,8 @@ class YieldJob:
     report_root: Path | None = None  # None: no per-assay reports
     single_folder: bool = False  # write into report_root itself (one assay with --out)
     inputs: tuple = ()
+    uncertainty_draws: int = 0
+    sigmas: object = None
 
 
 def run_one(path: str, job: YieldJob):
@@ -42,7 +44,8 @@ def run_one(path: str, job: YieldJob):
     try:
         api, sg, density, sulfur = job.gravity
         assay = load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
-        result = run_yields(assay, job.cut_set, job.limits, method=job.method)
+        result = run_yields(assay, job.cut_set, job.limits, method=job.method,
+                            uncertainty_draws=job.uncertainty_draws, sigmas=job.sigmas)
         written = []
         if job.report_root is not None:
             from .report.write import slug, write_yield_report

@@ -113,6 +113,23 @@ DensOpt = Annotated[Optional[float], typer.Option("--density", help="Whole-crude
                                                    "for a curve CSV.")]
 SulfurOpt = Annotated[Optional[float], typer.Option("--sulfur", help="Whole-crude sulfur [wt %], for a curve CSV.")]
 JsonOpt = Annotated[bool, typer.Option("--json", help="Print JSON on stdout.")]
+UncertOpt = Annotated[int, typer.Option("--uncertainty", metavar="DRAWS", min=0, max=5000,
+                                        help="Monte Carlo draws for P10/P50/P90 bands under the assay's measurement "
+                                             "uncertainty (0: off; 200 is a good start).")]
+SigTempOpt = Annotated[float, typer.Option("--sigma-temp", min=0.0, max=50.0, help="1-sigma of each curve "
+                                           "temperature [°C]; default an assumption to confirm.")]
+SigPctOpt = Annotated[float, typer.Option("--sigma-pct", min=0.0, max=10.0, help="1-sigma of each percent "
+                                          "distilled [%]; default an assumption to confirm.")]
+SigSgOpt = Annotated[float, typer.Option("--sigma-sg", min=0.0, max=0.05, help="1-sigma of specific gravity; "
+                                         "default an assumption to confirm.")]
+SigSOpt = Annotated[float, typer.Option("--sigma-sulfur", min=0.0, max=50.0, help="1-sigma of sulfur, in % "
+                                        "of the value; default an assumption to confirm.")]
+
+
+def _sigmas(temp, pct, sg, sulfur_pct):
+    from .uncertainty import Sigmas
+
+    return Sigmas(temp, pct, sg, sulfur_pct / 100.0)
 
 
 def parse_ends(items: list[str] | None, option: str = "--end", what: str = "a temperature in °C") -> dict[str, float]:
@@ -186,7 +203,7 @@ def _root(ctx: typer.Context) -> None:
     if ctx.invoked_subcommand is None:
         ctx.invoke(yields, assays=None, cuts=None, limits=None, out=None, json_out=False, end=None,
                    api=None, sg=None, density=None, sulfur=None, method=TdMethod.daubert_1994, summary_only=False,
-                   overlap=None)
+                   overlap=None, uncertainty=0, sigma_temp=2.0, sigma_pct=0.3, sigma_sg=0.0005, sigma_sulfur=3.0)
 
 
 @app.command()
@@ -214,6 +231,11 @@ def yields(
         help="Real-column products: the TBP 5-95 overlap at the end of cut NAME, in °C (0 = ideal cut). The "
              "heavy tail of one product then reaches into the next; yields, D86, flash and limit checks use "
              "the products' own curves. Repeatable; also `overlap_c` in the cut file.")] = None,
+    uncertainty: UncertOpt = 0,
+    sigma_temp: SigTempOpt = 2.0,
+    sigma_pct: SigPctOpt = 0.3,
+    sigma_sg: SigSgOpt = 0.0005,
+    sigma_sulfur: SigSOpt = 3.0,
 ) -> None:
     """Cut assays at the cut points and report yields and qualities per cut (the main job).
 
@@ -235,7 +257,8 @@ def yields(
     write = out is not None or not json_out
     root = (out or Path("reports")) if write and not summary_only else None
     job = YieldJob(cs, lim, method.value, (api, sg, density, sulfur), root,
-                   single_folder=out is not None and len(paths) == 1, inputs=inputs)
+                   single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
+                   sigmas=_sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur))
     results, written, failures = run_batch(paths, job)
     if len(paths) == 1 and failures:
         raise AssaycutError(failures[0][1])
@@ -469,6 +492,7 @@ def compare(
     out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/compare/.",
                                                 file_okay=False)] = None,
     end: EndOpt = None,
+    uncertainty: UncertOpt = 0,
 ) -> None:
     """Compare crudes for crude selection: every assay cut with the same cut set, side by side.
 
@@ -486,9 +510,10 @@ def compare(
     cs = load_cut_set(cuts, end)
     lim = read_limits(str(limits) if limits else None)
     ps = read_prices(str(prices)) if prices else None
-    results = [run_yields(_load(p, None, None, None, None), cs, lim) for p in paths]
+    results = [run_yields(_load(p, None, None, None, None), cs, lim, uncertainty_draws=uncertainty) for p in paths]
     table = comparison_table(results)
     worth = worth_table(results, ps) if ps else None
+    inside = _inside_bands(results) if uncertainty else []
     if out is not None or not json_out:
         from .report.studyreports import compare_workbook, plot_compare
         from .report.write import place_files, png_bytes
@@ -504,6 +529,7 @@ def compare(
         typer.echo(json.dumps({"assays": [r.to_dict() for r in results],
                                "worth": [{k: _clean(v) for k, v in r.items()} for r in worth.to_dict("records")]
                                if worth is not None else [],
+                               "inside_bands": [{"cut": c, "crudes": [a, b]} for c, a, b in inside],
                                "notes": [WORTH_CAVEAT] if worth is not None else []}, indent=2, ensure_ascii=False))
         return
     from .report.studyreports import compare_wide
@@ -520,7 +546,26 @@ def compare(
             m = r["margin_per_bbl"]
             typer.echo(f"  {r['rank']}. {r['crude']:<24} worth {r['worth_per_bbl']:8.2f}/bbl {r['worth_per_t']:8.2f}/t"
                        + (f"   margin {m:+7.2f}/bbl {r['margin_per_t']:+7.2f}/t" if m == m else "   (no crude price)"))
+    if uncertainty:
+        typer.echo("\nYield differences inside the P10-P90 bands (not significant under the assumed measurement "
+                   "uncertainty):")
+        for c, a, b in inside:
+            typer.echo(f"  {c}: {a} ~ {b}")
+        if not inside:
+            typer.echo("  none")
     typer.echo(f"Report written to {written[0].parent} ({len(written)} files).")
+
+
+def _inside_bands(results) -> list[tuple[str, str, str]]:
+    """(cut, crude, crude) where two crudes' volume-yield P10-P90 bands overlap."""
+    from .uncertainty import overlapping
+
+    out = []
+    for j, cut in enumerate(results[0].cuts["name"]):
+        bands = {r.assay.name: (float(r.bands["vol_pct_p10"].iloc[j]), float(r.bands["vol_pct_p90"].iloc[j]))
+                 for r in results}
+        out += [(cut, a, b) for a, b in overlapping(bands)]
+    return out
 
 
 def _parse_shares(items: list[str]) -> list[tuple[str, float]]:

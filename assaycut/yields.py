@@ -60,6 +60,8 @@ class YieldResult:
     methods: dict[str, str] = field(default_factory=dict)
     products: dict | None = None
     """Product curves of a real column (see :func:`assaycut.fractionation.fractionate`); None for ideal cuts."""
+    bands: object = None
+    """P10/P50/P90 per cut under the measurement uncertainty (see :mod:`assaycut.uncertainty`), or None."""
 
     def to_dict(self) -> dict:
         """The JSON object of one assay's yields (field names are part of the interface)."""
@@ -79,6 +81,9 @@ class YieldResult:
             "notes": list(self.notes),
             "methods": dict(self.methods),
             "version": __version__,
+            **({"uncertainty": {"draws": self.bands.attrs["draws"], "sigmas": self.bands.attrs["sigmas"],
+                                "cuts": [{k: _clean(v) for k, v in r.items()} for r in self.bands.to_dict("records")]}}
+               if self.bands is not None else {}),
         }
 
 
@@ -108,7 +113,8 @@ METHOD_NOTES = {
 
 
 def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
-               method: str = "daubert-1994", model: CrudeModel | None = None) -> YieldResult:
+               method: str = "daubert-1994", model: CrudeModel | None = None, uncertainty_draws: int = 0,
+               sigmas=None) -> YieldResult:
     """Model, cut and check one assay.
 
     Parameters
@@ -120,6 +126,10 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         TBP <-> D86 method for D86 input curves.
     model : CrudeModel, optional
         A model already built for this assay (saves rebuilding it in studies).
+    uncertainty_draws : int
+        Monte Carlo draws for P10/P50/P90 bands (0: none).
+    sigmas : Sigmas, optional
+        Measurement standard deviations for the bands (assumed defaults when None).
 
     Returns
     -------
@@ -160,4 +170,11 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
                     if model.sulfur_reconciliation_pct is not None else ""))
     notes.append(f"closure residual: vol {clo['vol_pct']:+.2e} %, wt {clo['wt_pct']:+.2e} %")
     notes += [f"assay note: {n}" for n in assay.notes]
-    return YieldResult(assay, model, cut_set, cuts, lim, clo, warnings, notes, methods, products)
+    bands = None
+    if uncertainty_draws:
+        from .uncertainty import Sigmas, monte_carlo
+
+        bands = monte_carlo(assay, cut_set, sigmas or Sigmas(), uncertainty_draws, method=method)
+        methods["uncertainty"] = (f"Monte Carlo over the curve model, {bands.attrs['draws']} draws "
+                                  f"({bands.attrs['failed']} failed); ideal cuts; {bands.attrs['sigmas']}")
+    return YieldResult(assay, model, cut_set, cuts, lim, clo, warnings, notes, methods, products, bands)

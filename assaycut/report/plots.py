@@ -68,15 +68,23 @@ def plot_yields(result, target) -> None:
     cuts = result.cuts
     x = np.arange(len(cuts))
     fig, ax = plt.subplots(figsize=(9, 4.8))
-    b1 = ax.bar(x - 0.2, cuts["vol_pct"], 0.4, label="vol %", color="#3949ab")
-    b2 = ax.bar(x + 0.2, cuts["wt_pct"], 0.4, label="wt %", color="#ef6c00")
-    for bars in (b1, b2):
-        for rect in bars:
-            ax.text(rect.get_x() + rect.get_width() / 2, rect.get_height(), f"{rect.get_height():.1f}",
+    err_v = err_w = None
+    if result.bands is not None:  # P10-P90 bands as error bars
+        b = result.bands
+        err_v = np.abs(np.vstack([cuts["vol_pct"] - b["vol_pct_p10"], b["vol_pct_p90"] - cuts["vol_pct"]]))
+        err_w = np.abs(np.vstack([cuts["wt_pct"] - b["wt_pct_p10"], b["wt_pct_p90"] - cuts["wt_pct"]]))
+    b1 = ax.bar(x - 0.2, cuts["vol_pct"], 0.4, label="vol %", color="#3949ab", yerr=err_v, capsize=3)
+    b2 = ax.bar(x + 0.2, cuts["wt_pct"], 0.4, label="wt %", color="#ef6c00", yerr=err_w, capsize=3)
+    for bars, err in ((b1, err_v), (b2, err_w)):
+        for i, rect in enumerate(bars):
+            top = rect.get_height() + (float(np.nan_to_num(err[1][i])) if err is not None else 0.0)
+            ax.text(rect.get_x() + rect.get_width() / 2, top, f"{rect.get_height():.1f}",
                     ha="center", va="bottom", fontsize=7)
     ax.set_xticks(x, [str(n) for n in cuts["name"]], rotation=25, ha="right")
     ax.set_ylabel("Yield [% of crude]")
-    ax.set_title(f"{result.assay.name}: yields by cut")
+    ax.set_title(f"{result.assay.name}: yields by cut"
+                 + (f" (bars: P10-P90 of {result.bands.attrs['draws']} draws, assumed uncertainties)"
+                    if result.bands is not None else ""), fontsize=10)
     ax.legend()
     ax.grid(axis="y", alpha=0.3)
     _save(fig, target)

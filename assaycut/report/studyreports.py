@@ -55,6 +55,15 @@ def compare_workbook(results, table, worth, currency: str | None):
                  f"Crude price [{cur}/t]", f"Margin [{cur}/bbl]", f"Margin [{cur}/t]"]
         write_table(ws, heads, worth.values.tolist(), [None, None] + ["0.00"] * 6, widths=[6, 22] + [16] * 6)
         ws.cell(row=len(worth) + 3, column=1, value=WORTH_CAVEAT)
+    if results and results[0].bands is not None:
+        ws = wb.create_sheet("uncertainty")
+        rows = []
+        for r in results:
+            for b in r.bands.to_dict("records"):
+                rows.append([b["name"], r.assay.name, b["vol_pct_p10"], b["vol_pct_p50"], b["vol_pct_p90"]])
+        write_table(ws, ["Cut", "Crude", "Yield P10 [vol %]", "Yield P50 [vol %]", "Yield P90 [vol %]"], rows,
+                    [None, None, "0.00", "0.00", "0.00"], widths=[20, 20, 16, 16, 16])
+        ws.cell(row=len(rows) + 3, column=1, value=results[0].bands.attrs["sigmas"])
     ws = wb.create_sheet("crudes")
     write_table(ws, ["Crude", "Source", "sha256", "API gravity [°API]", "Sulfur [wt %]", "Measured to [vol %]"],
                 [[r.assay.name, r.assay.source, r.assay.sha256, r.assay.api, r.model.sulfur_wt_pct,

@@ -143,6 +143,21 @@ def yield_workbook(result):
         if c.value in colors:
             c.fill = PatternFill("solid", fgColor=colors[c.value])
 
+    if result.bands is not None:
+        from ..uncertainty import BAND_QUALITIES
+
+        ws = wb.create_sheet("uncertainty")
+        heads, keys, fmts = ["Cut"], ["name"], [None]
+        for q in BAND_QUALITIES:
+            for pct in (10, 50, 90):
+                heads.append(f"{LABELS[q]} P{pct}")
+                keys.append(f"{q}_p{pct}")
+                fmts.append(_fmt_for(q) or "0.00")
+        write_table(ws, heads, [[r[k] for k in keys] for r in result.bands.to_dict("records")], fmts)
+        ws.column_dimensions["A"].width = 20
+        ws.cell(row=len(result.bands) + 3, column=1,
+                value=safe_text(f"{result.bands.attrs['draws']} Monte Carlo draws; {result.bands.attrs['sigmas']}"))
+
     ws = wb.create_sheet("notes")
     notes = [("Caution" if n in CAUTIONS else "Note", n) for n in result.notes] + [("Warning", w) for w in result.warnings]
     notes += [(f"Method: {k}", v) for k, v in result.methods.items()]

@@ -1,0 +1,61 @@
+"""Uncertainty bands: zero uncertainty gives the deterministic answer; bands are ordered and widen with
+the assumed uncertainty; the CLI reports them."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+from typer.testing import CliRunner
+
+from assaycut.cutting import cut_table, default_cut_set
+from assaycut.crude import build_model
+from assaycut.io import load_assay
+from assaycut.io.tomlfiles import demo_assay_paths
+from assaycut.uncertainty import Sigmas, monte_carlo
+
+runner = CliRunner()
+
+
+@pytest.fixture(scope="module")
+def assay():
+    return load_assay(demo_assay_paths()[1])
+
+
+def test_zero_uncertainty_is_deterministic(assay):
+    # Identity: with every sigma zero each draw is the assay itself, so P10 = P50 = P90 = the plain result.
+    bands = monte_carlo(assay, default_cut_set(), Sigmas(0.0, 0.0, 0.0, 0.0), n=20)
+    plain = cut_table(build_model(assay), default_cut_set())
+    for q in ("vol_pct", "wt_pct", "sg", "sulfur_wt_pct"):
+        for p in (10, 50, 90):
+            np.testing.assert_allclose(bands[f"{q}_p{p}"], plain[q], atol=1e-4, err_msg=q)
+
+
+def test_bands_ordered_and_widen(assay):
+    small = monte_carlo(assay, default_cut_set(), Sigmas(1.0, 0.1, 0.0002, 0.01), n=60)
+    big = monte_carlo(assay, default_cut_set(), Sigmas(4.0, 0.6, 0.002, 0.06), n=60)
+    for df in (small, big):
+        assert (df["vol_pct_p10"] <= df["vol_pct_p50"] + 1e-12).all()
+        assert (df["vol_pct_p50"] <= df["vol_pct_p90"] + 1e-12).all()
+    width = lambda d: (d["vol_pct_p90"] - d["vol_pct_p10"]).sum()  # noqa: E731
+    assert width(big) > width(small)
+    again = monte_carlo(assay, default_cut_set(), Sigmas(1.0, 0.1, 0.0002, 0.01), n=60)
+    assert again.equals(small)  # same seed, same bands
+
+
+def test_cli_uncertainty(tmp_path, demo_paths):
+    from assaycut.cli import app
+
+    r = runner.invoke(app, ["yields", "--uncertainty", "40", "--json"])
+    assert r.exit_code == 0, r.stderr
+    d = json.loads(r.stdout)
+    assert d["uncertainty"]["draws"] == 40 and "assumptions" in d["uncertainty"]["sigmas"]
+    assert {"name", "vol_pct_p10", "vol_pct_p90"} <= set(d["uncertainty"]["cuts"][0])
+    r = runner.invoke(app, ["compare", *demo_paths, "--uncertainty", "30", "--json", "--out", str(tmp_path)])
+    assert r.exit_code == 0, r.stderr
+    d = json.loads(r.stdout)
+    assert isinstance(d["inside_bands"], list)
+    import openpyxl
+
+    assert "uncertainty" in openpyxl.load_workbook(tmp_path / "comparison.xlsx").sheetnames
