@@ -13,7 +13,7 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from assaycut.assay import Assay, CurveData, NarrowCuts
+from assaycut.assay import Assay, CurveData
 from assaycut.crude import build_model
 from assaycut.cutting import Cut, CutSet, cut_table, default_cut_set
 from assaycut.errors import AssaycutError

@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import json
 
-import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 from typer.testing import CliRunner

@@ -85,3 +85,32 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ())
     if result.products is not None:
         files[f"{base}_products.png"] = png_bytes(plots.plot_products, result)
     return place_files(outdir, files, inputs)
+
+
+def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
+    """Library summary (xlsx and CSV), one row per assay."""
+    from ..library import library_summary
+    from .xlsx import write_table
+
+    df = library_summary([r.assay for r in results], [r.model for r in results], cs)
+    import openpyxl
+
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "library"
+    heads = [{"crude": "Crude", "source": "Source file", "sha256": "sha256", "api": "API gravity [°API]",
+              "sulfur_wt_pct": "Sulfur [wt %]", "extrapolated_cuts": "Cuts using the extension"}.get(c, c)
+             for c in df.columns]
+    fmts = [None, None, None, "0.0", "0.000"] + ["0.00"] * (len(df.columns) - 6) + [None]
+    write_table(ws, heads, df.values.tolist(), fmts, widths=[22, 40, 20] + [12] * (len(df.columns) - 3))
+    ws.freeze_panes = "B2"
+    ws2 = wb.create_sheet("notes")
+    from ..yields import CAUTIONS
+
+    write_table(ws2, ["Topic", "Text"], [["Caution", c] for c in CAUTIONS]
+                + [["Cut set", cs.label], ["Assays", str(len(df))]], widths=[20, 120])
+    buf = io.BytesIO()
+    wb.save(buf)
+    files = {"library_summary.xlsx": buf.getvalue(),
+             "library_summary.csv": csv_text(heads, df.values.tolist()).encode("utf-8")}
+    return place_files(folder, files, tuple(inputs))
