@@ -17,6 +17,10 @@ from .curve import DistCurve
 from .spline import Pchip, hermite_solve, interval_mean
 
 
+CHUNK = 1024
+"""Crudes cut together in one pass; a library is cut chunk by chunk."""
+
+
 class BatchPchip:
     """Many monotone cubic Hermite interpolants evaluated row-wise (row r of a query uses spline r).
 
@@ -175,8 +179,13 @@ def cut_library(models: list[CrudeModel], cut_set: CutSet) -> tuple[list[str], d
         ('d86': (crudes, cuts, 7)).
     """
     names, ends = cut_set.reported()
-    batch = BatchModel(models)
-    return names, cut_columns(batch, np.repeat(ends[None, :], len(models), axis=0))
+    parts = []
+    for i in range(0, len(models), CHUNK):  # fixed-size chunks: time linear in the library, memory bounded
+        chunk = models[i:i + CHUNK]
+        parts.append(cut_columns(BatchModel(chunk), np.repeat(ends[None, :], len(chunk), axis=0)))
+    if len(parts) == 1:
+        return names, parts[0]
+    return names, {k: np.concatenate([p[k] for p in parts], axis=0) for k in parts[0]}
 
 
 SUMMARY_QUALITIES = [("vol_pct", "vol %"), ("wt_pct", "wt %"), ("api", "API"), ("sulfur_wt_pct", "S wt %"),
