@@ -15,6 +15,7 @@ from assaycut.io import load_assay
 
 from .bombs import entity_bomb
 from .conftest import sha256
+from .corpus import _set as set_cell
 
 runner = CliRunner()
 
@@ -100,14 +101,6 @@ def test_bad_workbook_cases_through_the_library(tmp_path, name, build, match):
         build_model(load_assay(args[1]))
     if inputs:
         assert sha256(args[1]) == before
-
-
-def set_cell(sheet, row, col, value):
-    def mutate(s):
-        r = s[sheet][row]
-        r.extend([None] * (col + 1 - len(r)))
-        r[col] = value
-    return mutate
 
 
 def test_date_where_number_belongs(book):
