@@ -205,3 +205,21 @@ def test_price_file_errors(tmp_path, demo_paths):
     p.write_text('[products]\n"diesel" = 90.0\n')
     cli_error(["compare", *demo_paths[:2], "--prices", str(p)], r"give the unit")
     cli_error(["compare", demo_paths[0]], r"compare needs at least two assays")
+
+
+def test_compare_workbook_cells_are_numbers(tmp_path, demo_paths):
+    import openpyxl
+
+    from assaycut.cli import app
+
+    r = runner.invoke(app, ["compare", *demo_paths, "--prices", str(demo_prices_path()), "--out", str(tmp_path)])
+    assert r.exit_code == 0, r.stderr
+    ws = openpyxl.load_workbook(tmp_path / "comparison.xlsx")["worth"]
+    assert [ws.cell(row=i, column=1).value for i in (2, 3, 4)] == [1, 2, 3]
+    assert all(isinstance(ws.cell(row=i, column=3).value, float) for i in (2, 3, 4))
+
+
+def demo_prices_path():
+    from pathlib import Path
+
+    return Path(__file__).resolve().parent.parent / "assays_demo" / "prices_demo.toml"

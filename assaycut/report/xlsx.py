@@ -21,7 +21,7 @@ def _cell(v):
         return None
     if isinstance(v, (np.bool_, bool)):
         return "yes" if bool(v) else "no"
-    if isinstance(v, (np.integer,)):
+    if isinstance(v, (int, np.integer)):
         return int(v)
     if isinstance(v, (float, np.floating)):
         return None if not math.isfinite(float(v)) else float(v)
