@@ -95,7 +95,7 @@ def check_monotone(points: Mapping[float, float], label: str) -> list[str]:
     return out
 
 
-def _chain(anchor: float, known: Mapping[float, float], segments, func, direction: str):
+def _chain(anchor: float, known: Mapping[float, float], segments, func):
     """Build a curve out from the 50 % point segment by segment (Daubert-type methods), °F."""
     out = {50: anchor}
     ups = sorted([s for s in segments if s[0] >= 50], key=lambda s: s[0])
@@ -166,7 +166,7 @@ def daubert_1994(d86: Mapping[float, float]) -> dict[float, float]:
     if f[50] <= 0:
         raise ConversionError(f"Daubert 1994 needs a D86 50 % point above 0 °F (-17.8 °C); got {d[50]:.1f} °C")
     anchor = D94_50[0] * f[50] ** D94_50[1]
-    out = _chain(anchor, f, D94_SEGMENTS, _power, "fwd")
+    out = _chain(anchor, f, D94_SEGMENTS, _power)
     return {k: _f_to_c(v) for k, v in sorted(out.items())}
 
 
@@ -200,7 +200,7 @@ def daubert_1994_inverse(tbp: Mapping[float, float]) -> dict[float, float]:
     if f[50] <= 0:
         raise ConversionError(f"Daubert 1994 needs a TBP 50 % point above 0 °F (-17.8 °C); got {t[50]:.1f} °C")
     anchor = (f[50] / D94_50[0]) ** (1.0 / D94_50[1])
-    out = _chain(anchor, f, D94_SEGMENTS, _power_inv, "inv")
+    out = _chain(anchor, f, D94_SEGMENTS, _power_inv)
     return {k: _f_to_c(v) for k, v in sorted(out.items())}
 
 
@@ -313,7 +313,7 @@ def api_tdb_3a3_1(d2887: Mapping[float, float]) -> dict[float, float]:
     s = _norm(d2887)
     _need(s, [50], "API TDB 3A3.1 D2887 -> TBP")
     f = {k: _c_to_f(v) for k, v in s.items()}
-    out = _chain(f[50], f, SD_TBP_SEGMENTS, _power, "fwd")
+    out = _chain(f[50], f, SD_TBP_SEGMENTS, _power)
     return {k: _f_to_c(v) for k, v in sorted(out.items())}
 
 
@@ -350,7 +350,7 @@ def api_tdb_3a3_2(d2887: Mapping[float, float]) -> dict[float, float]:
     if f[50] <= 0:
         raise ConversionError(f"API TDB 3A3.2 needs a D2887 50 % point above 0 °F; got {s[50]:.1f} °C")
     anchor = SD_D86_50[0] * f[50] ** SD_D86_50[1]
-    out = _chain(anchor, f, SD_D86_SEGMENTS, _power, "fwd")
+    out = _chain(anchor, f, SD_D86_SEGMENTS, _power)
     return {k: _f_to_c(v) for k, v in sorted(out.items())}
 
 

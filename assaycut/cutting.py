@@ -185,15 +185,6 @@ def d86_from_tbp_slices(tbp: np.ndarray) -> np.ndarray:
     return (out - 32.0) / 1.8
 
 
-def cut_boundaries(model: CrudeModel, cut_set: CutSet):
-    """Start and end TBP [°C] and vol % of every cut; the first starts at 0 %, the last ends at 100 %."""
-    ends = cut_set.ends_c
-    v_pts = np.concatenate([[0.0], np.asarray(model.curve.pct_at(ends), float), [100.0]])
-    t_start = np.concatenate([[np.nan], ends])
-    t_end = np.concatenate([ends, [np.nan]])
-    return t_start, t_end, v_pts[:-1], v_pts[1:]
-
-
 def cut_table(model: CrudeModel, cut_set: CutSet):
     """Cut the crude model: one row per cut with yields and qualities (see the module docstring).
 

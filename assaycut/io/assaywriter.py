@@ -82,8 +82,6 @@ def _build(assay: Assay | None):
     elif assay is None:
         for k in ("C1", "C2", "C3", "iC4", "nC4", "iC5", "nC5"):
             ws.append([k, None])
-    for w in wb.worksheets:
-        w.freeze_panes = None
     return wb
 
 

@@ -45,7 +45,6 @@ SHEET_LIGHT = "light ends"
 METHODS = ("TBP", "D86", "D2887", "D1160")
 TEMP_COLUMNS = {"temp_c": "C", "temp_f": "F", "temp_k": "K"}
 PCT_COLUMNS = {"vol_pct": "vol", "wt_pct": "wt"}
-CRUDE_FIELDS = {"name", "origin", "api_gravity", "sg_60f", "density_15c_kg_m3", "sulfur_wt_pct", "notes"}
 UNIT_SUFFIX = re.compile(r"^[a-z][a-z0-9_]*_(c|f|k|pct|wt_pct|cst|cp|mg_koh_g|kg_m3|ppm|ppm_wt|mg_kg|kpa|psi|"
                          r"g_ml|bar|mmhg|api|sg|degc|degf)$")
 MAX_ROWS = 100_000
