@@ -30,6 +30,8 @@ from .spline import Pchip, interval_mean, pchip_slopes
 D86_STD = (0, 10, 30, 50, 70, 90, 95)
 """Standard ASTM D86 points of the TBP <-> D86 correlations. [vol %]"""
 SD_STD = (0, 10, 30, 50, 70, 90, 95, 100)
+METHANE_NBP_C = -161.5
+"""Normal boiling point of methane, the lightest hydrocarbon: no converted TBP may lie below it. [°C]"""
 """Standard ASTM D2887 points of API TDB 3A3.1. [wt %]"""
 
 
@@ -144,6 +146,19 @@ def to_tbp(curve: CurveData, method: str = "daubert-1994") -> tuple[np.ndarray, 
     else:
         raise CurveError(f"{curve.where}: unknown distillation method {curve.method!r}")
     warnings += [f"{curve.where}: {m}" for m in w]
+    low = min(out.values())
+    if low < METHANE_NBP_C:
+        raise CurveError(f"{curve.where}: the {desc} conversion gives {low:.0f} °C, below the boiling point of "
+                         f"methane: the correlation does not apply to this curve (it is meant for petroleum "
+                         f"fractions, whose segments are narrow). For a whole-crude simulated distillation, give "
+                         f"the curve as method TBP on the wt basis (common practice)")
+    ks = sorted(out)
+    src = dict(pts)
+    for lo, hi in zip(ks, ks[1:]):
+        d_in, d_out = src[hi] - src[lo], out[hi] - out[lo]
+        if d_in > 0 and not 0.5 <= d_out / d_in <= 2.0:
+            warnings.append(f"{curve.where}: {desc} changes the {lo:g}-{hi:g} % segment from {d_in:.0f} to "
+                            f"{d_out:.0f} °C; the curve is probably outside the correlation's range")
     if len(out) < 2:
         raise CurveError(f"{curve.where}: the {curve.method} curve covers too few standard points "
                          f"({', '.join(f'{k:g} %' for k in pts)}) to convert to TBP")
@@ -235,12 +250,20 @@ def build_model(assay: Assay, method: str = "daubert-1994") -> CrudeModel:
         t = np.concatenate([t, te[keep]])
         methods["vacuum curve"] = de
     if basis == "wt":
+        w_last = float(p[-1])
         p = _wt_to_vol(p, t, assay)
         methods["basis"] = ("weight-basis curve converted to volume with narrow-cut SG (constant Watson K "
                             "between them); approximate")
-        if p[-1] > 100.0 + 1e-6:
-            raise CurveError(f"the weight-basis curve converts to {p[-1]:.1f} vol %, above 100 %: the crude "
-                             f"gravity and the cut densities disagree")
+        if abs(w_last - 100.0) < 1e-9 and abs(p[-1] - 100.0) > 1e-9:
+            factor = 100.0 / p[-1]
+            if abs(factor - 1.0) > 0.02:
+                warnings.append(f"the weight-basis curve converts to {p[-1]:.1f} vol % at 100 wt %: the cut "
+                                f"densities and the crude gravity disagree by {abs(factor - 1) * 100:.1f} %; the "
+                                f"volume percents are scaled to close at 100 %")
+            p = p * factor
+        elif p[-1] > 100.0 + 1e-6:
+            raise CurveError(f"the weight-basis curve converts to {p[-1]:.1f} vol % at {w_last:g} wt %, above "
+                             f"100 %: the crude gravity and the cut densities disagree")
     le_t, le_v, le_mids = _light_ends_nodes(assay, float(t[0]))
     curve = build_curve(p, t, front_t=le_t, front_v=le_v)
     warnings += curve.warnings

@@ -212,3 +212,41 @@ def test_csv_yields_run(tmp_path):
 def test_library_errors_are_value_errors():
     # One base class whose instances are also ValueErrors (style guide).
     assert issubclass(InputError, AssaycutError) and issubclass(InputError, ValueError)
+
+
+def _curve_book(book, method, basis, points):
+    def mutate(s):
+        s["distillation"] = [["x"], ["method", method], ["pressure_mmhg", None], [], [f"{basis}_pct", "temp_c"]] + \
+            [[p, t] for p, t in points]
+    return book(mutate)
+
+
+def test_weight_basis_tbp_curve_converted_and_closed(book):
+    from assaycut.crude import build_model
+    from assaycut.cutting import cut_table, default_cut_set
+
+    pts = [(0, 20), (10, 90), (30, 180), (50, 290), (70, 410), (90, 560), (95, 620), (100, 700)]
+    m = build_model(load_assay(str(_curve_book(book, "TBP", "wt", pts))))
+    df = cut_table(m, default_cut_set())
+    assert df["vol_pct"].sum() == pytest.approx(100.0, abs=1e-9)
+    assert df["wt_pct"].sum() == pytest.approx(100.0, abs=1e-9)
+    assert "weight-basis curve" in m.methods["basis"]
+
+
+def test_whole_crude_simdis_as_d2887_refused_clearly(book):
+    # API TDB 3A3.1 is a correlation for petroleum fractions: on a whole crude's wide segments it gives
+    # temperatures below methane's boiling point (-161.5 °C, chemicals library), which must be refused.
+    pts = [(0, 20), (10, 90), (30, 180), (50, 290), (70, 410), (90, 560), (95, 620), (100, 700)]
+    path = _curve_book(book, "D2887", "wt", pts)
+    cli_error(["yields", str(path)], r"below the boiling point of methane: the correlation does not apply")
+
+
+def test_d2887_fraction_converts(book):
+    # A diesel-range simulated distillation: the TBP 50 % point equals the D2887 50 % point (API TDB 3A3.1).
+    from assaycut.crude import to_tbp
+
+    pts = [(0, 180), (10, 215), (30, 245), (50, 270), (70, 295), (90, 330), (95, 345), (100, 370)]
+    a = load_assay(str(_curve_book(book, "D2887", "wt", pts)))
+    p, t, warnings, desc = to_tbp(a.curves[0])
+    assert dict(zip(p, t))[50] == pytest.approx(270.0, abs=1e-9)
+    assert "3A3.1" in desc
