@@ -250,3 +250,16 @@ def test_d2887_fraction_converts(book):
     p, t, warnings, desc = to_tbp(a.curves[0])
     assert dict(zip(p, t))[50] == pytest.approx(270.0, abs=1e-9)
     assert "3A3.1" in desc
+
+
+@pytest.mark.parametrize("method", ["daubert-1994", "riazi-daubert-1986"])
+def test_d86_curve_converted_by_chosen_method(book, method):
+    import json
+
+    pts = [(0, 40), (10, 95), (30, 170), (50, 250), (70, 320), (90, 370), (95, 385)]
+    path = _curve_book(book, "D86", "vol", pts)
+    r = runner.invoke(app, ["yields", str(path), "--json", "--method", method])
+    assert r.exit_code == 0, r.stderr
+    d = json.loads(r.stdout)
+    assert d["methods"]["curve"] == f"D86 to TBP by {method}"
+    assert sum(c["vol_pct"] for c in d["cuts"]) == pytest.approx(100.0, abs=1e-9)
