@@ -254,10 +254,28 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> DistCurve:
                             f"treated as a step {STEP_C} °C wide")
         t = t + np.concatenate([[0.0], np.cumsum(rep * STEP_C)])
     measured_lo, measured_hi = float(v[0]), float(v[-1])
+    # light ends: placed in front of the first measured point when they fit there
+    le_t = le_v = None
+    if front_t is not None and len(front_t) > 0:
+        ft, fv = np.asarray(front_t, float), np.asarray(front_v, float)
+        if v[0] == 0.0:
+            warnings.append("the curve starts at 0 %, so the light-ends analysis is not placed on it")
+        elif abs(fv[-1] - v[0]) <= LIGHT_ENDS_TOL_PCT and fv[-1] != v[0] and ft[-1] < t[0]:
+            if abs(v[0] / fv[-1] - 1.0) > 0.01:
+                warnings.append(f"the light ends add up to {fv[-1]:.3f} vol %, the first measured point is "
+                                f"{v[0]:g} %; the light-ends volumes are scaled by "
+                                f"{(v[0] / fv[-1] - 1) * 100:+.2f} % to meet it")
+            le_t, le_v = ft, fv * (v[0] / fv[-1])
+        elif fv[-1] > v[0] + 1e-9 or ft[-1] >= t[0]:
+            warnings.append(f"the light ends ({fv[-1]:.2f} vol % up to {ft[-1]:.1f} °C) do not fit before the "
+                            f"first measured point ({v[0]:g} % at {t[0]:.1f} °C); not placed on the curve, and "
+                            f"the front of the curve is extrapolated")
+        else:
+            le_t, le_v = ft, fv
+    placed = le_t is not None
     fit = None
     need_tail = v[-1] < 100.0
-    has_front = front_t is not None and len(front_t) > 0
-    need_front = v[0] > 0.0 and not has_front
+    need_front = v[0] > 0.0 and not placed
     if need_tail or need_front:
         fit = fit_riazi_distribution(v, t)
         if fit.rms_c > POOR_FIT_RMS_C:
@@ -285,43 +303,14 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> DistCurve:
     if need_front:
         x_first = v[0] / 100.0
         xs = np.linspace(0.0, x_first, 12)[:-1]
-        off = t[0] - fit.temp_c(x_first)
-        tt.insert(0, fit.temp_c(xs) + off)
+        tt.insert(0, fit.temp_c(xs) + t[0] - fit.temp_c(x_first))
         vv.insert(0, 100.0 * xs)
-        measured_lo = float(v[0])
-    le_pct = 0.0
-    if has_front:
-        ft, fv = np.asarray(front_t, float), np.asarray(front_v, float)
-        le_pct = float(fv[-1])
-        if v[0] == 0.0:
-            warnings.append("the curve starts at 0 %, so the light-ends analysis is not placed on it")
-            le_pct = 0.0
-        elif abs(fv[-1] - v[0]) <= LIGHT_ENDS_TOL_PCT and fv[-1] != v[0] and ft[-1] < t[0]:
-            if abs(v[0] / fv[-1] - 1.0) > 0.01:
-                warnings.append(f"the light ends add up to {fv[-1]:.3f} vol %, the first measured point is "
-                                f"{v[0]:g} %; the light-ends volumes are scaled by "
-                                f"{(v[0] / fv[-1] - 1) * 100:+.2f} % to meet it")
-            fv = fv * (v[0] / fv[-1])
-            le_pct = float(fv[-1])
-            tt.insert(0, ft)
-            vv.insert(0, fv)
-            measured_lo = 0.0
-        elif fv[-1] > v[0] + 1e-9 or ft[-1] >= t[0]:
-            warnings.append(f"the light ends ({fv[-1]:.2f} vol % up to {ft[-1]:.1f} °C) do not fit before the "
-                            f"first measured point ({v[0]:g} % at {t[0]:.1f} °C); not placed on the curve, and "
-                            f"the front of the curve is extrapolated")
-            le_pct = 0.0
-            fit = fit or fit_riazi_distribution(v, t)
-            x_first = v[0] / 100.0
-            xs = np.linspace(0.0, x_first, 12)[:-1]
-            tt.insert(0, fit.temp_c(xs) + t[0] - fit.temp_c(x_first))
-            vv.insert(0, 100.0 * xs)
-        else:
-            tt.insert(0, ft)
-            vv.insert(0, fv)
-            measured_lo = 0.0
-    elif v[0] == 0.0:
+    if placed:
+        tt.insert(0, le_t)
+        vv.insert(0, le_v)
+    if placed or v[0] == 0.0:
         measured_lo = 0.0
+    le_pct = float(le_v[-1]) if placed else 0.0
     T = np.concatenate(tt)
     V = np.concatenate(vv)
     if np.any(np.diff(T) <= 0):
