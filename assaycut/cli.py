@@ -401,6 +401,7 @@ def convert(
     Conversions carry errors of a few °C, largest at the initial point.
     """
     from . import conversions
+    from .units import c_to_f, f_to_c
 
     pts: dict[float, float] = {}
     if file is not None and points:
@@ -418,7 +419,7 @@ def convert(
                 raise AssaycutError(f"{it!r}: expected PERCENT=TEMP with a percent between 0 and 100")
             if pv in pts:
                 raise AssaycutError(f"{it!r}: the {pv:g} % point is given twice")
-            pts[pv] = (tv - 32.0) / 1.8 if unit == TUnit.F else tv
+            pts[pv] = f_to_c(tv) if unit == TUnit.F else tv
     if not pts:
         raise AssaycutError("no points: give PERCENT=TEMP pairs (e.g. 10=176.7 50=206.7) or --file CSV")
     for p, t in pts.items():
@@ -436,7 +437,7 @@ def convert(
         typer.echo(f"{'percent':>8}  {frm.value + ' ' + u:>12}  {to.value + ' ' + u:>12}")
         for p, t in out.items():
             src = pts.get(p)
-            conv = (lambda x: x * 1.8 + 32.0) if unit == TUnit.F else (lambda x: x)
+            conv = c_to_f if unit == TUnit.F else (lambda x: x)
             typer.echo(f"{p:8g}  {'' if src is None else f'{conv(src):.1f}':>12}  {conv(t):12.1f}")
     for w in warnings:
         typer.echo(f"warning: {w}", err=True)

@@ -14,6 +14,7 @@ import math
 from typing import Mapping
 
 from .errors import ConversionError
+from .units import c_to_f, f_to_c
 
 # -- Riazi-Daubert 1986 (API TDB 3A1.1, 1987 edition; Riazi MNL50 sec. 3.2) ---------------------------
 RD1986_K = {0: (0.9177, 1.0019), 10: (0.5564, 1.0900), 30: (0.7617, 1.0425), 50: (0.9013, 1.0176),
@@ -45,14 +46,6 @@ SD_D86_50 = (0.77601, 1.0395)
 """D86_50 = a * SD50**b with the °F number itself raised to the power."""
 
 METHODS = ("daubert-1994", "riazi-daubert-1986")
-
-
-def _c_to_f(t):
-    return t * 1.8 + 32.0
-
-
-def _f_to_c(t):
-    return (t - 32.0) / 1.8
 
 
 def _need(points: Mapping[float, float], needed, what: str):
@@ -162,12 +155,12 @@ def daubert_1994(d86: Mapping[float, float]) -> dict[float, float]:
     """
     d = _norm(d86)
     _need(d, [50], "Daubert 1994 D86 -> TBP")
-    f = {k: _c_to_f(v) for k, v in d.items()}
+    f = {k: c_to_f(v) for k, v in d.items()}
     if f[50] <= 0:
         raise ConversionError(f"Daubert 1994 needs a D86 50 % point above 0 °F (-17.8 °C); got {d[50]:.1f} °C")
     anchor = D94_50[0] * f[50] ** D94_50[1]
     out = _chain(anchor, f, D94_SEGMENTS, _power)
-    return {k: _f_to_c(v) for k, v in sorted(out.items())}
+    return {k: f_to_c(v) for k, v in sorted(out.items())}
 
 
 def daubert_1994_inverse(tbp: Mapping[float, float]) -> dict[float, float]:
@@ -196,12 +189,12 @@ def daubert_1994_inverse(tbp: Mapping[float, float]) -> dict[float, float]:
     """
     t = _norm(tbp)
     _need(t, [50], "Daubert 1994 TBP -> D86")
-    f = {k: _c_to_f(v) for k, v in t.items()}
+    f = {k: c_to_f(v) for k, v in t.items()}
     if f[50] <= 0:
         raise ConversionError(f"Daubert 1994 needs a TBP 50 % point above 0 °F (-17.8 °C); got {t[50]:.1f} °C")
     anchor = (f[50] / D94_50[0]) ** (1.0 / D94_50[1])
     out = _chain(anchor, f, D94_SEGMENTS, _power_inv)
-    return {k: _f_to_c(v) for k, v in sorted(out.items())}
+    return {k: f_to_c(v) for k, v in sorted(out.items())}
 
 
 def riazi_daubert_1986(d86: Mapping[float, float]) -> dict[float, float]:
@@ -312,9 +305,9 @@ def api_tdb_3a3_1(d2887: Mapping[float, float]) -> dict[float, float]:
     """
     s = _norm(d2887)
     _need(s, [50], "API TDB 3A3.1 D2887 -> TBP")
-    f = {k: _c_to_f(v) for k, v in s.items()}
+    f = {k: c_to_f(v) for k, v in s.items()}
     out = _chain(f[50], f, SD_TBP_SEGMENTS, _power)
-    return {k: _f_to_c(v) for k, v in sorted(out.items())}
+    return {k: f_to_c(v) for k, v in sorted(out.items())}
 
 
 def api_tdb_3a3_2(d2887: Mapping[float, float]) -> dict[float, float]:
@@ -346,12 +339,12 @@ def api_tdb_3a3_2(d2887: Mapping[float, float]) -> dict[float, float]:
     """
     s = _norm(d2887)
     _need(s, [50], "API TDB 3A3.2 D2887 -> D86")
-    f = {k: _c_to_f(v) for k, v in s.items()}
+    f = {k: c_to_f(v) for k, v in s.items()}
     if f[50] <= 0:
         raise ConversionError(f"API TDB 3A3.2 needs a D2887 50 % point above 0 °F; got {s[50]:.1f} °C")
     anchor = SD_D86_50[0] * f[50] ** SD_D86_50[1]
     out = _chain(anchor, f, SD_D86_SEGMENTS, _power)
-    return {k: _f_to_c(v) for k, v in sorted(out.items())}
+    return {k: f_to_c(v) for k, v in sorted(out.items())}
 
 
 def maxwell_bonnell(temp_c, pressure_mmhg: float, watson_k: float | None = None):

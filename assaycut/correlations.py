@@ -9,9 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
-
-def _f(t_c):
-    return np.asarray(t_c, dtype=float) * 1.8 + 32.0
+from .units import c_to_f
 
 
 def _scalar(x):
@@ -46,7 +44,7 @@ def watson_k(meabp_c, sg):
     >>> round(watson_k((580 - 32) / 1.8, 141.5 / (34.5 + 131.5)), 4)
     11.8846
     """
-    tr = _f(meabp_c) + 459.67
+    tr = c_to_f(meabp_c) + 459.67
     return _scalar(np.cbrt(tr) / np.asarray(sg, dtype=float))
 
 
@@ -120,7 +118,7 @@ def average_boiling_points(d86_c):
     >>> round(r["vabp"] * 1.8 + 32, 2), round(r["slope"], 4), round(r["meabp"] * 1.8 + 32, 1)
     (224.42, 2.6325, 206.1)
     """
-    t = _f(d86_c)
+    t = c_to_f(np.asarray(d86_c, dtype=float))
     vabp = t.mean(axis=-1)
     sl = np.maximum((t[..., 4] - t[..., 0]) / 80.0, 0.0)
     x = np.maximum(vabp - 32.0, 0.0)
@@ -316,7 +314,7 @@ def flash_point_api_2b7_1(t10_c):
     >>> round(flash_point_api_2b7_1(200.0), 1)
     66.8
     """
-    tf = 0.69 * _f(t10_c) - 118.2
+    tf = 0.69 * c_to_f(t10_c) - 118.2
     return _scalar((tf - 32.0) / 1.8)
 
 

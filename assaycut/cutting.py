@@ -28,7 +28,7 @@ from .correlations import (average_boiling_points, cetane_index_d4737, flash_poi
                            mw_in_range, riazi_daubert_1987_mw, watson_k)
 from .crude import D86_STD, CrudeModel
 from .errors import CutSetError
-from .units import sg_to_api, sg_to_density15
+from .units import c_to_f, f_to_c, sg_to_api, sg_to_density15
 
 MIDDLE_DISTILLATE_C = (150.0, 400.0)
 """TBP window of a middle distillate, for the cetane index: the cut must lie inside it. [°C]"""
@@ -168,7 +168,7 @@ def d86_from_tbp_slices(tbp: np.ndarray) -> np.ndarray:
     numpy.ndarray
         D86 temperatures, shape (n, 7). [°C]
     """
-    f = np.asarray(tbp, float) * 1.8 + 32.0
+    f = c_to_f(np.asarray(tbp, float))
     out = np.full_like(f, np.nan)
     a50, b50 = conversions.D94_50
     with np.errstate(invalid="ignore"):
@@ -182,7 +182,7 @@ def d86_from_tbp_slices(tbp: np.ndarray) -> np.ndarray:
             a, b = conversions.D94_SEGMENTS[(lo, hi)]
             y = np.maximum(f[:, idx[hi]] - f[:, idx[lo]], 0.0)
             out[:, idx[lo]] = out[:, idx[hi]] - (y / a) ** (1.0 / b)
-    return (out - 32.0) / 1.8
+    return f_to_c(out)
 
 
 def cut_table(model: CrudeModel, cut_set: CutSet):

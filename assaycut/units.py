@@ -10,8 +10,6 @@ Formulas
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
 WATER_60F_KG_M3 = 999.016
@@ -19,16 +17,6 @@ WATER_60F_KG_M3 = 999.016
 
 K0_CRUDE = 341.0957
 """Thermal-expansion constant K0 for crude oils [kg2/m6/°F] (API MPMS 11.1; value from memory)."""
-
-
-def c_to_k(t):
-    """°C to K. [°C] -> [K]"""
-    return np.asarray(t, dtype=float) + 273.15 if not np.isscalar(t) else t + 273.15
-
-
-def k_to_c(t):
-    """K to °C. [K] -> [°C]"""
-    return np.asarray(t, dtype=float) - 273.15 if not np.isscalar(t) else t - 273.15
 
 
 def c_to_f(t):
@@ -39,11 +27,6 @@ def c_to_f(t):
 def f_to_c(t):
     """°F to °C. [°F] -> [°C]"""
     return (np.asarray(t, dtype=float) - 32.0) / 1.8 if not np.isscalar(t) else (t - 32.0) / 1.8
-
-
-def c_to_r(t):
-    """°C to degrees Rankine. [°C] -> [°R]"""
-    return c_to_f(t) + 459.67
 
 
 def to_celsius(values, unit: str):
@@ -66,22 +49,9 @@ def to_celsius(values, unit: str):
     if u == "C":
         return arr.copy()
     if u == "F":
-        return (arr - 32.0) / 1.8
+        return f_to_c(arr)
     if u == "K":
         return arr - 273.15
-    raise ValueError(f"unknown temperature unit {unit!r}; expected C, F or K")
-
-
-def from_celsius(values, unit: str):
-    """Convert temperatures from °C to ``unit`` ('C', 'F' or 'K')."""
-    u = unit.strip().upper().replace("°", "")
-    arr = np.asarray(values, dtype=float)
-    if u == "C":
-        return arr.copy()
-    if u == "F":
-        return arr * 1.8 + 32.0
-    if u == "K":
-        return arr + 273.15
     raise ValueError(f"unknown temperature unit {unit!r}; expected C, F or K")
 
 
@@ -199,6 +169,3 @@ def density15_to_sg(rho15):
     return float(out) if np.ndim(out) == 0 else out
 
 
-def is_finite_number(x) -> bool:
-    """True if ``x`` is a real, finite number (bool excluded)."""
-    return isinstance(x, (int, float, np.integer, np.floating)) and not isinstance(x, bool) and math.isfinite(x)

@@ -119,7 +119,9 @@ def test_converted_monotone_curves_stay_monotone(tbp):
     # Daubert 1994 in both directions builds each segment from a positive difference: monotone in, monotone out.
     from assaycut import conversions as cv
 
-    assume(cv._c_to_f(tbp[50]) > 0)
+    from assaycut.units import c_to_f
+
+    assume(c_to_f(tbp[50]) > 0)
     for out in (cv.daubert_1994_inverse(tbp), cv.daubert_1994(tbp)):
         vals = [out[k] for k in sorted(out)]
         assert all(b >= a for a, b in zip(vals, vals[1:]))
