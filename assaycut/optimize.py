@@ -132,9 +132,8 @@ def _objective(cols: dict, names: list[str], maximize: str | None, prices: Price
         p = prices.products.get(n)
         if p is None:
             raise StudyError(f"{prices.label}: no price for cut {n!r}")
-        rho = np.nan_to_num(cols["density_15c_kg_m3"][:, j], nan=1000.0)
-        per_bbl = p.value if p.unit == "bbl" else p.value * rho * 0.158987294928 / 1000.0
-        total = total + cols["vol_pct"][:, j] / 100.0 * per_bbl
+        rho = np.nan_to_num(cols["density_15c_kg_m3"][:, j], nan=1000.0)  # empty cuts weigh nothing anyway
+        total = total + cols["vol_pct"][:, j] / 100.0 * p.per_bbl(rho)
     return total
 
 
