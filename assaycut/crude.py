@@ -25,7 +25,7 @@ from .assay import Assay, CurveData
 from .curve import DistCurve, build_curve, staircase
 from .errors import CurveError
 from .lightends import find_component
-from .spline import Pchip, interval_mean, pchip_slopes
+from .spline import Pchip, hermite_combine, hermite_integral_basis, interval_mean, pchip_slopes
 
 D86_STD = (0, 10, 30, 50, 70, 90, 95)
 """Standard ASTM D86 points of the TBP <-> D86 correlations. [vol %]"""
@@ -356,8 +356,7 @@ def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):
         qc = np.clip(q, x[0], x[-1])
         i = np.clip(np.searchsorted(x, qc, side="right") - 1, 0, x.size - 2)
         t = (qc - x[i]) / h[i]
-        return i, (t ** 4 / 2 - t ** 3 + t, t ** 4 / 4 - 2 * t ** 3 / 3 + t ** 2 / 2, -t ** 4 / 2 + t ** 3,
-                   t ** 4 / 4 - t ** 3 / 3), np.minimum(q - x[0], 0.0), np.maximum(q - x[-1], 0.0)
+        return i, hermite_integral_basis(t), np.minimum(q - x[0], 0.0), np.maximum(q - x[-1], 0.0)
 
     ends = [locate(a), locate(b)]
     width = b - a
@@ -366,9 +365,9 @@ def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):
         d = pchip_slopes(x, y)
         cum = np.concatenate([[0.0], np.cumsum(h * (0.5 * (y[:-1] + y[1:]) + h * (d[:-1] - d[1:]) / 12.0))])
         anti = []
-        for i, (w0, w1, w2, w3), below, above in ends:
+        for i, basis, below, above in ends:
             hi_ = h[i]
-            anti.append(cum[i] + hi_ * (w0 * y[i] + w1 * hi_ * d[i] + w2 * y[i + 1] + w3 * hi_ * d[i + 1])
+            anti.append(cum[i] + hi_ * hermite_combine(basis, y[i], y[i + 1], hi_ * d[i], hi_ * d[i + 1])
                         + below * y[0] + above * y[-1])
         return (anti[1] - anti[0]) / width
 

@@ -14,7 +14,8 @@ import numpy as np
 from .crude import CrudeModel
 from .cutting import CutSet, cut_columns
 from .curve import DistCurve
-from .spline import Pchip, hermite_solve, interval_mean
+from .spline import (Pchip, hermite_basis, hermite_combine, hermite_integral_basis, hermite_solve,
+                     interval_mean)
 
 
 CHUNK = 1024
@@ -75,9 +76,8 @@ class BatchPchip:
         return rows, i, t, h
 
     def _hermite(self, rows, i, t, h):
-        t2, t3 = t * t, t * t * t
-        return ((2 * t3 - 3 * t2 + 1) * self.Y[rows, i] + (t3 - 2 * t2 + t) * h * self.D[rows, i]
-                + (-2 * t3 + 3 * t2) * self.Y[rows, i + 1] + (t3 - t2) * h * self.D[rows, i + 1])
+        return hermite_combine(hermite_basis(t), self.Y[rows, i], self.Y[rows, i + 1], h * self.D[rows, i],
+                               h * self.D[rows, i + 1])
 
     def __call__(self, q):
         q2, shape = self._rows(q)
@@ -89,9 +89,8 @@ class BatchPchip:
         below = np.minimum(q2 - self.lo[:, None], 0.0) * self.Y[:, :1]
         above = np.maximum(q2 - self.hi[:, None], 0.0) * self.Y[:, -1:]
         rows, i, t, h = self._locate(q2)
-        t2, t3, t4 = t * t, t ** 3, t ** 4
-        part = h * ((t4 / 2 - t3 + t) * self.Y[rows, i] + (t4 / 4 - 2 * t3 / 3 + t2 / 2) * h * self.D[rows, i]
-                    + (-t4 / 2 + t3) * self.Y[rows, i + 1] + (t4 / 4 - t3 / 3) * h * self.D[rows, i + 1])
+        part = h * hermite_combine(hermite_integral_basis(t), self.Y[rows, i], self.Y[rows, i + 1],
+                                   h * self.D[rows, i], h * self.D[rows, i + 1])
         return (self.C[rows, i] + part + below + above).reshape(shape)
 
     def integral(self, a, b):

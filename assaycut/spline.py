@@ -15,6 +15,28 @@ from __future__ import annotations
 import numpy as np
 
 
+def hermite_basis(t):
+    """Cubic Hermite basis (h00, h10, h01, h11) at t in [0, 1]: p(t) = h00 y0 + h10 m0 + h01 y1 + h11 m1,
+    with m = segment width x end slope."""
+    t2 = t * t
+    t3 = t2 * t
+    return 2 * t3 - 3 * t2 + 1, t3 - 2 * t2 + t, -2 * t3 + 3 * t2, t3 - t2
+
+
+def hermite_integral_basis(t):
+    """Integrals from 0 to t of the Hermite basis functions; times the segment width they integrate p."""
+    t2 = t * t
+    t3 = t2 * t
+    t4 = t3 * t
+    return t4 / 2 - t3 + t, t4 / 4 - 2 * t3 / 3 + t2 / 2, -t4 / 2 + t3, t4 / 4 - t3 / 3
+
+
+def hermite_combine(basis, y0, y1, m0, m1):
+    """Combine basis weights with end values and scaled end slopes: w00 y0 + w10 m0 + w01 y1 + w11 m1."""
+    w00, w10, w01, w11 = basis
+    return w00 * y0 + w10 * m0 + w01 * y1 + w11 * m1
+
+
 def pchip_slopes(x: np.ndarray, y: np.ndarray) -> np.ndarray:
     """Node slopes of the monotone PCHIP interpolant.
 
@@ -109,10 +131,8 @@ class Pchip:
         return self._hermite(i, t)
 
     def _hermite(self, i, t):
-        h = self.h[i]
-        t2, t3 = t * t, t * t * t
-        return ((2 * t3 - 3 * t2 + 1) * self.y[i] + (t3 - 2 * t2 + t) * h * self.d[i]
-                + (-2 * t3 + 3 * t2) * self.y[i + 1] + (t3 - t2) * h * self.d[i + 1])
+        return hermite_combine(hermite_basis(t), self.y[i], self.y[i + 1], self.h[i] * self.d[i],
+                               self.h[i] * self.d[i + 1])
 
     def antiderivative(self, xq):
         """Integral of y from x[0] to ``xq`` (constant continuation outside the nodes). [y·x]"""
@@ -121,9 +141,8 @@ class Pchip:
         above = np.maximum(xq - self.x[-1], 0.0) * self.y[-1]
         i, t = self._locate(xq)
         h = self.h[i]
-        t2, t3, t4 = t * t, t ** 3, t ** 4
-        part = h * ((t4 / 2 - t3 + t) * self.y[i] + (t4 / 4 - 2 * t3 / 3 + t2 / 2) * h * self.d[i]
-                    + (-t4 / 2 + t3) * self.y[i + 1] + (t4 / 4 - t3 / 3) * h * self.d[i + 1])
+        part = h * hermite_combine(hermite_integral_basis(t), self.y[i], self.y[i + 1], h * self.d[i],
+                                   h * self.d[i + 1])
         return self._cum[i] + part + below + above
 
     def integral(self, a, b):
