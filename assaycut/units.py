@@ -19,6 +19,11 @@ K0_CRUDE = 341.0957
 """Thermal-expansion constant K0 for crude oils [kg2/m6/°F] (API MPMS 11.1; value from memory)."""
 
 
+def as_scalar(x):
+    """A Python float for a 0-d result, the array otherwise (functions here take scalars and arrays alike)."""
+    return float(x) if np.ndim(x) == 0 else x
+
+
 def c_to_f(t):
     """°C to °F. [°C] -> [°F]"""
     return np.asarray(t, dtype=float) * 1.8 + 32.0 if not np.isscalar(t) else t * 1.8 + 32.0
@@ -27,6 +32,17 @@ def c_to_f(t):
 def f_to_c(t):
     """°F to °C. [°F] -> [°C]"""
     return (np.asarray(t, dtype=float) - 32.0) / 1.8 if not np.isscalar(t) else (t - 32.0) / 1.8
+
+
+def c_to_rankine(t):
+    """°C to degrees Rankine (absolute °F): T[°R] = T[°F] + 459.67. [°C] -> [°R]
+
+    Examples
+    --------
+    >>> round(c_to_rankine(-273.15), 9)
+    0.0
+    """
+    return c_to_f(t) + 459.67
 
 
 def to_celsius(values, unit: str):
@@ -145,7 +161,7 @@ def sg_to_density15(sg):
     """
     rho60 = np.asarray(sg, dtype=float) * WATER_60F_KG_M3
     out = rho60 * _thermal_factor_60f_to_15c(rho60)
-    return float(out) if np.ndim(out) == 0 else out
+    return as_scalar(out)
 
 
 def density15_to_sg(rho15):
@@ -166,6 +182,6 @@ def density15_to_sg(rho15):
     for _ in range(6):  # fixed point; the factor is within 0.1 % of 1
         rho60 = rho15 / _thermal_factor_60f_to_15c(rho60)
     out = rho60 / WATER_60F_KG_M3
-    return float(out) if np.ndim(out) == 0 else out
+    return as_scalar(out)
 
 

@@ -1,22 +1,19 @@
 """The main job in one call: model an assay, cut it, check product limits, and gather warnings and notes.
 
-Pure computation: takes an :class:`~assaycut.assay.Assay`, a :class:`~assaycut.cutting.CutSet` and limits,
-returns a :class:`YieldResult`.  Readers, report writers and the CLI sit around it.
+Pure computation: takes an :class:`~assaycut.model.assay.Assay`, a :class:`~assaycut.cutting.cutset.CutSet`
+and limits, returns a :class:`YieldResult`.  Readers, report writers and the CLI sit around it; the JSON
+form of a result is written by :mod:`assaycut.report.jsonout`.
 """
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 
-import numpy as np
-
-from . import __version__
-from .assay import Assay
-from .crude import CrudeModel, build_model
-from .cutting import CutSet, closure, cut_table
-from .limits import Limit, check_limits
-from .units import sg_to_density15
+from .cutting.cutset import CutSet
+from .cutting.ideal import closure, cut_table
+from .cutting.limits import Limit, check_limits
+from .model.assay import Assay
+from .model.crude import CrudeModel, build_model
 
 CAUTIONS = [
     "Estimates for screening and planning, not measured properties: confirm against laboratory data before "
@@ -40,9 +37,9 @@ class YieldResult:
     model : CrudeModel
     cut_set : CutSet
     cuts : pandas.DataFrame
-        The cut table (see :data:`assaycut.cutting.CUT_COLUMNS`).
+        The cut table (see :data:`assaycut.cutting.ideal.CUT_COLUMNS`).
     limits : pandas.DataFrame
-        Product-limit status (see :func:`assaycut.limits.check_limits`).
+        Product-limit status (see :func:`assaycut.cutting.limits.check_limits`).
     closure : dict
         Σ vol % - 100 and Σ wt % - 100. [%]
     warnings, notes : list of str
@@ -59,45 +56,9 @@ class YieldResult:
     notes: list[str] = field(default_factory=list)
     methods: dict[str, str] = field(default_factory=dict)
     products: dict | None = None
-    """Product curves of a real column (see :func:`assaycut.fractionation.fractionate`); None for ideal cuts."""
+    """Product curves of a real column (see :func:`assaycut.cutting.products.fractionate`); None for ideal cuts."""
     bands: object = None
-    """P10/P50/P90 per cut under the measurement uncertainty (see :mod:`assaycut.uncertainty`), or None."""
-
-    def to_dict(self) -> dict:
-        """The JSON object of one assay's yields (field names are part of the interface)."""
-        a = self.assay
-        cuts = []
-        for rec in self.cuts.to_dict("records"):
-            cuts.append({k: _clean(v) for k, v in rec.items()})
-        lim = [{k: _clean(v) for k, v in r.items()} for r in self.limits.to_dict("records")]
-        return {
-            "assay": {"name": a.name, "source": a.source, "sha256": a.sha256, "api": _clean(a.api),
-                      "sg": _clean(a.sg), "density_15c_kg_m3": _clean(sg_to_density15(a.sg)),
-                      "sulfur_wt_pct": _clean(self.model.sulfur_wt_pct)},
-            "cuts": cuts,
-            "limits": lim,
-            "closure": {k: _clean(v) for k, v in self.closure.items()},
-            "warnings": list(self.warnings),
-            "notes": list(self.notes),
-            "methods": dict(self.methods),
-            "version": __version__,
-            **({"uncertainty": {"draws": self.bands.attrs["draws"], "sigmas": self.bands.attrs["sigmas"],
-                                "cuts": [{k: _clean(v) for k, v in r.items()} for r in self.bands.to_dict("records")]}}
-               if self.bands is not None else {}),
-        }
-
-
-def _clean(v):
-    """JSON-safe value: NaN/inf become None, numpy scalars become Python numbers."""
-    if isinstance(v, dict):
-        return {k: _clean(x) for k, x in v.items()}
-    if isinstance(v, (np.bool_, bool)):
-        return bool(v)
-    if isinstance(v, (np.integer,)):
-        return int(v)
-    if isinstance(v, (float, np.floating)):
-        return None if not math.isfinite(float(v)) else float(v)
-    return v
+    """P10/P50/P90 per cut under the measurement uncertainty (see :mod:`assaycut.studies.uncertainty`), or None."""
 
 
 METHOD_NOTES = {
@@ -138,14 +99,35 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     model = model or build_model(assay, method)
     products = None
     if any(w > 0 for w in cut_set.overlaps.values()):
-        from .fractionation import fractionate
+        from .cutting.products import fractionate
 
         cuts, products = fractionate(model, cut_set, cut_set.overlaps)
     else:
         cuts = cut_table(model, cut_set)
     lim = check_limits(cuts, limits or [])
     clo = closure(cuts)
-    warnings = list(model.warnings)
+    warnings = list(model.warnings) + _cut_warnings(cuts, model)
+    methods = dict(model.methods)
+    methods.update(METHOD_NOTES)
+    if products is not None:
+        methods["fractionation"] = (
+            "real-column products: each cut point splits smoothly (normal split) with the TBP 5-95 overlap "
+            + ", ".join(f"{n} {w:g} °C" for n, w in cut_set.overlaps.items() if w > 0)
+            + "; other cut points ideal; product D86 from each product's own TBP curve (0 % taken at 0.5 %)")
+    notes = _notes(assay, model, clo)
+    bands = None
+    if uncertainty_draws:
+        from .studies.uncertainty import Sigmas, monte_carlo
+
+        bands = monte_carlo(assay, cut_set, sigmas or Sigmas(), uncertainty_draws, method=method)
+        methods["uncertainty"] = (f"Monte Carlo over the curve model, {bands.attrs['draws']} draws "
+                                  f"({bands.attrs['failed']} failed); ideal cuts; {bands.attrs['sigmas']}")
+    return YieldResult(assay, model, cut_set, cuts, lim, clo, warnings, notes, methods, products, bands)
+
+
+def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
+    """Warnings about the cuts: reaching into the extension, D86 estimates above 400 °C, empty cuts."""
+    warnings = []
     ext = cuts.loc[cuts["extrapolated"], "name"].tolist()
     if ext:
         warnings.append(f"cut(s) {', '.join(ext)} reach beyond the measured curve ({model.curve.measured_hi:g} "
@@ -157,24 +139,15 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     empty = cuts.loc[cuts["vol_pct"] <= 1e-9, "name"].tolist()
     if empty:
         warnings.append(f"cut(s) {', '.join(empty)} have no yield: their qualities are left empty")
-    methods = dict(model.methods)
-    methods.update(METHOD_NOTES)
-    if products is not None:
-        methods["fractionation"] = (
-            "real-column products: each cut point splits smoothly (normal split) with the TBP 5-95 overlap "
-            + ", ".join(f"{n} {w:g} °C" for n, w in cut_set.overlaps.items() if w > 0)
-            + "; other cut points ideal; product D86 from each product's own TBP curve (0 % taken at 0.5 %)")
+    return warnings
+
+
+def _notes(assay: Assay, model: CrudeModel, clo: dict[str, float]) -> list[str]:
+    """The cautions, the reconciliations, the closure residual and the assay's own notes."""
     notes = list(CAUTIONS)
     notes.append(f"density reconciliation {model.density_reconciliation_pct:+.2f} %"
                  + (f"; sulfur reconciliation {model.sulfur_reconciliation_pct:+.2f} %"
                     if model.sulfur_reconciliation_pct is not None else ""))
     notes.append(f"closure residual: vol {clo['vol_pct']:+.2e} %, wt {clo['wt_pct']:+.2e} %")
     notes += [f"assay note: {n}" for n in assay.notes]
-    bands = None
-    if uncertainty_draws:
-        from .uncertainty import Sigmas, monte_carlo
-
-        bands = monte_carlo(assay, cut_set, sigmas or Sigmas(), uncertainty_draws, method=method)
-        methods["uncertainty"] = (f"Monte Carlo over the curve model, {bands.attrs['draws']} draws "
-                                  f"({bands.attrs['failed']} failed); ideal cuts; {bands.attrs['sigmas']}")
-    return YieldResult(assay, model, cut_set, cuts, lim, clo, warnings, notes, methods, products, bands)
+    return notes

@@ -26,9 +26,9 @@ import numpy as np
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
-from assaycut.assay import Assay, CurveData, LightEnds, NarrowCuts  # noqa: E402
-from assaycut.crude import build_model  # noqa: E402
-from assaycut.cutting import Cut, CutSet  # noqa: E402
+from assaycut.model.assay import Assay, CurveData, LightEnds, NarrowCuts  # noqa: E402
+from assaycut.model.crude import build_model  # noqa: E402
+from assaycut.cutting.cutset import Cut, CutSet  # noqa: E402
 
 CUTS8 = CutSet([Cut("light ends", 15.0), Cut("light naphtha", 85.0), Cut("heavy naphtha", 177.0),
                 Cut("kerosene", 232.0), Cut("light gas oil", 290.0), Cut("heavy gas oil", 343.0),
@@ -87,7 +87,7 @@ def naive_cut(models, cut_set) -> None:
     from scipy.integrate import quad
     from scipy.interpolate import PchipInterpolator
 
-    from assaycut.conversions import daubert_1994_inverse
+    from assaycut.methods.d86 import tbp_to_d86_daubert_1994
 
     ends = cut_set.ends_c
     for m in models:
@@ -107,7 +107,7 @@ def naive_cut(models, cut_set) -> None:
             if sul is not None:
                 quad(lambda x: float(sul(x)), wa, wb, limit=100)
             tb = {p: float(t_of_v(a + p / 100.0 * (b - a))) for p in (0, 10, 30, 50, 70, 90, 95)}
-            daubert_1994_inverse(tb)
+            tbp_to_d86_daubert_1994(tb)
 
 
 def help_time(cmd: list[str], repeats: int) -> float:
@@ -132,7 +132,7 @@ def peak_child(n: int) -> None:
     """Child process: generate, model and cut n assays; print the peak resident memory in MB."""
     import resource
 
-    from assaycut.library import cut_library
+    from assaycut.cutting.library import cut_library
 
     models = [build_model(a) for a in generate_library(n)]
     cut_library(models, CUTS8)
@@ -147,9 +147,9 @@ def main() -> None:
     if args.peak_child:
         peak_child(args.peak_child)
         return
-    from assaycut.cutting import default_cut_set
-    from assaycut.library import cut_library
-    from assaycut.studies import sweep
+    from assaycut.cutting.cutset import default_cut_set
+    from assaycut.cutting.library import cut_library
+    from assaycut.studies.cutpoints import sweep
 
     big, small, naive_n, reps = (10_000, 1_000, 100, 5) if not args.smoke else (30, 10, 3, 1)
     t0 = time.perf_counter()

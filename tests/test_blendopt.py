@@ -8,12 +8,12 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from assaycut.blendopt import BlendTargets, optimize_blend
-from assaycut.cutting import default_cut_set
+from assaycut.studies.blend_optimizer import BlendTargets, optimize_blend
+from assaycut.cutting.cutset import default_cut_set
 from assaycut.errors import StudyError
 from assaycut.io import load_assay
 from assaycut.io.tomlfiles import demo_assay_paths, read_prices
-from assaycut.studies import worth_table
+from assaycut.studies.compare import worth_table
 from assaycut.yields import run_yields
 
 from .test_optimize import demo_prices

@@ -8,7 +8,11 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-from assaycut import conversions as cv
+from assaycut.methods.d86 import (D94_SEGMENTS, RD1986_K, RD1986_R, d86_to_tbp_daubert_1994,
+                                  d86_to_tbp_riazi_daubert_1986, tbp_to_d86_daubert_1994)
+from assaycut.methods.d1160 import vacuum_to_aet_maxwell_bonnell
+from assaycut.methods.d2887 import d2887_to_tbp_api_3a3_1
+from assaycut.methods.distillation import convert
 from assaycut.errors import ConversionError
 
 # Riazi, Characterization and Properties of Petroleum Fractions, ASTM MNL50 (2005), Example 3.3 / Table 3.8:
@@ -19,7 +23,7 @@ KERO_D86 = {0: 165.6, 10: 176.7, 30: 193.3, 50: 206.7, 70: 222.8, 90: 242.8}
 def test_riazi_daubert_1986_published_kerosene():
     # Riazi MNL50 Example 3.3 / Table 3.8: TBP by Riazi-Daubert 1986 = 134.1/160.6/188.2/208.9/230.2/254.7 °C,
     # printed to 0.1 °C.
-    tbp = cv.riazi_daubert_1986(KERO_D86)
+    tbp = d86_to_tbp_riazi_daubert_1986(KERO_D86)
     assert_allclose([tbp[p] for p in (0, 10, 30, 50, 70, 90)],
                     [134.1, 160.6, 188.2, 208.9, 230.2, 254.7], atol=0.1)
 
@@ -27,7 +31,7 @@ def test_riazi_daubert_1986_published_kerosene():
 def test_daubert_1994_published_kerosene():
     # Riazi MNL50 Table 3.8, column for Eqs. 3.20-3.22 (Daubert 1994): 133.1/158.1/189.2/210.6/232.9/258.1 °C;
     # tolerance 0.2 °C for the rounded published values.
-    tbp = cv.daubert_1994(KERO_D86)
+    tbp = d86_to_tbp_daubert_1994(KERO_D86)
     assert_allclose([tbp[p] for p in (0, 10, 30, 50, 70, 90)],
                     [133.1, 158.1, 189.2, 210.6, 232.9, 258.1], atol=0.2)
 
@@ -36,7 +40,7 @@ def test_daubert_1994_50pct_raises_fahrenheit_number_not_absolute():
     # Daubert 1994 (Riazi MNL50 Eq. 3.20): TBP50 = 0.87180 * D86_50**1.0258 with the °F number itself.
     # Raising °R instead gives results far off (reference sheet §2 says about 25 °C; for this kerosene it is
     # 14 °C by our own arithmetic): the published kerosene value is 210.6 °C.
-    good = cv.daubert_1994({50: 206.7})[50]
+    good = d86_to_tbp_daubert_1994({50: 206.7})[50]
     r = 206.7 * 1.8 + 491.67
     wrong = (0.87180 * r ** 1.0258 - 491.67) / 1.8
     assert abs(good - 210.6) < 0.2
@@ -47,13 +51,13 @@ def test_si_form_of_daubert_50pct_matches_reference_sheet():
     # Reference sheet §2: TBP50[K] = 255.4 + 0.8851 (D86_50[K] - 255.4)**1.0258, the same relation in SI.
     d = 250.0
     si = 255.4 + 0.8851 * (d + 273.15 - 255.4) ** 1.0258 - 273.15
-    assert abs(cv.daubert_1994({50: d})[50] - si) < 0.1
+    assert abs(d86_to_tbp_daubert_1994({50: d})[50] - si) < 0.1
 
 
 def test_rd1986_kelvin_and_rankine_constants_agree():
     # Reference sheet §1: a_K = a_R * 1.8**(b - 1) must reproduce both printed tables (4 decimals printed).
-    for p, (a_k, b) in cv.RD1986_K.items():
-        a_r, b_r = cv.RD1986_R[p]
+    for p, (a_k, b) in RD1986_K.items():
+        a_r, b_r = RD1986_R[p]
         assert b == b_r
         assert abs(a_r * 1.8 ** (b - 1) - a_k) < 6e-4, p
 
@@ -62,37 +66,37 @@ def test_daubert_1994_si_segment_constants_agree():
     # Reference sheet §2: A for °C/K differences = A_F * 1.8**(B - 1), printed to 4 significant figures.
     printed = {(90, 95): 0.1740, (70, 90): 2.6339, (50, 70): 2.2744, (30, 50): 2.6956, (10, 30): 4.1481,
                (0, 10): 5.8589}
-    for seg, (a, b) in cv.D94_SEGMENTS.items():
+    for seg, (a, b) in D94_SEGMENTS.items():
         assert abs(a * 1.8 ** (b - 1) - printed[seg]) / printed[seg] < 5e-4, seg
 
 
 def test_maxwell_bonnell_check_value():
     # Reference sheet §4, computed from the Maxwell-Bonnell equations: 200 °C at 10 mmHg is about 348.8 °C AET.
-    assert abs(cv.maxwell_bonnell(200.0, 10.0) - 348.8) < 0.1
+    assert abs(vacuum_to_aet_maxwell_bonnell(200.0, 10.0) - 348.8) < 0.1
 
 
 def test_maxwell_bonnell_at_760_is_identity():
     # Identity: at atmospheric pressure the AET equals the observed temperature (Maxwell-Bonnell, P = 760).
-    assert abs(cv.maxwell_bonnell(300.0, 760.0) - 300.0) < 0.5
+    assert abs(vacuum_to_aet_maxwell_bonnell(300.0, 760.0) - 300.0) < 0.5
 
 
 def test_maxwell_bonnell_watson_k_correction_direction():
     # API TDB 5A1.19: Tb = T' - 1.3889 f (Kw - 12) log10(P/760); below 760 mmHg the log is negative, so a
     # Kw above 12 raises the AET (f = 1 above 400 °F).
-    base = cv.maxwell_bonnell(250.0, 10.0)
-    hi = cv.maxwell_bonnell(250.0, 10.0, watson_k=12.5)
+    base = vacuum_to_aet_maxwell_bonnell(250.0, 10.0)
+    hi = vacuum_to_aet_maxwell_bonnell(250.0, 10.0, watson_k=12.5)
     expect = base + 1.3889 * 0.5 * np.log10(760.0 / 10.0) / 1.8
     assert abs(hi - expect) < 1e-6
 
 
 def test_d2887_to_tbp_keeps_50pct_point():
     # API TDB 3A3.1 (Daubert 1994): TBP50 = SD50 by definition of the method.
-    assert cv.api_tdb_3a3_1({10: 200.0, 30: 250.0, 50: 300.0})[50] == 300.0
+    assert d2887_to_tbp_api_3a3_1({10: 200.0, 30: 250.0, 50: 300.0})[50] == 300.0
 
 
 def test_d2887_segments_follow_formula():
     # API TDB 3A3.1: W = C V**D per segment in °F (reference sheet §3), built down from 50 %.
-    out = cv.api_tdb_3a3_1({30: 250.0, 50: 300.0})
+    out = d2887_to_tbp_api_3a3_1({30: 250.0, 50: 300.0})
     v = 50.0 * 1.8
     w = 0.05342 * v ** 1.6988
     assert abs(out[30] - (300.0 - w / 1.8)) < 1e-9
@@ -100,13 +104,13 @@ def test_d2887_segments_follow_formula():
 
 def test_missing_point_named():
     with pytest.raises(ConversionError, match=r"needs the 50 % point\(s\); the curve has 10, 30"):
-        cv.daubert_1994({10: 150.0, 30: 180.0})
+        d86_to_tbp_daubert_1994({10: 150.0, 30: 180.0})
 
 
 def test_convert_reports_nonmonotone_point_by_point():
     # Riazi MNL50 §3.2 warns that the point-by-point method can give non-monotone curves: a nearly flat
     # D86 front makes the 10 % TBP fall below the 0 % TBP here.
-    out, used, warnings = cv.convert({0: 200.0, 10: 200.5, 50: 260.0}, "D86", "TBP", method="riazi-daubert-1986")
+    out, used, warnings = convert({0: 200.0, 10: 200.5, 50: 260.0}, "D86", "TBP", method="riazi-daubert-1986")
     assert used == "riazi-daubert-1986"
     if out[10] < out[0]:
         assert any("non-monotone" in w for w in warnings)
@@ -114,7 +118,7 @@ def test_convert_reports_nonmonotone_point_by_point():
 
 def test_convert_d1160_needs_pressure():
     with pytest.raises(ConversionError, match="pressure"):
-        cv.convert({50: 250.0}, "D1160", "AET")
+        convert({50: 250.0}, "D1160", "AET")
 
 
 monotone_d86 = st.lists(st.floats(min_value=1.0, max_value=40.0), min_size=6, max_size=6).flatmap(
@@ -126,8 +130,8 @@ monotone_d86 = st.lists(st.floats(min_value=1.0, max_value=40.0), min_size=6, ma
 @given(monotone_d86)
 def test_daubert_round_trip(d86):
     # Identity: TBP -> D86 -> TBP round-trips within 0.5 °C for Daubert 1994 (exact inverse of each segment).
-    tbp = cv.daubert_1994(d86)
-    back = cv.daubert_1994_inverse(tbp)
+    tbp = d86_to_tbp_daubert_1994(d86)
+    back = tbp_to_d86_daubert_1994(tbp)
     assert_allclose([back[p] for p in d86], list(d86.values()), atol=0.5)
 
 
@@ -135,15 +139,15 @@ def test_daubert_round_trip(d86):
 @given(monotone_d86)
 def test_daubert_round_trip_from_tbp(tbp):
     # Identity: TBP -> D86 -> TBP round-trips within 0.5 °C for Daubert 1994 (the issue's stated tolerance).
-    d86 = cv.daubert_1994_inverse(tbp)
-    back = cv.daubert_1994(d86)
+    d86 = tbp_to_d86_daubert_1994(tbp)
+    back = d86_to_tbp_daubert_1994(d86)
     assert_allclose([back[p] for p in tbp], list(tbp.values()), atol=0.5)
 
 
 @settings(max_examples=150, deadline=None)
 @given(monotone_d86, st.sampled_from(["daubert-1994", "riazi-daubert-1986"]))
 def test_conversion_never_crashes_and_daubert_stays_monotone(d86, method):
-    out, used, warnings = cv.convert(d86, "D86", "TBP", method=method)
+    out, used, warnings = convert(d86, "D86", "TBP", method=method)
     assert set(out) == set(d86)
     if method == "daubert-1994":  # segment differences are positive powers of positive differences
         vals = [out[p] for p in sorted(out)]
@@ -152,7 +156,7 @@ def test_conversion_never_crashes_and_daubert_stays_monotone(d86, method):
 
 def test_out_of_range_input_warned():
     # Riazi MNL50 ch. 3: the D86 correlations rest on fractions with D86 below about 400 °C.
-    out, used, warnings = cv.convert({30: 400.0, 50: 450.0}, "D86", "TBP")
+    out, used, warnings = convert({30: 400.0, 50: 450.0}, "D86", "TBP")
     assert any("outside the -18 to 400 °C range" in w and "450.0 °C at 50 %" in w for w in warnings)
-    _, _, ok = cv.convert(KERO_D86, "D86", "TBP")
+    _, _, ok = convert(KERO_D86, "D86", "TBP")
     assert ok == []

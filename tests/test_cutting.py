@@ -8,10 +8,11 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-from assaycut.assay import Assay, CurveData, NarrowCuts
-from assaycut.correlations import cetane_index_d4737
-from assaycut.crude import build_model
-from assaycut.cutting import Cut, CutSet, cut_columns, cut_table, default_cut_set
+from assaycut.model.assay import Assay, CurveData, NarrowCuts
+from assaycut.methods.product_properties import cetane_index_d4737
+from assaycut.model.crude import build_model
+from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
+from assaycut.cutting.ideal import cut_columns, cut_table
 from assaycut.errors import CutSetError
 from assaycut.io import load_assay
 

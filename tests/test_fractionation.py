@@ -9,9 +9,10 @@ import pytest
 from numpy.testing import assert_allclose
 from typer.testing import CliRunner
 
-from assaycut.crude import build_model
-from assaycut.cutting import cut_table, default_cut_set
-from assaycut.fractionation import fractionate, split_fractions
+from assaycut.model.crude import build_model
+from assaycut.cutting.cutset import default_cut_set
+from assaycut.cutting.ideal import cut_table
+from assaycut.cutting.products import fractionate, split_fractions
 from assaycut.io import load_assay
 from assaycut.yields import run_yields
 

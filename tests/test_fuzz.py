@@ -13,9 +13,10 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from assaycut.assay import Assay, CurveData
-from assaycut.crude import build_model
-from assaycut.cutting import Cut, CutSet, cut_table, default_cut_set
+from assaycut.model.assay import Assay, CurveData
+from assaycut.model.crude import build_model
+from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
+from assaycut.cutting.ideal import cut_table
 from assaycut.errors import AssaycutError
 from assaycut.io import load_assay
 from assaycut.yields import run_yields
@@ -117,11 +118,11 @@ monotone_tbp = st.lists(st.floats(0.5, 60.0), min_size=6, max_size=6).flatmap(
 @given(monotone_tbp)
 def test_converted_monotone_curves_stay_monotone(tbp):
     # Daubert 1994 in both directions builds each segment from a positive difference: monotone in, monotone out.
-    from assaycut import conversions as cv
+    from assaycut.methods.d86 import d86_to_tbp_daubert_1994, tbp_to_d86_daubert_1994
 
     from assaycut.units import c_to_f
 
     assume(c_to_f(tbp[50]) > 0)
-    for out in (cv.daubert_1994_inverse(tbp), cv.daubert_1994(tbp)):
+    for out in (tbp_to_d86_daubert_1994(tbp), d86_to_tbp_daubert_1994(tbp)):
         vals = [out[k] for k in sorted(out)]
         assert all(b >= a for a, b in zip(vals, vals[1:]))

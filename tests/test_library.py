@@ -5,11 +5,12 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from assaycut.assay import Assay, CurveData
-from assaycut.crude import build_model
-from assaycut.cutting import Cut, CutSet, cut_columns, default_cut_set
+from assaycut.model.assay import Assay, CurveData
+from assaycut.model.crude import build_model
+from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
+from assaycut.cutting.ideal import cut_columns
 from assaycut.io import load_assay
-from assaycut.library import cut_library, library_summary
+from assaycut.cutting.library import cut_library, library_summary
 
 
 @pytest.fixture(scope="module")
@@ -50,8 +51,9 @@ def test_parallel_run_identical_to_serial(tmp_path, demo_paths):
     import json
     import shutil
 
-    from assaycut.batch import YieldJob, run_batch
+    from assaycut.cli.batch import YieldJob, run_batch
     from assaycut.io.tomlfiles import read_limits
+    from assaycut.report.jsonout import yield_json
 
     paths = []
     for i in range(6):
@@ -62,7 +64,7 @@ def test_parallel_run_identical_to_serial(tmp_path, demo_paths):
     serial, _, f1 = run_batch(paths, job, parallel=False, progress=False)
     para, _, f2 = run_batch(paths, job, parallel=True, progress=False)
     assert f1 == f2 == []
-    assert json.dumps([r.to_dict() for r in serial]) == json.dumps([r.to_dict() for r in para])
+    assert json.dumps([yield_json(r) for r in serial]) == json.dumps([yield_json(r) for r in para])
 
 
 def test_batch_skips_bad_file_and_writes_summary(tmp_path, demo_paths):

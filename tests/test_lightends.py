@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 
-from assaycut.lightends import COMPONENTS, find_component
+from assaycut.model.lightends import COMPONENTS, find_component
 
 chemicals = pytest.importorskip("chemicals")
 

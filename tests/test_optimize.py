@@ -8,12 +8,14 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from assaycut.crude import build_model
-from assaycut.cutting import cut_columns, default_cut_set
+from assaycut.model.crude import build_model
+from assaycut.cutting.cutset import default_cut_set
+from assaycut.cutting.ideal import cut_columns
 from assaycut.errors import StudyError
 from assaycut.io import load_assay
 from assaycut.io.tomlfiles import demo_assay_paths, read_limits
-from assaycut.optimize import limit_margins, optimize_cut_points
+from assaycut.cutting.limits import limit_margins
+from assaycut.studies.cut_optimizer import optimize_cut_points
 from assaycut.yields import run_yields
 
 from .test_readers import cli_error

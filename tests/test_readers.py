@@ -61,7 +61,7 @@ def test_fractions_float_noise_and_flat_step_accepted(book):
 def test_curve_starting_late_and_stopping_at_45(book):
     def mutate(s):
         s["distillation"] = s["distillation"][:5] + [[8.0, 70.0], [20.0, 150.0], [35.0, 230.0], [45.0, 290.0]]
-    from assaycut.crude import build_model
+    from assaycut.model.crude import build_model
 
     m = build_model(load_assay(str(book(mutate))))
     assert m.curve.measured_hi == 45.0
@@ -91,7 +91,7 @@ def _library_cases():
 def test_bad_workbook_cases_through_the_library(tmp_path, name, build, match):
     # The same corpus cases as the CLI test (tests/test_corpus.py), read through the library: the error is an
     # InputError (an AssaycutError and a ValueError) with the same message, and the file is unchanged.
-    from assaycut.crude import build_model
+    from assaycut.model.crude import build_model
 
     args, inputs = build(tmp_path)
     if len(args) != 2 or args[0] not in ("yields", "check"):
@@ -222,8 +222,9 @@ def _curve_book(book, method, basis, points):
 
 
 def test_weight_basis_tbp_curve_converted_and_closed(book):
-    from assaycut.crude import build_model
-    from assaycut.cutting import cut_table, default_cut_set
+    from assaycut.model.crude import build_model
+    from assaycut.cutting.cutset import default_cut_set
+    from assaycut.cutting.ideal import cut_table
 
     pts = [(0, 20), (10, 90), (30, 180), (50, 290), (70, 410), (90, 560), (95, 620), (100, 700)]
     m = build_model(load_assay(str(_curve_book(book, "TBP", "wt", pts))))
@@ -243,11 +244,11 @@ def test_whole_crude_simdis_as_d2887_refused_clearly(book):
 
 def test_d2887_fraction_converts(book):
     # A diesel-range simulated distillation: the TBP 50 % point equals the D2887 50 % point (API TDB 3A3.1).
-    from assaycut.crude import to_tbp
+    from assaycut.model.input_curves import curve_to_tbp
 
     pts = [(0, 180), (10, 215), (30, 245), (50, 270), (70, 295), (90, 330), (95, 345), (100, 370)]
     a = load_assay(str(_curve_book(book, "D2887", "wt", pts)))
-    p, t, warnings, desc = to_tbp(a.curves[0])
+    p, t, warnings, desc = curve_to_tbp(a.curves[0])
     assert dict(zip(p, t))[50] == pytest.approx(270.0, abs=1e-9)
     assert "3A3.1" in desc
 

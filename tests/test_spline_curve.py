@@ -10,9 +10,11 @@ from numpy.testing import assert_allclose
 from scipy.integrate import quad
 from scipy.interpolate import PchipInterpolator
 
-from assaycut.curve import build_curve, fit_riazi_distribution
+from assaycut.methods.riazi_distribution import fit_riazi_distribution
+
+from assaycut.model.tbp_curve import build_curve
 from assaycut.errors import CurveError
-from assaycut.spline import Pchip
+from assaycut.model.spline import Pchip
 
 
 @st.composite
@@ -107,7 +109,7 @@ def test_curve_needs_three_points_to_extend():
 def test_light_ends_staircase_is_exact_between_boiling_points():
     # Pure components boil at their normal boiling point: between n-butane (-0.49 °C) and isopentane
     # (27.83 °C) nothing distils, so V(15 °C) equals the C4-minus volume exactly (common practice, no source).
-    from assaycut.curve import staircase
+    from assaycut.model.tbp_curve import staircase
 
     ft, fv = staircase([-42.11, -11.75, -0.49], [0.5, 0.9, 2.0])
     c = build_curve([2.0, 10, 30, 60], [27.83, 90, 200, 350], front_t=ft, front_v=fv)

@@ -8,13 +8,16 @@ import pytest
 from numpy.testing import assert_allclose
 from typer.testing import CliRunner
 
-from assaycut.blending import blend, refutas_viscosity, refutas_vbn, shrinkage_mpms_12_3
-from assaycut.crude import build_model
-from assaycut.cutting import default_cut_set
+from assaycut.methods.blending_rules import viscosity_from_vbn_refutas, vbn_refutas, shrinkage_api_mpms_12_3
+
+from assaycut.studies.blend import blend
+from assaycut.model.crude import build_model
+from assaycut.cutting.cutset import default_cut_set
 from assaycut.errors import StudyError
 from assaycut.io import load_assay
 from assaycut.io.tomlfiles import read_limits
-from assaycut.studies import Price, PriceSet, shift_delta, sweep, worth_table
+from assaycut.studies.compare import Price, PriceSet, worth_table
+from assaycut.studies.cutpoints import shift_delta, sweep
 from assaycut.yields import run_yields
 
 from .conftest import sha256
@@ -99,10 +102,10 @@ def app_():
 
 def test_refutas_and_shrinkage():
     # Maples (2000) Refutas: blending two oils of the same viscosity returns that viscosity (identity).
-    assert refutas_viscosity(0.3 * refutas_vbn(12.0) + 0.7 * refutas_vbn(12.0)) == pytest.approx(12.0, rel=1e-12)
+    assert viscosity_from_vbn_refutas(0.3 * vbn_refutas(12.0) + 0.7 * vbn_refutas(12.0)) == pytest.approx(12.0, rel=1e-12)
     # API MPMS 12.3 form (coefficients from memory): no gravity difference, no shrinkage; it grows with it.
-    assert shrinkage_mpms_12_3(40.0, 0.0) == 0.0
-    assert 0 < shrinkage_mpms_12_3(40.0, 10.0) < shrinkage_mpms_12_3(40.0, 20.0) < 2.0
+    assert shrinkage_api_mpms_12_3(40.0, 0.0) == 0.0
+    assert 0 < shrinkage_api_mpms_12_3(40.0, 10.0) < shrinkage_api_mpms_12_3(40.0, 20.0) < 2.0
 
 
 def test_shift_deltas_sum_to_zero_and_touch_only_neighbours(demos):

@@ -9,11 +9,13 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from assaycut.cutting import cut_table, default_cut_set
-from assaycut.crude import build_model
+from assaycut.cutting.cutset import default_cut_set
+
+from assaycut.cutting.ideal import cut_table
+from assaycut.model.crude import build_model
 from assaycut.io import load_assay
 from assaycut.io.tomlfiles import demo_assay_paths
-from assaycut.uncertainty import Sigmas, monte_carlo
+from assaycut.studies.uncertainty import Sigmas, monte_carlo
 
 runner = CliRunner()
 

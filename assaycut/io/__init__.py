@@ -2,9 +2,9 @@
 
 from __future__ import annotations
 
-from ..assay import Assay
 from ..errors import InputError
-from .workbook import read_bytes
+from ..model.assay import Assay
+from .cells import read_bytes
 
 
 def load_assay(path: str, *, api: float | None = None, sg: float | None = None, density: float | None = None,

@@ -5,10 +5,9 @@ from __future__ import annotations
 
 import math
 
-from ..assay import Assay
-from .atomic import atomic_write
-from .safe import safe_text
-from .workbook import (INSTRUCTIONS, SHEET_CRUDE, SHEET_CURVE, SHEET_CUTS, SHEET_LIGHT, SHEET_VACUUM)
+from ..files import atomic_write, safe_text
+from ..model.assay import Assay
+from .layout import INSTRUCTIONS, SHEET_CRUDE, SHEET_CURVE, SHEET_CUTS, SHEET_LIGHT, SHEET_VACUUM
 
 
 def _new_sheet(wb, name: str):

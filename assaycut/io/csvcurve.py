@@ -12,9 +12,10 @@ import hashlib
 import io
 import os
 
-from ..assay import Assay
 from ..errors import InputError
-from .workbook import MAX_ROWS, _Loc, gravity_from_inputs, parse_curve_rows, read_bytes
+from ..model.assay import Assay
+from .cells import SourceLocation, gravity_from_inputs, parse_curve_rows, read_bytes
+from .layout import MAX_ROWS
 
 
 def read_curve_csv(path: str, *, api: float | None = None, sg: float | None = None,
@@ -44,7 +45,7 @@ def read_curve_csv(path: str, *, api: float | None = None, sg: float | None = No
     Assay
     """
     data = read_bytes(path) if data is None else data
-    loc = _Loc(path)
+    loc = SourceLocation(path)
     try:
         text = data.decode("utf-8-sig")
     except UnicodeDecodeError:

@@ -1,4 +1,4 @@
-"""TOML files of assaycut: cut sets (``[[cut]]``) and product limits (``[[limit]]``)."""
+"""TOML files of assaycut: cut sets (``[[cut]]``), product limits (``[[limit]]``) and price files."""
 
 from __future__ import annotations
 
@@ -6,10 +6,12 @@ import math
 import tomllib
 from importlib import resources
 
-from ..cutting import Cut, CutSet
+from ..cutting.cutset import Cut, CutSet
+from ..cutting.limits import LIMIT_KEYS, SCALAR_PROPERTIES, Limit, validate_property
 from ..errors import AssaycutError, InputError
-from ..limits import Limit, limits_from_dicts
-from .workbook import read_bytes
+from ..studies.compare import Price, PriceSet
+from ..units import f_to_c
+from .cells import read_bytes
 
 
 def _load(path: str) -> dict:
@@ -27,7 +29,7 @@ def _load(path: str) -> dict:
 def _temp(v, key: str, i: int, path: str) -> float:
     if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v):
         raise InputError(f"[[cut]] {i}: '{key}' must be a number; found {v!r}", file=path)
-    return float(v) if key == "end_c" else (float(v) - 32.0) / 1.8
+    return float(v) if key == "end_c" else f_to_c(float(v))
 
 
 def cut_set_from_dict(doc: dict, path: str) -> CutSet:
@@ -87,6 +89,36 @@ def read_cut_set(path: str) -> CutSet:
     return cut_set_from_dict(_load(path), path)
 
 
+def limits_from_dicts(items: list[dict], where: str) -> list[Limit]:
+    """Limits from parsed TOML tables, each checked; errors name the file and the limit's index."""
+    out = []
+    for i, it in enumerate(items, start=1):
+        if not isinstance(it, dict):
+            raise InputError(f"[[limit]] {i} is not a table", file=where)
+        unknown = set(it) - set(LIMIT_KEYS)
+        if unknown:
+            raise InputError(f"[[limit]] {i}: unknown key {sorted(unknown)[0]!r}; expected cut, property, min, max, "
+                             f"strict, label, source", file=where)
+        for k in ("cut", "property"):
+            if not isinstance(it.get(k), str) or not it[k].strip():
+                raise InputError(f"[[limit]] {i}: '{k}' must be a non-empty text", file=where)
+        if not validate_property(it["property"]):
+            raise InputError(f"[[limit]] {i}: unknown property {it['property']!r}; expected a cut-table column "
+                             f"({', '.join(SCALAR_PROPERTIES)}), d86_<p>_c or recovered_at_<T>c_pct", file=where)
+        lo, hi = it.get("min"), it.get("max")
+        for k, v in (("min", lo), ("max", hi)):
+            if v is not None and (isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v)):
+                raise InputError(f"[[limit]] {i}: '{k}' must be a number; found {v!r}", file=where)
+        if lo is None and hi is None:
+            raise InputError(f"[[limit]] {i}: give 'min', 'max' or both", file=where)
+        if lo is not None and hi is not None and lo > hi:
+            raise InputError(f"[[limit]] {i}: min {lo:g} is above max {hi:g}", file=where)
+        out.append(Limit(it["cut"], it["property"], None if lo is None else float(lo),
+                         None if hi is None else float(hi), bool(it.get("strict", False)),
+                         str(it.get("label", "")), str(it.get("source", ""))))
+    return out
+
+
 def read_limits(path: str | None = None) -> list[Limit]:
     """Read a product-limits TOML file (``[[limit]]`` tables); None reads the shipped defaults."""
     if path is None:
@@ -129,8 +161,6 @@ def read_prices(path: str):
 
     Prices must be positive numbers, each given per_bbl or per_t (not both).
     """
-    from ..studies import Price, PriceSet
-
     doc = _load(path)
     unknown = set(doc) - {"currency", "products", "crudes"}
     if unknown:

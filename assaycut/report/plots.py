@@ -11,7 +11,7 @@ PLOT_TOP_PCT = 99.0
 """The TBP plot stops at this percent: the last fraction of a percent of the extension is not informative."""
 
 
-def _plt():
+def pyplot():
     import matplotlib
 
     matplotlib.use("Agg")
@@ -27,7 +27,7 @@ def _save(fig, target) -> None:
 
 def plot_tbp(result, target) -> None:
     """TBP curve with the cuts shaded and named; measured part solid, extrapolated part dashed."""
-    plt = _plt()
+    plt = pyplot()
     m = result.model
     c = m.curve
     v = np.linspace(0.0, PLOT_TOP_PCT, 600)
@@ -64,7 +64,7 @@ def plot_tbp(result, target) -> None:
 
 def plot_yields(result, target) -> None:
     """Yield bar chart on the volume and weight bases."""
-    plt = _plt()
+    plt = pyplot()
     cuts = result.cuts
     x = np.arange(len(cuts))
     fig, ax = plt.subplots(figsize=(9, 4.8))
@@ -93,14 +93,14 @@ def plot_yields(result, target) -> None:
 
 def plot_properties(result, target) -> None:
     """Local density (volume basis) and sulfur (weight basis) against percent distilled, with narrow cuts."""
-    plt = _plt()
+    plt = pyplot()
     m = result.model
     v = np.linspace(0.0, 100.0, 401)
     fig, (a1, a2) = plt.subplots(1, 2, figsize=(11, 4.5))
     a1.plot(v, m.sg_dist(v), color="#2e7d32", label="density distribution (reconciled)")
     nc = result.assay.narrow_cuts
     if nc is not None and m.density_source.startswith("narrow"):
-        from ..crude import narrow_cut_positions
+        from ..model.distributions import narrow_cut_positions
 
         va, vb = narrow_cut_positions(result.assay, m.curve)
         ok = np.isfinite(nc.sg)
@@ -114,7 +114,7 @@ def plot_properties(result, target) -> None:
     if m.sulfur_dist is not None:
         a2.plot(w, m.sulfur_dist(w), color="#f9a825", label="sulfur distribution (reconciled)")
         if nc is not None:
-            from ..crude import narrow_cut_positions
+            from ..model.distributions import narrow_cut_positions
 
             va, vb = narrow_cut_positions(result.assay, m.curve)
             wa, wb = m.wt_at_vol(va), m.wt_at_vol(vb)
@@ -136,7 +136,7 @@ def plot_properties(result, target) -> None:
 def plot_products(result, target) -> None:
     """Real-column products over the crude: how each product's material spreads over TBP (tails into the
     neighbours), and each product's own TBP curve against the ideal cut's."""
-    plt = _plt()
+    plt = pyplot()
     pc = result.products
     fig, (a1, a2) = plt.subplots(1, 2, figsize=(12, 5))
     t = pc["slice_temp_c"]

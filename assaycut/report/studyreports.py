@@ -6,9 +6,9 @@ import math
 
 import numpy as np
 
-from ..studies import WORTH_CAVEAT
+from ..studies.compare import WORTH_CAVEAT
 from ..units import sg_to_density15
-from .plots import _plt
+from .plots import pyplot
 from .xlsx import write_table
 
 COMPARE_LABELS = {"vol_pct": "Yield [vol %]", "wt_pct": "Yield [wt %]", "api": "API gravity [°API]",
@@ -78,7 +78,7 @@ def compare_workbook(results, table, worth, currency: str | None):
 
 def plot_compare(table, target) -> None:
     """Grouped bar chart of volume yields: one group per cut, one bar per crude."""
-    plt = _plt()
+    plt = pyplot()
     crudes = list(dict.fromkeys(table["crude"]))
     cuts = list(dict.fromkeys(table["cut"]))
     idx = table.set_index(["cut", "crude"])
@@ -100,7 +100,7 @@ def plot_compare(table, target) -> None:
 
 def plot_sweep(df, target, crude: str, limits: list | None = None) -> None:
     """Yields and key qualities of the two neighbouring cuts against the moving cut point."""
-    plt = _plt()
+    plt = pyplot()
     lo, hi = df.attrs.get("lower", "lower cut"), df.attrs.get("upper", "upper cut")
     t = df["cut_point_c"]
     fig, axs = plt.subplots(2, 2, figsize=(11, 7.5), sharex=True)
@@ -172,7 +172,7 @@ def plot_optimum(res, target, names_moved: list[str], title: str, objective_labe
                  after=None) -> None:
     """The optimiser's answer: for two moving cut points, the objective over the brute-force grid with the
     region breaking a limit greyed out, the start and the optimum marked; otherwise yields before and after."""
-    plt = _plt()
+    plt = pyplot()
     g = res.grid
     if "x" in g:
         fig, ax = plt.subplots(figsize=(8, 6))
@@ -203,7 +203,7 @@ def plot_optimum(res, target, names_moved: list[str], title: str, objective_labe
 
 def plot_blend_plan(plan, target) -> None:
     """The blend optimiser's shares, and each target against what the blend achieves."""
-    plt = _plt()
+    plt = pyplot()
     fig, (a1, a2) = plt.subplots(1, 2, figsize=(11, 4.5), gridspec_kw={"width_ratios": [1, 1.3]})
     names = list(plan.shares_pct)
     a1.barh(names, [plan.shares_pct[n] for n in names], color="#00838f")

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import math
 
-from ..crude import D86_STD
-from ..io.safe import safe_text
+from ..files import safe_text
+from ..methods.d86 import D86_STD
 
 LABELS = {
     "name": "Cut",

@@ -8,8 +8,7 @@ import io
 import re
 from pathlib import Path
 
-from ..io.atomic import atomic_write
-from ..io.safe import safe_text
+from ..files import atomic_write, safe_text
 from .tables import LABELS, flat_cut_rows, markdown_summary
 
 
@@ -89,7 +88,7 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ())
 
 def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
     """Library summary (xlsx and CSV), one row per assay."""
-    from ..library import library_summary
+    from ..cutting.library import library_summary
     from .xlsx import write_table
 
     df = library_summary([r.assay for r in results], [r.model for r in results], cs)

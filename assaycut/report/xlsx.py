@@ -10,7 +10,7 @@ import math
 
 import numpy as np
 
-from ..io.safe import safe_text
+from ..files import safe_text
 from .tables import FORMATS, LABELS, flat_cut_rows
 
 HEADER_FILL = "DDE6EE"
@@ -84,6 +84,7 @@ def yield_workbook(result):
     from openpyxl.styles import Font
 
     from .. import __version__
+    from ..units import sg_to_density15
     from ..yields import CAUTIONS
 
     a, m = result.assay, result.model
@@ -95,7 +96,7 @@ def yield_workbook(result):
     ws["A2"] = "Estimates for screening and planning, not measured properties. See the notes sheet."
     ws["A2"].font = Font(italic=True)
     info = [("Crude", a.name, None), ("Origin", a.origin, None), ("API gravity [°API]", a.api, "0.0"),
-            ("SG 60/60 °F [-]", a.sg, "0.0000"), ("Density 15 °C [kg/m3]", result.to_dict()["assay"]["density_15c_kg_m3"], "0.0"),
+            ("SG 60/60 °F [-]", a.sg, "0.0000"), ("Density 15 °C [kg/m3]", sg_to_density15(a.sg), "0.0"),
             ("Sulfur [wt %]", m.sulfur_wt_pct, "0.000"),
             ("Curve measured to [vol %]", m.curve.measured_hi, "0.0"),
             ("Density reconciliation [%]", m.density_reconciliation_pct, "0.00"),
@@ -144,7 +145,7 @@ def yield_workbook(result):
             c.fill = PatternFill("solid", fgColor=colors[c.value])
 
     if result.bands is not None:
-        from ..uncertainty import BAND_QUALITIES
+        from ..studies.uncertainty import BAND_QUALITIES
 
         ws = wb.create_sheet("uncertainty")
         heads, keys, fmts = ["Cut"], ["name"], [None]

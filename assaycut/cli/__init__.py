@@ -1,0 +1,81 @@
+"""Command line of assaycut: a thin shell over the readers, the core and the report writers.
+
+Each command family is a Typer app of its own (:mod:`.yields`, :mod:`.convert`, :mod:`.compare`,
+:mod:`.cutpoints`), composed here with ``add_typer``; the families share :mod:`.common` and import neither
+each other nor this module.  :mod:`.batch` runs the yield job over many files.
+"""
+
+from __future__ import annotations
+
+import os
+import signal
+import sys
+
+import typer
+from typer.core import TyperGroup
+
+from . import compare, convert, cutpoints, yields
+from .common import TdMethod, error_line, interrupted
+
+
+class _OneLineErrors(TyperGroup):
+    """Command group whose usage errors (bad option, missing argument...) are one line on stderr, exit 2."""
+
+    def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True, **extra):
+        if not standalone_mode:
+            return super().main(args, prog_name, complete_var, standalone_mode=False, **extra)
+        # the base class of click's usage errors, whether typer vendors click or depends on it
+        ClickException = next(c for c in typer.BadParameter.__mro__ if c.__name__ == "ClickException")
+        try:
+            rv = super().main(args, prog_name, complete_var, standalone_mode=False, **extra)
+        except ClickException as exc:
+            where = f" (see '{exc.ctx.command_path} --help')" if getattr(exc, "ctx", None) else ""
+            error_line(" ".join(exc.format_message().split()) + where)
+            sys.exit(exc.exit_code)
+        except typer.Abort:
+            error_line("aborted")
+            sys.exit(1)
+        sys.exit(rv if isinstance(rv, int) else 0)
+
+
+app = typer.Typer(
+    cls=_OneLineErrors,
+    name="assaycut",
+    help="Cut crude-oil assays at your refinery's TBP cut points: yields, cut qualities and limit checks, "
+         "distillation conversions and reports. Results are estimates for screening and planning, not "
+         "measured properties. With no command, runs the yield report on the demo assay.",
+    add_completion=False,
+    no_args_is_help=False,
+    pretty_exceptions_enable=False,
+    rich_markup_mode=None,
+)
+for _family in (yields, convert, compare, cutpoints):
+    app.add_typer(_family.app)
+
+
+@app.callback(invoke_without_command=True)
+def _root(ctx: typer.Context) -> None:
+    """Bare `assaycut` runs the yield report on the demo assay."""
+    if ctx.invoked_subcommand is None:
+        ctx.invoke(yields.yields, assays=None, cuts=None, limits=None, out=None, json_out=False, end=None,
+                   api=None, sg=None, density=None, sulfur=None, method=TdMethod.daubert_1994,
+                   summary_only=False, overlap=None, uncertainty=0, sigma_temp=2.0, sigma_pct=0.3,
+                   sigma_sg=0.0005, sigma_sulfur=3.0)
+
+
+def _on_sigterm(signum, frame):  # pragma: no cover - exercised by a subprocess test
+    from ..files import cleanup_pending
+
+    cleanup_pending()
+    sys.stderr.write("assaycut: error: terminated; no partial report was left\n")
+    os._exit(143)
+
+
+def main() -> None:
+    """Console entry point."""
+    signal.signal(signal.SIGTERM, _on_sigterm)
+    try:
+        app()
+    except KeyboardInterrupt:
+        interrupted()
+        sys.exit(130)

@@ -1,0 +1,194 @@
+"""What every command of the command line shares: one-line errors, the option types, and the helpers that
+turn command-line text into assays, cut sets and numbers.
+
+Heavy libraries (pandas, scipy, matplotlib, openpyxl) are imported inside the helpers and commands that use
+them, so that ``assaycut --help`` and ``assaycut convert`` start fast.
+"""
+
+from __future__ import annotations
+
+import enum
+import functools
+import json
+import math
+import os
+import sys
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from ..errors import AssaycutError
+
+EXIT_INPUT = 2
+"""Exit code of bad input and usage errors."""
+EXIT_INTERNAL = 3
+"""Exit code of an unexpected internal error."""
+
+
+def error_line(msg: str) -> None:
+    """One error line on stderr."""
+    typer.echo(f"assaycut: error: {msg}", err=True)
+
+
+def echo_json(doc) -> None:
+    """A JSON document on stdout, indented, non-ASCII kept."""
+    typer.echo(json.dumps(doc, indent=2, ensure_ascii=False))
+
+
+def echo_lines(lines: list[str]) -> None:
+    """Text lines on stdout."""
+    for line in lines:
+        typer.echo(line)
+
+
+def interrupted() -> None:
+    """Ctrl-C: remove the temporary file of a write in progress and say so."""
+    from ..files import cleanup_pending
+
+    cleanup_pending()
+    error_line("interrupted; no partial report was left")
+
+
+def guarded(func):
+    """Turn AssaycutErrors into one line on stderr and exit code 2; never a traceback."""
+
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        try:
+            return func(*args, **kwargs)
+        except (typer.Exit, typer.Abort):
+            raise
+        except AssaycutError as exc:
+            error_line(str(exc))
+            raise typer.Exit(EXIT_INPUT) from None
+        except BrokenPipeError:  # output piped into e.g. `head`: stop quietly
+            devnull = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(devnull, sys.stdout.fileno())
+            raise typer.Exit(0) from None
+        except KeyboardInterrupt:
+            interrupted()
+            raise typer.Exit(130) from None
+        except MemoryError:
+            error_line("out of memory; the input is too large")
+            raise typer.Exit(EXIT_INPUT) from None
+        except Exception as exc:  # last resort: one line, never a traceback
+            error_line(f"unexpected {type(exc).__name__}: {exc} (please report this with the input file)")
+            raise typer.Exit(EXIT_INTERNAL) from None
+
+    return wrapper
+
+
+# -- shared options -------------------------------------------------------------------------------------
+class TdMethod(str, enum.Enum):
+    daubert_1994 = "daubert-1994"
+    riazi_daubert_1986 = "riazi-daubert-1986"
+
+
+CutsOpt = Annotated[Optional[Path], typer.Option("--cuts", help="Cut-set TOML file ([[cut]] name, end_c). "
+                                                  "Default: the shipped cut set (see cuts_default.toml).",
+                                                  dir_okay=False)]
+LimitsOpt = Annotated[Optional[Path], typer.Option("--limits", help="Product-limits TOML file ([[limit]]). "
+                                                    "Default: typical EN 590 / ASTM D1655 values, from memory.",
+                                                    dir_okay=False)]
+PricesOpt = Annotated[Optional[Path], typer.Option("--prices", help="Price file (TOML): [products] price per cut "
+                                                    "per_bbl or per_t, optional [crudes] prices.", dir_okay=False)]
+EndOpt = Annotated[Optional[list[str]], typer.Option("--end", help="Override one cut's end: NAME=TEMP_C. "
+                                                      "Repeatable.", metavar="NAME=TEMP_C")]
+ApiOpt = Annotated[Optional[float], typer.Option("--api", help="Whole-crude API gravity [°API], for a curve CSV.")]
+SgOpt = Annotated[Optional[float], typer.Option("--sg", help="Whole-crude SG 60/60 °F, for a curve CSV.")]
+DensOpt = Annotated[Optional[float], typer.Option("--density", help="Whole-crude density at 15 °C [kg/m3], "
+                                                   "for a curve CSV.")]
+SulfurOpt = Annotated[Optional[float], typer.Option("--sulfur", help="Whole-crude sulfur [wt %], for a curve CSV.")]
+JsonOpt = Annotated[bool, typer.Option("--json", help="Print JSON on stdout.")]
+UncertOpt = Annotated[int, typer.Option("--uncertainty", metavar="DRAWS", min=0, max=5000,
+                                        help="Monte Carlo draws for P10/P50/P90 bands under the assay's measurement "
+                                             "uncertainty (0: off; 200 is a good start).")]
+AssayArg = Annotated[Optional[str], typer.Argument(help="Assay. Default: the demo.")]
+
+
+def parse_ends(items: list[str] | None, option: str = "--end", what: str = "a temperature in °C") -> dict[str, float]:
+    """{cut name: number} from NAME=VALUE texts (``--end diesel=350``, ``--overlap diesel=25``)."""
+    out: dict[str, float] = {}
+    for it in items or []:
+        if "=" not in it:
+            raise AssaycutError(f"{option} {it!r}: expected NAME=VALUE, e.g. {option} diesel=350")
+        name, _, val = it.rpartition("=")
+        try:
+            t = float(val)
+        except ValueError:
+            raise AssaycutError(f"{option} {it!r}: {val!r} is not {what}") from None
+        if not math.isfinite(t):
+            raise AssaycutError(f"{option} {it!r}: {val!r} is not {what}")
+        if not name.strip():
+            raise AssaycutError(f"{option} {it!r}: the cut name is empty")
+        out[name.strip()] = t
+    return out
+
+
+def load_cut_set(cuts: Path | None, ends: list[str] | None, overlaps: list[str] | None = None):
+    """The cut set of --cuts (or the shipped default), with the --end and --overlap changes applied."""
+    from ..cutting.cutset import default_cut_set
+    from ..cutting.products import widths_for
+    from ..io.tomlfiles import read_cut_set
+
+    cs = read_cut_set(str(cuts)) if cuts else default_cut_set()
+    changes = parse_ends(ends)
+    cs = cs.with_ends(changes, cs.label + " with --end changes") if changes else cs
+    if overlaps:
+        cs.overlaps.update(parse_ends(overlaps, option="--overlap", what="a TBP width in °C"))
+        widths_for(cs, cs.overlaps)  # refuses unknown cuts and absurd widths now
+    return cs
+
+
+def load_limits(limits: Path | None):
+    """The product limits of --limits, or the shipped defaults."""
+    from ..io.tomlfiles import read_limits
+
+    return read_limits(str(limits) if limits else None)
+
+
+def load_prices(prices: Path | None):
+    """The price file of --prices, or None."""
+    from ..io.tomlfiles import read_prices
+
+    return read_prices(str(prices)) if prices else None
+
+
+def resolve_assays(paths: list[str] | None) -> list[str]:
+    """Assay paths from files, folders or glob patterns; the first demo assay when none are given."""
+    import glob
+
+    from ..io.tomlfiles import demo_assay_paths
+
+    if not paths:
+        return demo_assay_paths()[:1]
+    out: list[str] = []
+    for p in paths:
+        if os.path.isdir(p):
+            found = sorted(f for ext in ("*.xlsx", "*.csv") for f in glob.glob(os.path.join(p, ext)))
+            if not found:
+                raise AssaycutError(f"{p}: the folder holds no .xlsx or .csv assays")
+            out += found
+        elif any(ch in p for ch in "*?[") and not os.path.exists(p):
+            found = sorted(glob.glob(p))
+            if not found:
+                raise AssaycutError(f"{p}: no file matches this pattern")
+            out += found
+        else:
+            out.append(p)
+    return out
+
+
+def load(path: str, api=None, sg=None, density=None, sulfur=None):
+    """The assay in ``path``; whole-crude figures for a curve CSV."""
+    from ..io import load_assay
+
+    return load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
+
+
+def load_one(assay: str | None):
+    """(path, assay) of the one assay a study command takes (the demo when none is given)."""
+    path = resolve_assays([assay] if assay else None)[0]
+    return path, load(path)
+

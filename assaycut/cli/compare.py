@@ -1,0 +1,213 @@
+"""Crude selection: crudes compared side by side with their worth, and blends of crudes (given or optimised)."""
+
+from __future__ import annotations
+
+import enum
+import io
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from ..errors import AssaycutError
+from .common import (CutsOpt, EndOpt, JsonOpt, LimitsOpt, PricesOpt, UncertOpt, echo_json, echo_lines, guarded, load,
+                     load_cut_set, load_limits, load_prices, parse_ends, resolve_assays)
+
+app = typer.Typer()
+
+
+class Basis(str, enum.Enum):
+    vol = "vol"
+    wt = "wt"
+
+
+class BlendObjective(str, enum.Enum):
+    worth = "worth"
+    cost = "cost"
+
+
+@app.command()
+@guarded
+def compare(
+    assays: Annotated[list[str], typer.Argument(help="Two or more assays (files, folders or globs).")],
+    cuts: CutsOpt = None,
+    limits: LimitsOpt = None,
+    prices: PricesOpt = None,
+    json_out: JsonOpt = False,
+    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/compare/.",
+                                                file_okay=False)] = None,
+    end: EndOpt = None,
+    uncertainty: UncertOpt = 0,
+) -> None:
+    """Compare crudes for crude selection: every assay cut with the same cut set, side by side.
+
+    Shows yields on both bases and the key qualities per product (API, sulfur, Watson K, limit status).
+    With --prices, ranks the crudes by gross product worth and margin over the crude price per barrel and
+    per tonne. Worth ignores operating costs, unit capacities, quality give-away and freight.
+    """
+    from ..studies.compare import WORTH_CAVEAT, comparison_table, worth_table
+    from ..yields import run_yields
+
+    paths = resolve_assays(assays)
+    if len(paths) < 2:
+        raise AssaycutError("compare needs at least two assays")
+    cs = load_cut_set(cuts, end)
+    lim = load_limits(limits)
+    ps = load_prices(prices)
+    results = [run_yields(load(p), cs, lim, uncertainty_draws=uncertainty) for p in paths]
+    table = comparison_table(results)
+    worth = worth_table(results, ps) if ps else None
+    inside = _inside_bands(results) if uncertainty else []
+    if out is not None or not json_out:
+        from ..report.studyreports import compare_workbook, plot_compare
+        from ..report.write import place_files, png_bytes
+
+        buf = io.BytesIO()
+        compare_workbook(results, table, worth, ps.currency if ps else None).save(buf)
+        files = {"comparison.xlsx": buf.getvalue(), "comparison_yields.png": png_bytes(plot_compare, table)}
+        inputs = tuple(paths) + tuple(str(x) for x in (cuts, limits, prices) if x)
+        written = place_files(out or Path("reports") / "compare", files, inputs)
+    if json_out:
+        from ..report.jsonout import compare_json
+
+        echo_json(compare_json(results, worth, inside, WORTH_CAVEAT))
+        return
+    from ..report.console import compare_text
+
+    echo_lines(compare_text(table, worth, ps.currency if ps else None, WORTH_CAVEAT, inside, bool(uncertainty)))
+    typer.echo(f"Report written to {written[0].parent} ({len(written)} files).")
+
+
+def _inside_bands(results) -> list[tuple[str, str, str]]:
+    """(cut, crude, crude) where two crudes' volume-yield P10-P90 bands overlap."""
+    from ..studies.uncertainty import overlapping
+
+    out = []
+    for j, cut in enumerate(results[0].cuts["name"]):
+        bands = {r.assay.name: (float(r.bands["vol_pct_p10"].iloc[j]), float(r.bands["vol_pct_p90"].iloc[j]))
+                 for r in results}
+        out += [(cut, a, b) for a, b in overlapping(bands)]
+    return out
+
+
+def _parse_shares(items: list[str]) -> list[tuple[str, float]]:
+    out = []
+    for it in items:
+        path, sep, pct = it.rpartition("=")
+        if not sep or not path:
+            raise AssaycutError(f"{it!r}: expected ASSAY=PERCENT, e.g. selkie.xlsx=60")
+        try:
+            out.append((path, float(pct)))
+        except ValueError:
+            raise AssaycutError(f"{it!r}: {pct!r} is not a percent") from None
+    return out
+
+
+@app.command()
+@guarded
+def blend(
+    shares: Annotated[list[str], typer.Argument(help="ASSAY=PERCENT for each crude (the percents add up to 100); "
+                                                "with --optimize, ASSAY or ASSAY=MIN:MAX share bounds in %.",
+                                                metavar="ASSAY=PCT")],
+    out: Annotated[Optional[Path], typer.Option("--out", help="New assay workbook to write (.xlsx).",
+                                                dir_okay=False)] = None,
+    basis: Annotated[Basis, typer.Option("--basis", help="Basis of the shares and of the blended curve.")] = Basis.vol,
+    name: Annotated[Optional[str], typer.Option("--name", help="Name of the blend.")] = None,
+    shrinkage: Annotated[bool, typer.Option("--shrinkage", help="Apply API MPMS 12.3 light-ends shrinkage "
+                                            "(off by default).")] = False,
+    optimize_: Annotated[bool, typer.Option("--optimize", help="Find the shares that meet the targets at the "
+                                            "best worth (or lowest crude cost) instead of taking them.")] = False,
+    prices: PricesOpt = None,
+    objective: Annotated[BlendObjective, typer.Option("--objective", help="With --optimize: 'worth' (margin "
+                                                      "when crude prices are given) or 'cost' (cheapest crude "
+                                                      "slate).")] = BlendObjective.worth,
+    api_min: Annotated[Optional[float], typer.Option("--api-min", help="Target: blend API at least [°API].")] = None,
+    api_max: Annotated[Optional[float], typer.Option("--api-max", help="Target: blend API at most [°API].")] = None,
+    sulfur_max: Annotated[Optional[float], typer.Option("--sulfur-max", help="Target: blend sulfur at most "
+                                                        "[wt %].")] = None,
+    min_yield: Annotated[Optional[list[str]], typer.Option("--min-yield", metavar="CUT=PCT",
+                                                           help="Target: a cut's yield at least PCT vol %. "
+                                                                "Repeatable.")] = None,
+    cuts: CutsOpt = None,
+) -> None:
+    """Blend crudes into a new assay workbook that every command can read, or (--optimize) find the blend.
+
+    The blended TBP curve is the share-weighted sum of the parents' cumulative curves on the chosen basis,
+    over the range all parents measured. Gravity blends by volume on SG (never by averaging API); sulfur and
+    other mass-based properties by weight; viscosity by the Refutas blending number. The new assay's notes
+    record its parents and their sha256.
+
+    With --optimize, the shares (volume basis, within each crude's MIN:MAX bounds) are chosen by linear
+    programming to meet the targets (--api-min/--api-max, --sulfur-max, --min-yield) at the best margin or
+    gross worth per barrel, or the lowest crude cost. These linear blending rules ignore shrinkage and
+    operating costs. Where the targets cannot all be met, it says which ones, and by how much, and exits
+    with code 1. A plot of the plan (blend_plan.png) goes beside --out, or to reports/blend/.
+    """
+    from ..io.assaywriter import write_assay_workbook
+    from ..model.crude import build_model
+    from ..studies.blend import blend as do_blend
+
+    if out is not None and out.suffix.lower() != ".xlsx":
+        raise AssaycutError(f"{out}: the blend is written as an assay workbook; give a path ending in .xlsx")
+    if optimize_:
+        plan, parents = _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield, cuts,
+                                        out.parent if out is not None else Path("reports") / "blend")
+        if not plan.feasible:
+            raise typer.Exit(1)
+        items = [(p, plan.shares_pct[a.name]) for p, a, _ in parents if plan.shares_pct[a.name] > 1e-6]
+        chosen = [(a, m, plan.shares_pct[a.name]) for _, a, m in parents if plan.shares_pct[a.name] > 1e-6]
+        total = sum(x for _, _, x in chosen)
+        chosen = [(a, m, x * 100.0 / total) for a, m, x in chosen]
+        if out is None:
+            return
+        new = do_blend(chosen, basis="vol", name=name, shrinkage=shrinkage)
+        write_assay_workbook(new, str(out), inputs=tuple(p for p, _ in items))
+        typer.echo(f"Optimal blend written to {out}")
+        return
+    if out is None:
+        raise AssaycutError("give --out NEW.xlsx for the blended assay")
+    items = _parse_shares(shares)
+    parents = []
+    for path, pct in items:
+        a = load(path)
+        parents.append((a, build_model(a), pct))
+    new = do_blend(parents, basis=basis.value, name=name, shrinkage=shrinkage)
+    write_assay_workbook(new, str(out), inputs=tuple(p for p, _ in items))
+    from ..report.console import blend_text
+
+    echo_lines(blend_text(new))
+    typer.echo(f"Assay workbook written to {out}")
+
+
+def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield, cuts, folder: Path):
+    """Run the blend optimiser for the CLI and print (and plot) its plan."""
+    from ..model.crude import build_model
+    from ..report.console import blend_plan_text
+    from ..report.studyreports import plot_blend_plan
+    from ..report.write import place_files, png_bytes
+    from ..studies.blend_optimizer import BlendTargets, optimize_blend
+    from ..yields import run_yields
+
+    cs = load_cut_set(cuts, None)
+    ps = load_prices(prices)
+    parents, bounds = [], {}
+    for it in shares:
+        path, sep, rng = it.rpartition("=") if "=" in it else (it, "", "")
+        a = load(path)
+        m = build_model(a)
+        parents.append((path, a, m))
+        if sep:
+            lo, colon, hi = rng.partition(":")
+            try:
+                bounds[a.name] = (float(lo), float(hi)) if colon else (float(lo), float(lo))
+            except ValueError:
+                raise AssaycutError(f"{it!r}: expected ASSAY=MIN:MAX share bounds in %, e.g. crude.xlsx=10:60") from None
+    results = [run_yields(a, cs, None, model=m) for _, a, m in parents]
+    targets = BlendTargets(api_min, api_max, sulfur_max, parse_ends(min_yield, option="--min-yield",
+                                                                    what="a yield in vol %"))
+    plan = optimize_blend(results, bounds, targets, ps, objective.value)
+    echo_lines(blend_plan_text(plan))
+    written = place_files(folder, {"blend_plan.png": png_bytes(plot_blend_plan, plan)},
+                          tuple(p for p, _, _ in parents))
+    typer.echo(f"  Plot written to {written[0]}")
+    return plan, parents

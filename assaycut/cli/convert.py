@@ -1,0 +1,106 @@
+"""Converting a distillation curve between methods."""
+
+from __future__ import annotations
+
+import enum
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from ..errors import AssaycutError
+from .common import JsonOpt, TdMethod, echo_json, echo_lines, guarded
+
+app = typer.Typer()
+
+
+class FromMethod(str, enum.Enum):
+    TBP = "TBP"
+    D86 = "D86"
+    D2887 = "D2887"
+    D1160 = "D1160"
+
+
+class ToMethod(str, enum.Enum):
+    TBP = "TBP"
+    D86 = "D86"
+    AET = "AET"
+
+
+class TUnit(str, enum.Enum):
+    C = "C"
+    F = "F"
+
+
+@app.command()
+@guarded
+def convert(
+    points: Annotated[Optional[list[str]], typer.Argument(help="PERCENT=TEMP pairs, e.g. 10=176.7 50=206.7",
+                                                          metavar="PERCENT=TEMP")] = None,
+    frm: Annotated[FromMethod, typer.Option("--from", help="Method of the input curve.")] = FromMethod.D86,
+    to: Annotated[ToMethod, typer.Option("--to", help="Method to convert to (AET for D1160 data).")] = ToMethod.TBP,
+    method: Annotated[TdMethod, typer.Option("--method", help="Correlation for TBP <-> D86.")] =
+    TdMethod.daubert_1994,
+    pressure_mmhg: Annotated[Optional[float], typer.Option("--pressure-mmhg", help="Pressure of D1160 data [mmHg].",
+                                                           min=1e-6)] = None,
+    unit: Annotated[TUnit, typer.Option("--unit", help="Temperature unit of input and printed output "
+                                        "(JSON temp_c is always °C).")] = TUnit.C,
+    file: Annotated[Optional[Path], typer.Option("--file", help="CSV with vol_pct/wt_pct and temp_c/temp_f/temp_k "
+                                                 "columns instead of PERCENT=TEMP pairs.", dir_okay=False)] = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Convert a distillation curve between methods by published correlations.
+
+    TBP <-> D86 by Daubert 1994 (API TDB 3A1.1, default) or Riazi-Daubert 1986; D2887 -> TBP (API TDB
+    3A3.1) and D2887 -> D86 (3A3.2); D1160 at --pressure-mmhg -> AET (Maxwell-Bonnell, API TDB 5A1.19).
+    Conversions carry errors of a few °C, largest at the initial point.
+    """
+    from ..methods.distillation import convert as do_convert
+    from ..units import c_to_f, f_to_c
+
+    if file is not None and points:
+        raise AssaycutError("give PERCENT=TEMP pairs or --file, not both")
+    pts = _points_from_csv(str(file)) if file is not None else _points_from_args(points, unit == TUnit.F, f_to_c)
+    if not pts:
+        raise AssaycutError("no points: give PERCENT=TEMP pairs (e.g. 10=176.7 50=206.7) or --file CSV")
+    for p, t in pts.items():
+        if t < -273.15:
+            raise AssaycutError(f"{p:g} %: {t:.2f} °C is below absolute zero")
+    out, used, warnings = do_convert(pts, frm.value, to.value, method=method.value, pressure_mmhg=pressure_mmhg)
+    if json_out:
+        from ..report.jsonout import convert_json
+
+        echo_json(convert_json(frm.value, to.value, used, out, warnings))
+    else:
+        from ..report.console import convert_text
+
+        fahrenheit = unit == TUnit.F
+        echo_lines(convert_text(frm.value, to.value, used, pts, out, "°F" if fahrenheit else "°C",
+                                c_to_f if fahrenheit else (lambda x: x)))
+    for w in warnings:
+        typer.echo(f"warning: {w}", err=True)
+
+
+def _points_from_args(points: list[str] | None, fahrenheit: bool, f_to_c) -> dict[float, float]:
+    """{percent: temperature [°C]} from PERCENT=TEMP texts, each checked."""
+    pts: dict[float, float] = {}
+    for it in points or []:
+        p, sep, t = it.partition("=")
+        try:
+            pv, tv = float(p), float(t)
+        except ValueError:
+            raise AssaycutError(f"{it!r}: expected PERCENT=TEMP with numbers, e.g. 50=206.7") from None
+        if not sep or not (0.0 <= pv <= 100.0):
+            raise AssaycutError(f"{it!r}: expected PERCENT=TEMP with a percent between 0 and 100")
+        if pv in pts:
+            raise AssaycutError(f"{it!r}: the {pv:g} % point is given twice")
+        pts[pv] = f_to_c(tv) if fahrenheit else tv
+    return pts
+
+
+def _points_from_csv(path: str) -> dict[float, float]:
+    from ..io.csvcurve import read_curve_csv
+
+    a = read_curve_csv(path, sg=0.85)  # gravity is not used by a conversion
+    c = a.curves[0]
+    return {float(p): float(t) for p, t in zip(c.percent, c.temp_c)}

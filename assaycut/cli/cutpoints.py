@@ -1,0 +1,164 @@
+"""Cut-point studies: what a change of cut point moves, one cut point swept, and the optimum cut points."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from ..errors import AssaycutError
+from .common import (AssayArg, CutsOpt, EndOpt, JsonOpt, LimitsOpt, PricesOpt, echo_json, echo_lines, guarded,
+                     load_cut_set, load_limits, load_one, load_prices, parse_ends)
+
+app = typer.Typer()
+
+OutOpt = Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/.",
+                                                file_okay=False)]
+
+
+@app.command()
+@guarded
+def shift(
+    assay: AssayArg = None,
+    end: EndOpt = None,
+    cuts: CutsOpt = None,
+    limits: LimitsOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Show what a change of cut point moves: per-cut deltas in yield, SG, sulfur, D86, CCI, flash and limits.
+
+    Compares the base cut set with the one changed by --end NAME=TEMP_C (repeatable). Changed cuts are marked
+    with '*'; limits that flip are listed. Shift deltas add up to zero on each basis.
+    """
+    from ..model.crude import build_model
+    from ..studies.cutpoints import shift_delta
+    from ..yields import run_yields
+
+    if not end:
+        raise AssaycutError("give at least one --end NAME=TEMP_C to change")
+    base_cs = load_cut_set(cuts, None)
+    new_cs = load_cut_set(cuts, end)
+    lim = load_limits(limits)
+    _, a = load_one(assay)
+    model = build_model(a)
+    base = run_yields(a, base_cs, lim, model=model)
+    new = run_yields(a, new_cs, lim, model=model)
+    delta = shift_delta(base, new)
+    if json_out:
+        from ..report.jsonout import shift_json
+
+        echo_json(shift_json(base, new, delta))
+        return
+    from ..report.studyreports import shift_text
+
+    typer.echo(f"{a.name}: cut-point change " + ", ".join(f"{k} -> {v:g} °C" for k, v in parse_ends(end).items()))
+    typer.echo(shift_text(delta))
+
+
+@app.command()
+@guarded
+def sweep(
+    assay: AssayArg = None,
+    end: Annotated[str, typer.Option("--end", help="Name of the cut whose end point moves.")] = "kerosene",
+    t_from: Annotated[float, typer.Option("--from", help="First cut point [°C TBP].")] = 200.0,
+    t_to: Annotated[float, typer.Option("--to", help="Last cut point [°C TBP].")] = 260.0,
+    step: Annotated[float, typer.Option("--step", help="Step [°C].", min=1e-3)] = 5.0,
+    cuts: CutsOpt = None,
+    limits: LimitsOpt = None,
+    out: OutOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Sweep one cut point and show the yield and key qualities of the two neighbouring cuts.
+
+    The curve an engineer reads to pick a cut point against a product limit: yields on both bases,
+    density, D86 10 % / 95 % at the boundary, flash estimate and cetane index, as a table, a CSV and a PNG
+    with the product limits drawn in.
+    """
+    from ..model.crude import build_model
+    from ..studies.cutpoints import sweep as do_sweep
+
+    cs = load_cut_set(cuts, None)
+    lim = load_limits(limits)
+    path, a = load_one(assay)
+    df = do_sweep(build_model(a), cs, end, t_from, t_to, step)
+    if out is not None or not json_out:
+        from ..report.studyreports import plot_sweep
+        from ..report.write import csv_text, place_files, png_bytes, slug
+
+        rel = [x for x in lim if x.cut in (df.attrs["lower"], df.attrs["upper"])]
+        base = f"{slug(a.name)}_sweep_{slug(end)}"
+        files = {f"{base}.csv": csv_text(list(df.columns), df.values.tolist()).encode("utf-8"),
+                 f"{base}.png": png_bytes(plot_sweep, df, a.name, rel)}
+        written = place_files(out or Path("reports") / slug(a.name), files, (path,))
+    if json_out:
+        from ..report.jsonout import sweep_json
+
+        echo_json(sweep_json(a.name, df))
+        return
+    from ..report.console import sweep_text
+
+    echo_lines(sweep_text(a.name, df))
+    typer.echo(f"Sweep written to {written[0].parent} ({len(written)} files).")
+
+
+@app.command()
+@guarded
+def optimize(
+    assay: AssayArg = None,
+    maximize: Annotated[Optional[str], typer.Option("--maximize", help="Product (cut name) whose volume yield "
+                                                    "is maximised by moving its two cut points.")] = None,
+    prices: PricesOpt = None,
+    cuts: CutsOpt = None,
+    limits: LimitsOpt = None,
+    span: Annotated[float, typer.Option("--span", help="How far each cut point may move from its starting "
+                                        "value [°C].", min=1.0, max=400.0)] = 60.0,
+    out: OutOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Find the cut points that maximise a product's yield (--maximize NAME) or the crude's worth
+    (--prices FILE) while every product limit is met.
+
+    With --maximize, the two cut points around the product move (each within --span of where it starts;
+    the other cut points stay); the limits of the product and its two neighbours apply. With --prices, every
+    cut point moves and every limit applies. The search starts from a brute-force grid and refines with
+    scipy's SLSQP; the answer is checked against every limit and never breaks one. Limits the estimates
+    cannot evaluate (n/a) do not constrain, and a limit that can be evaluated at the start must stay so:
+    e.g. the flash estimate is made for cuts starting at 150 °C or above, so a kerosene start is held there.
+    The answer rests on estimated qualities: confirm with the laboratory and your column's real
+    fractionation before moving cut points.
+    """
+    from ..model.crude import build_model
+    from ..studies.cut_optimizer import optimize_cut_points
+    from ..yields import run_yields
+
+    cs = load_cut_set(cuts, None)
+    lim = load_limits(limits)
+    ps = load_prices(prices)
+    path, a = load_one(assay)
+    model = build_model(a)
+    res = optimize_cut_points(model, cs, lim, maximize=maximize, prices=ps, span_c=span)
+    new_cs = cs.with_ends({c.name: float(e) for c, e in zip(cs.cuts, res.ends_c)}, cs.label + " optimised")
+    before = run_yields(a, cs, lim, model=model)
+    after = run_yields(a, new_cs, lim, model=model)
+    unit = "vol %" if maximize else f"{ps.currency}/bbl"
+    what = f"{maximize} yield" if maximize else "gross product worth"
+    if out is not None or not json_out:
+        from ..report.studyreports import plot_optimum
+        from ..report.write import place_files, png_bytes, slug
+
+        moved = [f"end of {cs.names[i]}" for i in res.var_index]
+        title = f"{a.name}: maximise {what} inside the product limits (estimates)"
+        files = {f"{slug(a.name)}_optimum.png": png_bytes(plot_optimum, res, moved, title=title,
+                                                           objective_label=f"{what} [{unit}]",
+                                                           before=before.cuts, after=after.cuts)}
+        written = place_files(out or Path("reports") / slug(a.name), files, (path,))
+    if json_out:
+        from ..report.jsonout import optimum_json
+
+        echo_json(optimum_json(a.name, what, unit, res, cs.names, after))
+        return
+    from ..report.console import optimum_text
+
+    echo_lines(optimum_text(a.name, what, unit, res, cs))
+    typer.echo(f"Plot written to {written[0]}")

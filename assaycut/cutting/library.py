@@ -1,0 +1,220 @@
+"""The assay-library engine: many crude models cut with one cut set as arrays over assays.
+
+Each model's splines (TBP curve, density and sulfur distributions) are padded to a common node count and
+stacked; evaluation, exact integrals and inverses run row-wise over all assays at once, using one flat
+``searchsorted`` on row-offset nodes.  :class:`BatchModel` offers the same interface as
+:class:`~assaycut.model.crude.CrudeModel` with the first axis running over assays, so the cutting code
+(:func:`~assaycut.cutting.ideal.cut_columns`) serves a single assay, a sweep, and a whole library alike.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..model.crude import CrudeModel
+from ..model.spline import (Pchip, hermite_basis, hermite_combine, hermite_solve, interval_mean,
+                            segment_antiderivative, segment_integrals)
+from ..model.tbp_curve import TbpCurve
+from .cutset import CutSet
+from .ideal import cut_columns
+
+
+CHUNK = 1024
+"""Crudes cut together in one pass; a library is cut chunk by chunk."""
+
+
+class BatchPchip:
+    """Many monotone cubic Hermite interpolants evaluated row-wise (row r of a query uses spline r).
+
+    Parameters
+    ----------
+    splines : list of Pchip
+        One per row; None rows are filled with a zero spline and flagged in ``missing``.
+    """
+
+    def __init__(self, splines: list[Pchip | None]):
+        n = len(splines)
+        self.missing = np.array([s is None for s in splines])
+        real = [s if s is not None else Pchip([0.0, 1.0], [0.0, 0.0]) for s in splines]
+        lens = np.array([s.x.size for s in real])
+        k = int(lens.max())
+        inside = np.arange(k)[None, :] < lens[:, None]
+        X = np.zeros((n, k))
+        Y = np.zeros((n, k))
+        D = np.zeros((n, k))
+        X[inside] = np.concatenate([s.x for s in real])
+        Y[inside] = np.concatenate([s.y for s in real])
+        D[inside] = np.concatenate([s.d for s in real])
+        last = lens - 1
+        rows = np.arange(n)
+        self.lo, self.hi = X[:, 0].copy(), X[rows, last]
+        # padding: flat continuation past each spline's last node
+        extra = np.arange(k)[None, :] - last[:, None]
+        X = np.where(inside, X, self.hi[:, None] + extra)
+        Y = np.where(inside, Y, Y[rows, last][:, None])
+        self.X, self.Y, self.D = X, Y, D
+        self.H = np.diff(X, axis=1)
+        self.C = np.concatenate([np.zeros((n, 1)), np.cumsum(segment_integrals(self.H, Y, D), axis=1)], axis=1)
+        span = float(np.max(X) - np.min(X)) + 10.0
+        self.off = np.arange(n)[:, None] * span
+        self.flat = (X + self.off).ravel()
+        self.n, self.k = n, k
+
+    def _rows(self, q):
+        q = np.asarray(q, dtype=float)
+        if q.ndim == 0 or q.shape[0] != self.n:
+            q = np.broadcast_to(q, (self.n,) + (q.shape if q.ndim else ()))
+        return q.reshape(self.n, -1), q.shape
+
+    def _locate(self, q2):
+        q2 = np.clip(q2, self.lo[:, None], self.hi[:, None])
+        g = np.searchsorted(self.flat, (q2 + self.off).ravel(), side="right").reshape(q2.shape) - 1
+        i = np.clip(g - np.arange(self.n)[:, None] * self.k, 0, self.k - 2)
+        rows = np.broadcast_to(np.arange(self.n)[:, None], i.shape)
+        h = self.H[rows, i]
+        t = (q2 - self.X[rows, i]) / h
+        return rows, i, t, h
+
+    def _hermite(self, rows, i, t, h):
+        return hermite_combine(hermite_basis(t), self.Y[rows, i], self.Y[rows, i + 1], h * self.D[rows, i],
+                               h * self.D[rows, i + 1])
+
+    def __call__(self, q):
+        q2, shape = self._rows(q)
+        return self._hermite(*self._locate(q2)).reshape(shape)
+
+    def antiderivative(self, q):
+        """Row-wise integral from each row's first node, constant continuation outside the nodes."""
+        q2, shape = self._rows(q)
+        below = np.minimum(q2 - self.lo[:, None], 0.0) * self.Y[:, :1]
+        above = np.maximum(q2 - self.hi[:, None], 0.0) * self.Y[:, -1:]
+        rows, i, t, h = self._locate(q2)
+        part = segment_antiderivative(t, h, self.Y[rows, i], self.Y[rows, i + 1], self.D[rows, i],
+                                      self.D[rows, i + 1])
+        return (self.C[rows, i] + part + below + above).reshape(shape)
+
+    def integral(self, a, b):
+        return self.antiderivative(b) - self.antiderivative(a)
+
+    def inverse(self, yq):
+        """Row-wise x where the (non-decreasing) spline reaches ``yq``; the left end of flat steps."""
+        q2, shape = self._rows(yq)
+        ymin, ymax = self.Y[:, :1], self.Y[:, -1:]
+        q2 = np.clip(q2, ymin, ymax)
+        yspan = float(np.max(self.Y) - np.min(self.Y)) + 10.0
+        yoff = np.arange(self.n)[:, None] * yspan
+        g = np.searchsorted((self.Y + yoff).ravel(), (q2 + yoff).ravel(), side="left").reshape(q2.shape) - 1
+        i = np.clip(g - np.arange(self.n)[:, None] * self.k, 0, self.k - 2)
+        rows = np.broadcast_to(np.arange(self.n)[:, None], i.shape)
+        h = self.H[rows, i]
+        t = hermite_solve(self.Y[rows, i], self.Y[rows, i + 1], h * self.D[rows, i], h * self.D[rows, i + 1], q2)
+        x = self.X[rows, i] + t * h
+        x = np.where(q2 == self.Y[rows, i + 1], self.X[rows, i + 1], x)
+        x = np.where(q2 == self.Y[rows, i], self.X[rows, i], x)
+        return x.reshape(shape)
+
+
+class BatchCurve:
+    """Row-wise counterpart of :class:`~assaycut.model.tbp_curve.TbpCurve` for many crudes."""
+
+    def __init__(self, models: list[CrudeModel]):
+        self.spline = BatchPchip([m.curve.spline for m in models])
+        self.measured_lo = np.array([m.curve.measured_lo for m in models])[:, None]
+        self.measured_hi = np.array([m.curve.measured_hi for m in models])[:, None]
+
+    def pct_at(self, temp_c):
+        return self.spline(temp_c)
+
+    def temp_at(self, pct):
+        return self.spline.inverse(pct)
+
+    mean_temp = TbpCurve.mean_temp  # same formula; works row-wise through temp_at and spline.integral
+
+    def is_extrapolated(self, pct_a, pct_b):
+        lo = self.measured_lo.reshape((-1,) + (1,) * (np.ndim(pct_a) - 1))
+        hi = self.measured_hi.reshape((-1,) + (1,) * (np.ndim(pct_b) - 1))
+        return (np.asarray(pct_b) > hi + 1e-9) | (np.asarray(pct_a) < lo - 1e-9)
+
+
+class BatchModel:
+    """Row-wise counterpart of :class:`~assaycut.model.crude.CrudeModel`: axis 0 runs over the crudes."""
+
+    def __init__(self, models: list[CrudeModel]):
+        self.n = len(models)
+        self.curve = BatchCurve(models)
+        self.sg_dist = BatchPchip([m.sg_dist for m in models])
+        self.sulfur_dist = BatchPchip([m.sulfur_dist for m in models])
+        self.sg = np.array([m.sg for m in models])[:, None]
+        self.sulfur_wt_pct = np.array([np.nan if m.sulfur_wt_pct is None else m.sulfur_wt_pct
+                                       for m in models])[:, None]
+        self._a0 = self.sg_dist.antiderivative(np.zeros((self.n, 1)))
+
+    def _col(self, arr, like):
+        return arr.reshape((-1,) + (1,) * (np.ndim(like) - 1))
+
+    def wt_at_vol(self, vol_pct):
+        v = np.asarray(vol_pct, dtype=float)
+        return (self.sg_dist.antiderivative(v) - self._col(self._a0, v)) / self._col(self.sg, v)
+
+    mean_sg = CrudeModel.mean_sg  # same formula; works row-wise through sg_dist
+
+    def mean_sulfur(self, wa, wb):
+        out = interval_mean(self.sulfur_dist, wa, wb)
+        return np.where(self._col(self.sulfur_dist.missing, out), np.nan, out)
+
+
+def cut_library(models: list[CrudeModel], cut_set: CutSet) -> tuple[list[str], dict[str, np.ndarray]]:
+    """Cut many crude models with one cut set, as arrays over crudes.
+
+    Parameters
+    ----------
+    models : list of CrudeModel
+    cut_set : CutSet
+
+    Returns
+    -------
+    (names, columns)
+        The reported cut names and :func:`~assaycut.cutting.ideal.cut_columns` arrays of shape (crudes, cuts)
+        ('d86': (crudes, cuts, 7)).
+    """
+    names, ends = cut_set.reported()
+    parts = []
+    for i in range(0, len(models), CHUNK):  # fixed-size chunks: time linear in the library, memory bounded
+        chunk = models[i:i + CHUNK]
+        parts.append(cut_columns(BatchModel(chunk), np.repeat(ends[None, :], len(chunk), axis=0)))
+    if len(parts) == 1:
+        return names, parts[0]
+    return names, {k: np.concatenate([p[k] for p in parts], axis=0) for k in parts[0]}
+
+
+SUMMARY_QUALITIES = [("vol_pct", "vol %"), ("wt_pct", "wt %"), ("api", "API"), ("sulfur_wt_pct", "S wt %"),
+                     ("watson_k", "Kw"), ("cetane_index_d4737", "CCI"), ("flash_c_est", "flash est. °C")]
+"""Per-cut columns of the library summary, with their short unit-bearing labels."""
+
+
+def library_summary(assays, models: list[CrudeModel], cut_set: CutSet):
+    """One row per crude with its yields and key qualities per cut.
+
+    Parameters
+    ----------
+    assays : list of Assay
+    models : list of CrudeModel
+    cut_set : CutSet
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns: crude, source, sha256, api, sulfur_wt_pct, then '<cut> <label>' for each cut and quality of
+        :data:`SUMMARY_QUALITIES`, then extrapolated_cuts.
+    """
+    import pandas as pd
+
+    names, cols = cut_library(models, cut_set)
+    data = {"crude": [a.name for a in assays], "source": [a.source for a in assays],
+            "sha256": [a.sha256 for a in assays], "api": [a.api for a in assays],
+            "sulfur_wt_pct": [m.sulfur_wt_pct for m in models]}
+    for j, cut in enumerate(names):
+        for key, label in SUMMARY_QUALITIES:
+            data[f"{cut} {label}"] = cols[key][:, j]
+    data["extrapolated_cuts"] = [", ".join(n for n, e in zip(names, row) if e) for row in cols["extrapolated"]]
+    return pd.DataFrame(data)

@@ -1,0 +1,243 @@
+"""Product limits: each cut's estimated qualities checked against limits such as EN 590 or ASTM D1655.
+
+A limit names a cut, a property, and a minimum and/or maximum.  Properties are the cut-table columns
+(``density_15c_kg_m3``, ``flash_c_est``, ``cetane_index_d4737``, ``sulfur_wt_pct``...), the D86 points
+``d86_<p>_c`` (p in 0, 10, 30, 50, 70, 90, 95), and ``recovered_at_<T>c_pct``: the D86 volume recovered at
+T °C, interpolated linearly on the cut's estimated D86 (below the 0 % point: 0; above the 95 % point: 95, a
+lower bound).  A property the estimate cannot give (for example the D86 final boiling point) is reported as
+``n/a`` with the reason, never as a pass.
+
+One vectorised evaluator (:func:`limit_values`) serves the yield report (:func:`check_limits`) and the
+cut-point optimiser (:func:`limit_margins`) alike.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..methods.d86 import D86_STD
+
+RECOVERED_AT = re.compile(r"^recovered_at_(\d+(?:\.\d+)?)c_pct$")
+"""Property name of the D86 volume recovered at a temperature."""
+D86_POINT = re.compile(r"^d86_(0|10|30|50|70|90|95)_c$")
+"""Property name of a D86 point."""
+SCALAR_PROPERTIES = ("vol_pct", "wt_pct", "mid_vol_c", "vabp_c", "meabp_c", "sg", "api", "density_15c_kg_m3",
+                     "watson_k", "sulfur_wt_pct", "mw", "cetane_index_d4737", "flash_c_est")
+UNAVAILABLE = {"d86_fbp_c": "the D86 final boiling point is not estimated (Daubert 1994 stops at 95 %)",
+               "d86_100_c": "the D86 final boiling point is not estimated (Daubert 1994 stops at 95 %)"}
+LIMIT_KEYS = ("cut", "property", "min", "max", "strict", "label", "source")
+"""Keys of a limit as the limits file gives it."""
+TOL = 1e-6
+"""A strict limit must be passed by at least this much in the optimiser's margins (the limit's unit)."""
+
+
+@dataclass(frozen=True)
+class Limit:
+    """One product limit.
+
+    Attributes
+    ----------
+    cut : str
+        Cut name the limit applies to.
+    property : str
+        Property name (see the module docstring).
+    min, max : float or None
+        Bounds, in the property's unit; ``strict`` makes them exclusive.
+    strict : bool
+    label : str
+        Short text for reports (e.g. "EN 590 flash point").
+    source : str
+        Where the value comes from, with "verify against the current edition" where recalled.
+    """
+
+    cut: str
+    property: str
+    min: float | None = None
+    max: float | None = None
+    strict: bool = False
+    label: str = ""
+    source: str = ""
+
+    def bounds_text(self) -> str:
+        """The bounds as text, e.g. '>= 775 and <= 840'."""
+        lo = "> " if self.strict else ">= "
+        hi = "< " if self.strict else "<= "
+        parts = []
+        if self.min is not None:
+            parts.append(f"{lo}{self.min:g}")
+        if self.max is not None:
+            parts.append(f"{hi}{self.max:g}")
+        return " and ".join(parts)
+
+    def describe(self) -> str:
+        """The limit in one line, e.g. 'kerosene: jet fuel density at 15 °C >= 775 and <= 840'."""
+        return f"{self.cut}: {self.label or self.property} {self.bounds_text()}"
+
+
+def validate_property(prop: str) -> bool:
+    """True if ``prop`` is a property name a limit can check (or is known to be unavailable)."""
+    return (prop in SCALAR_PROPERTIES or bool(RECOVERED_AT.match(prop)) or bool(D86_POINT.match(prop))
+            or prop in UNAVAILABLE)
+
+
+def recovered_at(d86_c: np.ndarray, temp_c: float) -> np.ndarray:
+    """D86 volume recovered at ``temp_c``, linear between the estimated D86 points, vectorised over rows.
+
+    Below the 0 % point the answer is 0, at or above the 95 % point 95 (a lower bound); NaN for a row
+    without a full D86 estimate.  The arithmetic is that of ``numpy.interp`` row by row.
+
+    Parameters
+    ----------
+    d86_c : numpy.ndarray
+        D86 at 0/10/30/50/70/90/95 %, shape (m, 7). [°C]
+    temp_c : float
+        Temperature. [°C]
+
+    Returns
+    -------
+    numpy.ndarray
+        Shape (m,). [vol %]
+
+    Examples
+    --------
+    >>> recovered_at(np.array([[150.0, 170, 190, 210, 230, 250, 260]]), 200.0).tolist()
+    [40.0]
+    """
+    pct = np.array(D86_STD, dtype=float)
+    m = d86_c.shape[0]
+    k = np.clip((d86_c <= temp_c).sum(axis=1) - 1, 0, len(D86_STD) - 2)
+    rows = np.arange(m)
+    t0, t1 = d86_c[rows, k], d86_c[rows, k + 1]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        val = (pct[k + 1] - pct[k]) / (t1 - t0) * (temp_c - t0) + pct[k]
+    val = np.where(temp_c == d86_c[:, -1], pct[-1], val)
+    val = np.where(temp_c < d86_c[:, 0], 0.0, np.where(temp_c > d86_c[:, -1], pct[-1], val))
+    return np.where(np.all(np.isfinite(d86_c), axis=1), val, np.nan)
+
+
+def limit_values(cols: dict, j: int, prop: str) -> np.ndarray:
+    """Values of ``prop`` for cut ``j`` over every row of cut-column arrays.
+
+    Parameters
+    ----------
+    cols : dict of str to numpy.ndarray
+        Cut columns as :func:`assaycut.cutting.ideal.cut_columns` returns them, shape (m, cuts) ('d86':
+        (m, cuts, 7)).
+    j : int
+        Index of the cut.
+    prop : str
+        Property name (see the module docstring).
+
+    Returns
+    -------
+    numpy.ndarray
+        Shape (m,), NaN where the property is not available.
+    """
+    m = cols["vol_pct"].shape[0]
+    if prop in UNAVAILABLE:
+        return np.full(m, np.nan)
+    d = D86_POINT.match(prop)
+    if d:
+        return cols["d86"][:, j, D86_STD.index(int(d.group(1)))]
+    r = RECOVERED_AT.match(prop)
+    if r:
+        return recovered_at(cols["d86"][:, j, :], float(r.group(1)))
+    return np.asarray(cols[prop][:, j], dtype=float)
+
+
+def _why_missing(prop: str) -> str:
+    if prop in UNAVAILABLE:
+        return UNAVAILABLE[prop]
+    if D86_POINT.match(prop) or RECOVERED_AT.match(prop):
+        return "no D86 estimate for this cut"
+    return f"{prop} is not estimated for this cut"
+
+
+def frame_columns(cuts) -> dict[str, np.ndarray]:
+    """Cut-column arrays of one row from a cut table (the inverse of
+    :func:`assaycut.cutting.ideal.columns_frame` for the properties a limit can name)."""
+    cols = {c: cuts[c].to_numpy(dtype=float)[None, :] for c in SCALAR_PROPERTIES}
+    nan7 = [math.nan] * len(D86_STD)
+    cols["d86"] = np.array([[[float(d[str(p)]) for p in D86_STD] if d else nan7 for d in cuts["d86_c"]]])
+    return cols
+
+
+def meets(lim: Limit, value: float) -> bool:
+    """True when ``value`` lies inside the limit's bounds."""
+    ok = True
+    if lim.min is not None:
+        ok &= value > lim.min if lim.strict else value >= lim.min
+    if lim.max is not None:
+        ok &= value < lim.max if lim.strict else value <= lim.max
+    return ok
+
+
+def check_limits(cuts, limits: list[Limit]):
+    """Check every limit against the cut table.
+
+    Parameters
+    ----------
+    cuts : pandas.DataFrame
+        Cut table from :func:`assaycut.cutting.ideal.cut_table`.
+    limits : list of Limit
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per limit whose cut exists: cut, property, label, limit, value, status ('pass', 'fail' or
+        'n/a'), note, source.
+    """
+    import pandas as pd
+
+    names = list(cuts["name"])
+    cols = frame_columns(cuts) if limits else {}
+    out = []
+    for lim in limits:
+        if lim.cut not in names:
+            continue
+        value = float(limit_values(cols, names.index(lim.cut), lim.property)[0])
+        missing = math.isnan(value)
+        status = "n/a" if missing else ("pass" if meets(lim, value) else "fail")
+        out.append({"cut": lim.cut, "property": lim.property, "label": lim.label, "limit": lim.bounds_text(),
+                    "value": value, "status": status, "note": _why_missing(lim.property) if missing else "",
+                    "source": lim.source})
+    return pd.DataFrame(out, columns=["cut", "property", "label", "limit", "value", "status", "note", "source"])
+
+
+def limit_margins(cols: dict, names: list[str], limits: list[Limit]):
+    """Margins of every limit over candidate cut-point rows: >= 0 means met.
+
+    Parameters
+    ----------
+    cols : dict of str to numpy.ndarray
+        Cut columns of the candidates (see :func:`limit_values`).
+    names : list of str
+        Cut names, in column order.
+    limits : list of Limit
+
+    Returns
+    -------
+    (numpy.ndarray, list of Limit)
+        Margins (candidates x limits) in each limit's unit, NaN where not evaluable; the limits whose cut
+        exists, in column order.
+    """
+    out, used = [], []
+    for lim in limits:
+        if lim.cut not in names:
+            continue
+        vals = limit_values(cols, names.index(lim.cut), lim.property)
+        eps = TOL if lim.strict else 0.0
+        m = np.full(vals.shape, np.inf)
+        if lim.min is not None:
+            m = np.minimum(m, vals - lim.min - eps)
+        if lim.max is not None:
+            m = np.minimum(m, lim.max - vals - eps)
+        out.append(np.where(np.isfinite(vals), m, np.nan))
+        used.append(lim)
+    if not out:
+        return np.zeros((cols["vol_pct"].shape[0], 0)), used
+    return np.stack(out, axis=1), used

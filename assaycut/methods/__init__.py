@@ -1,0 +1,3 @@
+"""Published correlations, one module per family: distillation conversions (D86, D2887, D1160 and the
+dispatcher), the Riazi distribution, characterisation (boiling points, Watson K, molecular weight), product
+properties (cetane index, flash point) and blending rules.  Each function names its source, unit and range."""

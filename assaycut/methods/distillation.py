@@ -1,0 +1,145 @@
+"""Conversions between laboratory distillation methods by name.
+
+The published methods live one family to a module: :mod:`~assaycut.methods.d86` (Daubert 1994,
+Riazi-Daubert 1986), :mod:`~assaycut.methods.d2887` (API TDB 3A3.1, 3A3.2) and
+:mod:`~assaycut.methods.d1160` (Maxwell-Bonnell).  :func:`convert` picks one by name.  Non-monotone results
+and points outside a correlation's data range are reported as warnings, never hidden.
+"""
+
+from __future__ import annotations
+
+from typing import Callable, Mapping, NamedTuple
+
+from ..errors import ConversionError
+from .d86 import (d86_to_tbp_daubert_1994, d86_to_tbp_riazi_daubert_1986, tbp_to_d86_daubert_1994,
+                  tbp_to_d86_riazi_daubert_1986)
+from .d1160 import vacuum_to_aet_maxwell_bonnell
+from .d2887 import d2887_to_d86_api_3a3_2, d2887_to_tbp_api_3a3_1
+from .segments import normalise_points
+
+METHODS = ("daubert-1994", "riazi-daubert-1986")
+"""Names of the TBP <-> D86 methods."""
+
+
+class Conversion(NamedTuple):
+    """A published conversion: the function, the name reports give it, and the temperature range of the data
+    behind it [°C] (from Riazi MNL50 (2005) ch. 3, recalled from memory)."""
+
+    func: Callable[[Mapping[float, float]], dict]
+    label: str
+    valid_c: tuple[float, float]
+
+
+CONVERSIONS = {
+    ("D86", "TBP", "daubert-1994"): Conversion(d86_to_tbp_daubert_1994, "daubert-1994", (-18.0, 400.0)),
+    ("TBP", "D86", "daubert-1994"): Conversion(tbp_to_d86_daubert_1994, "daubert-1994-inverse", (-18.0, 430.0)),
+    ("D86", "TBP", "riazi-daubert-1986"): Conversion(d86_to_tbp_riazi_daubert_1986, "riazi-daubert-1986",
+                                                     (0.0, 400.0)),
+    ("TBP", "D86", "riazi-daubert-1986"): Conversion(tbp_to_d86_riazi_daubert_1986, "riazi-daubert-1986-inverse",
+                                                     (0.0, 430.0)),
+    ("D2887", "TBP", None): Conversion(d2887_to_tbp_api_3a3_1, "api-tdb-3a3-1", (0.0, 540.0)),
+    ("D2887", "D86", None): Conversion(d2887_to_d86_api_3a3_2, "api-tdb-3a3-2", (0.0, 540.0)),
+}
+"""Every conversion :func:`convert` offers, by (from, to, TBP <-> D86 method or None)."""
+
+
+def check_monotone(points: Mapping[float, float], label: str) -> list[str]:
+    """Warnings for a converted curve whose temperature falls as percent rises.
+
+    Parameters
+    ----------
+    points : mapping
+        {percent [%]: temperature [°C]}.
+    label : str
+        Name of the curve in the message.
+
+    Returns
+    -------
+    list of str
+        One warning per falling pair; empty when the curve is monotone.
+
+    Examples
+    --------
+    >>> check_monotone({0: 150.0, 10: 149.0, 50: 200.0}, "D86 -> TBP")  # doctest: +ELLIPSIS
+    ['D86 -> TBP: temperature falls from 150.0 °C at 0 % to 149.0 °C at 10 %; ...']
+    """
+    keys = sorted(points)
+    out = []
+    for a, b in zip(keys, keys[1:]):
+        if points[b] < points[a]:
+            out.append(f"{label}: temperature falls from {points[a]:.1f} °C at {a:g} % to {points[b]:.1f} °C "
+                       f"at {b:g} %; the point-by-point correlation gave a non-monotone curve")
+    return out
+
+
+def range_warnings(points: Mapping[float, float], frm: str, conversion: Conversion) -> list[str]:
+    """Warnings for input points outside the temperature range of the data behind ``conversion``."""
+    lo, hi = conversion.valid_c
+    bad = {p: t for p, t in points.items() if not lo <= t <= hi}
+    if not bad:
+        return []
+    pts = ", ".join(f"{t:.1f} °C at {p:g} %" for p, t in sorted(bad.items()))
+    return [f"{frm} point(s) {pts} lie outside the {lo:g} to {hi:g} °C range of the data behind "
+            f"{conversion.label}: the result is an extrapolation of the correlation"]
+
+
+def convert(points: Mapping[float, float], frm: str, to: str, method: str = "daubert-1994",
+            pressure_mmhg: float | None = None) -> tuple[dict[float, float], str, list[str]]:
+    """Convert a curve between methods by name.
+
+    Parameters
+    ----------
+    points : mapping
+        {percent [%]: temperature [°C]}.
+    frm : str
+        'TBP', 'D86', 'D2887' or 'D1160'.
+    to : str
+        'TBP', 'D86' or 'AET'.
+    method : str
+        'daubert-1994' (default) or 'riazi-daubert-1986', for TBP <-> D86.
+    pressure_mmhg : float, optional
+        Distillation pressure for D1160. [mmHg]
+
+    Returns
+    -------
+    (dict, str, list of str)
+        The converted points {percent: temperature [°C]}, the method actually used, and warnings.
+
+    Examples
+    --------
+    Riazi MNL50 (2005) Table 3.8, the kerosene's D86 50 % point 206.7 °C is TBP 210.6 °C by Daubert 1994:
+
+    >>> out, used, warnings = convert({50: 206.7}, "D86", "TBP")
+    >>> round(out[50], 1), used, warnings
+    (210.6, 'daubert-1994', [])
+    """
+    frm, to = frm.upper(), to.upper()
+    pts = normalise_points(points)
+    warnings: list[str] = []
+    if frm == to or (frm == "TBP" and to == "AET"):
+        return dict(sorted(pts.items())), "identity", warnings
+    if frm == "D1160":
+        if pressure_mmhg is None:
+            raise ConversionError("D1160 data need the distillation pressure (--pressure-mmhg)")
+        if to not in ("AET", "TBP"):
+            raise ConversionError(f"D1160 converts to AET (the atmospheric-equivalent TBP basis), not {to}")
+        keys = sorted(pts)
+        vals = vacuum_to_aet_maxwell_bonnell([pts[k] for k in keys], pressure_mmhg)
+        return dict(zip(keys, [float(v) for v in vals])), "maxwell-bonnell", warnings
+    if to == "AET":
+        raise ConversionError(f"AET is the target of D1160 data only; cannot convert {frm} to AET")
+    key = (frm, to, method if frm in ("TBP", "D86") else None)
+    if key not in CONVERSIONS:
+        raise ConversionError(f"no conversion from {frm} to {to}"
+                              + (f" by {method}" if frm in ("TBP", "D86") else ""))
+    conv = CONVERSIONS[key]
+    warnings += range_warnings(pts, frm, conv)
+    out = conv.func(pts)
+    used = method if key[2] else conv.label
+    warnings += check_monotone(out, f"{frm} -> {to}")
+    dropped = sorted(set(pts) - set(out))
+    if dropped:
+        warnings.append(f"{frm} -> {to}: point(s) {', '.join(f'{p:g} %' for p in dropped)} could not be "
+                        f"converted by {used} (not a standard point of the method, or a point between "
+                        f"them and 50 % is missing)")
+    return out, used, warnings

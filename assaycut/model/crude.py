@@ -1,0 +1,219 @@
+"""The crude model: TBP curve on both bases plus density and sulfur distributions, built from an Assay.
+
+Building it (:func:`build_model`) takes these steps:
+
+1. every curve of the assay is put on the TBP basis (:func:`assaycut.model.input_curves.curve_to_tbp`);
+   vacuum curves extend the atmospheric one past its last point;
+2. a weight-basis curve is converted to volume (:func:`_to_volume_basis`);
+3. light ends are placed at the front at their normal boiling points and the curve model is fitted
+   (:func:`assaycut.model.tbp_curve.build_curve`);
+4. density and sulfur distributions are fitted to the narrow cuts and reconciled to the whole crude
+   (:mod:`assaycut.model.distributions`).
+
+Weight percent follows from the density distribution: W(V) = ∫0^V SG dv / SG_crude.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..errors import CurveError
+from ..methods.characterisation import sg_from_watson_k, watson_k
+from .assay import Assay
+from .distributions import density_distribution, sulfur_distribution
+from .input_curves import curve_to_tbp
+from .lightends import convert_basis, find_component
+from .spline import Pchip, interval_mean
+from .tbp_curve import TbpCurve, build_curve, staircase
+
+
+@dataclass
+class CrudeModel:
+    """Whole-crude model used by cutting and the studies.
+
+    Attributes
+    ----------
+    curve : TbpCurve
+        TBP [°C] vs vol % distilled.
+    sg_dist : Pchip
+        SG 60/60 °F [-] against vol % distilled (reconciled).
+    sulfur_dist : Pchip or None
+        Sulfur [wt %] against wt % distilled (reconciled); None without narrow-cut sulfur.
+    sg : float
+        Whole-crude SG 60/60 °F. [-]
+    sulfur_wt_pct : float or None
+        Whole-crude sulfur. [wt %]
+    density_reconciliation_pct : float
+        Scale applied to the density distribution, (factor - 1) * 100. [%]
+    sulfur_reconciliation_pct : float or None
+        Scale applied to the sulfur distribution, (factor - 1) * 100. [%]
+    density_source : str
+        'narrow cuts' or 'constant Watson K'.
+    watson_k_fit : float or None
+        Watson K fitted to the whole-crude SG when density comes from constant Watson K. [-]
+    methods : dict
+    warnings : list of str
+    """
+
+    curve: TbpCurve
+    sg_dist: Pchip
+    sulfur_dist: Pchip | None
+    sg: float
+    sulfur_wt_pct: float | None
+    density_reconciliation_pct: float
+    sulfur_reconciliation_pct: float | None
+    density_source: str
+    watson_k_fit: float | None = None
+    methods: dict[str, str] = field(default_factory=dict)
+    warnings: list[str] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+
+    def wt_at_vol(self, vol_pct):
+        """Cumulative wt % distilled at cumulative ``vol_pct`` [vol %]. [wt %]"""
+        v = np.asarray(vol_pct, dtype=float)
+        return (self.sg_dist.antiderivative(v) - self.sg_dist.antiderivative(0.0)) / self.sg
+
+    def vol_at_wt(self, wt_pct):
+        """Cumulative vol % at cumulative ``wt_pct`` [wt %] (vectorised bisection on W(V)). [vol %]"""
+        w = np.asarray(wt_pct, dtype=float)
+        lo = np.zeros_like(w)
+        hi = np.full_like(w, 100.0)
+        for _ in range(50):
+            mid = 0.5 * (lo + hi)
+            below = self.wt_at_vol(mid) < w
+            lo = np.where(below, mid, lo)
+            hi = np.where(below, hi, mid)
+        return 0.5 * (lo + hi)
+
+    def mean_sg(self, va, vb):
+        """Volume-average SG over [va, vb] vol %; the point value for an empty interval. [-]"""
+        return interval_mean(self.sg_dist, va, vb)
+
+    def mean_sulfur(self, wa, wb):
+        """Weight-average sulfur over [wa, wb] wt %; NaN without a sulfur distribution. [wt %]"""
+        if self.sulfur_dist is None:
+            return np.full(np.broadcast(np.asarray(wa), np.asarray(wb)).shape, np.nan)
+        return interval_mean(self.sulfur_dist, wa, wb)
+
+
+def build_model(assay: Assay, method: str = "daubert-1994") -> CrudeModel:
+    """Build the crude model from an assay (the steps are in the module docstring).
+
+    Parameters
+    ----------
+    assay : Assay
+    method : str
+        TBP <-> D86 method for D86 input curves: 'daubert-1994' (default) or 'riazi-daubert-1986'.
+
+    Returns
+    -------
+    CrudeModel
+    """
+    warnings: list[str] = [w for c in assay.curves for w in c.warnings]
+    methods: dict[str, str] = {}
+    p, t = _tbp_points(assay, method, warnings, methods)
+    if assay.curves[0].basis == "wt":
+        p = _to_volume_basis(p, t, assay, warnings, methods)
+    le_t, le_v, le_mids = _light_ends_nodes(assay, float(t[0]))
+    curve = build_curve(p, t, front_t=le_t, front_v=le_v)
+    warnings += curve.warnings
+    if curve.light_ends_pct == 0.0:
+        le_mids = []
+    if curve.fit is not None:
+        methods["extension"] = (f"Riazi distribution fitted to {curve.fit.npoints} points "
+                                f"(RMS {curve.fit.rms_c:.1f} °C); used past {curve.measured_hi:g} vol %"
+                                + (f" and before {curve.measured_lo:g} vol %" if curve.measured_lo > 0 else ""))
+    sg_dist, dens_rec, dens_src, kw_fit = density_distribution(assay, curve, le_mids, warnings)
+    methods["density"] = (f"{dens_src}; scaled by {dens_rec:+.2f} % to reproduce the whole-crude SG "
+                          f"{assay.sg:.4f}")
+    model = CrudeModel(curve, sg_dist, None, assay.sg, assay.sulfur_wt_pct, dens_rec, None, dens_src,
+                       kw_fit, methods, warnings)
+    sulfur_distribution(model, assay, le_mids)
+    return model
+
+
+def _tbp_points(assay: Assay, method: str, warnings: list[str], methods: dict[str, str]):
+    """The main curve on the TBP basis, extended by the points of any vacuum curve that lie beyond it."""
+    main = assay.curves[0]
+    p, t, w, desc = curve_to_tbp(main, method)
+    warnings += w
+    methods["curve"] = desc
+    for extra in assay.curves[1:]:
+        pe, te, we, de = curve_to_tbp(extra, method)
+        warnings += we
+        if extra.basis != main.basis:
+            raise CurveError(f"{extra.where}: the vacuum curve is on the {extra.basis} basis but the main curve "
+                             f"is on the {main.basis} basis; give both on one basis")
+        keep = (pe > p[-1]) & (te > t[-1])
+        if not np.any(keep):
+            warnings.append(f"{extra.where}: no point lies beyond the main curve ({p[-1]:g} %, {t[-1]:.1f} °C); "
+                            f"the vacuum curve is not used")
+            continue
+        if np.any(~keep):
+            warnings.append(f"{extra.where}: {int((~keep).sum())} point(s) overlapping the main curve are not used")
+        p = np.concatenate([p, pe[keep]])
+        t = np.concatenate([t, te[keep]])
+        methods["vacuum curve"] = de
+    return p, t
+
+
+def _wt_to_vol(pct_w, temp_c, assay: Assay) -> np.ndarray:
+    """Convert cumulative wt % points to vol %: dV = dW * SG_crude / SG(interval).
+
+    SG of each interval is the narrow-cut SG covering its mid temperature, else constant Watson K from the
+    crude's own 50 % point.  An approximation used only for weight-basis input curves.
+    """
+    t_mid = np.concatenate([[temp_c[0]], 0.5 * (temp_c[1:] + temp_c[:-1])])
+    kw = watson_k(float(np.interp(50.0, pct_w, temp_c)), assay.sg)
+    sg = sg_from_watson_k(t_mid, kw)
+    nc = assay.narrow_cuts
+    if nc is not None:
+        for s, e, g in zip(nc.start_c, nc.end_c, nc.sg):
+            if np.isfinite(g):
+                lo = -np.inf if np.isnan(s) else s
+                hi = np.inf if np.isnan(e) else e
+                sg = np.where((t_mid > lo) & (t_mid <= hi), g, sg)
+    dw = np.diff(np.concatenate([[0.0], pct_w]))
+    return np.cumsum(dw * assay.sg / sg)
+
+
+def _to_volume_basis(p, t, assay: Assay, warnings: list[str], methods: dict[str, str]) -> np.ndarray:
+    """Volume percents of a weight-basis curve, closed at 100 % when the weight curve is."""
+    w_last = float(p[-1])
+    p = _wt_to_vol(p, t, assay)
+    methods["basis"] = ("weight-basis curve converted to volume with narrow-cut SG (constant Watson K "
+                        "between them); approximate")
+    if abs(w_last - 100.0) < 1e-9 and abs(p[-1] - 100.0) > 1e-9:
+        factor = 100.0 / p[-1]
+        if abs(factor - 1.0) > 0.02:
+            warnings.append(f"the weight-basis curve converts to {p[-1]:.1f} vol % at 100 wt %: the cut "
+                            f"densities and the crude gravity disagree by {abs(factor - 1) * 100:.1f} %; the "
+                            f"volume percents are scaled to close at 100 %")
+        p = p * factor
+    elif p[-1] > 100.0 + 1e-6:
+        raise CurveError(f"the weight-basis curve converts to {p[-1]:.1f} vol % at {w_last:g} wt %, above "
+                         f"100 %: the crude gravity and the cut densities disagree")
+    return p
+
+
+def _light_ends_nodes(assay: Assay, first_t: float):
+    """Light-ends staircase nodes, component vol % of crude and the per-component (mid vol %, SG)."""
+    le = assay.light_ends
+    if le is None or not le.amounts:
+        return None, None, []
+    comps = []
+    for key, amt in le.amounts.items():
+        c = find_component(key)
+        if c is None or amt <= 0:
+            continue
+        comps.append((c, convert_basis(amt, le.basis, "vol", c.sg, assay.sg)))
+    comps.sort(key=lambda cv: cv[0].nbp_c)
+    comps = [(c, v) for c, v in comps if c.nbp_c < first_t]
+    if not comps:
+        return None, None, []
+    cum = np.cumsum([v for _, v in comps])
+    t, v = staircase([c.nbp_c for c, _ in comps], cum)
+    mids = [(float(cu - vo / 2), c.sg) for (c, vo), cu in zip(comps, cum)]
+    return t, v, mids

@@ -1,0 +1,198 @@
+"""Property distributions of the crude model: density against volume distilled, sulfur against weight
+distilled, each a monotone spline through the narrow-cut measurements that reproduces each cut's mean.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
+from .assay import Assay
+from .spline import Pchip, pchip_slopes, segment_antiderivative, segment_integrals
+from .tbp_curve import TbpCurve
+
+
+def narrow_cut_positions(assay: Assay, curve: TbpCurve):
+    """Start and end vol % of each narrow cut on the curve (open start 0 %, open end 100 %). [vol %]"""
+    nc = assay.narrow_cuts
+    va = np.where(np.isnan(nc.start_c), 0.0, curve.pct_at(np.nan_to_num(nc.start_c)))
+    vb = np.where(np.isnan(nc.end_c), 100.0, curve.pct_at(np.nan_to_num(nc.end_c)))
+    return va, vb
+
+
+def property_spline(lo, hi, values, fixed=(), iterations: int = 30) -> Pchip:
+    """Monotone property curve through narrow-cut values placed at their mid percent, adjusted so that its
+    average over each narrow cut reproduces the measured value.
+
+    Each measured value sits at the middle of its cut [lo, hi]; the PCHIP through them (held flat beyond the
+    outermost points) is then corrected by fixed-point iteration, y_i <- y_i + (measured_i - mean_i), until
+    the spline's mean over every cut matches its measurement (to 1e-7 of the largest value, or the best found
+    before the correction stops improving).
+
+    Parameters
+    ----------
+    lo, hi : array_like
+        Cut boundaries on the property's basis. [%]
+    values : array_like
+        Measured cut averages (SG [-] or sulfur [wt %]).
+    fixed : sequence of (x [%], value)
+        Extra points held as given (pure light-ends components).
+
+    Returns
+    -------
+    Pchip
+        Property against percent distilled.
+    """
+    lo, hi, vals = (np.asarray(z, dtype=float) for z in (lo, hi, values))
+    mids = 0.5 * (lo + hi)
+    fx = np.array([q[0] for q in fixed], dtype=float)
+    fy = np.array([q[1] for q in fixed], dtype=float)
+    x = np.concatenate([mids, fx])
+    order = np.argsort(x, kind="stable")
+    x = x[order]
+    keep = np.concatenate([[True], np.diff(x) > 1e-9])
+    is_cut = (order < mids.size)[keep]
+    x = x[keep]
+    y0 = np.concatenate([vals, fy])[order][keep]
+    if x.size == 1:
+        return Pchip(np.array([0.0, 100.0]), np.array([y0[0], y0[0]]))
+    cut_idx = order[keep][is_cut]
+    a, b, target = lo[cut_idx], hi[cut_idx], vals[cut_idx]
+    y = y0.copy()
+    best, best_err = y.copy(), np.inf
+    tol = 1e-7 * max(float(np.max(np.abs(vals))), 1e-12)
+    means = _interval_means(x, a, b)
+    for _ in range(iterations):
+        err = target - means(y)
+        worst = float(np.max(np.abs(err))) if err.size else 0.0
+        if worst >= 0.95 * best_err:  # no longer improving
+            break
+        best, best_err = y.copy(), worst
+        if worst < tol:
+            break
+        y[is_cut] = np.maximum(y[is_cut] + err, 0.0)
+    return Pchip(x, best)
+
+
+def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):
+    """A function y -> mean of the PCHIP through (x, y) over each [a, b] (held flat beyond the end nodes).
+
+    The same exact integral as :meth:`Pchip.integral`, with the interval ends located once, since only the
+    node values change between the iterations of :func:`property_spline`.
+    """
+    h = np.diff(x)
+
+    def locate(q):
+        qc = np.clip(q, x[0], x[-1])
+        i = np.clip(np.searchsorted(x, qc, side="right") - 1, 0, x.size - 2)
+        t = (qc - x[i]) / h[i]
+        return i, t, np.minimum(q - x[0], 0.0), np.maximum(q - x[-1], 0.0)
+
+    ends = [locate(a), locate(b)]
+    width = b - a
+
+    def means(y):
+        d = pchip_slopes(x, y)
+        cum = np.concatenate([[0.0], np.cumsum(segment_integrals(h, y, d))])
+        anti = [cum[i] + segment_antiderivative(t, h[i], y[i], y[i + 1], d[i], d[i + 1]) + below * y[0]
+                + above * y[-1] for i, t, below, above in ends]
+        return (anti[1] - anti[0]) / width
+
+    return means
+
+
+def density_distribution(assay: Assay, curve: TbpCurve, le_mids, warnings: list[str]):
+    """SG against vol % distilled, reconciled to the whole-crude SG.
+
+    From the narrow-cut densities (:func:`property_spline` against mid-volume %, light-ends components
+    held at their own SG) where at least two cuts have one; else at constant Watson K fitted to the
+    whole-crude gravity, SG = (1.8 T_b[K])^(1/3)/Kw along the curve (Watson & Nelson 1933; common
+    practice, no single source), light ends at their own SG.  Either way the distribution is scaled so
+    that the whole crude integrates to its SG.
+
+    Parameters
+    ----------
+    assay : Assay
+    curve : TbpCurve
+    le_mids : list of (mid vol % [%], SG [-])
+        Light-ends components placed on the curve.
+    warnings : list of str
+        Appended to.
+
+    Returns
+    -------
+    (Pchip, float, str, float or None)
+        SG [-] against vol % [%]; the scale applied, (factor - 1) x 100 [%]; the source described; the fitted
+        Watson K [-] (None with narrow-cut densities).
+    """
+    nc = assay.narrow_cuts
+    if nc is not None and np.isfinite(nc.sg).sum() >= 2:
+        va, vb = narrow_cut_positions(assay, curve)
+        ok = np.isfinite(nc.sg) & (vb > va)
+        first = float(va[ok].min()) if ok.any() else 0.0
+        raw = property_spline(va[ok], vb[ok], nc.sg[ok], [(m, g) for m, g in le_mids if m < first])
+        source = "narrow-cut densities (monotone spline against mid-volume %, matching each cut's mean)"
+        kw = None
+    else:
+        if nc is not None:
+            warnings.append("fewer than 2 narrow cuts have a density: cut densities are estimated at constant "
+                            "Watson K fitted to the whole-crude gravity")
+        grid = np.linspace(0.0, 100.0, 201)
+        mids = 0.5 * (grid[1:] + grid[:-1])
+        t_mids = curve.temp_at(mids)
+        cbrt = watson_k_numerator(t_mids)
+        fixed = mids < curve.light_ends_pct
+        le_sg = np.full_like(mids, np.nan)
+        if le_mids:
+            lm = np.array([m for m, _ in le_mids])
+            lg = np.array([g for _, g in le_mids])
+            le_sg = lg[np.clip(np.searchsorted(lm, mids), 0, lm.size - 1)]
+        dv = 0.5
+        fixed_mass = float((le_sg[fixed] * dv).sum()) if fixed.any() else 0.0
+        kw = float((cbrt[~fixed] * dv).sum() / (100.0 * assay.sg - fixed_mass))
+        raw = Pchip(mids, np.where(fixed, le_sg, sg_from_watson_k(t_mids, kw)))
+        source = f"constant Watson K {kw:.2f} fitted to the whole-crude gravity (no narrow-cut densities)"
+    factor = 100.0 * assay.sg / raw.integral(0.0, 100.0)
+    return Pchip(raw.x, raw.y * factor), (factor - 1.0) * 100.0, source, kw
+
+
+def sulfur_distribution(model, assay: Assay, le_mids) -> None:
+    """Sulfur against wt % distilled, set on ``model`` (its sulfur_dist, sulfur_wt_pct, reconciliation,
+    methods and warnings).
+
+    A :func:`property_spline` of narrow-cut sulfur against mid-weight % (light ends carry none), scaled to
+    reproduce the whole-crude sulfur; without it the narrow cuts give the whole-crude figure.  Fewer than two
+    narrow-cut sulfur values leave cut sulfur empty, with a warning.
+
+    Parameters
+    ----------
+    model : CrudeModel
+        Its curve and density distribution are used; its sulfur fields are set.
+    assay : Assay
+    le_mids : list of (mid vol % [%], SG [-])
+        Light-ends components placed on the curve.
+    """
+    nc = assay.narrow_cuts
+    if nc is None or np.isfinite(nc.sulfur_wt_pct).sum() < 2:
+        model.warnings.append("no narrow-cut sulfur (fewer than 2 values): cut sulfur is left empty")
+        model.methods["sulfur"] = "not estimated (no narrow-cut sulfur)"
+        return
+    va, vb = narrow_cut_positions(assay, model.curve)
+    wa, wb = model.wt_at_vol(va), model.wt_at_vol(vb)
+    ok = np.isfinite(nc.sulfur_wt_pct) & (wb > wa)
+    first = float(wa[ok].min())
+    fixed = [(float(model.wt_at_vol(m)), 0.0) for m, _ in le_mids if model.wt_at_vol(m) < first]
+    raw = property_spline(wa[ok], wb[ok], nc.sulfur_wt_pct[ok], fixed)
+    total = raw.integral(0.0, 100.0) / 100.0
+    if model.sulfur_wt_pct is None:
+        model.sulfur_wt_pct = float(total)
+        model.sulfur_reconciliation_pct = 0.0
+        model.warnings.append(f"no whole-crude sulfur given: {total:.3f} wt % is taken from the narrow cuts")
+        model.sulfur_dist = raw
+    else:
+        factor = model.sulfur_wt_pct / total if total > 0 else 1.0
+        model.sulfur_dist = Pchip(raw.x, raw.y * factor)
+        model.sulfur_reconciliation_pct = (factor - 1.0) * 100.0
+    model.methods["sulfur"] = (f"narrow-cut sulfur (monotone spline against mid-weight %, matching each cut's "
+                               f"mean); scaled by {model.sulfur_reconciliation_pct:+.2f} % to reproduce the "
+                               f"whole-crude sulfur {model.sulfur_wt_pct:.3f} wt %")

@@ -1,0 +1,105 @@
+"""Pure-component data for the light ends (C1-C5) of a crude.
+
+Normal boiling points and molar masses are the values of the ``chemicals`` package (Caleb Bell et al.,
+the Chemical Engineering Design Library), looked up by CAS number and rounded to 0.01 °C / 0.001 g/mol;
+the tests compare this table with that library.  Liquid specific gravities at 60 °F are the values of
+GPA Standard 2145, *Table of Physical Properties for Hydrocarbons and Other Compounds of Interest to the
+Natural Gas Industry* (propane to n-pentane recalled from memory, not read from the table; methane and ethane
+are the customary hypothetical-liquid values, also from memory).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class Component:
+    """One light-ends component.
+
+    Attributes
+    ----------
+    key : str
+        Short name used in the assay workbook (e.g. 'nC4').
+    name : str
+        Chemical name.
+    cas : str
+        CAS registry number.
+    nbp_c : float
+        Normal boiling point. [°C]
+    sg : float
+        Liquid specific gravity 60/60 °F. [-]
+    mw : float
+        Molar mass. [g/mol]
+    """
+
+    key: str
+    name: str
+    cas: str
+    nbp_c: float
+    sg: float
+    mw: float
+
+
+COMPONENTS: tuple[Component, ...] = (
+    Component("C1", "methane", "74-82-8", -161.48, 0.3000, 16.043),
+    Component("C2", "ethane", "74-84-0", -88.58, 0.3562, 30.069),
+    Component("C3", "propane", "74-98-6", -42.11, 0.5070, 44.096),
+    Component("iC4", "isobutane", "75-28-5", -11.75, 0.5629, 58.122),
+    Component("nC4", "n-butane", "106-97-8", -0.49, 0.5840, 58.122),
+    Component("iC5", "isopentane", "78-78-4", 27.83, 0.6247, 72.149),
+    Component("nC5", "n-pentane", "109-66-0", 36.06, 0.6311, 72.149),
+)
+"""Light-ends components in order of boiling point."""
+
+_ALIASES = {}
+for _c in COMPONENTS:
+    for _a in (_c.key, _c.name, _c.name.replace("n-", "n"), _c.name.replace("-", " "), _c.cas):
+        _ALIASES[_a.lower()] = _c
+_ALIASES.update({"i-butane": COMPONENTS[3], "normal butane": COMPONENTS[4], "butane": COMPONENTS[4],
+                 "i-pentane": COMPONENTS[5], "pentane": COMPONENTS[6], "ic4": COMPONENTS[3],
+                 "nc4": COMPONENTS[4], "ic5": COMPONENTS[5], "nc5": COMPONENTS[6]})
+
+
+def find_component(label: str) -> Component | None:
+    """The component named by ``label`` (key, name or CAS number, case-insensitive), or None."""
+    return _ALIASES.get(str(label).strip().lower())
+
+
+def convert_basis(amount_pct: float, frm: str, to: str, component_sg: float, crude_sg: float) -> float:
+    """A light-ends component's share of the whole crude on another basis.
+
+    .. math:: x_{vol} = x_{wt} \\cdot SG_{crude} / SG_{component}, \\qquad
+              x_{wt} = x_{vol} \\cdot SG_{component} / SG_{crude}
+
+    Parameters
+    ----------
+    amount_pct : float
+        Share of the whole crude on basis ``frm``. [%]
+    frm, to : str
+        'wt' or 'vol'.
+    component_sg, crude_sg : float
+        Liquid SG 60/60 °F of the component and of the whole crude. [-]
+
+    Returns
+    -------
+    float
+        Share on basis ``to``. [%]
+
+    Examples
+    --------
+    1 wt % of n-butane (SG 0.5840) in a crude of SG 0.8760 is 1.5 vol % (mass balance):
+
+    >>> round(convert_basis(1.0, "wt", "vol", 0.5840, 0.8760), 6)
+    1.5
+    """
+    if frm == to:
+        return amount_pct
+    if frm == "wt":
+        return amount_pct * crude_sg / component_sg
+    return amount_pct * component_sg / crude_sg
+
+
+def known_labels() -> str:
+    """Comma-separated list of the keys accepted in a light-ends table."""
+    return ", ".join(c.key for c in COMPONENTS)

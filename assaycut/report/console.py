@@ -1,0 +1,124 @@
+"""What the command line prints: each command's result rendered as plain text lines for the terminal."""
+
+from __future__ import annotations
+
+from .studyreports import compare_wide
+from .tables import text_table
+
+FLASH_FOOTNOTE = ("\n* Flash points are correlation estimates: measure them (ASTM D93). All results are screening "
+                  "estimates; see the notes sheet of the report for methods and cautions.")
+
+
+def yield_text(result) -> list[str]:
+    """One assay's heading, cut table and failed limits."""
+    a = result.assay
+    lines = [f"\n{a.name}  ({a.origin or 'origin not given'})  {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
+             + (f"{result.model.sulfur_wt_pct:.3f} wt %" if result.model.sulfur_wt_pct is not None else "n/a"),
+             text_table(result.cuts)]
+    fails = result.limits[result.limits["status"] == "fail"]
+    if len(fails):
+        lines.append("Limits failed: " + "; ".join(f"{x['cut']} {x['label'] or x['property']} "
+                                                   f"({x['value']:.1f}, needs {x['limit']})"
+                                                   for x in fails.to_dict("records")))
+    return lines
+
+
+def written_text(written, what: str = "Report") -> str:
+    """'Report written to FOLDER (N files).', naming at most three folders."""
+    folders = sorted({str(p.parent) for p in written})
+    shown = ", ".join(folders[:3]) + (f" and {len(folders) - 3} more folders" if len(folders) > 3 else "")
+    return f"{what} written to {shown} ({len(written)} files)."
+
+
+def check_text(name: str, findings, ok: bool) -> list[str]:
+    """The assay check: a verdict line, then one line per finding."""
+    return [f"{name}: {'OK' if ok else 'ERRORS FOUND'}"] + [f"  {f.severity.upper():8s} {f.where}: {f.message}"
+                                                           for f in findings]
+
+
+def convert_text(frm: str, to: str, used: str, src: dict, out: dict, unit: str, c_to_unit) -> list[str]:
+    """A converted curve: input and output temperature per percent, in ``unit`` ('°C' or '°F')."""
+    lines = [f"{frm} -> {to} by {used}", f"{'percent':>8}  {frm + ' ' + unit:>12}  {to + ' ' + unit:>12}"]
+    for p, t in out.items():
+        s = src.get(p)
+        lines.append(f"{p:8g}  {'' if s is None else f'{c_to_unit(s):.1f}':>12}  {c_to_unit(t):12.1f}")
+    return lines
+
+
+def compare_text(table, worth, currency: str | None, caveat: str, inside, uncertainty: bool) -> list[str]:
+    """Crudes side by side, the worth ranking, and the yield differences inside the uncertainty bands."""
+    crudes, rows = compare_wide(table)
+    w = max(len(c) for c in crudes) + 2
+    lines = [f"{'Cut':<16}{'Quality':<22}" + "".join(f"{c:>{w}}" for c in crudes)]
+    for r in rows:
+        vals = "".join(f"{(f'{v:.3f}' if isinstance(v, float) and v == v else (v or '-')):>{w}}" for v in r[2:])
+        lines.append(f"{r[0]:<16}{r[1]:<22}{vals}")
+    if worth is not None:
+        lines.append(f"\nGross product worth and margin [{currency}] -- {caveat}")
+        for r in worth.to_dict("records"):
+            m = r["margin_per_bbl"]
+            lines.append(f"  {r['rank']}. {r['crude']:<24} worth {r['worth_per_bbl']:8.2f}/bbl "
+                         f"{r['worth_per_t']:8.2f}/t"
+                         + (f"   margin {m:+7.2f}/bbl {r['margin_per_t']:+7.2f}/t" if m == m else "   (no crude price)"))
+    if uncertainty:
+        lines.append("\nYield differences inside the P10-P90 bands (not significant under the assumed measurement "
+                     "uncertainty):")
+        lines += [f"  {c}: {a} ~ {b}" for c, a, b in inside] or ["  none"]
+    return lines
+
+
+def blend_plan_text(plan) -> list[str]:
+    """The blend optimiser's plan: shares, blend qualities, binding targets and shortfalls."""
+    head = "Optimal blend" if plan.feasible else "The targets cannot all be met; the closest blend"
+    lines = [f"{head} ({plan.objective} {plan.value:.2f}):"]
+    lines += [f"  {nm:<28}{x:7.2f} %" for nm, x in plan.shares_pct.items()]
+    lines.append(f"  blend API {plan.api:.2f} °API, sulfur {plan.sulfur_wt_pct:.3f} wt %; yields "
+                 + ", ".join(f"{k} {v:.1f}" for k, v in plan.yields.items()) + " vol %")
+    if plan.binding:
+        lines.append("  binding targets: " + "; ".join(plan.binding))
+    for lab, amount in plan.shortfalls.items():
+        unit = "°API" if "API" in lab else ("wt %" if "sulfur" in lab else "vol %")
+        lines.append(f"  target not met: {lab}, short by {amount:.3f} {unit}")
+    lines.append("  Linear blending rules (no shrinkage); worth ignores operating costs and unit limits.")
+    return lines
+
+
+def blend_text(new) -> list[str]:
+    """A blend written as a new assay: its gravity and sulfur, and its notes."""
+    return ([f"Blend {new.name}: {new.api:.1f} °API, SG {new.sg:.4f}, sulfur "
+             + (f"{new.sulfur_wt_pct:.3f} wt %" if new.sulfur_wt_pct is not None else "n/a")]
+            + [f"  {n}" for n in new.notes])
+
+
+def sweep_text(crude: str, df) -> list[str]:
+    """A cut-point sweep as a table: yields, SG, D86 at the boundary and the flash estimate per step."""
+    lines = [f"{crude}: cut point between {df.attrs['lower']!r} and {df.attrs['upper']!r}",
+             f"{'cut °C':>7} {'lower vol%':>10} {'upper vol%':>10} {'lower SG':>9} {'upper SG':>9} "
+             f"{'lower D86 95':>12} {'upper D86 10':>12} {'upper flash*':>12}"]
+    for r in df.to_dict("records"):
+        lines.append(f"{r['cut_point_c']:7.1f} {r['lower_vol_pct']:10.2f} {r['upper_vol_pct']:10.2f} "
+                     f"{r['lower_sg']:9.4f} {r['upper_sg']:9.4f} {r['lower_d86_95_c']:12.1f} "
+                     f"{r['upper_d86_10_c']:12.1f} {r['upper_flash_c_est']:12.1f}")
+    lines.append("* flash estimates must be measured (ASTM D93).")
+    return lines
+
+
+def optimum_text(crude: str, what: str, unit: str, res, cut_set) -> list[str]:
+    """The optimiser's answer: cut points at the start and the optimum, the objective, and the limits."""
+    lines = [f"{crude}: maximise {what}"]
+    if not res.feasible:
+        lines.append("No cut points within the span meet every limit. Limits broken at the start: "
+                     + "; ".join(res.violated_at_start))
+    lines.append(f"{'cut':<18}{'start °C':>10}{'optimum °C':>12}")
+    for c, s0, s1 in zip(cut_set.cuts[:-1], res.start_ends_c, res.ends_c):
+        lines.append(f"{c.name:<18}{s0:10.1f}{s1:12.1f}" + ("  *" if abs(s1 - s0) > 1e-9 else ""))
+    lines.append(f"{what}: {res.start_objective:.2f} -> {res.objective:.2f} {unit} (brute-force grid best "
+                 f"{res.grid_best:.2f})")
+    if res.active:
+        lines.append("Active limits: " + "; ".join(res.active))
+    if res.violated_at_start:
+        lines.append("Limits broken at the start: " + "; ".join(res.violated_at_start))
+    if res.not_evaluated:
+        lines.append("Not evaluated (n/a, not constraining): " + "; ".join(res.not_evaluated))
+    lines.append("Qualities are estimates; flash points must be measured (ASTM D93).")
+    return lines

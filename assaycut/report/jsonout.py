@@ -1,0 +1,106 @@
+"""The JSON documents the command line prints: one function per document, field names part of the interface.
+
+Everything returned here is made of plain Python values (NaN and infinities as None), ready for
+``json.dumps``.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+
+import numpy as np
+
+from .. import __version__
+from ..units import sg_to_density15
+
+
+def json_safe(v):
+    """JSON-safe value: NaN/inf become None, numpy scalars become Python numbers (dicts recursively).
+
+    Examples
+    --------
+    >>> json_safe({"a": float("nan"), "b": np.float64(1.5), "c": np.bool_(True)})
+    {'a': None, 'b': 1.5, 'c': True}
+    """
+    if isinstance(v, dict):
+        return {k: json_safe(x) for k, x in v.items()}
+    if isinstance(v, (np.bool_, bool)):
+        return bool(v)
+    if isinstance(v, (np.integer,)):
+        return int(v)
+    if isinstance(v, (float, np.floating)):
+        return None if not math.isfinite(float(v)) else float(v)
+    return v
+
+
+def records(df) -> list[dict]:
+    """The rows of a DataFrame as JSON-safe dicts."""
+    return [{k: json_safe(v) for k, v in r.items()} for r in df.to_dict("records")]
+
+
+def yield_json(result) -> dict:
+    """The JSON object of one assay's yields (``assaycut yields --json``)."""
+    a = result.assay
+    doc = {
+        "assay": {"name": a.name, "source": a.source, "sha256": a.sha256, "api": json_safe(a.api),
+                  "sg": json_safe(a.sg), "density_15c_kg_m3": json_safe(sg_to_density15(a.sg)),
+                  "sulfur_wt_pct": json_safe(result.model.sulfur_wt_pct)},
+        "cuts": records(result.cuts),
+        "limits": records(result.limits),
+        "closure": {k: json_safe(v) for k, v in result.closure.items()},
+        "warnings": list(result.warnings),
+        "notes": list(result.notes),
+        "methods": dict(result.methods),
+        "version": __version__,
+    }
+    if result.bands is not None:
+        b = result.bands
+        doc["uncertainty"] = {"draws": b.attrs["draws"], "sigmas": b.attrs["sigmas"], "cuts": records(b)}
+    return doc
+
+
+def yields_document(results, n_paths: int, failures: list[tuple[str, str]]) -> dict:
+    """``assaycut yields --json``: one assay's object, or ``{"assays": [...], "errors": [...]}`` for several."""
+    objs = [yield_json(r) for r in results]
+    return objs[0] if n_paths == 1 else {"assays": objs, "errors": [m for _, m in failures]}
+
+
+def check_json(findings, ok: bool) -> dict:
+    """``assaycut check --json``."""
+    return {"ok": ok, "findings": [dataclasses.asdict(f) for f in findings]}
+
+
+def convert_json(frm: str, to: str, used: str, out: dict, warnings: list[str]) -> dict:
+    """``assaycut convert --json``: temperatures rounded to 1e-4 °C."""
+    return {"from": frm, "to": to, "method": used,
+            "points": [{"percent": p, "temp_c": round(t, 4)} for p, t in out.items()], "warnings": warnings}
+
+
+def compare_json(results, worth, inside, caveat: str) -> dict:
+    """``assaycut compare --json``."""
+    return {"assays": [yield_json(r) for r in results],
+            "worth": records(worth) if worth is not None else [],
+            "inside_bands": [{"cut": c, "crudes": [a, b]} for c, a, b in inside],
+            "notes": [caveat] if worth is not None else []}
+
+
+def shift_json(base, new, delta) -> dict:
+    """``assaycut shift --json``."""
+    return {"base": yield_json(base), "new": yield_json(new), "delta": records(delta)}
+
+
+def sweep_json(crude: str, df) -> dict:
+    """``assaycut sweep --json``."""
+    return {"assay": crude, "lower": df.attrs["lower"], "upper": df.attrs["upper"], "points": records(df)}
+
+
+def optimum_json(crude: str, what: str, unit: str, res, names: list[str], after) -> dict:
+    """``assaycut optimize --json``."""
+    return {
+        "assay": crude, "objective": what, "unit": unit, "feasible": res.feasible,
+        "start": {"cut_points_c": dict(zip(names, map(float, res.start_ends_c))), "value": res.start_objective},
+        "optimum": {"cut_points_c": dict(zip(names, map(float, res.ends_c))), "value": res.objective},
+        "grid_best": json_safe(res.grid_best), "active_limits": res.active,
+        "limits_broken_at_start": res.violated_at_start, "limits_not_evaluated": res.not_evaluated,
+        "cuts": records(after.cuts)}

@@ -1,0 +1,172 @@
+"""Assay quality findings: does the assay hang together?  Used by ``assaycut check``.
+
+Each finding has a severity ('error', 'warning' or 'info'), where it was found, and a message.  The
+thresholds are screening choices of ours (common practice, no source), stated beside each.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..cutting.cutset import default_cut_set
+from ..cutting.ideal import closure, cut_table
+from ..model.assay import Assay
+from ..model.crude import CrudeModel
+from ..model.distributions import narrow_cut_positions
+from ..units import api_to_sg, density15_to_sg
+
+GRAVITY_WARN_SG = 0.0010
+"""API, SG and density given together may differ by this much SG before a warning. [-]"""
+GRAVITY_ERROR_SG = 0.0100
+NARROW_CUT_WARN_PCT = 1.0
+"""A narrow cut's vol % may differ from the curve by this much before a warning. [vol %]"""
+RECON_WARN_PCT = (2.0, 15.0)
+"""Density and sulfur reconciliations above these sizes give a warning. [%]"""
+RECON_ERROR_PCT = (5.0, 40.0)
+"""... and above these, an error. [%]"""
+CLOSURE_ERROR_PCT = 0.01
+"""Yield closure residual above which the model is in error. [%]"""
+
+
+@dataclass(frozen=True)
+class Finding:
+    """One quality finding: severity ('error', 'warning', 'info'), where, message."""
+
+    severity: str
+    where: str
+    message: str
+
+
+def check_assay(assay: Assay, model: CrudeModel) -> list[Finding]:
+    """Quality findings for an assay and its model: gravity figures, curve coverage, closure,
+    reconciliations and narrow cuts, in that order.
+
+    Parameters
+    ----------
+    assay : Assay
+    model : CrudeModel
+
+    Returns
+    -------
+    list of Finding
+    """
+    src = assay.source or assay.name
+    crude_where = f"{src}, sheet 'crude'"
+    curve_where = assay.curves[0].where or src
+    return (_gravity_findings(assay, crude_where) + _curve_findings(model, curve_where, src)
+            + _closure_findings(model) + _reconciliation_findings(assay, model, src, crude_where)
+            + _narrow_cut_findings(assay, model, src))
+
+
+def _gravity_findings(assay: Assay, crude_where: str) -> list[Finding]:
+    """API, SG and density given together must agree."""
+    out: list[Finding] = []
+    g = assay.gravity_inputs
+    sgs = {}
+    if "api_gravity" in g:
+        sgs["api_gravity"] = api_to_sg(g["api_gravity"])
+    if "sg_60f" in g:
+        sgs["sg_60f"] = g["sg_60f"]
+    if "density_15c_kg_m3" in g:
+        sgs["density_15c_kg_m3"] = density15_to_sg(g["density_15c_kg_m3"])
+    if len(sgs) > 1:
+        diff = max(sgs.values()) - min(sgs.values())
+        txt = ", ".join(f"{k} gives SG {v:.4f}" for k, v in sgs.items())
+        if diff > GRAVITY_ERROR_SG:
+            out.append(Finding("error", crude_where, f"gravity figures disagree by {diff:.4f} SG: {txt}"))
+        elif diff > GRAVITY_WARN_SG:
+            out.append(Finding("warning", crude_where, f"gravity figures disagree by {diff:.4f} SG: {txt}; "
+                                                       f"api_gravity is used"))
+        else:
+            out.append(Finding("info", crude_where, f"gravity figures agree within {diff:.4f} SG"))
+    return out
+
+
+def _curve_findings(model: CrudeModel, curve_where: str, src: str) -> list[Finding]:
+    """How far the measured curve reaches, the extension fit, and the model's warnings."""
+    out: list[Finding] = []
+    c = model.curve
+    t_hi = float(c.temp_at(c.measured_hi))
+    sev = "warning" if c.measured_hi < 50.0 else "info"
+    out.append(Finding(sev, curve_where, f"measured curve reaches {c.measured_hi:g} vol % at {t_hi:.0f} °C TBP"
+                       + ("" if c.measured_hi >= 100 else "; beyond it the fitted extension is used")))
+    if c.fit is not None:
+        out.append(Finding("info", curve_where, f"extension: Riazi distribution, RMS deviation {c.fit.rms_c:.1f} °C "
+                                                f"over {c.fit.npoints} points"))
+    for w in model.warnings:
+        out.append(Finding("warning", curve_where if "sheet" not in w else src, w))
+    return out
+
+
+def _closure_findings(model: CrudeModel) -> list[Finding]:
+    """The default cuts close to 100 % on each basis."""
+    out: list[Finding] = []
+    cuts = cut_table(model, default_cut_set())
+    clo = closure(cuts)
+    for basis in ("vol_pct", "wt_pct"):
+        r = clo[basis]
+        out.append(Finding("error" if abs(r) > CLOSURE_ERROR_PCT else "info", "model",
+                           f"default cuts close to 100 % on the {basis[:-4]} basis with residual {r:+.2e} %"))
+    return out
+
+
+def _reconciliation_findings(assay: Assay, model: CrudeModel, src: str, crude_where: str) -> list[Finding]:
+    """How much the density and sulfur distributions were scaled to the whole crude."""
+    out: list[Finding] = []
+    for label, size, k in (("density", model.density_reconciliation_pct, 0),
+                           ("sulfur", model.sulfur_reconciliation_pct, 1)):
+        if size is None:
+            continue
+        sev = "error" if abs(size) > RECON_ERROR_PCT[k] else "warning" if abs(size) > RECON_WARN_PCT[k] else "info"
+        out.append(Finding(sev, f"{src}, sheet 'narrow cuts'" if assay.narrow_cuts is not None else crude_where,
+                           f"{label} distribution scaled by {size:+.2f} % to reproduce the whole crude"
+                           + (" (the cuts and the whole-crude figure disagree)" if sev != "info" else "")))
+    return out
+
+
+def _narrow_cut_findings(assay: Assay, model: CrudeModel, src: str) -> list[Finding]:
+    """Narrow cuts against the curve, their weight and volume, density order and sulfur balance."""
+    out: list[Finding] = []
+    c = model.curve
+    nc = assay.narrow_cuts
+    if nc is not None and len(nc):
+        ncw = f"{src}, sheet 'narrow cuts'"
+        va, vb = narrow_cut_positions(assay, c)
+        for i in range(len(nc)):
+            row = nc.rows[i] if nc.rows else i + 1
+            if np.isfinite(nc.vol_pct[i]):
+                d = nc.vol_pct[i] - (vb[i] - va[i])
+                if abs(d) > NARROW_CUT_WARN_PCT:
+                    out.append(Finding("warning", f"{ncw}, row {row}",
+                                       f"the cut's {nc.vol_pct[i]:g} vol % differs from the curve's "
+                                       f"{vb[i] - va[i]:.2f} vol % by {d:+.2f}"))
+            if np.isfinite(nc.vol_pct[i]) and np.isfinite(nc.wt_pct[i]) and np.isfinite(nc.sg[i]) \
+                    and nc.vol_pct[i] > 0:
+                expect = nc.vol_pct[i] * nc.sg[i] / assay.sg
+                if abs(nc.wt_pct[i] - expect) > max(0.1, 0.03 * expect):
+                    out.append(Finding("warning", f"{ncw}, row {row}",
+                                       f"wt_pct {nc.wt_pct[i]:g} disagrees with vol_pct x SG / crude SG = "
+                                       f"{expect:.2f}"))
+        order = np.argsort(np.nan_to_num(nc.start_c, nan=-1e9))
+        sg_sorted = nc.sg[order]
+        ok = np.isfinite(sg_sorted)
+        if ok.sum() > 2 and np.any(np.diff(sg_sorted[ok]) < -0.005):
+            out.append(Finding("info", ncw, "narrow-cut density falls somewhere as boiling point rises; usual "
+                                            "crudes get denser with boiling point: check the table"))
+        tot = np.nansum(nc.vol_pct)
+        if np.isfinite(nc.vol_pct).any():
+            out.append(Finding("info", ncw, f"narrow cuts add up to {tot:.2f} vol % of crude"))
+        if model.sulfur_wt_pct is not None and np.isfinite(nc.sulfur_wt_pct).any() and np.isfinite(nc.wt_pct).any():
+            ok = np.isfinite(nc.sulfur_wt_pct) & np.isfinite(nc.wt_pct)
+            wsum = nc.wt_pct[ok].sum()
+            if abs(wsum - 100.0) < 1.0 and assay.sulfur_wt_pct is not None:
+                bal = float((nc.wt_pct[ok] * nc.sulfur_wt_pct[ok]).sum() / wsum)
+                rel = (bal / assay.sulfur_wt_pct - 1.0) * 100.0 if assay.sulfur_wt_pct > 0 else 0.0
+                sev = "warning" if abs(rel) > RECON_WARN_PCT[1] else "info"
+                out.append(Finding(sev, ncw, f"sulfur balance: the narrow cuts give {bal:.3f} wt %, the whole "
+                                             f"crude {assay.sulfur_wt_pct:.3f} wt % ({rel:+.1f} %)"))
+    elif nc is None:
+        out.append(Finding("info", src, "no narrow cuts: densities at constant Watson K, no cut sulfur"))
+    return out

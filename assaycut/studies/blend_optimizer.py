@@ -1,0 +1,174 @@
+"""Blend optimiser: the crude shares that meet blend targets at the best worth or the lowest crude cost.
+
+Linear blending rules on volume shares v_i (API MPMS Ch. 11 for gravity; no shrinkage):
+
+* blend SG = Σ v_i SG_i, so an API range is a linear SG range;
+* blend sulfur = Σ v_i SG_i S_i / Σ v_i SG_i, so S ≤ S_max is Σ v_i SG_i (S_i - S_max) ≤ 0;
+* product yield k = Σ v_i y_ik (ideal cuts of the same cut set);
+* worth per barrel of blend = Σ v_i worth_i, margin = Σ v_i (worth_i - price_i), crude cost = Σ v_i price_i.
+
+Solved with scipy.optimize.linprog (HiGHS).  When the targets cannot all be met, an elastic problem (one
+slack per target, minimised in each target's own scale) tells which targets fail and by how much.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..errors import StudyError
+from ..units import api_to_sg, sg_to_api, sg_to_density15
+from .compare import PriceSet, worth_table
+
+
+@dataclass
+class BlendTargets:
+    """Targets of a blend: API range [°API], sulfur maximum [wt %], minimum product yields {cut: vol %}."""
+
+    api_min: float | None = None
+    api_max: float | None = None
+    sulfur_max: float | None = None
+    min_yield: dict[str, float] = field(default_factory=dict)
+
+
+@dataclass
+class BlendPlan:
+    """Outcome: shares [%], objective value, blend qualities, and (when infeasible) the shortfalls."""
+
+    feasible: bool
+    shares_pct: dict[str, float]
+    objective: str
+    value: float
+    api: float
+    sulfur_wt_pct: float
+    yields: dict[str, float]
+    shortfalls: dict[str, float] = field(default_factory=dict)
+    binding: list[str] = field(default_factory=list)
+
+
+def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: BlendTargets,
+                   prices: PriceSet | None, objective: str = "worth") -> BlendPlan:
+    """Shares of the candidate crudes that meet the targets at the best worth or the lowest crude cost.
+
+    Parameters
+    ----------
+    results : list of YieldResult
+        Each candidate crude cut with one cut set (ideal cuts).
+    bounds : dict of str to (float, float)
+        Share bounds by crude name, in % of the blend volume (default 0-100).
+    targets : BlendTargets
+    prices : PriceSet or None
+        Product prices (worth) and crude prices (margin, cost).
+    objective : str
+        'worth' (margin when every crude has a price, else gross worth) or 'cost' (lowest crude cost).
+
+    Returns
+    -------
+    BlendPlan
+    """
+    from scipy.optimize import linprog
+
+    names = [r.assay.name for r in results]
+    if len(set(names)) != len(names):
+        raise StudyError("two candidate crudes have the same name; rename one")
+    n = len(results)
+    if n < 2:
+        raise StudyError("a blend optimisation needs at least two candidate crudes")
+    sg = np.array([r.assay.sg for r in results])
+    s = np.array([np.nan if r.model.sulfur_wt_pct is None else r.model.sulfur_wt_pct for r in results])
+    cuts = list(results[0].cuts["name"])
+    y = np.array([r.cuts.set_index("name").loc[cuts, "vol_pct"].to_numpy() for r in results])  # (crudes, cuts)
+    # objective coefficients (minimised)
+    if objective == "cost":
+        if prices is None or any(nm not in prices.crudes for nm in names):
+            raise StudyError("--objective cost needs a crude price for every candidate in the price file")
+        c = np.array([prices.crudes[nm].per_bbl(sg_to_density15(r.assay.sg)) for nm, r in zip(names, results)])
+        label = f"crude cost [{prices.currency}/bbl]"
+        sign = 1.0
+    else:
+        if prices is None:
+            raise StudyError("the blend optimiser needs a price file (--prices) for worth or cost")
+        w = worth_table(results, prices).set_index("crude").loc[names]
+        margin = w["margin_per_bbl"].to_numpy()
+        if np.all(np.isfinite(margin)):
+            c, label = -margin, f"margin [{prices.currency}/bbl]"
+        else:
+            c, label = -w["worth_per_bbl"].to_numpy(), f"gross product worth [{prices.currency}/bbl]"
+        sign = -1.0
+    lo = np.array([bounds.get(nm, (0.0, 100.0))[0] for nm in names]) / 100.0
+    hi = np.array([bounds.get(nm, (0.0, 100.0))[1] for nm in names]) / 100.0
+    unknown = [b for b in bounds if b not in names]
+    if unknown:
+        raise StudyError(f"share bounds name {unknown[0]!r}, which is not a candidate crude")
+    if np.any(lo > hi) or lo.sum() > 1 + 1e-9 or hi.sum() < 1 - 1e-9:
+        raise StudyError(f"the share bounds cannot add up to 100 %: minimums add to {lo.sum() * 100:g} %, "
+                         f"maximums to {hi.sum() * 100:g} %")
+    # inequality rows A v <= b, each with a label and a scale for the elastic problem
+    rows, rhs, labels, scales = [], [], [], []
+    if targets.api_min is not None:  # API >= min  <=>  SG <= SG(api_min)
+        rows.append(sg)
+        rhs.append(api_to_sg(targets.api_min))
+        labels.append(f"blend API >= {targets.api_min:g}")
+        scales.append(0.01)
+    if targets.api_max is not None:
+        rows.append(-sg)
+        rhs.append(-api_to_sg(targets.api_max))
+        labels.append(f"blend API <= {targets.api_max:g}")
+        scales.append(0.01)
+    if targets.sulfur_max is not None:
+        if np.any(np.isnan(s)):
+            raise StudyError("a sulfur target needs the sulfur of every candidate crude")
+        rows.append(sg * (s - targets.sulfur_max))
+        rhs.append(0.0)
+        labels.append(f"blend sulfur <= {targets.sulfur_max:g} wt %")
+        scales.append(0.01)
+    for cut, ymin in targets.min_yield.items():
+        if cut not in cuts:
+            raise StudyError(f"no cut named {cut!r} for a minimum yield; the cuts are {', '.join(cuts)}")
+        rows.append(-y[:, cuts.index(cut)])
+        rhs.append(-ymin)
+        labels.append(f"{cut} yield >= {ymin:g} vol %")
+        scales.append(1.0)
+    A = np.array(rows) if rows else None
+    b = np.array(rhs) if rows else None
+    res = linprog(c, A_ub=A, b_ub=b, A_eq=np.ones((1, n)), b_eq=[1.0], bounds=list(zip(lo, hi)), method="highs")
+    if res.status == 0:
+        v = res.x
+        slack = (b - A @ v) if rows else np.array([])
+        binding = [lab for lab, sl, sc in zip(labels, slack, scales) if abs(sl) <= 1e-7 * max(1.0, sc * 100)]
+        return _plan(True, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, {}, binding)
+    # elastic problem: minimise the scaled violations
+    m = len(rows)
+    if m == 0:
+        raise StudyError("no shares within the bounds add up to 100 %")
+    c2 = np.concatenate([np.zeros(n), 1.0 / np.array(scales)])
+    A2 = np.hstack([A, -np.eye(m)])
+    res2 = linprog(c2, A_ub=A2, b_ub=b, A_eq=np.hstack([np.ones((1, n)), np.zeros((1, m))]), b_eq=[1.0],
+                   bounds=list(zip(lo, hi)) + [(0, None)] * m, method="highs")
+    v = res2.x[:n]
+    viol = res2.x[n:]
+    short = {}
+    for lab, amount, row in zip(labels, viol, rows):
+        if amount > 1e-9:
+            short[lab] = _in_target_units(lab, amount, row, v, sg)
+    return _plan(False, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, short, [])
+
+
+def _in_target_units(label: str, amount: float, row, v, sg) -> float:
+    """A violation expressed in the target's own unit (°API, wt %, vol %)."""
+    if label.startswith("blend API"):
+        sg_b = float(sg @ v)
+        target_sg = sg_b - amount if ">=" in label else sg_b + amount
+        return abs(sg_to_api(sg_b) - sg_to_api(target_sg))
+    if label.startswith("blend sulfur"):
+        return amount / float(sg @ v)
+    return amount
+
+
+def _plan(ok, names, v, label, value, sg, s, y, cuts, short, binding) -> BlendPlan:
+    sg_b = float(sg @ v)
+    sulfur = float((v * sg * s).sum() / sg_b) if not np.any(np.isnan(s)) else math.nan
+    return BlendPlan(ok, {nm: float(x * 100) for nm, x in zip(names, v)}, label, value, float(sg_to_api(sg_b)),
+                     sulfur, {c: float(yv) for c, yv in zip(cuts, v @ y)}, short, binding)

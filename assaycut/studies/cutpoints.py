@@ -1,0 +1,135 @@
+"""Cut-point studies on one crude: what a change of cut point moves (shift), and one cut point swept.
+
+Pure computation returning DataFrames.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ..cutting.cutset import CutSet
+from ..cutting.ideal import cut_columns
+from ..errors import StudyError
+from ..methods.d86 import D86_STD
+from ..model.crude import CrudeModel
+
+
+DELTA_COLUMNS = ["vol_pct", "wt_pct", "sg", "sulfur_wt_pct", "cetane_index_d4737", "flash_c_est"]
+
+
+def shift_delta(base, new):
+    """Per-cut change between two yield results of the same crude (new minus base).
+
+    Parameters
+    ----------
+    base, new : YieldResult
+        Same assay, same cut names, different cut points.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per cut: name, old and new end_c, d_vol_pct, d_wt_pct, d_sg, d_sulfur_wt_pct,
+        d_cetane_index_d4737, d_flash_c_est, d_d86_<p>_c, changed (bool), limit_flips (text).
+    """
+    import pandas as pd
+
+    b = base.cuts.set_index("name")
+    n = new.cuts.set_index("name")
+    if list(b.index) != list(n.index):
+        raise StudyError("the two cut sets have different cuts; a shift compares the same cuts")
+    rows = []
+    bl = {(x["cut"], x["property"]): x["status"] for x in base.limits.to_dict("records")}
+    nl = {(x["cut"], x["property"]): (x["status"], x["label"] or x["property"]) for x in new.limits.to_dict("records")}
+    for name in b.index:
+        rb, rn = b.loc[name], n.loc[name]
+        row = {"name": name, "end_c_base": rb["end_c"], "end_c_new": rn["end_c"]}
+        for c in DELTA_COLUMNS:
+            row[c] = _d(rn[c], rb[c])
+        db, dn = rb["d86_c"] or {}, rn["d86_c"] or {}
+        for p in D86_STD:
+            row[f"d86_{p}_c"] = _d(dn.get(str(p), math.nan), db.get(str(p), math.nan))
+        row["changed"] = bool(abs(row["vol_pct"]) > 1e-9 or abs(row["wt_pct"]) > 1e-9)
+        flips = [f"{lab}: {bl[(name, prop)]} -> {st}" for (cut, prop), (st, lab) in nl.items()
+                 if cut == name and bl.get((cut, prop)) not in (None, st)]
+        row["limit_flips"] = "; ".join(flips)
+        rows.append(row)
+    return pd.DataFrame(rows)
+
+
+def _d(a, b) -> float:
+    a = math.nan if a is None else float(a)
+    b = math.nan if b is None else float(b)
+    return a - b
+
+
+SWEEP_QUALITIES = ["vol_pct", "wt_pct", "sg", "api", "sulfur_wt_pct", "d86_10_c", "d86_95_c", "cetane_index_d4737",
+                   "flash_c_est"]
+
+
+def sweep(model: CrudeModel, cut_set: CutSet, name: str, t_from: float, t_to: float, step: float = 5.0):
+    """Yields and key qualities of the two cuts on either side of one cut point as it moves.
+
+    Computed in one vectorised pass over all steps (:func:`assaycut.cutting.ideal.cut_columns`).
+
+    Parameters
+    ----------
+    model : CrudeModel
+    cut_set : CutSet
+    name : str
+        The cut whose end moves; the cut after it is the other neighbour.
+    t_from, t_to : float
+        Range of the cut point. [°C]
+    step : float
+        Step. [°C]
+
+    Returns
+    -------
+    pandas.DataFrame
+        Column ``cut_point_c`` and, for ``lower`` and ``upper`` cut, ``<side>_<quality>`` for the qualities of
+        :data:`SWEEP_QUALITIES`.
+    """
+    import pandas as pd
+
+    names = cut_set.names
+    if name not in names:
+        raise StudyError(f"no cut named {name!r}; the cuts are {', '.join(repr(n) for n in names)}")
+    k = names.index(name)
+    if k == len(names) - 1:
+        raise StudyError(f"the last cut {name!r} has no end to move")
+    if any(c.swing for c in cut_set.cuts):
+        raise StudyError("sweep works on cut sets without swing cuts; unmark swing for the sweep")
+    if not (step > 0 and math.isfinite(step)):
+        raise StudyError(f"--step must be a positive number of °C; got {step:g}")
+    if not t_to > t_from:
+        raise StudyError(f"--to {t_to:g} °C must be above --from {t_from:g} °C")
+    n_steps = int(math.floor((t_to - t_from) / step + 1e-9)) + 1
+    if n_steps > 100_000:
+        raise StudyError(f"{n_steps} steps is too many; at most 100000")
+    ends = cut_set.ends_c
+    lo = ends[k - 1] if k > 0 else -math.inf
+    hi = ends[k + 1] if k + 1 < len(ends) else math.inf
+    if t_from <= lo or t_to >= hi:
+        raise StudyError(f"the sweep {t_from:g}-{t_to:g} °C must stay strictly between the neighbouring cut points "
+                         f"({lo:g} and {hi:g} °C)")
+    pts = t_from + step * np.arange(n_steps)
+    # only the two neighbours change: cut with the cut points around them (prev end, moving point, next end)
+    sub = [ends[k - 1]] if k > 0 else []
+    j_lo = len(sub)
+    sub += [np.nan] + ([ends[k + 1]] if k + 1 < len(ends) else [])
+    grid = np.repeat(np.array(sub)[None, :], n_steps, axis=0)
+    grid[:, j_lo] = pts
+    cols = cut_columns(model, grid)
+    out = {"cut_point_c": pts}
+    for side, j in (("lower", j_lo), ("upper", j_lo + 1)):
+        for q in SWEEP_QUALITIES:
+            if q == "d86_10_c":
+                out[f"{side}_{q}"] = cols["d86"][:, j, 1]
+            elif q == "d86_95_c":
+                out[f"{side}_{q}"] = cols["d86"][:, j, 6]
+            else:
+                out[f"{side}_{q}"] = cols[q][:, j]
+    df = pd.DataFrame(out)
+    df.attrs["lower"], df.attrs["upper"] = names[k], names[k + 1]
+    return df

@@ -1,0 +1,137 @@
+"""Uncertainty bands: the assay's measurement uncertainty carried through to yields and qualities.
+
+Monte Carlo over the curve model: each draw perturbs the measured TBP temperatures and percents, the
+densities (whole crude and narrow cuts) and the sulfur contents by independent normal errors, rebuilds the
+crude model, and all draws are cut together by the library engine (arrays over draws).  Reported: P10, P50
+and P90 per cut.
+
+The default standard deviations are ASSUMPTIONS of ours, not values from the standards: the repeatability
+figures of ASTM D2892 (TBP), D4052 (density) and D4294 / D2622 (sulfur) must be confirmed against the current
+editions and the laboratory's own precision before the bands are relied on.
+"""
+
+from __future__ import annotations
+
+import copy
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..cutting.cutset import CutSet
+from ..cutting.library import cut_library
+from ..errors import AssaycutError, StudyError
+from ..model.assay import Assay
+from ..model.crude import build_model
+
+
+@dataclass(frozen=True)
+class Sigmas:
+    """One standard deviation of each measurement (assumed defaults; change them to your laboratory's)."""
+
+    temp_c: float = 2.0
+    """TBP (or other method) temperature of each curve point. [°C] (assumption)"""
+    pct: float = 0.3
+    """Cumulative percent distilled of each curve point. [%] (assumption)"""
+    sg: float = 0.0005
+    """Whole-crude and narrow-cut specific gravity. [-] (assumption)"""
+    sulfur_rel: float = 0.03
+    """Whole-crude and narrow-cut sulfur, relative. [-] (assumption)"""
+
+    def describe(self) -> str:
+        return (f"1-sigma assumptions (to confirm against the standards' repeatability and your laboratory): "
+                f"temperature {self.temp_c:g} °C, percent {self.pct:g} %, SG {self.sg:g}, "
+                f"sulfur {self.sulfur_rel * 100:g} % relative")
+
+
+BAND_QUALITIES = ["vol_pct", "wt_pct", "sg", "api", "sulfur_wt_pct", "watson_k", "cetane_index_d4737",
+                  "flash_c_est"]
+
+
+def perturb(assay: Assay, sig: Sigmas, rng: np.random.Generator) -> Assay:
+    """One Monte Carlo draw of the assay: measured values plus independent normal errors, curves kept
+    monotone (running maximum) and percents inside 0-100."""
+    a = copy.deepcopy(assay)
+    for c in a.curves:
+        t = c.temp_c + rng.normal(0.0, sig.temp_c, c.temp_c.size)
+        p = np.clip(c.percent + rng.normal(0.0, sig.pct, c.percent.size), 0.0, 100.0)
+        c.temp_c = np.maximum.accumulate(t + np.arange(t.size) * 1e-6)
+        c.percent = np.maximum.accumulate(p)
+    a.sg = assay.sg + rng.normal(0.0, sig.sg)
+    if a.sulfur_wt_pct is not None:
+        a.sulfur_wt_pct = max(assay.sulfur_wt_pct * (1.0 + rng.normal(0.0, sig.sulfur_rel)), 0.0)
+    nc = a.narrow_cuts
+    if nc is not None:
+        nc.sg = nc.sg + rng.normal(0.0, sig.sg, nc.sg.size)
+        nc.sulfur_wt_pct = np.maximum(nc.sulfur_wt_pct * (1.0 + rng.normal(0.0, sig.sulfur_rel, nc.sg.size)), 0.0)
+    return a
+
+
+def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 200, seed: int = 20261201,
+                method: str = "daubert-1994"):
+    """P10/P50/P90 of each cut's yields and qualities under the assay's measurement uncertainty.
+
+    Parameters
+    ----------
+    assay : Assay
+    cut_set : CutSet
+    sig : Sigmas
+        Standard deviations (assumed defaults).
+    n : int
+        Number of draws (20-5000).
+    seed : int
+        Random seed; the same seed gives the same bands.
+    method : str
+        TBP <-> D86 method for D86 input curves.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per cut: name, then ``<quality>_p10``, ``_p50``, ``_p90`` for :data:`BAND_QUALITIES`;
+        ``attrs`` hold 'draws' (used), 'failed' (draws whose perturbed data could not be modelled) and 'sigmas'.
+    """
+    import pandas as pd
+
+    if not 20 <= n <= 5000:
+        raise StudyError(f"the number of draws must be between 20 and 5000; got {n}")
+    rng = np.random.default_rng(seed)
+    models, failed = [], 0
+    for _ in range(n):
+        try:
+            models.append(build_model(perturb(assay, sig, rng), method))
+        except AssaycutError:
+            failed += 1
+    if len(models) < 10:
+        raise StudyError(f"only {len(models)} of {n} perturbed draws could be modelled; the uncertainties are too "
+                         f"large for this curve")
+    names, cols = cut_library(models, cut_set)
+    out = {"name": names}
+    for q in BAND_QUALITIES:
+        v = np.asarray(cols[q], dtype=float)
+        ok = np.isfinite(v).sum(axis=0) >= max(5, v.shape[0] // 2)  # a quality estimated in most draws
+        filled = np.where(np.isfinite(v), v, 0.0)
+        for pct in (10, 50, 90):
+            val = np.full(v.shape[1], np.nan)
+            if ok.any():
+                val[ok] = np.nanpercentile(np.where(np.isfinite(v[:, ok]), filled[:, ok], np.nan), pct, axis=0)
+            out[f"{q}_p{pct}"] = val
+    df = pd.DataFrame(out)
+    df.attrs.update(draws=len(models), failed=failed, sigmas=sig.describe())
+    return df
+
+
+def overlapping(bands: dict[str, tuple[float, float]]) -> list[tuple[str, str]]:
+    """Pairs of crudes whose P10-P90 bands overlap: their difference lies inside the uncertainty.
+
+    Examples
+    --------
+    >>> overlapping({"A": (10.0, 12.0), "B": (11.5, 13.0), "C": (14.0, 15.0)})
+    [('A', 'B')]
+    """
+    names = list(bands)
+    out = []
+    for i, a in enumerate(names):
+        for b in names[i + 1:]:
+            (a0, a1), (b0, b1) = bands[a], bands[b]
+            if a0 <= b1 and b0 <= a1:
+                out.append((a, b))
+    return out
