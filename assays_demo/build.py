@@ -20,8 +20,8 @@ import numpy as np
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE.parent))
 
-from assaycut.model.assay import Assay, CurveData, LightEnds, NarrowCuts  # noqa: E402
 from assaycut.io.assaywriter import write_assay_workbook  # noqa: E402
+from assaycut.model.assay import Assay, CurveData, LightEnds, NarrowCuts  # noqa: E402
 from assaycut.units import api_to_sg  # noqa: E402
 
 ORDER = ["selkie_light", "brannock_blend", "tarn_heavy"]

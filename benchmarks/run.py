@@ -26,9 +26,9 @@ import numpy as np
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
+from assaycut.cutting.cutset import Cut, CutSet  # noqa: E402
 from assaycut.model.assay import Assay, CurveData, LightEnds, NarrowCuts  # noqa: E402
 from assaycut.model.crude import build_model  # noqa: E402
-from assaycut.cutting.cutset import Cut, CutSet  # noqa: E402
 
 CUTS8 = CutSet([Cut("light ends", 15.0), Cut("light naphtha", 85.0), Cut("heavy naphtha", 177.0),
                 Cut("kerosene", 232.0), Cut("light gas oil", 290.0), Cut("heavy gas oil", 343.0),

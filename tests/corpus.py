@@ -10,8 +10,8 @@ import datetime
 import zipfile
 from pathlib import Path
 
-from .bombs import entity_bomb
-from .conftest import base_sheets, write_book
+from tests.bombs import entity_bomb
+from tests.helpers import base_sheets, write_book
 
 CASES = []
 
@@ -40,7 +40,8 @@ def _book(d: Path, name: str, mutate=None, hide=None, merge=None) -> Path:
     return p
 
 
-def _set(sheet, row, col, value):
+def set_cell(sheet, row, col, value):
+    """A mutator of base sheets: sheet[row][col] = value."""
     def m(s):
         r = s[sheet][row]
         r.extend([None] * (col + 1 - len(r)))
@@ -56,33 +57,33 @@ def _wb_case(name, mutate, expect, cmd="yields"):
 
 
 for _name, _mut, _exp in [
-    ("text_in_number", _set("distillation", 7, 1, "abc"), r"row 8, column 'temp_c': found text 'abc'"),
-    ("formula_in_number", _set("distillation", 7, 1, "=1+1"), r"found the formula '=1\+1'"),
-    ("nan_text", _set("distillation", 7, 1, "NaN"), r"found text 'NaN'; expected a number"),
-    ("inf_text", _set("distillation", 7, 1, "-inf"), r"found text '-inf'"),
-    ("falling_temperature", _set("distillation", 8, 1, 100.0), r"row 9, column 'temp_c': temperature falls"),
-    ("percent_above_100", _set("distillation", 11, 0, 101.0), r"vol_pct 101 is outside 0-100 %"),
-    ("percent_below_0", _set("distillation", 5, 0, -1.0), r"vol_pct -1 is outside 0-100 %"),
-    ("below_absolute_zero", _set("distillation", 5, 1, -274.0), r"below absolute zero"),
-    ("unknown_curve_column", _set("distillation", 4, 2, "density"), r"unknown column 'density'"),
-    ("mixed_units_in_curve", _set("distillation", 4, 2, "temp_f"), r"one temperature column"),
-    ("missing_gravity", _set("crude", 4, 1, None), r"missing gravity"),
-    ("absurd_gravity", _set("crude", 4, 1, -5.0), r"api_gravity -5 °API is outside 0-100 °API"),
-    ("absurd_sulfur", _set("crude", 5, 1, 40.0), r"sulfur_wt_pct 40 is outside 0-15 wt %"),
-    ("unknown_crude_field", _set("crude", 5, 0, "colour"), r"unknown field 'colour'"),
-    ("unknown_method", _set("distillation", 1, 1, "ASTM"), r"method 'ASTM' is not one of"),
-    ("d1160_without_pressure", _set("distillation", 1, 1, "D1160"), r"a D1160 curve needs its pressure"),
-    ("tbp_with_pressure", _set("distillation", 2, 1, 10.0), r"pressure_mmhg 10 applies to D1160 only"),
-    ("unknown_component", _set("light ends", 2, 0, "C9"), r"unknown component 'C9'"),
-    ("light_end_too_large", _set("light ends", 2, 1, 70.0), r"wt_pct 70 is outside 0-50 %"),
-    ("duplicate_component", _set("light ends", 3, 0, "C3"), r"component C3 is listed twice"),
-    ("narrow_cut_reversed", _set("narrow cuts", 3, 1, 10.0), r"the cut ends at 10.0 °C, not above its start"),
-    ("narrow_cut_mixed_units", _set("narrow cuts", 1, 6, "end_f"), r"mixed temperature units"),
-    ("narrow_cut_bad_gravity", _set("narrow cuts", 4, 4, 7.5), r"sg_60f 7.5 is not a plausible cut gravity"),
-    ("narrow_cut_unknown_column", _set("narrow cuts", 1, 6, "colour"), r"unknown column 'colour'"),
-    ("date_in_number", _set("distillation", 7, 1, datetime.datetime(2025, 1, 2)), r"found a date/time"),
-    ("bool_in_number", _set("distillation", 7, 1, True), r"found True; expected a number"),
-    ("check_on_bad_curve", _set("distillation", 7, 1, "x"), r"found text 'x'"),
+    ("text_in_number", set_cell("distillation", 7, 1, "abc"), r"row 8, column 'temp_c': found text 'abc'"),
+    ("formula_in_number", set_cell("distillation", 7, 1, "=1+1"), r"found the formula '=1\+1'"),
+    ("nan_text", set_cell("distillation", 7, 1, "NaN"), r"found text 'NaN'; expected a number"),
+    ("inf_text", set_cell("distillation", 7, 1, "-inf"), r"found text '-inf'"),
+    ("falling_temperature", set_cell("distillation", 8, 1, 100.0), r"row 9, column 'temp_c': temperature falls"),
+    ("percent_above_100", set_cell("distillation", 11, 0, 101.0), r"vol_pct 101 is outside 0-100 %"),
+    ("percent_below_0", set_cell("distillation", 5, 0, -1.0), r"vol_pct -1 is outside 0-100 %"),
+    ("below_absolute_zero", set_cell("distillation", 5, 1, -274.0), r"below absolute zero"),
+    ("unknown_curve_column", set_cell("distillation", 4, 2, "density"), r"unknown column 'density'"),
+    ("mixed_units_in_curve", set_cell("distillation", 4, 2, "temp_f"), r"one temperature column"),
+    ("missing_gravity", set_cell("crude", 4, 1, None), r"missing gravity"),
+    ("absurd_gravity", set_cell("crude", 4, 1, -5.0), r"api_gravity -5 °API is outside 0-100 °API"),
+    ("absurd_sulfur", set_cell("crude", 5, 1, 40.0), r"sulfur_wt_pct 40 is outside 0-15 wt %"),
+    ("unknown_crude_field", set_cell("crude", 5, 0, "colour"), r"unknown field 'colour'"),
+    ("unknown_method", set_cell("distillation", 1, 1, "ASTM"), r"method 'ASTM' is not one of"),
+    ("d1160_without_pressure", set_cell("distillation", 1, 1, "D1160"), r"a D1160 curve needs its pressure"),
+    ("tbp_with_pressure", set_cell("distillation", 2, 1, 10.0), r"pressure_mmhg 10 applies to D1160 only"),
+    ("unknown_component", set_cell("light ends", 2, 0, "C9"), r"unknown component 'C9'"),
+    ("light_end_too_large", set_cell("light ends", 2, 1, 70.0), r"wt_pct 70 is outside 0-50 %"),
+    ("duplicate_component", set_cell("light ends", 3, 0, "C3"), r"component C3 is listed twice"),
+    ("narrow_cut_reversed", set_cell("narrow cuts", 3, 1, 10.0), r"the cut ends at 10.0 °C, not above its start"),
+    ("narrow_cut_mixed_units", set_cell("narrow cuts", 1, 6, "end_f"), r"mixed temperature units"),
+    ("narrow_cut_bad_gravity", set_cell("narrow cuts", 4, 4, 7.5), r"sg_60f 7.5 is not a plausible cut gravity"),
+    ("narrow_cut_unknown_column", set_cell("narrow cuts", 1, 6, "colour"), r"unknown column 'colour'"),
+    ("date_in_number", set_cell("distillation", 7, 1, datetime.datetime(2025, 1, 2)), r"found a date/time"),
+    ("bool_in_number", set_cell("distillation", 7, 1, True), r"found True; expected a number"),
+    ("check_on_bad_curve", set_cell("distillation", 7, 1, "x"), r"found text 'x'"),
 ]:
     _wb_case(_name, _mut, _exp, "check" if _name.startswith("check") else "yields")
 

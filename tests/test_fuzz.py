@@ -13,12 +13,12 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from assaycut.model.assay import Assay, CurveData
-from assaycut.model.crude import build_model
 from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
 from assaycut.cutting.ideal import cut_table
 from assaycut.errors import AssaycutError
 from assaycut.io import load_assay
+from assaycut.model.assay import Assay, CurveData
+from assaycut.model.crude import build_model
 from assaycut.yields import run_yields
 
 FUZZ = settings(max_examples=120, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
@@ -119,7 +119,6 @@ monotone_tbp = st.lists(st.floats(0.5, 60.0), min_size=6, max_size=6).flatmap(
 def test_converted_monotone_curves_stay_monotone(tbp):
     # Daubert 1994 in both directions builds each segment from a positive difference: monotone in, monotone out.
     from assaycut.methods.d86 import d86_to_tbp_daubert_1994, tbp_to_d86_daubert_1994
-
     from assaycut.units import c_to_f
 
     assume(c_to_f(tbp[50]) > 0)

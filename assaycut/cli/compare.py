@@ -10,8 +10,23 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import AssaycutError
-from .common import (CutsOpt, EndOpt, JsonOpt, LimitsOpt, PricesOpt, UncertOpt, echo_json, echo_lines, guarded, load,
-                     load_cut_set, load_limits, load_prices, parse_ends, resolve_assays)
+from .common import (
+    CutsOpt,
+    EndOpt,
+    JsonOpt,
+    LimitsOpt,
+    PricesOpt,
+    UncertOpt,
+    echo_json,
+    echo_lines,
+    guarded,
+    load,
+    load_cut_set,
+    load_limits,
+    load_prices,
+    parse_ends,
+    resolve_assays,
+)
 
 app = typer.Typer()
 

@@ -8,8 +8,22 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import AssaycutError
-from .common import (AssayArg, CutsOpt, EndOpt, JsonOpt, LimitsOpt, PricesOpt, echo_json, echo_lines, guarded,
-                     load_cut_set, load_limits, load_one, load_prices, parse_ends)
+from .common import (
+    AssayArg,
+    CutsOpt,
+    EndOpt,
+    JsonOpt,
+    LimitsOpt,
+    PricesOpt,
+    echo_json,
+    echo_lines,
+    guarded,
+    load_cut_set,
+    load_limits,
+    load_one,
+    load_prices,
+    parse_ends,
+)
 
 app = typer.Typer()
 

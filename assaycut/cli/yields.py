@@ -8,9 +8,27 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import AssaycutError
-from .common import (ApiOpt, CutsOpt, DensOpt, EndOpt, JsonOpt, LimitsOpt, SgOpt, SulfurOpt, TdMethod, UncertOpt,
-                     EXIT_INPUT, echo_json, echo_lines, error_line, guarded, load, load_cut_set, load_limits,
-                     resolve_assays)
+from .common import (
+    EXIT_INPUT,
+    ApiOpt,
+    CutsOpt,
+    DensOpt,
+    EndOpt,
+    JsonOpt,
+    LimitsOpt,
+    SgOpt,
+    SulfurOpt,
+    TdMethod,
+    UncertOpt,
+    echo_json,
+    echo_lines,
+    error_line,
+    guarded,
+    load,
+    load_cut_set,
+    load_limits,
+    resolve_assays,
+)
 
 app = typer.Typer()
 

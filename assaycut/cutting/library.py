@@ -12,12 +12,18 @@ from __future__ import annotations
 import numpy as np
 
 from ..model.crude import CrudeModel
-from ..model.spline import (Pchip, hermite_basis, hermite_combine, hermite_solve, interval_mean,
-                            segment_antiderivative, segment_integrals)
+from ..model.spline import (
+    Pchip,
+    hermite_basis,
+    hermite_combine,
+    hermite_solve,
+    interval_mean,
+    segment_antiderivative,
+    segment_integrals,
+)
 from ..model.tbp_curve import TbpCurve
 from .cutset import CutSet
 from .ideal import cut_columns
-
 
 CHUNK = 1024
 """Crudes cut together in one pass; a library is cut chunk by chunk."""

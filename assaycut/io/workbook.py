@@ -13,8 +13,19 @@ from ..model.assay import Assay, CurveData, LightEnds, NarrowCuts
 from ..model.lightends import find_component, known_labels
 from ..units import api_to_sg, density15_to_sg, to_celsius
 from .cells import SourceLocation, cell_text, describe, gravity_from_inputs, parse_curve_rows, read_bytes, to_number
-from .layout import (MAX_BYTES, MAX_ROWS, METHODS, PCT_COLUMNS, SHEET_CRUDE, SHEET_CURVE, SHEET_CUTS, SHEET_LIGHT,
-                     SHEET_VACUUM, TEMP_COLUMNS, UNIT_SUFFIX)
+from .layout import (
+    MAX_BYTES,
+    MAX_ROWS,
+    METHODS,
+    PCT_COLUMNS,
+    SHEET_CRUDE,
+    SHEET_CURVE,
+    SHEET_CUTS,
+    SHEET_LIGHT,
+    SHEET_VACUUM,
+    TEMP_COLUMNS,
+    UNIT_SUFFIX,
+)
 
 
 def _open_workbook(data: bytes, path: str):

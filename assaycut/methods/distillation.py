@@ -11,8 +11,12 @@ from __future__ import annotations
 from typing import Callable, Mapping, NamedTuple
 
 from ..errors import ConversionError
-from .d86 import (d86_to_tbp_daubert_1994, d86_to_tbp_riazi_daubert_1986, tbp_to_d86_daubert_1994,
-                  tbp_to_d86_riazi_daubert_1986)
+from .d86 import (
+    d86_to_tbp_daubert_1994,
+    d86_to_tbp_riazi_daubert_1986,
+    tbp_to_d86_daubert_1994,
+    tbp_to_d86_riazi_daubert_1986,
+)
 from .d1160 import vacuum_to_aet_maxwell_bonnell
 from .d2887 import d2887_to_d86_api_3a3_2, d2887_to_tbp_api_3a3_1
 from .segments import normalise_points

@@ -15,7 +15,6 @@ from ..errors import StudyError
 from ..methods.d86 import D86_STD
 from ..model.crude import CrudeModel
 
-
 DELTA_COLUMNS = ["vol_pct", "wt_pct", "sg", "sulfur_wt_pct", "cetane_index_d4737", "flash_c_est"]
 
 

@@ -8,15 +8,14 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from assaycut.studies.blend_optimizer import BlendTargets, optimize_blend
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.errors import StudyError
 from assaycut.io import load_assay
 from assaycut.io.tomlfiles import demo_assay_paths, read_prices
+from assaycut.studies.blend_optimizer import BlendTargets, optimize_blend
 from assaycut.studies.compare import worth_table
 from assaycut.yields import run_yields
-
-from .test_optimize import demo_prices
+from tests.helpers import DEMO_PRICES
 
 runner = CliRunner()
 
@@ -38,7 +37,7 @@ def blend_props(results, v):
 
 
 def test_optimal_blend_meets_targets_and_beats_grid(results):
-    prices = read_prices(str(demo_prices()))
+    prices = read_prices(str(DEMO_PRICES))
     t = BlendTargets(api_min=28.0, sulfur_max=1.5, min_yield={"diesel": 16.0})
     bounds = {"Selkie Light": (0.0, 70.0), "Tarn Heavy": (10.0, 100.0)}
     plan = optimize_blend(results, bounds, t, prices)
@@ -64,7 +63,7 @@ def test_optimal_blend_meets_targets_and_beats_grid(results):
 
 
 def test_infeasible_targets_reported(results):
-    prices = read_prices(str(demo_prices()))
+    prices = read_prices(str(DEMO_PRICES))
     plan = optimize_blend(results, {}, BlendTargets(api_min=45.0), prices)
     assert not plan.feasible
     (label, short), = plan.shortfalls.items()
@@ -74,7 +73,7 @@ def test_infeasible_targets_reported(results):
 
 
 def test_bounds_errors(results):
-    prices = read_prices(str(demo_prices()))
+    prices = read_prices(str(DEMO_PRICES))
     with pytest.raises(StudyError, match="cannot add up to 100 %"):
         optimize_blend(results, {"Selkie Light": (60, 100), "Tarn Heavy": (50, 100)}, BlendTargets(), prices)
 
@@ -85,11 +84,11 @@ def test_cli_blend_optimize(tmp_path):
     paths = demo_assay_paths()
     out = tmp_path / "best.xlsx"
     r = runner.invoke(app, ["blend", "--optimize", paths[0], paths[1], f"{paths[2]}=10:60", "--prices",
-                            str(demo_prices()), "--sulfur-max", "1.2", "--out", str(out)])
+                            str(DEMO_PRICES), "--sulfur-max", "1.2", "--out", str(out)])
     assert r.exit_code == 0, r.stderr
     assert out.exists() and (tmp_path / "blend_plan.png").exists()
     assert load_assay(str(out)).sulfur_wt_pct <= 1.2 + 1e-6
-    r = runner.invoke(app, ["blend", "--optimize", paths[0], paths[2], "--prices", str(demo_prices()),
+    r = runner.invoke(app, ["blend", "--optimize", paths[0], paths[2], "--prices", str(DEMO_PRICES),
                             "--sulfur-max", "0.05", "--out", str(tmp_path / "x.xlsx")])
     assert r.exit_code == 1
     assert "target not met: blend sulfur <= 0.05 wt %" in r.stdout

@@ -9,9 +9,8 @@ import pytest
 from typer.testing import CliRunner
 
 from assaycut.cli import app
-
-from .conftest import sha256
-from .corpus import CASES
+from tests.corpus import CASES
+from tests.helpers import sha256
 
 runner = CliRunner()
 

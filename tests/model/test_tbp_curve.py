@@ -1,20 +1,15 @@
-"""Monotone spline and curve model: against scipy's PCHIP (reference library) and invariants."""
+"""The TBP curve model: extension, mean temperature against quadrature (scipy), light ends, refusals."""
 
 from __future__ import annotations
 
 import numpy as np
 import pytest
-from hypothesis import given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 from scipy.integrate import quad
-from scipy.interpolate import PchipInterpolator
 
-from assaycut.methods.riazi_distribution import fit_riazi_distribution
-
-from assaycut.model.tbp_curve import build_curve
 from assaycut.errors import CurveError
-from assaycut.model.spline import Pchip
+from assaycut.model.tbp_curve import build_curve
 
 
 @st.composite
@@ -28,56 +23,6 @@ def monotone_curve(draw, min_size=2, max_size=14, allow_flat=True):
     v = np.concatenate([[0.0], np.cumsum(dv)])
     v = v / max(v[-1], 1e-9) * draw(st.floats(30.0, 100.0)) if v[-1] > 0 else v
     return t, v
-
-
-@settings(max_examples=200, deadline=None)
-@given(monotone_curve())
-def test_pchip_matches_scipy(tv):
-    # Reference library: scipy.interpolate.PchipInterpolator (same Fritsch-Carlson construction).
-    t, v = tv
-    p, s = Pchip(t, v), PchipInterpolator(t, v)
-    tq = np.linspace(t[0], t[-1], 257)
-    assert_allclose(p(tq), s(tq), atol=1e-9)
-    assert_allclose(p.integral(t[0], t[-1]), s.integrate(t[0], t[-1]), rtol=1e-10, atol=1e-8)
-
-
-@settings(max_examples=200, deadline=None)
-@given(monotone_curve())
-def test_exact_at_nodes_monotone_and_no_overshoot(tv):
-    # Fritsch & Carlson (1980): the interpolant reproduces the nodes and is monotone between them.
-    t, v = tv
-    p = Pchip(t, v)
-    assert_allclose(p(t), v, atol=1e-12)
-    tq = np.linspace(t[0], t[-1], 2001)
-    vq = p(tq)
-    assert np.all(np.diff(vq) >= -1e-12)
-    assert vq.min() >= v.min() - 1e-12 and vq.max() <= v.max() + 1e-12
-
-
-@settings(max_examples=200, deadline=None)
-@given(monotone_curve(allow_flat=False), st.floats(0.0, 1.0))
-def test_inverse_round_trip(tv, frac):
-    # Identity required by the curve model: T(V(T)) = T within 1e-6 °C where V rises strictly.
-    t, v = tv
-    p = Pchip(t, v)
-    tq = t[0] + frac * (t[-1] - t[0])
-    assert abs(float(p.inverse(p(tq))) - tq) < 1e-6
-
-
-def test_flat_step_stays_flat():
-    # Fritsch & Carlson (1980): equal neighbouring values give zero node slopes, so the step stays flat.
-    p = Pchip([0.0, 10.0, 20.0, 30.0], [0.0, 5.0, 5.0, 9.0])
-    assert_allclose(p(np.linspace(10.0, 20.0, 11)), 5.0, atol=1e-12)
-
-
-def test_riazi_fit_recovers_parameters():
-    # Identity: points generated from the Riazi distribution (Riazi MNL50 §4.5 form) are fitted back.
-    x = np.array([0.03, 0.1, 0.25, 0.45, 0.6, 0.75])
-    t = 320.0 * (1 + (4.0 / 1.8 * np.log(1 / (1 - x))) ** (1 / 1.8)) - 273.15
-    f = fit_riazi_distribution(100 * x, t)
-    assert f.t0_k == pytest.approx(320.0, rel=2e-3)
-    assert f.b == pytest.approx(1.8, rel=1e-2)
-    assert f.rms_c < 0.05
 
 
 def test_curve_stopping_early_is_extended_and_marked():

@@ -9,14 +9,13 @@ import pytest
 from numpy.testing import assert_allclose
 from typer.testing import CliRunner
 
-from assaycut.model.crude import build_model
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.cutting.ideal import cut_table
 from assaycut.cutting.products import fractionate, split_fractions
 from assaycut.io import load_assay
+from assaycut.model.crude import build_model
 from assaycut.yields import run_yields
-
-from .test_readers import cli_error
+from tests.helpers import cli_app, cli_error
 
 runner = CliRunner()
 
@@ -85,13 +84,13 @@ def test_limit_checks_use_product_curves(model):
 
 
 def test_cli_overlap_and_cut_file_key(tmp_path):
-    r = runner.invoke(app_(), ["yields", "--overlap", "kerosene=25", "--out", str(tmp_path / "o")])
+    r = runner.invoke(cli_app(), ["yields", "--overlap", "kerosene=25", "--out", str(tmp_path / "o")])
     assert r.exit_code == 0, r.stderr
     assert (tmp_path / "o" / "Selkie_Light_products.png").exists()
     p = tmp_path / "cuts.toml"
     p.write_text('[[cut]]\nname="naphtha"\nend_c=180\noverlap_c=20\n[[cut]]\nname="middle"\nend_c=350\n'
                  '[[cut]]\nname="rest"\n')
-    d = json.loads(runner.invoke(app_(), ["yields", "--cuts", str(p), "--json"]).stdout)
+    d = json.loads(runner.invoke(cli_app(), ["yields", "--cuts", str(p), "--json"]).stdout)
     assert "fractionation" in d["methods"]
     assert sum(c["vol_pct"] for c in d["cuts"]) == pytest.approx(100.0, abs=1e-9)
     cli_error(["yields", "--overlap", "jet=20"], r"no cut named 'jet' for an overlap")
@@ -99,8 +98,3 @@ def test_cli_overlap_and_cut_file_key(tmp_path):
     p.write_text('[[cut]]\nname="a"\nend_c=180\noverlap_c=-3\n[[cut]]\nname="b"\n')
     cli_error(["yields", "--cuts", str(p)], r"'overlap_c' must be a TBP width of 0-200 °C")
 
-
-def app_():
-    from assaycut.cli import app
-
-    return app

@@ -8,9 +8,7 @@ import pytest
 from typer.testing import CliRunner
 
 from assaycut.cli import app
-
-from .conftest import sha256
-from .test_readers import cli_error
+from tests.helpers import cli_error, sha256
 
 runner = CliRunner()
 

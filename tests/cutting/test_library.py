@@ -5,12 +5,12 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from assaycut.model.assay import Assay, CurveData
-from assaycut.model.crude import build_model
 from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
 from assaycut.cutting.ideal import cut_columns
-from assaycut.io import load_assay
 from assaycut.cutting.library import cut_library, library_summary
+from assaycut.io import load_assay
+from assaycut.model.assay import Assay, CurveData
+from assaycut.model.crude import build_model
 
 
 @pytest.fixture(scope="module")

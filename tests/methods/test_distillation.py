@@ -8,12 +8,18 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-from assaycut.methods.d86 import (D94_SEGMENTS, RD1986_K, RD1986_R, d86_to_tbp_daubert_1994,
-                                  d86_to_tbp_riazi_daubert_1986, tbp_to_d86_daubert_1994)
+from assaycut.errors import ConversionError
+from assaycut.methods.d86 import (
+    D94_SEGMENTS,
+    RD1986_K,
+    RD1986_R,
+    d86_to_tbp_daubert_1994,
+    d86_to_tbp_riazi_daubert_1986,
+    tbp_to_d86_daubert_1994,
+)
 from assaycut.methods.d1160 import vacuum_to_aet_maxwell_bonnell
 from assaycut.methods.d2887 import d2887_to_tbp_api_3a3_1
 from assaycut.methods.distillation import convert
-from assaycut.errors import ConversionError
 
 # Riazi, Characterization and Properties of Petroleum Fractions, ASTM MNL50 (2005), Example 3.3 / Table 3.8:
 # a kerosene's ASTM D86 at 0/10/30/50/70/90 vol %.

@@ -12,25 +12,11 @@ from typer.testing import CliRunner
 from assaycut.cli import app
 from assaycut.errors import AssaycutError, InputError
 from assaycut.io import load_assay
-
-from .bombs import entity_bomb
-from .conftest import sha256
-from .corpus import _set as set_cell
+from tests.bombs import entity_bomb
+from tests.corpus import set_cell
+from tests.helpers import cli_error, sha256
 
 runner = CliRunner()
-
-
-def cli_error(args, match):
-    """Run the CLI; assert exit code 2, one error line on stderr matching ``match``, no traceback."""
-    import re
-
-    r = runner.invoke(app, args)
-    assert r.exit_code == 2, (r.exit_code, r.stdout, r.stderr)
-    lines = [x for x in r.stderr.splitlines() if x.strip()]
-    assert len(lines) == 1, r.stderr
-    assert "Traceback" not in r.stderr + r.stdout
-    assert re.search(match, lines[0]), lines[0]
-    return lines[0]
 
 
 def test_good_workbook_reads_and_normalises(good_book):
@@ -80,7 +66,7 @@ def test_temperature_units_converted(book):
 
 def _library_cases():
     """The corpus cases that are one workbook read by `yields` or `check` (tests/corpus.py)."""
-    from .corpus import CASES
+    from tests.corpus import CASES
 
     return [c for c in CASES if c[2] is not None and c[0] not in ("missing_file", "folder_as_assay")
             and c[0].split("_")[0] not in ("cuts", "limits", "prices", "blend", "convert", "sweep", "shift",
@@ -222,9 +208,9 @@ def _curve_book(book, method, basis, points):
 
 
 def test_weight_basis_tbp_curve_converted_and_closed(book):
-    from assaycut.model.crude import build_model
     from assaycut.cutting.cutset import default_cut_set
     from assaycut.cutting.ideal import cut_table
+    from assaycut.model.crude import build_model
 
     pts = [(0, 20), (10, 90), (30, 180), (50, 290), (70, 410), (90, 560), (95, 620), (100, 700)]
     m = build_model(load_assay(str(_curve_book(book, "TBP", "wt", pts))))

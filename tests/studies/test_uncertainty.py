@@ -10,11 +10,10 @@ import pytest
 from typer.testing import CliRunner
 
 from assaycut.cutting.cutset import default_cut_set
-
 from assaycut.cutting.ideal import cut_table
-from assaycut.model.crude import build_model
 from assaycut.io import load_assay
 from assaycut.io.tomlfiles import demo_assay_paths
+from assaycut.model.crude import build_model
 from assaycut.studies.uncertainty import Sigmas, monte_carlo
 
 runner = CliRunner()

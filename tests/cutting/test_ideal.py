@@ -8,13 +8,13 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-from assaycut.model.assay import Assay, CurveData, NarrowCuts
-from assaycut.methods.product_properties import cetane_index_d4737
-from assaycut.model.crude import build_model
 from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
 from assaycut.cutting.ideal import cut_columns, cut_table
 from assaycut.errors import CutSetError
 from assaycut.io import load_assay
+from assaycut.methods.product_properties import cetane_index_d4737
+from assaycut.model.assay import Assay, CurveData, NarrowCuts
+from assaycut.model.crude import build_model
 
 chemicals = pytest.importorskip("chemicals")
 

@@ -8,17 +8,16 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from assaycut.model.crude import build_model
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.cutting.ideal import cut_columns
+from assaycut.cutting.limits import limit_margins
 from assaycut.errors import StudyError
 from assaycut.io import load_assay
 from assaycut.io.tomlfiles import demo_assay_paths, read_limits
-from assaycut.cutting.limits import limit_margins
+from assaycut.model.crude import build_model
 from assaycut.studies.cut_optimizer import optimize_cut_points
 from assaycut.yields import run_yields
-
-from .test_readers import cli_error
+from tests.helpers import DEMO_PRICES, cli_app, cli_error
 
 runner = CliRunner()
 
@@ -80,24 +79,14 @@ def test_objective_errors(demo):
 
 
 def test_cli_optimize_json_and_plot(tmp_path):
-    r = runner.invoke(app_(), ["optimize", "--maximize", "kerosene", "--json", "--out", str(tmp_path)])
+    r = runner.invoke(cli_app(), ["optimize", "--maximize", "kerosene", "--json", "--out", str(tmp_path)])
     assert r.exit_code == 0, r.stderr
     d = json.loads(r.stdout)
     assert d["feasible"] is True and d["optimum"]["value"] >= d["start"]["value"]
     assert (tmp_path / "Selkie_Light_optimum.png").exists()
-    r = runner.invoke(app_(), ["optimize", "--prices", str(demo_prices()), "--json"])
+    r = runner.invoke(cli_app(), ["optimize", "--prices", str(DEMO_PRICES), "--json"])
     d = json.loads(r.stdout)
     assert d["optimum"]["value"] >= d["start"]["value"] - 1e-9
     cli_error(["optimize"], r"give one objective: --maximize NAME or --prices FILE")
 
 
-def demo_prices():
-    from pathlib import Path
-
-    return Path(__file__).resolve().parent.parent / "assays_demo" / "prices_demo.toml"
-
-
-def app_():
-    from assaycut.cli import app
-
-    return app

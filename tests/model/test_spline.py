@@ -1,0 +1,64 @@
+"""Monotone spline: against scipy's PCHIP (reference library) and its invariants."""
+
+from __future__ import annotations
+
+import numpy as np
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from numpy.testing import assert_allclose
+from scipy.interpolate import PchipInterpolator
+
+from assaycut.model.spline import Pchip
+
+
+@st.composite
+def monotone_curve(draw, min_size=2, max_size=14, allow_flat=True):
+    n = draw(st.integers(min_size, max_size))
+    dt = draw(st.lists(st.floats(0.5, 80.0), min_size=n - 1, max_size=n - 1))
+    step = st.one_of(st.just(0.0), st.floats(0.01, 15.0)) if allow_flat else st.floats(0.2, 15.0)
+    dv = draw(st.lists(step, min_size=n - 1, max_size=n - 1))
+    t0 = draw(st.floats(-50.0, 200.0))
+    t = t0 + np.concatenate([[0.0], np.cumsum(dt)])
+    v = np.concatenate([[0.0], np.cumsum(dv)])
+    v = v / max(v[-1], 1e-9) * draw(st.floats(30.0, 100.0)) if v[-1] > 0 else v
+    return t, v
+
+
+@settings(max_examples=200, deadline=None)
+@given(monotone_curve())
+def test_pchip_matches_scipy(tv):
+    # Reference library: scipy.interpolate.PchipInterpolator (same Fritsch-Carlson construction).
+    t, v = tv
+    p, s = Pchip(t, v), PchipInterpolator(t, v)
+    tq = np.linspace(t[0], t[-1], 257)
+    assert_allclose(p(tq), s(tq), atol=1e-9)
+    assert_allclose(p.integral(t[0], t[-1]), s.integrate(t[0], t[-1]), rtol=1e-10, atol=1e-8)
+
+
+@settings(max_examples=200, deadline=None)
+@given(monotone_curve())
+def test_exact_at_nodes_monotone_and_no_overshoot(tv):
+    # Fritsch & Carlson (1980): the interpolant reproduces the nodes and is monotone between them.
+    t, v = tv
+    p = Pchip(t, v)
+    assert_allclose(p(t), v, atol=1e-12)
+    tq = np.linspace(t[0], t[-1], 2001)
+    vq = p(tq)
+    assert np.all(np.diff(vq) >= -1e-12)
+    assert vq.min() >= v.min() - 1e-12 and vq.max() <= v.max() + 1e-12
+
+
+@settings(max_examples=200, deadline=None)
+@given(monotone_curve(allow_flat=False), st.floats(0.0, 1.0))
+def test_inverse_round_trip(tv, frac):
+    # Identity required by the curve model: T(V(T)) = T within 1e-6 °C where V rises strictly.
+    t, v = tv
+    p = Pchip(t, v)
+    tq = t[0] + frac * (t[-1] - t[0])
+    assert abs(float(p.inverse(p(tq))) - tq) < 1e-6
+
+
+def test_flat_step_stays_flat():
+    # Fritsch & Carlson (1980): equal neighbouring values give zero node slopes, so the step stays flat.
+    p = Pchip([0.0, 10.0, 20.0, 30.0], [0.0, 5.0, 5.0, 9.0])
+    assert_allclose(p(np.linspace(10.0, 20.0, 11)), 5.0, atol=1e-12)

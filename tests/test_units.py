@@ -1,0 +1,35 @@
+"""Units: API gravity, density at 15 °C (against the `chemicals` library and API MPMS Ch. 11)."""
+
+from __future__ import annotations
+
+import pytest
+
+from assaycut import units
+
+chemicals = pytest.importorskip("chemicals")
+
+
+def test_api_of_water_is_10():
+    # API MPMS Ch. 11 / ASTM D287 definition: water (SG 1.000) is 10 °API.
+    assert units.sg_to_api(1.0) == pytest.approx(10.0)
+
+
+@pytest.mark.parametrize("sg", [0.55, 0.7365, 0.85, 0.93, 1.02])
+def test_api_matches_chemicals(sg):
+    # Reference library: chemicals.utils.SG_to_API (reference sheet §6 check: SG 0.7365 -> 60.62491513917175).
+    assert units.sg_to_api(sg) == pytest.approx(chemicals.utils.SG_to_API(sg), rel=1e-12)
+    assert units.api_to_sg(units.sg_to_api(sg)) == pytest.approx(sg, rel=1e-12)
+
+
+def test_api_published_check():
+    # Reference sheet §6: chemicals.utils.SG_to_API(0.7365) = 60.62491513917175.
+    assert units.sg_to_api(0.7365) == pytest.approx(60.62491513917175, abs=1e-12)
+
+
+def test_density15_round_trip_and_size():
+    # API MPMS 11.1: the 15 °C and 60 °F densities of a crude differ by only about 0.05 % (one °F apart);
+    # water at 60 °F is 999.016 kg/m3.
+    for sg in (0.7, 0.85, 1.0):
+        rho = units.sg_to_density15(sg)
+        assert abs(rho / (sg * 999.016) - 1.0) < 1e-3
+        assert units.density15_to_sg(rho) == pytest.approx(sg, rel=1e-10)
