@@ -31,7 +31,6 @@ class InputError(AssaycutError):
     def __init__(self, message: str, *, file: str | None = None, sheet: str | None = None,
                  row: int | None = None, column: str | None = None):
         self.file, self.sheet, self.row, self.column = file, sheet, row, column
-        self.detail = message
         where = [p for p in (
             file,
             f"sheet '{sheet}'" if sheet else None,

@@ -16,13 +16,13 @@ def test_api_of_water_is_10():
 
 @pytest.mark.parametrize("sg", [0.55, 0.7365, 0.85, 0.93, 1.02])
 def test_api_matches_chemicals(sg):
-    # Reference library: chemicals.utils.SG_to_API (reference sheet §6 check: SG 0.7365 -> 60.62491513917175).
+    # Reference library: chemicals.utils.SG_to_API (API MPMS Ch. 11 definition).
     assert units.sg_to_api(sg) == pytest.approx(chemicals.utils.SG_to_API(sg), rel=1e-12)
     assert units.api_to_sg(units.sg_to_api(sg)) == pytest.approx(sg, rel=1e-12)
 
 
 def test_api_published_check():
-    # Reference sheet §6: chemicals.utils.SG_to_API(0.7365) = 60.62491513917175.
+    # Reference library value: chemicals.utils.SG_to_API(0.7365) = 60.62491513917175.
     assert units.sg_to_api(0.7365) == pytest.approx(60.62491513917175, abs=1e-12)
 
 

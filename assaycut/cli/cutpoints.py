@@ -161,9 +161,8 @@ def optimize(
         from ..report.studyreports import plot_optimum
         from ..report.write import place_files, png_bytes, slug
 
-        moved = [f"end of {cs.names[i]}" for i in res.var_index]
         title = f"{a.name}: maximise {what} inside the product limits (estimates)"
-        files = {f"{slug(a.name)}_optimum.png": png_bytes(plot_optimum, res, moved, title=title,
+        files = {f"{slug(a.name)}_optimum.png": png_bytes(plot_optimum, res, res.variables, title=title,
                                                            objective_label=f"{what} [{unit}]",
                                                            before=before.cuts, after=after.cuts)}
         written = place_files(out or Path("reports") / slug(a.name), files, (path,))

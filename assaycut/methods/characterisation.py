@@ -10,11 +10,9 @@ References
    Petroleum Fractions", Ind. Eng. Chem. 25 (1933) 880-887.
 .. [2] American Petroleum Institute, *Technical Data Book - Petroleum Refining*, Procedures 2B1.1 (average
    boiling points), 2B2.1 (molecular weight) and 2B5.1 (characterisation factor).
-.. [3] Riazi, M. R., Daubert, T. E., "Simplify Property Predictions", Hydrocarbon Processing 59(3) (1980)
-   115-116.
-.. [4] Riazi, M. R., Daubert, T. E., "Characterization Parameters for Petroleum Fractions", Ind. Eng. Chem.
+.. [3] Riazi, M. R., Daubert, T. E., "Characterization Parameters for Petroleum Fractions", Ind. Eng. Chem.
    Res. 26 (1987) 755-759.
-.. [5] Riazi, M. R., *Characterization and Properties of Petroleum Fractions*, ASTM MNL50, 1st ed. (2005),
+.. [4] Riazi, M. R., *Characterization and Properties of Petroleum Fractions*, ASTM MNL50, 1st ed. (2005),
    §2.4 and §3.3.
 """
 
@@ -45,7 +43,7 @@ def watson_k(meabp_c, sg):
     Notes
     -----
     Valid for petroleum fractions and crudes; paraffinic material has Kw about 12.5-13, aromatic about
-    10-11 [5]_.
+    10-11 [4]_.
 
     References
     ----------
@@ -159,7 +157,7 @@ def average_boiling_points_api_2b1_1(d86_c):
     References
     ----------
     .. [2] API Technical Data Book, Procedure 2B1.1, with its worked example.
-    .. [5] Riazi, ASTM MNL50 (2005), Eqs. 3.26-3.32.
+    .. [4] Riazi, ASTM MNL50 (2005), §3.3.
 
     Examples
     --------
@@ -190,43 +188,6 @@ MW_RANGE_API = (14.0, 93.0)
 """Riazi-Daubert molecular weight range of API gravity. [°API]"""
 
 
-def mw_riazi_daubert_1980(tb_c, sg):
-    """Molecular weight by Riazi-Daubert 1980.
-
-    .. math:: M = 1.6607\\times10^{-4}\\,T_b^{2.1962}\\,SG^{-1.0164},\\quad T_b\\ [K]
-
-    Parameters
-    ----------
-    tb_c : float or array_like
-        Mean average boiling point. [°C]
-    sg : float or array_like
-        Specific gravity 60/60 °F. [-]
-
-    Returns
-    -------
-    float or numpy.ndarray
-        Molecular weight. [g/mol]
-
-    Notes
-    -----
-    Valid range: M 70-300 g/mol, Tb 35-295 °C [3]_.
-
-    References
-    ----------
-    .. [3] Riazi & Daubert, Hydrocarbon Processing 59(3) (1980) 115.
-
-    Examples
-    --------
-    No worked example is at hand; the formula evaluated by hand: Tb 400 K, SG 0.8 gives
-    1.6607e-4 * 400**2.1962 = 86.09, divided by 0.8**1.0164 = 0.7971, is 108.0.
-
-    >>> round(mw_riazi_daubert_1980(400 - 273.15, 0.8), 1)
-    108.0
-    """
-    tb = np.asarray(tb_c, dtype=float) + 273.15
-    return as_scalar(1.6607e-4 * tb ** 2.1962 * np.asarray(sg, dtype=float) ** -1.0164)
-
-
 def mw_riazi_daubert_1987(tb_c, sg):
     """Molecular weight by Riazi-Daubert 1987 (API TDB 2B2.1).
 
@@ -247,12 +208,12 @@ def mw_riazi_daubert_1987(tb_c, sg):
 
     Notes
     -----
-    Valid range: M 70-700 g/mol, Tb 90-1050 °F, API 14-93 [4]_; outside it a cut reports no molecular
+    Valid range: M 70-700 g/mol, Tb 90-1050 °F, API 14-93 [3]_; outside it a cut reports no molecular
     weight (see :func:`mw_in_range`).
 
     References
     ----------
-    .. [4] Riazi & Daubert, Ind. Eng. Chem. Res. 26 (1987) 755.
+    .. [3] Riazi & Daubert, Ind. Eng. Chem. Res. 26 (1987) 755.
     .. [2] API Technical Data Book, Procedure 2B2.1.
 
     Examples
@@ -275,5 +236,3 @@ def mw_in_range(tb_c, sg):
     api = sg_to_api(np.asarray(sg, dtype=float))
     return ((tb >= MW_RANGE_TB_C[0]) & (tb <= MW_RANGE_TB_C[1])
             & (api >= MW_RANGE_API[0]) & (api <= MW_RANGE_API[1]))
-
-

@@ -11,7 +11,7 @@ References
 .. [2] American Petroleum Institute, *Technical Data Book - Petroleum Refining*, Procedures 3A3.1 and 3A3.2
    (1994 revision).
 .. [3] Riazi, M. R., *Characterization and Properties of Petroleum Fractions*, ASTM MNL50, 1st ed. (2005),
-   §3.2.3, Eqs. 3.23-3.25, Example 3.4.
+   §3.2.
 """
 
 from __future__ import annotations
@@ -62,7 +62,7 @@ def d2887_to_tbp_api_3a3_1(d2887: Mapping[float, float]) -> dict[float, float]:
     ----------
     .. [1] Daubert, Hydrocarbon Processing 73(9) (1994) 75-78.
     .. [2] API Technical Data Book, Procedure 3A3.1 (1994 revision), with its worked example.
-    .. [3] Riazi, ASTM MNL50 (2005), Eq. 3.23.
+    .. [3] Riazi, ASTM MNL50 (2005), §3.2.
 
     Examples
     --------
@@ -102,7 +102,7 @@ def d2887_to_d86_api_3a3_2(d2887: Mapping[float, float]) -> dict[float, float]:
     References
     ----------
     .. [2] API Technical Data Book, Procedure 3A3.2 (1994 revision).
-    .. [3] Riazi, ASTM MNL50 (2005), Eqs. 3.24-3.25.
+    .. [3] Riazi, ASTM MNL50 (2005), §3.2.
 
     Examples
     --------

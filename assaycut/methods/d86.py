@@ -14,7 +14,7 @@ References
 .. [3] Riazi, M. R., Daubert, T. E., "Analytical correlations interconvert distillation-curve types",
    Oil & Gas Journal 84 (25 Aug 1986) 50-57.
 .. [4] Riazi, M. R., *Characterization and Properties of Petroleum Fractions*, ASTM MNL50, 1st ed. (2005),
-   §3.2, Eqs. 3.14-3.22, Example 3.3, Table 3.8.
+   §3.2, Eqs. 3.20-3.22 (Daubert 1994), Example 3.3, Table 3.8.
 """
 
 from __future__ import annotations
@@ -33,7 +33,7 @@ D86_STD = (0, 10, 30, 50, 70, 90, 95)
 # -- Riazi-Daubert 1986 [3], [4] §3.2 ----------------------------------------------------------------------
 RD1986_K = {0: (0.9177, 1.0019), 10: (0.5564, 1.0900), 30: (0.7617, 1.0425), 50: (0.9013, 1.0176),
             70: (0.8821, 1.0226), 90: (0.9552, 1.0110), 95: (0.8177, 1.0355)}
-"""TBP = a * D86**b with both temperatures in K: {percent: (a_K, b)} ([4] Eq. 3.14, Table 3.6)."""
+"""TBP = a * D86**b with both temperatures in K: {percent: (a_K, b)} ([4] §3.2)."""
 RD1986_R = {0: (0.9167, 1.0019), 10: (0.5277, 1.0900), 30: (0.7429, 1.0425), 50: (0.8920, 1.0176),
             70: (0.8705, 1.0226), 90: (0.9490, 1.0110), 95: (0.8008, 1.0355)}
 """The same correlation with temperatures in °R: {percent: (a_R, b)}.  a_K = a_R * 1.8**(b - 1)."""
@@ -225,7 +225,7 @@ def d86_to_tbp_riazi_daubert_1986(d86: Mapping[float, float]) -> dict[float, flo
     ----------
     .. [3] Riazi & Daubert, Oil & Gas J. 84 (25 Aug 1986) 50-57.
     .. [2] API Technical Data Book, Procedure 3A1.1 (1987 edition).
-    .. [4] Riazi, ASTM MNL50 (2005), Eq. 3.14, Table 3.6.
+    .. [4] Riazi, ASTM MNL50 (2005), §3.2.
 
     Examples
     --------
@@ -258,7 +258,7 @@ def tbp_to_d86_riazi_daubert_1986(tbp: Mapping[float, float]) -> dict[float, flo
     References
     ----------
     .. [3] Riazi & Daubert, Oil & Gas J. 84 (25 Aug 1986) 50-57.
-    .. [4] Riazi, ASTM MNL50 (2005), Eq. 3.14.
+    .. [4] Riazi, ASTM MNL50 (2005), §3.2.
 
     Examples
     --------

@@ -1,5 +1,5 @@
-"""Product-quality estimates of petroleum fractions from their distillation and density: cetane indices and
-flash point.
+"""Product-quality estimates of petroleum fractions from their distillation and density: the calculated
+cetane index and the flash point.
 
 Every value is an estimate for screening.  Flash point is a safety property: an estimate never replaces a
 measurement by ASTM D93.
@@ -8,11 +8,8 @@ References
 ----------
 .. [1] ASTM D4737, *Standard Test Method for Calculated Cetane Index by Four Variable Equation*,
    Procedure A (equivalent to ISO 4264).
-.. [2] ASTM D976, *Standard Test Method for Calculated Cetane Index of Distillate Fuels* (SI form).
-.. [3] American Petroleum Institute, *Technical Data Book - Petroleum Refining*, Procedure 2B7.1 (flash
+.. [2] American Petroleum Institute, *Technical Data Book - Petroleum Refining*, Procedure 2B7.1 (flash
    point of petroleum fractions).
-.. [4] Riazi, M. R., Daubert, T. E., "Predicting Flash and Pour Points", Hydrocarbon Processing 66(9)
-   (1987) 81-83; Riazi, ASTM MNL50 (2005), Eq. 3.139.
 """
 
 from __future__ import annotations
@@ -69,44 +66,6 @@ def cetane_index_d4737(t10_c, t50_c, t90_c, density15_g_ml):
                    + 0.00049 * (t10 ** 2 - t90 ** 2) + 107.0 * b + 60.0 * b ** 2)
 
 
-def cetane_index_d976(t50_c, density15_g_ml):
-    """Cetane index by two-variable equation, ASTM D976 (SI form).
-
-    .. math:: CI = 454.74 - 1641.416 D + 774.74 D^2 - 0.554 T_{50} + 97.803 (\\log_{10} T_{50})^2
-
-    Parameters
-    ----------
-    t50_c : float or array_like
-        ASTM D86 50 % recovery temperature. [°C]
-    density15_g_ml : float or array_like
-        Density at 15 °C. [g/mL]
-
-    Returns
-    -------
-    float or numpy.ndarray
-        Cetane index. [-]
-
-    Notes
-    -----
-    Valid range: distillate fuels of D86 T50 roughly 180-360 °C [2]_; superseded by D4737 for most uses.
-
-    References
-    ----------
-    .. [2] ASTM D976 (SI form).
-
-    Examples
-    --------
-    No worked example is at hand; the formula evaluated by hand at T50 = 260 °C, D = 0.85 g/mL
-    (454.74 - 1395.20 + 559.75 - 144.04 + 570.39):
-
-    >>> round(cetane_index_d976(260.0, 0.85), 2)
-    45.64
-    """
-    d = np.asarray(density15_g_ml, dtype=float)
-    t = np.asarray(t50_c, dtype=float)
-    return as_scalar(454.74 - 1641.416 * d + 774.74 * d ** 2 - 0.554 * t + 97.803 * np.log10(t) ** 2)
-
-
 def flash_point_api_2b7_1(t10_c):
     """Closed-cup flash point estimated from the D86 10 % point, API TDB 2B7.1.
 
@@ -125,11 +84,11 @@ def flash_point_api_2b7_1(t10_c):
     Notes
     -----
     An estimate only: flash point is a safety property and must be measured (ASTM D93).  Valid range:
-    petroleum fractions with D86 10 % points of roughly 150-850 °F [3]_ (recalled from memory).
+    petroleum fractions with D86 10 % points of roughly 150-850 °F [2]_ (recalled from memory).
 
     References
     ----------
-    .. [3] API Technical Data Book, Procedure 2B7.1.
+    .. [2] API Technical Data Book, Procedure 2B7.1.
 
     Examples
     --------
@@ -140,39 +99,3 @@ def flash_point_api_2b7_1(t10_c):
     66.8
     """
     return as_scalar(f_to_c(0.69 * c_to_f(t10_c) - 118.2))
-
-
-def flash_point_riazi_daubert_1987(t10_c):
-    """Flash point estimated from the D86 10 % point, Riazi-Daubert 1987.
-
-    .. math:: 1/T_F = -0.024209 + 2.84947/T_{10} + 3.4254\\times10^{-3} \\ln T_{10}\\quad[K]
-
-    Parameters
-    ----------
-    t10_c : float or array_like
-        ASTM D86 10 % recovery temperature. [°C]
-
-    Returns
-    -------
-    float or numpy.ndarray
-        Estimated flash point. [°C]
-
-    Notes
-    -----
-    Coefficients recalled from memory, not read from [4]_.  An estimate only: measure by ASTM D93.  Valid
-    range: fractions with D86 10 % points of roughly 65-590 °C [4]_ (recalled from memory).
-
-    References
-    ----------
-    .. [4] Riazi & Daubert, Hydrocarbon Processing 66(9) (1987) 81.
-
-    Examples
-    --------
-    No worked example is at hand; the formula evaluated at T10 = 200 °C (473.15 K) by hand:
-    1/TF = -0.024209 + 0.0060223 + 0.0210985 = 0.0029118 1/K, TF = 343.43 K = 70.3 °C.
-
-    >>> round(flash_point_riazi_daubert_1987(200.0), 1)
-    70.3
-    """
-    t = np.asarray(t10_c, dtype=float) + 273.15
-    return as_scalar(1.0 / (-0.024209 + 2.84947 / t + 3.4254e-3 * np.log(t)) - 273.15)

@@ -7,7 +7,7 @@ with T and T0 absolute temperatures and x the fraction distilled.
 References
 ----------
 .. [1] Riazi, M. R., "A Distribution Model for C7+ Fractions Characterization of Petroleum Fluids",
-   Ind. Eng. Chem. Res. 28 (1989) 1731-1735, Eq. 1.
+   Ind. Eng. Chem. Res. 28 (1989) 1731-1735.
 .. [2] Riazi, M. R., *Characterization and Properties of Petroleum Fractions*, ASTM Manual MNL50, 1st ed.
    (2005), §4.5.
 
@@ -69,7 +69,7 @@ def fit_riazi_distribution(percent, temp_c) -> RiaziFit:
 
     References
     ----------
-    .. [1] Riazi, Ind. Eng. Chem. Res. 28 (1989) 1731, Eq. 1.
+    .. [1] Riazi, Ind. Eng. Chem. Res. 28 (1989) 1731.
     .. [2] Riazi, ASTM MNL50 (2005), §4.5, the linearised form.
 
     Examples

@@ -68,7 +68,6 @@ class CrudeModel:
     watson_k_fit: float | None = None
     methods: dict[str, str] = field(default_factory=dict)
     warnings: list[str] = field(default_factory=list)
-    notes: list[str] = field(default_factory=list)
 
     def wt_at_vol(self, vol_pct):
         """Cumulative wt % distilled at cumulative ``vol_pct`` [vol %]. [wt %]"""

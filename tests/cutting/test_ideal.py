@@ -43,18 +43,18 @@ def test_yields_at_measured_nodes_equal_measured_differences():
 @pytest.mark.parametrize("narrow", [True, False])
 def test_closure_and_crude_gravity(narrow):
     # Identity: volume yields sum to 100; weight yields follow from W(V) and sum to 100; the volume-weighted
-    # cut SG reproduces the crude SG (reference sheet §8: SG blends by volume).
+    # cut SG reproduces the crude SG (API MPMS Ch. 11: SG blends by volume).
     m = simple_model(narrow)
     df = cut_table(m, default_cut_set())
     assert df["vol_pct"].sum() == pytest.approx(100.0, abs=1e-9)
     assert df["wt_pct"].sum() == pytest.approx(100.0, abs=1e-9)
     assert (df["vol_pct"] * df["sg"]).sum() / 100.0 == pytest.approx(0.86, abs=1e-9)
-    # reference sheet §8: weight yield = volume yield x SG_cut / SG_crude
+    # API MPMS Ch. 11: SG blends by volume: weight yield = volume yield x SG_cut / SG_crude
     assert_allclose(df["wt_pct"], df["vol_pct"] * df["sg"] / 0.86, atol=1e-9)
 
 
 def test_sulfur_balance_reproduces_crude():
-    # Reference sheet §8: sulfur blends by weight; the reconciled cuts reproduce the whole-crude sulfur.
+    # Mass balance (identity): sulfur blends by weight; the reconciled cuts reproduce the whole-crude sulfur.
     df = cut_table(simple_model(), default_cut_set())
     assert (df["wt_pct"] * df["sulfur_wt_pct"]).sum() / 100.0 == pytest.approx(1.3, abs=1e-9)
     assert df["sulfur_share_pct"].sum() == pytest.approx(100.0, abs=1e-7)

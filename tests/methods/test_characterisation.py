@@ -18,7 +18,7 @@ chemicals = pytest.importorskip("chemicals")
 
 
 def test_watson_k_api_tdb_example():
-    # API TDB 2B5.1 example (reference sheet §5): 580 °F and 34.5 °API give Kw = 11.8846.
+    # API TDB 2B5.1 worked example: 580 °F and 34.5 °API give Kw = 11.8846.
     assert watson_k((580 - 32) / 1.8, units.api_to_sg(34.5)) == pytest.approx(11.8846, abs=1e-4)
 
 
@@ -29,12 +29,12 @@ def test_watson_k_matches_chemicals(tb_c, sg):
 
 
 def test_sg_from_constant_watson_k_inverts_watson_k():
-    # Reference sheet §5: SG = (1.8 Tb[K])**(1/3) / Kw is the definition of Kw solved for SG (identity).
+    # Watson & Nelson 1933: SG = (1.8 Tb[K])**(1/3) / Kw is the definition of Kw solved for SG (identity).
     assert watson_k(300.0, sg_from_watson_k(300.0, 11.9)) == pytest.approx(11.9, rel=1e-12)
 
 
 def test_average_boiling_points_api_tdb_example():
-    # API TDB 2B1.1 (reference sheet §5): D86 129.2/170.6/214.7/267.8/339.8 °F -> VABP 224.42 °F,
+    # API TDB 2B1.1 worked example: D86 129.2/170.6/214.7/267.8/339.8 °F -> VABP 224.42 °F,
     # SL 2.6325, MeABP about 206.1 °F.
     r = average_boiling_points_api_2b1_1([(t - 32) / 1.8 for t in (129.2, 170.6, 214.7, 267.8, 339.8)])
     assert r["vabp"] * 1.8 + 32 == pytest.approx(224.42, abs=0.005)

@@ -1,4 +1,5 @@
-"""Distillation-method conversions against published check values (our reference sheet §1-§4)."""
+"""Distillation-method conversions against published check values (Riazi MNL50 (2005) ch. 3, API TDB 3A1.1,
+3A3.1, 5A1.19)."""
 
 from __future__ import annotations
 
@@ -44,8 +45,8 @@ def test_daubert_1994_published_kerosene():
 
 def test_daubert_1994_50pct_raises_fahrenheit_number_not_absolute():
     # Daubert 1994 (Riazi MNL50 Eq. 3.20): TBP50 = 0.87180 * D86_50**1.0258 with the °F number itself.
-    # Raising °R instead gives results far off (reference sheet §2 says about 25 °C; for this kerosene it is
-    # 14 °C by our own arithmetic): the published kerosene value is 210.6 °C.
+    # Raising °R instead gives results far off (for this kerosene by
+    # 14 °C, by our own arithmetic): the published kerosene value is 210.6 °C.
     good = d86_to_tbp_daubert_1994({50: 206.7})[50]
     r = 206.7 * 1.8 + 491.67
     wrong = (0.87180 * r ** 1.0258 - 491.67) / 1.8
@@ -53,15 +54,16 @@ def test_daubert_1994_50pct_raises_fahrenheit_number_not_absolute():
     assert abs(wrong - 210.6) > 10.0
 
 
-def test_si_form_of_daubert_50pct_matches_reference_sheet():
-    # Reference sheet §2: TBP50[K] = 255.4 + 0.8851 (D86_50[K] - 255.4)**1.0258, the same relation in SI.
+def test_si_form_of_daubert_50pct_agrees():
+    # The SI form of Daubert's 50 % relation (Riazi MNL50 §3.2): TBP50[K] = 255.4 + 0.8851 (D86_50[K] - 255.4)**1.0258, the same relation.
     d = 250.0
     si = 255.4 + 0.8851 * (d + 273.15 - 255.4) ** 1.0258 - 273.15
     assert abs(d86_to_tbp_daubert_1994({50: d})[50] - si) < 0.1
 
 
 def test_rd1986_kelvin_and_rankine_constants_agree():
-    # Reference sheet §1: a_K = a_R * 1.8**(b - 1) must reproduce both printed tables (4 decimals printed).
+    # Riazi-Daubert 1986 constants in K and in °R (Riazi MNL50 §3.2): a_K = a_R * 1.8**(b - 1) must reproduce both
+    # printed tables (4 decimals printed).
     for p, (a_k, b) in RD1986_K.items():
         a_r, b_r = RD1986_R[p]
         assert b == b_r
@@ -69,7 +71,8 @@ def test_rd1986_kelvin_and_rankine_constants_agree():
 
 
 def test_daubert_1994_si_segment_constants_agree():
-    # Reference sheet §2: A for °C/K differences = A_F * 1.8**(B - 1), printed to 4 significant figures.
+    # Daubert 1994 SI constants against the °F constants (Riazi MNL50 §3.2): A for °C/K differences = A_F * 1.8**(B - 1),
+    # printed to 4 significant figures.
     printed = {(90, 95): 0.1740, (70, 90): 2.6339, (50, 70): 2.2744, (30, 50): 2.6956, (10, 30): 4.1481,
                (0, 10): 5.8589}
     for seg, (a, b) in D94_SEGMENTS.items():
@@ -77,7 +80,8 @@ def test_daubert_1994_si_segment_constants_agree():
 
 
 def test_maxwell_bonnell_check_value():
-    # Reference sheet §4, computed from the Maxwell-Bonnell equations: 200 °C at 10 mmHg is about 348.8 °C AET.
+    # Computed by hand from the Maxwell-Bonnell equations (API TDB 5A1.19; no printed example at hand): 200 °C
+    # at 10 mmHg is about 348.8 °C AET.
     assert abs(vacuum_to_aet_maxwell_bonnell(200.0, 10.0) - 348.8) < 0.1
 
 
@@ -101,7 +105,7 @@ def test_d2887_to_tbp_keeps_50pct_point():
 
 
 def test_d2887_segments_follow_formula():
-    # API TDB 3A3.1: W = C V**D per segment in °F (reference sheet §3), built down from 50 %.
+    # API TDB 3A3.1: W = C V**D per segment in °F (Daubert 1994), built down from 50 %.
     out = d2887_to_tbp_api_3a3_1({30: 250.0, 50: 300.0})
     v = 50.0 * 1.8
     w = 0.05342 * v ** 1.6988

@@ -20,8 +20,8 @@ def test_boiling_point_and_molar_mass_match_chemicals(comp):
     assert comp.mw == pytest.approx(search_chemical(comp.cas).MW, abs=0.002)
 
 
-def test_liquid_gravities_from_reference_sheet():
-    # GPA 2145 liquid SG at 60 °F (reference sheet §9, values from memory).
+def test_liquid_gravities_gpa_2145():
+    # GPA Standard 2145 liquid SG at 60 °F (values recalled from memory).
     expect = {"C3": 0.5070, "iC4": 0.5629, "nC4": 0.5840, "iC5": 0.6247, "nC5": 0.6311}
     for key, sg in expect.items():
         assert find_component(key).sg == sg

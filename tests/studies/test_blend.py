@@ -53,7 +53,7 @@ def test_volume_blend_cut_volumes_are_weighted_sums(demos):
     # for cut points inside the range every parent measured; the blend SG is the volume-weighted SG.
     (a1, m1), (a2, m2) = demos[0], demos[2]
     b = blend([(a1, m1, 30.0), (a2, m2, 70.0)], basis="vol")
-    assert b.sg == pytest.approx(0.3 * a1.sg + 0.7 * a2.sg, rel=1e-12)  # reference sheet §8
+    assert b.sg == pytest.approx(0.3 * a1.sg + 0.7 * a2.sg, rel=1e-12)  # API MPMS Ch. 11: SG blends by volume
     c1, c2, cb = cuts_of(a1), cuts_of(a2), cuts_of(b)
     inside = ["light ends", "light naphtha", "heavy naphtha", "kerosene", "diesel"]
     assert_allclose(cb.loc[inside, "vol_pct"], 0.3 * c1.loc[inside, "vol_pct"] + 0.7 * c2.loc[inside, "vol_pct"],
@@ -63,7 +63,7 @@ def test_volume_blend_cut_volumes_are_weighted_sums(demos):
 
 
 def test_weight_blend_gravity_rule(demos):
-    # Reference sheet §8: on a mass basis 1/SG = Σ w_i / SG_i (never an average of API numbers).
+    # API MPMS Ch. 11 volume rule on a mass basis: 1/SG = Σ w_i / SG_i (never an average of API numbers).
     (a1, m1), (a2, m2) = demos[0], demos[1]
     b = blend([(a1, m1, 40.0), (a2, m2, 60.0)], basis="wt")
     assert 1.0 / b.sg == pytest.approx(0.4 / a1.sg + 0.6 / a2.sg, rel=1e-12)

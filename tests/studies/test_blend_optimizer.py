@@ -26,7 +26,7 @@ def results():
 
 
 def blend_props(results, v):
-    # Reference sheet §8: SG by volume, sulfur by weight, cut volumes by volume (no shrinkage).
+    # Mass and volume balance (identity): SG by volume, sulfur by weight, cut volumes by volume (no shrinkage).
     sg = np.array([r.assay.sg for r in results])
     s = np.array([r.model.sulfur_wt_pct for r in results])
     sg_b = float(v @ sg)
