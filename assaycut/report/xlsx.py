@@ -79,17 +79,37 @@ def wt_curve_rows(result, step: float = 1.0) -> list[list]:
 
 
 def yield_workbook(result):
-    """The openpyxl Workbook of one yield report (sheets: summary, cuts, curve, limits, notes)."""
+    """The openpyxl Workbook of one yield report (sheets: summary, cuts, curve, curve wt basis, limits,
+    uncertainty with bands, notes)."""
     import openpyxl
+
+    wb = openpyxl.Workbook()
+    _summary_sheet(wb.active, result)
+    names, rows = flat_cut_rows(result.cuts)
+    ws = wb.create_sheet("cuts")
+    write_table(ws, [LABELS.get(n, n) for n in names], rows, [_fmt_for(n) for n in names])
+    ws.column_dimensions["A"].width = 20
+    ws = wb.create_sheet("curve")
+    write_table(ws, ["Distilled [vol %]", "TBP [°C]", "Distilled [wt %]", "Local SG 60/60 °F [-]",
+                     "Local sulfur [wt %]", "Extrapolated"], curve_rows(result),
+                ["0.0", "0.0", "0.00", "0.0000", "0.000", None], widths=[16, 12, 16, 20, 18, 13])
+    ws = wb.create_sheet("curve wt basis")
+    write_table(ws, ["Distilled [wt %]", "TBP [°C]", "Distilled [vol %]"], wt_curve_rows(result),
+                ["0.0", "0.0", "0.00"], widths=[16, 12, 16])
+    _limits_sheet(wb.create_sheet("limits"), result.limits)
+    if result.bands is not None:
+        _bands_sheet(wb.create_sheet("uncertainty"), result.bands)
+    _notes_sheet(wb.create_sheet("notes"), result)
+    return wb
+
+
+def _summary_sheet(ws, result) -> None:
+    """Whole-crude data, reconciliations, closure and the yields."""
     from openpyxl.styles import Font
 
-    from .. import __version__
     from ..units import sg_to_density15
-    from ..yields import CAUTIONS
 
     a, m = result.assay, result.model
-    wb = openpyxl.Workbook()
-    ws = wb.active
     ws.title = "summary"
     ws["A1"] = safe_text(f"Yield report: {a.name}")
     ws["A1"].font = Font(bold=True, size=14)
@@ -118,50 +138,45 @@ def yield_workbook(result):
                 [None, "0.00", "0.00", "0.0", "0.000"], start_row=r0 + 1, widths=[30, 44, 14, 14, 14])
     ws.freeze_panes = "A4"
 
-    names, rows = flat_cut_rows(result.cuts)
-    ws = wb.create_sheet("cuts")
-    write_table(ws, [LABELS.get(n, n) for n in names], rows, [_fmt_for(n) for n in names])
-    ws.column_dimensions["A"].width = 20
 
-    ws = wb.create_sheet("curve")
-    write_table(ws, ["Distilled [vol %]", "TBP [°C]", "Distilled [wt %]", "Local SG 60/60 °F [-]",
-                     "Local sulfur [wt %]", "Extrapolated"], curve_rows(result),
-                ["0.0", "0.0", "0.00", "0.0000", "0.000", None], widths=[16, 12, 16, 20, 18, 13])
-    ws = wb.create_sheet("curve wt basis")
-    write_table(ws, ["Distilled [wt %]", "TBP [°C]", "Distilled [vol %]"], wt_curve_rows(result),
-                ["0.0", "0.0", "0.00"], widths=[16, 12, 16])
+def _limits_sheet(ws, lim) -> None:
+    """Pass / fail / n/a per product limit, coloured."""
+    from openpyxl.styles import PatternFill
 
-    ws = wb.create_sheet("limits")
-    lim = result.limits
     write_table(ws, ["Cut", "Property", "Limit", "Required", "Value", "Status", "Note", "Source"],
                 [[r["cut"], r["property"], r["label"], r["limit"], r["value"], r["status"].upper(), r["note"],
                   r["source"]] for r in lim.to_dict("records")],
                 [None, None, None, None, "0.0", None, None, None], widths=[16, 24, 40, 14, 10, 8, 40, 50])
-    from openpyxl.styles import PatternFill
     colors = {"PASS": "C6EFCE", "FAIL": "FFC7CE", "N/A": "EDEDED"}
     for i in range(2, len(lim) + 2):
         c = ws.cell(row=i, column=6)
         if c.value in colors:
             c.fill = PatternFill("solid", fgColor=colors[c.value])
 
-    if result.bands is not None:
-        from ..studies.uncertainty import BAND_QUALITIES
 
-        ws = wb.create_sheet("uncertainty")
-        heads, keys, fmts = ["Cut"], ["name"], [None]
-        for q in BAND_QUALITIES:
-            for pct in (10, 50, 90):
-                heads.append(f"{LABELS[q]} P{pct}")
-                keys.append(f"{q}_p{pct}")
-                fmts.append(_fmt_for(q) or "0.00")
-        write_table(ws, heads, [[r[k] for k in keys] for r in result.bands.to_dict("records")], fmts)
-        ws.column_dimensions["A"].width = 20
-        ws.cell(row=len(result.bands) + 3, column=1,
-                value=safe_text(f"{result.bands.attrs['draws']} Monte Carlo draws; {result.bands.attrs['sigmas']}"))
+def _bands_sheet(ws, bands) -> None:
+    """P10/P50/P90 of each cut's yields and qualities, and the draws and sigmas behind them."""
+    from ..studies.uncertainty import BAND_QUALITIES
 
-    ws = wb.create_sheet("notes")
+    heads, keys, fmts = ["Cut"], ["name"], [None]
+    for q in BAND_QUALITIES:
+        for pct in (10, 50, 90):
+            heads.append(f"{LABELS[q]} P{pct}")
+            keys.append(f"{q}_p{pct}")
+            fmts.append(_fmt_for(q) or "0.00")
+    write_table(ws, heads, [[r[k] for k in keys] for r in bands.to_dict("records")], fmts)
+    ws.column_dimensions["A"].width = 20
+    ws.cell(row=len(bands) + 3, column=1, value=safe_text(f"{bands.attrs['draws']} Monte Carlo draws; "
+                                                          f"{bands.attrs['sigmas']}"))
+
+
+def _notes_sheet(ws, result) -> None:
+    """Cautions, notes, warnings, methods, the input file with its sha256, the version."""
+    from .. import __version__
+    from ..yields import CAUTIONS
+
+    a = result.assay
     notes = [("Caution" if n in CAUTIONS else "Note", n) for n in result.notes] + [("Warning", w) for w in result.warnings]
     notes += [(f"Method: {k}", v) for k, v in result.methods.items()]
     notes += [("Input file", a.source), ("Input sha256", a.sha256), ("assaycut version", __version__)]
     write_table(ws, ["Topic", "Text"], [list(n) for n in notes], widths=[28, 120])
-    return wb

@@ -67,6 +67,11 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
     Returns
     -------
     BlendPlan
+
+    Notes
+    -----
+    Steps: the objective vector (:func:`_objective`), the share bounds (:func:`_share_bounds`), one linear
+    row per target (:func:`_target_rows`), then ``linprog``; when that is infeasible, the elastic problem.
     """
     from scipy.optimize import linprog
 
@@ -80,7 +85,36 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
     s = np.array([np.nan if r.model.sulfur_wt_pct is None else r.model.sulfur_wt_pct for r in results])
     cuts = list(results[0].cuts["name"])
     y = np.array([r.cuts.set_index("name").loc[cuts, "vol_pct"].to_numpy() for r in results])  # (crudes, cuts)
-    # objective coefficients (minimised)
+    c, label, sign = _objective(results, names, prices, objective)
+    lo, hi = _share_bounds(bounds, names)
+    rows, rhs, labels, scales = _target_rows(targets, sg, s, y, cuts)
+    A = np.array(rows) if rows else None
+    b = np.array(rhs) if rows else None
+    res = linprog(c, A_ub=A, b_ub=b, A_eq=np.ones((1, n)), b_eq=[1.0], bounds=list(zip(lo, hi)), method="highs")
+    if res.status == 0:
+        v = res.x
+        slack = (b - A @ v) if rows else np.array([])
+        binding = [lab for lab, sl, sc in zip(labels, slack, scales) if abs(sl) <= 1e-7 * max(1.0, sc * 100)]
+        return _plan(True, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, {}, binding)
+    # elastic problem: minimise the scaled violations
+    m = len(rows)
+    if m == 0:
+        raise StudyError("no shares within the bounds add up to 100 %")
+    c2 = np.concatenate([np.zeros(n), 1.0 / np.array(scales)])
+    A2 = np.hstack([A, -np.eye(m)])
+    res2 = linprog(c2, A_ub=A2, b_ub=b, A_eq=np.hstack([np.ones((1, n)), np.zeros((1, m))]), b_eq=[1.0],
+                   bounds=list(zip(lo, hi)) + [(0, None)] * m, method="highs")
+    v = res2.x[:n]
+    viol = res2.x[n:]
+    short = {}
+    for lab, amount, row in zip(labels, viol, rows):
+        if amount > 1e-9:
+            short[lab] = _in_target_units(lab, amount, row, v, sg)
+    return _plan(False, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, short, [])
+
+
+def _objective(results, names, prices: PriceSet | None, objective: str):
+    """(coefficients to minimise per crude, label of the objective, sign turning the minimum into its value)."""
     if objective == "cost":
         if prices is None or any(nm not in prices.crudes for nm in names):
             raise StudyError("--objective cost needs a crude price for every candidate in the price file")
@@ -97,6 +131,11 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
         else:
             c, label = -w["worth_per_bbl"].to_numpy(), f"gross product worth [{prices.currency}/bbl]"
         sign = -1.0
+    return c, label, sign
+
+
+def _share_bounds(bounds: dict[str, tuple[float, float]], names: list[str]):
+    """Lower and upper share of each crude as fractions, checked to be able to add up to 1."""
     lo = np.array([bounds.get(nm, (0.0, 100.0))[0] for nm in names]) / 100.0
     hi = np.array([bounds.get(nm, (0.0, 100.0))[1] for nm in names]) / 100.0
     unknown = [b for b in bounds if b not in names]
@@ -105,7 +144,11 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
     if np.any(lo > hi) or lo.sum() > 1 + 1e-9 or hi.sum() < 1 - 1e-9:
         raise StudyError(f"the share bounds cannot add up to 100 %: minimums add to {lo.sum() * 100:g} %, "
                          f"maximums to {hi.sum() * 100:g} %")
-    # inequality rows A v <= b, each with a label and a scale for the elastic problem
+    return lo, hi
+
+
+def _target_rows(targets: BlendTargets, sg, s, y, cuts: list[str]):
+    """Inequality rows A v <= b of the targets, each with a label and a scale for the elastic problem."""
     rows, rhs, labels, scales = [], [], [], []
     if targets.api_min is not None:  # API >= min  <=>  SG <= SG(api_min)
         rows.append(sg)
@@ -131,29 +174,7 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
         rhs.append(-ymin)
         labels.append(f"{cut} yield >= {ymin:g} vol %")
         scales.append(1.0)
-    A = np.array(rows) if rows else None
-    b = np.array(rhs) if rows else None
-    res = linprog(c, A_ub=A, b_ub=b, A_eq=np.ones((1, n)), b_eq=[1.0], bounds=list(zip(lo, hi)), method="highs")
-    if res.status == 0:
-        v = res.x
-        slack = (b - A @ v) if rows else np.array([])
-        binding = [lab for lab, sl, sc in zip(labels, slack, scales) if abs(sl) <= 1e-7 * max(1.0, sc * 100)]
-        return _plan(True, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, {}, binding)
-    # elastic problem: minimise the scaled violations
-    m = len(rows)
-    if m == 0:
-        raise StudyError("no shares within the bounds add up to 100 %")
-    c2 = np.concatenate([np.zeros(n), 1.0 / np.array(scales)])
-    A2 = np.hstack([A, -np.eye(m)])
-    res2 = linprog(c2, A_ub=A2, b_ub=b, A_eq=np.hstack([np.ones((1, n)), np.zeros((1, m))]), b_eq=[1.0],
-                   bounds=list(zip(lo, hi)) + [(0, None)] * m, method="highs")
-    v = res2.x[:n]
-    viol = res2.x[n:]
-    short = {}
-    for lab, amount, row in zip(labels, viol, rows):
-        if amount > 1e-9:
-            short[lab] = _in_target_units(lab, amount, row, v, sg)
-    return _plan(False, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, short, [])
+    return rows, rhs, labels, scales
 
 
 def _in_target_units(label: str, amount: float, row, v, sg) -> float:
