@@ -67,3 +67,11 @@ def cli_error(args, match):
     assert "Traceback" not in r.stderr + r.stdout
     assert re.search(match, lines[0]), lines[0]
     return lines[0]
+
+
+def cuts_of(assay):
+    """The cut table of an assay at the default cut points, indexed by cut name."""
+    from assaycut.cutting.cutset import default_cut_set
+    from assaycut.yields import run_yields
+
+    return run_yields(assay, default_cut_set()).cuts.set_index("name")

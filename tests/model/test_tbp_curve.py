@@ -2,27 +2,12 @@
 
 from __future__ import annotations
 
-import numpy as np
 import pytest
-from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 from scipy.integrate import quad
 
 from assaycut.errors import CurveError
 from assaycut.model.tbp_curve import build_curve
-
-
-@st.composite
-def monotone_curve(draw, min_size=2, max_size=14, allow_flat=True):
-    n = draw(st.integers(min_size, max_size))
-    dt = draw(st.lists(st.floats(0.5, 80.0), min_size=n - 1, max_size=n - 1))
-    step = st.one_of(st.just(0.0), st.floats(0.01, 15.0)) if allow_flat else st.floats(0.2, 15.0)
-    dv = draw(st.lists(step, min_size=n - 1, max_size=n - 1))
-    t0 = draw(st.floats(-50.0, 200.0))
-    t = t0 + np.concatenate([[0.0], np.cumsum(dt)])
-    v = np.concatenate([[0.0], np.cumsum(dv)])
-    v = v / max(v[-1], 1e-9) * draw(st.floats(30.0, 100.0)) if v[-1] > 0 else v
-    return t, v
 
 
 def test_curve_stopping_early_is_extended_and_marked():

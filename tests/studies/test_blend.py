@@ -8,44 +8,13 @@ import pytest
 from numpy.testing import assert_allclose
 from typer.testing import CliRunner
 
-from assaycut.cutting.cutset import default_cut_set
 from assaycut.errors import StudyError
 from assaycut.io import load_assay
 from assaycut.methods.blending_rules import shrinkage_api_mpms_12_3, vbn_refutas, viscosity_from_vbn_refutas
-from assaycut.model.crude import build_model
 from assaycut.studies.blend import blend
-from assaycut.yields import run_yields
-from tests.helpers import cli_app, cli_error, sha256
+from tests.helpers import cli_app, cli_error, cuts_of, sha256
 
 runner = CliRunner()
-
-
-@pytest.fixture(scope="module")
-def demos():
-    from assaycut.io.tomlfiles import demo_assay_paths
-
-    out = []
-    for p in demo_assay_paths():
-        a = load_assay(p)
-        out.append((a, build_model(a)))
-    return out
-
-
-def cuts_of(assay):
-    return run_yields(assay, default_cut_set()).cuts.set_index("name")
-
-
-@pytest.mark.parametrize("basis", ["vol", "wt"])
-def test_blend_of_crude_with_itself_is_that_crude(demos, basis):
-    # Identity: a 50/50 blend of a crude with itself is that crude, on both bases.
-    a, m = demos[0]
-    b = blend([(a, m, 50.0), (a, m, 50.0)], basis=basis)
-    assert b.sg == pytest.approx(a.sg, rel=1e-12)
-    assert b.sulfur_wt_pct == pytest.approx(a.sulfur_wt_pct, rel=1e-12)
-    ca, cb = cuts_of(a), cuts_of(b)
-    assert_allclose(cb["vol_pct"], ca["vol_pct"], atol=0.05)
-    assert_allclose(cb["wt_pct"], ca["wt_pct"], atol=0.05)
-    assert_allclose(cb["sg"], ca["sg"], atol=0.002)
 
 
 def test_volume_blend_cut_volumes_are_weighted_sums(demos):

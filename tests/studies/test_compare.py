@@ -9,24 +9,11 @@ from typer.testing import CliRunner
 
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.errors import StudyError
-from assaycut.io import load_assay
-from assaycut.model.crude import build_model
 from assaycut.studies.compare import Price, PriceSet, worth_table
 from assaycut.yields import run_yields
 from tests.helpers import DEMO_PRICES, cli_app, cli_error
 
 runner = CliRunner()
-
-
-@pytest.fixture(scope="module")
-def demos():
-    from assaycut.io.tomlfiles import demo_assay_paths
-
-    out = []
-    for p in demo_assay_paths():
-        a = load_assay(p)
-        out.append((a, build_model(a)))
-    return out
 
 
 def test_worth_by_hand(demos):

@@ -9,29 +9,12 @@ from typer.testing import CliRunner
 
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.errors import StudyError
-from assaycut.io import load_assay
 from assaycut.io.tomlfiles import read_limits
-from assaycut.model.crude import build_model
 from assaycut.studies.cutpoints import shift_delta, sweep
 from assaycut.yields import run_yields
 from tests.helpers import cli_app, cli_error
 
 runner = CliRunner()
-
-
-@pytest.fixture(scope="module")
-def demos():
-    from assaycut.io.tomlfiles import demo_assay_paths
-
-    out = []
-    for p in demo_assay_paths():
-        a = load_assay(p)
-        out.append((a, build_model(a)))
-    return out
-
-
-def cuts_of(assay):
-    return run_yields(assay, default_cut_set()).cuts.set_index("name")
 
 
 def test_shift_deltas_sum_to_zero_and_touch_only_neighbours(demos):
