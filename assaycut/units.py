@@ -151,8 +151,14 @@ def sg_to_density15(sg):
 
     Notes
     -----
-    API MPMS 11.1 / ASTM D1250 crude-oil form with K0 = 341.0957 (recalled from memory); the 15 °C and 60 °F
-    densities differ by about 0.05 %.
+    The crude-oil form of the volume correction with K0 = 341.0957 (recalled from memory, not read from the
+    standard); the 15 °C and 60 °F densities differ by about 0.05 %.  Valid range of the standard's crude-oil
+    tables: densities of about 610-1075 kg/m3 (recalled from memory).
+
+    References
+    ----------
+    .. [1] API *Manual of Petroleum Measurement Standards*, Ch. 11.1, *Temperature and Pressure Volume
+       Correction Factors for Generalized Crude Oils, Refined Products and Lubricating Oils* (ASTM D1250).
 
     Examples
     --------

@@ -167,6 +167,10 @@ def tbp_to_d86_daubert_1994_array(tbp_c) -> np.ndarray:
     ConversionError
         A curve falling across a segment (by more than rounding noise).
 
+    Notes
+    -----
+    Valid range: that of :func:`tbp_to_d86_daubert_1994`, TBP temperatures of roughly -18 to 430 °C.
+
     Examples
     --------
     Two curves at once, the first the Riazi MNL50 Table 3.8 kerosene TBP by Daubert 1994 (its published D86

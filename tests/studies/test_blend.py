@@ -17,6 +17,19 @@ from tests.helpers import cli_app, cli_error, cuts_of, sha256
 runner = CliRunner()
 
 
+@pytest.mark.parametrize("basis", ["vol", "wt"])
+def test_blend_of_crude_with_itself_is_that_crude(demos, basis):
+    # Identity: a 50/50 blend of a crude with itself is that crude, on both bases.
+    a, m = demos[0]
+    b = blend([(a, m, 50.0), (a, m, 50.0)], basis=basis)
+    assert b.sg == pytest.approx(a.sg, rel=1e-12)
+    assert b.sulfur_wt_pct == pytest.approx(a.sulfur_wt_pct, rel=1e-12)
+    ca, cb = cuts_of(a), cuts_of(b)
+    assert_allclose(cb["vol_pct"], ca["vol_pct"], atol=0.05)
+    assert_allclose(cb["wt_pct"], ca["wt_pct"], atol=0.05)
+    assert_allclose(cb["sg"], ca["sg"], atol=0.002)
+
+
 def test_volume_blend_cut_volumes_are_weighted_sums(demos):
     # Identity (no shrinkage): cut volumes of a volume blend are the weighted sums of the parents' cut volumes,
     # for cut points inside the range every parent measured; the blend SG is the volume-weighted SG.
