@@ -32,3 +32,15 @@ def test_aliases():
     assert find_component("ISOPENTANE").key == "iC5"
     assert find_component("74-98-6").key == "C3"
     assert find_component("kryptonite") is None
+
+
+@pytest.mark.parametrize("comp", COMPONENTS, ids=[c.key for c in COMPONENTS])
+def test_basis_conversion_is_a_mass_balance(comp):
+    # Mass balance (identity): x_wt * SG_crude = x_vol * SG_component, both ways, and the round trip is exact.
+    from assaycut.model.lightends import convert_basis
+
+    crude_sg = 0.85
+    vol = convert_basis(1.2, "wt", "vol", comp.sg, crude_sg)
+    assert vol * comp.sg == pytest.approx(1.2 * crude_sg, rel=1e-14)
+    assert convert_basis(vol, "vol", "wt", comp.sg, crude_sg) == pytest.approx(1.2, rel=1e-14)
+    assert convert_basis(1.2, "wt", "wt", comp.sg, crude_sg) == 1.2
