@@ -64,7 +64,7 @@ def shift(
 
         echo_json(shift_json(base, new, delta))
         return
-    from ..report.studyreports import shift_text
+    from ..report.console import shift_text
 
     typer.echo(f"{a.name}: cut-point change " + ", ".join(f"{k} -> {v:g} °C" for k, v in parse_ends(end).items()))
     typer.echo(shift_text(delta))

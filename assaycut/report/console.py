@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 from .studyreports import compare_wide
 from .tables import text_table
 
@@ -122,3 +124,24 @@ def optimum_text(crude: str, what: str, unit: str, res, cut_set) -> list[str]:
         lines.append("Not evaluated (n/a, not constraining): " + "; ".join(res.not_evaluated))
     lines.append("Qualities are estimates; flash points must be measured (ASTM D93).")
     return lines
+
+
+def shift_text(delta) -> str:
+    """The shift deltas as aligned text, changed cuts marked with '*'."""
+    head = ["", "Cut", "End °C", "-> End °C", "Δ vol %", "Δ wt %", "Δ SG", "Δ S wt %", "Δ D86 95 °C", "Δ CCI",
+            "Δ flash °C", "Limit flips"]
+
+    def f(v, nd):
+        return "-" if v is None or (isinstance(v, float) and math.isnan(v)) else f"{v:+.{nd}f}"
+
+    def e(v):
+        return "end" if v is None or (isinstance(v, float) and math.isnan(v)) else f"{v:g}"
+
+    body = [["*" if r["changed"] else "", r["name"], e(r["end_c_base"]), e(r["end_c_new"]), f(r["vol_pct"], 2),
+             f(r["wt_pct"], 2), f(r["sg"], 4), f(r["sulfur_wt_pct"], 3), f(r["d86_95_c"], 1),
+             f(r["cetane_index_d4737"], 1), f(r["flash_c_est"], 1), r["limit_flips"]]
+            for r in delta.to_dict("records")]
+    widths = [max(len(str(x)) for x in col) for col in zip(head, *body)]
+    lines = ["  ".join(str(h).ljust(w) for h, w in zip(head, widths)).rstrip()]
+    lines += ["  ".join(str(x).ljust(w) for x, w in zip(row, widths)).rstrip() for row in body]
+    return "\n".join(lines)
