@@ -28,7 +28,7 @@ SD_TBP_SEGMENTS = {(95, 100): (0.02172, 1.9733), (90, 95): (0.97476, 0.8723), (7
                    (50, 70): (0.19861, 1.3975), (30, 50): (0.05342, 1.6988), (10, 30): (0.011903, 2.0253),
                    (0, 10): (0.15779, 1.4296)}
 """TBP difference W = C * V**D, V the D2887 difference over the segment [°F] ([2] 3A3.1).  The 10-30 constant
-C = 0.011903 reproduces the printed API TDB 3A3.1 example (see :func:`d2887_to_tbp_api_3a3_1`)."""
+C = 0.011903 reproduces the API TDB 3A3.1 worked example (see :func:`d2887_to_tbp_api_3a3_1`)."""
 
 SD_D86_SEGMENTS = {(90, 100): (2.6029, 0.65962), (70, 90): (0.30785, 1.2341), (50, 70): (0.14862, 1.4287),
                    (30, 50): (0.07978, 1.5386), (10, 30): (0.06069, 1.5176), (0, 10): (0.30470, 1.1259)}
@@ -66,8 +66,9 @@ def d2887_to_tbp_api_3a3_1(d2887: Mapping[float, float]) -> dict[float, float]:
 
     Examples
     --------
-    The API TDB 3A3.1 worked example: SD 305/324/336/344/359/369 °F at 10/30/50/70/90/95 % gives the
-    printed TBP 327.7/332.4/336.0/339.6/350.1/357.4 °F (to 0.1 °F):
+    The API TDB 3A3.1 worked example (known to us second-hand, not from the printed page): SD
+    305/324/336/344/359/369 °F at 10/30/50/70/90/95 % gives TBP 327.7/332.4/336.0/339.6/350.1/357.4 °F
+    (to 0.1 °F):
 
     >>> sd = {p: (f - 32) / 1.8 for p, f in zip((10, 30, 50, 70, 90, 95), (305, 324, 336, 344, 359, 369))}
     >>> t = d2887_to_tbp_api_3a3_1(sd)
