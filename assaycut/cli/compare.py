@@ -87,10 +87,10 @@ def compare(
 
         echo_json(compare_json(results, worth, inside, WORTH_CAVEAT))
         return
-    from ..report.console import compare_text
+    from ..report.console import compare_text, written_text
 
     echo_lines(compare_text(table, worth, ps.currency if ps else None, WORTH_CAVEAT, inside, bool(uncertainty)))
-    typer.echo(f"Report written to {written[0].parent} ({len(written)} files).")
+    typer.echo(written_text(written))
 
 
 def _inside_bands(results) -> list[tuple[str, str, str]]:

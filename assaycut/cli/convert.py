@@ -56,11 +56,11 @@ def convert(
     Conversions carry errors of a few °C, largest at the initial point.
     """
     from ..methods.distillation import convert as do_convert
-    from ..units import c_to_f, f_to_c
+    from ..units import c_to_f
 
     if file is not None and points:
         raise AssaycutError("give PERCENT=TEMP pairs or --file, not both")
-    pts = _points_from_csv(str(file)) if file is not None else _points_from_args(points, unit == TUnit.F, f_to_c)
+    pts = _points_from_csv(str(file)) if file is not None else _points_from_args(points, unit == TUnit.F)
     if not pts:
         raise AssaycutError("no points: give PERCENT=TEMP pairs (e.g. 10=176.7 50=206.7) or --file CSV")
     for p, t in pts.items():
@@ -81,8 +81,10 @@ def convert(
         typer.echo(f"warning: {w}", err=True)
 
 
-def _points_from_args(points: list[str] | None, fahrenheit: bool, f_to_c) -> dict[float, float]:
+def _points_from_args(points: list[str] | None, fahrenheit: bool) -> dict[float, float]:
     """{percent: temperature [°C]} from PERCENT=TEMP texts, each checked."""
+    from ..units import f_to_c
+
     pts: dict[float, float] = {}
     for it in points or []:
         p, sep, t = it.partition("=")

@@ -110,10 +110,10 @@ def sweep(
 
         echo_json(sweep_json(a.name, df))
         return
-    from ..report.console import sweep_text
+    from ..report.console import sweep_text, written_text
 
     echo_lines(sweep_text(a.name, df))
-    typer.echo(f"Sweep written to {written[0].parent} ({len(written)} files).")
+    typer.echo(written_text(written, "Sweep"))
 
 
 @app.command()

@@ -176,6 +176,11 @@ def meets(lim: Limit, value: float) -> bool:
     return ok
 
 
+def applicable(limits: list[Limit], names: list[str]) -> list[Limit]:
+    """The limits whose cut is among ``names`` (a limit on a cut the cut set lacks does not apply)."""
+    return [lim for lim in limits if lim.cut in names]
+
+
 def check_limits(cuts, limits: list[Limit]):
     """Check every limit against the cut table.
 
@@ -196,9 +201,7 @@ def check_limits(cuts, limits: list[Limit]):
     names = list(cuts["name"])
     cols = frame_columns(cuts) if limits else {}
     out = []
-    for lim in limits:
-        if lim.cut not in names:
-            continue
+    for lim in applicable(limits, names):
         value = float(limit_values(cols, names.index(lim.cut), lim.property)[0])
         missing = math.isnan(value)
         status = "n/a" if missing else ("pass" if meets(lim, value) else "fail")
@@ -225,10 +228,8 @@ def limit_margins(cols: dict, names: list[str], limits: list[Limit]):
         Margins (candidates x limits) in each limit's unit, NaN where not evaluable; the limits whose cut
         exists, in column order.
     """
-    out, used = [], []
-    for lim in limits:
-        if lim.cut not in names:
-            continue
+    out, used = [], applicable(limits, names)
+    for lim in used:
         vals = limit_values(cols, names.index(lim.cut), lim.property)
         eps = TOL if lim.strict else 0.0
         m = np.full(vals.shape, np.inf)
@@ -237,7 +238,6 @@ def limit_margins(cols: dict, names: list[str], limits: list[Limit]):
         if lim.max is not None:
             m = np.minimum(m, lim.max - vals - eps)
         out.append(np.where(np.isfinite(vals), m, np.nan))
-        used.append(lim)
     if not out:
         return np.zeros((cols["vol_pct"].shape[0], 0)), used
     return np.stack(out, axis=1), used

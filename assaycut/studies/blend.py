@@ -60,8 +60,7 @@ def blend(parents: list[tuple[Assay, CrudeModel, float]], basis: str = "vol", na
         TBP curve, narrow cuts, light ends, gravity, sulfur and mass-based extras of the blend; its notes
         record the parents, their sha256 and the rules used.
     """
-    pct, v, w = _shares(parents, basis)
-    sg = np.array([a.sg for a, _, _ in parents])
+    pct, sg, v, w = _shares(parents, basis)
     notes: list[str] = []
     sg_blend = _gravity(sg, v, w, shrinkage and len(parents) > 1, notes)
     models = [m for _, m, _ in parents]
@@ -82,7 +81,7 @@ def blend(parents: list[tuple[Assay, CrudeModel, float]], basis: str = "vol", na
 
 
 def _shares(parents, basis: str):
-    """The shares as given [%] and as volume and weight fractions, each checked."""
+    """The shares as given [%], the parents' SG, and the shares as volume and weight fractions, each checked."""
     if basis not in ("vol", "wt"):
         raise StudyError(f"basis must be 'vol' or 'wt'; got {basis!r}")
     if len(parents) < 1:
@@ -99,7 +98,7 @@ def _shares(parents, basis: str):
         v, w = f, f * sg / (f * sg).sum()
     else:
         w, v = f, (f / sg) / (f / sg).sum()
-    return pct, v, w
+    return pct, sg, v, w
 
 
 def _gravity(sg, v, w, shrinkage: bool, notes: list[str]) -> float:

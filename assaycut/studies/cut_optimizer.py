@@ -21,7 +21,7 @@ import numpy as np
 
 from ..cutting.cutset import CutSet
 from ..cutting.ideal import cut_columns
-from ..cutting.limits import TOL, Limit, limit_margins
+from ..cutting.limits import TOL, Limit, applicable, limit_margins
 from ..errors import StudyError
 from ..model.crude import CrudeModel
 from .compare import PriceSet
@@ -176,8 +176,8 @@ class _Problem:
 
     def __init__(self, model, names, ends0, var, lims, maximize, prices):
         self.model, self.names, self.ends0, self.var = model, names, ends0, var
-        self.all_limits, self.maximize, self.prices = lims, maximize, prices
-        self.limits = [x for x in lims if x.cut in names]
+        self.maximize, self.prices = maximize, prices
+        self.limits = applicable(lims, names)
 
     def full(self, x):
         e = np.repeat(self.ends0[None, :], x.shape[0], axis=0)
@@ -189,7 +189,7 @@ class _Problem:
         x = np.atleast_2d(x)
         cols = cut_columns(self.model, self.full(x))
         obj = _objective(cols, self.names, self.maximize, self.prices)
-        marg, _ = limit_margins(cols, self.names, self.all_limits)
+        marg, _ = limit_margins(cols, self.names, self.limits)
         order = np.diff(x, axis=1) - GAP_C if len(self.var) > 1 else np.zeros((x.shape[0], 0))
         return obj, marg, order
 
