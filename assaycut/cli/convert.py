@@ -43,6 +43,9 @@ def convert(
     TdMethod.daubert_1994,
     pressure_mmhg: Annotated[Optional[float], typer.Option("--pressure-mmhg", help="Pressure of D1160 data [mmHg].",
                                                            min=1e-6)] = None,
+    watson_k: Annotated[Optional[float], typer.Option("--watson-k", help="Watson K of D1160 material for the "
+                                                      "Maxwell-Bonnell correction (default 12: none).",
+                                                      min=8.0, max=14.0)] = None,
     unit: Annotated[TUnit, typer.Option("--unit", help="Temperature unit of input and printed output "
                                         "(JSON temp_c is always °C).")] = TUnit.C,
     file: Annotated[Optional[Path], typer.Option("--file", help="CSV with vol_pct/wt_pct and temp_c/temp_f/temp_k "
@@ -52,7 +55,8 @@ def convert(
     """Convert a distillation curve between methods by published correlations.
 
     TBP <-> D86 by Daubert 1994 (API TDB 3A1.1, default) or Riazi-Daubert 1986; D2887 -> TBP (API TDB
-    3A3.1) and D2887 -> D86 (3A3.2); D1160 at --pressure-mmhg -> AET (Maxwell-Bonnell, API TDB 5A1.19).
+    3A3.1) and D2887 -> D86 (3A3.2); D1160 at --pressure-mmhg -> AET (Maxwell-Bonnell, API TDB 5A1.19; with --watson-k, its Watson K
+    correction).
     Conversions carry errors of a few °C, largest at the initial point.
     """
     from ..methods.distillation import convert as do_convert
@@ -66,7 +70,8 @@ def convert(
     for p, t in pts.items():
         if t < -273.15:
             raise AssaycutError(f"{p:g} %: {t:.2f} °C is below absolute zero")
-    out, used, warnings = do_convert(pts, frm.value, to.value, method=method.value, pressure_mmhg=pressure_mmhg)
+    out, used, warnings = do_convert(pts, frm.value, to.value, method=method.value, pressure_mmhg=pressure_mmhg,
+                                     watson_k=watson_k)
     if json_out:
         from ..report.jsonout import convert_json
 

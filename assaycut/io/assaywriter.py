@@ -55,7 +55,8 @@ def _build(assay: Assay | None):
         ws = _new_sheet(wb, sheet)
         ws.append(["method", curve.method if curve else ("TBP" if sheet == SHEET_CURVE else "D1160")])
         ws.append(["pressure_mmhg", curve.pressure_mmhg if curve else (None if sheet == SHEET_CURVE else 10.0)])
-        ws.append([])
+        kw = curve.watson_k if curve else None
+        ws.append(["watson_k", kw] if kw is not None or (curve is None and sheet == SHEET_VACUUM) else [])
         ws.append([f"{curve.basis if curve else 'vol'}_pct", "temp_c"])
         _bold(ws, 5)
         if curve is not None:

@@ -44,7 +44,8 @@ MAX_BYTES = 20 * 1024 * 1024
 INSTRUCTIONS = {
     SHEET_CRUDE: "Whole-crude data. One field per row; give at least one of api_gravity, sg_60f, "
                  "density_15c_kg_m3. Extra fields end in their unit, e.g. pour_point_c.",
-    SHEET_CURVE: "Main distillation curve. method: TBP, D86, D2887 or D1160 (then pressure_mmhg). Columns: "
+    SHEET_CURVE: "Main distillation curve. method: TBP, D86, D2887 or D1160 (then pressure_mmhg, and optionally "
+                 "watson_k for the Maxwell-Bonnell correction; empty = 12, no correction). Columns: "
                  "vol_pct or wt_pct (cumulative % distilled) and temp_c, temp_f or temp_k.",
     SHEET_VACUUM: "Optional vacuum curve (e.g. D1160 at reduced pressure) that extends the main curve. Same "
                   "layout as the distillation sheet. Delete this sheet if unused.",

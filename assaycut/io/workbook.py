@@ -197,7 +197,7 @@ def _read_curve(ws, loc: SourceLocation, optional: bool = False) -> CurveData | 
         if optional:
             return None
         raise loc.err("the sheet is empty; expected a method row and a curve table")
-    method, pressure = None, None
+    method, pressure, kw = None, None, None
     h = None
     for i, row in enumerate(rows[:12]):
         first = cell_text(row[0] if row else None).lower()
@@ -212,6 +212,13 @@ def _read_curve(ws, loc: SourceLocation, optional: bool = False) -> CurveData | 
                 if x <= 0:
                     raise loc.err(f"pressure_mmhg {x:g} must be positive", i + 1, "B")
                 pressure = x
+        elif first == "watson_k":
+            x = to_number(row[1] if len(row) > 1 else None, loc, i + 1, "B", allow_empty=True)
+            if not math.isnan(x):
+                if not 8.0 <= x <= 14.0:
+                    raise loc.err(f"watson_k {x:g} is outside 8-14; expected the Watson K of the distilled "
+                                  f"material", i + 1, "B")
+                kw = x
         elif cells & (set(PCT_COLUMNS) | set(TEMP_COLUMNS)):
             h = i
             break
@@ -225,10 +232,14 @@ def _read_curve(ws, loc: SourceLocation, optional: bool = False) -> CurveData | 
         raise loc.err("a D1160 curve needs its pressure: add a row 'pressure_mmhg | P'")
     if method != "D1160" and pressure is not None and abs(pressure - 760.0) > 1e-6:
         raise loc.err(f"a {method} curve is atmospheric; pressure_mmhg {pressure:g} applies to D1160 only")
+    if method != "D1160" and kw is not None:
+        raise loc.err(f"watson_k applies to D1160 data only (the Maxwell-Bonnell correction); the curve is {method}")
     if optional and len(rows) <= h + 1:
         return None
-    return parse_curve_rows(rows, loc, header_index=h, method=method, pressure=pressure,
-                            where=f"{loc.file}, sheet '{loc.sheet}'")
+    curve = parse_curve_rows(rows, loc, header_index=h, method=method, pressure=pressure,
+                             where=f"{loc.file}, sheet '{loc.sheet}'")
+    curve.watson_k = kw
+    return curve
 
 
 def _read_narrow_cuts(ws, loc: SourceLocation) -> NarrowCuts | None:

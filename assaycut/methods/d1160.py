@@ -18,7 +18,62 @@ import math
 import numpy as np
 
 from ..errors import ConversionError
-from ..units import as_scalar
+from ..units import as_scalar, c_to_f
+
+
+Q_IDENTITY = 1.0 / 748.1
+"""The Q at which T' = T for every T: the value the pressure fit should take at 760 mmHg. [-]"""
+
+C_OFFSET = 0.3861 / 748.1
+"""The constant term of the T' equation, published as 0.00051606; taken as 0.3861/748.1 = 0.000516107 so that
+Q = 1/748.1 gives T' = T exactly.  The two differ by 5e-8 K^-1, within the rounding of the 4-figure 748.1;
+it moves a 10 mmHg AET by about 0.01 °C. [1/K]"""
+
+_LOG2, _LOG760 = math.log10(2.0), math.log10(760.0)
+
+
+def _q_published(lp: float) -> float:
+    """Maxwell-Bonnell Q for log10(P [mmHg]) = ``lp`` from the three published pressure ranges [2]_."""
+    if lp < _LOG2:
+        return (6.761560 - 0.987672 * lp) / (3000.538 - 43.0 * lp)
+    if lp < _LOG760:
+        return (5.994296 - 0.972546 * lp) / (2663.129 - 95.76 * lp)
+    return (6.412631 - 0.989679 * lp) / (2770.085 - 36.0 * lp)
+
+
+def maxwell_bonnell_q(pressure_mmhg: float) -> float:
+    """Maxwell-Bonnell Q of a pressure, anchored so that 760 mmHg is the identity.
+
+    The published ranges [2]_ give Q(760) = 0.00133734 (2-760 mmHg form) and 0.00133573 (>= 760 form), not
+    the identity value 1/748.1 = 0.00133672: rounding of the published constants, worth -0.3 and +0.2 °C at
+    300 °C.  We correct the 2-760 mmHg form by a term linear in log10 P that is zero at 2 mmHg and meets the
+    identity at 760 mmHg, and shift the >= 760 form by a constant to meet it there too (our adjustment, not
+    part of the published method; it moves a 10 mmHg AET by under 0.1 °C).  The result is continuous at 760.
+
+    Parameters
+    ----------
+    pressure_mmhg : float
+        Absolute pressure. [mmHg]
+
+    Returns
+    -------
+    float
+        Q. [-]
+    """
+    lp = math.log10(pressure_mmhg)
+    q = _q_published(lp)
+    if lp < _LOG2:
+        return q
+    if lp < _LOG760:
+        miss = Q_IDENTITY - (5.994296 - 0.972546 * _LOG760) / (2663.129 - 95.76 * _LOG760)
+        return q + miss * (lp - _LOG2) / (_LOG760 - _LOG2)
+    return q + Q_IDENTITY - (6.412631 - 0.989679 * _LOG760) / (2770.085 - 36.0 * _LOG760)
+
+
+def watson_k_factor(t_ref_c):
+    """The factor f of the Maxwell-Bonnell Watson K correction, from the Kw = 12 AET T' [2]_:
+    f = 0 below 200 °F, 1 above 400 °F, (T'[°F] - 200)/200 between. [-]"""
+    return np.clip((c_to_f(np.asarray(t_ref_c, dtype=float)) - 200.0) / 200.0, 0.0, 1.0)
 
 
 def vacuum_to_aet_maxwell_bonnell(temp_c, pressure_mmhg: float, watson_k: float | None = None):
@@ -27,10 +82,14 @@ def vacuum_to_aet_maxwell_bonnell(temp_c, pressure_mmhg: float, watson_k: float 
     .. math::
         T' = \\frac{748.1\\,Q}{1/T + 0.3861\\,Q - 0.00051606}\\quad[K]
 
-    with Q from the pressure P [mmHg] [2]_:
-    P < 2: Q = (6.761560 - 0.987672 log P)/(3000.538 - 43 log P);
-    2 <= P < 760: Q = (5.994296 - 0.972546 log P)/(2663.129 - 95.76 log P);
-    P >= 760: Q = (6.412631 - 0.989679 log P)/(2770.085 - 36 log P).
+    (with 0.00051606 taken as 0.3861/748.1, :data:`C_OFFSET`)
+
+    .. math::
+        T_b = T' + 1.3889\\,f\\,(K_w - 12)\\,\\log_{10}(P/760)\\quad[K]
+
+    with Q from the pressure P [mmHg] (:func:`maxwell_bonnell_q`: the three published ranges [2]_, anchored
+    so that 760 mmHg is the identity) and f from T' (:func:`watson_k_factor`).  Below atmospheric pressure
+    log10(P/760) < 0, so a paraffinic fraction (Kw > 12) comes out lower and an aromatic one higher [2]_ [3]_.
 
     Parameters
     ----------
@@ -39,8 +98,8 @@ def vacuum_to_aet_maxwell_bonnell(temp_c, pressure_mmhg: float, watson_k: float 
     pressure_mmhg : float
         Absolute pressure of the distillation. [mmHg]
     watson_k : float, optional
-        Watson K of the material; None (default, and what the yield reports use) applies no correction,
-        which is the ASTM D1160 form [4]_. [-]
+        Watson K of the material [-]; None (default) or 12 applies no correction, which is the ASTM D1160
+        annex form [4]_.
 
     Returns
     -------
@@ -49,42 +108,35 @@ def vacuum_to_aet_maxwell_bonnell(temp_c, pressure_mmhg: float, watson_k: float 
 
     Notes
     -----
-    Valid range: petroleum fractions distilled at about 0.1-760 mmHg [2]_.  With ``watson_k`` this function
-    applies Tb = T' - 1.3889 f (Kw - 12) log10(P/760) in °R (f = 0 below Tb 200 °F, 1 above 400 °F, linear
-    between).  That term is under review: API TDB 5A1.19 [2]_ gives it with the opposite sign, in K; do not
-    rely on the correction until it is settled.
+    Valid range: petroleum fractions distilled at about 0.1-760 mmHg [2]_; D1160 is a vacuum method, and
+    callers warn above 760 mmHg.
 
     References
     ----------
     .. [1] Maxwell & Bonnell, Ind. Eng. Chem. 49 (1957) 1187.
     .. [2] API Technical Data Book, Procedure 5A1.19.
+    .. [3] Riazi, ASTM MNL50 (2005), Eqs. 7.22-7.26.
     .. [4] ASTM D1160, annex.
 
     Examples
     --------
-    No printed example is at hand; computed from the equations by hand: 200 °C observed at 10 mmHg is
-    348.8 °C AET.
+    No printed example is at hand; computed from the equations (the reference sheet's check value): 200 °C
+    observed at 10 mmHg is about 348.8 °C AET; 365 °F at 10 mmHg with Kw 12.5 is 625.5 °F.
 
-    >>> round(float(vacuum_to_aet_maxwell_bonnell(200.0, 10.0)), 1)
+    >>> round(float(vacuum_to_aet_maxwell_bonnell(200.0, 10.0)), 2)
     348.8
+    >>> round(float(vacuum_to_aet_maxwell_bonnell((365 - 32) / 1.8, 10.0, watson_k=12.5)) * 1.8 + 32, 1)
+    625.5
     """
     if not (pressure_mmhg > 0 and math.isfinite(pressure_mmhg)):
         raise ConversionError(f"pressure must be a positive number of mmHg; got {pressure_mmhg}")
-    lp = math.log10(pressure_mmhg)
-    if pressure_mmhg < 2:
-        q = (6.761560 - 0.987672 * lp) / (3000.538 - 43.0 * lp)
-    elif pressure_mmhg < 760:
-        q = (5.994296 - 0.972546 * lp) / (2663.129 - 95.76 * lp)
-    else:
-        q = (6.412631 - 0.989679 * lp) / (2770.085 - 36.0 * lp)
+    if watson_k is not None and not (math.isfinite(watson_k) and 8.0 <= watson_k <= 14.0):
+        raise ConversionError(f"Watson K must be a number between 8 and 14; got {watson_k}")
+    q = maxwell_bonnell_q(pressure_mmhg)
     t = np.asarray(temp_c, dtype=float) + 273.15
     if np.any(t <= 0):
         raise ConversionError("a vacuum distillation temperature is below absolute zero")
-    aet = 748.1 * q / (1.0 / t + 0.3861 * q - 0.00051606)
+    aet = 748.1 * q / (1.0 / t + 0.3861 * q - C_OFFSET) - 273.15
     if watson_k is not None and watson_k != 12.0:
-        tr = aet * 1.8
-        f = np.clip((tr - 659.7) / 200.0, 0.0, 1.0)
-        tr = tr - 1.3889 * f * (watson_k - 12.0) * math.log10(pressure_mmhg / 760.0)
-        aet = tr / 1.8
-    out = aet - 273.15
-    return as_scalar(out)
+        aet = aet + 1.3889 * watson_k_factor(aet) * (watson_k - 12.0) * math.log10(pressure_mmhg / 760.0)
+    return as_scalar(aet)

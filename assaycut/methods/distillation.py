@@ -10,6 +10,8 @@ from __future__ import annotations
 
 from typing import Callable, Mapping, NamedTuple
 
+import numpy as np
+
 from ..errors import ConversionError
 from .d86 import (
     d86_to_tbp_daubert_1994,
@@ -87,8 +89,17 @@ def range_warnings(points: Mapping[float, float], frm: str, conversion: Conversi
             f"{conversion.label}: the result is an extrapolation of the correlation"]
 
 
+def vacuum_warnings(pressure_mmhg: float) -> list[str]:
+    """Warnings for a D1160 pressure: above 760 mmHg the method (a vacuum distillation) does not apply."""
+    if pressure_mmhg > 760.0:
+        return [f"D1160 is a vacuum method; {pressure_mmhg:g} mmHg is above atmospheric pressure and the "
+                f"Maxwell-Bonnell conversion is extrapolated"]
+    return []
+
+
 def convert(points: Mapping[float, float], frm: str, to: str, method: str = "daubert-1994",
-            pressure_mmhg: float | None = None) -> tuple[dict[float, float], str, list[str]]:
+            pressure_mmhg: float | None = None,
+            watson_k: float | None = None) -> tuple[dict[float, float], str, list[str]]:
     """Convert a curve between methods by name.
 
     Parameters
@@ -103,6 +114,8 @@ def convert(points: Mapping[float, float], frm: str, to: str, method: str = "dau
         'daubert-1994' (default) or 'riazi-daubert-1986', for TBP <-> D86.
     pressure_mmhg : float, optional
         Distillation pressure for D1160. [mmHg]
+    watson_k : float, optional
+        Watson K of D1160 material for the Maxwell-Bonnell correction; None applies none. [-]
 
     Returns
     -------
@@ -128,8 +141,12 @@ def convert(points: Mapping[float, float], frm: str, to: str, method: str = "dau
         if to not in ("AET", "TBP"):
             raise ConversionError(f"D1160 converts to AET (the atmospheric-equivalent TBP basis), not {to}")
         keys = sorted(pts)
-        vals = vacuum_to_aet_maxwell_bonnell([pts[k] for k in keys], pressure_mmhg)
-        return dict(zip(keys, [float(v) for v in vals])), "maxwell-bonnell", warnings
+        vals = np.atleast_1d(vacuum_to_aet_maxwell_bonnell([pts[k] for k in keys], pressure_mmhg, watson_k))
+        warnings += vacuum_warnings(pressure_mmhg)
+        used = "maxwell-bonnell" + (f" (Watson K {watson_k:g})" if watson_k is not None else "")
+        return dict(zip(keys, [float(v) for v in vals])), used, warnings
+    if watson_k is not None:
+        raise ConversionError("--watson-k applies to D1160 data only (the Maxwell-Bonnell correction)")
     if to == "AET":
         raise ConversionError(f"AET is the target of D1160 data only; cannot convert {frm} to AET")
     key = (frm, to, method if frm in ("TBP", "D86") else None)

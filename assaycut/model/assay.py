@@ -29,6 +29,9 @@ class CurveData:
         Temperature at each percent (vapour temperature at ``pressure_mmhg`` for D1160). [°C]
     pressure_mmhg : float or None
         Distillation pressure for D1160. [mmHg]
+    watson_k : float or None
+        Watson K of the distilled material for the Maxwell-Bonnell correction of D1160 data; None applies
+        none (Kw = 12). [-]
     where : str
         Where the curve came from, for messages (e.g. "assay.xlsx, sheet 'distillation'").
     warnings : list of str
@@ -42,6 +45,7 @@ class CurveData:
     pressure_mmhg: float | None = None
     where: str = ""
     warnings: list[str] = field(default_factory=list)
+    watson_k: float | None = None
 
 
 @dataclass

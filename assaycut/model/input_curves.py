@@ -10,7 +10,7 @@ from ..errors import CurveError
 from ..methods.d86 import D86_STD
 from ..methods.d1160 import vacuum_to_aet_maxwell_bonnell
 from ..methods.d2887 import SD_STD
-from ..methods.distillation import convert
+from ..methods.distillation import convert, vacuum_warnings
 from .assay import CurveData
 from .spline import Pchip
 
@@ -49,9 +49,14 @@ def curve_to_tbp(curve: CurveData, method: str = "daubert-1994") -> tuple[np.nda
     if curve.method == "TBP":
         return curve.percent.copy(), curve.temp_c.copy(), [], "TBP as measured"
     if curve.method == "D1160":
-        aet = vacuum_to_aet_maxwell_bonnell(curve.temp_c, curve.pressure_mmhg)
-        return curve.percent.copy(), np.asarray(aet, float), [], (
-            f"D1160 at {curve.pressure_mmhg:g} mmHg to AET by Maxwell-Bonnell (API TDB 5A1.19), AET taken as TBP")
+        kw = curve.watson_k
+        aet = vacuum_to_aet_maxwell_bonnell(curve.temp_c, curve.pressure_mmhg, watson_k=kw)
+        w = [f"{curve.where}: {m}" for m in vacuum_warnings(curve.pressure_mmhg)]
+        return curve.percent.copy(), np.atleast_1d(np.asarray(aet, float)), w, (
+            f"D1160 at {curve.pressure_mmhg:g} mmHg to AET by Maxwell-Bonnell (API TDB 5A1.19), "
+            + (f"Watson K correction with the given Kw {kw:g}" if kw is not None else
+               "no Watson K correction (Kw 12; give watson_k on the sheet to correct)")
+            + ", AET taken as TBP")
     if curve.method == "D86":
         pts = standard_points(curve, D86_STD)
         out, used, w = convert(pts, "D86", "TBP", method=method)

@@ -191,6 +191,21 @@ def test_convert_fahrenheit_and_d1160():
     assert json.loads(r.stdout)["points"][0]["temp_c"] == pytest.approx(348.8, abs=0.1)
 
 
+def test_convert_d1160_watson_k_and_pressure_warning():
+    # API TDB 5A1.19 Watson K correction (reference sheet check value, computed): 365 °F at 10 mmHg with Kw 12.5
+    # is 625.5 °F; 300 °C at 760 mmHg is 300 °C (definition of the normal boiling point).
+    r = runner.invoke(app, ["convert", "--from", "D1160", "--to", "AET", "--pressure-mmhg", "10", "--watson-k",
+                            "12.5", "--unit", "F", "--json", "50=365"])
+    assert r.exit_code == 0, r.stderr
+    assert json.loads(r.stdout)["points"][0]["temp_c"] * 1.8 + 32 == pytest.approx(625.5, abs=0.1)
+    r = runner.invoke(app, ["convert", "--from", "D1160", "--to", "AET", "--pressure-mmhg", "760", "--json",
+                            "50=300"])
+    assert json.loads(r.stdout)["points"][0]["temp_c"] == pytest.approx(300.0, abs=1e-9)
+    r = runner.invoke(app, ["convert", "--from", "D1160", "--to", "AET", "--pressure-mmhg", "800", "50=300"])
+    assert r.exit_code == 0 and "vacuum method" in r.stderr
+    cli_error(["convert", "--from", "D86", "--watson-k", "11", "50=200"], r"D1160 data only")
+
+
 def test_convert_errors():
     cli_error(["convert", "--from", "D86", "--to", "TBP", "10=150", "30=180"], r"needs the 50 % point")
     cli_error(["convert", "--from", "D1160", "--to", "AET", "50=200"], r"pressure")

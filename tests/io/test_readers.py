@@ -220,6 +220,27 @@ def test_weight_basis_tbp_curve_converted_and_closed(book):
     assert "weight-basis curve" in m.methods["basis"]
 
 
+def test_vacuum_sheet_watson_k_row_applies_correction(book):
+    # The optional watson_k row reaches the Maxwell-Bonnell conversion (API TDB 5A1.19): below 760 mmHg an
+    # aromatic Kw (< 12) raises the AET above the uncorrected one.
+    from assaycut.model.input_curves import curve_to_tbp
+
+    def vac(kw):
+        def mutate(s):
+            s["vacuum distillation"] = [["x"], ["method", "D1160"], ["pressure_mmhg", 10.0], ["watson_k", kw], [],
+                                        ["vol_pct", "temp_c"], [85.0, 330.0], [92.0, 380.0]]
+        return load_assay(str(book(mutate))).curves[1]
+    plain, aromatic = vac(None), vac(11.0)
+    assert plain.watson_k is None and aromatic.watson_k == 11.0
+    t_plain, t_arom = curve_to_tbp(plain)[1], curve_to_tbp(aromatic)[1]
+    assert np.all(t_arom > t_plain)
+    assert "Watson K correction with the given Kw 11" in curve_to_tbp(aromatic)[3]
+    path = book(lambda s: s.update({"vacuum distillation": [["x"], ["method", "D1160"], ["pressure_mmhg", 10.0],
+                                                            ["watson_k", 20.0], [], ["vol_pct", "temp_c"],
+                                                            [85.0, 330.0], [92.0, 380.0]]}))
+    cli_error(["yields", str(path)], r"sheet 'vacuum distillation', row 4, column 'B': watson_k 20 is outside 8-14")
+
+
 def test_whole_crude_simdis_as_d2887_refused_clearly(book):
     # API TDB 3A3.1 is a correlation for petroleum fractions: on a whole crude's wide segments it gives
     # temperatures below methane's boiling point (-161.5 °C, chemicals library), which must be refused.
