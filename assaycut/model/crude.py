@@ -113,8 +113,47 @@ def build_model(assay: Assay, method: str = "daubert-1994") -> CrudeModel:
     warnings: list[str] = [w for c in assay.curves for w in c.warnings]
     methods: dict[str, str] = {}
     p, t = _tbp_points(assay, method, warnings, methods)
-    if assay.curves[0].basis == "wt":
-        p = _to_volume_basis(p, t, assay, warnings, methods)
+    if assay.curves[0].basis != "wt":
+        return _fit(assay, p, t, warnings, methods)
+    return _fit_weight_basis(assay, p, t, warnings, methods)
+
+
+WT_NODE_TOL = 1e-9
+"""How closely a weight-basis curve's own nodes are reproduced by the model's wt % distilled. [wt %]"""
+
+
+def _fit_weight_basis(assay: Assay, w, t, warnings: list[str], methods: dict[str, str]) -> CrudeModel:
+    """The crude model of a weight-basis curve, exact at its nodes.
+
+    The volume percent of each node is found so that the model's own weight distilled, W(V) = ∫0^V SG dv /
+    SG_crude with the density distribution the model then uses for every cut, equals the measured wt % at
+    that node: starting from the narrow-cut/Watson K estimate (:func:`_wt_to_vol`), each pass refits the
+    curve and the density distribution and moves every node by dV = (w_i - W(V_i)) SG_crude / SG(V_i)
+    (Newton's step for the fixed distribution), until every node is within :data:`WT_NODE_TOL` wt %.
+    """
+    v = _to_volume_basis(w, t, assay, warnings, methods)
+    closes = abs(float(w[-1]) - 100.0) < 1e-9
+    model = None
+    for _ in range(60):
+        model = _fit(assay, v, t, list(warnings), dict(methods))
+        miss = w - model.wt_at_vol(v)
+        if float(np.max(np.abs(miss))) < WT_NODE_TOL:
+            break
+        v = np.clip(v + miss * model.sg / model.sg_dist(v), 0.0, 100.0)
+        if closes:
+            v[-1] = 100.0
+        v = np.maximum.accumulate(v)
+    else:
+        raise CurveError(f"{assay.curves[0].where}: the weight-basis curve could not be put on the volume basis "
+                         f"consistently with the cut densities (nodes missed by up to "
+                         f"{float(np.max(np.abs(miss))):.2g} wt %)")
+    model.methods["basis"] = ("weight-basis curve: volume percents solved so that the model's weight distilled, "
+                              "from its density distribution, reproduces every measured wt % point")
+    return model
+
+
+def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str]) -> CrudeModel:
+    """Curve model, density and sulfur distributions for volume-basis TBP points (p [vol %], t [°C])."""
     le_t, le_v, le_mids = _light_ends_nodes(assay, float(t[0]))
     curve = build_curve(p, t, front_t=le_t, front_v=le_v)
     warnings += curve.warnings
@@ -159,10 +198,10 @@ def _tbp_points(assay: Assay, method: str, warnings: list[str], methods: dict[st
 
 
 def _wt_to_vol(pct_w, temp_c, assay: Assay) -> np.ndarray:
-    """Convert cumulative wt % points to vol %: dV = dW * SG_crude / SG(interval).
+    """First estimate of the vol % of cumulative wt % points: dV = dW * SG_crude / SG(interval).
 
     SG of each interval is the narrow-cut SG covering its mid temperature, else constant Watson K from the
-    crude's own 50 % point.  An approximation used only for weight-basis input curves.
+    crude's own 50 % point.  The starting point of :func:`_fit_weight_basis`, which makes it exact.
     """
     t_mid = np.concatenate([[temp_c[0]], 0.5 * (temp_c[1:] + temp_c[:-1])])
     kw = watson_k(float(np.interp(50.0, pct_w, temp_c)), assay.sg)
@@ -182,8 +221,6 @@ def _to_volume_basis(p, t, assay: Assay, warnings: list[str], methods: dict[str,
     """Volume percents of a weight-basis curve, closed at 100 % when the weight curve is."""
     w_last = float(p[-1])
     p = _wt_to_vol(p, t, assay)
-    methods["basis"] = ("weight-basis curve converted to volume with narrow-cut SG (constant Watson K "
-                        "between them); approximate")
     if abs(w_last - 100.0) < 1e-9 and abs(p[-1] - 100.0) > 1e-9:
         factor = 100.0 / p[-1]
         if abs(factor - 1.0) > 0.02:

@@ -207,17 +207,49 @@ def _curve_book(book, method, basis, points):
     return book(mutate)
 
 
-def test_weight_basis_tbp_curve_converted_and_closed(book):
-    from assaycut.cutting.cutset import default_cut_set
+def _node_cuts(temps):
+    from assaycut.cutting.cutset import Cut, CutSet
+
+    return CutSet([Cut(f"c{i}", float(x)) for i, x in enumerate(temps)] + [Cut("rest", None)])
+
+
+def test_weight_basis_tbp_curve_exact_at_its_nodes(book):
+    # Identity (the measured curve itself): cut at the temperatures of a weight-basis curve's own points, the
+    # wt % yields are the measured differences (to 1e-6 wt %), with narrow-cut densities (the test book) and
+    # without them (constant Watson K), and the volume basis closes.
     from assaycut.cutting.ideal import cut_table
     from assaycut.model.crude import build_model
 
     pts = [(0, 20), (10, 90), (30, 180), (50, 290), (70, 410), (90, 560), (95, 620), (100, 700)]
-    m = build_model(load_assay(str(_curve_book(book, "TBP", "wt", pts))))
-    df = cut_table(m, default_cut_set())
-    assert df["vol_pct"].sum() == pytest.approx(100.0, abs=1e-9)
-    assert df["wt_pct"].sum() == pytest.approx(100.0, abs=1e-9)
-    assert "weight-basis curve" in m.methods["basis"]
+    for drop_cuts in (False, True):
+        path = _curve_book(book, "TBP", "wt", pts)
+        a = load_assay(str(path))
+        if drop_cuts:
+            a.narrow_cuts = None
+        m = build_model(a)
+        df = cut_table(m, _node_cuts([t for _, t in pts[1:-1]]))
+        diffs = np.diff([p for p, _ in pts[:-1]])
+        assert_wt = df["wt_pct"].to_numpy()
+        assert np.allclose(assert_wt[1:-1], diffs[1:], atol=1e-6), assert_wt
+        assert assert_wt[0] == pytest.approx(10.0, abs=1e-6)
+        assert df["vol_pct"].sum() == pytest.approx(100.0, abs=1e-9)
+        assert df["wt_pct"].sum() == pytest.approx(100.0, abs=1e-9)
+
+
+def test_heavy_weight_basis_curve_open_data_exact_at_nodes():
+    # A heavy crude's TBP on the wt basis as it appears in open assay data (5-70 wt %, API 10.9): cut at its
+    # node temperatures, the wt % yields equal the measured differences 10/20/20/50... (identity, 1e-6 wt %).
+    from assaycut.cutting.ideal import cut_table
+    from assaycut.model.assay import Assay, CurveData
+    from assaycut.model.crude import build_model
+    from assaycut.units import api_to_sg
+
+    w = np.array([5, 10, 20, 30, 40, 50, 60, 70.0])
+    t = np.array([239.85, 306.85, 395.85, 463.85, 519.85, 572.85, 625.85, 683.85])
+    m = build_model(Assay("heavy", float(api_to_sg(10.9)), [CurveData("TBP", "wt", w, t)]))
+    df = cut_table(m, _node_cuts(t[[1, 3, 5, 7]]))
+    assert np.allclose(df["wt_pct"].to_numpy()[:4], [10.0, 20.0, 20.0, 20.0], atol=1e-6)
+    assert np.allclose(m.wt_at_vol(m.curve.pct_at(t)), w, atol=1e-6)
 
 
 def test_vacuum_sheet_watson_k_row_applies_correction(book):
