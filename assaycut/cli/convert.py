@@ -35,7 +35,7 @@ class TUnit(str, enum.Enum):
 @app.command()
 @guarded
 def convert(
-    points: Annotated[Optional[list[str]], typer.Argument(help="PERCENT=TEMP pairs, e.g. 10=176.7 50=206.7",
+    points: Annotated[Optional[list[str]], typer.Argument(help="PERCENT=TEMP pairs, e.g. 10=176.7 30=193.3 50=206.7 70=222.8 90=242.8",
                                                           metavar="PERCENT=TEMP")] = None,
     frm: Annotated[FromMethod, typer.Option("--from", help="Method of the input curve.")] = FromMethod.D86,
     to: Annotated[ToMethod, typer.Option("--to", help="Method to convert to (AET for D1160 data).")] = ToMethod.TBP,
@@ -55,11 +55,12 @@ def convert(
     """Convert a distillation curve between methods by published correlations.
 
     TBP <-> D86 by Daubert 1994 (API TDB 3A1.1, default) or Riazi-Daubert 1986; D2887 -> TBP (API TDB
-    3A3.1) and D2887 -> D86 (3A3.2); D1160 at --pressure-mmhg -> AET (Maxwell-Bonnell, API TDB 5A1.19; with --watson-k, its Watson K
-    correction).
+    3A3.1, points 5-100 %) and D2887 -> D86 (3A3.2); D1160 at --pressure-mmhg -> AET (Maxwell-Bonnell,
+    API TDB 5A1.19, with its Watson K correction when --watson-k is given).
     Conversions carry errors of a few °C, largest at the initial point.
     """
     from ..methods.distillation import convert as do_convert
+    from ..methods.distillation import filled_inputs
     from ..units import c_to_f
 
     if file is not None and points:
@@ -75,13 +76,13 @@ def convert(
     if json_out:
         from ..report.jsonout import convert_json
 
-        echo_json(convert_json(frm.value, to.value, used, out, warnings))
+        echo_json(convert_json(frm.value, to.value, used, out, warnings, given=set(pts)))
     else:
         from ..report.console import convert_text
 
         fahrenheit = unit == TUnit.F
         echo_lines(convert_text(frm.value, to.value, used, pts, out, "°F" if fahrenheit else "°C",
-                                c_to_f if fahrenheit else (lambda x: x)))
+                                c_to_f if fahrenheit else (lambda x: x), filled_inputs(pts, frm.value, to.value)))
     for w in warnings:
         typer.echo(f"warning: {w}", err=True)
 

@@ -21,12 +21,13 @@ from typing import Mapping
 from ..errors import ConversionError
 from .segments import chain_mapping, normalise_points, power_step, require_points
 
-SD_STD = (0, 10, 30, 50, 70, 90, 95, 100)
-"""Standard ASTM D2887 points of API TDB 3A3.1 as used here. [wt %]"""
+SD_STD = (5, 10, 30, 50, 70, 90, 95, 100)
+"""Standard ASTM D2887 points of API TDB 3A3.1: its lowest segment is 5-10 % (the worked example converts a
+5 % point with the 0.15779/1.4296 pair), so the initial point is not converted. [wt %]"""
 
 SD_TBP_SEGMENTS = {(95, 100): (0.02172, 1.9733), (90, 95): (0.97476, 0.8723), (70, 90): (0.31531, 1.2938),
                    (50, 70): (0.19861, 1.3975), (30, 50): (0.05342, 1.6988), (10, 30): (0.011903, 2.0253),
-                   (0, 10): (0.15779, 1.4296)}
+                   (5, 10): (0.15779, 1.4296)}
 """TBP difference W = C * V**D, V the D2887 difference over the segment [°F] ([2] 3A3.1).  The 10-30 constant
 C = 0.011903 reproduces the API TDB 3A3.1 worked example (see :func:`d2887_to_tbp_api_3a3_1`)."""
 
@@ -47,7 +48,7 @@ def d2887_to_tbp_api_3a3_1(d2887: Mapping[float, float]) -> dict[float, float]:
     Parameters
     ----------
     d2887 : mapping
-        {percent [wt %]: D2887 temperature [°C]}; needs 50 and a contiguous run of 0/10/30/70/90/95/100.
+        {percent [wt %]: D2887 temperature [°C]}; needs 50 and a contiguous run of 5/10/30/70/90/95/100.
 
     Returns
     -------
@@ -67,13 +68,13 @@ def d2887_to_tbp_api_3a3_1(d2887: Mapping[float, float]) -> dict[float, float]:
     Examples
     --------
     The API TDB 3A3.1 worked example (known to us second-hand, not from the printed page): SD
-    305/324/336/344/359/369 °F at 10/30/50/70/90/95 % gives TBP 327.7/332.4/336.0/339.6/350.1/357.4 °F
-    (to 0.1 °F):
+    293/305/324/336/344/359/369 °F at 5/10/30/50/70/90/95 % gives TBP 322.2/327.7/332.4/336.0/339.6/350.1/357.4
+    °F (to 0.1 °F):
 
-    >>> sd = {p: (f - 32) / 1.8 for p, f in zip((10, 30, 50, 70, 90, 95), (305, 324, 336, 344, 359, 369))}
+    >>> sd = {p: (f - 32) / 1.8 for p, f in zip((5, 10, 30, 50, 70, 90, 95), (293, 305, 324, 336, 344, 359, 369))}
     >>> t = d2887_to_tbp_api_3a3_1(sd)
-    >>> [round(t[p] * 1.8 + 32, 1) for p in (10, 30, 50, 70, 90, 95)]
-    [327.7, 332.4, 336.0, 339.6, 350.1, 357.4]
+    >>> [round(t[p] * 1.8 + 32, 1) for p in (5, 10, 30, 50, 70, 90, 95)]
+    [322.2, 327.7, 332.4, 336.0, 339.6, 350.1, 357.4]
     """
     s = normalise_points(d2887)
     require_points(s, [50], "API TDB 3A3.1 D2887 -> TBP")

@@ -14,13 +14,14 @@ import numpy as np
 
 from ..errors import ConversionError
 from .d86 import (
+    D86_STD,
     d86_to_tbp_daubert_1994,
     d86_to_tbp_riazi_daubert_1986,
     tbp_to_d86_daubert_1994,
     tbp_to_d86_riazi_daubert_1986,
 )
 from .d1160 import vacuum_to_aet_maxwell_bonnell
-from .d2887 import d2887_to_d86_api_3a3_2, d2887_to_tbp_api_3a3_1
+from .d2887 import SD_D86_POINTS, SD_STD, d2887_to_d86_api_3a3_2, d2887_to_tbp_api_3a3_1
 from .segments import normalise_points
 
 METHODS = ("daubert-1994", "riazi-daubert-1986")
@@ -47,6 +48,47 @@ CONVERSIONS = {
     ("D2887", "D86", None): Conversion(d2887_to_d86_api_3a3_2, "api-tdb-3a3-2", (0.0, 540.0)),
 }
 """Every conversion :func:`convert` offers, by (from, to, TBP <-> D86 method or None)."""
+
+STANDARD_POINTS = {("D86", "TBP"): D86_STD, ("TBP", "D86"): D86_STD, ("D2887", "TBP"): SD_STD,
+                   ("D2887", "D86"): SD_D86_POINTS}
+"""The points each conversion is built on, by (from, to). [%]"""
+
+
+def fill_standard_points(points: Mapping[float, float], std) -> tuple[dict[float, float], list[float]]:
+    """Fill the standard points that lie between the given ones and are missing, by monotone (PCHIP)
+    interpolation through the given points (Fritsch & Carlson 1980, scipy.interpolate.PchipInterpolator), so
+    that a curve given at 10/50/90 % converts at every point given.
+
+    Parameters
+    ----------
+    points : mapping
+        {percent [%]: temperature [°C]}, sorted or not.
+    std : sequence of float
+        The method's standard points. [%]
+
+    Returns
+    -------
+    (dict, list of float)
+        All points (given and filled) sorted by percent, and the percents filled.
+
+    Examples
+    --------
+    >>> pts, filled = fill_standard_points({10: 176.7, 50: 206.7, 90: 242.8}, (0, 10, 30, 50, 70, 90, 95))
+    >>> filled, [round(pts[p], 1) for p in filled]
+    ([30.0, 70.0], [191.0, 224.0])
+    """
+    keys = sorted(points)
+    if len(keys) < 2:
+        return dict(sorted(points.items())), []
+    missing = [float(s) for s in std if keys[0] < s < keys[-1] and s not in points]
+    if not missing:
+        return dict(sorted(points.items())), []
+    from scipy.interpolate import PchipInterpolator
+
+    sp = PchipInterpolator(keys, [points[k] for k in keys])
+    out = dict(points)
+    out.update({s: float(sp(s)) for s in missing})
+    return dict(sorted(out.items())), missing
 
 
 def check_monotone(points: Mapping[float, float], label: str) -> list[str]:
@@ -97,6 +139,15 @@ def vacuum_warnings(pressure_mmhg: float) -> list[str]:
     return []
 
 
+def filled_inputs(points: Mapping[float, float], frm: str, to: str) -> dict[float, float]:
+    """The input points :func:`convert` fills for a (``frm``, ``to``) conversion, {percent: °C}; empty if none."""
+    std = STANDARD_POINTS.get((frm.upper(), to.upper()))
+    if std is None:
+        return {}
+    pts, filled = fill_standard_points(normalise_points(points), std)
+    return {p: pts[p] for p in filled}
+
+
 def convert(points: Mapping[float, float], frm: str, to: str, method: str = "daubert-1994",
             pressure_mmhg: float | None = None,
             watson_k: float | None = None) -> tuple[dict[float, float], str, list[str]]:
@@ -120,19 +171,28 @@ def convert(points: Mapping[float, float], frm: str, to: str, method: str = "dau
     Returns
     -------
     (dict, str, list of str)
-        The converted points {percent: temperature [°C]}, the method actually used, and warnings.
+        The converted points {percent: temperature [°C]}, the method actually used, and warnings.  Standard
+        points missing between the given ones are filled first (:func:`fill_standard_points`) and named in a
+        warning.
 
     Examples
     --------
-    Riazi MNL50 (2005) Table 3.8, the kerosene's D86 50 % point 206.7 °C is TBP 210.6 °C by Daubert 1994:
+    Riazi MNL50 (2005) Table 3.8, the kerosene's D86 50 % point 206.7 °C is TBP 210.6 °C by Daubert 1994
+    (published, to 0.1 °C; the code gives 210.70):
 
     >>> out, used, warnings = convert({50: 206.7}, "D86", "TBP")
-    >>> round(out[50], 1), used, warnings
-    (210.6, 'daubert-1994', [])
+    >>> round(out[50], 2), used, warnings
+    (210.7, 'daubert-1994', [])
     """
     frm, to = frm.upper(), to.upper()
     pts = normalise_points(points)
     warnings: list[str] = []
+    if (frm, to) in STANDARD_POINTS:
+        pts, filled = fill_standard_points(pts, STANDARD_POINTS[frm, to])
+        if filled:
+            warnings.append(f"{frm} point(s) {', '.join(f'{p:g} %' for p in filled)} were not given: filled by "
+                            f"monotone interpolation between the given points so that every given point "
+                            f"converts (the filled ones are estimates)")
     if frm == to or (frm == "TBP" and to == "AET"):
         return dict(sorted(pts.items())), "identity", warnings
     if frm == "D1160":

@@ -224,7 +224,7 @@ def interval_mean(spline, a, b):
 
     Examples
     --------
-    >>> float(interval_mean(Pchip([0.0, 10.0], [1.0, 3.0]), 0.0, 10.0))
+    >>> round(float(interval_mean(Pchip([0.0, 10.0], [1.0, 3.0]), 0.0, 10.0)), 12)
     2.0
     """
     a, b = np.asarray(a, dtype=float), np.asarray(b, dtype=float)

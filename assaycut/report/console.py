@@ -38,12 +38,21 @@ def check_text(name: str, findings, ok: bool) -> list[str]:
                                                            for f in findings]
 
 
-def convert_text(frm: str, to: str, used: str, src: dict, out: dict, unit: str, c_to_unit) -> list[str]:
-    """A converted curve: input and output temperature per percent, in ``unit`` ('°C' or '°F')."""
+def convert_text(frm: str, to: str, used: str, src: dict, out: dict, unit: str, c_to_unit,
+                 filled_src: dict | None = None) -> list[str]:
+    """A converted curve: input and output temperature per percent, in ``unit`` ('°C' or '°F'); inputs
+    interpolated between the given points (``filled_src``) are marked '*'."""
     lines = [f"{frm} -> {to} by {used}", f"{'percent':>8}  {frm + ' ' + unit:>12}  {to + ' ' + unit:>12}"]
+    filled = False
     for p, t in out.items():
         s = src.get(p)
-        lines.append(f"{p:8g}  {'' if s is None else f'{c_to_unit(s):.1f}':>12}  {c_to_unit(t):12.1f}")
+        if s is None and filled_src and p in filled_src:
+            s_txt, filled = f"{c_to_unit(filled_src[p]):.1f}*", True
+        else:
+            s_txt = "" if s is None else f"{c_to_unit(s):.1f}"
+        lines.append(f"{p:8g}  {s_txt:>12}  {c_to_unit(t):12.1f}")
+    if filled:
+        lines.append(f"* not given: interpolated (monotone) between the given {frm} points; an estimate")
     return lines
 
 

@@ -71,10 +71,12 @@ def check_json(findings, ok: bool) -> dict:
     return {"ok": ok, "findings": [dataclasses.asdict(f) for f in findings]}
 
 
-def convert_json(frm: str, to: str, used: str, out: dict, warnings: list[str]) -> dict:
-    """``assaycut convert --json``: temperatures rounded to 1e-4 °C."""
+def convert_json(frm: str, to: str, used: str, out: dict, warnings: list[str], given=None) -> dict:
+    """``assaycut convert --json``: temperatures rounded to 1e-4 °C; ``filled`` marks a point whose input was
+    interpolated between the given ones (``given``: the percents given; None = all)."""
     return {"from": frm, "to": to, "method": used,
-            "points": [{"percent": p, "temp_c": round(t, 4)} for p, t in out.items()], "warnings": warnings}
+            "points": [{"percent": p, "temp_c": round(t, 4), "filled": given is not None and p not in given}
+                       for p, t in out.items()], "warnings": warnings}
 
 
 def compare_json(results, worth, inside, caveat: str) -> dict:

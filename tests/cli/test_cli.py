@@ -180,6 +180,23 @@ def test_convert_points_and_json():
     assert set(d) == {"from", "to", "method", "points", "warnings"}
     p50 = next(p for p in d["points"] if p["percent"] == 50)
     assert abs(p50["temp_c"] - 210.6) < 0.2
+    assert not any(p["filled"] for p in d["points"])
+
+
+def test_convert_d86_given_at_10_50_90_converts_every_point():
+    # Riazi MNL50 Table 3.8 kerosene (Daubert 1994 column, printed to 0.1 °C): TBP 10/50/90 % = 158.1/210.6/258.1.
+    # Given only D86 10/50/90 (as on product certificates), the 30 and 70 % points are filled by monotone
+    # interpolation (191.0 and 224.0 °C against the measured 193.3 and 222.8), which moves TBP 10 and 90 % by
+    # up to 0.3 °C; hence 0.5 °C there, 0.2 °C at 50 % (which depends on D86 50 % alone).
+    r = runner.invoke(app, ["convert", "--from", "D86", "--to", "TBP", "--json", "10=176.7", "50=206.7", "90=242.8"])
+    assert r.exit_code == 0, r.stderr
+    d = json.loads(r.stdout)
+    got = {p["percent"]: p for p in d["points"]}
+    assert set(got) == {10, 30, 50, 70, 90}
+    assert [got[p]["filled"] for p in (10, 30, 50, 70, 90)] == [False, True, False, True, False]
+    assert abs(got[50]["temp_c"] - 210.6) < 0.2
+    assert abs(got[10]["temp_c"] - 158.1) < 0.5 and abs(got[90]["temp_c"] - 258.1) < 0.5
+    assert any("30 %, 70 % were not given" in w for w in d["warnings"])
 
 
 def test_convert_fahrenheit_and_d1160():

@@ -20,11 +20,20 @@ def test_boiling_point_and_molar_mass_match_chemicals(comp):
     assert comp.mw == pytest.approx(search_chemical(comp.cas).MW, abs=0.002)
 
 
-def test_liquid_gravities_gpa_2145():
-    # GPA Standard 2145 liquid SG at 60 °F (values recalled from memory).
-    expect = {"C3": 0.5070, "iC4": 0.5629, "nC4": 0.5840, "iC5": 0.6247, "nC5": 0.6311}
-    for key, sg in expect.items():
-        assert find_component(key).sg == sg
+@pytest.mark.parametrize("key", ["C2", "C3", "iC4", "nC4", "iC5", "nC5"])
+def test_liquid_gravities_against_chemicals(key):
+    # Outside source: saturated-liquid density at 60 °F from the `chemicals` library (VDI PPDS correlation,
+    # rho_data_VDI_PPDS_2), as SG 60/60 °F by chemicals.utils.SG.  Our table holds GPA 2145 values to 4
+    # decimals (recalled from memory); the saturated-liquid density differs from the GPA value by well under
+    # 0.001.  Methane is left out: it is supercritical at 60 °F, and its 0.3 is a conventional figure.
+    import chemicals.volume as vol
+    from chemicals.utils import SG
+
+    comp = find_component(key)
+    d = vol.rho_data_VDI_PPDS_2.loc[comp.cas]
+    tau = 1.0 - 288.7056 / d.Tc
+    rho = d.rhoc + d.A * tau ** 0.35 + d.B * tau ** (2 / 3) + d.C * tau + d.D * tau ** (4 / 3)
+    assert comp.sg == pytest.approx(SG(rho), abs=1e-3)
 
 
 def test_aliases():
