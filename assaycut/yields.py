@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 from .cutting.cutset import CutSet
 from .cutting.ideal import closure, cut_table
 from .cutting.limits import Limit, check_limits
+from .methods.product_properties import describe_ranges
 from .model.assay import Assay
 from .model.crude import CrudeModel, build_model
 
@@ -63,12 +64,20 @@ class YieldResult:
 
 METHOD_NOTES = {
     "cut points": "TBP cut points; each cut starts where the one before ends",
-    "d86": "cut D86 at 0/10/30/50/70/90/95 % from the cut's own TBP slice by Daubert 1994 (API TDB 3A1.1)",
-    "meabp": "MeABP from the cut's D86 by API TDB 2B1.1",
-    "watson_k": "Watson K from MeABP (from the TBP slice's VABP where the cut has no D86 estimate)",
-    "mw": "molecular weight by Riazi-Daubert 1987 (API TDB 2B2.1), only inside its range",
-    "cetane_index_d4737": "ASTM D4737 Procedure A, for cuts inside 150-400 °C TBP",
-    "flash_c_est": "closed-cup flash estimate from D86 10 % by API TDB 2B7.1, for cuts starting at 150 °C or above",
+    "d86": "cut D86 at 0/10/30/50/70/90/95 % from the cut's own TBP slice by Daubert 1994 (API TDB 3A1.1); "
+           "none for cuts ending at or below 40 °C (gases) or for the open last cut",
+    "vabp": "vabp_c: volume average of the cut's TBP curve; vabp_d86_c: D86 volume average (T10+T30+T50+T70+T90)/5 "
+            "of API TDB 2B1.1",
+    "meabp": "MeABP of the cut's own TBP curve taken as pseudo-components (CABP from volume fractions, MABP from "
+             "mole fractions with Riazi-Daubert 1987 MW, MeABP = (CABP + MABP)/2; 16 Gauss-Legendre nodes per "
+             "cut), the same for every cut",
+    "watson_k": "Watson K = MeABP[°R]^(1/3) / SG for every cut; the residue's rests on the fitted extension and "
+                "its lumped end point (flagged extrapolated)",
+    "mw": "molecular weight by Riazi-Daubert 1987 (API TDB 2B2.1) at (MeABP, SG), only inside its range",
+    "cetane_index_d4737": "ASTM D4737 Procedure A, where the cut's D86 and density lie in the method's scope ("
+                          + describe_ranges()["cetane_index_d4737"] + "); empty outside it",
+    "flash_c_est": "closed-cup flash estimate from D86 10 % by API TDB 2B7.1, where D86 10 % lies in its range ("
+                   + describe_ranges()["flash_c_est"] + "); empty outside it",
     "density_15c": "SG 60/60 °F to 15 °C by the API MPMS 11.1 crude-oil form (K0 from memory)",
 }
 
@@ -126,7 +135,8 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
 
 
 def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
-    """Warnings about the cuts: reaching into the extension, D86 estimates above 400 °C, empty cuts."""
+    """Warnings about the cuts: reaching into the extension, D86 estimates above 400 °C, empty cuts, estimates
+    left empty outside their method's range."""
     warnings = []
     ext = cuts.loc[cuts["extrapolated"], "name"].tolist()
     if ext:
@@ -139,6 +149,12 @@ def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
     empty = cuts.loc[cuts["vol_pct"] <= 1e-9, "name"].tolist()
     if empty:
         warnings.append(f"cut(s) {', '.join(empty)} have no yield: their qualities are left empty")
+    ranges = describe_ranges()
+    for col, what in (("cetane_index_d4737", "cetane index"), ("flash_c_est", "flash estimate")):
+        out = cuts.loc[cuts["d86_c"].notna() & cuts[col].isna(), "name"].tolist()
+        if out:
+            warnings.append(f"{what} left empty for {', '.join(out)}: the cut's D86 or density lies outside "
+                            f"the method's range ({ranges[col]})")
     return warnings
 
 

@@ -5,38 +5,43 @@ All cuts are evaluated together in a few numpy passes (no Python loop per cut or
 Per-cut results (one DataFrame row per cut):
 
 * ``vol_pct`` = V(end) - V(start); ``wt_pct`` = W(end) - W(start) with W(V) = ∫ SG dv / SG_crude;
-* ``mid_vol_c`` = T at the cut's mid-volume point; ``vabp_c`` = (1/ΔV) ∫ T dV over the cut;
-* ``d86_c`` at 0/10/30/50/70/90/95 % of the cut: the cut's own TBP slice converted by Daubert 1994;
-* ``meabp_c`` by API TDB 2B1.1 from that D86; ``watson_k`` from MeABP (from the slice's VABP where the cut
-  has no D86 estimate: light ends and the open last cut);
+* ``mid_vol_c`` = TBP at the cut's mid-volume point; ``vabp_c`` = (1/ΔV) ∫ T dV, the volume average of the
+  cut's **TBP** curve;
+* ``d86_c`` at 0/10/30/50/70/90/95 % of the cut: the cut's own TBP slice converted by Daubert 1994 (not for
+  cuts ending at or below 40 °C, nor for the open last cut); ``vabp_d86_c`` = the **D86** volume average
+  (T10 + T30 + T50 + T70 + T90)/5 of API TDB 2B1.1, for handbook methods that start from it;
+* ``meabp_c``: the mean average boiling point of the cut's own **TBP** curve taken as pseudo-components
+  (:func:`~assaycut.methods.characterisation.meabp_pseudo_components`, Gauss-Legendre nodes over the cut), the
+  one characterising boiling point of every cut; ``watson_k`` = MeABP[°R]^(1/3) / SG; ``mw`` by
+  Riazi-Daubert 1987 at (MeABP, SG) within its range;
 * ``sg`` = (1/ΔV) ∫ SG dv; ``api``; ``density_15c_kg_m3``;
 * ``sulfur_wt_pct`` = (1/ΔW) ∫ S dw; ``sulfur_share_pct`` = S_cut · wt_pct / S_crude;
-* ``mw`` by Riazi-Daubert 1987 within its range;
-* ``cetane_index_d4737`` for middle distillates (cut within 150-400 °C TBP);
-* ``flash_c_est`` by API TDB 2B7.1 for cuts starting at 150 °C or above (kerosene and heavier);
-* ``extrapolated`` where the cut reaches into the curve's extension.
+* ``cetane_index_d4737`` where the cut's own D86 and density lie inside the method's stated scope
+  (:data:`~assaycut.methods.product_properties.CCI_RANGE`), else empty (the report names those cuts);
+* ``flash_c_est`` by API TDB 2B7.1 where the cut's D86 10 % lies inside its range, else empty (named);
+* ``extrapolated`` where the cut depends on the curve's extension.
 """
 
 from __future__ import annotations
 
 import numpy as np
 
-from ..methods.characterisation import average_boiling_points_api_2b1_1, mw_in_range, mw_riazi_daubert_1987, watson_k
+from ..methods.characterisation import meabp_pseudo_components, mw_in_range, mw_riazi_daubert_1987, watson_k
 from ..methods.d86 import D86_STD, tbp_to_d86_daubert_1994_array
-from ..methods.product_properties import cetane_index_d4737, flash_point_api_2b7_1
+from ..methods.product_properties import cci_in_range, cetane_index_d4737, flash_in_range, flash_point_api_2b7_1
 from ..model.crude import CrudeModel
 from ..units import sg_to_api, sg_to_density15
 from .cutset import CutSet
 
-MIDDLE_DISTILLATE_C = (150.0, 400.0)
-"""TBP window of a middle distillate, for the cetane index: the cut must lie inside it. [°C]"""
-FLASH_FROM_C = 150.0
-"""Cuts starting at or above this TBP (kerosene and heavier) get a flash point estimate. [°C]"""
 LIGHT_ENDS_MAX_C = 40.0
-"""Cuts ending at or below this TBP are light ends: no D86 is estimated for them. [°C]"""
+"""Cuts ending at or below this TBP are light ends: no D86 is estimated for them (D86 does not apply to
+gases). [°C]"""
+GAUSS_NODES = 16
+"""Gauss-Legendre nodes per cut for the pseudo-component MeABP (exact for polynomials of degree 31)."""
+_GL_X, _GL_W = np.polynomial.legendre.leggauss(GAUSS_NODES)
 
 CUT_COLUMNS = ["name", "start_c", "end_c", "vol_pct", "wt_pct", "cum_vol_pct", "cum_wt_pct", "mid_vol_c",
-               "vabp_c", "meabp_c", "sg", "api", "density_15c_kg_m3", "watson_k", "sulfur_wt_pct",
+               "vabp_c", "vabp_d86_c", "meabp_c", "sg", "api", "density_15c_kg_m3", "watson_k", "sulfur_wt_pct",
                "sulfur_share_pct", "mw", "d86_c", "cetane_index_d4737", "flash_c_est", "extrapolated"]
 
 
@@ -103,14 +108,16 @@ def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
     slice_v = va[..., None] + fr * vol[..., None]
     tbp = curve.temp_at(slice_v)
     s_crude = np.nan if model.sulfur_wt_pct is None else model.sulfur_wt_pct
+    nodes = 0.5 * (va + vb)[..., None] + 0.5 * vol[..., None] * _GL_X
+    meabp = meabp_pseudo_components(curve.temp_at(nodes), model.sg_dist(nodes), _GL_W)
     out = {"start_c": t_start, "end_c": t_end, "vol_pct": vol, "wt_pct": wt, "cum_vol_pct": vb, "cum_wt_pct": wb,
            "mid_vol_c": mid_vol_c}
-    out.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude))
+    out.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp))
     out["extrapolated"] = curve.is_extrapolated(va, vb) & (vol > 1e-9)
     return out
 
 
-def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude) -> dict[str, np.ndarray]:
+def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp) -> dict[str, np.ndarray]:
     """Qualities that follow from a cut's yields, mean properties and TBP slice, for ideal cuts and real
     products alike (the correlations named in the module docstring).
 
@@ -126,12 +133,14 @@ def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude) ->
         The cut's own TBP at 0/10/30/50/70/90/95 % (last axis of 7). [°C]
     s_crude : float or numpy.ndarray
         Whole-crude sulfur (NaN when unknown). [wt %]
+    meabp : numpy.ndarray
+        The cut's pseudo-component MeABP from its TBP curve. [°C]
 
     Returns
     -------
     dict of str to numpy.ndarray
-        vabp_c, meabp_c, sg, api, density_15c_kg_m3, watson_k, sulfur_wt_pct, sulfur_share_pct, mw, d86,
-        cetane_index_d4737, flash_c_est (empty cuts give NaN, a zero sulfur share).
+        vabp_c, vabp_d86_c, meabp_c, sg, api, density_15c_kg_m3, watson_k, sulfur_wt_pct, sulfur_share_pct,
+        mw, d86, cetane_index_d4737, flash_c_est (empty cuts give NaN, a zero sulfur share).
     """
     shape = vol.shape
     has_d86 = np.isfinite(t_end) & ~(t_end <= LIGHT_ENDS_MAX_C) & (vol > 1e-9)
@@ -139,22 +148,20 @@ def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude) ->
     # cut of negative volume, whose falling TBP slice the conversion would refuse
     slices = np.where(has_d86[..., None], tbp, np.nan)
     d86 = tbp_to_d86_daubert_1994_array(slices.reshape(-1, 7)).reshape(shape + (7,))
-    abp = average_boiling_points_api_2b1_1(np.where(has_d86[..., None], d86, 100.0)[..., 1:6])
-    meabp = np.where(has_d86, abp["meabp"], np.nan)
-    kw = watson_k(np.where(has_d86, meabp, vabp), sg)
-    tb_mw = np.where(has_d86, meabp, vabp)
-    mw = np.where(mw_in_range(tb_mw, sg), mw_riazi_daubert_1987(tb_mw, sg), np.nan)
+    vabp_d86 = np.where(has_d86, d86[..., 1:6].mean(axis=-1), np.nan)
+    with np.errstate(invalid="ignore"):
+        kw = watson_k(meabp, sg)
+        mw = np.where(mw_in_range(meabp, sg), mw_riazi_daubert_1987(meabp, sg), np.nan)
     dens15 = sg_to_density15(sg)
-    mid_dist = (np.nan_to_num(t_start, nan=-np.inf) >= MIDDLE_DISTILLATE_C[0]) & \
-               (np.nan_to_num(t_end, nan=np.inf) <= MIDDLE_DISTILLATE_C[1]) & has_d86
-    cci = np.where(mid_dist, cetane_index_d4737(d86[..., 1], d86[..., 3], d86[..., 5], dens15 / 1000.0), np.nan)
-    flash_ok = (np.nan_to_num(t_start, nan=-np.inf) >= FLASH_FROM_C) & has_d86
+    cci_ok = has_d86 & cci_in_range(d86[..., 1], d86[..., 3], d86[..., 5], dens15)
+    cci = np.where(cci_ok, cetane_index_d4737(d86[..., 1], d86[..., 3], d86[..., 5], dens15 / 1000.0), np.nan)
+    flash_ok = has_d86 & flash_in_range(d86[..., 1])
     flash = np.where(flash_ok, flash_point_api_2b7_1(d86[..., 1]), np.nan)
     with np.errstate(invalid="ignore", divide="ignore"):
         share = sulfur * wt / s_crude
     some = vol > 1e-9
     return {
-        "vabp_c": np.where(some, vabp, np.nan), "meabp_c": meabp, "sg": np.where(some, sg, np.nan),
+        "vabp_c": np.where(some, vabp, np.nan), "vabp_d86_c": vabp_d86, "meabp_c": np.where(some, meabp, np.nan), "sg": np.where(some, sg, np.nan),
         "api": np.where(some, sg_to_api(sg), np.nan), "density_15c_kg_m3": np.where(some, dens15, np.nan),
         "watson_k": np.where(some, kw, np.nan), "sulfur_wt_pct": np.where(some, sulfur, np.nan),
         "sulfur_share_pct": np.where(some, share, 0.0), "mw": np.where(some, mw, np.nan), "d86": d86,

@@ -25,6 +25,7 @@ from ..errors import CutSetError
 from ..methods.d86 import D86_STD
 from ..model.crude import CrudeModel
 from .cutset import CutSet
+from ..methods.characterisation import meabp_pseudo_components
 from .ideal import columns_frame, derive_qualities
 
 Z95 = 1.6448536269514722
@@ -153,7 +154,9 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     s_crude = np.nan if model.sulfur_wt_pct is None else model.sulfur_wt_pct
     cols = {"start_c": t_start, "end_c": t_end, "vol_pct": vol, "wt_pct": wt, "cum_vol_pct": np.cumsum(vol),
             "cum_wt_pct": np.cumsum(wt), "mid_vol_c": np.where(vol > 1e-9, mid, np.nan)}
-    cols.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        meabp = meabp_pseudo_components(t_mean, mass / dv, (f * dv[:, None]).T)
+    cols.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp))
     reach = (f * dv[:, None] > 1e-9 * dv.sum())
     lo, hi = curve.measured_lo, curve.measured_hi
     out_of_range = ((va < lo - 1e-9) | (vb > hi + 1e-9))[:, None]

@@ -42,8 +42,8 @@ def cetane_index_d4737(t10_c, t50_c, t90_c, density15_g_ml):
 
     Notes
     -----
-    Valid range: Procedure A applies to diesel fuels of D86 T90 roughly 282-380 °C; the standard states the
-    ranges of each variable [1]_.
+    Valid range: :data:`CCI_RANGE` (the scope the standard states for each variable [1]_, recalled from
+    memory); :func:`cci_in_range` tests it.
 
     References
     ----------
@@ -99,3 +99,34 @@ def flash_point_api_2b7_1(t10_c):
     66.8
     """
     return as_scalar(f_to_c(0.69 * c_to_f(t10_c) - 118.2))
+
+
+CCI_RANGE = {"D86 10 %": (171.0, 259.0), "D86 50 %": (212.0, 308.0), "D86 90 %": (251.0, 363.0),
+             "density at 15 °C": (805.0, 895.0)}
+"""Scope of the four-variable cetane index as ISO 4264 states it (D86 recoveries [°C], density [kg/m³]); recalled
+from memory, not read from the current edition: confirm it."""
+
+FLASH_T10_RANGE_C = (f_to_c(150.0), f_to_c(850.0))
+"""D86 10 % range of API TDB 2B7.1, 150-850 °F (recalled from memory). [°C]"""
+
+
+def cci_in_range(t10_c, t50_c, t90_c, density15_kg_m3):
+    """Whether D86 10/50/90 % [°C] and density at 15 °C [kg/m³] lie inside :data:`CCI_RANGE` (bool array)."""
+    ok = np.ones(np.broadcast(np.asarray(t10_c), np.asarray(density15_kg_m3)).shape, dtype=bool)
+    for x, (lo, hi) in zip((t10_c, t50_c, t90_c, density15_kg_m3), CCI_RANGE.values()):
+        ok &= (np.asarray(x) >= lo) & (np.asarray(x) <= hi)
+    return ok
+
+
+def flash_in_range(t10_c):
+    """Whether a D86 10 % point [°C] lies inside :data:`FLASH_T10_RANGE_C` (bool array)."""
+    t = np.asarray(t10_c, dtype=float)
+    return (t >= FLASH_T10_RANGE_C[0]) & (t <= FLASH_T10_RANGE_C[1])
+
+
+def describe_ranges() -> dict[str, str]:
+    """The validity ranges above as text, for method notes and warnings, by output column."""
+    cci = ", ".join(f"{k} {lo:g}-{hi:g} {'kg/m³' if 'density' in k else '°C'}" for k, (lo, hi) in CCI_RANGE.items())
+    lo, hi = FLASH_T10_RANGE_C
+    return {"cetane_index_d4737": f"ISO 4264 scope, recalled from memory: {cci}",
+            "flash_c_est": f"API TDB 2B7.1, D86 10 % {lo:.0f}-{hi:.0f} °C (150-850 °F, recalled from memory)"}

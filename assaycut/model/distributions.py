@@ -8,6 +8,7 @@ import numpy as np
 
 from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
 from .assay import Assay
+from .lightends import GAS_RANGE_MAX_C, gas_range_sg
 from .spline import Pchip, pchip_slopes, segment_antiderivative, segment_integrals
 from .tbp_curve import TbpCurve
 
@@ -101,13 +102,19 @@ def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):
     return means
 
 
+_GAS_NOTE = ("; no light-ends analysis: the curve below n-pentane's boiling point (36.1 °C) is given the SG of the "
+             "C2-C5 paraffins boiling at the same temperature (assumed)")
+
+
 def density_distribution(assay: Assay, curve: TbpCurve, le_mids, warnings: list[str]):
     """SG against vol % distilled, reconciled to the whole-crude SG.
 
     From the narrow-cut densities (:func:`property_spline` against mid-volume %, light-ends components
     held at their own SG) where at least two cuts have one; else at constant Watson K fitted to the
     whole-crude gravity, SG = (1.8 T_b[K])^(1/3)/Kw along the curve (Watson & Nelson 1933; common
-    practice, no single source), light ends at their own SG.  Either way the distribution is scaled so
+    practice, no single source), light ends at their own SG.  Without a light-ends analysis the part of the
+    curve boiling below n-pentane takes the SG of the paraffins of the same boiling point
+    (:func:`~assaycut.model.lightends.gas_range_sg`, assumed) where no narrow cut covers it.  Either way the distribution is scaled so
     that the whole crude integrates to its SG.
 
     Parameters
@@ -126,12 +133,20 @@ def density_distribution(assay: Assay, curve: TbpCurve, le_mids, warnings: list[
         Watson K [-] (None with narrow-cut densities).
     """
     nc = assay.narrow_cuts
+    gas_v = np.array([])
+    if not le_mids and curve.temp_at(0.0) < GAS_RANGE_MAX_C:
+        v_top = float(curve.pct_at(GAS_RANGE_MAX_C))
+        gas_v = np.linspace(0.0, v_top, 9)[:-1] + v_top / 16.0
     if nc is not None and np.isfinite(nc.sg).sum() >= 2:
         va, vb = narrow_cut_positions(assay, curve)
         ok = np.isfinite(nc.sg) & (vb > va)
         first = float(va[ok].min()) if ok.any() else 0.0
-        raw = property_spline(va[ok], vb[ok], nc.sg[ok], [(m, g) for m, g in le_mids if m < first])
+        gas = [(float(m), float(g)) for m, g in zip(gas_v, gas_range_sg(curve.temp_at(gas_v))) if m < first] \
+            if gas_v.size else []
+        raw = property_spline(va[ok], vb[ok], nc.sg[ok], [(m, g) for m, g in le_mids if m < first] + gas)
         source = "narrow-cut densities (monotone spline against mid-volume %, matching each cut's mean)"
+        if gas:
+            source += _GAS_NOTE
         kw = None
     else:
         if nc is not None:
@@ -147,11 +162,20 @@ def density_distribution(assay: Assay, curve: TbpCurve, le_mids, warnings: list[
             lm = np.array([m for m, _ in le_mids])
             lg = np.array([g for _, g in le_mids])
             le_sg = lg[np.clip(np.searchsorted(lm, mids), 0, lm.size - 1)]
+        elif gas_v.size:
+            le_sg = gas_range_sg(t_mids)
+            fixed = np.isfinite(le_sg)
         dv = 0.5
         fixed_mass = float((le_sg[fixed] * dv).sum()) if fixed.any() else 0.0
         kw = float((cbrt[~fixed] * dv).sum() / (100.0 * assay.sg - fixed_mass))
         raw = Pchip(mids, np.where(fixed, le_sg, sg_from_watson_k(t_mids, kw)))
         source = f"constant Watson K {kw:.2f} fitted to the whole-crude gravity (no narrow-cut densities)"
+        if gas_v.size:
+            source += _GAS_NOTE
+    if source.endswith(_GAS_NOTE):
+        warnings.append("no light-ends analysis: the gravity of the crude boiling below 36.1 °C (n-pentane) is "
+                        "assumed from the C2-C5 paraffins boiling at the same temperature; give a light-ends "
+                        "analysis for measured values")
     factor = 100.0 * assay.sg / raw.integral(0.0, 100.0)
     return Pchip(raw.x, raw.y * factor), (factor - 1.0) * 100.0, source, kw
 

@@ -103,3 +103,38 @@ def convert_basis(amount_pct: float, frm: str, to: str, component_sg: float, cru
 def known_labels() -> str:
     """Comma-separated list of the keys accepted in a light-ends table."""
     return ", ".join(c.key for c in COMPONENTS)
+
+
+GAS_RANGE_MAX_C = COMPONENTS[-1].nbp_c
+"""Top of the gas range for curves without a light-ends analysis: the boiling point of n-pentane. [°C]"""
+
+
+def gas_range_sg(temp_c):
+    """Assumed SG 60/60 °F of crude boiling in the gas range when no light-ends analysis is given.
+
+    The material boiling at T (below n-pentane's 36.06 °C) is taken as the C2-C5 paraffins of the same
+    boiling point: SG linear in boiling point between the pure components of :data:`COMPONENTS` (GPA 2145
+    values), held at ethane's below it.  Our assumption (common practice, no source): a crude's light ends are
+    mostly these paraffins.
+
+    Parameters
+    ----------
+    temp_c : array_like
+        TBP. [°C]
+
+    Returns
+    -------
+    numpy.ndarray
+        SG [-]; NaN at and above :data:`GAS_RANGE_MAX_C`.
+
+    Examples
+    --------
+    >>> [round(float(x), 4) for x in gas_range_sg([-0.5, 36.0])]
+    [0.584, 0.6311]
+    """
+    import numpy as np
+
+    comps = [c for c in COMPONENTS if c.key != "C1"]
+    t = np.asarray(temp_c, dtype=float)
+    sg = np.interp(t, [c.nbp_c for c in comps], [c.sg for c in comps])
+    return np.where(t < GAS_RANGE_MAX_C, sg, np.nan)
