@@ -60,3 +60,18 @@ def test_report_and_optimiser_read_the_same_values():
     assert table["status"].tolist() == ["pass", "fail", "fail", "pass"]
     # np.interp by hand: 250 °C lies 20/40 of the way from 230 (10 %) to 270 (30 %): 20 %; 350 °C: 83.33 %
     assert table["value"].tolist()[:3] == pytest.approx([20.0, 83.33333333, 375.0])
+
+
+def test_every_shipped_limit_is_evaluable_on_the_demo_crudes(demo_paths):
+    # A shipped limit that can never be evaluated would show "n/a" for every crude (common practice, no
+    # source: a default check must be able to pass or fail).
+    from assaycut.cutting.cutset import default_cut_set
+    from assaycut.io import load_assay
+    from assaycut.io.tomlfiles import read_limits
+    from assaycut.yields import run_yields
+
+    limits = read_limits(None)
+    assert limits
+    for p in demo_paths:
+        res = run_yields(load_assay(p), default_cut_set(), limits)
+        assert (res.limits["status"] != "n/a").all(), res.limits.loc[res.limits["status"] == "n/a", "label"].tolist()
