@@ -139,9 +139,13 @@ def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
     left empty outside their method's range."""
     warnings = []
     ext = cuts.loc[cuts["extrapolated"], "name"].tolist()
-    if ext:
-        warnings.append(f"cut(s) {', '.join(ext)} reach beyond the measured curve ({model.curve.measured_hi:g} "
-                        f"vol %): their qualities depend on the fitted extension")
+    c = model.curve
+    if model.all_on_extension:
+        warnings.append(f"every cut is flagged extrapolated: {model.all_on_extension}")
+    elif ext:
+        where = f"above {c.safe_hi:g} vol %" + (f" or below {c.safe_lo:g} vol %" if c.safe_lo > 0 else "")
+        warnings.append(f"cut(s) {', '.join(ext)} depend on the fitted extension (they reach {where}, where the "
+                        f"curve is fitted or shaped by the fit; measured to {c.measured_hi:g} vol %)")
     hot = [r["name"] for r in cuts.to_dict("records") if r["d86_c"] and max(r["d86_c"].values()) > 400.0]
     if hot:
         warnings.append(f"the D86 estimate of {', '.join(hot)} goes above 400 °C, beyond the data behind "

@@ -113,8 +113,15 @@ def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
     out = {"start_c": t_start, "end_c": t_end, "vol_pct": vol, "wt_pct": wt, "cum_vol_pct": vb, "cum_wt_pct": wb,
            "mid_vol_c": mid_vol_c}
     out.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp))
-    out["extrapolated"] = curve.is_extrapolated(va, vb) & (vol > 1e-9)
+    out["extrapolated"] = (curve.is_extrapolated(va, vb) | _all_flag(model, vol)) & (vol > 1e-9)
     return out
+
+
+def _all_flag(model, like) -> np.ndarray:
+    """True for every cut of a model whose distributions depend on the extension (row-wise for a batch)."""
+    flag = np.asarray(model.all_on_extension != "" if isinstance(model.all_on_extension, str)
+                      else model.all_on_extension, dtype=bool)
+    return np.broadcast_to(flag.reshape((-1,) + (1,) * (np.ndim(like) - 1)) if flag.ndim else flag, np.shape(like))
 
 
 def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp) -> dict[str, np.ndarray]:

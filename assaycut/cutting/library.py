@@ -125,8 +125,8 @@ class BatchCurve:
 
     def __init__(self, models: list[CrudeModel]):
         self.spline = BatchPchip([m.curve.spline for m in models])
-        self.measured_lo = np.array([m.curve.measured_lo for m in models])[:, None]
-        self.measured_hi = np.array([m.curve.measured_hi for m in models])[:, None]
+        self.safe_lo = np.array([m.curve.safe_lo for m in models])[:, None]
+        self.safe_hi = np.array([m.curve.safe_hi for m in models])[:, None]
 
     def pct_at(self, temp_c):
         return self.spline(temp_c)
@@ -137,8 +137,8 @@ class BatchCurve:
     mean_temp = TbpCurve.mean_temp  # same formula; works row-wise through temp_at and spline.integral
 
     def is_extrapolated(self, pct_a, pct_b):
-        lo = self.measured_lo.reshape((-1,) + (1,) * (np.ndim(pct_a) - 1))
-        hi = self.measured_hi.reshape((-1,) + (1,) * (np.ndim(pct_b) - 1))
+        lo = self.safe_lo.reshape((-1,) + (1,) * (np.ndim(pct_a) - 1))
+        hi = self.safe_hi.reshape((-1,) + (1,) * (np.ndim(pct_b) - 1))
         return (np.asarray(pct_b) > hi + 1e-9) | (np.asarray(pct_a) < lo - 1e-9)
 
 
@@ -154,6 +154,7 @@ class BatchModel:
         self.sulfur_wt_pct = np.array([np.nan if m.sulfur_wt_pct is None else m.sulfur_wt_pct
                                        for m in models])[:, None]
         self._a0 = self.sg_dist.antiderivative(np.zeros((self.n, 1)))
+        self.all_on_extension = np.array([m.all_on_extension != "" for m in models])
 
     def _col(self, arr, like):
         return arr.reshape((-1,) + (1,) * (np.ndim(like) - 1))

@@ -158,9 +158,8 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
         meabp = meabp_pseudo_components(t_mean, mass / dv, (f * dv[:, None]).T)
     cols.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp))
     reach = (f * dv[:, None] > 1e-9 * dv.sum())
-    lo, hi = curve.measured_lo, curve.measured_hi
-    out_of_range = ((va < lo - 1e-9) | (vb > hi + 1e-9))[:, None]
-    cols["extrapolated"] = np.any(reach & out_of_range, axis=0) & (vol > 1e-9)
+    out_of_range = curve.is_extrapolated(va, vb)[:, None]
+    cols["extrapolated"] = (np.any(reach & out_of_range, axis=0) | bool(model.all_on_extension)) & (vol > 1e-9)
     curves = {"temp_c": t_edges, "crude_pct": np.concatenate([[va[0]], vb]), "fractions": f, "cum": cum_pct,
               "slice_temp_c": t_mean, "slice_pct": dv}
     return columns_frame(names, cols), curves

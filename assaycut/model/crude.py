@@ -53,6 +53,9 @@ class CrudeModel:
         'narrow cuts' or 'constant Watson K'.
     watson_k_fit : float or None
         Watson K fitted to the whole-crude SG when density comes from constant Watson K. [-]
+    all_on_extension : str
+        Why every cut's gravity (and what follows from it: weight yields, Watson K, sulfur, estimates) depends
+        on the curve's fitted extension; empty when it does not (:func:`_properties_on_extension`).
     methods : dict
     warnings : list of str
     """
@@ -66,6 +69,7 @@ class CrudeModel:
     sulfur_reconciliation_pct: float | None
     density_source: str
     watson_k_fit: float | None = None
+    all_on_extension: str = ""
     methods: dict[str, str] = field(default_factory=dict)
     warnings: list[str] = field(default_factory=list)
 
@@ -167,9 +171,36 @@ def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str]) -> Cr
     methods["density"] = (f"{dens_src}; scaled by {dens_rec:+.2f} % to reproduce the whole-crude SG "
                           f"{assay.sg:.4f}")
     model = CrudeModel(curve, sg_dist, None, assay.sg, assay.sulfur_wt_pct, dens_rec, None, dens_src,
-                       kw_fit, methods, warnings)
+                       kw_fit, _properties_on_extension(assay, curve, kw_fit), methods, warnings)
     sulfur_distribution(model, assay, le_mids)
     return model
+
+
+def _properties_on_extension(assay: Assay, curve: TbpCurve, kw_fit: float | None) -> str:
+    """Why the density and sulfur distributions, hence every cut's gravity, depend on the fitted extension;
+    '' when they do not.
+
+    They do when the curve is extended and either the density comes from one Watson K fitted to the whole-crude
+    gravity over the whole curve, or a narrow cut's boundary lies where the curve depends on the extension and
+    not on a measured point (its position on the curve, hence the distributions through their whole-crude
+    reconciliation, then moves with the extension).
+    """
+    if curve.fit is None:
+        return ""
+    if kw_fit is not None:
+        return ("without narrow-cut densities, every cut's gravity comes from one Watson K fitted to the "
+                "whole-crude gravity over the whole curve, its fitted extension included")
+    nc = assay.narrow_cuts
+    if nc is None:
+        return ""
+    lo, hi = (float(curve.temp_at(curve.safe_lo)), float(curve.temp_at(curve.safe_hi)))
+    bounds = np.concatenate([nc.start_c, nc.end_c])
+    at_node = np.isclose(bounds[:, None], curve.measured_temp_c[None, :], rtol=0.0, atol=1e-9).any(axis=1)
+    out = bounds[np.isfinite(bounds) & ((bounds > hi + 1e-9) | (bounds < lo - 1e-9)) & ~at_node]
+    if out.size:
+        return (f"narrow-cut boundaries at {', '.join(f'{b:g}' for b in np.unique(out))} °C lie where the curve "
+                f"depends on its fitted extension, so the density and sulfur distributions move with it")
+    return ""
 
 
 def _tbp_points(assay: Assay, method: str, warnings: list[str], methods: dict[str, str]):

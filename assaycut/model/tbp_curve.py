@@ -57,6 +57,21 @@ class TbpCurve:
     light_ends_pct: float = 0.0
     first_measured_c: float = float("nan")
     """Temperature of the first measured point, light ends not counted. [°C]"""
+    safe_lo: float = 0.0
+    safe_hi: float = 100.0
+    """The vol % range where the curve does not depend on its extensions: the PCHIP's slope at the last
+    (first) measured node comes from the extension, so the last (first) measured interval depends on it as
+    well as the extension itself. [vol %]"""
+    lumped_pct: float = 0.0
+    """Share of the crude lumped up to the capped end point (:data:`END_CAP_C`). [vol %]"""
+    measured_pct: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    measured_temp_c: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    """The measured points the curve was built on (light ends not included). [vol %], [°C]"""
+
+    @property
+    def extrapolated_pct(self) -> float:
+        """Share of the crude whose TBP comes from the fitted extension, front and back. [vol %]"""
+        return (100.0 - self.measured_hi) + self.measured_lo
 
     @property
     def ibp_c(self) -> float:
@@ -91,8 +106,9 @@ class TbpCurve:
             return np.where(width > 1e-12, area / np.where(width > 1e-12, width, 1.0), ta)
 
     def is_extrapolated(self, pct_a, pct_b):
-        """True where [pct_a, pct_b] reaches outside the measured range."""
-        return (np.asarray(pct_b) > self.measured_hi + 1e-9) | (np.asarray(pct_a) < self.measured_lo - 1e-9)
+        """True where [pct_a, pct_b] depends on the extension: it reaches outside :attr:`safe_lo` -
+        :attr:`safe_hi` (the measured range less its end intervals when those are extended)."""
+        return (np.asarray(pct_b) > self.safe_hi + 1e-9) | (np.asarray(pct_a) < self.safe_lo - 1e-9)
 
 
 def staircase(nbps_c, cum_pcts):
@@ -156,8 +172,9 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> TbpCurve:
                             f"points by {fit.rms_c:.1f} °C RMS (above {POOR_FIT_RMS_C:g} °C): extrapolated "
                             f"values are uncertain")
     tt, vv = [t], [v]
+    lumped = 0.0
     if need_tail:
-        tx, vx = _tail_extension(v, t, fit, warnings)
+        tx, vx, lumped = _tail_extension(v, t, fit, warnings)
         tt.append(tx)
         vv.append(vx)
     if need_front:
@@ -175,7 +192,10 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> TbpCurve:
     if np.any(np.diff(T) <= 0):
         raise CurveError("the curve's extension does not join the measured points monotonically; "
                          "check the last points of the curve")
-    return TbpCurve(Pchip(T, V), measured_lo, measured_hi, fit, warnings, le_pct, float(t[0]))
+    safe_lo = float(v[1]) if need_front else measured_lo
+    safe_hi = float(v[-2]) if need_tail else measured_hi
+    return TbpCurve(Pchip(T, V), measured_lo, measured_hi, fit, warnings, le_pct, float(t[0]), safe_lo, safe_hi,
+                    lumped, v.copy(), t.copy())
 
 
 def _checked_points(percent, temp_c) -> tuple[np.ndarray, np.ndarray]:
@@ -221,7 +241,8 @@ def _place_light_ends(v, t, front_t, front_v, warnings: list[str]):
             warnings.append(f"the light ends add up to {fv[-1]:.3f} vol %, the first measured point is "
                             f"{v[0]:g} %; the light-ends volumes are scaled by "
                             f"{(v[0] / fv[-1] - 1) * 100:+.2f} % to meet it")
-        return ft, fv * (v[0] / fv[-1])
+        # scaled to meet the first point exactly (rounding must not leave a node above it)
+        return ft, np.minimum(fv * (v[0] / fv[-1]), v[0])
     if fv[-1] > v[0] + 1e-9 or ft[-1] >= t[0]:
         warnings.append(f"the light ends ({fv[-1]:.2f} vol % up to {ft[-1]:.1f} °C) do not fit before the "
                         f"first measured point ({v[0]:g} % at {t[0]:.1f} °C); not placed on the curve, and "
@@ -232,7 +253,8 @@ def _place_light_ends(v, t, front_t, front_v, warnings: list[str]):
 
 def _tail_extension(v, t, fit: RiaziFit, warnings: list[str]):
     """Nodes (T, V) past the last measured point: the fitted distribution shifted to meet it, up to its
-    :data:`END_FRACTION` point, capped at :data:`END_CAP_C` (the residue above is lumped at the cap)."""
+    :data:`END_FRACTION` point, capped at :data:`END_CAP_C` (the residue above is lumped at the cap), and the
+    lumped share [vol %]."""
     x_last = v[-1] / 100.0
     z = np.linspace(np.log(1 / (1 - x_last)), np.log(1 / (1 - END_FRACTION)), 40)[1:]
     xs = 1.0 - np.exp(-z)
@@ -244,10 +266,12 @@ def _tail_extension(v, t, fit: RiaziFit, warnings: list[str]):
     under = np.isfinite(tx) & (tx < cap)
     tx = np.concatenate([tx[under][:-1], [cap if not under.all() else tx[-1]]])
     vx = np.concatenate([vx[under][:-1], [100.0]])
+    lumped = 0.0
     if not under.all():
+        lumped = 100.0 - 100.0 * float(xs[~under][0])
         warnings.append(f"the fitted extension passes {cap:.0f} °C at {100.0 * xs[~under][0]:.1f} vol %; the "
                         f"material above is lumped up to an end point of {cap:.0f} °C")
-    return tx, vx
+    return tx, vx, lumped
 
 
 def _front_extension(v, t, fit: RiaziFit):
@@ -255,3 +279,49 @@ def _front_extension(v, t, fit: RiaziFit):
     x_first = v[0] / 100.0
     xs = np.linspace(0.0, x_first, 12)[:-1]
     return fit.temp_c(xs) + t[0] - fit.temp_c(x_first), 100.0 * xs
+
+
+BAND_LAST_POINTS = (4, 5, 6)
+"""Numbers of last measured points the extension is refitted on for its spread (with all points)."""
+
+
+def extension_band(curve: TbpCurve, pct) -> tuple[np.ndarray, np.ndarray, list[np.ndarray]]:
+    """The spread of the back extension: the Riazi distribution refitted on all measured points and on the last
+    :data:`BAND_LAST_POINTS` of them, each joined to the last measured point as the model's own extension is,
+    and capped at the end point.
+
+    Parameters
+    ----------
+    curve : TbpCurve
+    pct : array_like
+        Percents at which to evaluate (above the measured end). [vol %]
+
+    Returns
+    -------
+    (numpy.ndarray, numpy.ndarray, list of numpy.ndarray)
+        Lower and upper edge of the band [°C], and each refit's TBP [°C] at ``pct``.  Empty refits (and a band
+        equal to the curve) when the curve is not extended.
+    """
+    x = np.clip(np.asarray(pct, dtype=float) / 100.0, 0.0, END_FRACTION)
+    own = np.asarray(curve.temp_at(np.asarray(pct, dtype=float)), float)
+    v, t = curve.measured_pct, curve.measured_temp_c
+    if curve.fit is None or v.size < 3 or v[-1] >= 100.0:
+        return own, own, []
+    cap = max(END_CAP_C, float(t[-1]) + 50.0)
+    refits = []
+    inside = (v > 0.0) & (v < 100.0)
+    for n in (None,) + BAND_LAST_POINTS:
+        vv, tt = v[inside], t[inside]
+        if n is not None:
+            if n >= vv.size:
+                continue
+            vv, tt = vv[-n:], tt[-n:]
+        try:
+            fit = fit_riazi_distribution(vv, tt)
+        except CurveError:
+            continue
+        with np.errstate(over="ignore", invalid="ignore"):
+            tx = fit.temp_c(x) + (t[-1] - fit.temp_c(v[-1] / 100.0))
+        refits.append(np.minimum(np.nan_to_num(tx, nan=cap, posinf=cap), cap))
+    allt = np.vstack(refits + [own])
+    return allt.min(axis=0), allt.max(axis=0), refits

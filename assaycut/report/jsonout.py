@@ -46,6 +46,7 @@ def yield_json(result) -> dict:
         "assay": {"name": a.name, "source": a.source, "sha256": a.sha256, "api": json_safe(a.api),
                   "sg": json_safe(a.sg), "density_15c_kg_m3": json_safe(sg_to_density15(a.sg)),
                   "sulfur_wt_pct": json_safe(result.model.sulfur_wt_pct)},
+        "extension": extension_json(result.model),
         "cuts": records(result.cuts),
         "limits": records(result.limits),
         "closure": {k: json_safe(v) for k, v in result.closure.items()},
@@ -58,6 +59,17 @@ def yield_json(result) -> dict:
         b = result.bands
         doc["uncertainty"] = {"draws": b.attrs["draws"], "sigmas": b.attrs["sigmas"], "cuts": records(b)}
     return doc
+
+
+def extension_json(model) -> dict:
+    """How much of the crude rests on the curve's fitted extension: ``measured_to_vol_pct``,
+    ``extrapolated_vol_pct`` (fitted, front and back), ``lumped_vol_pct`` (lumped up to the capped end point),
+    ``end_point_c``, ``fit_rms_c`` (None without a fit) and ``all_cuts_flagged`` (the reason, or "")."""
+    c = model.curve
+    return {"measured_to_vol_pct": json_safe(c.measured_hi), "extrapolated_vol_pct": json_safe(c.extrapolated_pct),
+            "lumped_vol_pct": json_safe(c.lumped_pct), "end_point_c": json_safe(c.fbp_c),
+            "fit_rms_c": json_safe(c.fit.rms_c) if c.fit is not None else None,
+            "all_cuts_flagged": model.all_on_extension}
 
 
 def yields_document(results, n_paths: int, failures: list[tuple[str, str]]) -> dict:

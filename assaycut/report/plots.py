@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..model.tbp_curve import BAND_LAST_POINTS as BAND_LAST
+
 CUT_COLOURS = ["#cfd8dc", "#b3e5fc", "#81d4fa", "#fff59d", "#ffcc80", "#bcaaa4", "#8d6e63", "#a5d6a7",
                "#ce93d8", "#ef9a9a"]
 """Fill colours of the cuts, in order (our own palette)."""
@@ -26,7 +28,8 @@ def _save(fig, target) -> None:
 
 
 def plot_tbp(result, target) -> None:
-    """TBP curve with the cuts shaded and named; measured part solid, extrapolated part dashed."""
+    """TBP curve with the cuts shaded and named; measured part solid, extrapolated part dashed, with the
+    spread of the extension (:func:`~assaycut.model.tbp_curve.extension_band`) as a band."""
     plt = pyplot()
     m = result.model
     c = m.curve
@@ -38,6 +41,16 @@ def plot_tbp(result, target) -> None:
     ext = ~meas
     ax.plot(np.where(ext, v, np.nan), np.where(ext, t, np.nan), color="#c62828", lw=2, ls="--",
             label="TBP, extrapolated (fitted distribution)")
+    if c.fit is not None and c.measured_hi < 100.0:
+        from ..model.tbp_curve import extension_band
+
+        vb = np.linspace(c.measured_hi, PLOT_TOP_PCT, 120)
+        lo_b, hi_b, refits = extension_band(c, vb)
+        if refits:
+            ax.fill_between(vb, lo_b, hi_b, facecolor="#6a1b9a", alpha=0.28, edgecolor="#4a148c", lw=0.8,
+                            zorder=3,
+                            label=f"extension spread: refits on all and the last {min(BAND_LAST)}-{max(BAND_LAST)} "
+                                  f"points")
     pts = np.asarray(c.spline.x)
     pv = np.asarray(c.spline.y)
     keep = (pv >= c.measured_lo) & (pv <= c.measured_hi)

@@ -99,7 +99,9 @@ def markdown_summary(result) -> str:
            f"- Whole crude: {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
            + (f"{m.sulfur_wt_pct:.3f} wt %" if m.sulfur_wt_pct is not None else "not given"),
            f"- Curve measured to {m.curve.measured_hi:g} vol % "
-           f"({float(m.curve.temp_at(m.curve.measured_hi)):.0f} °C TBP)",
+           f"({float(m.curve.temp_at(m.curve.measured_hi)):.0f} °C TBP); {m.curve.extrapolated_pct:.1f} vol % of "
+           f"the crude rests on the fitted extension, {m.curve.lumped_pct:.1f} vol % of it lumped at the "
+           f"{m.curve.fbp_c:.0f} °C end point",
            f"- Closure: vol {result.closure['vol_pct']:+.1e} %, wt {result.closure['wt_pct']:+.1e} %", "",
            "| Cut | TBP range °C | vol % | wt % | API | S wt % | Watson K | CCI | Flash est. °C |",
            "|---|---|---:|---:|---:|---:|---:|---:|---:|"]

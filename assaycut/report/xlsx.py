@@ -119,6 +119,8 @@ def _summary_sheet(ws, result) -> None:
             ("SG 60/60 °F [-]", a.sg, "0.0000"), ("Density 15 °C [kg/m3]", sg_to_density15(a.sg), "0.0"),
             ("Sulfur [wt %]", m.sulfur_wt_pct, "0.000"),
             ("Curve measured to [vol %]", m.curve.measured_hi, "0.0"),
+            ("On the fitted extension [vol %]", m.curve.extrapolated_pct, "0.0"),
+            ("Of it lumped at the end point [vol %]", m.curve.lumped_pct, "0.0"),
             ("Density reconciliation [%]", m.density_reconciliation_pct, "0.00"),
             ("Sulfur reconciliation [%]", m.sulfur_reconciliation_pct, "0.00"),
             ("Closure residual, vol [%]", result.closure["vol_pct"], "0.0E+00"),

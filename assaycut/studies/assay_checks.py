@@ -39,6 +39,12 @@ class Finding:
     message: str
 
 
+EXTRAPOLATED_WARN_PCT = 10.0
+"""Share of the crude on the fitted extension above which ``check`` warns (common practice, no source). [vol %]"""
+LUMPED_WARN_PCT = 3.0
+"""Share lumped at the extension's capped end point above which ``check`` warns (our choice). [vol %]"""
+
+
 def check_assay(assay: Assay, model: CrudeModel) -> list[Finding]:
     """Quality findings for an assay and its model: gravity figures, curve coverage, closure,
     reconciliations and narrow cuts, in that order.
@@ -95,6 +101,20 @@ def _curve_findings(model: CrudeModel, curve_where: str, src: str) -> list[Findi
     if c.fit is not None:
         out.append(Finding("info", curve_where, f"extension: Riazi distribution, RMS deviation {c.fit.rms_c:.1f} °C "
                                                 f"over {c.fit.npoints} points"))
+        big = c.extrapolated_pct > EXTRAPOLATED_WARN_PCT
+        out.append(Finding("warning" if big else "info", curve_where,
+                           f"{c.extrapolated_pct:.1f} vol % of the crude rests on the fitted extension"
+                           + (f" (more than {EXTRAPOLATED_WARN_PCT:g} vol %): the residue's yield and qualities "
+                              f"are largely extrapolated; a high-temperature simulated distillation (ASTM D7169) would "
+                              f"extend the measured curve"
+                              if big else "")))
+        if c.lumped_pct > 0:
+            lumped = c.lumped_pct > LUMPED_WARN_PCT
+            out.append(Finding("warning" if lumped else "info", curve_where,
+                               f"{c.lumped_pct:.1f} vol % of the crude is lumped up to the {c.fbp_c:.0f} °C end "
+                               f"point of the extension"
+                               + (f" (more than {LUMPED_WARN_PCT:g} vol %): the residue's boiling range, MeABP "
+                                  f"and Watson K depend on that cap" if lumped else "")))
     for w in model.warnings:
         out.append(Finding("warning", curve_where if "sheet" not in w else src, w))
     return out

@@ -137,6 +137,24 @@ def test_check_flags_gravity_disagreement(book):
     assert any(f["severity"] == "error" and "gravity figures disagree" in f["message"] for f in d["findings"])
 
 
+def test_check_and_json_report_what_rests_on_the_extension(book):
+    # A curve that stops early (at 75 % here): 25 vol % of the crude rests on the fitted extension (identity);
+    # check warns above 10 vol % (common practice, no source) and the yields JSON states the shares.
+    def mutate(s):
+        s["distillation"] = s["distillation"][:5] + [[0.0, 20.0], [10.0, 90.0], [30.0, 180.0], [50.0, 290.0],
+                                                     [75.0, 430.0]]
+    path = str(book(mutate))
+    r = runner.invoke(app, ["check", path, "--json"])
+    d = json.loads(r.stdout)
+    assert any(f["severity"] == "warning" and "25.0 vol % of the crude rests on the fitted extension" in f["message"]
+               for f in d["findings"])
+    r = runner.invoke(app, ["yields", path, "--json"])
+    ext = json.loads(r.stdout)["extension"]
+    assert ext["measured_to_vol_pct"] == 75.0 and ext["extrapolated_vol_pct"] == pytest.approx(25.0, abs=1e-9)
+    assert set(ext) == {"measured_to_vol_pct", "extrapolated_vol_pct", "lumped_vol_pct", "end_point_c", "fit_rms_c",
+                        "all_cuts_flagged"}
+
+
 def test_template_written_and_readable_layout(tmp_path):
     import openpyxl
 

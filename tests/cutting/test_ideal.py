@@ -235,3 +235,45 @@ def test_light_ends_without_gas_analysis_get_gas_properties():
     assert 0.55 <= le["sg"] <= 0.63
     assert abs(le["watson_k"] - kw_nc4) < 0.6
     assert any("no light-ends analysis" in w for w in res.warnings)
+
+
+def _tail_pair(narrow):
+    """Two assays of one crude: measured to 75 %, and the same with a point (85 %, 480 °C) added past the end."""
+    pct = np.array([0.0, 5.0, 15.0, 30.0, 50.0, 70.0, 75.0])
+    tmp = np.array([10.0, 60.0, 120.0, 200.0, 300.0, 420.0, 445.0])
+    nc = None
+    if narrow:
+        nc = NarrowCuts(np.array([np.nan, 120.0, 300.0]), np.array([120.0, 300.0, np.nan]), np.full(3, np.nan),
+                        np.full(3, np.nan), np.array([0.72, 0.83, 0.95]), np.array([0.05, 0.6, 2.4]))
+    return [Assay("t", 0.86, [CurveData("TBP", "vol", p, t)], sulfur_wt_pct=1.3, narrow_cuts=nc)
+            for p, t in ((pct, tmp), (np.append(pct, 85.0), np.append(tmp, 480.0)))]
+
+
+QUALITIES = ["vol_pct", "wt_pct", "sg", "sulfur_wt_pct", "meabp_c", "watson_k", "mw", "cetane_index_d4737",
+             "flash_c_est", "vabp_c", "vabp_d86_c", "mid_vol_c"]
+
+
+@pytest.mark.parametrize("narrow", [True, False])
+def test_point_added_past_the_end_changes_nothing_unflagged(narrow):
+    # Invariant (the meaning of the flag): a point added past the measured end of a curve changes nothing in a
+    # cut that is not flagged extrapolated (in either run).  Without narrow-cut densities every cut's gravity
+    # rests on a Watson K fitted over the whole curve, so every cut is flagged.
+    a, b = (cut_table(build_model(x), default_cut_set()).set_index("name") for x in _tail_pair(narrow))
+    free = [n for n in a.index if not a.loc[n, "extrapolated"] and not b.loc[n, "extrapolated"]]
+    if narrow:
+        assert {"light naphtha", "heavy naphtha", "kerosene", "diesel"} <= set(free)
+    else:
+        assert free == [] and a["extrapolated"].all()
+    for n in free:
+        for q in QUALITIES:
+            assert a.loc[n, q] == pytest.approx(b.loc[n, q], abs=1e-9, nan_ok=True), (n, q)
+        assert a.loc[n, "d86_c"] == b.loc[n, "d86_c"] or all(
+            abs(a.loc[n, "d86_c"][k] - b.loc[n, "d86_c"][k]) < 1e-9 for k in a.loc[n, "d86_c"])
+
+
+def test_flag_covers_the_last_measured_interval():
+    # The PCHIP's slope at the last measured node comes from the extension: a cut ending inside the last
+    # measured interval (70-75 % here, 420-445 °C) depends on it and is flagged; one ending at 420 °C is not.
+    a = build_model(_tail_pair(True)[0])
+    cut = lambda t: cut_table(a, CutSet([Cut("x", t), Cut("rest", None)])).loc[0, "extrapolated"]  # noqa: E731
+    assert not cut(420.0) and cut(430.0)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 from scipy.integrate import quad
@@ -14,7 +15,10 @@ def test_curve_stopping_early_is_extended_and_marked():
     c = build_curve([5, 15, 30, 45], [60, 120, 210, 300])
     assert c.measured_hi == 45 and c.fit is not None
     assert c.fbp_c > 300
-    assert bool(c.is_extrapolated(40.0, 60.0)) and not bool(c.is_extrapolated(10.0, 40.0))
+    # depends on the extension: beyond the measured range, and the first and last measured intervals (the
+    # PCHIP's end slopes there come from the extensions); not between the inner measured points
+    assert bool(c.is_extrapolated(40.0, 60.0)) and not bool(c.is_extrapolated(15.0, 30.0))
+    assert bool(c.is_extrapolated(10.0, 20.0)) and bool(c.is_extrapolated(20.0, 35.0))
     assert_allclose(c.pct_at([60, 120, 210, 300]), [5, 15, 30, 45], atol=1e-9)  # exact at measured points
 
 
@@ -45,3 +49,31 @@ def test_light_ends_staircase_is_exact_between_boiling_points():
     c = build_curve([2.0, 10, 30, 60], [27.83, 90, 200, 350], front_t=ft, front_v=fv)
     assert float(c.pct_at(15.0)) == pytest.approx(2.0, abs=1e-12)
     assert float(c.pct_at(-20.0)) == pytest.approx(0.5, abs=1e-12)
+
+
+def test_extension_band_contains_the_refits_and_the_curve():
+    # Identity of the construction: the band spans every refit (all points, last 4-6 points) and the model's
+    # own extension; each refit starts at the last measured point (joined there, as the extension is).
+    from assaycut.model.tbp_curve import extension_band
+
+    c = build_curve([5, 10, 20, 30, 40, 50, 60, 75], [60, 100, 160, 215, 270, 320, 375, 460])
+    v = np.linspace(75.0, 99.0, 50)
+    lo, hi, refits = extension_band(c, v)
+    assert len(refits) == 4
+    own = c.temp_at(v)
+    assert np.all(lo <= own + 1e-9) and np.all(own <= hi + 1e-9)
+    for r in refits:
+        assert np.all(lo <= r + 1e-9) and np.all(r <= hi + 1e-9)
+        assert r[0] == pytest.approx(460.0, abs=1e-6)
+    assert float(np.max(hi - lo)) > 1.0  # the refits differ: the band has a width
+
+
+def test_extrapolated_and_lumped_shares():
+    # Identity: a curve measured from 5 to 75 % rests on its fitted extension for 25 + 5 = 30 vol %; the lumped
+    # share is the part above the capped end point, which the warning names.
+    c = build_curve([5, 10, 20, 30, 40, 50, 60, 75], [60, 100, 160, 215, 270, 320, 375, 460])
+    assert c.extrapolated_pct == pytest.approx(30.0, abs=1e-12)
+    heavy = build_curve([5, 10, 20, 30, 40, 48], [150, 200, 300, 400, 500, 565])
+    assert heavy.extrapolated_pct == pytest.approx(57.0, abs=1e-12)
+    assert 3.0 < heavy.lumped_pct < 57.0
+    assert any(f"passes 850 °C at {100 - heavy.lumped_pct:.1f} vol %" in w for w in heavy.warnings)
