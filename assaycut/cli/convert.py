@@ -35,7 +35,8 @@ class TUnit(str, enum.Enum):
 @app.command()
 @guarded
 def convert(
-    points: Annotated[Optional[list[str]], typer.Argument(help="PERCENT=TEMP pairs, e.g. 10=176.7 30=193.3 50=206.7 70=222.8 90=242.8",
+    points: Annotated[Optional[list[str]], typer.Argument(help="PERCENT=TEMP pairs, e.g. 10=176.7 30=193.3 "
+                                                               "50=206.7 70=222.8 90=242.8",
                                                           metavar="PERCENT=TEMP")] = None,
     frm: Annotated[FromMethod, typer.Option("--from", help="Method of the input curve.")] = FromMethod.D86,
     to: Annotated[ToMethod, typer.Option("--to", help="Method to convert to (AET for D1160 data).")] = ToMethod.TBP,

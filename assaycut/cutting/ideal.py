@@ -168,7 +168,8 @@ def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, me
         share = sulfur * wt / s_crude
     some = vol > 1e-9
     return {
-        "vabp_c": np.where(some, vabp, np.nan), "vabp_d86_c": vabp_d86, "meabp_c": np.where(some, meabp, np.nan), "sg": np.where(some, sg, np.nan),
+        "vabp_c": np.where(some, vabp, np.nan), "vabp_d86_c": vabp_d86, "meabp_c": np.where(some, meabp, np.nan),
+        "sg": np.where(some, sg, np.nan),
         "api": np.where(some, sg_to_api(sg), np.nan), "density_15c_kg_m3": np.where(some, dens15, np.nan),
         "watson_k": np.where(some, kw, np.nan), "sulfur_wt_pct": np.where(some, sulfur, np.nan),
         "sulfur_share_pct": np.where(some, share, 0.0), "mw": np.where(some, mw, np.nan), "d86": d86,

@@ -114,8 +114,8 @@ def density_distribution(assay: Assay, curve: TbpCurve, le_mids, warnings: list[
     whole-crude gravity, SG = (1.8 T_b[K])^(1/3)/Kw along the curve (Watson & Nelson 1933; common
     practice, no single source), light ends at their own SG.  Without a light-ends analysis the part of the
     curve boiling below n-pentane takes the SG of the paraffins of the same boiling point
-    (:func:`~assaycut.model.lightends.gas_range_sg`, assumed) where no narrow cut covers it.  Either way the distribution is scaled so
-    that the whole crude integrates to its SG.
+    (:func:`~assaycut.model.lightends.gas_range_sg`, assumed) where no narrow cut covers it.  Either way the
+    distribution is scaled so that the whole crude integrates to its SG.
 
     Parameters
     ----------
