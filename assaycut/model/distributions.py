@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
 from .assay import Assay
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
@@ -167,6 +168,14 @@ def density_distribution(assay: Assay, curve: TbpCurve, le_mids, warnings: list[
             fixed = np.isfinite(le_sg)
         dv = 0.5
         fixed_mass = float((le_sg[fixed] * dv).sum()) if fixed.any() else 0.0
+        if gas_v.size and (fixed.all() or fixed_mass >= 100.0 * assay.sg):
+            # a curve (nearly) all in the gas range: the paraffin assumption cannot meet the crude gravity
+            fixed[:] = False
+            fixed_mass = 0.0
+            gas_v = np.array([])
+        if fixed.all() or fixed_mass >= 100.0 * assay.sg:
+            raise CurveError("the light ends weigh as much as the whole crude's gravity allows; check the "
+                             "light-ends analysis against the crude gravity")
         kw = float((cbrt[~fixed] * dv).sum() / (100.0 * assay.sg - fixed_mass))
         raw = Pchip(mids, np.where(fixed, le_sg, sg_from_watson_k(t_mids, kw)))
         source = f"constant Watson K {kw:.2f} fitted to the whole-crude gravity (no narrow-cut densities)"
