@@ -41,8 +41,10 @@ def assay_from_toml(path: Path) -> Assay:
                                     d.get("pressure_mmhg"), f"{path.name} [{key}]"))
     cuts = src.get("narrow_cut", [])
     col = lambda k: np.array([c.get(k, np.nan) for c in cuts], dtype=float)  # noqa: E731
+    standard = ("start_c", "end_c", "vol_pct", "wt_pct", "sg_60f", "sulfur_wt_pct")
+    extra_names = list(dict.fromkeys(k for c in cuts for k in c if k not in standard))
     narrow = NarrowCuts(col("start_c"), col("end_c"), col("vol_pct"), col("wt_pct"), col("sg_60f"),
-                        col("sulfur_wt_pct"))
+                        col("sulfur_wt_pct"), {k: col(k) for k in extra_names})
     le = dict(src.get("light_ends", {}))
     basis = le.pop("basis", "wt")
     extras = {k: v for k, v in crude.items() if k not in ("name", "origin", "api_gravity", "sulfur_wt_pct", "notes")}

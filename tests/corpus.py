@@ -80,7 +80,6 @@ for _name, _mut, _exp in [
     ("narrow_cut_reversed", set_cell("narrow cuts", 3, 1, 10.0), r"the cut ends at 10.0 °C, not above its start"),
     ("narrow_cut_mixed_units", set_cell("narrow cuts", 1, 6, "end_f"), r"mixed temperature units"),
     ("narrow_cut_bad_gravity", set_cell("narrow cuts", 4, 4, 7.5), r"sg_60f 7.5 is not a plausible cut gravity"),
-    ("narrow_cut_unknown_column", set_cell("narrow cuts", 1, 6, "colour"), r"unknown column 'colour'"),
     ("date_in_number", set_cell("distillation", 7, 1, datetime.datetime(2025, 1, 2)), r"found a date/time"),
     ("bool_in_number", set_cell("distillation", 7, 1, True), r"found True; expected a number"),
     ("check_on_bad_curve", set_cell("distillation", 7, 1, "x"), r"found text 'x'"),

@@ -32,6 +32,7 @@ from ..methods.product_properties import cci_in_range, cetane_index_d4737, flash
 from ..model.crude import CrudeModel
 from ..units import sg_to_api, sg_to_density15
 from .cutset import CutSet
+from .qualities import quality_columns
 
 LIGHT_ENDS_MAX_C = 40.0
 """Cuts ending at or below this TBP are light ends: no D86 is estimated for them (D86 does not apply to
@@ -59,18 +60,26 @@ def cut_table(model: CrudeModel, cut_set: CutSet):
         Columns :data:`CUT_COLUMNS`; ``d86_c`` holds a dict {"0": .., "10": .., ...} [°C] or None.
     """
     names, ends = cut_set.reported()
-    return columns_frame(names, {k: v[0] for k, v in cut_columns(model, ends[None, :]).items()})
+    return columns_frame(names, first_row(cut_columns(model, ends[None, :])))
+
+
+def first_row(cols: dict) -> dict:
+    """Row 0 of :func:`cut_columns` output (the ``estimated`` flags included)."""
+    return {k: ({n: f[0] for n, f in v.items()} if k == "estimated" else v[0]) for k, v in cols.items()}
 
 
 def columns_frame(names: list[str], cols: dict[str, np.ndarray]):
     """The cut-table DataFrame from one row of :func:`cut_columns`-style arrays (``d86`` as a dict per cut)."""
     import pandas as pd
 
-    df = pd.DataFrame({k: v for k, v in cols.items() if k != "d86"})
+    est = cols.get("estimated", {})
+    df = pd.DataFrame({k: v for k, v in cols.items() if k not in ("d86", "estimated")})
     df.insert(0, "name", names)
     df["d86_c"] = [None if not np.all(np.isfinite(r)) else {str(p): float(x) for p, x in zip(D86_STD, r)}
                    for r in cols["d86"]]
-    return df[CUT_COLUMNS]
+    extra = sorted(c for c in df.columns if c not in CUT_COLUMNS and np.isfinite(df[c].to_numpy(float)).any())
+    df["estimated"] = [[k for k in sorted(est) if bool(est[k][i])] for i in range(len(df))]
+    return df[CUT_COLUMNS + extra + ["estimated"]]
 
 
 def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
@@ -113,6 +122,11 @@ def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
     out = {"start_c": t_start, "end_c": t_end, "vol_pct": vol, "wt_pct": wt, "cum_vol_pct": vb, "cum_wt_pct": wb,
            "mid_vol_c": mid_vol_c}
     out.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp))
+    gas = ~(np.isfinite(t_end) & ~(t_end <= LIGHT_ENDS_MAX_C)) & ~np.isnan(t_end)
+    vals, est = quality_columns(model, va, vb, wa, wb, out["meabp_c"], out["sg"], out["watson_k"],
+                                gas | (vol <= 1e-9))
+    out.update(vals)
+    out["estimated"] = est
     out["extrapolated"] = (curve.is_extrapolated(va, vb) | _all_flag(model, vol)) & (vol > 1e-9)
     return out
 

@@ -155,6 +155,8 @@ class BatchModel:
                                        for m in models])[:, None]
         self._a0 = self.sg_dist.antiderivative(np.zeros((self.n, 1)))
         self.all_on_extension = np.array([m.all_on_extension != "" for m in models])
+        self.row_qualities = [m.qualities for m in models]
+        self.sulfur_rows_estimated = np.array([m.sulfur_estimated for m in models])
 
     def _col(self, arr, like):
         return arr.reshape((-1,) + (1,) * (np.ndim(like) - 1))
@@ -191,7 +193,10 @@ def cut_library(models: list[CrudeModel], cut_set: CutSet) -> tuple[list[str], d
         parts.append(cut_columns(BatchModel(chunk), np.repeat(ends[None, :], len(chunk), axis=0)))
     if len(parts) == 1:
         return names, parts[0]
-    return names, {k: np.concatenate([p[k] for p in parts], axis=0) for k in parts[0]}
+    out = {k: np.concatenate([p[k] for p in parts], axis=0) for k in parts[0] if k != "estimated"}
+    out["estimated"] = {n: np.concatenate([p["estimated"][n] for p in parts], axis=0)
+                        for n in parts[0]["estimated"]}
+    return names, out
 
 
 SUMMARY_QUALITIES = [("vol_pct", "vol %"), ("wt_pct", "wt %"), ("api", "API"), ("sulfur_wt_pct", "S wt %"),

@@ -9,6 +9,7 @@ import zipfile
 import numpy as np
 
 from ..errors import InputError
+from ..methods.blending_indices import RULES
 from ..model.assay import Assay, CurveData, LightEnds, NarrowCuts
 from ..model.lightends import find_component, known_labels
 from ..units import api_to_sg, density15_to_sg, to_celsius
@@ -177,7 +178,7 @@ def _read_crude(ws, loc: SourceLocation):
                 if not 0.0 <= x <= 15.0:
                     raise loc.err(f"sulfur_wt_pct {x:g} is outside 0-15 wt %", r, "value")
                 sulfur = x
-        elif UNIT_SUFFIX.match(key):
+        elif UNIT_SUFFIX.match(key) or key in RULES:
             x = to_number(val, loc, r, "value", allow_empty=True)
             if not math.isnan(x):
                 extras[key] = x
@@ -302,9 +303,6 @@ def _narrow_cut_columns(hdr: list[str], h: int, loc: SourceLocation):
         if c and c not in known:
             if c in ("start_c", "end_c", "start_f", "end_f"):
                 raise loc.err(f"mixed temperature units: {c!r} beside {s_col!r}; use one unit", h + 1, c)
-            if not UNIT_SUFFIX.match(c):
-                raise loc.err(f"unknown column {c!r}; extra property columns must end in their unit "
-                              f"(e.g. nitrogen_ppm, viscosity_50c_cst)", h + 1, c)
             extras_cols.append(c)
     return unit, s_col, e_col, grav_cols, extras_cols
 

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..units import as_scalar
+
 
 def vbn_refutas(nu_cst):
     """Refutas viscosity blending number.
@@ -42,7 +44,8 @@ def vbn_refutas(nu_cst):
     >>> round(float(vbn_refutas(10.0)), 2), round(viscosity_from_vbn_refutas(vbn_refutas(10.0)), 9)
     (23.57, 10.0)
     """
-    return 14.534 * np.log(np.log(np.asarray(nu_cst, dtype=float) + 0.8)) + 10.975
+    with np.errstate(invalid="ignore"):
+        return 14.534 * np.log(np.log(np.asarray(nu_cst, dtype=float) + 0.8)) + 10.975
 
 
 def viscosity_from_vbn_refutas(vbn):
@@ -52,15 +55,15 @@ def viscosity_from_vbn_refutas(vbn):
 
     Parameters
     ----------
-    vbn : float
+    vbn : float or array_like
         Viscosity blending number. [-]
 
     Returns
     -------
-    float
+    float or numpy.ndarray
         Kinematic viscosity. [cSt]
     """
-    return float(np.exp(np.exp((np.asarray(vbn, dtype=float) - 10.975) / 14.534)) - 0.8)
+    return as_scalar(np.exp(np.exp((np.asarray(vbn, dtype=float) - 10.975) / 14.534)) - 0.8)
 
 
 def shrinkage_api_mpms_12_3(light_vol_pct: float, api_diff: float) -> float:

@@ -25,6 +25,7 @@ from .assay import Assay
 from .distributions import density_distribution, sulfur_distribution
 from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
+from .qualities import estimated_sulfur, quality_distributions
 from .spline import Pchip, interval_mean
 from .tbp_curve import TbpCurve, build_curve, staircase
 
@@ -53,6 +54,10 @@ class CrudeModel:
         'narrow cuts' or 'constant Watson K'.
     watson_k_fit : float or None
         Watson K fitted to the whole-crude SG when density comes from constant Watson K. [-]
+    sulfur_estimated : bool
+        Cut sulfur is estimated from the whole-crude sulfur (no narrow-cut sulfur).
+    qualities : dict of str to Quality
+        The other narrow-cut qualities (:mod:`assaycut.model.qualities`).
     all_on_extension : str
         Why every cut's gravity (and what follows from it: weight yields, Watson K, sulfur, estimates) depends
         on the curve's fitted extension; empty when it does not (:func:`_properties_on_extension`).
@@ -70,6 +75,8 @@ class CrudeModel:
     density_source: str
     watson_k_fit: float | None = None
     all_on_extension: str = ""
+    sulfur_estimated: bool = False
+    qualities: dict = field(default_factory=dict)
     methods: dict[str, str] = field(default_factory=dict)
     warnings: list[str] = field(default_factory=list)
 
@@ -171,8 +178,19 @@ def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str]) -> Cr
     methods["density"] = (f"{dens_src}; scaled by {dens_rec:+.2f} % to reproduce the whole-crude SG "
                           f"{assay.sg:.4f}")
     model = CrudeModel(curve, sg_dist, None, assay.sg, assay.sulfur_wt_pct, dens_rec, None, dens_src,
-                       kw_fit, _properties_on_extension(assay, curve, kw_fit), methods, warnings)
+                       kw_fit, _properties_on_extension(assay, curve, kw_fit), methods=methods, warnings=warnings)
     sulfur_distribution(model, assay, le_mids)
+    if model.sulfur_dist is None and model.sulfur_wt_pct is not None:
+        model.sulfur_dist = estimated_sulfur(model)
+        model.sulfur_estimated = True
+        model.sulfur_reconciliation_pct = None
+        warnings[:] = [w for w in warnings if not w.startswith("no narrow-cut sulfur")]
+        warnings.append("no narrow-cut sulfur: cut sulfur is estimated from the whole-crude sulfur (Riazi, Nasimi & "
+                        "Roomi 1999 over the curve, scaled to the crude) and flagged estimated")
+        methods["sulfur"] = ("estimated: Riazi, Nasimi & Roomi (1999) on pseudo-components of the curve (M and n20 "
+                             "by Riazi-Daubert 1987), non-decreasing with boiling range, scaled to the whole-crude "
+                             f"sulfur {model.sulfur_wt_pct:.3f} wt %")
+    model.qualities = quality_distributions(assay, model, warnings, methods)
     return model
 
 

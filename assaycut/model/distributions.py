@@ -22,7 +22,7 @@ def narrow_cut_positions(assay: Assay, curve: TbpCurve):
     return va, vb
 
 
-def property_spline(lo, hi, values, fixed=(), iterations: int = 30) -> Pchip:
+def property_spline(lo, hi, values, fixed=(), iterations: int = 30, floor: float | None = 0.0) -> Pchip:
     """Monotone property curve through narrow-cut values placed at their mid percent, adjusted so that its
     average over each narrow cut reproduces the measured value.
 
@@ -39,6 +39,9 @@ def property_spline(lo, hi, values, fixed=(), iterations: int = 30) -> Pchip:
         Measured cut averages (SG [-] or sulfur [wt %]).
     fixed : sequence of (x [%], value)
         Extra points held as given (pure light-ends components).
+    floor : float or None
+        Lowest node value allowed during the correction (0 for contents; None for an index that may be
+        negative).
 
     Returns
     -------
@@ -72,7 +75,7 @@ def property_spline(lo, hi, values, fixed=(), iterations: int = 30) -> Pchip:
         best, best_err = y.copy(), worst
         if worst < tol:
             break
-        y[is_cut] = np.maximum(y[is_cut] + err, 0.0)
+        y[is_cut] = y[is_cut] + err if floor is None else np.maximum(y[is_cut] + err, floor)
     return Pchip(x, best)
 
 

@@ -26,8 +26,12 @@ def test_yields_json_shape_and_no_files(tmp_path, monkeypatch):
     assert set(d["assay"]) == {"name", "source", "sha256", "api", "sg", "density_15c_kg_m3", "sulfur_wt_pct"}
     assert d["assay"]["name"] == "Selkie Light"
     assert [c["name"] for c in d["cuts"]][0] == "light ends"
+    from assaycut.cutting.qualities import ESTIMATED
+
+    qualities = set(ESTIMATED) | {"nitrogen_wt_ppm", "acid_number_mg_koh_g", "ron"}  # demo narrow-cut columns
     for c in d["cuts"]:
-        assert set(c) == CUT_FIELDS
+        assert set(c) >= CUT_FIELDS | {"estimated"} and set(c) - CUT_FIELDS - {"estimated"} >= qualities
+        assert set(c["estimated"]) <= set(c) and isinstance(c["estimated"], list)
     diesel = next(c for c in d["cuts"] if c["name"] == "diesel")
     assert set(diesel["d86_c"]) == {"0", "10", "30", "50", "70", "90", "95"}
     assert diesel["start_c"] == 232.0 and d["cuts"][0]["start_c"] is None and d["cuts"][-1]["end_c"] is None

@@ -32,6 +32,10 @@ def test_batch_equals_single(models, cs):
     _, ends = cs.reported()
     for r, m in enumerate(models):
         single = cut_columns(m, ends[None, :])
+        est = single.pop("estimated")
+        for key in set(est) | set(cols["estimated"]):
+            one = est[key][0] if key in est else np.zeros(len(names), bool)
+            assert np.array_equal(cols["estimated"][key][r], one), (key, r)
         for key, val in single.items():
             np.testing.assert_allclose(np.asarray(cols[key][r], float), np.asarray(val[0], float),
                                        rtol=0, atol=1e-9, equal_nan=True, err_msg=f"{key} of crude {r}")

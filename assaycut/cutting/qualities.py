@@ -1,0 +1,137 @@
+"""Every narrow-cut quality on every cut, and estimates where the narrow cuts do not cover a cut.
+
+A quality measured on the narrow cuts (:mod:`assaycut.model.qualities`) reaches a cut as the inverse of its
+blending index's mean over the cut, on the index's basis, where the narrow cuts that measured it cover at
+least :data:`~assaycut.model.qualities.COVERED_FRACTION` of the cut.  Elsewhere a published correlation
+estimates it from the cut's MeABP, SG and Watson K, inside the correlation's stated range only
+(:mod:`assaycut.methods.fraction_properties`), and the value is flagged *estimated*.  Viscosities measured at
+two temperatures also give the 40 and 100 °C values by ASTM D341 (flagged estimated).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..methods.blending_indices import VISCOSITY
+from ..methods.fraction_properties import (
+    aniline_point_api_2b9_1,
+    aniline_point_in_range,
+    cloud_point_api_2b12_1,
+    cloud_point_in_range,
+    freeze_point_api_2b11_1,
+    freeze_point_in_range,
+    pour_point_api_2b8_1,
+    pour_point_in_range,
+    refractive_index_in_range,
+    refractive_index_riazi_daubert_1987,
+    smoke_point_api_2b10_1,
+    smoke_point_in_range,
+    viscosity_api_11a4_2,
+    viscosity_d341,
+)
+from ..model.qualities import COVERED_FRACTION
+
+T100F_C, T210F_C = 37.7778, 98.8889
+"""100 °F and 210 °F. [°C]"""
+STANDARD_VISCOSITY_C = (40.0, 100.0)
+"""Temperatures at which a viscosity is always reported (estimated where not measured). [°C]"""
+
+ESTIMATED = {
+    "viscosity_40c_cst": "API TDB 11A4.2 (ν at 100/210 °F from MeABP and Kw), moved to 40 °C by ASTM D341",
+    "viscosity_100c_cst": "API TDB 11A4.2, moved to 100 °C by ASTM D341",
+    "pour_point_c": "API TDB 2B8.1 (SG 0.8-1.0, Tb 800-1500 °R, ν100°F 2-960 cSt)",
+    "cloud_point_c": "API TDB 2B12.1 (SG 0.77-0.93, Tb 800-1225 °R)",
+    "freeze_point_c": "API TDB 2B11.1 (SG 0.74-0.90, Tb 725-1130 °R)",
+    "aniline_point_c": "API TDB 2B9.1 (SG 0.7-1.0, Tb 200-1100 °F)",
+    "smoke_point_mm": "API TDB 2B10.1 (SG 0.70-0.86, Tb 200-550 °F)",
+    "refractive_index_20c": "Riazi-Daubert 1987 parameter I (Tb 80-650 °F)",
+}
+"""The estimated qualities, with the correlation and the range each is used in."""
+NOT_ESTIMATED = ("nitrogen, metals, CCR, asphaltenes, wax, acid number, mercaptan sulfur, RVP, octane and PNA are "
+                 "not estimated: no correlation at hand covers them within a stated range (PNA: the Riazi-Daubert "
+                 "forms' light-fraction coefficients and basis are unsettled)")
+
+
+def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas) -> tuple[dict[str, np.ndarray], dict[str, np.ndarray]]:
+    """Per-cut values of every quality, and which are estimated.
+
+    Parameters
+    ----------
+    model : CrudeModel
+        Its ``qualities`` and ``sulfur_estimated``.
+    va, vb, wa, wb : numpy.ndarray
+        Each cut's bounds on the volume and weight bases. [%]
+    meabp, sg, kw : numpy.ndarray
+        The cut's MeABP [°C], SG [-] and Watson K [-].
+    gas : numpy.ndarray
+        True for cuts with no D86 estimate (light ends): nothing is estimated for them.
+
+    Returns
+    -------
+    (dict, dict)
+        {quality name: values} and {quality name: estimated flags}, arrays shaped like ``va``.
+    """
+    estimated: dict[str, np.ndarray] = {}
+    some = (vb - va) > 1e-9
+    rows = getattr(model, "row_qualities", None)
+    if rows is None:  # one crude model: every row is that crude
+        values = _measured(getattr(model, "qualities", {}), va, vb, wa, wb, some)
+    else:  # a batch: row r is crude r, each with its own qualities
+        values = {}
+        for r, quals in enumerate(rows):
+            for name, v in _measured(quals, va[r], vb[r], wa[r], wb[r], some[r]).items():
+                values.setdefault(name, np.full(va.shape, np.nan))[r] = v
+    _d341_from_measured(values, estimated)
+    ok = some & ~gas & np.isfinite(meabp) & np.isfinite(sg)
+    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
+        nu100f, nu210f = viscosity_api_11a4_2(meabp, kw)
+        est = {
+            "viscosity_40c_cst": (viscosity_d341(nu100f, T100F_C, nu210f, T210F_C, 40.0), ok),
+            "viscosity_100c_cst": (viscosity_d341(nu100f, T100F_C, nu210f, T210F_C, 100.0), ok),
+            "pour_point_c": (pour_point_api_2b8_1(sg, meabp, nu100f), ok & pour_point_in_range(sg, meabp, nu100f)),
+            "cloud_point_c": (cloud_point_api_2b12_1(sg, meabp), ok & cloud_point_in_range(sg, meabp)),
+            "freeze_point_c": (freeze_point_api_2b11_1(sg, meabp, kw), ok & freeze_point_in_range(sg, meabp)),
+            "aniline_point_c": (aniline_point_api_2b9_1(sg, meabp, kw), ok & aniline_point_in_range(sg, meabp)),
+            "smoke_point_mm": (smoke_point_api_2b10_1(meabp, kw), ok & smoke_point_in_range(sg, meabp)),
+            "refractive_index_20c": (refractive_index_riazi_daubert_1987(meabp, sg),
+                                     ok & refractive_index_in_range(meabp)),
+        }
+    for name, (v, valid) in est.items():
+        have = values.get(name, np.full(va.shape, np.nan))
+        fill = ~np.isfinite(have) & valid & np.isfinite(v)
+        values[name] = np.where(fill, v, have)
+        estimated[name] = fill | estimated.get(name, np.zeros(va.shape, bool))
+    sul = getattr(model, "sulfur_rows_estimated", None)
+    if sul is not None:
+        estimated["sulfur_wt_pct"] = some & sul.reshape((-1,) + (1,) * (va.ndim - 1))
+    elif getattr(model, "sulfur_estimated", False):
+        estimated["sulfur_wt_pct"] = np.broadcast_to(some, va.shape).copy()
+    return values, estimated
+
+
+def _measured(qualities: dict, va, vb, wa, wb, some) -> dict[str, np.ndarray]:
+    """The narrow-cut qualities of one crude over its cuts (NaN where the narrow cuts do not cover a cut)."""
+    out = {}
+    for name, q in qualities.items():
+        a, b = (wa, wb) if q.rule.basis == "wt" else (va, vb)
+        with np.errstate(invalid="ignore", over="ignore"):
+            v = q.rule.from_index(q.mean_index(a, b))
+        out[name] = np.where((q.coverage(a, b) >= COVERED_FRACTION) & some, v, np.nan)
+    return out
+
+
+def _d341_from_measured(values: dict[str, np.ndarray], estimated: dict[str, np.ndarray]) -> None:
+    """Viscosities at 40 and 100 °C from the two measured temperatures nearest each, by ASTM D341 (Walther),
+    where not measured at that temperature."""
+    measured = sorted((float(VISCOSITY.match(n).group(1)), n) for n in values if VISCOSITY.match(n))
+    if len(measured) < 2:
+        return
+    for target in STANDARD_VISCOSITY_C:
+        name = f"viscosity_{target:g}c_cst"
+        if any(t == target for t, _ in measured):
+            continue
+        (t1, n1), (t2, n2) = sorted(measured, key=lambda tn: abs(tn[0] - target))[:2]
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            v = viscosity_d341(values[n1], t1, values[n2], t2, target)
+        values[name] = v
+        estimated[name] = np.isfinite(v)

@@ -1,0 +1,224 @@
+"""Distributions of the narrow-cut qualities other than gravity and sulfur, and the sulfur estimate of a crude
+given with whole-crude sulfur only.
+
+Each quality's distribution is held as the *cumulative* amount of its blending index
+(:mod:`assaycut.methods.blending_indices`) against percent distilled on the index's own basis (weight or
+volume): a monotone PCHIP through the narrow cuts' edges, where it equals the sum of index x width of the cuts
+below (a conservative "histospline").  Its mean over any cut is (C(b) - C(a))/(b - a), so every narrow cut's
+index is reproduced exactly and a cut made of whole narrow cuts returns exactly the rule's blend of them;
+inside a narrow cut the index varies smoothly.  Gaps between narrow cuts, and the crude beyond the outermost
+ones, take the nearest cut's index (cuts there are not covered, see :data:`COVERED_FRACTION`).  A whole-crude value of the same name on the crude sheet, where the
+narrow cuts cover the whole crude, scales the index distribution to reproduce it (as sulfur is reconciled),
+and the scale is reported.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..methods.blending_indices import BlendRule, rule_for
+from ..methods.characterisation import mw_riazi_daubert_1987
+from ..methods.fraction_properties import refractive_index_riazi_daubert_1987, ri_and_m, sulfur_riazi_1999
+from .assay import Assay
+from .distributions import narrow_cut_positions, property_spline
+from .lightends import GAS_RANGE_MAX_C
+from .spline import Pchip
+
+COVERED_FRACTION = 0.95
+"""A cut takes a quality from the narrow cuts when at least this fraction of it (on the quality's basis) lies
+inside narrow cuts that measured it; otherwise the value is estimated or left empty."""
+
+
+@dataclass
+class Quality:
+    """One quality's distribution over the crude.
+
+    Attributes
+    ----------
+    name : str
+        Column name (with its unit), e.g. 'nitrogen_wt_ppm'.
+    rule : BlendRule
+    cum : Pchip
+        Cumulative blending index (index x percent) against percent distilled on ``rule.basis``, 0-100 %.
+    covered : numpy.ndarray
+        (k, 2) intervals on that basis covered by narrow cuts that measured the quality. [%]
+    reconciliation_pct : float or None
+        Scale applied to reproduce the whole-crude value, (factor - 1) x 100; None when not reconciled. [%]
+    """
+
+    name: str
+    rule: BlendRule
+    cum: Pchip
+    covered: np.ndarray
+    reconciliation_pct: float | None = None
+
+    def mean_index(self, a, b):
+        """Mean blending index over [a, b] (basis %); NaN for an empty interval."""
+        a, b = np.asarray(a, dtype=float), np.asarray(b, dtype=float)
+        w = b - a
+        with np.errstate(invalid="ignore", divide="ignore"):
+            return np.where(w > 1e-12, (self.cum(b) - self.cum(a)) / np.where(w > 1e-12, w, 1.0), np.nan)
+
+    def coverage(self, a, b):
+        """Fraction of [a, b] (basis %) inside the covered intervals; 1 for an empty interval inside one."""
+        a, b = np.asarray(a, dtype=float), np.asarray(b, dtype=float)
+        lo, hi = self.covered[:, 0], self.covered[:, 1]
+        over = np.clip(np.minimum(b[..., None], hi) - np.maximum(a[..., None], lo), 0.0, None).sum(axis=-1)
+        width = b - a
+        inside = ((a[..., None] >= lo) & (a[..., None] <= hi)).any(axis=-1)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            return np.where(width > 1e-12, np.minimum(over / np.where(width > 1e-12, width, 1.0), 1.0),
+                            inside.astype(float))
+
+
+def quality_distributions(assay: Assay, model, warnings: list[str], methods: dict[str, str]) -> dict[str, Quality]:
+    """The distribution of every extra narrow-cut column (see the module docstring).
+
+    Parameters
+    ----------
+    assay : Assay
+    model : CrudeModel
+        Its curve and density distribution place the narrow cuts on the volume and weight bases.
+    warnings, methods : list, dict
+        Appended to: columns without a blending rule of their own are named in one warning.
+
+    Returns
+    -------
+    dict of str to Quality
+    """
+    nc = assay.narrow_cuts
+    if nc is None or not nc.extras:
+        return {}
+    va, vb = narrow_cut_positions(assay, model.curve)
+    wa, wb = model.wt_at_vol(va), model.wt_at_vol(vb)
+    out: dict[str, Quality] = {}
+    unknown = []
+    for name, values in nc.extras.items():
+        rule = rule_for(name)
+        lo, hi = (wa, wb) if rule.basis == "wt" else (va, vb)
+        idx = rule.to_index(values)
+        ok = np.isfinite(idx) & (hi > lo)
+        if not ok.any():
+            continue
+        if not rule.known:
+            unknown.append(name)
+        q = Quality(name, rule, cumulative_index(lo[ok], hi[ok], idx[ok]), np.column_stack([lo[ok], hi[ok]]))
+        note = _reconcile(q, assay, warnings)
+        out[name] = q
+        methods[f"quality {name}"] = (f"{rule.label}; distribution of the index against "
+                                      f"{'weight' if rule.basis == 'wt' else 'volume'} % distilled matching each "
+                                      f"narrow cut" + (f"; reconciled to the whole crude by "
+                                                       f"{q.reconciliation_pct:+.2f} %"
+                                                       if q.reconciliation_pct is not None else "")
+                                      + (f"; {note}" if note else ""))
+    if unknown:
+        warnings.append(f"narrow-cut column(s) {', '.join(unknown)} have no blending rule of their own: carried to "
+                        f"the cuts and blended linearly by weight")
+    return out
+
+
+RECONCILE_WARN_PCT = 20.0
+"""A reconciliation of a quality's index larger than this is warned about (our choice). [%]"""
+
+
+def cumulative_index(lo, hi, idx) -> Pchip:
+    """Monotone-shaped PCHIP of the cumulative index over 0-100 % from cuts [lo, hi] of mean index ``idx``
+    (overlapping cuts: the later start wins); gaps and the ends take the nearest cut's index.
+
+    Examples
+    --------
+    Two cuts, 0-40 % at index 2 and 40-100 % at 5: the mean over 0-40 % is 2 and over 0-100 % 3.8:
+
+    >>> c = cumulative_index(np.array([0.0, 40.0]), np.array([40.0, 100.0]), np.array([2.0, 5.0]))
+    >>> round(float(c(40.0)) / 40, 9), round(float(c(100.0)) / 100, 9)
+    (2.0, 3.8)
+    """
+    order = np.argsort(lo, kind="stable")
+    lo, hi, idx = lo[order], np.minimum(hi[order], np.append(lo[order][1:], np.inf)), idx[order]
+    edges, values = [0.0], []
+    for a, b, v in zip(lo, hi, idx):
+        if a > edges[-1] + 1e-9:  # a gap (or the front): the nearest cut's index, split at the middle
+            mid = a if not values else 0.5 * (edges[-1] + a)
+            if mid > edges[-1] + 1e-9:
+                edges.append(mid)
+                values.append(values[-1] if values else v)
+            if a > edges[-1] + 1e-9:
+                edges.append(a)
+                values.append(v)
+        if b > edges[-1] + 1e-9:
+            edges.append(b)
+            values.append(v)
+    if edges[-1] < 100.0 - 1e-9:
+        edges.append(100.0)
+        values.append(values[-1])
+    e = np.array(edges)
+    cum = np.concatenate([[0.0], np.cumsum(np.diff(e) * np.array(values))])
+    return Pchip(e, cum)
+
+
+def _reconcile(q: Quality, assay: Assay, warnings: list[str]) -> str:
+    """Scale the index so the whole crude reproduces the crude sheet's value of the same name, where the narrow
+    cuts cover the whole crude and the index is positive; returns a note when the value cannot be used."""
+    crude = assay.extras.get(q.name)
+    if not isinstance(crude, (int, float)) or not np.isfinite(crude):
+        return ""
+    if q.coverage(0.0, 100.0) < 0.999:
+        return f"the crude sheet's {crude:g} is not used to reconcile it: the narrow cuts do not cover the whole crude"
+    target = float(q.rule.to_index(crude))
+    mean = float(q.mean_index(0.0, 100.0))
+    if not (target > 0 and mean > 0 and np.all(np.diff(q.cum.y) >= 0)):
+        return f"the crude sheet's {crude:g} is not used to reconcile it: the blending index is not positive"
+    f = target / mean
+    q.cum = Pchip(q.cum.x, q.cum.y * f)
+    q.reconciliation_pct = (f - 1.0) * 100.0
+    if abs(q.reconciliation_pct) > RECONCILE_WARN_PCT:
+        warnings.append(f"{q.name}: the narrow cuts are scaled by {q.reconciliation_pct:+.1f} % to reproduce the "
+                        f"crude sheet's {crude:g}; the cuts and the whole-crude figure disagree")
+    return ""
+
+
+SULFUR_SLICES = 100
+"""Slices of the curve on which the sulfur of a crude without narrow-cut sulfur is estimated."""
+
+
+def estimated_sulfur(model) -> Pchip:
+    """Sulfur against weight % distilled, estimated when only the whole-crude sulfur is known.
+
+    Each slice of the curve is a pseudo-component (Riazi MNL50 §4.8.2): Tb its mean TBP, SG from the density
+    distribution, M by Riazi-Daubert 1987, n20 by Riazi-Daubert 1987 (:func:`refractive_index_riazi_daubert_1987`,
+    used beyond its range for the heavy end), then %S by Riazi, Nasimi & Roomi (1999); the gas range (below
+    n-pentane's boiling point) carries none.  Only the paper's M >= 200 form is used, for every slice, as a
+    shape: its light form is a small difference of large terms (0.001 in Ri moves it 0.17 wt %) and gives
+    0.3-0.9 wt % for the naphtha of a 0.15 wt % demo crude, while the heavy form, clipped at 0, gives none in
+    naphtha rising through the distillates (our choice, outside the heavy form's stated range for the light
+    slices).  The slices' sulfur is made non-decreasing along the curve (sulfur rises with boiling range in
+    straight-run cuts; common practice, no source).  The distribution is then scaled so that the crude reproduces
+    its sulfur (the reference sheet's §5b suggestion; the values are estimates).
+
+    Parameters
+    ----------
+    model : CrudeModel
+        Curve, density distribution and whole-crude sulfur.
+
+    Returns
+    -------
+    Pchip
+        Sulfur [wt %] against weight % distilled, reconciled.
+    """
+    edges = np.linspace(0.0, 100.0, SULFUR_SLICES + 1)
+    va, vb = edges[:-1], edges[1:]
+    tb = model.curve.mean_temp(va, vb)
+    sg = model.mean_sg(va, vb)
+    mw = mw_riazi_daubert_1987(tb, sg)
+    n = refractive_index_riazi_daubert_1987(tb, sg)
+    ri, m = ri_and_m(mw, sg, n)
+    heavy_form = np.maximum(mw, 200.0)  # the M >= 200 form for every slice: see the docstring
+    s = np.where(tb < GAS_RANGE_MAX_C, 0.0, sulfur_riazi_1999(heavy_form, sg, ri, m))
+    s = np.maximum.accumulate(np.nan_to_num(s, nan=0.0))
+    wa, wb = model.wt_at_vol(va), model.wt_at_vol(vb)
+    raw = property_spline(wa, wb, s)
+    total = float(raw.integral(0.0, 100.0)) / 100.0
+    factor = model.sulfur_wt_pct / total if total > 0 else 0.0
+    return Pchip(raw.x, raw.y * factor)

@@ -1,0 +1,102 @@
+"""Every narrow-cut quality on every cut: blending by each property's rule, balances, estimates and flags."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
+from assaycut.cutting.ideal import cut_table
+from assaycut.methods.blending_rules import vbn_refutas, viscosity_from_vbn_refutas
+from assaycut.model.assay import Assay, CurveData, NarrowCuts
+from assaycut.model.crude import build_model
+from assaycut.yields import run_yields
+
+PCT = np.array([0.0, 5.0, 15.0, 30.0, 50.0, 70.0, 85.0, 100.0])
+TMP = np.array([10.0, 60.0, 120.0, 200.0, 300.0, 420.0, 520.0, 650.0])
+STARTS = np.array([np.nan, 120.0, 200.0, 300.0])
+ENDS = np.array([120.0, 200.0, 300.0, np.nan])
+
+
+def _assay(extras, crude_extras=None, sulfur=True):
+    nc = NarrowCuts(STARTS, ENDS, np.full(4, np.nan), np.full(4, np.nan), np.array([0.72, 0.79, 0.84, 0.95]),
+                    np.array([0.05, 0.2, 0.6, 2.4]) if sulfur else np.full(4, np.nan),
+                    {k: np.asarray(v, float) for k, v in extras.items()})
+    return Assay("t", 0.86, [CurveData("TBP", "vol", PCT, TMP)], sulfur_wt_pct=1.3, narrow_cuts=nc,
+                 extras=crude_extras or {})
+
+
+TWO_CUTS = CutSet([Cut("light", 120.0), Cut("middle", 300.0), Cut("rest", None)])
+"""'middle' is made of the whole narrow cuts 120-200 and 200-300 °C."""
+
+
+def test_cut_of_whole_narrow_cuts_blends_by_each_rule():
+    # Identity of the rules: a cut made of two whole narrow cuts returns their weight-weighted mean for a
+    # mass-additive property (nitrogen), their Refutas blend by weight for viscosity (Maples 2000), and their
+    # volume-weighted Hu-Burns blend for the cloud point (Hu & Burns 1970).
+    a = _assay({"nitrogen_wt_ppm": [0.0, 40.0, 300.0, 2500.0], "viscosity_50c_cst": [0.5, 1.2, 3.5, 900.0],
+                "cloud_point_c": [np.nan, -40.0, -5.0, np.nan]})
+    m = build_model(a)
+    nc = cut_table(m, CutSet([Cut("a", 120.0), Cut("b", 200.0), Cut("c", 300.0), Cut("d", None)])).set_index("name")
+    mid = cut_table(m, TWO_CUTS).set_index("name").loc["middle"]
+    w, v = nc.loc[["b", "c"], "wt_pct"].to_numpy(), nc.loc[["b", "c"], "vol_pct"].to_numpy()
+    assert mid["nitrogen_wt_ppm"] == pytest.approx(np.dot(w, [40.0, 300.0]) / w.sum(), rel=1e-6)
+    assert nc.loc["b", "nitrogen_wt_ppm"] == pytest.approx(40.0, rel=1e-6)  # each narrow cut reproduced
+    refutas = viscosity_from_vbn_refutas(np.dot(w, vbn_refutas([1.2, 3.5])) / w.sum())
+    assert mid["viscosity_50c_cst"] == pytest.approx(refutas, rel=1e-6)
+    k = np.array([-40.0, -5.0]) + 273.15
+    hu_burns = (np.dot(v, k ** 20) / v.sum()) ** 0.05 - 273.15
+    assert mid["cloud_point_c"] == pytest.approx(hu_burns, abs=1e-4)
+    assert "cloud_point_c" not in mid["estimated"] and "nitrogen_wt_ppm" not in mid["estimated"]
+
+
+def test_nitrogen_balance_over_the_cuts():
+    # Mass balance (identity): Σ wt % x N over the cuts equals the crude's nitrogen, here the crude sheet's
+    # value the narrow cuts are reconciled to (the scale is reported).
+    a = _assay({"nitrogen_wt_ppm": [0.0, 40.0, 300.0, 2500.0]}, {"nitrogen_wt_ppm": 800.0})
+    res = run_yields(a, default_cut_set())
+    cuts = res.cuts
+    assert (cuts["wt_pct"] * cuts["nitrogen_wt_ppm"]).sum() / 100.0 == pytest.approx(800.0, rel=1e-6)
+    assert "reconciled to the whole crude" in res.methods["quality nitrogen_wt_ppm"]
+
+
+def test_column_without_a_rule_is_carried_with_its_warning():
+    # A column the rules do not know is never refused nor dropped: carried, linear by weight, and warned about.
+    res = run_yields(_assay({"colour_index": [0.5, 1.0, 2.0, 6.0]}), TWO_CUTS)
+    assert "colour_index" in res.cuts.columns and np.isfinite(res.cuts["colour_index"]).all()
+    assert any("colour_index have no blending rule of their own" in w for w in res.warnings)
+
+
+def test_estimated_sulfur_balances_and_rises_with_boiling_range():
+    # With whole-crude sulfur only: mass balance to the crude (identity) and sulfur rising from naphtha to
+    # residue (common practice, no source); every cut's sulfur is flagged estimated.
+    res = run_yields(_assay({}, sulfur=False), default_cut_set())
+    cuts = res.cuts[res.cuts["vol_pct"] > 0]
+    assert (cuts["wt_pct"] * cuts["sulfur_wt_pct"]).sum() / 100.0 == pytest.approx(1.3, rel=1e-9)
+    s = cuts["sulfur_wt_pct"].to_numpy()
+    assert np.all(np.diff(s) >= -1e-12) and s[-1] > 1.3 > s[1]
+    assert all("sulfur_wt_pct" in e for e in cuts["estimated"])
+
+
+def test_whole_crude_data_only_gets_estimated_cold_flow_and_viscosity():
+    # A crude given with whole-crude data only: kerosene and diesel get estimated freeze/cloud points and
+    # viscosity, flagged estimated, not extrapolated-only; the ordering of the trade holds (diesel cloud point
+    # above kerosene freeze point, diesel more viscous; common practice, no source).
+    a = Assay("t", 0.86, [CurveData("TBP", "vol", PCT, TMP)], sulfur_wt_pct=1.3)
+    cuts = run_yields(a, default_cut_set()).cuts.set_index("name")
+    kero, diesel = cuts.loc["kerosene"], cuts.loc["diesel"]
+    for col in ("freeze_point_c", "viscosity_40c_cst", "sulfur_wt_pct"):
+        assert np.isfinite(kero[col]) and col in kero["estimated"]
+    for col in ("cloud_point_c", "pour_point_c", "viscosity_40c_cst"):
+        assert np.isfinite(diesel[col]) and col in diesel["estimated"]
+    assert diesel["cloud_point_c"] > kero["freeze_point_c"]
+    assert diesel["viscosity_40c_cst"] > kero["viscosity_40c_cst"]
+
+
+def test_d341_gives_40c_viscosity_from_two_measured_temperatures():
+    # ASTM D341 (Walther) through the cut's own two measured viscosities: the 40 °C value lies between the
+    # 20 and 50 °C ones and is flagged estimated (derived, not measured).
+    a = _assay({"viscosity_20c_cst": [0.7, 1.9, 6.0, 5000.0], "viscosity_50c_cst": [0.5, 1.2, 3.5, 900.0]})
+    mid = run_yields(a, TWO_CUTS).cuts.set_index("name").loc["middle"]
+    assert mid["viscosity_50c_cst"] < mid["viscosity_40c_cst"] < mid["viscosity_20c_cst"]
+    assert "viscosity_40c_cst" in mid["estimated"]
