@@ -11,7 +11,8 @@ from dataclasses import dataclass, field
 
 from .cutting.cutset import CutSet
 from .cutting.ideal import closure, cut_table
-from .cutting.limits import Limit, check_limits
+from .cutting.limits import Limit, check_limits, unmatched_cuts
+from .cutting.qualities import ESTIMATED, NOT_ESTIMATED
 from .methods.product_properties import describe_ranges
 from .model.assay import Assay
 from .model.crude import CrudeModel, build_model
@@ -116,8 +117,13 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     lim = check_limits(cuts, limits or [])
     clo = closure(cuts)
     warnings = list(model.warnings) + _cut_warnings(cuts, model)
+    missing = unmatched_cuts(limits or [], list(cuts["name"]))
+    if missing:
+        warnings.append(f"limits on {', '.join(repr(c) for c in missing)} are not checked: the cut set "
+                        f"({cut_set.label}) has no cut of that name; rename the cut or the limit")
     methods = dict(model.methods)
     methods.update(METHOD_NOTES)
+    methods["estimated qualities"] = "; ".join(f"{k}: {v}" for k, v in ESTIMATED.items()) + ". " + NOT_ESTIMATED
     if products is not None:
         methods["fractionation"] = (
             "real-column products: each cut point splits smoothly (normal split) with the TBP 5-95 overlap "

@@ -88,8 +88,10 @@ class TdMethod(str, enum.Enum):
 CutsOpt = Annotated[Optional[Path], typer.Option("--cuts", help="Cut-set TOML file ([[cut]] name, end_c). "
                                                   "Default: the shipped cut set (see cuts_default.toml).",
                                                   dir_okay=False)]
-LimitsOpt = Annotated[Optional[Path], typer.Option("--limits", help="Product-limits TOML file ([[limit]]). "
-                                                    "Default: typical EN 590 / ASTM D1655 values, from memory.",
+LimitsOpt = Annotated[Optional[Path], typer.Option("--limits", help="Product-limits TOML file ([[limit]]), or a "
+                                                    "shipped set: 'blendstock' (default: straight-run targets a "
+                                                    "planner cuts to) or 'finished' (EN 590 / ASTM D1655 finished-"
+                                                    "fuel specs). Shipped values are from memory.",
                                                     dir_okay=False)]
 PricesOpt = Annotated[Optional[Path], typer.Option("--prices", help="Price file (TOML): [products] price per cut "
                                                     "per_bbl or per_t, optional [crudes] prices.", dir_okay=False)]

@@ -19,7 +19,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..methods.blending_indices import RULES, VISCOSITY
 from ..methods.d86 import D86_STD
+from .qualities import ESTIMATED
 
 RECOVERED_AT = re.compile(r"^recovered_at_(\d+(?:\.\d+)?)c_pct$")
 """Property name of the D86 volume recovered at a temperature."""
@@ -78,10 +80,16 @@ class Limit:
         return f"{self.cut}: {self.label or self.property} {self.bounds_text()}"
 
 
+def is_quality(prop: str) -> bool:
+    """True for a narrow-cut quality or estimated property name (:mod:`assaycut.methods.blending_indices`,
+    :data:`assaycut.cutting.qualities.ESTIMATED`)."""
+    return prop in RULES or bool(VISCOSITY.match(prop)) or prop in ESTIMATED
+
+
 def validate_property(prop: str) -> bool:
     """True if ``prop`` is a property name a limit can check (or is known to be unavailable)."""
     return (prop in SCALAR_PROPERTIES or bool(RECOVERED_AT.match(prop)) or bool(D86_POINT.match(prop))
-            or prop in UNAVAILABLE)
+            or prop in UNAVAILABLE or is_quality(prop))
 
 
 def recovered_at(d86_c: np.ndarray, temp_c: float) -> np.ndarray:
@@ -146,6 +154,8 @@ def limit_values(cols: dict, j: int, prop: str) -> np.ndarray:
     r = RECOVERED_AT.match(prop)
     if r:
         return recovered_at(cols["d86"][:, j, :], float(r.group(1)))
+    if prop not in cols:  # a quality this crude has no narrow-cut data or estimate for
+        return np.full(m, np.nan)
     return np.asarray(cols[prop][:, j], dtype=float)
 
 
@@ -154,6 +164,8 @@ def _why_missing(prop: str) -> str:
         return UNAVAILABLE[prop]
     if D86_POINT.match(prop) or RECOVERED_AT.match(prop):
         return "no D86 estimate for this cut"
+    if is_quality(prop):
+        return f"no narrow-cut {prop} covers this cut, and no estimate applies inside its correlation's range"
     return f"{prop} is not estimated for this cut"
 
 
@@ -161,6 +173,7 @@ def frame_columns(cuts) -> dict[str, np.ndarray]:
     """Cut-column arrays of one row from a cut table (the inverse of
     :func:`assaycut.cutting.ideal.columns_frame` for the properties a limit can name)."""
     cols = {c: cuts[c].to_numpy(dtype=float)[None, :] for c in SCALAR_PROPERTIES}
+    cols.update({c: cuts[c].to_numpy(dtype=float)[None, :] for c in cuts.columns if is_quality(c)})
     nan7 = [math.nan] * len(D86_STD)
     cols["d86"] = np.array([[[float(d[str(p)]) for p in D86_STD] if d else nan7 for d in cuts["d86_c"]]])
     return cols
@@ -177,8 +190,15 @@ def meets(lim: Limit, value: float) -> bool:
 
 
 def applicable(limits: list[Limit], names: list[str]) -> list[Limit]:
-    """The limits whose cut is among ``names`` (a limit on a cut the cut set lacks does not apply)."""
+    """The limits whose cut is among ``names`` (a limit on a cut the cut set lacks does not apply; see
+    :func:`unmatched_cuts`)."""
     return [lim for lim in limits if lim.cut in names]
+
+
+def unmatched_cuts(limits: list[Limit], names: list[str]) -> list[str]:
+    """Cut names that limits refer to but the cut set does not have (e.g. 'kerosene' after a renaming to
+    'kero'), in the limits' order: those limits are not checked, and reports say so."""
+    return list(dict.fromkeys(lim.cut for lim in limits if lim.cut not in names))
 
 
 def check_limits(cuts, limits: list[Limit]):

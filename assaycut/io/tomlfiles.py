@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 import tomllib
 from importlib import resources
+from pathlib import Path
 
 from ..cutting.cutset import Cut, CutSet
 from ..cutting.limits import LIMIT_KEYS, SCALAR_PROPERTIES, Limit, validate_property
@@ -104,7 +105,8 @@ def limits_from_dicts(items: list[dict], where: str) -> list[Limit]:
                 raise InputError(f"[[limit]] {i}: '{k}' must be a non-empty text", file=where)
         if not validate_property(it["property"]):
             raise InputError(f"[[limit]] {i}: unknown property {it['property']!r}; expected a cut-table column "
-                             f"({', '.join(SCALAR_PROPERTIES)}), d86_<p>_c or recovered_at_<T>c_pct", file=where)
+                             f"({', '.join(SCALAR_PROPERTIES)}), a quality (e.g. freeze_point_c, viscosity_40c_cst, "
+                             f"nitrogen_wt_ppm), d86_<p>_c or recovered_at_<T>c_pct", file=where)
         lo, hi = it.get("min"), it.get("max")
         for k, v in (("min", lo), ("max", hi)):
             if v is not None and (isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v)):
@@ -119,12 +121,17 @@ def limits_from_dicts(items: list[dict], where: str) -> list[Limit]:
     return out
 
 
+SHIPPED_LIMITS = {"blendstock": "limits_default.toml", "finished": "limits_finished.toml"}
+"""The shipped limit sets by name: straight-run blendstock targets (the default) and finished-fuel specs."""
+
+
 def read_limits(path: str | None = None) -> list[Limit]:
-    """Read a product-limits TOML file (``[[limit]]`` tables); None reads the shipped defaults."""
-    if path is None:
-        ref = resources.files("assaycut.data").joinpath("limits_default.toml")
-        return limits_from_dicts(tomllib.loads(ref.read_text(encoding="utf-8")).get("limit", []),
-                                 "limits_default.toml")
+    """Read a product-limits TOML file (``[[limit]]`` tables); None reads the shipped default (blendstock
+    targets), and a shipped set's name (:data:`SHIPPED_LIMITS`) that set, unless a file of that name exists."""
+    if path is None or (path in SHIPPED_LIMITS and not Path(path).exists()):
+        name = SHIPPED_LIMITS.get(path or "blendstock")
+        ref = resources.files("assaycut.data").joinpath(name)
+        return limits_from_dicts(tomllib.loads(ref.read_text(encoding="utf-8")).get("limit", []), name)
     doc = _load(path)
     unknown = set(doc) - {"limit"}
     if unknown:

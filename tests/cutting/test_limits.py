@@ -75,3 +75,30 @@ def test_every_shipped_limit_is_evaluable_on_the_demo_crudes(demo_paths):
     for p in demo_paths:
         res = run_yields(load_assay(p), default_cut_set(), limits)
         assert (res.limits["status"] != "n/a").all(), res.limits.loc[res.limits["status"] == "n/a", "label"].tolist()
+
+
+def test_limit_on_a_missing_cut_warns_by_name(demo_paths):
+    # A limit on a cut the cut set does not have (kerosene renamed kero) is named in a warning, never dropped
+    # silently.
+    from assaycut.cutting.cutset import Cut, CutSet
+    from assaycut.io import load_assay
+    from assaycut.io.tomlfiles import read_limits
+    from assaycut.yields import run_yields
+
+    cs = CutSet([Cut("naphtha", 177.0), Cut("kero", 232.0), Cut("diesel", 343.0), Cut("rest", None)], "test cuts")
+    res = run_yields(load_assay(demo_paths[0]), cs, read_limits(None))
+    assert any("limits on 'kerosene' are not checked" in w and "test cuts" in w for w in res.warnings)
+
+
+def test_shipped_limit_sets_and_quality_limits():
+    # The two shipped sets load by name; the default holds the limits that bind cut points (jet freeze and
+    # smoke point, diesel cloud point and 40 °C viscosity, sulfur), each with a source that says to verify it.
+    from assaycut.io.tomlfiles import read_limits
+
+    default, finished = read_limits(None), read_limits("finished")
+    assert read_limits("blendstock") == default and finished != default
+    props = {(lim.cut, lim.property) for lim in default}
+    assert {("kerosene", "freeze_point_c"), ("kerosene", "smoke_point_mm"), ("diesel", "cloud_point_c"),
+            ("diesel", "viscosity_40c_cst"), ("diesel", "sulfur_wt_pct")} <= props
+    for lim in default + finished:
+        assert lim.source and ("verify" in lim.source or "our choice" in lim.source), lim
