@@ -26,7 +26,8 @@ from ..methods.d86 import D86_STD
 from ..model.crude import CrudeModel
 from .cutset import CutSet
 from ..methods.characterisation import meabp_pseudo_components
-from .ideal import columns_frame, derive_qualities
+from .ideal import LIGHT_ENDS_MAX_C, columns_frame, derive_qualities
+from .qualities import product_quality_columns
 
 Z95 = 1.6448536269514722
 """Standard normal quantile of 95 %."""
@@ -157,6 +158,11 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     with np.errstate(invalid="ignore", divide="ignore"):
         meabp = meabp_pseudo_components(t_mean, mass / dv, (f * dv[:, None]).T)
     cols.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp))
+    gas = (np.isfinite(t_end) & (t_end <= LIGHT_ENDS_MAX_C)) | (vol <= 1e-9)
+    vals, est = product_quality_columns(model, (va, vb, wa, wb), f, dv, mass, cols["meabp_c"], cols["sg"],
+                                        cols["watson_k"], gas)
+    cols.update(vals)
+    cols["estimated"] = est
     reach = (f * dv[:, None] > 1e-9 * dv.sum())
     out_of_range = curve.is_extrapolated(va, vb)[:, None]
     cols["extrapolated"] = (np.any(reach & out_of_range, axis=0) | bool(model.all_on_extension)) & (vol > 1e-9)

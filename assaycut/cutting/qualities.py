@@ -81,8 +81,62 @@ def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas) -> tuple[dict[str
         for r, quals in enumerate(rows):
             for name, v in _measured(quals, va[r], vb[r], wa[r], wb[r], some[r]).items():
                 values.setdefault(name, np.full(va.shape, np.nan))[r] = v
+    sul = getattr(model, "sulfur_rows_estimated", None)
+    if sul is not None:
+        estimated["sulfur_wt_pct"] = some & sul.reshape((-1,) + (1,) * (va.ndim - 1))
+    elif getattr(model, "sulfur_estimated", False):
+        estimated["sulfur_wt_pct"] = np.broadcast_to(some, va.shape).copy()
+    add_estimates(values, estimated, meabp, sg, kw, some & ~gas)
+    return values, estimated
+
+
+def product_quality_columns(model, slice_bounds, f, dv, mass, meabp, sg, kw, gas):
+    """:func:`quality_columns` for real-column products made of slices of the crude.
+
+    Parameters
+    ----------
+    model : CrudeModel
+    slice_bounds : tuple of numpy.ndarray
+        (va, vb, wa, wb) of each slice. [%]
+    f : numpy.ndarray
+        Fraction of each slice in each product, (slices, products).
+    dv, mass : numpy.ndarray
+        Each slice's volume [vol %] and SG x volume (the weight basis) [-].
+    meabp, sg, kw, gas : numpy.ndarray
+        Per product, as in :func:`quality_columns`.
+
+    Returns
+    -------
+    (dict, dict)
+        As :func:`quality_columns`: each product's index is the volume- or weight-weighted mean of its slices'
+        indices, on the quality's basis.
+    """
+    va, vb, wa, wb = slice_bounds
+    values: dict[str, np.ndarray] = {}
+    for name, q in model.qualities.items():
+        a, b, w = (wa, wb, mass) if q.rule.basis == "wt" else (va, vb, dv)
+        weight = f * w[:, None]
+        idx = q.mean_index(a, b)
+        cover = q.coverage(a, b)
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            total = weight.sum(axis=0)
+            mean = (weight * np.nan_to_num(idx)[:, None]).sum(axis=0) / total
+            covered = (weight * (cover >= COVERED_FRACTION)[:, None]).sum(axis=0) / total
+            values[name] = np.where(covered >= COVERED_FRACTION, q.rule.from_index(mean), np.nan)
+    estimated: dict[str, np.ndarray] = {}
+    some = f.sum(axis=0) > 0
+    if model.sulfur_estimated:
+        estimated["sulfur_wt_pct"] = some.copy()
+    add_estimates(values, estimated, meabp, sg, kw, some & ~gas)
+    return values, estimated
+
+
+def add_estimates(values: dict, estimated: dict, meabp, sg, kw, ok) -> None:
+    """Fill the estimated qualities (:data:`ESTIMATED`) where not measured, inside each correlation's range and
+    where ``ok``; viscosities measured at two temperatures first give the 40 and 100 °C values by ASTM D341."""
+    shape = np.shape(meabp)
     _d341_from_measured(values, estimated)
-    ok = some & ~gas & np.isfinite(meabp) & np.isfinite(sg)
+    ok = ok & np.isfinite(meabp) & np.isfinite(sg)
     with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
         nu100f, nu210f = viscosity_api_11a4_2(meabp, kw)
         est = {
@@ -97,16 +151,10 @@ def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas) -> tuple[dict[str
                                      ok & refractive_index_in_range(meabp)),
         }
     for name, (v, valid) in est.items():
-        have = values.get(name, np.full(va.shape, np.nan))
+        have = values.get(name, np.full(shape, np.nan))
         fill = ~np.isfinite(have) & valid & np.isfinite(v)
         values[name] = np.where(fill, v, have)
-        estimated[name] = fill | estimated.get(name, np.zeros(va.shape, bool))
-    sul = getattr(model, "sulfur_rows_estimated", None)
-    if sul is not None:
-        estimated["sulfur_wt_pct"] = some & sul.reshape((-1,) + (1,) * (va.ndim - 1))
-    elif getattr(model, "sulfur_estimated", False):
-        estimated["sulfur_wt_pct"] = np.broadcast_to(some, va.shape).copy()
-    return values, estimated
+        estimated[name] = fill | estimated.get(name, np.zeros(shape, bool))
 
 
 def _measured(qualities: dict, va, vb, wa, wb, some) -> dict[str, np.ndarray]:

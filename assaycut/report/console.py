@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 
 from .studyreports import compare_wide
-from .tables import text_table
+from .tables import quality_text_table, text_table
 
 FLASH_FOOTNOTE = ("\n* Flash points are correlation estimates: measure them (ASTM D93). All results are screening "
                   "estimates; see the notes sheet of the report for methods and cautions.")
@@ -17,6 +17,9 @@ def yield_text(result) -> list[str]:
     lines = [f"\n{a.name}  ({a.origin or 'origin not given'})  {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
              + (f"{result.model.sulfur_wt_pct:.3f} wt %" if result.model.sulfur_wt_pct is not None else "n/a"),
              text_table(result.cuts)]
+    q = quality_text_table(result.cuts)
+    if q:
+        lines += ["", q]
     fails = result.limits[result.limits["status"] == "fail"]
     if len(fails):
         lines.append("Limits failed: " + "; ".join(f"{x['cut']} {x['label'] or x['property']} "

@@ -198,3 +198,58 @@ BIN_C = 5.0
 CUT_COLOURS_DARK = ["#546e7a", "#0277bd", "#00838f", "#f9a825", "#ef6c00", "#6d4c41", "#3e2723", "#2e7d32",
                     "#6a1b9a", "#c62828"]
 """Line colours of the products, in order (our own palette)."""
+
+
+def plot_qualities(result, target) -> None:
+    """One panel per quality: the narrow cuts' measured values as steps over their range, and each cut's
+    value as a bar across the cut (solid: from the narrow cuts; hatched: estimated by a correlation)."""
+    from ..methods.blending_indices import rule_for
+    from ..model.distributions import narrow_cut_positions
+    from .tables import label_for, quality_names
+
+    plt = pyplot()
+    cuts = result.cuts
+    names = quality_names(cuts)
+    ncol = 4
+    nrow = -(-len(names) // ncol)
+    fig, axes = plt.subplots(nrow, ncol, figsize=(4.2 * ncol, 3.0 * nrow), squeeze=False)
+    m = result.model
+    nc = result.assay.narrow_cuts
+    pos = narrow_cut_positions(result.assay, m.curve) if nc is not None else None
+    recs = cuts.to_dict("records")
+    for ax, name in zip(axes.flat, names):
+        wt = rule_for(name).basis == "wt"
+        for r in recs:
+            val = r[name]
+            if val is None or not np.isfinite(val):
+                continue
+            lo = (r["cum_wt_pct"] - r["wt_pct"]) if wt else (r["cum_vol_pct"] - r["vol_pct"])
+            hi = r["cum_wt_pct"] if wt else r["cum_vol_pct"]
+            est = name in r["estimated"]
+            ax.bar((lo + hi) / 2, val, width=hi - lo, color="#9fa8da" if not est else "#ffe082",
+                   edgecolor="#283593" if not est else "#ff8f00", hatch="//" if est else None, lw=0.6, alpha=0.8)
+        if pos is not None and name in nc.extras:
+            va, vb = pos
+            a, b = (m.wt_at_vol(va), m.wt_at_vol(vb)) if wt else (va, vb)
+            y = nc.extras[name]
+            ok = np.isfinite(y)
+            ax.hlines(y[ok], a[ok], b[ok], color="#b71c1c", lw=2, label="narrow cuts (measured)")
+        ax.set_title(label_for(name), fontsize=9)
+        ax.set_xlabel(f"Distilled [{'wt' if wt else 'vol'} %]", fontsize=8)
+        ax.set_xlim(0, 100)
+        ax.tick_params(labelsize=7)
+        ax.grid(alpha=0.3)
+        if name.startswith("viscosity") and np.nanmax(cuts[name].to_numpy(float)) > 50:
+            ax.set_yscale("log")
+    for ax in list(axes.flat)[len(names):]:
+        ax.axis("off")
+    from matplotlib.patches import Patch
+
+    fig.legend(handles=[Patch(facecolor="#9fa8da", edgecolor="#283593", label="cut, from the narrow cuts"),
+                        Patch(facecolor="#ffe082", edgecolor="#ff8f00", hatch="//", label="cut, estimated"),
+                        plt.Line2D([], [], color="#b71c1c", lw=2, label="narrow cut, measured")],
+               loc="lower center", ncol=3, fontsize=9, frameon=False)
+    fig.suptitle(f"{result.assay.name}: qualities per cut (estimates for screening)")
+    fig.tight_layout(rect=(0, 0.04, 1, 0.97))
+    _save(fig, target)
+    plt.close(fig)

@@ -28,15 +28,67 @@ LABELS = {
     "cetane_index_d4737": "Cetane index D4737 [-]",
     "flash_c_est": "Flash point est. [°C]",
     "extrapolated": "Extrapolated",
+    "vabp_d86_c": "VABP of D86 [°C]",
+    "estimated": "Estimated values",
+    "nitrogen_wt_ppm": "Nitrogen [wt ppm]",
+    "basic_nitrogen_wt_ppm": "Basic nitrogen [wt ppm]",
+    "mercaptan_sulfur_wt_ppm": "Mercaptan sulfur [wt ppm]",
+    "nickel_wt_ppm": "Nickel [wt ppm]",
+    "vanadium_wt_ppm": "Vanadium [wt ppm]",
+    "ccr_wt_pct": "CCR [wt %]",
+    "asphaltenes_wt_pct": "Asphaltenes [wt %]",
+    "wax_wt_pct": "Wax [wt %]",
+    "acid_number_mg_koh_g": "Acid number [mg KOH/g]",
+    "paraffins_vol_pct": "Paraffins [vol %]",
+    "naphthenes_vol_pct": "Naphthenes [vol %]",
+    "aromatics_vol_pct": "Aromatics [vol %]",
+    "pour_point_c": "Pour point [°C]",
+    "cloud_point_c": "Cloud point [°C]",
+    "freeze_point_c": "Freezing point [°C]",
+    "flash_point_c": "Flash point, measured [°C]",
+    "rvp_kpa": "RVP [kPa]",
+    "ron": "RON [-]",
+    "mon": "MON [-]",
+    "smoke_point_mm": "Smoke point [mm]",
+    "aniline_point_c": "Aniline point [°C]",
+    "refractive_index_20c": "Refractive index 20 °C [-]",
 }
 """Report header of each cut-table column, with its unit."""
 for _p in D86_STD:
     LABELS[f"d86_{_p}_c"] = f"D86 {_p} % [°C]"
 
+_UNITS = {"c": "°C", "f": "°F", "k": "K", "pct": "%", "wt_pct": "wt %", "vol_pct": "vol %", "cst": "cSt",
+          "cp": "cP", "mg_koh_g": "mg KOH/g", "kg_m3": "kg/m³", "ppm": "ppm", "wt_ppm": "wt ppm", "mg_kg": "mg/kg",
+          "kpa": "kPa", "psi": "psi", "mm": "mm"}
+
+
+def label_for(col: str) -> str:
+    """The report header of a column: :data:`LABELS`, a viscosity at its temperature, or the name with its
+    unit suffix spelled out (e.g. 'colour_index' stays as it is, 'wax_content_wt_pct' -> 'Wax content [wt %]')."""
+    if col in LABELS:
+        return LABELS[col]
+    import re
+
+    v = re.match(r"^viscosity_(\d+(?:\.\d+)?)c_cst$", col)
+    if v:
+        return f"Viscosity {v.group(1)} °C [cSt]"
+    for suffix in sorted(_UNITS, key=len, reverse=True):
+        if col.endswith("_" + suffix):
+            return f"{col[:-len(suffix) - 1].replace('_', ' ').capitalize()} [{_UNITS[suffix]}]"
+    return col
+
 FORMATS = {"vol_pct": "0.00", "wt_pct": "0.00", "cum_vol_pct": "0.00", "cum_wt_pct": "0.00", "sg": "0.0000",
            "api": "0.0", "density_15c_kg_m3": "0.0", "watson_k": "0.00", "sulfur_wt_pct": "0.000",
-           "sulfur_share_pct": "0.0", "mw": "0", "cetane_index_d4737": "0.0"}
+           "sulfur_share_pct": "0.0", "mw": "0", "cetane_index_d4737": "0.0", "refractive_index_20c": "0.0000",
+           "acid_number_mg_koh_g": "0.00", "nitrogen_wt_ppm": "0", "smoke_point_mm": "0.0"}
 """Spreadsheet number formats by column; temperatures default to 0.0."""
+
+
+def quality_names(cuts) -> list[str]:
+    """The quality columns of a cut table beyond the standard ones (narrow-cut qualities and estimates)."""
+    from ..cutting.ideal import CUT_COLUMNS
+
+    return [c for c in cuts.columns if c not in CUT_COLUMNS and c != "estimated"]
 
 
 def flat_cut_rows(cuts) -> tuple[list[str], list[list]]:
@@ -55,7 +107,7 @@ def flat_cut_rows(cuts) -> tuple[list[str], list[list]]:
                 row += [d.get(str(p)) for p in D86_STD]
             else:
                 row.append(rec[c])
-        rows.append(row)
+        rows.append(["; ".join(v) if isinstance(v, (list, tuple)) else v for v in row])
     return names, rows
 
 
@@ -73,6 +125,32 @@ TERMINAL_COLUMNS = [("name", "Cut", 0), ("start_c", "Start °C", 0), ("end_c", "
                     ("vol_pct", "vol %", 2), ("wt_pct", "wt %", 2), ("api", "API", 1), ("sg", "SG", 4),
                     ("sulfur_wt_pct", "S wt %", 3), ("watson_k", "Kw", 2), ("mid_vol_c", "Mid °C", 0),
                     ("cetane_index_d4737", "CCI", 1), ("flash_c_est", "Flash °C*", 0), ("extrapolated", "Extrap.", 0)]
+
+
+TERMINAL_QUALITIES = [("freeze_point_c", "Freeze °C", 0), ("smoke_point_mm", "Smoke mm", 1),
+                      ("cloud_point_c", "Cloud °C", 0), ("pour_point_c", "Pour °C", 0),
+                      ("viscosity_40c_cst", "ν40 cSt", 2), ("viscosity_100c_cst", "ν100 cSt", 1),
+                      ("nitrogen_wt_ppm", "N ppm", 0), ("ccr_wt_pct", "CCR wt %", 1),
+                      ("nickel_wt_ppm", "Ni ppm", 1), ("vanadium_wt_ppm", "V ppm", 1)]
+"""The qualities the terminal shows, when present (all of them are in the report files and JSON)."""
+
+
+def quality_text_table(cuts) -> str:
+    """The key qualities per cut as aligned text; estimated values end in '~'; '' when there are none."""
+    cols = [(c, h, nd) for c, h, nd in TERMINAL_QUALITIES if c in cuts.columns]
+    if not cols:
+        return ""
+    head = ["Cut"] + [h for _, h, _ in cols]
+    body = [[str(r["name"])] + [_fmt(r[c], nd) + ("~" if c in r["estimated"] and _fmt(r[c], nd) != "-" else "")
+                                for c, _, nd in cols] for r in cuts.to_dict("records")]
+    widths = [max(len(x) for x in col) for col in zip(head, *body)]
+    lines = ["  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, (h, w) in enumerate(zip(head, widths)))]
+    lines.append("  ".join("-" * w for w in widths))
+    for row in body:
+        lines.append("  ".join(x.ljust(w) if i == 0 else x.rjust(w) for i, (x, w) in enumerate(zip(row, widths))))
+    lines.append("~ estimated by a published correlation (no narrow-cut data covers the cut); every quality is in "
+                 "the report's qualities sheet")
+    return "\n".join(lines)
 
 
 def text_table(cuts) -> str:

@@ -9,7 +9,7 @@ import re
 from pathlib import Path
 
 from ..files import atomic_write, safe_text
-from .tables import LABELS, flat_cut_rows, markdown_summary
+from .tables import flat_cut_rows, label_for, markdown_summary, quality_names
 
 
 def slug(name: str) -> str:
@@ -58,9 +58,10 @@ def png_bytes(plot, first, *rest, **kwargs) -> bytes:
 def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ()) -> list[Path]:
     """Write the full yield report of one assay into ``outdir``.
 
-    Files: ``<crude>_yields.xlsx`` (summary, cuts, curve, curve wt basis, limits, notes), ``<crude>_cuts.csv``,
-    ``<crude>_summary.md``, ``<crude>_tbp.png``, ``<crude>_yields.png``, ``<crude>_properties.png``, and with
-    real-column overlaps ``<crude>_products.png``.
+    Files: ``<crude>_yields.xlsx`` (summary, cuts, qualities, curve, curve wt basis, limits, notes),
+    ``<crude>_cuts.csv``, ``<crude>_summary.md``, ``<crude>_tbp.png``, ``<crude>_yields.png``,
+    ``<crude>_properties.png``, ``<crude>_qualities.png`` (when the cuts have qualities beyond gravity and
+    sulfur), and with real-column overlaps ``<crude>_products.png``.
 
     Returns
     -------
@@ -76,11 +77,13 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ())
     yield_workbook(result).save(buf)
     files[f"{base}_yields.xlsx"] = buf.getvalue()
     names, rows = flat_cut_rows(result.cuts)
-    files[f"{base}_cuts.csv"] = csv_text([LABELS.get(n, n) for n in names], rows).encode("utf-8")
+    files[f"{base}_cuts.csv"] = csv_text([label_for(n) for n in names], rows).encode("utf-8")
     files[f"{base}_summary.md"] = markdown_summary(result).encode("utf-8")
     files[f"{base}_tbp.png"] = png_bytes(plots.plot_tbp, result)
     files[f"{base}_yields.png"] = png_bytes(plots.plot_yields, result)
     files[f"{base}_properties.png"] = png_bytes(plots.plot_properties, result)
+    if quality_names(result.cuts):
+        files[f"{base}_qualities.png"] = png_bytes(plots.plot_qualities, result)
     if result.products is not None:
         files[f"{base}_products.png"] = png_bytes(plots.plot_products, result)
     return place_files(outdir, files, inputs)

@@ -11,7 +11,7 @@ import math
 import numpy as np
 
 from ..files import safe_text
-from .tables import FORMATS, LABELS, flat_cut_rows
+from .tables import FORMATS, LABELS, flat_cut_rows, label_for, quality_names
 
 HEADER_FILL = "DDE6EE"
 
@@ -87,8 +87,10 @@ def yield_workbook(result):
     _summary_sheet(wb.active, result)
     names, rows = flat_cut_rows(result.cuts)
     ws = wb.create_sheet("cuts")
-    write_table(ws, [LABELS.get(n, n) for n in names], rows, [_fmt_for(n) for n in names])
+    write_table(ws, [label_for(n) for n in names], rows, [_fmt_for(n) for n in names])
     ws.column_dimensions["A"].width = 20
+    if quality_names(result.cuts):
+        _qualities_sheet(wb.create_sheet("qualities"), result)
     ws = wb.create_sheet("curve")
     write_table(ws, ["Distilled [vol %]", "TBP [°C]", "Distilled [wt %]", "Local SG 60/60 °F [-]",
                      "Local sulfur [wt %]", "Extrapolated"], curve_rows(result),
@@ -127,7 +129,7 @@ def _summary_sheet(ws, result) -> None:
             ("Closure residual, wt [%]", result.closure["wt_pct"], "0.0E+00"),
             ("Cut set", result.cut_set.label, None)]
     for k, v in a.extras.items():
-        info.append((k, v, None))
+        info.append((f"Whole crude: {label_for(k)}", v, None))
     write_table(ws, ["Item", "Value"], [[k, v] for k, v, _ in info], [None, None], start_row=4, widths=[30, 44])
     for i, (_, _, f) in enumerate(info, start=5):
         if f and isinstance(ws.cell(row=i, column=2).value, (int, float)):
@@ -139,6 +141,42 @@ def _summary_sheet(ws, result) -> None:
     write_table(ws, ["Cut", LABELS["vol_pct"], LABELS["wt_pct"], LABELS["api"], LABELS["sulfur_wt_pct"]], yrows,
                 [None, "0.00", "0.00", "0.0", "0.000"], start_row=r0 + 1, widths=[30, 44, 14, 14, 14])
     ws.freeze_panes = "A4"
+
+
+ESTIMATED_FILL = "FFF2CC"
+"""Fill of an estimated value (a correlation, not the narrow cuts) in the qualities sheet."""
+EXTRAPOLATED_FILL = "F4CCCC"
+"""Fill of the name of a cut flagged extrapolated."""
+
+
+def _qualities_sheet(ws, result) -> None:
+    """Every quality of every cut; estimated values shaded, extrapolated cuts marked, with a legend."""
+    from openpyxl.styles import Font, PatternFill
+
+    cuts = result.cuts
+    names = quality_names(cuts)
+    rows = [[r["name"], *[r[n] for n in names]] for r in cuts.to_dict("records")]
+    write_table(ws, ["Cut", *[label_for(n) for n in names]], rows, [None, *[_fmt_for(n) or "0.00" for n in names]],
+                widths=[20] + [14] * len(names))
+    est = list(cuts["estimated"])
+    for i, r in enumerate(cuts.to_dict("records"), start=2):
+        if r["extrapolated"]:
+            ws.cell(row=i, column=1).fill = PatternFill("solid", fgColor=EXTRAPOLATED_FILL)
+        for j, n in enumerate(names, start=2):
+            if n in est[i - 2] and ws.cell(row=i, column=j).value is not None:
+                ws.cell(row=i, column=j).fill = PatternFill("solid", fgColor=ESTIMATED_FILL)
+                ws.cell(row=i, column=j).font = Font(italic=True)
+    r0 = len(rows) + 3
+    legend = [("measured", "from the narrow cuts, blended by each property's rule (plain)", None),
+              ("estimated", "by a published correlation inside its range (shaded, italic; see the notes sheet)",
+               ESTIMATED_FILL),
+              ("extrapolated", "the cut depends on the curve's fitted extension (cut name shaded)", EXTRAPOLATED_FILL),
+              ("empty", "no narrow-cut data covers the cut and no correlation applies", None)]
+    for k, (what, text, fill) in enumerate(legend):
+        c = ws.cell(row=r0 + k, column=1, value=what)
+        if fill:
+            c.fill = PatternFill("solid", fgColor=fill)
+        ws.cell(row=r0 + k, column=2, value=text)
 
 
 def _limits_sheet(ws, lim) -> None:

@@ -56,7 +56,7 @@ def test_bare_command_writes_full_report(tmp_path, monkeypatch):
     folder = tmp_path / "reports" / "Selkie_Light"
     names = sorted(p.name for p in folder.iterdir())
     assert names == sorted(f"Selkie_Light_{s}" for s in ("yields.xlsx", "cuts.csv", "summary.md", "tbp.png",
-                                                          "yields.png", "properties.png"))
+                                                          "yields.png", "properties.png", "qualities.png"))
     assert not [p for p in folder.iterdir() if p.name.startswith(".")]  # no temporary files left
 
 
@@ -66,7 +66,10 @@ def test_xlsx_report_has_numeric_cells_and_sheets(tmp_path):
     r = runner.invoke(app, ["yields", "--out", str(tmp_path)])
     assert r.exit_code == 0, r.stderr
     wb = openpyxl.load_workbook(tmp_path / "Selkie_Light_yields.xlsx")
-    assert wb.sheetnames == ["summary", "cuts", "curve", "curve wt basis", "limits", "notes"]
+    assert wb.sheetnames == ["summary", "cuts", "qualities", "curve", "curve wt basis", "limits", "notes"]
+    q = wb["qualities"]
+    qhead = [c.value for c in q[1]]
+    assert "Nitrogen [wt ppm]" in qhead and "Freezing point [°C]" in qhead  # demo narrow-cut columns, labelled
     ws = wb["cuts"]
     headers = [c.value for c in ws[1]]
     assert "Yield [vol %]" in headers and "Yield [wt %]" in headers and "D86 50 % [°C]" in headers

@@ -100,3 +100,16 @@ def test_d341_gives_40c_viscosity_from_two_measured_temperatures():
     mid = run_yields(a, TWO_CUTS).cuts.set_index("name").loc["middle"]
     assert mid["viscosity_50c_cst"] < mid["viscosity_40c_cst"] < mid["viscosity_20c_cst"]
     assert "viscosity_40c_cst" in mid["estimated"]
+
+
+def test_real_column_products_carry_the_qualities_and_balance():
+    # Mass balance (identity): with overlapping product boundaries, Σ wt % x nitrogen over the products still
+    # equals the crude's, and the products report the same quality columns as ideal cuts.
+    from assaycut.cutting.products import fractionate
+
+    a = _assay({"nitrogen_wt_ppm": [0.0, 40.0, 300.0, 2500.0]}, {"nitrogen_wt_ppm": 800.0})
+    m = build_model(a)
+    prods, _ = fractionate(m, default_cut_set(), {"kerosene": 30.0, "diesel": 40.0})
+    assert (prods["wt_pct"] * prods["nitrogen_wt_ppm"]).sum() / 100.0 == pytest.approx(800.0, rel=1e-6)
+    ideal = cut_table(m, default_cut_set())
+    assert set(ideal.columns) <= set(prods.columns)
