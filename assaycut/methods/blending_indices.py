@@ -149,7 +149,8 @@ def rule_for(name: str) -> BlendRule:
     if name in RULES:
         return RULES[name]
     if VISCOSITY.match(name):
-        return BlendRule("wt", vbn_refutas, viscosity_from_vbn_refutas, "Refutas blending number by weight (Maples 2000)")
+        return BlendRule("wt", vbn_refutas, viscosity_from_vbn_refutas,
+                         "Refutas blending number by weight (Maples 2000)")
     return BlendRule("wt", _ident, _ident, "no rule of its own: linear by weight", known=False)
 
 

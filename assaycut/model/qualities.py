@@ -7,9 +7,9 @@ volume): a monotone PCHIP through the narrow cuts' edges, where it equals the su
 below (a conservative "histospline").  Its mean over any cut is (C(b) - C(a))/(b - a), so every narrow cut's
 index is reproduced exactly and a cut made of whole narrow cuts returns exactly the rule's blend of them;
 inside a narrow cut the index varies smoothly.  Gaps between narrow cuts, and the crude beyond the outermost
-ones, take the nearest cut's index (cuts there are not covered, see :data:`COVERED_FRACTION`).  A whole-crude value of the same name on the crude sheet, where the
-narrow cuts cover the whole crude, scales the index distribution to reproduce it (as sulfur is reconciled),
-and the scale is reported.
+ones, take the nearest cut's index (cuts there are not covered, see :data:`COVERED_FRACTION`).  A whole-crude
+value of the same name on the crude sheet, where the narrow cuts cover the whole crude, scales the index
+distribution to reproduce it (as sulfur is reconciled), and the scale is reported.
 """
 
 from __future__ import annotations

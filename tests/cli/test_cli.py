@@ -13,7 +13,8 @@ from tests.helpers import cli_error, sha256
 runner = CliRunner()
 
 CUT_FIELDS = {"name", "start_c", "end_c", "vol_pct", "wt_pct", "cum_vol_pct", "cum_wt_pct", "mid_vol_c", "vabp_c",
-              "vabp_d86_c", "meabp_c", "sg", "api", "density_15c_kg_m3", "watson_k", "sulfur_wt_pct", "sulfur_share_pct", "mw",
+              "vabp_d86_c", "meabp_c", "sg", "api", "density_15c_kg_m3", "watson_k", "sulfur_wt_pct", "sulfur_share_pct",
+              "mw",
               "d86_c", "cetane_index_d4737", "flash_c_est", "extrapolated"}
 
 

@@ -37,7 +37,8 @@ def test_viscosity_d341_printed_examples():
     # API TDB 11A4.4 example B (1.644 cSt at 32 °F, 0.925 at 104 °F -> 1.201 at 68 °F) and TDB 11A4.2 example A
     # (5.94 cSt at 100 °F, 1.88 at 210 °F -> 3.57 at 140 °F), both printed, one source.
     assert float(fp.viscosity_d341(1.644, 0.0, 0.925, 40.0, 20.0)) == pytest.approx(1.201, abs=0.0005)
-    assert float(fp.viscosity_d341(5.942, f_to_c(100), 1.879, f_to_c(210), f_to_c(140))) == pytest.approx(3.57, abs=0.005)
+    nu140 = fp.viscosity_d341(5.942, f_to_c(100), 1.879, f_to_c(210), f_to_c(140))
+    assert float(nu140) == pytest.approx(3.57, abs=0.005)
 
 
 def test_cold_flow_printed_examples():
