@@ -227,7 +227,8 @@ def plot_qualities(result, target) -> None:
             hi = r["cum_wt_pct"] if wt else r["cum_vol_pct"]
             est = name in r["estimated"]
             ax.bar((lo + hi) / 2, val, width=hi - lo, color="#9fa8da" if not est else "#ffe082",
-                   edgecolor="#283593" if not est else "#ff8f00", hatch="//" if est else None, lw=0.6, alpha=0.8)
+                   edgecolor="#283593" if not est else "#ff8f00", hatch="//" if est else None,
+                   lw=1.4 if r["extrapolated"] else 0.6, ls="--" if r["extrapolated"] else "-", alpha=0.8)
         if pos is not None and name in nc.extras:
             va, vb = pos
             a, b = (m.wt_at_vol(va), m.wt_at_vol(vb)) if wt else (va, vb)
@@ -247,8 +248,10 @@ def plot_qualities(result, target) -> None:
 
     fig.legend(handles=[Patch(facecolor="#9fa8da", edgecolor="#283593", label="cut, from the narrow cuts"),
                         Patch(facecolor="#ffe082", edgecolor="#ff8f00", hatch="//", label="cut, estimated"),
+                        Patch(facecolor="white", edgecolor="#283593", ls="--", lw=1.4,
+                              label="cut flagged extrapolated (dashed edge)"),
                         plt.Line2D([], [], color="#b71c1c", lw=2, label="narrow cut, measured")],
-               loc="lower center", ncol=3, fontsize=9, frameon=False)
+               loc="lower center", ncol=4, fontsize=9, frameon=False)
     fig.suptitle(f"{result.assay.name}: qualities per cut (estimates for screening)")
     fig.tight_layout(rect=(0, 0.04, 1, 0.97))
     _save(fig, target)

@@ -180,6 +180,7 @@ def markdown_summary(result) -> str:
            f"({float(m.curve.temp_at(m.curve.measured_hi)):.0f} °C TBP); {m.curve.extrapolated_pct:.1f} vol % of "
            f"the crude rests on the fitted extension, {m.curve.lumped_pct:.1f} vol % of it lumped at the "
            f"{m.curve.fbp_c:.0f} °C end point",
+           *[f"- Whole crude: {label_for(k)} {v}" for k, v in a.extras.items()],
            f"- Closure: vol {result.closure['vol_pct']:+.1e} %, wt {result.closure['wt_pct']:+.1e} %", "",
            "| Cut | TBP range °C | vol % | wt % | API | S wt % | Watson K | CCI | Flash est. °C |",
            "|---|---|---:|---:|---:|---:|---:|---:|---:|"]
