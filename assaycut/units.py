@@ -191,3 +191,15 @@ def density15_to_sg(rho15):
     return as_scalar(out)
 
 
+
+
+def pct_text(x) -> str:
+    """A percentage as message text: at most 2 decimals, no trailing zeros (73.4347 -> '73.43', 88.5 -> '88.5')."""
+    v = round(float(x), 2)
+    return f"{v + 0.0:g}"
+
+
+def residual_text(r) -> str:
+    """A closure residual [%] as text, float rounding shown as zero: '+0.000000' below 5e-7, else 6 decimals."""
+    x = float(r)
+    return "+0.000000" if abs(x) < 5e-7 else f"{x:+.6f}"

@@ -16,6 +16,7 @@ from .cutting.qualities import ESTIMATED, NOT_ESTIMATED
 from .methods.product_properties import describe_ranges
 from .model.assay import Assay
 from .model.crude import CrudeModel, build_model
+from .units import pct_text, residual_text
 
 CAUTIONS = [
     "Estimates for screening and planning, not measured properties: confirm against laboratory data before "
@@ -149,9 +150,9 @@ def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
     if model.all_on_extension:
         warnings.append(f"every cut is flagged extrapolated: {model.all_on_extension}")
     elif ext:
-        where = f"above {c.safe_hi:g} vol %" + (f" or below {c.safe_lo:g} vol %" if c.safe_lo > 0 else "")
+        where = f"above {pct_text(c.safe_hi)} vol %" + (f" or below {pct_text(c.safe_lo)} vol %" if c.safe_lo > 0 else "")
         warnings.append(f"cut(s) {', '.join(ext)} depend on the fitted extension (they reach {where}, where the "
-                        f"curve is fitted or shaped by the fit; measured to {c.measured_hi:g} vol %)")
+                        f"curve is fitted or shaped by the fit; measured to {pct_text(c.measured_hi)} vol %)")
     hot = [r["name"] for r in cuts.to_dict("records") if r["d86_c"] and max(r["d86_c"].values()) > 400.0]
     if hot:
         warnings.append(f"the D86 estimate of {', '.join(hot)} goes above 400 °C, beyond the data behind "
@@ -174,6 +175,6 @@ def _notes(assay: Assay, model: CrudeModel, clo: dict[str, float]) -> list[str]:
     notes.append(f"density reconciliation {model.density_reconciliation_pct:+.2f} %"
                  + (f"; sulfur reconciliation {model.sulfur_reconciliation_pct:+.2f} %"
                     if model.sulfur_reconciliation_pct is not None else ""))
-    notes.append(f"closure residual: vol {clo['vol_pct']:+.2e} %, wt {clo['wt_pct']:+.2e} %")
+    notes.append(f"closure residual: vol {residual_text(clo['vol_pct'])} %, wt {residual_text(clo['wt_pct'])} %")
     notes += [f"assay note: {n}" for n in assay.notes]
     return notes

@@ -125,7 +125,13 @@ class _Progress:
 
     def __init__(self, total: int):
         from rich.console import Console
-        from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeRemainingColumn
+        from rich.progress import (
+            BarColumn,
+            MofNCompleteColumn,
+            Progress,
+            TextColumn,
+            TimeRemainingColumn,
+        )
 
         self._p = Progress(TextColumn("cutting assays"), BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
                            console=Console(stderr=True), transient=True)

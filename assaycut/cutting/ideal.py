@@ -26,9 +26,19 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..methods.characterisation import meabp_pseudo_components, mw_in_range, mw_riazi_daubert_1987, watson_k
+from ..methods.characterisation import (
+    meabp_pseudo_components,
+    mw_in_range,
+    mw_riazi_daubert_1987,
+    watson_k,
+)
 from ..methods.d86 import D86_STD, tbp_to_d86_daubert_1994_array
-from ..methods.product_properties import cci_in_range, cetane_index_d4737, flash_in_range, flash_point_api_2b7_1
+from ..methods.product_properties import (
+    cci_in_range,
+    cetane_index_d4737,
+    flash_in_range,
+    flash_point_api_2b7_1,
+)
 from ..model.crude import CrudeModel
 from ..units import sg_to_api, sg_to_density15
 from .cutset import CutSet

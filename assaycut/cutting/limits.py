@@ -76,8 +76,24 @@ class Limit:
         return " and ".join(parts)
 
     def describe(self) -> str:
-        """The limit in one line, e.g. 'kerosene: jet fuel density at 15 °C >= 775 and <= 840'."""
-        return f"{self.cut}: {self.label or self.property} {self.bounds_text()}"
+        """The limit in one line, e.g. 'kerosene: jet fuel density at 15 °C >= 775 and <= 840', or 'diesel
+        density at 15 °C >= 820 and <= 845' when the label already names the cut."""
+        label = self.label or self.property
+        if limit_title(self.cut, label) == label:
+            return f"{label} {self.bounds_text()}"
+        return f"{self.cut}: {label} {self.bounds_text()}"
+
+
+def limit_title(cut: str, label: str) -> str:
+    """A limit named once: its label alone when it already names the product ('diesel density at 15 °C'),
+    else the cut and the label ('kerosene jet fuel flash point').
+
+    Examples
+    --------
+    >>> limit_title("diesel", "diesel density at 15 °C"), limit_title("kerosene", "jet fuel flash point")
+    ('diesel density at 15 °C', 'kerosene jet fuel flash point')
+    """
+    return label if cut.split()[0].lower() in label.lower().split() else f"{cut} {label}"
 
 
 def is_quality(prop: str) -> bool:
@@ -179,6 +195,15 @@ def frame_columns(cuts) -> dict[str, np.ndarray]:
     return cols
 
 
+LOWER_BOUND_NOTE = "at least 95 %: the D86 estimate ends at 95 %, so the value is a lower bound"
+"""Note of a D86 recovery read at or beyond the estimate's 95 % point."""
+
+
+def is_lower_bound(prop: str, value: float) -> bool:
+    """True for a D86 recovery at the 95 % end of the estimate (a lower bound, printed '≥ 95')."""
+    return bool(RECOVERED_AT.match(prop)) and value >= D86_STD[-1]
+
+
 def meets(lim: Limit, value: float) -> bool:
     """True when ``value`` lies inside the limit's bounds."""
     ok = True
@@ -225,9 +250,11 @@ def check_limits(cuts, limits: list[Limit]):
         value = float(limit_values(cols, names.index(lim.cut), lim.property)[0])
         missing = math.isnan(value)
         status = "n/a" if missing else ("pass" if meets(lim, value) else "fail")
+        note = _why_missing(lim.property) if missing else ""
+        if is_lower_bound(lim.property, value):
+            note = LOWER_BOUND_NOTE
         out.append({"cut": lim.cut, "property": lim.property, "label": lim.label, "limit": lim.bounds_text(),
-                    "value": value, "status": status, "note": _why_missing(lim.property) if missing else "",
-                    "source": lim.source})
+                    "value": value, "status": status, "note": note, "source": lim.source})
     return pd.DataFrame(out, columns=["cut", "property", "label", "limit", "value", "status", "note", "source"])
 
 

@@ -22,10 +22,10 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import CutSetError
+from ..methods.characterisation import meabp_pseudo_components
 from ..methods.d86 import D86_STD
 from ..model.crude import CrudeModel
 from .cutset import CutSet
-from ..methods.characterisation import meabp_pseudo_components
 from .ideal import LIGHT_ENDS_MAX_C, columns_frame, derive_qualities
 from .qualities import product_quality_columns
 

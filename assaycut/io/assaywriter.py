@@ -7,7 +7,14 @@ import math
 
 from ..files import atomic_write, safe_text
 from ..model.assay import Assay
-from .layout import INSTRUCTIONS, SHEET_CRUDE, SHEET_CURVE, SHEET_CUTS, SHEET_LIGHT, SHEET_VACUUM
+from .layout import (
+    INSTRUCTIONS,
+    SHEET_CRUDE,
+    SHEET_CURVE,
+    SHEET_CUTS,
+    SHEET_LIGHT,
+    SHEET_VACUUM,
+)
 
 
 def _new_sheet(wb, name: str):

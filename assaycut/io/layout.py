@@ -48,9 +48,9 @@ INSTRUCTIONS = {
                  "watson_k for the Maxwell-Bonnell correction; empty = 12, no correction). Columns: "
                  "vol_pct or wt_pct (cumulative % distilled) and temp_c, temp_f or temp_k.",
     SHEET_VACUUM: "Optional vacuum curve (e.g. D1160 at reduced pressure) that extends the main curve. Same "
-                  "layout as the distillation sheet. Delete this sheet if unused.",
+                  "layout as the distillation sheet. Left without points, it is not used.",
     SHEET_CUTS: "Optional narrow cuts, TBP start/end (empty start = IBP, empty end = residue), yields on "
                 "crude, gravity (sg_60f, api_gravity or density_15c_kg_m3), sulfur_wt_pct, extra numeric columns.",
     SHEET_LIGHT: "Optional light-ends analysis, % of whole crude: component (C1 C2 C3 iC4 nC4 iC5 nC5) and "
-                 "wt_pct or vol_pct.",
+                 "wt_pct or vol_pct. Components left without an amount are not used; an empty sheet is not used.",
 }

@@ -13,7 +13,15 @@ from ..methods.blending_indices import RULES
 from ..model.assay import Assay, CurveData, LightEnds, NarrowCuts
 from ..model.lightends import find_component, known_labels
 from ..units import api_to_sg, density15_to_sg, to_celsius
-from .cells import SourceLocation, cell_text, describe, gravity_from_inputs, parse_curve_rows, read_bytes, to_number
+from .cells import (
+    SourceLocation,
+    cell_text,
+    describe,
+    gravity_from_inputs,
+    parse_curve_rows,
+    read_bytes,
+    to_number,
+)
 from .layout import (
     MAX_BYTES,
     MAX_ROWS,
@@ -344,7 +352,9 @@ def _read_light_ends(ws, loc: SourceLocation) -> LightEnds | None:
         comp = find_component(label)
         if comp is None:
             raise loc.err(f"unknown component {label!r}; expected one of {known_labels()}", r, "component")
-        x = to_number(row[vi] if vi < len(row) else None, loc, r, bases[0])
+        x = to_number(row[vi] if vi < len(row) else None, loc, r, bases[0], allow_empty=True)
+        if math.isnan(x):  # a component listed with no amount (as the blank template has them): not used
+            continue
         if not 0.0 <= x <= 50.0:
             raise loc.err(f"{bases[0]} {x:g} is outside 0-50 % for a light-ends component", r, bases[0])
         if comp.key in amounts:

@@ -20,7 +20,6 @@ import numpy as np
 from ..errors import ConversionError
 from ..units import as_scalar, c_to_f
 
-
 Q_IDENTITY = 1.0 / 748.1
 """The Q at which T' = T for every T: the value the pressure fit should take at 760 mmHg. [-]"""
 

@@ -25,7 +25,14 @@ import numpy as np
 
 from ..errors import ConversionError
 from ..units import c_to_f, f_to_c
-from .segments import chain_from_50, chain_mapping, inverse_power_step, normalise_points, power_step, require_points
+from .segments import (
+    chain_from_50,
+    chain_mapping,
+    inverse_power_step,
+    normalise_points,
+    power_step,
+    require_points,
+)
 
 D86_STD = (0, 10, 30, 50, 70, 90, 95)
 """Standard ASTM D86 points of the TBP <-> D86 correlations. [vol %]"""

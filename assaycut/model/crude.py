@@ -21,6 +21,7 @@ import numpy as np
 
 from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k
+from ..units import pct_text
 from .assay import Assay
 from .distributions import density_distribution, sulfur_distribution
 from .input_curves import curve_to_tbp
@@ -172,8 +173,8 @@ def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str]) -> Cr
         le_mids = []
     if curve.fit is not None:
         methods["extension"] = (f"Riazi distribution fitted to {curve.fit.npoints} points "
-                                f"(RMS {curve.fit.rms_c:.1f} °C); used past {curve.measured_hi:g} vol %"
-                                + (f" and before {curve.measured_lo:g} vol %" if curve.measured_lo > 0 else ""))
+                                f"(RMS {curve.fit.rms_c:.1f} °C); used past {pct_text(curve.measured_hi)} vol %"
+                                + (f" and before {pct_text(curve.measured_lo)} vol %" if curve.measured_lo > 0 else ""))
     sg_dist, dens_rec, dens_src, kw_fit = density_distribution(assay, curve, le_mids, warnings)
     methods["density"] = (f"{dens_src}; scaled by {dens_rec:+.2f} % to reproduce the whole-crude SG "
                           f"{assay.sg:.4f}")
@@ -235,7 +236,7 @@ def _tbp_points(assay: Assay, method: str, warnings: list[str], methods: dict[st
                              f"is on the {main.basis} basis; give both on one basis")
         keep = (pe > p[-1]) & (te > t[-1])
         if not np.any(keep):
-            warnings.append(f"{extra.where}: no point lies beyond the main curve ({p[-1]:g} %, {t[-1]:.1f} °C); "
+            warnings.append(f"{extra.where}: no point lies beyond the main curve ({pct_text(p[-1])} %, {t[-1]:.1f} °C); "
                             f"the vacuum curve is not used")
             continue
         if np.any(~keep):
@@ -278,7 +279,7 @@ def _to_volume_basis(p, t, assay: Assay, warnings: list[str], methods: dict[str,
                             f"volume percents are scaled to close at 100 %")
         p = p * factor
     elif p[-1] > 100.0 + 1e-6:
-        raise CurveError(f"the weight-basis curve converts to {p[-1]:.1f} vol % at {w_last:g} wt %, above "
+        raise CurveError(f"the weight-basis curve converts to {p[-1]:.1f} vol % at {pct_text(w_last)} wt %, above "
                          f"100 %: the crude gravity and the cut densities disagree")
     return p
 

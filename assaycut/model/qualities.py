@@ -20,7 +20,11 @@ import numpy as np
 
 from ..methods.blending_indices import BlendRule, rule_for
 from ..methods.characterisation import mw_riazi_daubert_1987
-from ..methods.fraction_properties import refractive_index_riazi_daubert_1987, ri_and_m, sulfur_riazi_1999
+from ..methods.fraction_properties import (
+    refractive_index_riazi_daubert_1987,
+    ri_and_m,
+    sulfur_riazi_1999,
+)
 from .assay import Assay
 from .distributions import narrow_cut_positions, property_spline
 from .lightends import GAS_RANGE_MAX_C

@@ -18,6 +18,7 @@ import numpy as np
 
 from ..errors import CurveError
 from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution
+from ..units import pct_text
 from .spline import Pchip
 
 END_FRACTION = 0.9995
@@ -207,12 +208,12 @@ def _checked_points(percent, temp_c) -> tuple[np.ndarray, np.ndarray]:
     order = np.argsort(v, kind="stable")
     v, t = v[order], t[order]
     if t[-1] - t[0] < 1.0 or v[-1] - v[0] <= 0.0:
-        raise CurveError(f"the curve runs from {v[0]:g} % at {t[0]:.2f} °C to {v[-1]:g} % at {t[-1]:.2f} °C; a "
+        raise CurveError(f"the curve runs from {pct_text(v[0])} % at {t[0]:.2f} °C to {pct_text(v[-1])} % at {t[-1]:.2f} °C; a "
                          f"distillation curve must rise by at least 1 °C and some percent")
     if np.any(np.diff(t) < 0):
         k = int(np.argmax(np.diff(t) < 0))
-        raise CurveError(f"temperature falls from {t[k]:.2f} °C at {v[k]:g} % to {t[k + 1]:.2f} °C at "
-                         f"{v[k + 1]:g} %; temperatures must rise with percent distilled")
+        raise CurveError(f"temperature falls from {t[k]:.2f} °C at {pct_text(v[k])} % to {t[k + 1]:.2f} °C at "
+                         f"{pct_text(v[k + 1])} %; temperatures must rise with percent distilled")
     return v, t
 
 
@@ -222,7 +223,7 @@ def _widen_repeats(v: np.ndarray, t: np.ndarray, warnings: list[str]) -> np.ndar
     if not np.any(rep):
         return t
     for k in np.nonzero(rep)[0]:
-        warnings.append(f"the same temperature {t[k]:.2f} °C is given at {v[k]:g} % and {v[k + 1]:g} %; "
+        warnings.append(f"the same temperature {t[k]:.2f} °C is given at {pct_text(v[k])} % and {pct_text(v[k + 1])} %; "
                         f"treated as a step {STEP_C} °C wide")
     return t + np.concatenate([[0.0], np.cumsum(rep * STEP_C)])
 
@@ -239,13 +240,13 @@ def _place_light_ends(v, t, front_t, front_v, warnings: list[str]):
     if abs(fv[-1] - v[0]) <= LIGHT_ENDS_TOL_PCT and fv[-1] != v[0] and ft[-1] < t[0]:
         if abs(v[0] / fv[-1] - 1.0) > 0.01:
             warnings.append(f"the light ends add up to {fv[-1]:.3f} vol %, the first measured point is "
-                            f"{v[0]:g} %; the light-ends volumes are scaled by "
+                            f"{pct_text(v[0])} %; the light-ends volumes are scaled by "
                             f"{(v[0] / fv[-1] - 1) * 100:+.2f} % to meet it")
         # scaled to meet the first point exactly (rounding must not leave a node above it)
         return ft, np.minimum(fv * (v[0] / fv[-1]), v[0])
     if fv[-1] > v[0] + 1e-9 or ft[-1] >= t[0]:
         warnings.append(f"the light ends ({fv[-1]:.2f} vol % up to {ft[-1]:.1f} °C) do not fit before the "
-                        f"first measured point ({v[0]:g} % at {t[0]:.1f} °C); not placed on the curve, and "
+                        f"first measured point ({pct_text(v[0])} % at {t[0]:.1f} °C); not placed on the curve, and "
                         f"the front of the curve is extrapolated")
         return None, None
     return ft, fv

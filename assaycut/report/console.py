@@ -4,8 +4,9 @@ from __future__ import annotations
 
 import math
 
+from ..cutting.limits import is_lower_bound, limit_title
 from .studyreports import compare_wide
-from .tables import quality_text_table, text_table
+from .tables import num, quality_text_table, text_table
 
 FLASH_FOOTNOTE = ("\n* Flash points are correlation estimates: measure them (ASTM D93). All results are screening "
                   "estimates; see the notes sheet of the report for methods and cautions.")
@@ -22,8 +23,9 @@ def yield_text(result) -> list[str]:
         lines += ["", q]
     fails = result.limits[result.limits["status"] == "fail"]
     if len(fails):
-        lines.append("Limits failed: " + "; ".join(f"{x['cut']} {x['label'] or x['property']} "
-                                                   f"({x['value']:.1f}, needs {x['limit']})"
+        lines.append("Limits failed: " + "; ".join(f"{limit_title(x['cut'], x['label'] or x['property'])} "
+                                                   f"({'≥ 95' if is_lower_bound(x['property'], x['value']) else num(x['value'], 2)}, "
+                                                   f"needs {x['limit']})"
                                                    for x in fails.to_dict("records")))
     return lines
 
@@ -65,7 +67,7 @@ def compare_text(table, worth, currency: str | None, caveat: str, inside, uncert
     w = max(len(c) for c in crudes) + 2
     lines = [f"{'Cut':<16}{'Quality':<22}" + "".join(f"{c:>{w}}" for c in crudes)]
     for r in rows:
-        vals = "".join(f"{(f'{v:.3f}' if isinstance(v, float) and v == v else (v or '-')):>{w}}" for v in r[2:])
+        vals = "".join(f"{(num(v, 3) if isinstance(v, float) else (v or '-')):>{w}}" for v in r[2:])
         lines.append(f"{r[0]:<16}{r[1]:<22}{vals}")
     if worth is not None:
         lines.append(f"\nGross product worth and margin [{currency}] -- {caveat}")
@@ -92,7 +94,8 @@ def blend_plan_text(plan) -> list[str]:
         lines.append("  binding targets: " + "; ".join(plan.binding))
     for lab, amount in plan.shortfalls.items():
         unit = "°API" if "API" in lab else ("wt %" if "sulfur" in lab else "vol %")
-        lines.append(f"  target not met: {lab}, short by {amount:.3f} {unit}")
+        how = "exceeded by" if "<=" in lab else "short by"
+        lines.append(f"  target not met: {lab}, {how} {num(amount, 3)} {unit}")
     lines.append("  Linear blending rules (no shrinkage); worth ignores operating costs and unit limits.")
     return lines
 
@@ -110,9 +113,9 @@ def sweep_text(crude: str, df) -> list[str]:
              f"{'cut °C':>7} {'lower vol%':>10} {'upper vol%':>10} {'lower SG':>9} {'upper SG':>9} "
              f"{'lower D86 95':>12} {'upper D86 10':>12} {'upper flash*':>12}"]
     for r in df.to_dict("records"):
-        lines.append(f"{r['cut_point_c']:7.1f} {r['lower_vol_pct']:10.2f} {r['upper_vol_pct']:10.2f} "
-                     f"{r['lower_sg']:9.4f} {r['upper_sg']:9.4f} {r['lower_d86_95_c']:12.1f} "
-                     f"{r['upper_d86_10_c']:12.1f} {r['upper_flash_c_est']:12.1f}")
+        lines.append(f"{num(r['cut_point_c']):>7} {num(r['lower_vol_pct'], 2):>10} {num(r['upper_vol_pct'], 2):>10} "
+                     f"{num(r['lower_sg'], 4):>9} {num(r['upper_sg'], 4):>9} {num(r['lower_d86_95_c']):>12} "
+                     f"{num(r['upper_d86_10_c']):>12} {num(r['upper_flash_c_est']):>12}")
     lines.append("* flash estimates must be measured (ASTM D93).")
     return lines
 
@@ -126,8 +129,8 @@ def optimum_text(crude: str, what: str, unit: str, res, cut_set) -> list[str]:
     lines.append(f"{'cut':<18}{'start °C':>10}{'optimum °C':>12}")
     for c, s0, s1 in zip(cut_set.cuts[:-1], res.start_ends_c, res.ends_c):
         lines.append(f"{c.name:<18}{s0:10.1f}{s1:12.1f}" + ("  *" if abs(s1 - s0) > 1e-9 else ""))
-    lines.append(f"{what}: {res.start_objective:.2f} -> {res.objective:.2f} {unit} (brute-force grid best "
-                 f"{res.grid_best:.2f})")
+    lines.append(f"{what}: {num(res.start_objective, 2)} -> {num(res.objective, 2)} {unit} (brute-force grid best "
+                 f"{num(res.grid_best, 2, missing='none feasible')})")
     if res.active:
         lines.append("Active limits: " + "; ".join(res.active))
     if res.violated_at_start:
@@ -144,7 +147,7 @@ def shift_text(delta) -> str:
             "Δ flash °C", "Limit flips"]
 
     def f(v, nd):
-        return "-" if v is None or (isinstance(v, float) and math.isnan(v)) else f"{v:+.{nd}f}"
+        return num(v, nd, signed=True)
 
     def e(v):
         return "end" if v is None or (isinstance(v, float) and math.isnan(v)) else f"{v:g}"

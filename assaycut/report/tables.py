@@ -4,8 +4,10 @@ from __future__ import annotations
 
 import math
 
+from ..cutting.limits import is_lower_bound
 from ..files import safe_text
 from ..methods.d86 import D86_STD
+from ..units import pct_text, residual_text
 
 LABELS = {
     "name": "Cut",
@@ -111,13 +113,33 @@ def flat_cut_rows(cuts) -> tuple[list[str], list[list]]:
     return names, rows
 
 
+def num(v, nd: int = 1, signed: bool = False, missing: str = "-") -> str:
+    """A number as printed text: ``nd`` decimals, ``missing`` for None/NaN, never a negative zero ("-0.0"
+    for -0.04 becomes "0.0"), a sign when ``signed`` (zero as "+0.0").
+
+    Examples
+    --------
+    >>> num(-0.04), num(float("nan")), num(-0.04, 1, signed=True), num(2.345, 2, signed=True)
+    ('0.0', '-', '+0.0', '+2.35')
+    """
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return missing
+    x = float(v)
+    if not math.isfinite(x):
+        return missing
+    txt = f"{x:+.{nd}f}" if signed else f"{x:.{nd}f}"
+    if float(txt) == 0.0:
+        txt = ("+" if signed else "") + f"{0.0:.{nd}f}"
+    return txt
+
+
 def _fmt(v, nd=1):
     if v is None or (isinstance(v, float) and math.isnan(v)):
         return "-"
     if isinstance(v, bool):
         return "yes" if v else ""
     if isinstance(v, float):
-        return f"{v:.{nd}f}"
+        return num(v, nd)
     return str(v)
 
 
@@ -176,12 +198,13 @@ def markdown_summary(result) -> str:
            f"- Origin: {a.origin or '-'}",
            f"- Whole crude: {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
            + (f"{m.sulfur_wt_pct:.3f} wt %" if m.sulfur_wt_pct is not None else "not given"),
-           f"- Curve measured to {m.curve.measured_hi:g} vol % "
+           f"- Curve measured to {pct_text(m.curve.measured_hi)} vol % "
            f"({float(m.curve.temp_at(m.curve.measured_hi)):.0f} °C TBP); {m.curve.extrapolated_pct:.1f} vol % of "
            f"the crude rests on the fitted extension, {m.curve.lumped_pct:.1f} vol % of it lumped at the "
            f"{m.curve.fbp_c:.0f} °C end point",
            *[f"- Whole crude: {label_for(k)} {v}" for k, v in a.extras.items()],
-           f"- Closure: vol {result.closure['vol_pct']:+.1e} %, wt {result.closure['wt_pct']:+.1e} %", "",
+           f"- Closure: vol {residual_text(result.closure['vol_pct'])} %, wt "
+           f"{residual_text(result.closure['wt_pct'])} %", "",
            "| Cut | TBP range °C | vol % | wt % | API | S wt % | Watson K | CCI | Flash est. °C |",
            "|---|---|---:|---:|---:|---:|---:|---:|---:|"]
     for r in result.cuts.to_dict("records"):
@@ -194,7 +217,7 @@ def markdown_summary(result) -> str:
     if len(result.limits):
         out += ["", "## Product limits", "", "| Cut | Limit | Required | Value | Status |", "|---|---|---|---:|---|"]
         for r in result.limits.to_dict("records"):
-            out.append(f"| {r['cut']} | {r['label'] or r['property']} | {r['limit']} | {_fmt(r['value'], 1)} | "
+            out.append(f"| {r['cut']} | {r['label'] or r['property']} | {r['limit']} | {'≥ 95' if is_lower_bound(r['property'], r['value']) else _fmt(r['value'], 1)} | "
                        f"{r['status'].upper()} |")
     if result.warnings:
         out += ["", "## Warnings", ""] + [f"- {w}" for w in result.warnings]

@@ -125,8 +125,8 @@ def _summary_sheet(ws, result) -> None:
             ("Of it lumped at the end point [vol %]", m.curve.lumped_pct, "0.0"),
             ("Density reconciliation [%]", m.density_reconciliation_pct, "0.00"),
             ("Sulfur reconciliation [%]", m.sulfur_reconciliation_pct, "0.00"),
-            ("Closure residual, vol [%]", result.closure["vol_pct"], "0.0E+00"),
-            ("Closure residual, wt [%]", result.closure["wt_pct"], "0.0E+00"),
+            ("Closure residual, vol [%]", result.closure["vol_pct"], "0.000000"),
+            ("Closure residual, wt [%]", result.closure["wt_pct"], "0.000000"),
             ("Cut set", result.cut_set.label, None)]
     for k, v in a.extras.items():
         info.append((f"Whole crude: {label_for(k)}", v, None))

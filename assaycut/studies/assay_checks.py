@@ -15,7 +15,7 @@ from ..cutting.ideal import closure, cut_table
 from ..model.assay import Assay
 from ..model.crude import CrudeModel
 from ..model.distributions import narrow_cut_positions
-from ..units import api_to_sg, density15_to_sg
+from ..units import api_to_sg, density15_to_sg, pct_text, residual_text
 
 GRAVITY_WARN_SG = 0.0010
 """API, SG and density given together may differ by this much SG before a warning. [-]"""
@@ -96,7 +96,7 @@ def _curve_findings(model: CrudeModel, curve_where: str, src: str) -> list[Findi
     c = model.curve
     t_hi = float(c.temp_at(c.measured_hi))
     sev = "warning" if c.measured_hi < 50.0 else "info"
-    out.append(Finding(sev, curve_where, f"measured curve reaches {c.measured_hi:g} vol % at {t_hi:.0f} °C TBP"
+    out.append(Finding(sev, curve_where, f"measured curve reaches {pct_text(c.measured_hi)} vol % at {t_hi:.0f} °C TBP"
                        + ("" if c.measured_hi >= 100 else "; beyond it the fitted extension is used")))
     if c.fit is not None:
         out.append(Finding("info", curve_where, f"extension: Riazi distribution, RMS deviation {c.fit.rms_c:.1f} °C "
@@ -116,8 +116,17 @@ def _curve_findings(model: CrudeModel, curve_where: str, src: str) -> list[Findi
                                + (f" (more than {LUMPED_WARN_PCT:g} vol %): the residue's boiling range, MeABP "
                                   f"and Watson K depend on that cap" if lumped else "")))
     for w in model.warnings:
-        out.append(Finding("warning", curve_where if "sheet" not in w else src, w))
+        out.append(Finding("warning", *_where_and_message(w, curve_where)))
     return out
+
+
+def _where_and_message(warning: str, default_where: str) -> tuple[str, str]:
+    """A warning that starts with its own location ('file, sheet ...: message') split into the two, so the
+    location is not printed twice; other warnings get ``default_where``."""
+    head, sep, rest = warning.partition(": ")
+    if sep and ", sheet " in head:
+        return head, rest
+    return default_where, warning
 
 
 def _closure_findings(model: CrudeModel) -> list[Finding]:
@@ -128,7 +137,7 @@ def _closure_findings(model: CrudeModel) -> list[Finding]:
     for basis in ("vol_pct", "wt_pct"):
         r = clo[basis]
         out.append(Finding("error" if abs(r) > CLOSURE_ERROR_PCT else "info", "model",
-                           f"default cuts close to 100 % on the {basis[:-4]} basis with residual {r:+.2e} %"))
+                           f"default cuts close to 100 % on the {basis[:-4]} basis with residual {residual_text(r)} %"))
     return out
 
 
@@ -160,7 +169,7 @@ def _narrow_cut_findings(assay: Assay, model: CrudeModel, src: str) -> list[Find
                 d = nc.vol_pct[i] - (vb[i] - va[i])
                 if abs(d) > NARROW_CUT_WARN_PCT:
                     out.append(Finding("warning", f"{ncw}, row {row}",
-                                       f"the cut's {nc.vol_pct[i]:g} vol % differs from the curve's "
+                                       f"the cut's {pct_text(nc.vol_pct[i])} vol % differs from the curve's "
                                        f"{vb[i] - va[i]:.2f} vol % by {d:+.2f}"))
             if np.isfinite(nc.vol_pct[i]) and np.isfinite(nc.wt_pct[i]) and np.isfinite(nc.sg[i]) \
                     and nc.vol_pct[i] > 0:

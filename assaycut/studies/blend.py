@@ -21,11 +21,15 @@ import numpy as np
 
 from ..cutting.ideal import cut_columns
 from ..errors import StudyError
-from ..methods.blending_rules import shrinkage_api_mpms_12_3, vbn_refutas, viscosity_from_vbn_refutas
+from ..methods.blending_rules import (
+    shrinkage_api_mpms_12_3,
+    vbn_refutas,
+    viscosity_from_vbn_refutas,
+)
 from ..model.assay import Assay, CurveData, LightEnds, NarrowCuts
 from ..model.crude import CrudeModel
 from ..model.lightends import convert_basis, find_component
-from ..units import sg_to_api
+from ..units import pct_text, sg_to_api
 
 FRACTION_TOL = 0.01
 """Blend fractions must add up to 100 within this much. [%]"""
@@ -73,7 +77,7 @@ def blend(parents: list[tuple[Assay, CrudeModel, float]], basis: str = "vol", na
     extras = _extras(parents, w, notes)
     label = name or " + ".join(f"{a.name} {p:g}%" for (a, _, _), p in zip(parents, pct))
     notes.insert(0, f"blend on the {basis} basis: " + "; ".join(
-        f"{a.name} {p:g} % (sha256 {a.sha256 or 'n/a'})" for (a, _, _), p in zip(parents, pct)))
+        f"{a.name} {pct_text(p)} % (sha256 {a.sha256 or 'n/a'})" for (a, _, _), p in zip(parents, pct)))
     notes.append("curve: weighted sum of the parents' cumulative curves where all were measured; gravity by volume "
                  "on SG; sulfur and mass-based properties by weight; viscosity by Refutas")
     return Assay(name=label, sg=sg_blend, curves=[curve], origin="blend of " + ", ".join(a.name for a, _, _ in parents),
@@ -90,7 +94,7 @@ def _shares(parents, basis: str):
     if np.any(~np.isfinite(pct)) or np.any(pct <= 0):
         raise StudyError(f"every share must be a positive percent; got {', '.join(f'{p:g}' for p in pct)}")
     if abs(pct.sum() - 100.0) > FRACTION_TOL:
-        raise StudyError(f"the shares add up to {pct.sum():g} %, not 100 %: "
+        raise StudyError(f"the shares add up to {pct_text(pct.sum())} %, not 100 %: "
                          + " + ".join(f"{a.name} {p:g}" for (a, _, _), p in zip(parents, pct)))
     f = pct / pct.sum()
     sg = np.array([a.sg for a, _, _ in parents])

@@ -170,7 +170,10 @@ def test_meabp_agrees_with_api_2b1_1_on_published_kerosene():
     # Cross-method check on Riazi MNL50 Table 3.8 (a kerosene, published D86 and its Daubert 1994 TBP): the
     # pseudo-component MeABP of the TBP curve and the API TDB 2B1.1 regression from the D86 are two routes to
     # the same definition; they agree within 5 °C (the regression's scatter; common practice, no source).
-    from assaycut.methods.characterisation import average_boiling_points_api_2b1_1, meabp_pseudo_components
+    from assaycut.methods.characterisation import (
+        average_boiling_points_api_2b1_1,
+        meabp_pseudo_components,
+    )
     from assaycut.model.spline import Pchip
 
     tbp = Pchip(np.array([0, 10, 30, 50, 70, 90.0]), np.array([133.1, 158.1, 189.2, 210.6, 232.9, 258.1]))

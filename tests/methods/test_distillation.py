@@ -105,11 +105,12 @@ def _nbp_and_10mmhg(name):
     """Normal boiling point [K], temperature at 10 mmHg [K] and Watson K of a pure compound, all from the
     `chemicals` library: vapour pressure by Wagner (McGarry) or DIPPR EQ101 (Perry's 8th ed.), liquid density
     at 60 °F by VDI PPDS, Kw by chemicals.utils.Watson_K."""
-    from scipy.optimize import brentq
     import chemicals
-    from chemicals import vapor_pressure as vp, volume as vol
+    from chemicals import vapor_pressure as vp
+    from chemicals import volume as vol
     from chemicals.dippr import EQ101
     from chemicals.utils import SG, Watson_K
+    from scipy.optimize import brentq
     cas = chemicals.CAS_from_any(name)
     if cas in vp.Psat_data_WagnerMcGarry.index:
         r = vp.Psat_data_WagnerMcGarry.loc[cas]

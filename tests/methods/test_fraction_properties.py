@@ -7,7 +7,11 @@ import numpy as np
 import pytest
 
 from assaycut.methods import fraction_properties as fp
-from assaycut.methods.blending_indices import blend, flash_from_wickey_chittenden_index, wickey_chittenden_index
+from assaycut.methods.blending_indices import (
+    blend,
+    flash_from_wickey_chittenden_index,
+    wickey_chittenden_index,
+)
 from assaycut.units import f_to_c
 
 

@@ -69,7 +69,11 @@ def test_flat_step_stays_flat():
 def test_segment_integrals_match_scipy(tv):
     # Reference library: scipy's PchipInterpolator.integrate over each segment; the one segment-integral helper
     # serves Pchip, the batched splines and the property-spline means.
-    from assaycut.model.spline import pchip_slopes, segment_antiderivative, segment_integrals
+    from assaycut.model.spline import (
+        pchip_slopes,
+        segment_antiderivative,
+        segment_integrals,
+    )
 
     t, v = tv
     s = PchipInterpolator(t, v)

@@ -10,7 +10,11 @@ from typer.testing import CliRunner
 
 from assaycut.errors import StudyError
 from assaycut.io import load_assay
-from assaycut.methods.blending_rules import shrinkage_api_mpms_12_3, vbn_refutas, viscosity_from_vbn_refutas
+from assaycut.methods.blending_rules import (
+    shrinkage_api_mpms_12_3,
+    vbn_refutas,
+    viscosity_from_vbn_refutas,
+)
 from assaycut.studies.blend import blend
 from tests.helpers import cli_app, cli_error, cuts_of, sha256
 
