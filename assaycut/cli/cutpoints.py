@@ -97,12 +97,12 @@ def sweep(
     path, a = load_one(assay)
     df = do_sweep(build_model(a), cs, end, t_from, t_to, step)
     if out is not None or not json_out:
-        from ..report.studyreports import plot_sweep
+        from ..report.studyreports import plot_sweep, sweep_headers
         from ..report.write import csv_text, place_files, png_bytes, slug
 
         rel = [x for x in lim if x.cut in (df.attrs["lower"], df.attrs["upper"])]
         base = f"{slug(a.name)}_sweep_{slug(end)}"
-        files = {f"{base}.csv": csv_text(list(df.columns), df.values.tolist()).encode("utf-8"),
+        files = {f"{base}.csv": csv_text(sweep_headers(df), df.values.tolist()).encode("utf-8"),
                  f"{base}.png": png_bytes(plot_sweep, df, a.name, rel)}
         written = place_files(out or Path("reports") / slug(a.name), files, (path,))
     if json_out:
@@ -138,7 +138,8 @@ def optimize(
     cut point moves and every limit applies. The search starts from a brute-force grid and refines with
     scipy's SLSQP; the answer is checked against every limit and never breaks one. Limits the estimates
     cannot evaluate (n/a) do not constrain, and a limit that can be evaluated at the start must stay so:
-    e.g. the flash estimate is made for cuts starting at 150 °C or above, so a kerosene start is held there.
+    e.g. the cetane index is estimated only where the cut's D86 and density lie in its method's scope, so a
+    diesel cut point that would take it out of scope is not chosen.
     The answer rests on estimated qualities: confirm with the laboratory and your column's real
     fractionation before moving cut points.
     """

@@ -6,9 +6,12 @@ import numpy as np
 
 from ..model.tbp_curve import BAND_LAST_POINTS as BAND_LAST
 
-CUT_COLOURS = ["#cfd8dc", "#b3e5fc", "#81d4fa", "#fff59d", "#ffcc80", "#bcaaa4", "#8d6e63", "#a5d6a7",
-               "#ce93d8", "#ef9a9a"]
-"""Fill colours of the cuts, in order (our own palette)."""
+CUT_COLOURS = ["#ede4cf", "#7fa7c9", "#f4d58d", "#5e9e8c", "#e9b3a6", "#8f86b8", "#c9c2b6", "#6f8f5a",
+               "#f1cfe0", "#9c7b5b"]
+"""Fill colours of the cuts, in order: our own palette.  Neighbouring products alternate between light and
+dark tints as well as hue, so that they stay apart for colour-blind readers and in greyscale print."""
+LABEL_MIN_PCT = 6.0
+"""A cut narrower than this [vol %] gets its label outside, on a leader line, instead of inside its band."""
 PLOT_TOP_PCT = 99.0
 """The TBP plot stops at this percent: the last fraction of a percent of the extension is not informative."""
 
@@ -56,13 +59,23 @@ def plot_tbp(result, target) -> None:
     keep = (pv >= c.measured_lo) & (pv <= c.measured_hi)
     ax.plot(pv[keep], pts[keep], "o", ms=3.5, color="#1a237e", label="curve nodes")
     tmin, tmax = float(t.min()), float(t.max())
+    span = tmax - tmin
+    n_out = 0
     for i, r in enumerate(result.cuts.to_dict("records")):
         lo, hi = r["cum_vol_pct"] - r["vol_pct"], min(r["cum_vol_pct"], PLOT_TOP_PCT)
         if hi <= lo:
             continue
-        ax.axvspan(lo, hi, color=CUT_COLOURS[i % len(CUT_COLOURS)], alpha=0.55, lw=0)
-        ax.text((lo + hi) / 2, tmin + 0.03 * (tmax - tmin), f"{r['name']}\n{r['vol_pct']:.1f}%", rotation=90,
-                ha="center", va="bottom", fontsize=8)
+        ax.axvspan(lo, hi, color=CUT_COLOURS[i % len(CUT_COLOURS)], alpha=0.7, lw=0)
+        text = f"{r['name']} {r['vol_pct']:.1f}%"
+        if hi - lo >= LABEL_MIN_PCT:
+            ax.text((lo + hi) / 2, tmin + 0.03 * span, text.replace(" ", "\n", 1) if len(text) > 14 else text,
+                    rotation=90, ha="center", va="bottom", fontsize=8)
+        else:  # a narrow cut: its label on a leader line, stacked to the right so labels never overlap
+            ax.annotate(text, xy=((lo + hi) / 2, tmin + 0.02 * span),
+                        xytext=(hi + 4.0 + 2.0 * n_out, tmin + (0.30 + 0.08 * n_out) * span), fontsize=8,
+                        arrowprops={"arrowstyle": "-", "lw": 0.7, "color": "#424242"},
+                        bbox={"boxstyle": "round,pad=0.2", "fc": "white", "ec": "#9e9e9e", "lw": 0.5})
+            n_out += 1
     for e in result.cut_set.ends_c:
         ax.axhline(e, color="#616161", lw=0.6, ls=":")
     ax.set_xlim(0, 100)
@@ -125,7 +138,9 @@ def plot_properties(result, target) -> None:
     a1.legend(fontsize=8)
     w = np.linspace(0.0, 100.0, 401)
     if m.sulfur_dist is not None:
-        a2.plot(w, m.sulfur_dist(w), color="#f9a825", label="sulfur distribution (reconciled)")
+        a2.plot(w, m.sulfur_dist(w), color="#f9a825",
+                label="sulfur distribution (reconciled)" if not m.sulfur_estimated else
+                "ESTIMATED from the whole-crude sulfur (Riazi et al. 1999 shape)")
         if nc is not None:
             from ..model.distributions import narrow_cut_positions
 

@@ -4,10 +4,11 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..cutting.limits import limit_title
 from ..studies.compare import WORTH_CAVEAT
 from ..units import sg_to_density15
 from .plots import pyplot
-from .xlsx import write_table
+from .xlsx import finish_workbook, write_table
 
 COMPARE_LABELS = {"vol_pct": "Yield [vol %]", "wt_pct": "Yield [wt %]", "api": "API gravity [°API]",
                   "sg": "SG 60/60 °F [-]", "sulfur_wt_pct": "Sulfur [wt %]", "watson_k": "Watson K [-]",
@@ -71,6 +72,7 @@ def compare_workbook(results, table, worth, currency: str | None):
     notes = [("Caution", c) for c in CAUTIONS] + [("Note", WORTH_CAVEAT)]
     notes += [(f"Warning ({r.assay.name})", w) for r in results for w in r.warnings]
     write_table(ws, ["Topic", "Text"], [list(n) for n in notes], widths=[28, 120])
+    finish_workbook(wb, "Crude comparison")
     return wb
 
 
@@ -96,6 +98,19 @@ def plot_compare(table, target) -> None:
     plt.close(fig)
 
 
+def sweep_headers(df) -> list[str]:
+    """The sweep table's headers in the cut CSV's style: the cut's name, then the labelled quality with its
+    unit ('kerosene Yield [vol %]'); the cut point as 'Cut point [°C TBP]'."""
+    from .tables import label_for
+
+    names = {"lower": df.attrs.get("lower", "lower cut"), "upper": df.attrs.get("upper", "upper cut")}
+    out = []
+    for c in df.columns:
+        side, _, q = c.partition("_")
+        out.append("Cut point [°C TBP]" if c == "cut_point_c" else f"{names.get(side, side)} {label_for(q)}")
+    return out
+
+
 def plot_sweep(df, target, crude: str, limits: list | None = None) -> None:
     """Yields and key qualities of the two neighbouring cuts against the moving cut point."""
     plt = pyplot()
@@ -119,13 +134,17 @@ def plot_sweep(df, target, crude: str, limits: list | None = None) -> None:
     a3.set_title("Distillation at the boundary")
     a4.plot(t, df["lower_flash_c_est"], color="#283593", label=f"{lo} flash est.")
     a4.plot(t, df["upper_flash_c_est"], color="#ef6c00", label=f"{hi} flash est.")
-    if np.isfinite(df["lower_cetane_index_d4737"]).any() or np.isfinite(df["upper_cetane_index_d4737"]).any():
-        a4.plot(t, df["lower_cetane_index_d4737"], color="#283593", ls=":", label=f"{lo} CCI")
-        a4.plot(t, df["upper_cetane_index_d4737"], color="#ef6c00", ls=":", label=f"{hi} CCI")
-    a4.set_ylabel("°C / index")
-    a4.set_title("Flash estimate (measure by ASTM D93) and CCI")
+    a4.set_ylabel("Flash point estimate [°C]")
+    a4.set_title("Flash estimate (measure by ASTM D93) and cetane index")
+    a5 = a4.twinx()  # the cetane index on its own axis: it is not a temperature
+    for side, name, colour in (("lower", lo, "#283593"), ("upper", hi, "#ef6c00")):
+        if np.isfinite(df[f"{side}_cetane_index_d4737"]).any():
+            a5.plot(t, df[f"{side}_cetane_index_d4737"], color=colour, ls=":", label=f"{name} CCI (right axis)")
+    if a5.lines:
+        a5.legend(fontsize=7, loc="lower right")
+    a5.set_ylabel("Calculated cetane index D4737 [-]")
     drawn = {(lo, "d86_95_c"): a3, (hi, "d86_10_c"): a3, (lo, "flash_c_est"): a4, (hi, "flash_c_est"): a4,
-             (lo, "cetane_index_d4737"): a4, (hi, "cetane_index_d4737"): a4, (lo, "density_15c_kg_m3"): a2,
+             (lo, "cetane_index_d4737"): a5, (hi, "cetane_index_d4737"): a5, (lo, "density_15c_kg_m3"): a2,
              (hi, "density_15c_kg_m3"): a2}
     for lim in limits or []:
         ax = drawn.get((lim.cut, lim.property))  # only limits on a quality that is plotted for that cut
@@ -133,8 +152,10 @@ def plot_sweep(df, target, crude: str, limits: list | None = None) -> None:
             for v in (lim.min, lim.max):
                 if v is not None:
                     ax.axhline(v, color="#c62828", lw=0.8, ls="-.")
-                    ax.text(t.iloc[0], v, f" {lim.label or lim.cut + ' ' + lim.property}: {v:g}", color="#c62828", fontsize=7,
-                            va="bottom")
+                    right = ax is a5  # the right axis's limits are labelled at the right, the left's at the left
+                    ax.text(t.iloc[-1] if right else t.iloc[0], v,
+                            f" {limit_title(lim.cut, lim.label or lim.property)}: {v:g} ", color="#c62828",
+                            fontsize=7, va="bottom", ha="right" if right else "left")
     for ax in (a1, a2, a3, a4):
         ax.grid(alpha=0.3)
         ax.legend(fontsize=7)
@@ -155,15 +176,24 @@ def plot_optimum(res, target, names_moved: list[str], title: str, objective_labe
         fig, ax = plt.subplots(figsize=(8, 6))
         obj = g["objective"].reshape(g["shape"])
         ok = g["feasible"].reshape(g["shape"])
-        cs = ax.contourf(g["x"], g["y"], obj.T, levels=20, cmap="viridis")
+        # the colour bar spans the feasible values; infeasible cells are clipped into it and hatched over
+        finite = obj[np.isfinite(obj) & ok] if (ok & np.isfinite(obj)).any() else obj[np.isfinite(obj)]
+        lo_v, hi_v = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 1.0)
+        levels = np.linspace(lo_v, hi_v + (1e-9 if hi_v == lo_v else 0.0), 21)
+        shown = np.clip(np.where(np.isfinite(obj), obj, lo_v), lo_v, levels[-1])
+        cs = ax.contourf(g["x"], g["y"], shown.T, levels=levels, cmap="viridis")
         fig.colorbar(cs, ax=ax, label=objective_label)
-        ax.contourf(g["x"], g["y"], (~ok).T.astype(float), levels=[0.5, 1.5], colors=["#eeeeee"], alpha=0.85)
+        if (~ok).any():
+            ax.contourf(g["x"], g["y"], (~ok).T.astype(float), levels=[0.5, 1.5], colors=["#616161"], alpha=0.55,
+                        hatches=["///"])
+            ax.contour(g["x"], g["y"], (~ok).T.astype(float), levels=[0.5], colors=["#212121"], linewidths=1.2)
         ax.plot(*res.start_ends_c[res.var_index], "o", color="#c62828", ms=9, label="start")
         ax.plot(*res.ends_c[res.var_index], "*", color="#ffeb3b", mec="black", ms=16, label="optimum")
         ax.set_xlabel(f"{names_moved[0]} [°C TBP]")
         ax.set_ylabel(f"{names_moved[1]} [°C TBP]")
         ax.legend(loc="lower right", fontsize=8)
-        ax.text(0.01, 0.99, "grey: breaks a product limit", transform=ax.transAxes, va="top", fontsize=8)
+        ax.text(0.01, 0.99, "hatched grey: breaks a product limit (infeasible)", transform=ax.transAxes, va="top",
+                fontsize=8, bbox={"fc": "white", "ec": "none", "alpha": 0.8})
     else:
         fig, ax = plt.subplots(figsize=(9, 5))
         x = np.arange(len(before))

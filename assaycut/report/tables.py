@@ -82,7 +82,8 @@ def label_for(col: str) -> str:
 FORMATS = {"vol_pct": "0.00", "wt_pct": "0.00", "cum_vol_pct": "0.00", "cum_wt_pct": "0.00", "sg": "0.0000",
            "api": "0.0", "density_15c_kg_m3": "0.0", "watson_k": "0.00", "sulfur_wt_pct": "0.000",
            "sulfur_share_pct": "0.0", "mw": "0", "cetane_index_d4737": "0.0", "refractive_index_20c": "0.0000",
-           "acid_number_mg_koh_g": "0.00", "nitrogen_wt_ppm": "0", "smoke_point_mm": "0.0"}
+           "acid_number_mg_koh_g": "0.00", "nitrogen_wt_ppm": "0", "smoke_point_mm": "0.0", "flash_c_est": "0",
+           "mid_vol_c": "0.0", "vabp_c": "0.0", "meabp_c": "0.0"}
 """Spreadsheet number formats by column; temperatures default to 0.0."""
 
 

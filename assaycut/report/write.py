@@ -92,7 +92,7 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ())
 def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
     """Library summary (xlsx and CSV), one row per assay."""
     from ..cutting.library import library_summary
-    from .xlsx import write_table
+    from .xlsx import finish_workbook, write_table
 
     df = library_summary([r.assay for r in results], [r.model for r in results], cs)
     import openpyxl
@@ -111,6 +111,7 @@ def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
 
     write_table(ws2, ["Topic", "Text"], [["Caution", c] for c in CAUTIONS]
                 + [["Cut set", cs.label], ["Assays", str(len(df))]], widths=[20, 120])
+    finish_workbook(wb, "Library summary")
     buf = io.BytesIO()
     wb.save(buf)
     files = {"library_summary.xlsx": buf.getvalue(),

@@ -50,12 +50,30 @@ def write_table(ws, headers: list[str], rows: list[list], formats: list[str | No
         ws.column_dimensions[get_column_letter(j)].width = w
 
 
-def _fmt_for(col: str) -> str | None:
+def _fmt_for(col: str) -> str:
+    """The number format of a column: :data:`FORMATS`, else 0.0 for temperatures, else 0.00 (every numeric
+    column has one)."""
     if col in FORMATS:
         return FORMATS[col]
-    if col.endswith("_c"):
+    if col.endswith("_c") or col.endswith("_c_est"):
         return "0.0"
-    return None
+    return "0.00"
+
+
+def finish_workbook(wb, title: str) -> None:
+    """Print set-up of every sheet: fit to the page width (landscape when wider than 8 columns), header rows
+    repeated, and a page header naming the report and "estimates for screening"."""
+    from openpyxl.worksheet.properties import PageSetupProperties
+
+    for ws in wb.worksheets:
+        ws.sheet_properties.pageSetUpPr = PageSetupProperties(fitToPage=True)
+        ws.page_setup.fitToWidth = 1
+        ws.page_setup.fitToHeight = 0
+        ws.page_setup.orientation = "landscape" if ws.max_column > 8 else "portrait"
+        ws.oddHeader.center.text = safe_text(f"{title}: estimates for screening")
+        ws.oddFooter.right.text = "&P / &N"
+        if ws.max_row > 1:
+            ws.print_title_rows = "1:1"
 
 
 def curve_rows(result, step: float = 0.5) -> list[list]:
@@ -102,6 +120,7 @@ def yield_workbook(result):
     if result.bands is not None:
         _bands_sheet(wb.create_sheet("uncertainty"), result.bands)
     _notes_sheet(wb.create_sheet("notes"), result)
+    finish_workbook(wb, f"{result.assay.name} yield report")
     return wb
 
 
@@ -129,7 +148,7 @@ def _summary_sheet(ws, result) -> None:
             ("Closure residual, wt [%]", result.closure["wt_pct"], "0.000000"),
             ("Cut set", result.cut_set.label, None)]
     for k, v in a.extras.items():
-        info.append((f"Whole crude: {label_for(k)}", v, None))
+        info.append((f"Whole crude: {label_for(k)}", v, "0.00"))
     write_table(ws, ["Item", "Value"], [[k, v] for k, v, _ in info], [None, None], start_row=4, widths=[30, 44])
     for i, (_, _, f) in enumerate(info, start=5):
         if f and isinstance(ws.cell(row=i, column=2).value, (int, float)):

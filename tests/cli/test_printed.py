@@ -74,3 +74,23 @@ def test_blank_template_filled_in_crude_and_distillation_runs(tmp_path):
     assert r.exit_code == 0, r.stderr
     assert json.loads(r.stdout)["assay"]["name"] == "Template Crude"
     assert "not used" in openpyxl.load_workbook(path)["light ends"]["A1"].value
+
+
+def test_every_sheet_prints_to_the_page_width_with_a_header_and_numbers_formatted(tmp_path, demo_paths):
+    # Printed or saved as PDF, a table must not split labels from values across pages (common practice, no
+    # source): every sheet fits the page width, repeats its header row, names the report and says "estimates
+    # for screening"; every numeric cell has a number format.
+    import openpyxl
+
+    r = runner.invoke(app, ["yields", demo_paths[0], "--out", str(tmp_path)])
+    assert r.exit_code == 0, r.stderr
+    wb = openpyxl.load_workbook(tmp_path / "Selkie_Light_yields.xlsx")
+    for ws in wb.worksheets:
+        assert ws.sheet_properties.pageSetUpPr.fitToPage and ws.page_setup.fitToWidth == 1, ws.title
+        assert "estimates for screening" in ws.oddHeader.center.text and "Selkie Light" in ws.oddHeader.center.text
+        if ws.max_column > 8:
+            assert ws.page_setup.orientation == "landscape", ws.title
+        for row in ws.iter_rows(min_row=2):
+            for c in row:
+                if isinstance(c.value, float):
+                    assert c.number_format != "General", (ws.title, c.coordinate)
