@@ -44,7 +44,7 @@ class BlendObjective(str, enum.Enum):
 @app.command()
 @guarded
 def compare(
-    assays: Annotated[list[str], typer.Argument(help="Two or more assays (files, folders or globs).")],
+    assays: Annotated[list[str], typer.Argument(help="Assays (files, folders or globs); one alone can be priced.")],
     cuts: CutsOpt = None,
     limits: LimitsOpt = None,
     prices: PricesOpt = None,
@@ -60,37 +60,43 @@ def compare(
     With --prices, ranks the crudes by gross product worth and margin over the crude price per barrel and
     per tonne. Worth ignores operating costs, unit capacities, quality give-away and freight.
     """
-    from ..studies.compare import WORTH_CAVEAT, comparison_table, worth_table
+    from ..studies.compare import WORTH_CAVEAT, comparison_table, worth_by_product, worth_table
     from ..yields import run_yields
 
     paths = resolve_assays(assays)
-    if len(paths) < 2:
-        raise AssaycutError("compare needs at least two assays")
     cs = load_cut_set(cuts, end)
     lim = load_limits(limits)
     ps = load_prices(prices)
     results = [run_yields(load(p), cs, lim, uncertainty_draws=uncertainty) for p in paths]
     table = comparison_table(results)
     worth = worth_table(results, ps) if ps else None
+    products = pd_concat([worth_by_product(r, ps) for r in results]) if ps else None
     inside = _inside_bands(results) if uncertainty else []
     if out is not None or not json_out:
         from ..report.studyreports import compare_workbook, plot_compare
         from ..report.write import place_files, png_bytes
 
         buf = io.BytesIO()
-        compare_workbook(results, table, worth, ps.currency if ps else None).save(buf)
+        compare_workbook(results, table, worth, ps.currency if ps else None, products).save(buf)
         files = {"comparison.xlsx": buf.getvalue(), "comparison_yields.png": png_bytes(plot_compare, table)}
         inputs = tuple(paths) + tuple(str(x) for x in (cuts, limits, prices) if x)
         written = place_files(out or Path("reports") / "compare", files, inputs)
     if json_out:
         from ..report.jsonout import compare_json
 
-        echo_json(compare_json(results, worth, inside, WORTH_CAVEAT))
+        echo_json(compare_json(results, worth, inside, WORTH_CAVEAT, products))
         return
     from ..report.console import compare_text, written_text
 
     echo_lines(compare_text(table, worth, ps.currency if ps else None, WORTH_CAVEAT, inside, bool(uncertainty)))
     typer.echo(written_text(written))
+
+
+def pd_concat(frames):
+    """One DataFrame of several (pandas imported only when prices are given)."""
+    import pandas as pd
+
+    return pd.concat(frames, ignore_index=True)
 
 
 def _inside_bands(results) -> list[tuple[str, str, str]]:

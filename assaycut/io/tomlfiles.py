@@ -154,6 +154,39 @@ def demo_assay_paths() -> list[str]:
     return [str(base.joinpath(n)) for n in ("selkie_light.xlsx", "brannock_blend.xlsx", "tarn_heavy.xlsx")]
 
 
+CRUDE_PRICE_PROPERTIES = ("api", "sg", "density_15c_kg_m3", "sulfur_wt_pct")
+"""Whole-crude properties a crude price may be adjusted on (besides the crude sheet's extras)."""
+
+
+def _number(v, what: str, path: str) -> float:
+    if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v):
+        raise InputError(f"{what} must be a number; found {v!r}", file=path)
+    return float(v)
+
+
+def _adjustments(items, line: str, key: str, path: str) -> tuple:
+    """The ``adjust`` list of a price line, each entry checked (property known, base and per_unit numbers)."""
+    from ..cutting.limits import SCALAR_PROPERTIES, is_quality
+    from ..studies.compare import Adjustment
+
+    if not isinstance(items, list):
+        raise InputError(f"{line}: 'adjust' must be a list of {{ property, base, per_unit }} tables", file=path)
+    out = []
+    for i, it in enumerate(items, start=1):
+        if not isinstance(it, dict) or set(it) != {"property", "base", "per_unit"}:
+            raise InputError(f"{line}: adjust {i} needs exactly property, base and per_unit", file=path)
+        prop = it["property"]
+        known = (prop in SCALAR_PROPERTIES or is_quality(prop)) if key == "products" else \
+            (prop in CRUDE_PRICE_PROPERTIES or is_quality(prop))
+        if not isinstance(prop, str) or not known:
+            allowed = "a cut-table column or quality (api, sulfur_wt_pct, viscosity_50c_cst, cetane_index_d4737...)" \
+                if key == "products" else f"a whole-crude property ({', '.join(CRUDE_PRICE_PROPERTIES)}, or a quality)"
+            raise InputError(f"{line}: adjust {i}: unknown property {prop!r}; expected {allowed}", file=path)
+        out.append(Adjustment(prop, _number(it["base"], f"{line}: adjust {i} base", path),
+                              _number(it["per_unit"], f"{line}: adjust {i} per_unit", path)))
+    return tuple(out)
+
+
 def read_prices(path: str):
     """Read a price file (TOML).
 
@@ -163,10 +196,13 @@ def read_prices(path: str):
         [products]                      # one entry per cut of the cut set
         "light ends" = { per_t = 420.0 }
         "diesel" = { per_bbl = 96.0 }
+        "vacuum residue" = { per_t = 390.0, adjust = [ { property = "sulfur_wt_pct", base = 1.0, per_unit = -12.0 } ] }
         [crudes]                        # optional: crude prices, by crude name
-        "Selkie Light" = { per_bbl = 82.0 }
+        "Selkie Light" = { per_bbl = 82.0, adjust = [ { property = "api", base = 35.0, per_unit = 0.1 } ] }
 
-    Prices must be positive numbers, each given per_bbl or per_t (not both).
+    Prices must be positive numbers, each given per_bbl or per_t (not both).  ``adjust`` moves the price, in
+    its own unit, by per_unit x (value - base) of the named property; optional ``min``/``max`` bound the
+    adjusted price.
     """
     doc = _load(path)
     unknown = set(doc) - {"currency", "products", "crudes"}
@@ -185,17 +221,26 @@ def read_prices(path: str):
             raise InputError(f"no [{key}] prices; give one per cut, e.g. \"diesel\" = {{ per_bbl = 95.0 }}", file=path)
         out = {}
         for name, spec in t.items():
+            line = f"[{key}] {name!r}"
             if isinstance(spec, (int, float)) and not isinstance(spec, bool):
-                raise InputError(f"[{key}] {name!r}: give the unit, e.g. {{ per_bbl = {spec} }} or {{ per_t = {spec} }}",
+                raise InputError(f"{line}: give the unit, e.g. {{ per_bbl = {spec} }} or {{ per_t = {spec} }}",
                                  file=path)
-            if not isinstance(spec, dict) or len(spec) != 1 or next(iter(spec)) not in ("per_bbl", "per_t"):
-                raise InputError(f"[{key}] {name!r}: expected {{ per_bbl = PRICE }} or {{ per_t = PRICE }}", file=path)
-            unit, val = next(iter(spec.items()))
-            if isinstance(val, bool) or not isinstance(val, (int, float)) or not math.isfinite(val):
-                raise InputError(f"[{key}] {name!r}: the price must be a number; found {val!r}", file=path)
+            units = [k for k in ("per_bbl", "per_t") if isinstance(spec, dict) and k in spec]
+            if not isinstance(spec, dict) or len(units) != 1:
+                raise InputError(f"{line}: expected {{ per_bbl = PRICE }} or {{ per_t = PRICE }}", file=path)
+            extra = set(spec) - {units[0], "adjust", "min", "max"}
+            if extra:
+                raise InputError(f"{line}: unknown key {sorted(extra)[0]!r}; a price has per_bbl or per_t, and "
+                                 f"optionally adjust, min, max", file=path)
+            val = _number(spec[units[0]], f"{line}: the price", path)
             if val <= 0:
-                raise InputError(f"[{key}] {name!r}: the price {val:g} must be positive", file=path)
-            out[name] = Price(float(val), "bbl" if unit == "per_bbl" else "t")
+                raise InputError(f"{line}: the price {val:g} must be positive", file=path)
+            lo = _number(spec["min"], f"{line}: min", path) if "min" in spec else None
+            hi = _number(spec["max"], f"{line}: max", path) if "max" in spec else None
+            if lo is not None and hi is not None and lo > hi:
+                raise InputError(f"{line}: min {lo:g} is above max {hi:g}", file=path)
+            adjust = _adjustments(spec.get("adjust", []), line, key, path)
+            out[name] = Price(val, "bbl" if units[0] == "per_bbl" else "t", adjust, lo, hi, line)
         return out
 
     return PriceSet(table("products", True), table("crudes", False), cur.strip(), path)

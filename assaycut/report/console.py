@@ -70,12 +70,16 @@ def compare_text(table, worth, currency: str | None, caveat: str, inside, uncert
         vals = "".join(f"{(num(v, 3) if isinstance(v, float) else (v or '-')):>{w}}" for v in r[2:])
         lines.append(f"{r[0]:<16}{r[1]:<22}{vals}")
     if worth is not None:
-        lines.append(f"\nGross product worth and margin [{currency}] -- {caveat}")
+        basis = worth.attrs.get("ranked_by", "worth_per_bbl")
+        why = ("ranked by margin per bbl: every crude has a price" if basis == "margin_per_bbl" else
+               "ranked by worth per bbl: not every crude has a price, so margins cannot all be compared")
+        lines.append(f"\nGross product worth and margin [{currency}], {why} -- {caveat}")
         for r in worth.to_dict("records"):
             m = r["margin_per_bbl"]
-            lines.append(f"  {r['rank']}. {r['crude']:<24} worth {r['worth_per_bbl']:8.2f}/bbl "
-                         f"{r['worth_per_t']:8.2f}/t"
-                         + (f"   margin {m:+7.2f}/bbl {r['margin_per_t']:+7.2f}/t" if m == m else "   (no crude price)"))
+            lines.append(f"  {r['rank']}. {r['crude']:<24} worth {num(r['worth_per_bbl'], 2):>8}/bbl "
+                         f"{num(r['worth_per_t'], 2):>8}/t"
+                         + (f"   margin {num(m, 2, signed=True):>7}/bbl {num(r['margin_per_t'], 2, signed=True):>7}/t"
+                            if m == m else "   margin -  (no crude price)"))
     if uncertainty:
         lines.append("\nYield differences inside the P10-P90 bands (not significant under the assumed measurement "
                      "uncertainty):")

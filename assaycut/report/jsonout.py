@@ -91,12 +91,17 @@ def convert_json(frm: str, to: str, used: str, out: dict, warnings: list[str], g
                        for p, t in out.items()], "warnings": warnings}
 
 
-def compare_json(results, worth, inside, caveat: str) -> dict:
-    """``assaycut compare --json``."""
-    return {"assays": [yield_json(r) for r in results],
-            "worth": records(worth) if worth is not None else [],
-            "inside_bands": [{"cut": c, "crudes": [a, b]} for c, a, b in inside],
-            "notes": [caveat] if worth is not None else []}
+def compare_json(results, worth, inside, caveat: str, products=None) -> dict:
+    """``assaycut compare --json``: with prices, ``ranked_by`` ('margin_per_bbl' when every crude has a
+    price, else 'worth_per_bbl') and ``worth_products`` (each product's price, adjustment and contribution)."""
+    doc = {"assays": [yield_json(r) for r in results],
+           "worth": records(worth) if worth is not None else [],
+           "inside_bands": [{"cut": c, "crudes": [a, b]} for c, a, b in inside],
+           "notes": [caveat] if worth is not None else []}
+    if worth is not None:
+        doc["ranked_by"] = worth.attrs.get("ranked_by", "worth_per_bbl")
+        doc["worth_products"] = records(products) if products is not None else []
+    return doc
 
 
 def shift_json(base, new, delta) -> dict:

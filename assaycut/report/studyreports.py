@@ -29,8 +29,9 @@ def compare_wide(table):
     return crudes, rows
 
 
-def compare_workbook(results, table, worth, currency: str | None):
-    """openpyxl Workbook: sheets 'comparison', 'worth' (when priced), 'crudes', 'notes'."""
+def compare_workbook(results, table, worth, currency: str | None, products=None):
+    """openpyxl Workbook: sheets 'comparison', 'worth' and 'worth by product' (when priced), 'crudes',
+    'notes'."""
     import openpyxl
 
     from ..yields import CAUTIONS
@@ -54,6 +55,19 @@ def compare_workbook(results, table, worth, currency: str | None):
                  f"Crude price [{cur}/t]", f"Margin [{cur}/bbl]", f"Margin [{cur}/t]"]
         write_table(ws, heads, worth.values.tolist(), [None, None] + ["0.00"] * 6, widths=[6, 22] + [16] * 6)
         ws.cell(row=len(worth) + 3, column=1, value=WORTH_CAVEAT)
+        basis = worth.attrs.get("ranked_by", "worth_per_bbl")
+        ws.cell(row=len(worth) + 4, column=1, value="Ranked by margin per bbl (every crude has a price)"
+                if basis == "margin_per_bbl" else "Ranked by worth per bbl (not every crude has a price)")
+    if products is not None:
+        ws = wb.create_sheet("worth by product")
+        cur = currency or ""
+        heads = ["Crude", "Cut", "Price unit", f"Base price [{cur}/unit]", f"Quality adjustment [{cur}/unit]",
+                 f"Price [{cur}/unit]", f"Price [{cur}/bbl]", f"Price [{cur}/t]", "Yield [vol %]", "Yield [wt %]",
+                 f"Worth [{cur}/bbl of crude]", f"Worth [{cur}/t of crude]"]
+        cols = ["crude", "cut", "unit", "base_price", "adjustment", "price", "price_per_bbl", "price_per_t",
+                "vol_pct", "wt_pct", "worth_per_bbl", "worth_per_t"]
+        write_table(ws, heads, products[cols].values.tolist(), [None, None, None] + ["0.00"] * 9,
+                    widths=[20, 18, 9] + [14] * 9)
     if results and results[0].bands is not None:
         ws = wb.create_sheet("uncertainty")
         rows = []

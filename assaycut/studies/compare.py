@@ -26,19 +26,78 @@ WORTH_CAVEAT = ("Gross product worth only: operating costs, unit capacities, pro
 
 
 @dataclass(frozen=True)
+class Adjustment:
+    """A quality adjustment of a price: ``per_unit`` x (value of ``property`` - ``base``), in the price's own
+    unit (currency per bbl or per t)."""
+
+    property: str
+    base: float
+    per_unit: float
+
+
+@dataclass(frozen=True)
 class Price:
-    """A price: ``value`` in currency per ``unit`` ('bbl' or 't')."""
+    """A price: ``value`` in currency per ``unit`` ('bbl' or 't'), moved by quality adjustments and bounded by
+    optional ``min``/``max`` (same unit); ``line`` names the price file line for messages."""
 
     value: float
     unit: str
+    adjust: tuple[Adjustment, ...] = ()
+    min: float | None = None
+    max: float | None = None
+    line: str = ""
 
-    def per_tonne(self, density_kg_m3: float) -> float:
-        """Price per metric tonne at the given density at 15 °C. [currency/t]"""
-        return self.value if self.unit == "t" else self.value / (density_kg_m3 * BBL_M3 / 1000.0)
+    def adjusted(self, props, strict: bool = True):
+        """The adjusted price and the adjustment, in the price's own unit.
 
-    def per_bbl(self, density_kg_m3: float) -> float:
-        """Price per barrel at the given density at 15 °C. [currency/bbl]"""
-        return self.value if self.unit == "bbl" else self.value * density_kg_m3 * BBL_M3 / 1000.0
+        price = value + Σ per_unit x (props[property] - base), then bounded to [min, max].
+
+        Parameters
+        ----------
+        props : mapping of str to float or numpy.ndarray
+            The product's (or crude's) property values.
+        strict : bool
+            Raise when a property is missing or has no value (True), or give NaN (False: an optimiser's trial).
+
+        Returns
+        -------
+        (numpy.ndarray, numpy.ndarray)
+            Adjusted price and adjustment. [currency/bbl or /t]
+
+        Examples
+        --------
+        A residue at 390/t with -12 per wt % of sulfur above 1.0, for a 3.5 wt % sulfur residue: by hand
+        390 - 12 x 2.5 = 360:
+
+        >>> p = Price(390.0, "t", (Adjustment("sulfur_wt_pct", 1.0, -12.0),))
+        >>> [float(x) for x in p.adjusted({"sulfur_wt_pct": 3.5})]
+        [360.0, -30.0]
+        """
+        adj = 0.0
+        for a in self.adjust:
+            v = props.get(a.property) if hasattr(props, "get") else None
+            v = np.asarray(np.nan if v is None else v, dtype=float)
+            if strict and (a.property not in props or not np.all(np.isfinite(v))):
+                raise StudyError(f"{self.line or 'a price'}: the adjustment on {a.property!r} needs a value the "
+                                 f"{'cut' if 'products' in self.line else 'crude'} does not have")
+            adj = adj + a.per_unit * (v - a.base)
+        val = np.asarray(self.value + adj, dtype=float)
+        if self.min is not None:
+            val = np.maximum(val, self.min)
+        if self.max is not None:
+            val = np.minimum(val, self.max)
+        return val, val - self.value
+
+    def per_tonne(self, density_kg_m3, value=None):
+        """Price per metric tonne at the given density at 15 °C; ``value`` an adjusted price in the own unit
+        (default the unadjusted one). [currency/t]"""
+        v = self.value if value is None else value
+        return v if self.unit == "t" else v / (density_kg_m3 * BBL_M3 / 1000.0)
+
+    def per_bbl(self, density_kg_m3, value=None):
+        """Price per barrel at the given density at 15 °C; ``value`` as in :meth:`per_tonne`. [currency/bbl]"""
+        v = self.value if value is None else value
+        return v if self.unit == "bbl" else v * density_kg_m3 * BBL_M3 / 1000.0
 
 
 @dataclass
@@ -121,26 +180,73 @@ def worth_table(results, prices: PriceSet):
 
     rows = []
     for r in results:
-        missing = [c for c in r.cuts["name"] if c not in prices.products]
-        if missing:
-            raise StudyError(f"{prices.label}: no price for cut {missing[0]!r}; give a price for every cut of the "
-                             f"cut set ({', '.join(repr(n) for n in r.cuts['name'])})")
-        wb = wt = 0.0
-        for c in r.cuts.to_dict("records"):
-            if c["vol_pct"] <= 0:
-                continue
-            p = prices.products[c["name"]]
-            rho = c["density_15c_kg_m3"]
-            wb += c["vol_pct"] / 100.0 * p.per_bbl(rho)
-            wt += c["wt_pct"] / 100.0 * p.per_tonne(rho)
+        detail = worth_by_product(r, prices)
+        wb, wt = float(detail["worth_per_bbl"].sum()), float(detail["worth_per_t"].sum())
         rho_crude = sg_to_density15(r.assay.sg)
         cp = prices.crudes.get(r.assay.name)
-        cpb = cp.per_bbl(rho_crude) if cp else math.nan
-        cpt = cp.per_tonne(rho_crude) if cp else math.nan
+        if cp:
+            value, _ = cp.adjusted(crude_properties(r))
+            cpb, cpt = float(cp.per_bbl(rho_crude, value)), float(cp.per_tonne(rho_crude, value))
+        else:
+            cpb = cpt = math.nan
         rows.append({"crude": r.assay.name, "worth_per_bbl": wb, "worth_per_t": wt, "crude_price_per_bbl": cpb,
                      "crude_price_per_t": cpt, "margin_per_bbl": wb - cpb, "margin_per_t": wt - cpt})
     df = pd.DataFrame(rows)
-    key = "margin_per_bbl" if df["margin_per_bbl"].notna().all() else "worth_per_bbl"
+    key = ranked_by(df)
     df = df.sort_values(key, ascending=False, kind="stable").reset_index(drop=True)
     df.insert(0, "rank", np.arange(1, len(df) + 1))
+    df.attrs["ranked_by"] = key
     return df
+
+
+def ranked_by(worth) -> str:
+    """What a worth table ranks by: 'margin_per_bbl' when every crude has a price, else 'worth_per_bbl'."""
+    return "margin_per_bbl" if worth["margin_per_bbl"].notna().all() else "worth_per_bbl"
+
+
+def crude_properties(result) -> dict:
+    """The whole-crude properties a crude price may be adjusted on: api, sg, density_15c_kg_m3,
+    sulfur_wt_pct and the crude sheet's extras."""
+    a = result.assay
+    props = {"api": a.api, "sg": a.sg, "density_15c_kg_m3": float(sg_to_density15(a.sg))}
+    if result.model.sulfur_wt_pct is not None:
+        props["sulfur_wt_pct"] = result.model.sulfur_wt_pct
+    props.update({k: v for k, v in a.extras.items() if isinstance(v, (int, float))})
+    return props
+
+
+def worth_by_product(result, prices: PriceSet):
+    """Each product's price, its quality adjustment and its share of the crude's worth.
+
+    Parameters
+    ----------
+    result : YieldResult
+    prices : PriceSet
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per cut: crude, cut, unit ('bbl' or 't'), base_price, adjustment, price (adjusted, in the
+        price's unit), price_per_bbl, price_per_t [currency], vol_pct, wt_pct, worth_per_bbl, worth_per_t
+        (the cut's contribution per bbl / t of crude).
+    """
+    import pandas as pd
+
+    missing = [c for c in result.cuts["name"] if c not in prices.products]
+    if missing:
+        raise StudyError(f"{prices.label}: no price for cut {missing[0]!r}; give a price for every cut of the "
+                         f"cut set ({', '.join(repr(n) for n in result.cuts['name'])})")
+    rows = []
+    for c in result.cuts.to_dict("records"):
+        p = prices.products[c["name"]]
+        empty = not c["vol_pct"] > 0
+        value, adj = (np.float64(p.value), np.float64(0.0)) if empty else p.adjusted(c)
+        rho = c["density_15c_kg_m3"]
+        pb = float(p.per_bbl(rho, value)) if not empty else math.nan
+        pt = float(p.per_tonne(rho, value)) if not empty else math.nan
+        rows.append({"crude": result.assay.name, "cut": c["name"], "unit": p.unit, "base_price": p.value,
+                     "adjustment": float(adj), "price": float(value), "price_per_bbl": pb, "price_per_t": pt,
+                     "vol_pct": c["vol_pct"], "wt_pct": c["wt_pct"],
+                     "worth_per_bbl": 0.0 if empty else c["vol_pct"] / 100.0 * pb,
+                     "worth_per_t": 0.0 if empty else c["wt_pct"] / 100.0 * pt})
+    return pd.DataFrame(rows)

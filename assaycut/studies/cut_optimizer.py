@@ -75,6 +75,11 @@ class OptimResult:
     """Indices of the moving cut points in ``ends_c``."""
 
 
+def needed(price) -> set[str]:
+    """The properties a price's adjustments read."""
+    return {a.property for a in price.adjust}
+
+
 def _objective(cols: dict, names: list[str], maximize: str | None, prices: PriceSet | None) -> np.ndarray:
     if maximize is not None:
         return cols["vol_pct"][:, names.index(maximize)]
@@ -84,7 +89,8 @@ def _objective(cols: dict, names: list[str], maximize: str | None, prices: Price
         if p is None:
             raise StudyError(f"{prices.label}: no price for cut {n!r}")
         rho = np.nan_to_num(cols["density_15c_kg_m3"][:, j], nan=1000.0)  # empty cuts weigh nothing anyway
-        total = total + cols["vol_pct"][:, j] / 100.0 * p.per_bbl(rho)
+        value, _ = p.adjusted({k: v[:, j] for k, v in cols.items() if k in needed(p)}, strict=False)
+        total = total + cols["vol_pct"][:, j] / 100.0 * np.nan_to_num(p.per_bbl(rho, value), nan=-1e12)
     return total
 
 

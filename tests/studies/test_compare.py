@@ -14,6 +14,7 @@ from assaycut.yields import run_yields
 from tests.helpers import DEMO_PRICES, cli_app, cli_error
 
 runner = CliRunner()
+app = cli_app()
 
 
 def test_worth_by_hand(demos):
@@ -57,7 +58,6 @@ def test_price_file_errors(tmp_path, demo_paths):
     cli_error(["compare", *demo_paths[:2], "--prices", str(p)], r"p.toml: no price for cut 'light ends'")
     p.write_text('[products]\n"diesel" = 90.0\n')
     cli_error(["compare", *demo_paths[:2], "--prices", str(p)], r"give the unit")
-    cli_error(["compare", demo_paths[0]], r"compare needs at least two assays")
 
 
 def test_compare_workbook_cells_are_numbers(tmp_path, demo_paths):
@@ -70,3 +70,60 @@ def test_compare_workbook_cells_are_numbers(tmp_path, demo_paths):
     ws = openpyxl.load_workbook(tmp_path / "comparison.xlsx")["worth"]
     assert [ws.cell(row=i, column=1).value for i in (2, 3, 4)] == [1, 2, 3]
     assert all(isinstance(ws.cell(row=i, column=3).value, float) for i in (2, 3, 4))
+
+
+def test_quality_adjustment_arithmetic_by_hand(demos, tmp_path):
+    # Arithmetic worked by hand: a residue at 390 USD/t with -24 per wt % of sulfur above 1.0 and +3 per °API
+    # above 10, bounded below at 250: price = max(250, 390 - 24 (S - 1) + 3 (API - 10)).
+    from assaycut.cutting.cutset import default_cut_set
+    from assaycut.io.tomlfiles import read_prices
+    from assaycut.studies.compare import worth_by_product
+    from assaycut.yields import run_yields
+
+    p = tmp_path / "p.toml"
+    p.write_text('[products]\n"light ends" = { per_t = 430.0 }\n"light naphtha" = { per_bbl = 68.0 }\n'
+                 '"heavy naphtha" = { per_bbl = 74.0 }\n"kerosene" = { per_bbl = 98.0 }\n"diesel" = { per_bbl = 96.0 }\n'
+                 '"vacuum gas oil" = { per_bbl = 80.0 }\n"vacuum residue" = { per_t = 390.0, min = 250.0, adjust = [ '
+                 '{ property = "sulfur_wt_pct", base = 1.0, per_unit = -24.0 }, '
+                 '{ property = "api", base = 10.0, per_unit = 3.0 } ] }\n')
+    prices = read_prices(str(p))
+    for assay, _ in demos:
+        res = run_yields(assay, default_cut_set())
+        vr = res.cuts.set_index("name").loc["vacuum residue"]
+        row = worth_by_product(res, prices).set_index("cut").loc["vacuum residue"]
+        by_hand = max(250.0, 390.0 - 24.0 * (vr["sulfur_wt_pct"] - 1.0) + 3.0 * (vr["api"] - 10.0))
+        assert row["price"] == pytest.approx(by_hand, rel=1e-12)
+        assert row["adjustment"] == pytest.approx(by_hand - 390.0, rel=1e-12)
+        assert row["worth_per_t"] == pytest.approx(vr["wt_pct"] / 100.0 * by_hand, rel=1e-12)
+
+
+def test_unknown_adjustment_property_is_refused_naming_the_line(tmp_path):
+    p = tmp_path / "p.toml"
+    p.write_text('[products]\n"diesel" = { per_bbl = 96.0, adjust = [ { property = "colour", base = 1, per_unit = 1 } ] }\n')
+    cli_error(["compare", "x.xlsx", "--prices", str(p)], r"p.toml: \[products\] 'diesel': adjust 1: unknown property 'colour'")
+
+
+def test_ranked_by_in_both_price_cases(demo_paths, tmp_path):
+    # compare says what it ranks by: margin when every crude has a price, else worth (never silently).
+    r = runner.invoke(app, ["compare", *demo_paths, "--prices", str(DEMO_PRICES), "--json"])
+    d = json.loads(r.stdout)
+    assert d["ranked_by"] == "margin_per_bbl"
+    margins = [w["margin_per_bbl"] for w in d["worth"]]
+    assert margins == sorted(margins, reverse=True)
+    p = tmp_path / "p.toml"
+    text = DEMO_PRICES.read_text(encoding="utf-8")
+    p.write_text(text[:text.index("[crudes]")] + '[crudes]\n"Selkie Light" = { per_bbl = 84.0 }\n', encoding="utf-8")
+    r = runner.invoke(app, ["compare", *demo_paths, "--prices", str(p), "--json"])
+    d = json.loads(r.stdout)
+    assert d["ranked_by"] == "worth_per_bbl"
+    worths = [w["worth_per_bbl"] for w in d["worth"]]
+    assert worths == sorted(worths, reverse=True)
+    printed = runner.invoke(app, ["compare", *demo_paths, "--prices", str(p)]).stdout
+    assert "ranked by worth per bbl: not every crude has a price" in printed and "nan" not in printed
+
+
+def test_one_crude_alone_can_be_priced(demo_paths):
+    r = runner.invoke(app, ["compare", demo_paths[2], "--prices", str(DEMO_PRICES), "--json"])
+    assert r.exit_code == 0, r.stderr
+    d = json.loads(r.stdout)
+    assert [w["crude"] for w in d["worth"]] == ["Tarn Heavy"] and d["ranked_by"] == "margin_per_bbl"
