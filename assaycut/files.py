@@ -17,16 +17,17 @@ def safe_text(value):
     """Text that a spreadsheet will show as text, never run as a formula.
 
     A string that starts with ``=``, ``+``, ``-``, ``@``, tab or carriage return is prefixed with a single
-    quote (the OWASP CSV-injection advice).  Non-strings are returned unchanged.
+    quote (the OWASP CSV-injection advice).  A lone "-" (a dimensionless unit, or a missing value) cannot be
+    a formula and stays as it is.  Non-strings are returned unchanged.
 
     Examples
     --------
     >>> safe_text('=HYPERLINK("http://example.invalid","x")')
     '\\'=HYPERLINK("http://example.invalid","x")'
-    >>> safe_text("Selkie Light")
-    'Selkie Light'
+    >>> safe_text("Selkie Light"), safe_text("-")
+    ('Selkie Light', '-')
     """
-    if isinstance(value, str) and value.startswith(_TRIGGERS):
+    if isinstance(value, str) and value.startswith(_TRIGGERS) and value != "-":
         return "'" + value
     return value
 

@@ -10,13 +10,13 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from .cutting.cutset import CutSet
-from .cutting.ideal import closure, cut_table
+from .cutting.ideal import add_rates, closure, cut_table
 from .cutting.limits import Limit, check_limits, unmatched_cuts
 from .cutting.qualities import ESTIMATED, NOT_ESTIMATED
 from .methods.product_properties import describe_ranges
 from .model.assay import Assay
 from .model.crude import CrudeModel, build_model
-from .units import pct_text, residual_text
+from .units import pct_text, residual_text, sg_to_density15
 
 CAUTIONS = [
     "Estimates for screening and planning, not measured properties: confirm against laboratory data before "
@@ -86,7 +86,7 @@ METHOD_NOTES = {
 
 def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
                method: str = "daubert-1994", model: CrudeModel | None = None, uncertainty_draws: int = 0,
-               sigmas=None) -> YieldResult:
+               sigmas=None, rate_bbl_per_day: float | None = None) -> YieldResult:
     """Model, cut and check one assay.
 
     Parameters
@@ -102,6 +102,8 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         Monte Carlo draws for P10/P50/P90 bands (0: none).
     sigmas : Sigmas, optional
         Measurement standard deviations for the bands (assumed defaults when None).
+    rate_bbl_per_day : float, optional
+        Crude run; adds each cut's bbl_per_day, m3_per_day and t_per_day (:func:`~assaycut.cutting.ideal.add_rates`). [bbl/d]
 
     Returns
     -------
@@ -115,6 +117,8 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         cuts, products = fractionate(model, cut_set, cut_set.overlaps)
     else:
         cuts = cut_table(model, cut_set)
+    if rate_bbl_per_day is not None:
+        cuts = add_rates(cuts, rate_bbl_per_day, float(sg_to_density15(assay.sg)))
     lim = check_limits(cuts, limits or [])
     clo = closure(cuts)
     warnings = list(model.warnings) + _cut_warnings(cuts, model)

@@ -29,6 +29,7 @@ class YieldJob:
     inputs: tuple = ()
     uncertainty_draws: int = 0
     sigmas: object = None
+    rate_bbl_per_day: float | None = None
 
 
 def run_one(path: str, job: YieldJob):
@@ -45,7 +46,8 @@ def run_one(path: str, job: YieldJob):
         api, sg, density, sulfur = job.gravity
         assay = load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
         result = run_yields(assay, job.cut_set, job.limits, method=job.method,
-                            uncertainty_draws=job.uncertainty_draws, sigmas=job.sigmas)
+                            uncertainty_draws=job.uncertainty_draws, sigmas=job.sigmas,
+                            rate_bbl_per_day=job.rate_bbl_per_day)
         written = []
         if job.report_root is not None:
             from ..report.write import slug, write_yield_report

@@ -93,6 +93,8 @@ LimitsOpt = Annotated[Optional[Path], typer.Option("--limits", help="Product-lim
                                                     "planner cuts to) or 'finished' (EN 590 / ASTM D1655 finished-"
                                                     "fuel specs). Shipped values are from memory.",
                                                     dir_okay=False)]
+RateOpt = Annotated[Optional[float], typer.Option("--rate", help="Crude run [bbl/d]: adds each cut's bbl_per_day, "
+                                                 "m3_per_day and t_per_day.", min=1e-9, metavar="BBL_PER_DAY")]
 PricesOpt = Annotated[Optional[Path], typer.Option("--prices", help="Price file (TOML): [products] price per cut "
                                                     "per_bbl or per_t, optional [crudes] prices.", dir_okay=False)]
 EndOpt = Annotated[Optional[list[str]], typer.Option("--end", help="Override one cut's end: NAME=TEMP_C. "

@@ -16,6 +16,7 @@ from .common import (
     JsonOpt,
     LimitsOpt,
     PricesOpt,
+    RateOpt,
     UncertOpt,
     echo_json,
     echo_lines,
@@ -53,6 +54,7 @@ def compare(
                                                 file_okay=False)] = None,
     end: EndOpt = None,
     uncertainty: UncertOpt = 0,
+    rate: RateOpt = None,
 ) -> None:
     """Compare crudes for crude selection: every assay cut with the same cut set, side by side.
 
@@ -67,7 +69,7 @@ def compare(
     cs = load_cut_set(cuts, end)
     lim = load_limits(limits)
     ps = load_prices(prices)
-    results = [run_yields(load(p), cs, lim, uncertainty_draws=uncertainty) for p in paths]
+    results = [run_yields(load(p), cs, lim, uncertainty_draws=uncertainty, rate_bbl_per_day=rate) for p in paths]
     table = comparison_table(results)
     worth = worth_table(results, ps) if ps else None
     products = pd_concat([worth_by_product(r, ps) for r in results]) if ps else None

@@ -9,13 +9,14 @@ import typer
 
 from ..errors import AssaycutError
 from .common import (
-    EXIT_INPUT,
     ApiOpt,
     CutsOpt,
     DensOpt,
+    EXIT_INPUT,
     EndOpt,
     JsonOpt,
     LimitsOpt,
+    RateOpt,
     SgOpt,
     SulfurOpt,
     TdMethod,
@@ -70,6 +71,7 @@ def yields(
         help="Real-column products: the TBP 5-95 overlap at the end of cut NAME, in °C (0 = ideal cut). The "
              "heavy tail of one product then reaches into the next; yields, D86, flash and limit checks use "
              "the products' own curves. Repeatable; also `overlap_c` in the cut file.")] = None,
+    rate: RateOpt = None,
     uncertainty: UncertOpt = 0,
     sigma_temp: SigTempOpt = 2.0,
     sigma_pct: SigPctOpt = 0.3,
@@ -97,7 +99,7 @@ def yields(
     root = (out or Path("reports")) if write and not summary_only else None
     job = YieldJob(cs, lim, method.value, (api, sg, density, sulfur), root,
                    single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
-                   sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0))
+                   sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate)
     results, written, failures = run_batch(paths, job)
     if len(paths) == 1 and failures:
         raise AssaycutError(failures[0][1])

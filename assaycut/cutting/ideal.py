@@ -201,6 +201,39 @@ def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, me
     }
 
 
+BBL_M3 = 0.158987294928
+"""One US oil barrel (42 US gallons, exact). [m³]"""
+
+
+def add_rates(cuts, rate_bbl_per_day: float, crude_density_kg_m3: float):
+    """The cut table with daily rates for a crude run of ``rate_bbl_per_day``.
+
+    bbl_per_day = rate x vol % / 100; m3_per_day = bbl_per_day x 0.158987 m³/bbl; t_per_day = rate x 0.158987
+    x crude density [kg/m³] / 1000 x wt % / 100 (a mass balance on the crude's own density).
+
+    Parameters
+    ----------
+    cuts : pandas.DataFrame
+        A cut table (vol_pct, wt_pct).
+    rate_bbl_per_day : float
+        Crude run. [bbl/d]
+    crude_density_kg_m3 : float
+        Whole-crude density at 15 °C. [kg/m³]
+
+    Returns
+    -------
+    pandas.DataFrame
+        A copy with ``bbl_per_day``, ``m3_per_day`` and ``t_per_day`` after ``cum_wt_pct``.
+    """
+    out = cuts.copy()
+    at = list(out.columns).index("cum_wt_pct") + 1
+    crude_t = rate_bbl_per_day * BBL_M3 * crude_density_kg_m3 / 1000.0
+    out.insert(at, "t_per_day", crude_t * out["wt_pct"] / 100.0)
+    out.insert(at, "m3_per_day", rate_bbl_per_day * BBL_M3 * out["vol_pct"] / 100.0)
+    out.insert(at, "bbl_per_day", rate_bbl_per_day * out["vol_pct"] / 100.0)
+    return out
+
+
 def closure(df) -> dict[str, float]:
     """Yield closure residuals of a cut table: Σ vol % - 100 and Σ wt % - 100. [%]
 

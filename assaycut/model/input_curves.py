@@ -13,9 +13,8 @@ from ..methods.d2887 import SD_STD
 from ..methods.distillation import convert, vacuum_warnings
 from .assay import CurveData
 from .spline import Pchip
+from .tbp_curve import METHANE_NBP_C
 
-METHANE_NBP_C = -161.5
-"""Normal boiling point of methane, the lightest hydrocarbon: no converted TBP may lie below it. [°C]"""
 
 
 def standard_points(curve: CurveData, std) -> dict[float, float]:

@@ -215,11 +215,12 @@ def estimated_sulfur(model) -> Pchip:
     va, vb = edges[:-1], edges[1:]
     tb = model.curve.mean_temp(va, vb)
     sg = model.mean_sg(va, vb)
-    mw = mw_riazi_daubert_1987(tb, sg)
-    n = refractive_index_riazi_daubert_1987(tb, sg)
-    ri, m = ri_and_m(mw, sg, n)
-    heavy_form = np.maximum(mw, 200.0)  # the M >= 200 form for every slice: see the docstring
-    s = np.where(tb < GAS_RANGE_MAX_C, 0.0, sulfur_riazi_1999(heavy_form, sg, ri, m))
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):  # odd slices give NaN, counted as 0
+        mw = mw_riazi_daubert_1987(tb, sg)
+        n = refractive_index_riazi_daubert_1987(tb, sg)
+        ri, m = ri_and_m(mw, sg, n)
+        heavy_form = np.maximum(mw, 200.0)  # the M >= 200 form for every slice: see the docstring
+        s = np.where(tb < GAS_RANGE_MAX_C, 0.0, sulfur_riazi_1999(heavy_form, sg, ri, m))
     s = np.maximum.accumulate(np.nan_to_num(s, nan=0.0))
     wa, wb = model.wt_at_vol(va), model.wt_at_vol(vb)
     raw = property_spline(wa, wb, s)

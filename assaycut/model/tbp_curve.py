@@ -30,6 +30,8 @@ POOR_FIT_RMS_C = 5.0
 """RMS deviation of the distribution fit above which a warning is given. [°C]"""
 LIGHT_ENDS_TOL_PCT = 0.1
 """Light ends that miss the first measured point by at most this much are scaled to meet it. [vol %]"""
+METHANE_NBP_C = -161.5
+"""Normal boiling point of methane, the lightest hydrocarbon: no TBP of the model may lie below it. [°C]"""
 STEP_C = 0.01
 """Width given to a pure component's (or repeated temperature's) vertical step. [°C]"""
 
@@ -180,6 +182,10 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> TbpCurve:
         vv.append(vx)
     if need_front:
         tx, vx = _front_extension(v, t, fit)
+        if tx[0] < METHANE_NBP_C:
+            raise CurveError(f"the curve starts at {pct_text(v[0])} % and its fitted front reaches {tx[0]:.0f} °C, below "
+                             f"the boiling point of methane: give the initial boiling point (0 %) or a light-ends "
+                             f"analysis")
         tt.insert(0, tx)
         vv.insert(0, vx)
     if placed:

@@ -32,6 +32,10 @@ LABELS = {
     "extrapolated": "Extrapolated",
     "vabp_d86_c": "VABP of D86 [°C]",
     "estimated": "Estimated values",
+    "crude": "Crude",
+    "bbl_per_day": "Rate [bbl/d]",
+    "m3_per_day": "Rate [m³/d]",
+    "t_per_day": "Rate [t/d]",
     "nitrogen_wt_ppm": "Nitrogen [wt ppm]",
     "basic_nitrogen_wt_ppm": "Basic nitrogen [wt ppm]",
     "mercaptan_sulfur_wt_ppm": "Mercaptan sulfur [wt ppm]",
@@ -85,6 +89,37 @@ FORMATS = {"vol_pct": "0.00", "wt_pct": "0.00", "cum_vol_pct": "0.00", "cum_wt_p
            "acid_number_mg_koh_g": "0.00", "nitrogen_wt_ppm": "0", "smoke_point_mm": "0.0", "flash_c_est": "0",
            "mid_vol_c": "0.0", "vabp_c": "0.0", "meabp_c": "0.0"}
 """Spreadsheet number formats by column; temperatures default to 0.0."""
+
+
+LONG_COLUMNS = ["crude", "cut", "property", "unit", "value", "basis"]
+"""Columns of the long table (one row per value)."""
+_BASIS = {"vol_pct": "vol", "cum_vol_pct": "vol", "wt_pct": "wt", "cum_wt_pct": "wt", "bbl_per_day": "vol",
+          "m3_per_day": "vol", "t_per_day": "wt"}
+
+
+def unit_of(col: str) -> str:
+    """The unit of a column as the long table gives it: the bracketed part of its label ('vol %', '°C', '-')."""
+    lab = label_for(col)
+    return lab[lab.rindex("[") + 1:-1] if lab.endswith("]") and "[" in lab else "-"
+
+
+def long_rows(cuts, crude: str) -> list[list]:
+    """The cut table in long form for planning models and BI tools: one row per (cut, property) value with
+    its unit and, for yields and rates, the basis ('vol' or 'wt'); D86 points as d86_<p>_c; missing values
+    left out (:data:`LONG_COLUMNS`)."""
+    rows = []
+    for rec in cuts.to_dict("records"):
+        for col, v in rec.items():
+            if col in ("name", "estimated", "extrapolated"):
+                continue
+            if col == "d86_c":
+                for p, t in (v or {}).items():
+                    rows.append([crude, rec["name"], f"d86_{p}_c", "°C", float(t), ""])
+                continue
+            if v is None or isinstance(v, (str, bool)) or not math.isfinite(float(v)):
+                continue
+            rows.append([crude, rec["name"], col, unit_of(col), float(v), _BASIS.get(col, "")])
+    return rows
 
 
 def quality_names(cuts) -> list[str]:

@@ -9,7 +9,7 @@ import re
 from pathlib import Path
 
 from ..files import atomic_write, safe_text
-from .tables import flat_cut_rows, label_for, markdown_summary, quality_names
+from .tables import LONG_COLUMNS, flat_cut_rows, label_for, long_rows, markdown_summary, quality_names
 
 
 def slug(name: str) -> str:
@@ -59,7 +59,7 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ())
     """Write the full yield report of one assay into ``outdir``.
 
     Files: ``<crude>_yields.xlsx`` (summary, cuts, qualities, curve, curve wt basis, limits, notes),
-    ``<crude>_cuts.csv``, ``<crude>_summary.md``, ``<crude>_tbp.png``, ``<crude>_yields.png``,
+    ``<crude>_cuts.csv``, ``<crude>_long.csv`` (one row per value), ``<crude>_summary.md``, ``<crude>_tbp.png``, ``<crude>_yields.png``,
     ``<crude>_properties.png``, ``<crude>_qualities.png`` (when the cuts have qualities beyond gravity and
     sulfur), and with real-column overlaps ``<crude>_products.png``.
 
@@ -78,6 +78,7 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ())
     files[f"{base}_yields.xlsx"] = buf.getvalue()
     names, rows = flat_cut_rows(result.cuts)
     files[f"{base}_cuts.csv"] = csv_text([label_for(n) for n in names], rows).encode("utf-8")
+    files[f"{base}_long.csv"] = csv_text(LONG_COLUMNS, long_rows(result.cuts, result.assay.name)).encode("utf-8")
     files[f"{base}_summary.md"] = markdown_summary(result).encode("utf-8")
     files[f"{base}_tbp.png"] = png_bytes(plots.plot_tbp, result)
     files[f"{base}_yields.png"] = png_bytes(plots.plot_yields, result)
@@ -115,5 +116,7 @@ def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
     buf = io.BytesIO()
     wb.save(buf)
     files = {"library_summary.xlsx": buf.getvalue(),
-             "library_summary.csv": csv_text(heads, df.values.tolist()).encode("utf-8")}
+             "library_summary.csv": csv_text(heads, df.values.tolist()).encode("utf-8"),
+             "library_long.csv": csv_text(LONG_COLUMNS, [row for r in results
+                                                         for row in long_rows(r.cuts, r.assay.name)]).encode("utf-8")}
     return place_files(folder, files, tuple(inputs))

@@ -105,6 +105,7 @@ def yield_workbook(result):
     _summary_sheet(wb.active, result)
     names, rows = flat_cut_rows(result.cuts)
     ws = wb.create_sheet("cuts")
+    names, rows = ["crude"] + names, [[result.assay.name] + r for r in rows]
     write_table(ws, [label_for(n) for n in names], rows, [_fmt_for(n) for n in names])
     ws.column_dimensions["A"].width = 20
     if quality_names(result.cuts):

@@ -57,7 +57,8 @@ def test_bare_command_writes_full_report(tmp_path, monkeypatch):
     folder = tmp_path / "reports" / "Selkie_Light"
     names = sorted(p.name for p in folder.iterdir())
     assert names == sorted(f"Selkie_Light_{s}" for s in ("yields.xlsx", "cuts.csv", "summary.md", "tbp.png",
-                                                          "yields.png", "properties.png", "qualities.png"))
+                                                          "yields.png", "properties.png", "qualities.png",
+                                                          "long.csv"))
     assert not [p for p in folder.iterdir() if p.name.startswith(".")]  # no temporary files left
 
 
@@ -287,3 +288,45 @@ def test_report_never_written_over_input(good_book):
 
     with pytest.raises(InputError, match="refusing to write the report over the input file"):
         atomic_write(good_book, lambda tmp: None, inputs=(str(good_book),))
+
+
+def test_long_csv_matches_the_json(tmp_path, demo_paths):
+    # Identity: every value of the long table is the JSON's value for that cut and property (and the JSON's
+    # numbers all appear), with the yields' basis stated.
+    import csv
+
+    r = runner.invoke(app, ["yields", demo_paths[0], "--out", str(tmp_path)])
+    assert r.exit_code == 0, r.stderr
+    d = json.loads(runner.invoke(app, ["yields", demo_paths[0], "--json"]).stdout)
+    with open(tmp_path / "Selkie_Light_long.csv", encoding="utf-8") as f:
+        rows = list(csv.DictReader(f))
+    assert list(rows[0]) == ["crude", "cut", "property", "unit", "value", "basis"]
+    got = {(x["cut"], x["property"]): x for x in rows}
+    n = 0
+    for c in d["cuts"]:
+        for k, v in c.items():
+            if isinstance(v, float):
+                assert float(got[(c["name"], k)]["value"]) == pytest.approx(v, rel=1e-9, abs=1e-12), (c["name"], k)
+                n += 1
+        for p, t in (c["d86_c"] or {}).items():
+            assert float(got[(c["name"], f"d86_{p}_c")]["value"]) == pytest.approx(t, rel=1e-9)
+    assert n > 100 and all(x["crude"] == "Selkie Light" for x in rows)
+    assert got[("diesel", "vol_pct")]["basis"] == "vol" and got[("diesel", "wt_pct")]["basis"] == "wt"
+    assert got[("diesel", "vol_pct")]["unit"] == "vol %" and got[("diesel", "sg")]["unit"] == "-"
+
+
+def test_rate_arithmetic(demo_paths):
+    # Definitions: 1 US barrel = 42 US gallons x 3.785411784 L (exact); bbl/d and m3/d follow the volume yields,
+    # t/d the weight yields on the crude's mass (rate x bbl x density at 15 °C); each sums to the crude run.
+    r = runner.invoke(app, ["yields", demo_paths[0], "--rate", "120000", "--json"])
+    d = json.loads(r.stdout)
+    bbl = 42 * 3.785411784e-3
+    crude_t = 120000 * bbl * d["assay"]["density_15c_kg_m3"] / 1000.0
+    for c in d["cuts"]:
+        assert c["bbl_per_day"] == pytest.approx(120000 * c["vol_pct"] / 100.0, rel=1e-12)
+        assert c["m3_per_day"] == pytest.approx(c["bbl_per_day"] * bbl, rel=1e-12)
+        assert c["t_per_day"] == pytest.approx(crude_t * c["wt_pct"] / 100.0, rel=1e-12)
+    assert sum(c["bbl_per_day"] for c in d["cuts"]) == pytest.approx(120000, rel=1e-12)
+    assert sum(c["t_per_day"] for c in d["cuts"]) == pytest.approx(crude_t, rel=1e-12)
+    r = runner.invoke(app, ["compare", *demo_paths[:2], "--rate", "50000", "--json"])
+    assert all("t_per_day" in c for a in json.loads(r.stdout)["assays"] for c in a["cuts"])

@@ -87,7 +87,8 @@ def test_batch_skips_bad_file_and_writes_summary(tmp_path, demo_paths):
     assert r.exit_code == 2
     assert "skipped:" in r.stderr and "broken.xlsx" in r.stderr and "1 of 4 assays failed" in r.stderr
     assert "Traceback" not in r.stderr
-    assert sorted(p.name for p in (tmp_path / "o").iterdir()) == ["library_summary.csv", "library_summary.xlsx"]
+    assert sorted(p.name for p in (tmp_path / "o").iterdir()) == ["library_long.csv", "library_summary.csv",
+                                                            "library_summary.xlsx"]
     import openpyxl
 
     ws = openpyxl.load_workbook(tmp_path / "o" / "library_summary.xlsx")["library"]
