@@ -33,6 +33,60 @@ OutOpt = Annotated[Optional[Path], typer.Option("--out", help="Report folder. De
 
 @app.command()
 @guarded
+def vectors(
+    assays: Annotated[Optional[list[str]], typer.Argument(help="Assays (files, folders or globs). Default: the "
+                                                          "demo assay.")] = None,
+    cuts: CutsOpt = None,
+    limits: LimitsOpt = None,
+    json_out: JsonOpt = False,
+    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/. With "
+                                                "--json and no --out, no files are written.", file_okay=False)]
+    = None,
+) -> None:
+    """Base and delta vectors for planning models: each crude's base cut table, and for each cut point the
+    change per °C of every cut's yields and qualities.
+
+    The deltas are central differences of the exact model (each cut point moved by ±0.5 °C, the others
+    held). Writes <crude>_vectors.xlsx and <crude>_vectors_long.csv; --json prints them.
+    """
+    from ..model.crude import build_model
+    from ..studies.cutpoints import VECTOR_STEP_C, cut_point_vectors
+    from .common import load, resolve_assays
+
+    cs = load_cut_set(cuts, None)
+    lim = load_limits(limits)
+    paths = resolve_assays(assays)
+    entries, written = [], []
+    for p in paths:
+        a = load(p)
+        base, deltas = cut_point_vectors(build_model(a), cs)
+        if lim:
+            from ..cutting.limits import check_limits
+
+            status = {(x["cut"]): x["status"] for x in check_limits(base, lim).to_dict("records")
+                      if x["status"] == "fail"}
+            base = base.assign(limits=[("fail" if n in status else "") for n in base["name"]])
+        entries.append((a.name, base, deltas))
+        if out is not None or not json_out:
+            from ..report.studyreports import vectors_files
+            from ..report.write import place_files, slug
+
+            folder = out if out is not None and len(paths) == 1 else (out or Path("reports")) / slug(a.name)
+            written += place_files(folder, vectors_files(a.name, base, deltas, VECTOR_STEP_C), (p,))
+    if json_out:
+        from ..report.jsonout import vectors_json
+
+        echo_json(vectors_json(entries, VECTOR_STEP_C))
+        return
+    from ..report.console import written_text
+
+    for name, base, deltas in entries:
+        typer.echo(f"{name}: base cut table and per-°C vectors for {len(deltas)} cut points (±{VECTOR_STEP_C:g} °C)")
+    typer.echo(written_text(written, "Vectors"))
+
+
+@app.command()
+@guarded
 def shift(
     assay: AssayArg = None,
     end: EndOpt = None,

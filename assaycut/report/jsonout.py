@@ -104,6 +104,17 @@ def compare_json(results, worth, inside, caveat: str, products=None) -> dict:
     return doc
 
 
+def vectors_json(entries, step_c: float) -> dict:
+    """``assaycut vectors --json``: ``{"assays": [{"assay": NAME, "base": [cut rows], "deltas": [{"cut_point":
+    NAME, "per_c": [{"name": CUT, "vol_pct": .., ...}]}]}], "step_c": h}``; ``entries`` is a list of (assay name,
+    base cut table, {cut point: per-°C table})."""
+    return {"assays": [{"assay": name, "base": records(base),
+                        "deltas": [{"cut_point": cp, "per_c": records(d)} for cp, d in deltas.items()]}
+                       for name, base, deltas in entries],
+            "step_c": step_c,
+            "method": f"central difference of the exact model, cut point ± {step_c:g} °C, the others held"}
+
+
 def shift_json(base, new, delta) -> dict:
     """``assaycut shift --json``."""
     return {"base": yield_json(base), "new": yield_json(new), "delta": records(delta)}

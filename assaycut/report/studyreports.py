@@ -112,6 +112,45 @@ def plot_compare(table, target) -> None:
     plt.close(fig)
 
 
+def vectors_files(name: str, base, deltas: dict, step_c: float) -> dict[str, bytes]:
+    """The vectors of one crude as ``<crude>_vectors.xlsx`` (sheets 'base' and 'per degree C', one row per
+    cut point and cut) and ``<crude>_vectors_long.csv`` (crude, cut_point, cut, property, unit, value, basis;
+    the base as cut_point 'base', deltas in unit per °C)."""
+    import io
+
+    import openpyxl
+
+    from .tables import basis_of, flat_cut_rows, label_for, long_rows, unit_of
+    from .write import csv_text, slug
+    from .xlsx import _fmt_for, finish_workbook
+
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "base"
+    names, rows = flat_cut_rows(base)
+    write_table(ws, [label_for(n) for n in names], rows, [_fmt_for(n) for n in names])
+    ws = wb.create_sheet("per degree C")
+    cols = [c for c in next(iter(deltas.values())).columns if c != "name"] if deltas else []
+    write_table(ws, ["Cut point (end of)", "Cut"] + [f"{label_for(c)} per °C" for c in cols],
+                [[cp, r["name"], *[r[c] for c in cols]] for cp, d in deltas.items() for r in d.to_dict("records")],
+                [None, None] + ["0.0000"] * len(cols))
+    ws.cell(row=ws.max_row + 2, column=1, value=f"Central difference of the exact model: each cut point ± {step_c:g} "
+                                                f"°C, the others held; estimates for screening.")
+    finish_workbook(wb, f"{name} base and delta vectors")
+    buf = io.BytesIO()
+    wb.save(buf)
+    long = [[r[0], "base", *r[1:]] for r in long_rows(base, name)]
+    for cp, d in deltas.items():
+        for rec in d.to_dict("records"):
+            for c, v in rec.items():
+                if c != "name" and v == v:
+                    long.append([name, cp, rec["name"], c, f"{unit_of(c)}/°C", float(v), basis_of(c)])
+    base_name = slug(name)
+    return {f"{base_name}_vectors.xlsx": buf.getvalue(),
+            f"{base_name}_vectors_long.csv": csv_text(["crude", "cut_point", "cut", "property", "unit", "value",
+                                                       "basis"], long).encode("utf-8")}
+
+
 def sweep_headers(df) -> list[str]:
     """The sweep table's headers in the cut CSV's style: the cut's name, then the labelled quality with its
     unit ('kerosene Yield [vol %]'); the cut point as 'Cut point [°C TBP]'."""

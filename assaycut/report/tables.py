@@ -97,6 +97,11 @@ _BASIS = {"vol_pct": "vol", "cum_vol_pct": "vol", "wt_pct": "wt", "cum_wt_pct": 
           "m3_per_day": "vol", "t_per_day": "wt"}
 
 
+def basis_of(col: str) -> str:
+    """'vol' or 'wt' for yields and rates, '' for a quality (its basis does not matter to an importer)."""
+    return _BASIS.get(col, "")
+
+
 def unit_of(col: str) -> str:
     """The unit of a column as the long table gives it: the bracketed part of its label ('vol %', '°C', '-')."""
     lab = label_for(col)
@@ -118,7 +123,7 @@ def long_rows(cuts, crude: str) -> list[list]:
                 continue
             if v is None or isinstance(v, (str, bool)) or not math.isfinite(float(v)):
                 continue
-            rows.append([crude, rec["name"], col, unit_of(col), float(v), _BASIS.get(col, "")])
+            rows.append([crude, rec["name"], col, unit_of(col), float(v), basis_of(col)])
     return rows
 
 

@@ -132,3 +132,61 @@ def sweep(model: CrudeModel, cut_set: CutSet, name: str, t_from: float, t_to: fl
     df = pd.DataFrame(out)
     df.attrs["lower"], df.attrs["upper"] = names[k], names[k + 1]
     return df
+
+
+VECTOR_STEP_C = 0.5
+"""Half-width of the central difference of :func:`cut_point_vectors`: each cut point is moved by ± this. [°C]"""
+
+
+def cut_point_vectors(model: CrudeModel, cut_set: CutSet, step_c: float = VECTOR_STEP_C):
+    """Base and delta vectors for planning models: the base cut table, and for each cut point the change per
+    °C of every cut's yields and qualities.
+
+    The derivative is the central difference of the exact model, (q(T + h) - q(T - h)) / 2h with h =
+    ``step_c``, all cut points but one held; every candidate is cut in one batched call.
+
+    Parameters
+    ----------
+    model : CrudeModel
+    cut_set : CutSet
+    step_c : float
+        Half-width h. [°C]
+
+    Returns
+    -------
+    (pandas.DataFrame, dict of str to pandas.DataFrame)
+        The base cut table, and {cut-point name (the cut it ends): per-°C change of every numeric column of
+        every cut [unit per °C]}; NaN where a quality is missing on either side.
+
+    Raises
+    ------
+    StudyError
+        When two cut points lie within 2h of each other (the step would cross them).
+    """
+    from ..cutting.ideal import columns_frame, first_row
+
+    names, ends = cut_set.reported()
+    gaps = np.diff(ends)
+    if gaps.size and float(gaps.min()) <= 2.0 * step_c:
+        raise StudyError(f"two cut points lie within {2 * step_c:g} °C of each other: the ±{step_c:g} °C step of "
+                         f"the vectors would cross them")
+    k = ends.size
+    grid = np.repeat(ends[None, :], 2 * k + 1, axis=0)
+    grid[1:k + 1][np.arange(k), np.arange(k)] += step_c
+    grid[k + 1:][np.arange(k), np.arange(k)] -= step_c
+    cols = cut_columns(model, grid)
+    frames = [columns_frame(names, first_row({key: (({n: f[i:i + 1] for n, f in v.items()} if key == "estimated"
+                                                      else v[i:i + 1])) for key, v in cols.items()}))
+              for i in range(2 * k + 1)]
+    base = frames[0]
+    numeric = [c for c in base.columns if c not in ("name", "d86_c", "estimated", "extrapolated")]
+    deltas = {}
+    for j in range(k):
+        plus, minus = frames[1 + j], frames[1 + k + j]
+        d = (plus[numeric].astype(float) - minus[numeric].astype(float)) / (2.0 * step_c)
+        for p in D86_STD:
+            d[f"d86_{p}_c"] = [((a or {}).get(str(p), math.nan) - (b or {}).get(str(p), math.nan)) / (2.0 * step_c)
+                               for a, b in zip(plus["d86_c"], minus["d86_c"])]
+        d.insert(0, "name", names)
+        deltas[names[j]] = d.drop(columns=[c for c in ("start_c", "end_c") if c in d.columns])
+    return base, deltas

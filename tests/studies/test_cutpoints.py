@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 
+import numpy as np
 import pytest
 from typer.testing import CliRunner
 
@@ -73,3 +74,44 @@ def test_sweep_cli_writes_csv_and_png(tmp_path):
     r = runner.invoke(cli_app(), ["sweep", "--end", "diesel", "--from", "330", "--to", "370", "--out", str(tmp_path)])
     assert r.exit_code == 0, r.stderr
     assert sorted(p.suffix for p in tmp_path.iterdir()) == [".csv", ".png"]
+
+
+@pytest.mark.parametrize("cut_point", ["kerosene", "diesel"])
+def test_four_times_the_per_degree_vector_matches_a_4c_shift(demos, cut_point):
+    # Linearisation check against the exact model: 4 x the per-°C vector equals a 4 °C shift up to the curve's
+    # curvature over 4 °C (second order: 2 % of the move here, plus 1e-4 for rounding); and the per-°C yield
+    # changes sum to zero on each basis (mass balance, identity).
+    from assaycut.cutting.cutset import default_cut_set
+    from assaycut.studies.cutpoints import cut_point_vectors, shift_delta
+    from assaycut.yields import run_yields
+
+    cs = default_cut_set()
+    end = {c.name: c.end_c for c in cs.cuts}[cut_point]
+    for assay, model in demos:
+        _, vec = cut_point_vectors(model, cs)
+        d = vec[cut_point].set_index("name")
+        moved = shift_delta(run_yields(assay, cs, model=model),
+                            run_yields(assay, cs.with_ends({cut_point: end + 4.0}), model=model)).set_index("name")
+        for q in ("vol_pct", "wt_pct", "sg", "sulfur_wt_pct"):
+            ok = np.isfinite(moved[q]) & np.isfinite(d[q])
+            assert np.all(np.abs(4.0 * d[q][ok] - moved[q][ok]) <= 0.02 * np.abs(moved[q][ok]) + 1e-4), (assay.name, q)
+        assert abs(d["vol_pct"].sum()) < 1e-9 and abs(d["wt_pct"].sum()) < 1e-9
+
+
+def test_vectors_json_shape(demo_paths):
+    # The JSON layout the issue fixes for planning-model importers.
+    import json
+
+    from typer.testing import CliRunner
+
+    from assaycut.cli import app
+
+    r = CliRunner().invoke(app, ["vectors", demo_paths[0], "--json"])
+    assert r.exit_code == 0, r.stderr
+    d = json.loads(r.stdout)
+    a = d["assays"][0]
+    assert a["assay"] == "Selkie Light" and len(a["base"]) == 7 and d["step_c"] == 0.5
+    assert [x["cut_point"] for x in a["deltas"]] == ["light ends", "light naphtha", "heavy naphtha", "kerosene",
+                                                     "diesel", "vacuum gas oil"]
+    row = a["deltas"][3]["per_c"][3]
+    assert row["name"] == "kerosene" and row["vol_pct"] > 0 and "wt_pct" in row
