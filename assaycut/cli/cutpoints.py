@@ -93,11 +93,13 @@ def shift(
     cuts: CutsOpt = None,
     limits: LimitsOpt = None,
     json_out: JsonOpt = False,
+    out: OutOpt = None,
 ) -> None:
     """Show what a change of cut point moves: per-cut deltas in yield, SG, sulfur, D86, CCI, flash and limits.
 
     Compares the base cut set with the one changed by --end NAME=TEMP_C (repeatable). Changed cuts are marked
-    with '*'; limits that flip are listed. Shift deltas add up to zero on each basis.
+    with '*'; limits that flip are listed. Shift deltas add up to zero on each basis. Prints and writes
+    (<crude>_shift.csv) the new values beside the changes.
     """
     from ..model.crude import build_model
     from ..studies.cutpoints import shift_delta
@@ -108,7 +110,7 @@ def shift(
     base_cs = load_cut_set(cuts, None)
     new_cs = load_cut_set(cuts, end)
     lim = load_limits(limits)
-    _, a = load_one(assay)
+    path, a = load_one(assay)
     model = build_model(a)
     base = run_yields(a, base_cs, lim, model=model)
     new = run_yields(a, new_cs, lim, model=model)
@@ -118,10 +120,15 @@ def shift(
 
         echo_json(shift_json(base, new, delta))
         return
-    from ..report.console import shift_text
+    from ..report.console import shift_text, written_text
+    from ..report.studyreports import shift_csv
+    from ..report.write import place_files, slug
 
     typer.echo(f"{a.name}: cut-point change " + ", ".join(f"{k} -> {v:g} °C" for k, v in parse_ends(end).items()))
     typer.echo(shift_text(delta))
+    written = place_files(out or Path("reports") / slug(a.name), {f"{slug(a.name)}_shift.csv": shift_csv(delta)},
+                          (path,))
+    typer.echo(written_text(written))
 
 
 @app.command()

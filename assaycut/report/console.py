@@ -34,7 +34,7 @@ def written_text(written, what: str = "Report") -> str:
     """'Report written to FOLDER (N files).', naming at most three folders."""
     folders = sorted({str(p.parent) for p in written})
     shown = ", ".join(folders[:3]) + (f" and {len(folders) - 3} more folders" if len(folders) > 3 else "")
-    return f"{what} written to {shown} ({len(written)} files)."
+    return f"{what} written to {shown} ({len(written)} file{'' if len(written) == 1 else 's'})."
 
 
 def check_text(name: str, findings, ok: bool) -> list[str]:
@@ -146,9 +146,9 @@ def optimum_text(crude: str, what: str, unit: str, res, cut_set) -> list[str]:
 
 
 def shift_text(delta) -> str:
-    """The shift deltas as aligned text, changed cuts marked with '*'."""
-    head = ["", "Cut", "End °C", "-> End °C", "Δ vol %", "Δ wt %", "Δ SG", "Δ S wt %", "Δ D86 95 °C", "Δ CCI",
-            "Δ flash °C", "Limit flips"]
+    """The shift as aligned text: each quality's new value and its change beside it, changed cuts marked '*'."""
+    head = ["", "Cut", "End °C", "-> End °C", "vol %", "Δ vol %", "wt %", "Δ wt %", "SG", "Δ SG", "S wt %",
+            "Δ S wt %", "D86 95 °C", "Δ", "CCI", "Δ", "Flash °C", "Δ", "Limit flips"]
 
     def f(v, nd):
         return num(v, nd, signed=True)
@@ -156,9 +156,11 @@ def shift_text(delta) -> str:
     def e(v):
         return "end" if v is None or (isinstance(v, float) and math.isnan(v)) else f"{v:g}"
 
-    body = [["*" if r["changed"] else "", r["name"], e(r["end_c_base"]), e(r["end_c_new"]), f(r["vol_pct"], 2),
-             f(r["wt_pct"], 2), f(r["sg"], 4), f(r["sulfur_wt_pct"], 3), f(r["d86_95_c"], 1),
-             f(r["cetane_index_d4737"], 1), f(r["flash_c_est"], 1), r["limit_flips"]]
+    body = [["*" if r["changed"] else "", r["name"], e(r["end_c_base"]), e(r["end_c_new"]),
+             num(r["new_vol_pct"], 2), f(r["vol_pct"], 2), num(r["new_wt_pct"], 2), f(r["wt_pct"], 2),
+             num(r["new_sg"], 4), f(r["sg"], 4), num(r["new_sulfur_wt_pct"], 3), f(r["sulfur_wt_pct"], 3),
+             num(r["new_d86_95_c"], 1), f(r["d86_95_c"], 1), num(r["new_cetane_index_d4737"], 1),
+             f(r["cetane_index_d4737"], 1), num(r["new_flash_c_est"], 1), f(r["flash_c_est"], 1), r["limit_flips"]]
             for r in delta.to_dict("records")]
     widths = [max(len(str(x)) for x in col) for col in zip(head, *body)]
     lines = ["  ".join(str(h).ljust(w) for h, w in zip(head, widths)).rstrip()]

@@ -151,6 +151,24 @@ def vectors_files(name: str, base, deltas: dict, step_c: float) -> dict[str, byt
                                                        "basis"], long).encode("utf-8")}
 
 
+def shift_csv(delta) -> bytes:
+    """The shift table as CSV: each cut's new end, and per quality the new value and the change, labelled."""
+    from .tables import label_for
+    from .write import csv_text
+
+    cols = [c for c in delta.columns]
+    heads = []
+    for c in cols:
+        if c.startswith("new_"):
+            heads.append(f"New {label_for(c[4:])}")
+        elif c in ("name", "changed", "limit_flips", "end_c_base", "end_c_new"):
+            heads.append({"name": "Cut", "changed": "Changed", "limit_flips": "Limits that flip",
+                          "end_c_base": "End TBP before [°C]", "end_c_new": "End TBP after [°C]"}[c])
+        else:
+            heads.append(f"Change in {label_for(c)}")
+    return csv_text(heads, delta[cols].values.tolist()).encode("utf-8")
+
+
 def sweep_headers(df) -> list[str]:
     """The sweep table's headers in the cut CSV's style: the cut's name, then the labelled quality with its
     unit ('kerosene Yield [vol %]'); the cut point as 'Cut point [°C TBP]'."""

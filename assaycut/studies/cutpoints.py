@@ -29,8 +29,9 @@ def shift_delta(base, new):
     Returns
     -------
     pandas.DataFrame
-        One row per cut: name, old and new end_c, d_vol_pct, d_wt_pct, d_sg, d_sulfur_wt_pct,
-        d_cetane_index_d4737, d_flash_c_est, d_d86_<p>_c, changed (bool), limit_flips (text).
+        One row per cut: name, end_c_base, end_c_new; the changes vol_pct, wt_pct, sg, sulfur_wt_pct,
+        cetane_index_d4737, flash_c_est, d86_<p>_c (new minus base), and the new absolute values beside them
+        (new_vol_pct, new_wt_pct, ..., new_d86_95_c); changed (bool), limit_flips (text).
     """
     import pandas as pd
 
@@ -46,9 +47,11 @@ def shift_delta(base, new):
         row = {"name": name, "end_c_base": rb["end_c"], "end_c_new": rn["end_c"]}
         for c in DELTA_COLUMNS:
             row[c] = _d(rn[c], rb[c])
+            row[f"new_{c}"] = float(rn[c]) if rn[c] is not None else math.nan
         db, dn = rb["d86_c"] or {}, rn["d86_c"] or {}
         for p in D86_STD:
             row[f"d86_{p}_c"] = _d(dn.get(str(p), math.nan), db.get(str(p), math.nan))
+        row["new_d86_95_c"] = float(dn.get("95", math.nan))
         row["changed"] = bool(abs(row["vol_pct"]) > 1e-9 or abs(row["wt_pct"]) > 1e-9)
         flips = [f"{lab}: {bl[(name, prop)]} -> {st}" for (cut, prop), (st, lab) in nl.items()
                  if cut == name and bl.get((cut, prop)) not in (None, st)]

@@ -115,3 +115,22 @@ def test_vectors_json_shape(demo_paths):
                                                      "diesel", "vacuum gas oil"]
     row = a["deltas"][3]["per_c"][3]
     assert row["name"] == "kerosene" and row["vol_pct"] > 0 and "wt_pct" in row
+
+
+def test_shift_shows_new_values_beside_the_changes(demo_paths, tmp_path):
+    # The new absolute value and its change sit side by side: new = base + change (identity), printed and
+    # written to <crude>_shift.csv.
+    from typer.testing import CliRunner
+
+    from assaycut.cli import app
+
+    r = CliRunner().invoke(app, ["shift", demo_paths[0], "--end", "kerosene=240", "--json"])
+    d = json.loads(r.stdout)
+    base = {c["name"]: c for c in d["base"]["cuts"]}
+    for row in d["delta"]:
+        assert row["new_vol_pct"] == pytest.approx(base[row["name"]]["vol_pct"] + row["vol_pct"], abs=1e-9)
+    r = CliRunner().invoke(app, ["shift", demo_paths[0], "--end", "kerosene=240", "--out", str(tmp_path)])
+    assert r.exit_code == 0, r.stderr
+    assert "Δ vol %" in r.stdout and "vol %" in r.stdout
+    head = (tmp_path / "Selkie_Light_shift.csv").read_text(encoding="utf-8").splitlines()[0]
+    assert "New Yield [vol %]" in head and "Change in Yield [vol %]" in head
