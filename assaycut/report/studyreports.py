@@ -122,13 +122,13 @@ def vectors_files(name: str, base, deltas: dict, step_c: float) -> dict[str, byt
 
     from .tables import basis_of, flat_cut_rows, label_for, long_rows, unit_of
     from .write import csv_text, slug
-    from .xlsx import _fmt_for, finish_workbook
+    from .xlsx import fmt_for, finish_workbook
 
     wb = openpyxl.Workbook()
     ws = wb.active
     ws.title = "base"
     names, rows = flat_cut_rows(base)
-    write_table(ws, [label_for(n) for n in names], rows, [_fmt_for(n) for n in names])
+    write_table(ws, [label_for(n) for n in names], rows, [fmt_for(n) for n in names])
     ws = wb.create_sheet("per degree C")
     cols = [c for c in next(iter(deltas.values())).columns if c != "name"] if deltas else []
     write_table(ws, ["Cut point (end of)", "Cut"] + [f"{label_for(c)} per °C" for c in cols],

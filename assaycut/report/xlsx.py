@@ -50,7 +50,7 @@ def write_table(ws, headers: list[str], rows: list[list], formats: list[str | No
         ws.column_dimensions[get_column_letter(j)].width = w
 
 
-def _fmt_for(col: str) -> str:
+def fmt_for(col: str) -> str:
     """The number format of a column: :data:`FORMATS`, else 0.0 for temperatures, else 0.00 (every numeric
     column has one)."""
     if col in FORMATS:
@@ -106,7 +106,7 @@ def yield_workbook(result):
     names, rows = flat_cut_rows(result.cuts)
     ws = wb.create_sheet("cuts")
     names, rows = ["crude"] + names, [[result.assay.name] + r for r in rows]
-    write_table(ws, [label_for(n) for n in names], rows, [_fmt_for(n) for n in names])
+    write_table(ws, [label_for(n) for n in names], rows, [fmt_for(n) for n in names])
     ws.column_dimensions["A"].width = 20
     if quality_names(result.cuts):
         _qualities_sheet(wb.create_sheet("qualities"), result)
@@ -176,7 +176,7 @@ def _qualities_sheet(ws, result) -> None:
     cuts = result.cuts
     names = quality_names(cuts)
     rows = [[r["name"], *[r[n] for n in names]] for r in cuts.to_dict("records")]
-    write_table(ws, ["Cut", *[label_for(n) for n in names]], rows, [None, *[_fmt_for(n) or "0.00" for n in names]],
+    write_table(ws, ["Cut", *[label_for(n) for n in names]], rows, [None, *[fmt_for(n) or "0.00" for n in names]],
                 widths=[20] + [14] * len(names))
     est = list(cuts["estimated"])
     for i, r in enumerate(cuts.to_dict("records"), start=2):
@@ -223,7 +223,7 @@ def _bands_sheet(ws, bands) -> None:
         for pct in (10, 50, 90):
             heads.append(f"{LABELS[q]} P{pct}")
             keys.append(f"{q}_p{pct}")
-            fmts.append(_fmt_for(q) or "0.00")
+            fmts.append(fmt_for(q) or "0.00")
     write_table(ws, heads, [[r[k] for k in keys] for r in bands.to_dict("records")], fmts)
     ws.column_dimensions["A"].width = 20
     ws.cell(row=len(bands) + 3, column=1, value=safe_text(f"{bands.attrs['draws']} Monte Carlo draws; "
