@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import enum
 import io
+import json
 from pathlib import Path
 from typing import Annotated, Optional
 
@@ -62,7 +63,12 @@ def compare(
     With --prices, ranks the crudes by gross product worth and margin over the crude price per barrel and
     per tonne. Worth ignores operating costs, unit capacities, quality give-away and freight.
     """
-    from ..studies.compare import WORTH_CAVEAT, comparison_table, worth_by_product, worth_table
+    from ..studies.compare import (
+        WORTH_CAVEAT,
+        comparison_table,
+        worth_by_product,
+        worth_table,
+    )
     from ..yields import run_yields
 
     paths = resolve_assays(assays)
@@ -206,7 +212,8 @@ def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min
     """Run the blend optimiser for the CLI and print (and plot) its plan."""
     from ..model.crude import build_model
     from ..report.console import blend_plan_text
-    from ..report.studyreports import plot_blend_plan
+    from ..report.jsonout import blend_plan_json
+    from ..report.studyreports import blend_plan_workbook, plot_blend_plan
     from ..report.write import place_files, png_bytes
     from ..studies.blend_optimizer import BlendTargets, optimize_blend
     from ..yields import run_yields
@@ -230,7 +237,10 @@ def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min
                                                                     what="a yield in vol %"))
     plan = optimize_blend(results, bounds, targets, ps, objective.value)
     echo_lines(blend_plan_text(plan))
-    written = place_files(folder, {"blend_plan.png": png_bytes(plot_blend_plan, plan)},
-                          tuple(p for p, _, _ in parents))
-    typer.echo(f"  Plot written to {written[0]}")
+    buf = io.BytesIO()
+    blend_plan_workbook(plan).save(buf)
+    files = {"blend_plan.png": png_bytes(plot_blend_plan, plan), "blend_plan.xlsx": buf.getvalue(),
+             "blend_plan.json": (json.dumps(blend_plan_json(plan), indent=2, ensure_ascii=False) + "\n").encode()}
+    written = place_files(folder, files, tuple(p for p, _, _ in parents))
+    typer.echo(f"  Plan written to {written[0].parent} (blend_plan.json, .xlsx, .png)")
     return plan, parents

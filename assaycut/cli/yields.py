@@ -9,10 +9,10 @@ import typer
 
 from ..errors import AssaycutError
 from .common import (
+    EXIT_INPUT,
     ApiOpt,
     CutsOpt,
     DensOpt,
-    EXIT_INPUT,
     EndOpt,
     JsonOpt,
     LimitsOpt,

@@ -16,7 +16,6 @@ from .spline import Pchip
 from .tbp_curve import METHANE_NBP_C
 
 
-
 def standard_points(curve: CurveData, std) -> dict[float, float]:
     """The curve's temperatures at the standard percents it covers (PCHIP through its points). [°C]"""
     p, t = curve.percent, curve.temp_c

@@ -96,6 +96,9 @@ def blend_plan_text(plan) -> list[str]:
                  + ", ".join(f"{k} {v:.1f}" for k, v in plan.yields.items()) + " vol %")
     if plan.binding:
         lines.append("  binding targets: " + "; ".join(plan.binding))
+    for t in plan.targets:
+        marg = "" if t["marginal_per_unit"] is None else f", marginal value {num(t['marginal_per_unit'], 4, signed=True)} per {t['unit']}"
+        lines.append(f"  {t['target']}: achieved {num(t['achieved'], 3)}, slack {num(t['slack'], 3)} {t['unit']}{marg}")
     for lab, amount in plan.shortfalls.items():
         unit = "°API" if "API" in lab else ("wt %" if "sulfur" in lab else "vol %")
         how = "exceeded by" if "<=" in lab else "short by"

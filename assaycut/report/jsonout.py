@@ -115,6 +115,18 @@ def vectors_json(entries, step_c: float) -> dict:
             "method": f"central difference of the exact model, cut point ± {step_c:g} °C, the others held"}
 
 
+def blend_plan_json(plan) -> dict:
+    """The blend optimiser's plan: feasible, objective and its value, shares [%], blend API and sulfur,
+    yields [vol %], each target with its slack and marginal value, the binding targets and any shortfalls."""
+    return json_safe({"feasible": plan.feasible, "objective": plan.objective, "value": plan.value,
+                      "shares_pct": plan.shares_pct, "api": plan.api, "sulfur_wt_pct": plan.sulfur_wt_pct,
+                      "yields_vol_pct": plan.yields, "targets": plan.targets, "binding": plan.binding,
+                      "shortfalls": plan.shortfalls,
+                      "notes": ["linear blending rules, no shrinkage; worth ignores operating costs and unit "
+                                "limits; marginal_per_unit is the change of the objective's value per unit of "
+                                "target (linprog duals)"]})
+
+
 def shift_json(base, new, delta) -> dict:
     """``assaycut shift --json``."""
     return {"base": yield_json(base), "new": yield_json(new), "delta": records(delta)}

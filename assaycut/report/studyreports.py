@@ -122,7 +122,7 @@ def vectors_files(name: str, base, deltas: dict, step_c: float) -> dict[str, byt
 
     from .tables import basis_of, flat_cut_rows, label_for, long_rows, unit_of
     from .write import csv_text, slug
-    from .xlsx import fmt_for, finish_workbook
+    from .xlsx import finish_workbook, fmt_for
 
     wb = openpyxl.Workbook()
     ws = wb.active
@@ -277,6 +277,36 @@ def plot_optimum(res, target, names_moved: list[str], title: str, objective_labe
     ax.set_title(title)
     fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
     plt.close(fig)
+
+
+def blend_plan_workbook(plan):
+    """openpyxl Workbook of the blend plan: sheets 'shares' and 'targets' (slack and marginal value)."""
+    import openpyxl
+
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "shares"
+    write_table(ws, ["Crude", "Share [vol %]"], [[k, v] for k, v in plan.shares_pct.items()], [None, "0.00"],
+                widths=[28, 14])
+    r = len(plan.shares_pct) + 3
+    for k, (lab, val, fmt) in enumerate([("Objective", plan.objective, None), ("Value", plan.value, "0.00"),
+                                          ("Blend API [°API]", plan.api, "0.00"),
+                                          ("Blend sulfur [wt %]", plan.sulfur_wt_pct, "0.000"),
+                                          ("Feasible", "yes" if plan.feasible else "no", None)]):
+        ws.cell(row=r + k, column=1, value=lab)
+        c = ws.cell(row=r + k, column=2, value=val if val == val else None)
+        if fmt:
+            c.number_format = fmt
+    ws = wb.create_sheet("targets")
+    write_table(ws, ["Target", "Limit", "Achieved", "Unit", "Slack", "Binding", "Marginal value per unit"],
+                [[t["target"], t["limit"], t["achieved"], t["unit"], t["slack"], t["binding"],
+                  t["marginal_per_unit"]] for t in plan.targets],
+                [None, "0.000", "0.000", None, "0.000", None, "0.0000"], widths=[30, 10, 10, 8, 10, 9, 22])
+    ws.cell(row=len(plan.targets) + 3, column=1,
+            value="Marginal value: change of the objective per unit of the target (linear programme duals); "
+                  "linear blending rules, estimates for screening.")
+    finish_workbook(wb, "Blend plan")
+    return wb
 
 
 def plot_blend_plan(plan, target) -> None:

@@ -9,7 +9,14 @@ import re
 from pathlib import Path
 
 from ..files import atomic_write, safe_text
-from .tables import LONG_COLUMNS, flat_cut_rows, label_for, long_rows, markdown_summary, quality_names
+from .tables import (
+    LONG_COLUMNS,
+    flat_cut_rows,
+    label_for,
+    long_rows,
+    markdown_summary,
+    quality_names,
+)
 
 
 def slug(name: str) -> str:

@@ -46,6 +46,10 @@ class BlendPlan:
     yields: dict[str, float]
     shortfalls: dict[str, float] = field(default_factory=dict)
     binding: list[str] = field(default_factory=list)
+    targets: list[dict] = field(default_factory=list)
+    """Each target: ``target`` (label), ``achieved``, ``limit``, ``unit``, ``slack`` (in the target's unit,
+    >= 0 when met), ``binding``, and ``marginal_per_unit``: the change of the objective's value when the target
+    moves by one unit (from the linear programme's duals; None when infeasible)."""
 
 
 def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: BlendTargets,
@@ -95,7 +99,10 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
         v = res.x
         slack = (b - A @ v) if rows else np.array([])
         binding = [lab for lab, sl, sc in zip(labels, slack, scales) if abs(sl) <= 1e-7 * max(1.0, sc * 100)]
-        return _plan(True, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, {}, binding)
+        plan = _plan(True, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, {}, binding)
+        duals = res.ineqlin.marginals if rows else np.array([])
+        plan.targets = _target_report(targets, plan, v, sg, labels, binding, duals, sign)
+        return plan
     # elastic problem: minimise the scaled violations
     m = len(rows)
     if m == 0:
@@ -110,7 +117,41 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
     for lab, amount, row in zip(labels, viol, rows):
         if amount > 1e-9:
             short[lab] = _in_target_units(lab, amount, row, v, sg)
-    return _plan(False, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, short, [])
+    plan = _plan(False, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, short, [])
+    plan.targets = _target_report(targets, plan, v, sg, labels, [], None, sign)
+    return plan
+
+
+def _target_report(targets: BlendTargets, plan: BlendPlan, v, sg, labels, binding, duals, sign) -> list[dict]:
+    """Each target's achieved value, slack and marginal value (see :attr:`BlendPlan.targets`).
+
+    The duals of linprog (HiGHS) are d(objective)/d(b) of each row A v <= b; the marginal value of a target
+    follows from how its row's b moves with the target: d SG / d API = -141.5/(API + 131.5)^2 for the API
+    rows, the blend's SG x volume for the sulfur row (whose coefficients carry the target), -1 for a minimum
+    yield; multiplied by ``sign`` to read in the objective's own sense (a margin that rises is positive).
+    """
+    out = []
+    k = 0
+    sg_v = float(sg @ v)
+
+    def add(limit, achieved, slack, unit, db):
+        nonlocal k
+        lab = labels[k]
+        marg = None if duals is None else float(sign * duals[k] * db) + 0.0  # + 0.0: no negative zero
+        slack = 0.0 if abs(slack) < 1e-9 else float(slack)  # float rounding of a binding target is no slack
+        out.append({"target": lab, "limit": limit, "achieved": achieved, "unit": unit, "slack": slack,
+                    "binding": lab in binding, "marginal_per_unit": marg})
+        k += 1
+
+    if targets.api_min is not None:
+        add(targets.api_min, plan.api, plan.api - targets.api_min, "°API", -141.5 / (targets.api_min + 131.5) ** 2)
+    if targets.api_max is not None:
+        add(targets.api_max, plan.api, targets.api_max - plan.api, "°API", 141.5 / (targets.api_max + 131.5) ** 2)
+    if targets.sulfur_max is not None:
+        add(targets.sulfur_max, plan.sulfur_wt_pct, targets.sulfur_max - plan.sulfur_wt_pct, "wt %", sg_v)
+    for cut, ymin in targets.min_yield.items():
+        add(ymin, plan.yields[cut], plan.yields[cut] - ymin, "vol %", -1.0)
+    return out
 
 
 def _objective(results, names, prices: PriceSet | None, objective: str):

@@ -92,3 +92,27 @@ def test_cli_blend_optimize(tmp_path):
                             "--sulfur-max", "0.05", "--out", str(tmp_path / "x.xlsx")])
     assert r.exit_code == 1
     assert "target not met: blend sulfur <= 0.05 wt %" in r.stdout
+
+
+def test_plan_marginal_values_match_a_re_solve(demos):
+    # The duals as marginal values: relaxing a binding target by a small step and solving again moves the
+    # objective by marginal x step (linear programming sensitivity; exact while the basis holds).
+    import dataclasses
+
+    from assaycut.cutting.cutset import default_cut_set
+    from assaycut.io.tomlfiles import read_prices
+    from assaycut.studies.blend_optimizer import BlendTargets, optimize_blend
+    from assaycut.yields import run_yields
+    from tests.helpers import DEMO_PRICES
+
+    results = [run_yields(a, default_cut_set(), model=m) for a, m in demos]
+    prices = read_prices(str(DEMO_PRICES))
+    bounds = {"Selkie Light": (0.0, 40.0)}
+    for targets, field_, step in ((BlendTargets(sulfur_max=1.2), "sulfur_max", 1e-3),
+                                  (BlendTargets(api_min=28.0), "api_min", 1e-3)):
+        plan = optimize_blend(results, bounds, targets, prices)
+        t = plan.targets[0]
+        assert t["binding"] and t["slack"] == 0.0
+        moved = optimize_blend(results, bounds, dataclasses.replace(targets, **{field_: getattr(targets, field_) + step}),
+                               prices)
+        assert (moved.value - plan.value) / step == pytest.approx(t["marginal_per_unit"], rel=1e-4)
