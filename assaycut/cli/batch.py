@@ -30,6 +30,7 @@ class YieldJob:
     uncertainty_draws: int = 0
     sigmas: object = None
     rate_bbl_per_day: float | None = None
+    unit: str = "C"  # display unit of the report's temperatures ('C' or 'F')
 
 
 def run_one(path: str, job: YieldJob):
@@ -53,7 +54,7 @@ def run_one(path: str, job: YieldJob):
             from ..report.write import slug, write_yield_report
 
             folder = job.report_root if job.single_folder else job.report_root / slug(assay.name)
-            written = write_yield_report(result, folder, job.inputs)
+            written = write_yield_report(result, folder, job.inputs, job.unit)
         return result, written, None
     except AssaycutError as exc:
         return None, [], str(exc)

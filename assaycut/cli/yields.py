@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import enum
 from pathlib import Path
 from typing import Annotated, Optional
 
@@ -32,6 +33,11 @@ from .common import (
 )
 
 app = typer.Typer()
+
+
+class TUnitOpt(str, enum.Enum):
+    C = "C"
+    F = "F"
 
 BRIEF_OVER = 10
 """Batches larger than this print a one-line summary instead of every cut table."""
@@ -72,6 +78,8 @@ def yields(
              "heavy tail of one product then reaches into the next; yields, D86, flash and limit checks use "
              "the products' own curves. Repeatable; also `overlap_c` in the cut file.")] = None,
     rate: RateOpt = None,
+    unit: Annotated[TUnitOpt, typer.Option("--unit", help="Temperature unit of the printed tables and the report "
+                                           "sheets and CSVs (JSON stays in °C).")] = TUnitOpt.C,
     uncertainty: UncertOpt = 0,
     sigma_temp: SigTempOpt = 2.0,
     sigma_pct: SigPctOpt = 0.3,
@@ -99,7 +107,8 @@ def yields(
     root = (out or Path("reports")) if write and not summary_only else None
     job = YieldJob(cs, lim, method.value, (api, sg, density, sulfur), root,
                    single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
-                   sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate)
+                   sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
+                   unit=unit.value)
     results, written, failures = run_batch(paths, job)
     if len(paths) == 1 and failures:
         raise AssaycutError(failures[0][1])
@@ -116,13 +125,13 @@ def yields(
         if failures:
             raise typer.Exit(EXIT_INPUT)
         return
-    _print_report(results, written, len(cs.names))
+    _print_report(results, written, len(cs.names), unit.value)
     if failures:
         error_line(f"{len(failures)} of {len(paths)} assays failed and were skipped (see above)")
         raise typer.Exit(EXIT_INPUT)
 
 
-def _print_report(results, written, n_cuts: int) -> None:
+def _print_report(results, written, n_cuts: int, unit: str = "C") -> None:
     """The cut tables (or a one-line summary for a large batch), warnings, the flash caution, the files."""
     from ..report.console import FLASH_FOOTNOTE, written_text, yield_text
 
@@ -130,7 +139,7 @@ def _print_report(results, written, n_cuts: int) -> None:
         typer.echo(f"{len(results)} assays cut with {n_cuts} cuts; see the library summary.")
     else:
         for r in results:
-            echo_lines(yield_text(r))
+            echo_lines(yield_text(r, unit))
             for w in r.warnings:
                 typer.echo(f"warning: {w}", err=True)
     typer.echo(FLASH_FOOTNOTE)

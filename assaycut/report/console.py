@@ -6,19 +6,20 @@ import math
 
 from ..cutting.limits import is_lower_bound, limit_title
 from .studyreports import compare_wide
-from .tables import num, quality_text_table, text_table
+from .tables import display_cuts, num, quality_text_table, text_table
 
 FLASH_FOOTNOTE = ("\n* Flash points are correlation estimates: measure them (ASTM D93). All results are screening "
                   "estimates; see the notes sheet of the report for methods and cautions.")
 
 
-def yield_text(result) -> list[str]:
-    """One assay's heading, cut table and failed limits."""
+def yield_text(result, unit: str = "C") -> list[str]:
+    """One assay's heading, cut table (temperatures in ``unit``, 'C' or 'F') and failed limits."""
     a = result.assay
+    cuts = display_cuts(result.cuts, unit)
     lines = [f"\n{a.name}  ({a.origin or 'origin not given'})  {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
              + (f"{result.model.sulfur_wt_pct:.3f} wt %" if result.model.sulfur_wt_pct is not None else "n/a"),
-             text_table(result.cuts)]
-    q = quality_text_table(result.cuts)
+             text_table(cuts)]
+    q = quality_text_table(cuts)
     if q:
         lines += ["", q]
     fails = result.limits[result.limits["status"] == "fail"]

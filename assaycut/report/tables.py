@@ -62,6 +62,7 @@ LABELS = {
 """Report header of each cut-table column, with its unit."""
 for _p in D86_STD:
     LABELS[f"d86_{_p}_c"] = f"D86 {_p} % [°C]"
+    LABELS[f"d86_{_p}_f"] = f"D86 {_p} % [°F]"
 
 _UNITS = {"c": "°C", "f": "°F", "k": "K", "pct": "%", "wt_pct": "wt %", "vol_pct": "vol %", "cst": "cSt",
           "cp": "cP", "mg_koh_g": "mg KOH/g", "kg_m3": "kg/m³", "ppm": "ppm", "wt_ppm": "wt ppm", "mg_kg": "mg/kg",
@@ -73,6 +74,10 @@ def label_for(col: str) -> str:
     unit suffix spelled out (e.g. 'colour_index' stays as it is, 'wax_content_wt_pct' -> 'Wax content [wt %]')."""
     if col in LABELS:
         return LABELS[col]
+    if col.endswith("_f") or col.endswith("_f_est"):  # a °F display column: the °C one's label in °F
+        c = col[:-2] + "_c" if col.endswith("_f") else col[:-6] + "_c_est"
+        if c in LABELS:
+            return LABELS[c].replace("°C", "°F")
     import re
 
     v = re.match(r"^viscosity_(\d+(?:\.\d+)?)c_cst$", col)
@@ -117,9 +122,9 @@ def long_rows(cuts, crude: str) -> list[list]:
         for col, v in rec.items():
             if col in ("name", "estimated", "extrapolated"):
                 continue
-            if col == "d86_c":
+            if col in ("d86_c", "d86_f"):
                 for p, t in (v or {}).items():
-                    rows.append([crude, rec["name"], f"d86_{p}_c", "°C", float(t), ""])
+                    rows.append([crude, rec["name"], f"d86_{p}_{col[-1]}", f"°{col[-1].upper()}", float(t), ""])
                 continue
             if v is None or isinstance(v, (str, bool)) or not math.isfinite(float(v)):
                 continue
@@ -127,26 +132,61 @@ def long_rows(cuts, crude: str) -> list[list]:
     return rows
 
 
+def _is_temperature(col: str) -> bool:
+    return col.endswith("_c") or col.endswith("_c_est")
+
+
+def _f_name(col: str) -> str:
+    return col[:-2] + "_f" if col.endswith("_c") else col[:-6] + "_f_est"
+
+
+def in_fahrenheit(cuts):
+    """A cut table for display in °F: every temperature column converted and renamed (start_c -> start_f,
+    flash_c_est -> flash_f_est, d86_c -> d86_f with its points converted; the ``estimated`` lists follow).
+    Temperatures inside a name (viscosity_40c_cst) stay as they are.  JSON output stays in °C."""
+    from ..units import c_to_f
+
+    out = cuts.copy()
+    ren = {c: _f_name(c) for c in out.columns if _is_temperature(c) and c != "d86_c"}
+    for c in ren:
+        out[c] = c_to_f(out[c].to_numpy(dtype=float))
+    if "d86_c" in out.columns:
+        out["d86_c"] = [None if d is None else {k: float(c_to_f(v)) for k, v in d.items()} for d in out["d86_c"]]
+        ren["d86_c"] = "d86_f"
+    if "estimated" in out.columns:
+        out["estimated"] = [[ren.get(x, x) for x in e] for e in out["estimated"]]
+    return out.rename(columns=ren)
+
+
+def display_cuts(cuts, unit: str = "C"):
+    """The cut table in the display unit ('C' as is, 'F' by :func:`in_fahrenheit`)."""
+    return in_fahrenheit(cuts) if unit == "F" else cuts
+
+
 def quality_names(cuts) -> list[str]:
     """The quality columns of a cut table beyond the standard ones (narrow-cut qualities and estimates)."""
     from ..cutting.ideal import CUT_COLUMNS
 
-    return [c for c in cuts.columns if c not in CUT_COLUMNS and c != "estimated"]
+    standard = set(CUT_COLUMNS) | {_f_name(c) for c in CUT_COLUMNS if _is_temperature(c)} | {"d86_f"}
+    return [c for c in cuts.columns if c not in standard and c not in ("estimated", "bbl_per_day", "m3_per_day",
+                                                                          "t_per_day")]
 
 
 def flat_cut_rows(cuts) -> tuple[list[str], list[list]]:
     """Cut table as flat rows (D86 expanded into one column per point), with machine column names."""
-    cols = [c for c in cuts.columns if c != "d86_c"]
+    d86 = "d86_f" if "d86_f" in cuts.columns else "d86_c"
+    u = d86[-1]
+    cols = [c for c in cuts.columns if c != d86]
     cols.insert(cols.index("cetane_index_d4737"), "__d86__")
     names = []
     for c in cols:
-        names += [f"d86_{p}_c" for p in D86_STD] if c == "__d86__" else [c]
+        names += [f"d86_{p}_{u}" for p in D86_STD] if c == "__d86__" else [c]
     rows = []
     for rec in cuts.to_dict("records"):
         row = []
         for c in cols:
             if c == "__d86__":
-                d = rec["d86_c"] or {}
+                d = rec[d86] or {}
                 row += [d.get(str(p)) for p in D86_STD]
             else:
                 row.append(rec[c])
@@ -198,9 +238,20 @@ TERMINAL_QUALITIES = [("freeze_point_c", "Freeze °C", 0), ("smoke_point_mm", "S
 """The qualities the terminal shows, when present (all of them are in the report files and JSON)."""
 
 
+def _shown(spec, cuts):
+    """Terminal columns present in ``cuts``, a °C column taken in °F where the table is in °F."""
+    out = []
+    for c, h, nd in spec:
+        if c in cuts.columns:
+            out.append((c, h, nd))
+        elif _is_temperature(c) and _f_name(c) in cuts.columns:
+            out.append((_f_name(c), h.replace("°C", "°F"), nd))
+    return out
+
+
 def quality_text_table(cuts) -> str:
     """The key qualities per cut as aligned text; estimated values end in '~'; '' when there are none."""
-    cols = [(c, h, nd) for c, h, nd in TERMINAL_QUALITIES if c in cuts.columns]
+    cols = _shown(TERMINAL_QUALITIES, cuts)
     if not cols:
         return ""
     head = ["Cut"] + [h for _, h, _ in cols]
@@ -218,8 +269,9 @@ def quality_text_table(cuts) -> str:
 
 def text_table(cuts) -> str:
     """The cut table as aligned plain text for the terminal."""
-    head = [h for _, h, _ in TERMINAL_COLUMNS]
-    body = [[_fmt(r[c], nd) if c != "name" else str(r[c]) for c, _, nd in TERMINAL_COLUMNS]
+    cols = _shown(TERMINAL_COLUMNS, cuts)
+    head = [h for _, h, _ in cols]
+    body = [[_fmt(r[c], nd) if c != "name" else str(r[c]) for c, _, nd in cols]
             for r in cuts.to_dict("records")]
     widths = [max(len(x) for x in col) for col in zip(head, *body)]
     lines = ["  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, (h, w) in enumerate(zip(head, widths)))]

@@ -11,6 +11,7 @@ from pathlib import Path
 from ..files import atomic_write, safe_text
 from .tables import (
     LONG_COLUMNS,
+    display_cuts,
     flat_cut_rows,
     label_for,
     long_rows,
@@ -62,13 +63,14 @@ def png_bytes(plot, first, *rest, **kwargs) -> bytes:
     return buf.getvalue()
 
 
-def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ()) -> list[Path]:
+def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (), unit: str = "C") -> list[Path]:
     """Write the full yield report of one assay into ``outdir``.
 
     Files: ``<crude>_yields.xlsx`` (summary, cuts, qualities, curve, curve wt basis, limits, notes),
     ``<crude>_cuts.csv``, ``<crude>_long.csv`` (one row per value), ``<crude>_summary.md``, ``<crude>_tbp.png``, ``<crude>_yields.png``,
     ``<crude>_properties.png``, ``<crude>_qualities.png`` (when the cuts have qualities beyond gravity and
-    sulfur), and with real-column overlaps ``<crude>_products.png``.
+    sulfur), and with real-column overlaps ``<crude>_products.png``.  With ``unit`` 'F' the cut and quality
+    sheets and both CSVs give temperatures in °F; the plots, the Markdown summary and the limits stay in °C.
 
     Returns
     -------
@@ -81,11 +83,12 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = ())
     base = slug(result.assay.name)
     files: dict[str, bytes] = {}
     buf = io.BytesIO()
-    yield_workbook(result).save(buf)
+    yield_workbook(result, unit).save(buf)
     files[f"{base}_yields.xlsx"] = buf.getvalue()
-    names, rows = flat_cut_rows(result.cuts)
+    cuts = display_cuts(result.cuts, unit)
+    names, rows = flat_cut_rows(cuts)
     files[f"{base}_cuts.csv"] = csv_text([label_for(n) for n in names], rows).encode("utf-8")
-    files[f"{base}_long.csv"] = csv_text(LONG_COLUMNS, long_rows(result.cuts, result.assay.name)).encode("utf-8")
+    files[f"{base}_long.csv"] = csv_text(LONG_COLUMNS, long_rows(cuts, result.assay.name)).encode("utf-8")
     files[f"{base}_summary.md"] = markdown_summary(result).encode("utf-8")
     files[f"{base}_tbp.png"] = png_bytes(plots.plot_tbp, result)
     files[f"{base}_yields.png"] = png_bytes(plots.plot_yields, result)

@@ -11,7 +11,14 @@ import math
 import numpy as np
 
 from ..files import safe_text
-from .tables import FORMATS, LABELS, flat_cut_rows, label_for, quality_names
+from .tables import (
+    FORMATS,
+    LABELS,
+    display_cuts,
+    flat_cut_rows,
+    label_for,
+    quality_names,
+)
 
 HEADER_FILL = "DDE6EE"
 
@@ -55,7 +62,7 @@ def fmt_for(col: str) -> str:
     column has one)."""
     if col in FORMATS:
         return FORMATS[col]
-    if col.endswith("_c") or col.endswith("_c_est"):
+    if col.endswith(("_c", "_c_est", "_f", "_f_est")):
         return "0.0"
     return "0.00"
 
@@ -96,20 +103,21 @@ def wt_curve_rows(result, step: float = 1.0) -> list[list]:
     return [list(r) for r in zip(w, m.curve.temp_at(v), v)]
 
 
-def yield_workbook(result):
+def yield_workbook(result, unit: str = "C"):
     """The openpyxl Workbook of one yield report (sheets: summary, cuts, curve, curve wt basis, limits,
     uncertainty with bands, notes)."""
     import openpyxl
 
     wb = openpyxl.Workbook()
     _summary_sheet(wb.active, result)
-    names, rows = flat_cut_rows(result.cuts)
+    cuts = display_cuts(result.cuts, unit)
+    names, rows = flat_cut_rows(cuts)
     ws = wb.create_sheet("cuts")
     names, rows = ["crude"] + names, [[result.assay.name] + r for r in rows]
     write_table(ws, [label_for(n) for n in names], rows, [fmt_for(n) for n in names])
     ws.column_dimensions["A"].width = 20
-    if quality_names(result.cuts):
-        _qualities_sheet(wb.create_sheet("qualities"), result)
+    if quality_names(cuts):
+        _qualities_sheet(wb.create_sheet("qualities"), cuts)
     ws = wb.create_sheet("curve")
     write_table(ws, ["Distilled [vol %]", "TBP [°C]", "Distilled [wt %]", "Local SG 60/60 °F [-]",
                      "Local sulfur [wt %]", "Extrapolated"], curve_rows(result),
@@ -169,11 +177,10 @@ EXTRAPOLATED_FILL = "F4CCCC"
 """Fill of the name of a cut flagged extrapolated."""
 
 
-def _qualities_sheet(ws, result) -> None:
+def _qualities_sheet(ws, cuts) -> None:
     """Every quality of every cut; estimated values shaded, extrapolated cuts marked, with a legend."""
     from openpyxl.styles import Font, PatternFill
 
-    cuts = result.cuts
     names = quality_names(cuts)
     rows = [[r["name"], *[r[n] for n in names]] for r in cuts.to_dict("records")]
     write_table(ws, ["Cut", *[label_for(n) for n in names]], rows, [None, *[fmt_for(n) or "0.00" for n in names]],

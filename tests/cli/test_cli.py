@@ -330,3 +330,20 @@ def test_rate_arithmetic(demo_paths):
     assert sum(c["t_per_day"] for c in d["cuts"]) == pytest.approx(crude_t, rel=1e-12)
     r = runner.invoke(app, ["compare", *demo_paths[:2], "--rate", "50000", "--json"])
     assert all("t_per_day" in c for a in json.loads(r.stdout)["assays"] for c in a["cuts"])
+
+
+def test_unit_f_on_printed_tables_and_report_files_json_stays_in_c(tmp_path, demo_paths):
+    # °F = °C x 1.8 + 32 (definition): the printed table and the cut CSV give the cut points in °F (cut points are
+    # often °F round numbers: 650 °F = 343.3 °C); the JSON stays in °C.
+    import csv
+
+    r = runner.invoke(app, ["yields", demo_paths[0], "--unit", "F", "--out", str(tmp_path)])
+    assert r.exit_code == 0, r.stderr
+    assert "Start °F" in r.stdout and "End °F" in r.stdout and "°C" not in r.stdout.split("\n\n")[1][:200]
+    with open(tmp_path / "Selkie_Light_cuts.csv", encoding="utf-8") as f:
+        rows = list(csv.DictReader(f))
+    d = json.loads(runner.invoke(app, ["yields", demo_paths[0], "--unit", "F", "--json"]).stdout)
+    for row, c in zip(rows, d["cuts"]):
+        if c["end_c"] is not None:
+            assert float(row["End TBP [°F]"]) == pytest.approx(c["end_c"] * 1.8 + 32.0, abs=1e-9)
+    assert d["cuts"][4]["end_c"] == 343.0
