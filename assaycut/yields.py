@@ -103,7 +103,8 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     sigmas : Sigmas, optional
         Measurement standard deviations for the bands (assumed defaults when None).
     rate_bbl_per_day : float, optional
-        Crude run; adds each cut's bbl_per_day, m3_per_day and t_per_day (:func:`~assaycut.cutting.ideal.add_rates`). [bbl/d]
+        Crude run; adds each cut's bbl_per_day, m3_per_day and t_per_day
+        (:func:`~assaycut.cutting.ideal.add_rates`). [bbl/d]
 
     Returns
     -------
@@ -154,7 +155,9 @@ def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
     if model.all_on_extension:
         warnings.append(f"every cut is flagged extrapolated: {model.all_on_extension}")
     elif ext:
-        where = f"above {pct_text(c.safe_hi)} vol %" + (f" or below {pct_text(c.safe_lo)} vol %" if c.safe_lo > 0 else "")
+        where = f"above {pct_text(c.safe_hi)} vol %"
+        if c.safe_lo > 0:
+            where += f" or below {pct_text(c.safe_lo)} vol %"
         warnings.append(f"cut(s) {', '.join(ext)} depend on the fitted extension (they reach {where}, where the "
                         f"curve is fitted or shaped by the fit; measured to {pct_text(c.measured_hi)} vol %)")
     hot = [r["name"] for r in cuts.to_dict("records") if r["d86_c"] and max(r["d86_c"].values()) > 400.0]

@@ -231,7 +231,8 @@ def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min
             try:
                 bounds[a.name] = (float(lo), float(hi)) if colon else (float(lo), float(lo))
             except ValueError:
-                raise AssaycutError(f"{it!r}: expected ASSAY=MIN:MAX share bounds in %, e.g. crude.xlsx=10:60") from None
+                raise AssaycutError(f"{it!r}: expected ASSAY=MIN:MAX share bounds in %, e.g. "
+                                    f"crude.xlsx=10:60") from None
     results = [run_yields(a, cs, None, model=m) for _, a, m in parents]
     targets = BlendTargets(api_min, api_max, sulfur_max, parse_ends(min_yield, option="--min-yield",
                                                                     what="a yield in vol %"))

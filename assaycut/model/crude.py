@@ -236,7 +236,8 @@ def _tbp_points(assay: Assay, method: str, warnings: list[str], methods: dict[st
                              f"is on the {main.basis} basis; give both on one basis")
         keep = (pe > p[-1]) & (te > t[-1])
         if not np.any(keep):
-            warnings.append(f"{extra.where}: no point lies beyond the main curve ({pct_text(p[-1])} %, {t[-1]:.1f} °C); "
+            warnings.append(f"{extra.where}: no point lies beyond the main curve ({pct_text(p[-1])} %, "
+                            f"{t[-1]:.1f} °C); "
                             f"the vacuum curve is not used")
             continue
         if np.any(~keep):

@@ -183,7 +183,8 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> TbpCurve:
     if need_front:
         tx, vx = _front_extension(v, t, fit)
         if tx[0] < METHANE_NBP_C:
-            raise CurveError(f"the curve starts at {pct_text(v[0])} % and its fitted front reaches {tx[0]:.0f} °C, below "
+            raise CurveError(f"the curve starts at {pct_text(v[0])} % and its fitted front reaches {tx[0]:.0f} °C, "
+                             f"below "
                              f"the boiling point of methane: give the initial boiling point (0 %) or a light-ends "
                              f"analysis")
         tt.insert(0, tx)
@@ -214,7 +215,8 @@ def _checked_points(percent, temp_c) -> tuple[np.ndarray, np.ndarray]:
     order = np.argsort(v, kind="stable")
     v, t = v[order], t[order]
     if t[-1] - t[0] < 1.0 or v[-1] - v[0] <= 0.0:
-        raise CurveError(f"the curve runs from {pct_text(v[0])} % at {t[0]:.2f} °C to {pct_text(v[-1])} % at {t[-1]:.2f} °C; a "
+        raise CurveError(f"the curve runs from {pct_text(v[0])} % at {t[0]:.2f} °C to {pct_text(v[-1])} % at "
+                         f"{t[-1]:.2f} °C; a "
                          f"distillation curve must rise by at least 1 °C and some percent")
     if np.any(np.diff(t) < 0):
         k = int(np.argmax(np.diff(t) < 0))
@@ -229,7 +231,8 @@ def _widen_repeats(v: np.ndarray, t: np.ndarray, warnings: list[str]) -> np.ndar
     if not np.any(rep):
         return t
     for k in np.nonzero(rep)[0]:
-        warnings.append(f"the same temperature {t[k]:.2f} °C is given at {pct_text(v[k])} % and {pct_text(v[k + 1])} %; "
+        warnings.append(f"the same temperature {t[k]:.2f} °C is given at {pct_text(v[k])} % and "
+                        f"{pct_text(v[k + 1])} %; "
                         f"treated as a step {STEP_C} °C wide")
     return t + np.concatenate([[0.0], np.cumsum(rep * STEP_C)])
 

@@ -25,10 +25,15 @@ def yield_text(result, unit: str = "C") -> list[str]:
     fails = result.limits[result.limits["status"] == "fail"]
     if len(fails):
         lines.append("Limits failed: " + "; ".join(f"{limit_title(x['cut'], x['label'] or x['property'])} "
-                                                   f"({'≥ 95' if is_lower_bound(x['property'], x['value']) else num(x['value'], 2)}, "
+                                                   f"({_limit_value(x)}, "
                                                    f"needs {x['limit']})"
                                                    for x in fails.to_dict("records")))
     return lines
+
+
+def _limit_value(x: dict) -> str:
+    """A checked limit's value as printed: '≥ 95' for a recovery past the D86 estimate, else 2 decimals."""
+    return "≥ 95" if is_lower_bound(x["property"], x["value"]) else num(x["value"], 2)
 
 
 def written_text(written, what: str = "Report") -> str:
@@ -98,7 +103,8 @@ def blend_plan_text(plan) -> list[str]:
     if plan.binding:
         lines.append("  binding targets: " + "; ".join(plan.binding))
     for t in plan.targets:
-        marg = "" if t["marginal_per_unit"] is None else f", marginal value {num(t['marginal_per_unit'], 4, signed=True)} per {t['unit']}"
+        marg = "" if t["marginal_per_unit"] is None else \
+            f", marginal value {num(t['marginal_per_unit'], 4, signed=True)} per {t['unit']}"
         lines.append(f"  {t['target']}: achieved {num(t['achieved'], 3)}, slack {num(t['slack'], 3)} {t['unit']}{marg}")
     for lab, amount in plan.shortfalls.items():
         unit = "°API" if "API" in lab else ("wt %" if "sulfur" in lab else "vol %")

@@ -310,7 +310,8 @@ def markdown_summary(result) -> str:
     if len(result.limits):
         out += ["", "## Product limits", "", "| Cut | Limit | Required | Value | Status |", "|---|---|---|---:|---|"]
         for r in result.limits.to_dict("records"):
-            out.append(f"| {r['cut']} | {r['label'] or r['property']} | {r['limit']} | {'≥ 95' if is_lower_bound(r['property'], r['value']) else _fmt(r['value'], 1)} | "
+            shown = "≥ 95" if is_lower_bound(r["property"], r["value"]) else _fmt(r["value"], 1)
+            out.append(f"| {r['cut']} | {r['label'] or r['property']} | {r['limit']} | {shown} | "
                        f"{r['status'].upper()} |")
     if result.warnings:
         out += ["", "## Warnings", ""] + [f"- {w}" for w in result.warnings]

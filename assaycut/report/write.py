@@ -67,7 +67,8 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (),
     """Write the full yield report of one assay into ``outdir``.
 
     Files: ``<crude>_yields.xlsx`` (summary, cuts, qualities, curve, curve wt basis, limits, notes),
-    ``<crude>_cuts.csv``, ``<crude>_long.csv`` (one row per value), ``<crude>_summary.md``, ``<crude>_tbp.png``, ``<crude>_yields.png``,
+    ``<crude>_cuts.csv``, ``<crude>_long.csv`` (one row per value), ``<crude>_summary.md``, ``<crude>_tbp.png``,
+    ``<crude>_yields.png``,
     ``<crude>_properties.png``, ``<crude>_qualities.png`` (when the cuts have qualities beyond gravity and
     sulfur), and with real-column overlaps ``<crude>_products.png``.  With ``unit`` 'F' the cut and quality
     sheets and both CSVs give temperatures in °F; the plots, the Markdown summary and the limits stay in °C.

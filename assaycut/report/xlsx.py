@@ -243,7 +243,8 @@ def _notes_sheet(ws, result) -> None:
     from ..yields import CAUTIONS
 
     a = result.assay
-    notes = [("Caution" if n in CAUTIONS else "Note", n) for n in result.notes] + [("Warning", w) for w in result.warnings]
+    notes = [("Caution" if n in CAUTIONS else "Note", n) for n in result.notes]
+    notes += [("Warning", w) for w in result.warnings]
     notes += [(f"Method: {k}", v) for k, v in result.methods.items()]
     notes += [("Input file", a.source), ("Input sha256", a.sha256), ("assaycut version", __version__)]
     write_table(ws, ["Topic", "Text"], [list(n) for n in notes], widths=[28, 120])
