@@ -195,6 +195,11 @@ def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str]) -> Cr
     return model
 
 
+AT_NODE_C = 1e-3
+"""A narrow-cut boundary this close to a measured point counts as on it: its position then moves with the
+extension by less than the curve's slope x 0.001 °C, far below laboratory precision. [°C]"""
+
+
 def _properties_on_extension(assay: Assay, curve: TbpCurve, kw_fit: float | None) -> str:
     """Why the density and sulfur distributions, hence every cut's gravity, depend on the fitted extension;
     '' when they do not.
@@ -214,7 +219,7 @@ def _properties_on_extension(assay: Assay, curve: TbpCurve, kw_fit: float | None
         return ""
     lo, hi = (float(curve.temp_at(curve.safe_lo)), float(curve.temp_at(curve.safe_hi)))
     bounds = np.concatenate([nc.start_c, nc.end_c])
-    at_node = np.isclose(bounds[:, None], curve.measured_temp_c[None, :], rtol=0.0, atol=1e-9).any(axis=1)
+    at_node = np.isclose(bounds[:, None], curve.measured_temp_c[None, :], rtol=0.0, atol=AT_NODE_C).any(axis=1)
     out = bounds[np.isfinite(bounds) & ((bounds > hi + 1e-9) | (bounds < lo - 1e-9)) & ~at_node]
     if out.size:
         return (f"narrow-cut boundaries at {', '.join(f'{b:g}' for b in np.unique(out))} °C lie where the curve "

@@ -21,6 +21,7 @@ import numpy as np
 
 from ..cutting.ideal import cut_columns
 from ..errors import StudyError
+from ..methods.blending_indices import rule_for
 from ..methods.blending_rules import (
     shrinkage_api_mpms_12_3,
     vbn_refutas,
@@ -160,7 +161,26 @@ def _narrow_cuts(models, v, sg, t_hi: float) -> NarrowCuts:
     bwt = bvol * bsg / (v * sg).sum()
     starts = np.concatenate([[np.nan], bounds])
     endsb = np.concatenate([bounds, [np.nan]])
-    return NarrowCuts(starts, endsb, bvol, bwt, bsg, bs)
+    return NarrowCuts(starts, endsb, bvol, bwt, bsg, bs, _blended_qualities(models, cols, v, vol, sgc))
+
+
+def _blended_qualities(models, cols, v, vol, sgc) -> dict[str, np.ndarray]:
+    """The parents' narrow-cut qualities on the blend's narrow cuts, each blended by its rule
+    (:mod:`assaycut.methods.blending_indices`) on its basis: a quality every parent measured (estimates are not
+    carried: the blend's own model estimates again); NaN where a parent has no value for the cut."""
+    names = set.intersection(*[set(m.qualities) for m in models]) if models else set()
+    out = {}
+    for name in sorted(names):
+        rule = rule_for(name)
+        vals = np.array([c[name][0] if name in c else np.full(vol.shape[1], np.nan) for c in cols])
+        est = np.array([c["estimated"].get(name, np.zeros((1, vol.shape[1]), bool))[0] for c in cols])
+        vals = np.where(est, np.nan, vals)
+        weight = v[:, None] * vol * (sgc if rule.basis == "wt" else 1.0)
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            idx = rule.to_index(vals)
+            mean = (weight * idx).sum(axis=0) / weight.sum(axis=0)
+            out[name] = np.where(np.all(np.isfinite(idx) | (weight <= 0), axis=0), rule.from_index(mean), np.nan)
+    return out
 
 
 def _light_ends(parents, w) -> LightEnds | None:

@@ -48,6 +48,22 @@ def test_volume_blend_cut_volumes_are_weighted_sums(demos):
     assert b.sulfur_wt_pct == pytest.approx(w1 * a1.sulfur_wt_pct + (1 - w1) * a2.sulfur_wt_pct, rel=1e-12)
 
 
+def test_blend_carries_the_narrow_cut_qualities_by_their_rules(demos):
+    # Mass balance (identity): the blend's nitrogen (mass-additive) over the whole crude is the parents'
+    # weight-weighted nitrogen; a blend of a crude with itself keeps its cuts' nitrogen (within the blend's
+    # 0.05 vol % resampling of the curve, as the yields above).
+    (a1, m1), (a2, m2) = demos[0], demos[2]
+    b = blend([(a1, m1, 30.0), (a2, m2, 70.0)], basis="vol")
+    assert "nitrogen_wt_ppm" in b.narrow_cuts.extras
+    n_parents = [(cuts_of(a)["wt_pct"] * cuts_of(a)["nitrogen_wt_ppm"]).sum() / 100.0 for a in (a1, a2)]
+    w1 = 0.3 * a1.sg / b.sg
+    cb = cuts_of(b)
+    assert (cb["wt_pct"] * cb["nitrogen_wt_ppm"]).sum() / 100.0 == pytest.approx(
+        w1 * n_parents[0] + (1 - w1) * n_parents[1], rel=0.01)
+    same = cuts_of(blend([(a1, m1, 50.0), (a1, m1, 50.0)], basis="vol"))
+    assert_allclose(same.loc["diesel", "nitrogen_wt_ppm"], cuts_of(a1).loc["diesel", "nitrogen_wt_ppm"], rtol=0.01)
+
+
 def test_weight_blend_gravity_rule(demos):
     # API MPMS Ch. 11 volume rule on a mass basis: 1/SG = Σ w_i / SG_i (never an average of API numbers).
     (a1, m1), (a2, m2) = demos[0], demos[1]
