@@ -6,6 +6,7 @@ import math
 
 from ..cutting.limits import is_lower_bound
 from ..files import safe_text
+from ..methods.blending_indices import VISCOSITY
 from ..methods.d86 import D86_STD
 from ..units import pct_text, residual_text
 
@@ -78,9 +79,7 @@ def label_for(col: str) -> str:
         c = col[:-2] + "_c" if col.endswith("_f") else col[:-6] + "_c_est"
         if c in LABELS:
             return LABELS[c].replace("°C", "°F")
-    import re
-
-    v = re.match(r"^viscosity_(\d+(?:\.\d+)?)c_cst$", col)
+    v = VISCOSITY.match(col)
     if v:
         return f"Viscosity {v.group(1)} °C [cSt]"
     for suffix in sorted(_UNITS, key=len, reverse=True):

@@ -15,11 +15,9 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ..cutting.ideal import BBL_M3
 from ..errors import StudyError
 from ..units import sg_to_density15
-
-BBL_M3 = 0.158987294928
-"""One US oil barrel. [m3] (exact definition, 42 US gallons)"""
 
 WORTH_CAVEAT = ("Gross product worth only: operating costs, unit capacities, product-quality give-away, "
                 "freight and blending are ignored.")
