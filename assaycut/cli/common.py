@@ -85,6 +85,13 @@ class TdMethod(str, enum.Enum):
     riazi_daubert_1986 = "riazi-daubert-1986"
 
 
+class TUnit(str, enum.Enum):
+    """A temperature unit of printed output (--unit): °C or °F."""
+
+    C = "C"
+    F = "F"
+
+
 CutsOpt = Annotated[Optional[Path], typer.Option("--cuts", help="Cut-set TOML file ([[cut]] name, end_c). "
                                                   "Default: the shipped cut set (see cuts_default.toml).",
                                                   dir_okay=False)]

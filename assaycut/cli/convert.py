@@ -9,7 +9,7 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import AssaycutError
-from .common import JsonOpt, TdMethod, echo_json, echo_lines, guarded
+from .common import JsonOpt, TdMethod, TUnit, echo_json, echo_lines, guarded
 
 app = typer.Typer()
 
@@ -25,11 +25,6 @@ class ToMethod(str, enum.Enum):
     TBP = "TBP"
     D86 = "D86"
     AET = "AET"
-
-
-class TUnit(str, enum.Enum):
-    C = "C"
-    F = "F"
 
 
 @app.command()

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import enum
 from pathlib import Path
 from typing import Annotated, Optional
 
@@ -21,6 +20,7 @@ from .common import (
     SgOpt,
     SulfurOpt,
     TdMethod,
+    TUnit,
     UncertOpt,
     echo_json,
     echo_lines,
@@ -34,10 +34,6 @@ from .common import (
 
 app = typer.Typer()
 
-
-class TUnitOpt(str, enum.Enum):
-    C = "C"
-    F = "F"
 
 BRIEF_OVER = 10
 """Batches larger than this print a one-line summary instead of every cut table."""
@@ -78,8 +74,8 @@ def yields(
              "heavy tail of one product then reaches into the next; yields, D86, flash and limit checks use "
              "the products' own curves. Repeatable; also `overlap_c` in the cut file.")] = None,
     rate: RateOpt = None,
-    unit: Annotated[TUnitOpt, typer.Option("--unit", help="Temperature unit of the printed tables and the report "
-                                           "sheets and CSVs (JSON stays in °C).")] = TUnitOpt.C,
+    unit: Annotated[TUnit, typer.Option("--unit", help="Temperature unit of the printed tables and the report "
+                                           "sheets and CSVs (JSON stays in °C).")] = TUnit.C,
     uncertainty: UncertOpt = 0,
     sigma_temp: SigTempOpt = 2.0,
     sigma_pct: SigPctOpt = 0.3,
