@@ -86,7 +86,7 @@ METHOD_NOTES = {
 
 def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
                method: str = "daubert-1994", model: CrudeModel | None = None, uncertainty_draws: int = 0,
-               sigmas=None, rate_bbl_per_day: float | None = None) -> YieldResult:
+               sigmas=None, rate_bbl_per_day: float | None = None, progress=None) -> YieldResult:
     """Model, cut and check one assay.
 
     Parameters
@@ -105,6 +105,8 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     rate_bbl_per_day : float, optional
         Crude run; adds each cut's bbl_per_day, m3_per_day and t_per_day
         (:func:`~assaycut.cutting.ideal.add_rates`). [bbl/d]
+    progress : callable, optional
+        ``progress(done, total)`` during the uncertainty draws.
 
     Returns
     -------
@@ -112,7 +114,7 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     """
     model = model or build_model(assay, method)
     products = None
-    if any(w > 0 for w in cut_set.overlaps.values()):
+    if cut_set.overlaps:
         from .cutting.products import fractionate
 
         cuts, products = fractionate(model, cut_set, cut_set.overlaps)
@@ -132,15 +134,19 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     methods["estimated qualities"] = "; ".join(f"{k}: {v}" for k, v in ESTIMATED.items()) + ". " + NOT_ESTIMATED
     if products is not None:
         methods["fractionation"] = (
-            "real-column products: each cut point splits smoothly (normal split) with the TBP 5-95 overlap "
-            + ", ".join(f"{n} {w:g} °C" for n, w in cut_set.overlaps.items() if w > 0)
-            + "; other cut points ideal; product D86 from each product's own TBP curve (0 % taken at 0.5 %)")
+            "real-column products: at the named boundaries the products' own TBP 5-95 overlap (lighter TBP 95 % "
+            "minus heavier TBP 5 %) is "
+            + ", ".join(f"{n} {w:g} °C" for n, w in cut_set.overlaps.items())
+            + " (a normal split solved to give it; common practice, no source); other boundaries ideal, and "
+              "products touching no split are the ideal cuts; product D86 from each product's own TBP curve "
+              "(0 % taken at 0.5 % on a split side)")
     notes = _notes(assay, model, clo)
     bands = None
     if uncertainty_draws:
         from .studies.uncertainty import Sigmas, monte_carlo
 
-        bands = monte_carlo(assay, cut_set, sigmas or Sigmas(), uncertainty_draws, method=method)
+        bands = monte_carlo(assay, cut_set, sigmas or Sigmas(), uncertainty_draws, method=method,
+                            progress=progress)
         methods["uncertainty"] = (f"Monte Carlo over the curve model, {bands.attrs['draws']} draws "
                                   f"({bands.attrs['failed']} failed); ideal cuts; {bands.attrs['sigmas']}")
     return YieldResult(assay, model, cut_set, cuts, lim, clo, warnings, notes, methods, products, bands)

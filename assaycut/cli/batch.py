@@ -9,6 +9,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import AssaycutError
+from .common import ProgressBar, progress_bar
 
 PARALLEL_MIN = 50
 """Batches of at least this many assays use worker processes (when the machine has more than one core)."""
@@ -33,8 +34,9 @@ class YieldJob:
     unit: str = "C"  # display unit of the report's temperatures ('C' or 'F')
 
 
-def run_one(path: str, job: YieldJob):
-    """Load, model, cut and (optionally) report one assay.
+def run_one(path: str, job: YieldJob, progress=None):
+    """Load, model, cut and (optionally) report one assay (``progress(done, total)`` follows the uncertainty
+    draws).
 
     Returns
     -------
@@ -48,7 +50,7 @@ def run_one(path: str, job: YieldJob):
         assay = load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
         result = run_yields(assay, job.cut_set, job.limits, method=job.method,
                             uncertainty_draws=job.uncertainty_draws, sigmas=job.sigmas,
-                            rate_bbl_per_day=job.rate_bbl_per_day)
+                            rate_bbl_per_day=job.rate_bbl_per_day, progress=progress)
         written = []
         if job.report_root is not None:
             from ..report.write import slug, write_yield_report
@@ -94,7 +96,7 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
     if progress is None:
         progress = len(paths) > PROGRESS_MIN and sys.stderr.isatty()
     outcomes: list = [None] * len(paths)
-    bar = _Progress(len(paths)) if progress else None
+    bar = ProgressBar("cutting assays", len(paths)) if progress else None
     try:
         if parallel:
             from concurrent.futures import ProcessPoolExecutor, as_completed
@@ -105,6 +107,9 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
                     outcomes[futs[f]] = f.result()
                     if bar:
                         bar.advance()
+        elif len(paths) == 1 and job.uncertainty_draws:
+            with progress_bar("uncertainty draws", job.uncertainty_draws) as draws:
+                outcomes[0] = run_one(paths[0], job, progress=draws)
         else:
             for i, p in enumerate(paths):
                 outcomes[i] = run_one(p, job)
@@ -121,28 +126,3 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
             results.append(res)
             written += w
     return results, written, failures
-
-
-class _Progress:
-    """A rich progress bar on stderr."""
-
-    def __init__(self, total: int):
-        from rich.console import Console
-        from rich.progress import (
-            BarColumn,
-            MofNCompleteColumn,
-            Progress,
-            TextColumn,
-            TimeRemainingColumn,
-        )
-
-        self._p = Progress(TextColumn("cutting assays"), BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
-                           console=Console(stderr=True), transient=True)
-        self._p.start()
-        self._t = self._p.add_task("cut", total=total)
-
-    def advance(self):
-        self._p.advance(self._t)
-
-    def close(self):
-        self._p.stop()

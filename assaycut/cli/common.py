@@ -7,6 +7,7 @@ them, so that ``assaycut --help`` and ``assaycut convert`` start fast.
 
 from __future__ import annotations
 
+import contextlib
 import enum
 import functools
 import json
@@ -20,6 +21,10 @@ import typer
 
 from ..errors import AssaycutError
 
+EXIT_OK = 0
+"""Exit code of success."""
+EXIT_NO_ANSWER = 1
+"""Exit code of a study with no feasible answer, or of a check that failed."""
 EXIT_INPUT = 2
 """Exit code of bad input and usage errors."""
 EXIT_INTERNAL = 3
@@ -40,6 +45,42 @@ def echo_lines(lines: list[str]) -> None:
     """Text lines on stdout."""
     for line in lines:
         typer.echo(line)
+
+
+class ProgressBar:
+    """A progress bar on stderr (rich), for slow work: ``bar.advance()`` or ``bar(done, total)`` as a study's
+    progress callback.  :func:`progress_bar` shows one only when stderr is a terminal."""
+
+    def __init__(self, label: str, total: int):
+        from rich.console import Console
+        from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeRemainingColumn
+
+        self._p = Progress(TextColumn(label), BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
+                           console=Console(stderr=True), transient=True)
+        self._p.start()
+        self._t = self._p.add_task(label, total=total)
+
+    def advance(self) -> None:
+        self._p.advance(self._t)
+
+    def __call__(self, done: int, total: int) -> None:
+        self._p.update(self._t, completed=done, total=total)
+
+    def close(self) -> None:
+        self._p.stop()
+
+
+@contextlib.contextmanager
+def progress_bar(label: str, total: int = 100):
+    """A :class:`ProgressBar` on a terminal, None when stderr is piped or redirected (nothing printed)."""
+    if not sys.stderr.isatty():
+        yield None
+        return
+    bar = ProgressBar(label, total)
+    try:
+        yield bar
+    finally:
+        bar.close()
 
 
 def interrupted() -> None:
@@ -140,7 +181,7 @@ def parse_ends(items: list[str] | None, option: str = "--end", what: str = "a te
 def load_cut_set(cuts: Path | None, ends: list[str] | None, overlaps: list[str] | None = None):
     """The cut set of --cuts (or the shipped default), with the --end and --overlap changes applied."""
     from ..cutting.cutset import default_cut_set
-    from ..cutting.products import widths_for
+    from ..cutting.products import targets_for
     from ..io.tomlfiles import read_cut_set
 
     cs = read_cut_set(str(cuts)) if cuts else default_cut_set()
@@ -148,7 +189,7 @@ def load_cut_set(cuts: Path | None, ends: list[str] | None, overlaps: list[str] 
     cs = cs.with_ends(changes, cs.label + " with --end changes") if changes else cs
     if overlaps:
         cs.overlaps.update(parse_ends(overlaps, option="--overlap", what="a TBP width in °C"))
-        widths_for(cs, cs.overlaps)  # refuses unknown cuts and absurd widths now
+        targets_for(cs, cs.overlaps)  # refuses unknown cuts and absurd overlaps now
     return cs
 
 

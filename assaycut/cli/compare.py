@@ -12,6 +12,7 @@ import typer
 
 from ..errors import AssaycutError
 from .common import (
+    EXIT_NO_ANSWER,
     CutsOpt,
     EndOpt,
     JsonOpt,
@@ -182,7 +183,7 @@ def blend(
         plan, parents = _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield, cuts,
                                         out.parent if out is not None else Path("reports") / "blend")
         if not plan.feasible:
-            raise typer.Exit(1)
+            raise typer.Exit(EXIT_NO_ANSWER)
         items = [(p, plan.shares_pct[a.name]) for p, a, _ in parents if plan.shares_pct[a.name] > 1e-6]
         chosen = [(a, m, plan.shares_pct[a.name]) for _, a, m in parents if plan.shares_pct[a.name] > 1e-6]
         total = sum(x for _, _, x in chosen)

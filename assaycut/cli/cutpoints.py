@@ -9,6 +9,7 @@ import typer
 
 from ..errors import AssaycutError
 from .common import (
+    EXIT_NO_ANSWER,
     AssayArg,
     CutsOpt,
     EndOpt,
@@ -23,6 +24,7 @@ from .common import (
     load_one,
     load_prices,
     parse_ends,
+    progress_bar,
 )
 
 app = typer.Typer()
@@ -188,6 +190,15 @@ def optimize(
     limits: LimitsOpt = None,
     span: Annotated[float, typer.Option("--span", help="How far each cut point may move from its starting "
                                         "value [°C].", min=1.0, max=400.0)] = 60.0,
+    min_yield: Annotated[Optional[list[str]], typer.Option(
+        "--min-yield", metavar="CUT=PCT",
+        help="Keep product CUT at least PCT vol % of the crude. Repeatable; 'all=PCT' sets every product. "
+             "Default: 3 vol % or half the starting yield, whichever is smaller; "
+             "CUT=0 removes the guard rail.")] = None,
+    free: Annotated[Optional[list[str]], typer.Option(
+        "--free", metavar="CUT",
+        help="With --prices: only the end of CUT moves (repeatable). Default: every cut point above the light "
+             "ends.")] = None,
     out: OutOpt = None,
     json_out: JsonOpt = False,
 ) -> None:
@@ -196,13 +207,19 @@ def optimize(
 
     With --maximize, the two cut points around the product move (each within --span of where it starts;
     the other cut points stay); the limits of the product and its two neighbours apply. With --prices, every
-    cut point moves and every limit applies. The search starts from a brute-force grid and refines with
-    scipy's SLSQP; the answer is checked against every limit and never breaks one. Limits the estimates
-    cannot evaluate (n/a) do not constrain, and a limit that can be evaluated at the start must stay so:
-    e.g. the cetane index is estimated only where the cut's D86 and density lie in its method's scope, so a
-    diesel cut point that would take it out of scope is not chosen.
-    The answer rests on estimated qualities: confirm with the laboratory and your column's real
-    fractionation before moving cut points.
+    cut point above the light ends moves (the light-ends cut point is the stabiliser's), or only the --free
+    ones, and every limit applies. Every product keeps a minimum yield (--min-yield).
+
+    The search is global: differential evolution over all moving cut points with the limits as
+    constraints, refined by SLSQP; it reports whether it converged. The answer is checked against every
+    limit and never breaks one. Limits the estimates cannot evaluate (n/a) at the start do not constrain, and
+    a limit that can be evaluated at the start must stay so: e.g. the cetane index is estimated only where
+    the cut's D86 and density lie in its method's scope, so a diesel cut point that would take it out of
+    scope is not chosen.
+
+    Exit code 1 when no cut points within the span meet every limit: the limits that cannot be met are
+    printed with their shortfall. The answer rests on estimated qualities: confirm with the laboratory and
+    your column's real fractionation before moving cut points.
     """
     from ..model.crude import build_model
     from ..studies.cut_optimizer import optimize_cut_points
@@ -211,9 +228,12 @@ def optimize(
     cs = load_cut_set(cuts, None)
     lim = load_limits(limits)
     ps = load_prices(prices)
+    mins = parse_ends(min_yield, option="--min-yield", what="a yield in vol %")
     path, a = load_one(assay)
     model = build_model(a)
-    res = optimize_cut_points(model, cs, lim, maximize=maximize, prices=ps, span_c=span)
+    with progress_bar("searching cut points") as bar:
+        res = optimize_cut_points(model, cs, lim, maximize=maximize, prices=ps, span_c=span, min_yields=mins,
+                                  free=free, progress=bar)
     new_cs = cs.with_ends({c.name: float(e) for c, e in zip(cs.cuts, res.ends_c)}, cs.label + " optimised")
     before = run_yields(a, cs, lim, model=model)
     after = run_yields(a, new_cs, lim, model=model)
@@ -232,8 +252,10 @@ def optimize(
         from ..report.jsonout import optimum_json
 
         echo_json(optimum_json(a.name, what, unit, res, cs.names, after))
-        return
-    from ..report.console import optimum_text
+    else:
+        from ..report.console import optimum_text
 
-    echo_lines(optimum_text(a.name, what, unit, res, cs))
-    typer.echo(f"Plot written to {written[0]}")
+        echo_lines(optimum_text(a.name, what, unit, res, cs, before.cuts, after.cuts))
+        typer.echo(f"Plot written to {written[0]}")
+    if not res.feasible:
+        raise typer.Exit(EXIT_NO_ANSWER)

@@ -10,6 +10,7 @@ import typer
 from ..errors import AssaycutError
 from .common import (
     EXIT_INPUT,
+    EXIT_NO_ANSWER,
     ApiOpt,
     CutsOpt,
     DensOpt,
@@ -174,7 +175,7 @@ def check(
 
         echo_lines(check_text(a.name, findings, ok))
     if not ok:
-        raise typer.Exit(1)
+        raise typer.Exit(EXIT_NO_ANSWER)
 
 
 @app.command()

@@ -5,7 +5,9 @@ All cuts are evaluated together in a few numpy passes (no Python loop per cut or
 Per-cut results (one DataFrame row per cut):
 
 * ``vol_pct`` = V(end) - V(start); ``wt_pct`` = W(end) - W(start) with W(V) = ∫ SG dv / SG_crude;
-* ``mid_vol_c`` = TBP at the cut's mid-volume point; ``vabp_c`` = (1/ΔV) ∫ T dV, the volume average of the
+* ``tbp_5_c``, ``mid_vol_c``, ``tbp_95_c`` = TBP at 5, 50 and 95 % of the cut's own volume; ``overlap_c`` =
+  this cut's TBP 95 % minus the next cut's TBP 5 % (the trade's TBP 5-95 overlap; negative for ideal cuts, a
+  gap); ``vabp_c`` = (1/ΔV) ∫ T dV, the volume average of the
   cut's **TBP** curve;
 * ``d86_c`` at 0/10/30/50/70/90/95 % of the cut: the cut's own TBP slice converted by Daubert 1994 (not for
   cuts ending at or below 40 °C, nor for the open last cut); ``vabp_d86_c`` = the **D86** volume average
@@ -51,9 +53,9 @@ GAUSS_NODES = 16
 """Gauss-Legendre nodes per cut for the pseudo-component MeABP (exact for polynomials of degree 31)."""
 _GL_X, _GL_W = np.polynomial.legendre.leggauss(GAUSS_NODES)
 
-CUT_COLUMNS = ["name", "start_c", "end_c", "vol_pct", "wt_pct", "cum_vol_pct", "cum_wt_pct", "mid_vol_c",
-               "vabp_c", "vabp_d86_c", "meabp_c", "sg", "api", "density_15c_kg_m3", "watson_k", "sulfur_wt_pct",
-               "sulfur_share_pct", "mw", "d86_c", "cetane_index_d4737", "flash_c_est", "extrapolated"]
+CUT_COLUMNS = ["name", "start_c", "end_c", "vol_pct", "wt_pct", "cum_vol_pct", "cum_wt_pct", "tbp_5_c",
+               "mid_vol_c", "tbp_95_c", "overlap_c", "vabp_c", "vabp_d86_c", "meabp_c", "sg", "api",
+               "density_15c_kg_m3", "watson_k", "sulfur_wt_pct", "sulfur_share_pct", "mw", "d86_c", "cetane_index_d4737", "flash_c_est", "extrapolated"]
 
 
 def cut_table(model: CrudeModel, cut_set: CutSet):
@@ -123,15 +125,20 @@ def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
     vabp = curve.mean_temp(va, vb)
     sg = model.mean_sg(va, vb)
     sulfur = model.mean_sulfur(wa, wb)
-    fr = np.array(D86_STD, float) / 100.0
+    fr = np.array(D86_STD + (5,), float) / 100.0
     slice_v = va[..., None] + fr * vol[..., None]
-    tbp = curve.temp_at(slice_v)
+    tbp_all = curve.temp_at(slice_v)
+    tbp = tbp_all[..., :-1]
     s_crude = np.nan if model.sulfur_wt_pct is None else model.sulfur_wt_pct
     nodes = 0.5 * (va + vb)[..., None] + 0.5 * vol[..., None] * _GL_X
     meabp = meabp_pseudo_components(curve.temp_at(nodes), model.sg_dist(nodes), _GL_W)
     out = {"start_c": t_start, "end_c": t_end, "vol_pct": vol, "wt_pct": wt, "cum_vol_pct": vb, "cum_wt_pct": wb,
            "mid_vol_c": mid_vol_c}
     out.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp))
+    some = vol > 1e-9
+    out["tbp_5_c"] = np.where(some, tbp_all[..., -1], np.nan)
+    out["tbp_95_c"] = np.where(some, tbp[..., -1], np.nan)
+    out["overlap_c"] = np.concatenate([out["tbp_95_c"][:, :-1] - out["tbp_5_c"][:, 1:], nan_col], axis=1)
     gas = ~(np.isfinite(t_end) & ~(t_end <= LIGHT_ENDS_MAX_C)) & ~np.isnan(t_end)
     vals, est = quality_columns(model, va, vb, wa, wb, out["meabp_c"], out["sg"], out["watson_k"],
                                 gas | (vol <= 1e-9))

@@ -65,9 +65,9 @@ def cut_set_from_dict(doc: dict, path: str) -> CutSet:
             raise InputError(f"[[cut]] {i} ({name!r}): 'swing' must be true or false", file=path)
         if "overlap_c" in it:
             w = it["overlap_c"]
-            if isinstance(w, bool) or not isinstance(w, (int, float)) or not 0.0 <= w <= 200.0:
-                raise InputError(f"[[cut]] {i} ({name!r}): 'overlap_c' must be a TBP width of 0-200 °C; found {w!r}",
-                                 file=path)
+            if isinstance(w, bool) or not isinstance(w, (int, float)) or not -200.0 <= w <= 200.0:
+                raise InputError(f"[[cut]] {i} ({name!r}): 'overlap_c' must be a TBP 5-95 overlap of -200 to 200 °C "
+                                 f"(negative: a gap); found {w!r}", file=path)
             overlaps[name.strip()] = float(w)
         cuts.append(Cut(name.strip(), end, swing))
     try:

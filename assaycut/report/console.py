@@ -6,7 +6,7 @@ import math
 
 from ..cutting.limits import is_lower_bound, limit_title
 from .studyreports import compare_wide
-from .tables import display_cuts, num, quality_text_table, text_table
+from .tables import display_cuts, num, quality_text_table, text_table, unit_of
 
 FLASH_FOOTNOTE = ("\n* Flash points are correlation estimates: measure them (ASTM D93). All results are screening "
                   "estimates; see the notes sheet of the report for methods and cautions.")
@@ -22,12 +22,29 @@ def yield_text(result, unit: str = "C") -> list[str]:
     q = quality_text_table(cuts)
     if q:
         lines += ["", q]
+    if result.bands is not None:
+        lines += ["", *bands_text(result.bands)]
     fails = result.limits[result.limits["status"] == "fail"]
     if len(fails):
         lines.append("Limits failed: " + "; ".join(f"{limit_title(x['cut'], x['label'] or x['property'])} "
                                                    f"({_limit_value(x)}, "
                                                    f"needs {x['limit']})"
                                                    for x in fails.to_dict("records")))
+    return lines
+
+
+def bands_text(bands) -> list[str]:
+    """P10/P50/P90 of each cut's volume and weight yield under the measurement uncertainty, and the
+    assumptions behind them."""
+    head = ["Cut", "vol % P10", "P50", "P90", "wt % P10", "P50", "P90"]
+    body = [[r["name"]] + [num(r[f"{q}_p{p}"], 2) for q in ("vol_pct", "wt_pct") for p in (10, 50, 90)]
+            for r in bands.to_dict("records")]
+    widths = [max(len(str(x)) for x in col) for col in zip(head, *body)]
+    fmt = [str.ljust] + [str.rjust] * 6
+    lines = [f"Yield bands under the measurement uncertainty ({bands.attrs['draws']} draws, "
+             f"{bands.attrs['failed']} failed):"]
+    lines += ["  ".join(f(str(x), w) for f, x, w in zip(fmt, row, widths)).rstrip() for row in [head] + body]
+    lines.append(f"  {bands.attrs['sigmas']}")
     return lines
 
 
@@ -134,23 +151,52 @@ def sweep_text(crude: str, df) -> list[str]:
     return lines
 
 
-def optimum_text(crude: str, what: str, unit: str, res, cut_set) -> list[str]:
-    """The optimiser's answer: cut points at the start and the optimum, the objective, and the limits."""
+def optimum_text(crude: str, what: str, unit: str, res, cut_set, before=None, after=None) -> list[str]:
+    """The optimiser's answer: each cut's start and optimum end point (and yields), the objective, how the
+    search went, the active limits; when infeasible, what cannot be met and by how much."""
     lines = [f"{crude}: maximise {what}"]
-    if not res.feasible:
-        lines.append("No cut points within the span meet every limit. Limits broken at the start: "
-                     + "; ".join(res.violated_at_start))
-    lines.append(f"{'cut':<18}{'start °C':>10}{'optimum °C':>12}")
-    for c, s0, s1 in zip(cut_set.cuts[:-1], res.start_ends_c, res.ends_c):
-        lines.append(f"{c.name:<18}{s0:10.1f}{s1:12.1f}" + ("  *" if abs(s1 - s0) > 1e-9 else ""))
-    lines.append(f"{what}: {num(res.start_objective, 2)} -> {num(res.objective, 2)} {unit} (brute-force grid best "
-                 f"{num(res.grid_best, 2, missing='none feasible')})")
-    if res.active:
-        lines.append("Active limits: " + "; ".join(res.active))
+    moved = set(res.var_index)
+    yields = before is not None and after is not None
+    head = f"{'cut':<18}{'start end point °C':>20}"
+    head += f"{'optimum end point °C':>22}" if res.feasible else ""
+    head += (f"{'start vol %':>13}" + (f"{'optimum vol %':>15}" if res.feasible else "")) if yields else ""
+    lines.append(head)
+    for k, c in enumerate(cut_set.cuts):
+        ends = k < len(res.ends_c)
+        row = f"{c.name:<18}" + (f"{res.start_ends_c[k]:20.1f}" if ends else f"{'end of curve':>20}")
+        if res.feasible:
+            row += f"{res.ends_c[k]:22.1f}" if ends else f"{'end of curve':>22}"
+        if yields:
+            row += f"{num(before['vol_pct'].iloc[k], 2):>13}"
+            row += f"{num(after['vol_pct'].iloc[k], 2):>15}" if res.feasible else ""
+        if ends and k not in moved:
+            row += "  (held)"
+        elif ends and res.feasible and abs(res.ends_c[k] - res.start_ends_c[k]) > 1e-9:
+            row += "  *"
+        lines.append(row)
+    state = "converged" if res.converged else ("NOT converged: the answer is the best found, not a proven optimum")
+    lines.append(f"Search: {res.method}; {len(res.var_index)} moving cut point(s), {res.generations} generations, "
+                 f"{res.evaluations} candidates; {state}.")
+    if res.feasible:
+        lines.append(f"{what}: {num(res.start_objective, 2)} at the start -> {num(res.objective, 2)} {unit} at the "
+                     f"optimum" + (f" (brute-force grid best {num(res.grid_best, 2)})"
+                                   if res.grid_best == res.grid_best else ""))
+        if res.active:
+            lines.append("Active limits: " + "; ".join(res.active))
+    else:
+        lines.append("NO FEASIBLE ANSWER: no cut points within the span meet every limit. What cannot be met, at "
+                     "the least-violating cut points found:")
+        for f in res.shortfalls:
+            u = "" if unit_of(f["property"]) == "-" else " " + unit_of(f["property"])
+            alone = "" if f["alone_possible"] else " (cannot be met on its own within the span)"
+            lines.append(f"  {f['limit']}: {num(f['value'], 3)}{u}, short by {num(f['short_by'], 3)}{u}{alone}")
     if res.violated_at_start:
         lines.append("Limits broken at the start: " + "; ".join(res.violated_at_start))
     if res.not_evaluated:
         lines.append("Not evaluated (n/a, not constraining): " + "; ".join(res.not_evaluated))
+    guard = [f"{n} {v:g}" for n, v in res.min_yields.items() if v > 0]
+    if guard:
+        lines.append("Minimum yields kept [vol %] (--min-yield): " + ", ".join(guard))
     lines.append("Qualities are estimates; flash points must be measured (ASTM D93).")
     return lines
 

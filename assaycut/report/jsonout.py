@@ -39,6 +39,16 @@ def records(df) -> list[dict]:
     return [{k: json_safe(v) for k, v in r.items()} for r in df.to_dict("records")]
 
 
+def cut_records(df) -> list[dict]:
+    """The rows of a cut table as JSON-safe dicts, each cut's own TBP points gathered as ``tbp_c``
+    {"5", "50", "95"} [°C] (from tbp_5_c, mid_vol_c, tbp_95_c; mid_vol_c is kept as well)."""
+    out = records(df)
+    for r in out:
+        if "tbp_5_c" in r:
+            r["tbp_c"] = {"5": r.pop("tbp_5_c"), "50": r.get("mid_vol_c"), "95": r.pop("tbp_95_c")}
+    return out
+
+
 def yield_json(result) -> dict:
     """The JSON object of one assay's yields (``assaycut yields --json``)."""
     a = result.assay
@@ -47,7 +57,7 @@ def yield_json(result) -> dict:
                   "sg": json_safe(a.sg), "density_15c_kg_m3": json_safe(sg_to_density15(a.sg)),
                   "sulfur_wt_pct": json_safe(result.model.sulfur_wt_pct)},
         "extension": extension_json(result.model),
-        "cuts": records(result.cuts),
+        "cuts": cut_records(result.cuts),
         "limits": records(result.limits),
         "closure": {k: json_safe(v) for k, v in result.closure.items()},
         "warnings": list(result.warnings),
@@ -143,6 +153,10 @@ def optimum_json(crude: str, what: str, unit: str, res, names: list[str], after)
         "assay": crude, "objective": what, "unit": unit, "feasible": res.feasible,
         "start": {"cut_points_c": dict(zip(names, map(float, res.start_ends_c))), "value": res.start_objective},
         "optimum": {"cut_points_c": dict(zip(names, map(float, res.ends_c))), "value": res.objective},
+        "converged": res.converged, "method": res.method, "generations": res.generations,
+        "evaluations": res.evaluations, "moving_cut_points": [names[i] for i in res.var_index],
+        "min_yields_vol_pct": res.min_yields,
+        "shortfalls": [json_safe(f) for f in res.shortfalls],
         "grid_best": json_safe(res.grid_best), "active_limits": res.active,
         "limits_broken_at_start": res.violated_at_start, "limits_not_evaluated": res.not_evaluated,
-        "cuts": records(after.cuts)}
+        "cuts": cut_records(after.cuts)}

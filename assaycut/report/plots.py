@@ -203,7 +203,7 @@ def plot_products(result, target) -> None:
     a2.grid(alpha=0.3)
     a2.legend(fontsize=6, loc="upper left")
     fig.suptitle(f"{result.assay.name}: real-column products, TBP 5-95 overlaps "
-                 + ", ".join(f"{n} {w:g} °C" for n, w in result.cut_set.overlaps.items() if w > 0))
+                 + ", ".join(f"{n} {w:g} °C" for n, w in result.cut_set.overlaps.items()))
     _save(fig, target)
     plt.close(fig)
 

@@ -18,7 +18,10 @@ LABELS = {
     "wt_pct": "Yield [wt %]",
     "cum_vol_pct": "Cumulative [vol %]",
     "cum_wt_pct": "Cumulative [wt %]",
+    "tbp_5_c": "TBP 5 % [°C]",
     "mid_vol_c": "Mid-volume TBP [°C]",
+    "tbp_95_c": "TBP 95 % [°C]",
+    "overlap_c": "TBP 5-95 overlap with next cut [°C]",
     "vabp_c": "VABP [°C]",
     "meabp_c": "MeABP [°C]",
     "sg": "SG 60/60 °F [-]",
@@ -131,6 +134,10 @@ def long_rows(cuts, crude: str) -> list[list]:
     return rows
 
 
+DIFFERENCES = {"overlap_c"}
+"""Temperature columns that are differences (°F = 1.8 × °C, no offset)."""
+
+
 def _is_temperature(col: str) -> bool:
     return col.endswith("_c") or col.endswith("_c_est")
 
@@ -148,7 +155,8 @@ def in_fahrenheit(cuts):
     out = cuts.copy()
     ren = {c: _f_name(c) for c in out.columns if _is_temperature(c) and c != "d86_c"}
     for c in ren:
-        out[c] = c_to_f(out[c].to_numpy(dtype=float))
+        v = out[c].to_numpy(dtype=float)
+        out[c] = v * 1.8 if c in DIFFERENCES else c_to_f(v)
     if "d86_c" in out.columns:
         out["d86_c"] = [None if d is None else {k: float(c_to_f(v)) for k, v in d.items()} for d in out["d86_c"]]
         ren["d86_c"] = "d86_f"
@@ -225,7 +233,8 @@ def _fmt(v, nd=1):
 
 TERMINAL_COLUMNS = [("name", "Cut", 0), ("start_c", "Start °C", 0), ("end_c", "End °C", 0),
                     ("vol_pct", "vol %", 2), ("wt_pct", "wt %", 2), ("api", "API", 1), ("sg", "SG", 4),
-                    ("sulfur_wt_pct", "S wt %", 3), ("watson_k", "Kw", 2), ("mid_vol_c", "Mid °C", 0),
+                    ("sulfur_wt_pct", "S wt %", 3), ("watson_k", "Kw", 2), ("tbp_5_c", "T5 °C", 0),
+                    ("mid_vol_c", "T50 °C", 0), ("tbp_95_c", "T95 °C", 0), ("overlap_c", "Overlap °C", 1),
                     ("cetane_index_d4737", "CCI", 1), ("flash_c_est", "Flash °C*", 0), ("extrapolated", "Extrap.", 0)]
 
 

@@ -3,25 +3,35 @@ product limits.
 
 * ``maximize=NAME`` moves the two cut points around product NAME (its start and end), each between its
   fixed neighbouring cut points, and keeps every limit on NAME and its two neighbours.
-* ``prices=...`` moves every cut point (each between its neighbours) to maximise the gross product worth
-  per barrel of crude, keeping every limit.
+* ``prices=...`` moves every cut point above the light ends (or the ``free`` ones), each between its
+  neighbours, to maximise the gross product worth per barrel of crude, keeping every limit.  The light-ends
+  cut point (at or below :data:`~assaycut.cutting.ideal.LIGHT_ENDS_MAX_C`) is set by the stabiliser, not the
+  crude column, and stays unless freed.
 
-The search is scipy.optimize.minimize (SLSQP) on the limit margins, started from the best feasible point
-of a coarse vectorised grid; the answer is checked against every limit again and is never returned when it
-breaks one (the best feasible grid point is returned instead).  Limits whose value the estimates cannot
-give (n/a) cannot constrain and are listed.  Pure computation on the crude model.
+Guard rails: every product keeps a minimum volume yield (``min_yields``; by default
+:data:`DEFAULT_MIN_YIELD_PCT` or half its starting yield, whichever is smaller), so that no product is
+squeezed to a sliver; neighbouring cut points stay :data:`GAP_C` apart.
+
+The search is global: scipy's differential evolution (Storn and Price 1997) over all moving cut points, with
+the limits as constraints (Lampinen's rule in scipy: feasible beats infeasible, and among infeasible the
+smaller total violation wins), the whole population evaluated in one batched cut per generation.  Its best
+point is then refined by SLSQP; the answer is checked against every limit again and is never returned when it
+breaks one.  With one or two moving cut points a brute-force grid is also evaluated (for the plot, and as a
+check).  Limits whose value the estimates cannot give (n/a) at the start cannot constrain and are listed.
+Pure computation on the crude model.
 """
 
 from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Callable
 
 import numpy as np
 
 from ..cutting.cutset import CutSet
-from ..cutting.ideal import cut_columns
-from ..cutting.limits import TOL, Limit, applicable, limit_margins
+from ..cutting.ideal import LIGHT_ENDS_MAX_C, cut_columns
+from ..cutting.limits import TOL, Limit, applicable, limit_margins, limit_values
 from ..errors import StudyError
 from ..model.crude import CrudeModel
 from .compare import PriceSet
@@ -31,6 +41,23 @@ ACTIVE_REL = 0.005
 unit), or below this fraction of its value."""
 GAP_C = 1.0
 """Smallest distance kept between neighbouring cut points. [°C]"""
+DEFAULT_MIN_YIELD_PCT = 3.0
+"""Default guard rail: each product keeps at least this volume yield, or half its starting yield when that
+is smaller. [vol % of crude] (our choice, common practice, no source)"""
+METHOD = "differential evolution (scipy, Lampinen constraint handling) refined by SLSQP"
+"""How the optimum is searched, as reported."""
+POPSIZE = 10
+"""Differential evolution population per moving cut point."""
+MAXITER = 400
+"""Differential evolution generations at most; stopping before means the population converged."""
+STALL_GENERATIONS = 60
+"""With no candidate meeting every requirement, the search stops when the smallest total violation has not
+improved for this many generations (the problem is then reported infeasible)."""
+DE_TOL = 1e-5
+"""Differential evolution stops when the spread of the population's objective falls below this fraction of
+its mean."""
+SEED = 20261202
+"""Random seed of the search: the same problem gives the same answer."""
 
 
 @dataclass
@@ -47,17 +74,32 @@ class OptimResult:
         Yield [vol %] of the product, or worth [currency/bbl], at the optimum and at the start.
     feasible : bool
         False when no cut points inside the bounds meet every limit (then ends_c is the start).
+    converged : bool
+        True when the global search's population converged before its generation limit and the answer
+        meets every limit; False means the answer is the best found, not a proven optimum.
+    method : str
+        The search method.
     active : list of str
-        Limits at their bound at the optimum.
+        Limits (and minimum yields) at their bound at the optimum.
     violated_at_start : list of str
     not_evaluated : list of str
-        Limits the estimates cannot evaluate (n/a): they do not constrain.
+        Limits the estimates cannot evaluate (n/a) at the start: they do not constrain.
+    shortfalls : list of dict
+        When infeasible: each requirement broken at the least-violating point found, with 'limit' (text),
+        'cut', 'property', 'bound', 'value' (at that point), 'short_by' (in the property's unit) and
+        'alone_possible' (whether any point searched meets this one requirement on its own).
+    min_yields : dict of str to float
+        Minimum volume yield kept for each product. [vol %]
     grid_best : float
-        Best objective on the brute-force grid (a check on the optimiser).
+        Best objective on the brute-force grid (one or two moving cut points only; else NaN).
     variables : list of str
         Which cut points moved ("end of kerosene"...).
     grid : dict
         The brute-force grid (for plots): 'x', 'y' (2-variable cases), 'objective', 'feasible'.
+    var_index : list of int
+        Indices of the moving cut points in ``ends_c``.
+    evaluations, generations : int
+        Candidates evaluated in all, and generations of the global search.
     """
 
     ends_c: np.ndarray
@@ -65,14 +107,19 @@ class OptimResult:
     objective: float
     start_objective: float
     feasible: bool
+    converged: bool = False
+    method: str = METHOD
     active: list[str] = field(default_factory=list)
     violated_at_start: list[str] = field(default_factory=list)
     not_evaluated: list[str] = field(default_factory=list)
+    shortfalls: list[dict] = field(default_factory=list)
+    min_yields: dict = field(default_factory=dict)
     grid_best: float = math.nan
     variables: list[str] = field(default_factory=list)
     grid: dict = field(default_factory=dict)
     var_index: list[int] = field(default_factory=list)
-    """Indices of the moving cut points in ``ends_c``."""
+    evaluations: int = 0
+    generations: int = 0
 
 
 def needed(price) -> set[str]:
@@ -94,13 +141,27 @@ def _objective(cols: dict, names: list[str], maximize: str | None, prices: Price
     return total
 
 
+def default_min_yields(start_vol_pct, names: list[str]) -> dict[str, float]:
+    """The default guard rail: min(:data:`DEFAULT_MIN_YIELD_PCT`, half the starting yield rounded down to
+    0.01) per product. [vol %]
+
+    Examples
+    --------
+    >>> default_min_yields([1.0, 2.555, 20.0], ["light ends", "light naphtha", "diesel"])
+    {'light ends': 0.5, 'light naphtha': 1.27, 'diesel': 3.0}
+    """
+    return {n: float(min(DEFAULT_MIN_YIELD_PCT, math.floor(50.0 * v) / 100.0)) for n, v in zip(names, start_vol_pct)}
+
+
 def optimize_cut_points(model: CrudeModel, cut_set: CutSet, limits: list[Limit], *, maximize: str | None = None,
-                        prices: PriceSet | None = None, span_c: float = 60.0, grid_points: int = 4000) -> OptimResult:
+                        prices: PriceSet | None = None, span_c: float = 60.0, grid_points: int = 4000,
+                        min_yields: dict[str, float] | None = None, free: list[str] | None = None,
+                        progress: Callable[[int, int], None] | None = None) -> OptimResult:
     """Find the cut points that maximise a product's yield or the crude's worth inside the limits.
 
-    Steps: choose the moving cut points and their bounds (:func:`_search_space`), evaluate a brute-force
-    grid (:func:`_grid`), then refine its best feasible point with SLSQP and keep the best point on the
-    way to SLSQP's answer that meets every limit (:func:`_refine`).
+    Steps: choose the moving cut points and their bounds (:func:`_search_space`); with one or two of them,
+    evaluate a brute-force grid; search globally by differential evolution, refine by SLSQP, and keep the
+    best point that meets every limit (:func:`_refine`).
 
     Parameters
     ----------
@@ -116,7 +177,14 @@ def optimize_cut_points(model: CrudeModel, cut_set: CutSet, limits: list[Limit],
         Each moving cut point stays within this distance of its starting value (the column's practical
         range). [°C]
     grid_points : int
-        Size of the brute-force grid that starts the search and checks it.
+        Size of the brute-force grid for one or two moving cut points.
+    min_yields : dict of str to float, optional
+        Minimum volume yield of products [vol %]; ``"all"`` sets every product.  Products not named keep
+        the default (:func:`default_min_yields`); 0 removes the guard rail.
+    free : list of str, optional
+        With ``prices``: names of the cuts whose end may move (default: all but a light-ends cut).
+    progress : callable, optional
+        Called as ``progress(generation, max_generations)`` during the search.
 
     Returns
     -------
@@ -126,47 +194,84 @@ def optimize_cut_points(model: CrudeModel, cut_set: CutSet, limits: list[Limit],
         raise StudyError("give one objective: --maximize NAME or --prices FILE")
     if any(c.swing for c in cut_set.cuts):
         raise StudyError("the optimiser works on cut sets without swing cuts")
-    names = cut_set.names
-    ends0 = cut_set.ends_c.copy()
-    var, lims, bounds = _search_space(model, names, ends0, limits, maximize, span_c)
     if not (span_c > 0 and math.isfinite(span_c)):
         raise StudyError(f"the span must be a positive number of °C; got {span_c:g}")
-    problem = _Problem(model, names, ends0, var, lims, maximize, prices)
+    names = cut_set.names
+    ends0 = cut_set.ends_c.copy()
+    var, lims, bounds = _search_space(model, names, ends0, limits, maximize, span_c, free)
+    start_vol = cut_columns(model, ends0[None, :])["vol_pct"][0]
+    mins = _min_yields(names, start_vol, min_yields)
+    problem = _Problem(model, names, ends0, var, lims, maximize, prices, mins)
     labels_all = [f"end of {names[i]}" for i in var]
 
     obj0, m0, _ = problem.evaluate(ends0[var][None, :])
-    labels = [lim.describe() for lim in problem.limits]
-    not_eval = [lab for lab, v in zip(labels, m0[0]) if np.isnan(v)]
+    labels = problem.labels
     use = [i for i, v in enumerate(m0[0]) if not np.isnan(v)]
+    not_eval = [lab for lab, v in zip(labels, m0[0]) if np.isnan(v)]
     violated0 = [labels[i] for i in use if m0[0, i] < 0]
+    problem.use = use
 
-    cand, grid = _grid(ends0[var], bounds, grid_points)
-    obj_g, ok_g, _ = problem.feasible(cand, use)
-    grid.update(objective=obj_g, feasible=ok_g)
-    if not ok_g.any():
-        return OptimResult(ends0, ends0, float(obj0[0]), float(obj0[0]), False, [], violated0, not_eval, math.nan,
-                           labels_all, grid, var)
-    best_i = int(np.argmax(np.where(ok_g, obj_g, -np.inf)))
-    x_opt, obj_o, marg_o = _refine(problem, cand[best_i], float(obj_g[best_i]), bounds, use)
+    grid: dict = {}
+    grid_best, x_start = math.nan, ends0[var].copy()
+    if len(var) <= 2:
+        cand, grid = _grid(bounds, grid_points)
+        obj_g, ok_g, _ = problem.feasible(cand)
+        grid.update(objective=obj_g, feasible=ok_g)
+        if ok_g.any():
+            i_best = int(np.argmax(np.where(ok_g, obj_g, -np.inf)))
+            grid_best, x_start = float(obj_g[i_best]), cand[i_best]
+    x_de, generations, converged = _global_search(problem, bounds, x_start, progress)
+    common = dict(grid_best=grid_best, variables=labels_all, grid=grid, var_index=var, min_yields=mins,
+                  evaluations=problem.evaluations, generations=generations, not_evaluated=not_eval,
+                  violated_at_start=violated0)
+    obj_d, ok_d, _ = problem.feasible(x_de[None, :])
+    if not ok_d[0]:
+        return OptimResult(ends0, ends0, float(obj0[0]), float(obj0[0]), False, converged=converged,
+                           shortfalls=problem.shortfalls(x_de), **common)
+    x_opt, obj_o, marg_o = _refine(problem, x_de, bounds)
+    common["evaluations"] = problem.evaluations
     ends = problem.full(x_opt[None, :])[0]
-    active = [labels[i] for i in use if marg_o[0, i] <= max(TOL, ACTIVE_REL * abs(_bound(problem.limits[i])))]
-    return OptimResult(ends, ends0, float(obj_o[0]), float(obj0[0]), True, active, violated0, not_eval,
-                       float(obj_g[best_i]), labels_all, grid, var)
+    active = [labels[i] for i in use if marg_o[0, i] <= max(TOL, ACTIVE_REL * abs(problem.bounds[i]))]
+    return OptimResult(ends, ends0, float(obj_o[0]), float(obj0[0]), True, converged=converged,
+                       active=active, **common)
 
 
-def _search_space(model, names, ends0, limits, maximize, span_c):
+def _min_yields(names, start_vol, given) -> dict[str, float]:
+    mins = default_min_yields(start_vol, names)
+    given = dict(given or {})
+    if "all" in given and "all" not in names:
+        mins = dict.fromkeys(names, float(given.pop("all")))
+    for n, v in given.items():
+        if n not in names:
+            raise StudyError(f"--min-yield: no cut named {n!r}; the cuts are {', '.join(repr(x) for x in names)}")
+        if not (0.0 <= v < 100.0):
+            raise StudyError(f"--min-yield {n}={v:g}: expected a yield from 0 to 100 vol %")
+        mins[n] = float(v)
+    return mins
+
+
+def _search_space(model, names, ends0, limits, maximize, span_c, free):
     """The moving cut points (indices), the limits that apply, and each moving point's (low, high) bound."""
     n = ends0.size
     lo_curve, hi_curve = model.curve.ibp_c + GAP_C, model.curve.fbp_c - GAP_C
     if maximize is not None:
         if maximize not in names:
             raise StudyError(f"no cut named {maximize!r}; the cuts are {', '.join(repr(x) for x in names)}")
+        if free:
+            raise StudyError("--free goes with --prices; --maximize moves the two cut points around its product")
         k = names.index(maximize)
         var = [i for i in (k - 1, k) if 0 <= i < n]
         rel = {names[i] for i in (k - 1, k, k + 1) if 0 <= i < len(names)}
         lims = [x for x in limits if x.cut in rel]
     else:
-        var = list(range(n))
+        if free:
+            unknown = [f for f in free if f not in names[:-1]]
+            if unknown:
+                raise StudyError(f"--free: no cut with an end named {unknown[0]!r}; the cuts with an end are "
+                                 f"{', '.join(repr(x) for x in names[:-1])}")
+            var = sorted({names.index(f) for f in free})
+        else:  # the light-ends cut point is the stabiliser's, not the crude column's: it stays unless freed
+            var = [i for i in range(n) if ends0[i] > LIGHT_ENDS_MAX_C]
         lims = list(limits)
     fixed_lo, fixed_hi = [], []
     for i in var:
@@ -174,16 +279,29 @@ def _search_space(model, names, ends0, limits, maximize, span_c):
         hi = min([hi_curve] + [a - GAP_C * (j - i) for j, a in zip(range(i + 1, n), ends0[i + 1:]) if j not in var])
         fixed_lo.append(max(lo, ends0[i] - span_c))
         fixed_hi.append(min(hi, ends0[i] + span_c))
-    return var, lims, (fixed_lo, fixed_hi)
+    if any(h <= lo for lo, h in zip(fixed_lo, fixed_hi)):
+        raise StudyError("a moving cut point has no room between its fixed neighbours; widen --span or free them")
+    return var, lims, (np.array(fixed_lo), np.array(fixed_hi))
 
 
 class _Problem:
-    """Objective and limit margins of candidate cut points (rows of the moving points)."""
+    """Objective and requirement margins (limits, then minimum yields) of candidate cut points (rows of the
+    moving points).  Tracks the number of candidates evaluated and each requirement's best margin seen."""
 
-    def __init__(self, model, names, ends0, var, lims, maximize, prices):
+    def __init__(self, model, names, ends0, var, lims, maximize, prices, mins):
         self.model, self.names, self.ends0, self.var = model, names, ends0, var
         self.maximize, self.prices = maximize, prices
         self.limits = applicable(lims, names)
+        self.mins = [(names.index(n), v) for n, v in mins.items() if v > 0]
+        self.labels = ([lim.describe() for lim in self.limits]
+                       + [f"{names[j]}: volume yield >= {v:g} vol % (guard rail)" for j, v in self.mins])
+        self.bounds = [lim.max if lim.max is not None else (lim.min or 0.0) for lim in self.limits]
+        self.bounds += [v for _, v in self.mins]
+        self.scale = np.array([max(abs(b), 1.0) for b in self.bounds])
+        self.use: list[int] = []
+        self.evaluations = 0
+        self.best_margin = np.full(len(self.labels), -np.inf)
+        self.last_cols = None
 
     def full(self, x):
         e = np.repeat(self.ends0[None, :], x.shape[0], axis=0)
@@ -194,54 +312,135 @@ class _Problem:
         """(objective, margins, order gaps) of candidates ``x`` (rows)."""
         x = np.atleast_2d(x)
         cols = cut_columns(self.model, self.full(x))
+        self.last_cols = cols
+        self.evaluations += x.shape[0]
         obj = _objective(cols, self.names, self.maximize, self.prices)
         marg, _ = limit_margins(cols, self.names, self.limits)
+        yld = np.stack([cols["vol_pct"][:, j] - v for j, v in self.mins], axis=1) if self.mins else \
+            np.zeros((x.shape[0], 0))
+        marg = np.concatenate([marg, yld], axis=1)
+        if marg.shape[1]:
+            self.best_margin = np.fmax(self.best_margin, np.nanmax(np.where(np.isnan(marg), -np.inf, marg), axis=0))
         order = np.diff(x, axis=1) - GAP_C if len(self.var) > 1 else np.zeros((x.shape[0], 0))
         return obj, marg, order
 
-    def feasible(self, x, use):
-        """(objective, meets every usable limit and keeps the cut points in order, margins) of candidates ``x``.
+    def feasible(self, x):
+        """(objective, meets every usable requirement and keeps the cut points in order, margins).
 
         A limit evaluable at the start that becomes n/a at a candidate (e.g. the flash estimate's range left
         behind) counts as broken there: the optimiser must not escape a limit through an estimate's gap."""
         obj, marg, order = self.evaluate(x)
-        ok = np.all(np.nan_to_num(marg[:, use], nan=-1.0) >= 0, axis=1) & np.all(order >= -1e-9, axis=1)
+        ok = np.all(np.nan_to_num(marg[:, self.use], nan=-1.0) >= 0, axis=1) & np.all(order >= -1e-9, axis=1)
         return obj, ok, marg
 
+    def scaled(self, x):
+        """(objective, constraints >= 0 when met: usable margins over their scale, order gaps) of rows x."""
+        obj, marg, order = self.evaluate(x)
+        m = np.nan_to_num(marg[:, self.use], nan=-1.0 * self.scale[self.use]) / self.scale[self.use]
+        return obj, np.concatenate([m, order], axis=1)
 
-def _grid(x0, bounds, grid_points):
-    """Brute-force candidates: a full grid for one or two moving points, else per-point sweeps from the
-    start; and the grid description for plots."""
+    def shortfalls(self, x) -> list[dict]:
+        """Each usable requirement broken at ``x``, by how much, and whether any point searched met it."""
+        _, marg, _ = self.evaluate(x[None, :])
+        cols = self.last_cols
+        out = []
+        for i in self.use:
+            if not marg[0, i] < 0 and not np.isnan(marg[0, i]):
+                continue
+            if i < len(self.limits):
+                lim = self.limits[i]
+                value = float(limit_values(cols, self.names.index(lim.cut), lim.property)[0])
+                cut, prop = lim.cut, lim.property
+                bound = lim.min if lim.min is not None and (lim.max is None or value < lim.min) else lim.max
+            else:
+                j, bound = self.mins[i - len(self.limits)]
+                value, cut, prop = float(cols["vol_pct"][0, j]), self.names[j], "vol_pct"
+            out.append({"limit": self.labels[i], "cut": cut, "property": prop, "bound": bound,
+                        "value": value, "short_by": float(-marg[0, i]) if not np.isnan(marg[0, i]) else math.nan,
+                        "alone_possible": bool(self.best_margin[i] >= 0)})
+        return out
+
+
+def _grid(bounds, grid_points):
+    """Brute-force candidates over one or two moving points, and the grid description for plots."""
     fixed_lo, fixed_hi = bounds
-    nvar = len(x0)
+    nvar = len(fixed_lo)
+    per_axis = max(int(grid_points ** (1.0 / nvar)), 3)
+    axes = [np.linspace(fl, fh, per_axis) for fl, fh in zip(fixed_lo, fixed_hi)]
+    mesh = np.meshgrid(*axes, indexing="ij")
+    cand = np.stack([g.ravel() for g in mesh], axis=1)
     grid: dict = {}
-    if nvar <= 2:
-        per_axis = max(int(grid_points ** (1.0 / nvar)), 3)
-        axes = [np.linspace(fl, fh, per_axis) for fl, fh in zip(fixed_lo, fixed_hi)]
-        mesh = np.meshgrid(*axes, indexing="ij")
-        cand = np.stack([g.ravel() for g in mesh], axis=1)
-        if nvar == 2:
-            grid.update(x=axes[0], y=axes[1], shape=mesh[0].shape)
-        return cand, grid
-    pts = [x0[None, :]]
-    for j, (fl, fh) in enumerate(zip(fixed_lo, fixed_hi)):
-        lo_j = max(fl, x0[j - 1] + GAP_C) if j > 0 else fl
-        hi_j = min(fh, x0[j + 1] - GAP_C) if j + 1 < nvar else fh
-        vals = np.linspace(lo_j, hi_j, 41)
-        block = np.repeat(x0[None, :], vals.size, axis=0)
-        block[:, j] = vals
-        pts.append(block)
-    return np.concatenate(pts), grid
+    if nvar == 2:
+        grid.update(x=axes[0], y=axes[1], shape=mesh[0].shape)
+    return cand, grid
 
 
-def _refine(problem: _Problem, x_grid, obj_grid: float, bounds, use):
-    """SLSQP from the best feasible grid point, then the best point meeting every limit on the straight line
-    from the grid point to SLSQP's answer (SLSQP may stop a hair outside an active limit; the answer must
-    never break one).  Returns (x, objective, margins) at that point."""
+def _global_search(problem: _Problem, bounds, x0, progress):
+    """Differential evolution over the moving cut points, the population cut in one batch per generation.
+
+    scipy asks for the constraints of the whole population and then the objective of its feasible members:
+    the second call is answered from the first's results (rows remembered by their bytes)."""
+    from scipy.optimize import NonlinearConstraint, differential_evolution
+
+    lo, hi = bounds
+    memo: dict = {}
+    state = {"feasible": False, "viol": math.inf, "history": []}
+
+    def rows(xt):
+        x = np.ascontiguousarray(np.asarray(xt, dtype=float).T)
+        x = x.reshape(-1, len(lo))
+        todo = [k for k in range(x.shape[0]) if x[k].tobytes() not in memo]
+        if todo:
+            if len(memo) > 20000:
+                memo.clear()
+            obj, cons = problem.scaled(x[todo])
+            viol = np.sum(np.maximum(-cons, 0.0), axis=1)
+            state["feasible"] = state["feasible"] or bool(np.any(viol == 0.0))
+            state["viol"] = min(state["viol"], float(viol.min()))
+            for k, o, c in zip(todo, obj, cons):
+                memo[x[k].tobytes()] = (o, c)
+        return [memo[r.tobytes()] for r in x]
+
+    def f(xt):
+        return -np.array([o for o, _ in rows(xt)])
+
+    def g(xt):
+        return np.array([c for _, c in rows(xt)]).T
+
+    x0 = np.clip(x0, lo, hi)
+    order_ok = np.all(np.diff(x0) >= GAP_C) if x0.size > 1 else True
+    def tick(intermediate_result):
+        hist = state["history"]
+        hist.append(state["viol"])
+        if progress is not None:
+            progress(len(hist), MAXITER)
+        stalled = (not state["feasible"] and len(hist) > STALL_GENERATIONS
+                   and hist[-STALL_GENERATIONS - 1] - hist[-1] <= 1e-9 * max(hist[-1], 1.0))
+        state["stalled"] = stalled
+        return stalled
+
+    cons = []
+    n_con = len(problem.use) + max(len(lo) - 1, 0)
+    if n_con:
+        cons.append(NonlinearConstraint(g, 0.0, np.inf))
+    res = differential_evolution(f, list(zip(lo, hi)), constraints=cons, vectorized=True, updating="deferred",
+                                 popsize=POPSIZE, maxiter=MAXITER, tol=DE_TOL, atol=0.0, init="sobol",
+                                 polish=False, rng=SEED, x0=x0 if order_ok else None, callback=tick)
+    if progress is not None:
+        progress(MAXITER, MAXITER)
+    converged = bool(res.success) or bool(state.get("stalled"))
+    return np.clip(res.x, lo, hi), int(res.nit), converged
+
+
+def _refine(problem: _Problem, x_start, bounds):
+    """SLSQP from the global search's best point, then the best point meeting every requirement on the
+    straight line from that point to SLSQP's answer (SLSQP may stop a hair outside an active limit; the answer
+    must never break one).  Returns (x, objective, margins) at that point."""
     from scipy.optimize import minimize
 
     fixed_lo, fixed_hi = bounds
-    scale = max(abs(obj_grid), 1.0)
+    obj_s, _, _ = problem.evaluate(x_start[None, :])
+    scale = max(abs(float(obj_s[0])), 1.0)
     cache: dict = {}
 
     def at(x):  # SLSQP asks for the objective and each constraint at the same point: evaluate once
@@ -249,23 +448,17 @@ def _refine(problem: _Problem, x_grid, obj_grid: float, bounds, use):
         if key not in cache:
             if len(cache) > 256:
                 cache.clear()
-            cache[key] = problem.evaluate(np.asarray(x, dtype=float))
+            cache[key] = problem.scaled(np.asarray(x, dtype=float)[None, :])
         return cache[key]
 
-    cons = [{"type": "ineq", "fun": (lambda x, i=i: float(np.nan_to_num(at(x)[1][0, i], nan=-1e3)))}
-            for i in use]
-    if len(problem.var) > 1:
-        cons.append({"type": "ineq", "fun": lambda x: at(x)[2][0]})
-    res = minimize(lambda x: -float(at(x)[0][0]) / scale, x_grid, method="SLSQP",
+    n_con = len(problem.use) + max(len(problem.var) - 1, 0)
+    cons = [{"type": "ineq", "fun": lambda x: at(x)[1][0]}] if n_con else []
+    res = minimize(lambda x: -float(at(x)[0][0]) / scale, x_start, method="SLSQP",
                    bounds=list(zip(fixed_lo, fixed_hi)), constraints=cons,
                    options={"maxiter": 100, "ftol": 1e-10})
     x_opt = np.clip(res.x, fixed_lo, fixed_hi)
     lam = np.linspace(0.0, 1.0, 65)[:, None]
-    line = x_grid[None, :] + lam * (x_opt - x_grid)[None, :]
-    obj_l, ok_l, marg_l = problem.feasible(line, use)
+    line = x_start[None, :] + lam * (x_opt - x_start)[None, :]
+    obj_l, ok_l, marg_l = problem.feasible(line)
     j = int(np.argmax(np.where(ok_l, obj_l, -np.inf)))
     return line[j], obj_l[j:j + 1], marg_l[j:j + 1]
-
-
-def _bound(lim: Limit) -> float:
-    return lim.max if lim.max is not None else (lim.min or 0.0)

@@ -67,7 +67,7 @@ def perturb(assay: Assay, sig: Sigmas, rng: np.random.Generator) -> Assay:
 
 
 def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 200, seed: int = 20261201,
-                method: str = "daubert-1994"):
+                method: str = "daubert-1994", progress=None):
     """P10/P50/P90 of each cut's yields and qualities under the assay's measurement uncertainty.
 
     Parameters
@@ -82,6 +82,8 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
         Random seed; the same seed gives the same bands.
     method : str
         TBP <-> D86 method for D86 input curves.
+    progress : callable, optional
+        ``progress(done, n)`` as the draws are modelled.
 
     Returns
     -------
@@ -95,11 +97,13 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
         raise StudyError(f"the number of draws must be between 20 and 5000; got {n}")
     rng = np.random.default_rng(seed)
     models, failed = [], 0
-    for _ in range(n):
+    for k in range(n):
         try:
             models.append(build_model(perturb(assay, sig, rng), method))
         except AssaycutError:
             failed += 1
+        if progress is not None and (k + 1) % 10 == 0:
+            progress(k + 1, n)
     if len(models) < 10:
         raise StudyError(f"only {len(models)} of {n} perturbed draws could be modelled; the uncertainties are too "
                          f"large for this curve")

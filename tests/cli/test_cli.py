@@ -8,14 +8,13 @@ import pytest
 from typer.testing import CliRunner
 
 from assaycut.cli import app
-from tests.helpers import cli_error, sha256
+from tests.helpers import cli_app, cli_error, sha256
 
 runner = CliRunner()
 
-CUT_FIELDS = {"name", "start_c", "end_c", "vol_pct", "wt_pct", "cum_vol_pct", "cum_wt_pct", "mid_vol_c", "vabp_c",
-              "vabp_d86_c", "meabp_c", "sg", "api", "density_15c_kg_m3", "watson_k", "sulfur_wt_pct", "sulfur_share_pct",
-              "mw",
-              "d86_c", "cetane_index_d4737", "flash_c_est", "extrapolated"}
+CUT_FIELDS = {"name", "start_c", "end_c", "vol_pct", "wt_pct", "cum_vol_pct", "cum_wt_pct", "mid_vol_c", "tbp_c",
+              "overlap_c", "vabp_c", "vabp_d86_c", "meabp_c", "sg", "api", "density_15c_kg_m3", "watson_k",
+              "sulfur_wt_pct", "sulfur_share_pct", "mw", "d86_c", "cetane_index_d4737", "flash_c_est", "extrapolated"}
 
 
 def test_yields_json_shape_and_no_files(tmp_path, monkeypatch):
@@ -347,3 +346,16 @@ def test_unit_f_on_printed_tables_and_report_files_json_stays_in_c(tmp_path, dem
         if c["end_c"] is not None:
             assert float(row["End TBP [°F]"]) == pytest.approx(c["end_c"] * 1.8 + 32.0, abs=1e-9)
     assert d["cuts"][4]["end_c"] == 343.0
+
+
+@pytest.mark.parametrize("args,code", [
+    (["optimize", "--maximize", "diesel"], 0),
+    (["optimize", "--maximize", "diesel", "--min-yield", "kerosene=x"], 2),
+    (["compare", "no_such.xlsx"], 2),
+    (["sweep", "--end", "kerosene", "--from", "200", "--to", "100"], 2),
+    (["sweep", "--end", "kerosene", "--from", "200", "--to", "260"], 0),
+])
+def test_exit_codes_are_consistent(args, code, tmp_path):
+    # The README's exit codes: 0 ok, 1 no feasible answer or a failed check, 2 bad input.
+    r = CliRunner().invoke(cli_app(), args + ["--out", str(tmp_path)])
+    assert r.exit_code == code, (r.stdout, r.stderr)

@@ -48,16 +48,77 @@ def test_conservation_exact(model):
     assert (df["wt_pct"] * df["sulfur_wt_pct"]).sum() / 100.0 == pytest.approx(model.sulfur_wt_pct, rel=1e-9)
 
 
-def test_zero_width_is_the_ideal_cut(model):
-    # Identity: with no overlap the products are the ideal TBP cuts.
+def test_no_overlap_is_the_ideal_cut(model):
+    # Identity: with no boundary named the products are the ideal TBP cuts, exactly.
     cs = default_cut_set()
     ideal = cut_table(model, cs)
     real, _ = fractionate(model, cs, {})
-    for col in ("vol_pct", "wt_pct", "sg", "sulfur_wt_pct", "vabp_c"):
-        assert_allclose(real[col], ideal[col], atol=1e-6, equal_nan=True, err_msg=col)
-    for a, b in zip(real["d86_c"], ideal["d86_c"]):
-        if a:
-            assert_allclose(list(a.values())[1:], list(b.values())[1:], atol=1e-3)
+    for col in ("vol_pct", "wt_pct", "sg", "sulfur_wt_pct", "vabp_c", "tbp_5_c", "tbp_95_c", "overlap_c"):
+        assert_allclose(real[col], ideal[col], rtol=0, atol=0, equal_nan=True, err_msg=col)
+    assert list(real["d86_c"]) == list(ideal["d86_c"])
+
+
+def _measured_overlap(curves, j):
+    """TBP 95 % of product j minus TBP 5 % of product j + 1, measured on the product curves returned (each
+    product's cumulative volume of itself over the slice edges' TBP)."""
+    f, dv, t = curves["fractions"], curves["slice_pct"], curves["temp_c"]
+
+    def at(k, pct):
+        cum = np.concatenate([[0.0], np.cumsum(f[:, k] * dv)])
+        return np.interp(pct / 100.0 * cum[-1], cum, t)
+
+    return at(j, 95.0) - at(j + 1, 5.0)
+
+
+@pytest.mark.parametrize("asked", [25.0, 50.0, 0.0, -3.0, 10.0])
+def test_overlap_is_the_trade_tbp_5_95_overlap(model, asked):
+    # Definition (common practice, no source): the TBP 5-95 overlap is the lighter product's TBP 95 % minus
+    # the heavier product's TBP 5 %, on the products' own curves; it must come out as asked within 1 °C.
+    cs = default_cut_set()
+    real, curves = fractionate(model, cs, {"kerosene": asked})
+    k = list(real["name"]).index("kerosene")
+    assert _measured_overlap(curves, k) == pytest.approx(asked, abs=1.0)
+    assert real["overlap_c"].iloc[k] == pytest.approx(asked, abs=1.0)
+    assert real["tbp_95_c"].iloc[k] - real["tbp_5_c"].iloc[k + 1] == pytest.approx(real["overlap_c"].iloc[k])
+
+
+def test_boundaries_without_overlap_stay_ideal(model):
+    # Products touching no named boundary are the ideal cuts, and the ideal sides of the touched products
+    # start or end at the cut point itself: light naphtha's D86 is unchanged by a kerosene overlap.
+    cs = default_cut_set()
+    ideal = cut_table(model, cs).set_index("name")
+    real, _ = fractionate(model, cs, {"kerosene": 25.0, "vacuum gas oil": 40.0})
+    real = real.set_index("name")
+    for name in ("light ends", "light naphtha", "heavy naphtha"):
+        for col in ("vol_pct", "wt_pct", "sg", "sulfur_wt_pct", "mid_vol_c", "flash_c_est", "watson_k"):
+            assert real.loc[name, col] == ideal.loc[name, col] or (np.isnan(real.loc[name, col])
+                                                                   and np.isnan(ideal.loc[name, col])), (name, col)
+        assert real.loc[name, "d86_c"] == ideal.loc[name, "d86_c"]
+    # kerosene's start is an ideal boundary: none of it boils below the heavy-naphtha cut point
+    assert real.loc["kerosene", "tbp_5_c"] > cs.ends_c[2]
+
+
+def test_overlap_sharper_than_ideal_refused(model):
+    cs = default_cut_set()
+    ideal = cut_table(model, cs).set_index("name")
+    with pytest.raises(Exception, match="sharper than an ideal cut, which gives"):
+        fractionate(model, cs, {"kerosene": float(ideal.loc["kerosene", "overlap_c"]) - 5.0})
+
+
+def test_ideal_cut_tbp_points_by_identity(model):
+    # Identity of the definition: cutting the crude at a cut's own TBP 95 % gives 95 % of the cut's volume;
+    # and ideal neighbouring cuts leave a gap (negative overlap; common practice, no source).
+    cs = default_cut_set()
+    ideal = cut_table(model, cs).set_index("name")
+    ker = ideal.loc["kerosene"]
+    at95 = cs.with_ends({"kerosene": float(ker["tbp_95_c"])})
+    at5 = cs.with_ends({"heavy naphtha": float(ker["tbp_5_c"])})
+    got95 = cut_table(model, at95).set_index("name").loc["kerosene", "vol_pct"]
+    # moving the heavy-naphtha end to kerosene's T5 leaves 95 % of the kerosene's volume in kerosene
+    got5 = cut_table(model, at5).set_index("name").loc["kerosene", "vol_pct"]
+    assert got95 == pytest.approx(0.95 * ker["vol_pct"], rel=1e-9)
+    assert got5 == pytest.approx(0.95 * ker["vol_pct"], rel=1e-9)
+    assert (ideal["overlap_c"].dropna() < 0).all()
 
 
 def test_overlap_widens_product_distillation(model):
@@ -94,7 +155,17 @@ def test_cli_overlap_and_cut_file_key(tmp_path):
     assert "fractionation" in d["methods"]
     assert sum(c["vol_pct"] for c in d["cuts"]) == pytest.approx(100.0, abs=1e-9)
     cli_error(["yields", "--overlap", "jet=20"], r"no cut named 'jet' for an overlap")
-    cli_error(["yields", "--overlap", "diesel=500"], r"overlap 500 °C for 'diesel' is outside 0-200 °C")
-    p.write_text('[[cut]]\nname="a"\nend_c=180\noverlap_c=-3\n[[cut]]\nname="b"\n')
-    cli_error(["yields", "--cuts", str(p)], r"'overlap_c' must be a TBP width of 0-200 °C")
+    cli_error(["yields", "--overlap", "diesel=500"], r"overlap 500 °C for 'diesel' is outside -200 to 200 °C")
+    cli_error(["yields", "--overlap", "diesel=-60"], r"overlap -60 °C for 'diesel' is sharper than an ideal cut")
+    p.write_text('[[cut]]\nname="a"\nend_c=180\noverlap_c=-300\n[[cut]]\nname="b"\n')
+    cli_error(["yields", "--cuts", str(p)], r"'overlap_c' must be a TBP 5-95 overlap of -200 to 200 °C")
+
+
+def test_json_tbp_points_and_overlap():
+    d = json.loads(runner.invoke(cli_app(), ["yields", "--overlap", "kerosene=20", "--json"]).stdout)
+    cuts = {c["name"]: c for c in d["cuts"]}
+    assert set(cuts["kerosene"]["tbp_c"]) == {"5", "50", "95"}
+    assert cuts["kerosene"]["tbp_c"]["95"] - cuts["diesel"]["tbp_c"]["5"] == pytest.approx(20.0, abs=1.0)
+    assert cuts["kerosene"]["overlap_c"] == pytest.approx(20.0, abs=1.0)
+    assert cuts["vacuum residue"]["overlap_c"] is None
 
