@@ -11,7 +11,7 @@ from dataclasses import dataclass, field
 
 from .cutting.cutset import CutSet
 from .cutting.ideal import add_rates, closure, cut_table
-from .cutting.limits import Limit, check_limits, unmatched_cuts
+from .cutting.limits import Limit, check_limits, nearest_cut, unmatched_cuts
 from .cutting.qualities import ESTIMATED, NOT_ESTIMATED
 from .methods.product_properties import describe_ranges
 from .model.assay import Assay
@@ -126,9 +126,11 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     clo = closure(cuts)
     warnings = list(model.warnings) + _cut_warnings(cuts, model)
     missing = unmatched_cuts(limits or [], list(cuts["name"]))
-    if missing:
-        warnings.append(f"limits on {', '.join(repr(c) for c in missing)} are not checked: the cut set "
-                        f"({cut_set.label}) has no cut of that name; rename the cut or the limit")
+    for c in missing:
+        near = nearest_cut(c, list(cuts["name"]))
+        which = "; ".join(lim.describe() for lim in (limits or []) if lim.cut == c)
+        warnings.append(f"limits on cut {c!r} are not checked ({which}): the cut set ({cut_set.label}) has no cut "
+                        f"of that name" + (f"; nearest is {near!r}" if near else "") + "; rename the cut or the limit")
     methods = dict(model.methods)
     methods.update(METHOD_NOTES)
     methods["estimated qualities"] = "; ".join(f"{k}: {v}" for k, v in ESTIMATED.items()) + ". " + NOT_ESTIMATED

@@ -322,6 +322,133 @@ def _(d):
     return ["template", str(d / "blank.ods")], []
 
 
+# -- hostile workbooks: the XML inside the zip edited by hand ------------------------------------------------
+SHEET_XML = {"crude": "xl/worksheets/sheet1.xml", "distillation": "xl/worksheets/sheet2.xml"}
+"""Where openpyxl puts the base sheets (in :func:`tests.helpers.base_sheets` order)."""
+
+
+def rezip(path: Path, edits: dict, out: Path | None = None) -> Path:
+    """Rewrite members of an .xlsx: {member: function(bytes) -> bytes} (a new member when absent)."""
+    out = out or path
+    with zipfile.ZipFile(path) as z:
+        items = {i.filename: z.read(i.filename) for i in z.infolist()}
+    for member, fn in edits.items():
+        items[member] = fn(items.get(member, b""))
+    tmp = out.with_suffix(".tmp")
+    with zipfile.ZipFile(tmp, "w", zipfile.ZIP_DEFLATED) as z:
+        for k, v in items.items():
+            z.writestr(k, v)
+    tmp.replace(out)
+    return out
+
+
+def _xml_case(name, sheet, fn, expect):
+    @case(name, expect)
+    def _(d):
+        p = rezip(_book(d, f"{name}.xlsx"), {SHEET_XML[sheet]: fn})
+        return ["yields", str(p), "--json"], [p]
+
+
+def _sub(old: bytes, new: bytes, count: int = 1):
+    def fn(x: bytes) -> bytes:
+        assert old in x, old
+        return x.replace(old, new, count)
+    return fn
+
+
+def _forge_dimension(x: bytes) -> bytes:
+    import re
+
+    out = re.sub(rb'<dimension ref="[^"]*"\s*/>', b'<dimension ref="A1:XFD1048576"/>', x)
+    assert out != x
+    return out
+
+
+def _duplicate_row(x: bytes) -> bytes:
+    import re
+
+    m = re.search(rb'<row r="8".*?</row>', x)
+    return x[:m.end()] + m.group(0) + x[m.end():]
+
+
+def _swap_rows(x: bytes) -> bytes:
+    import re
+
+    m7, m8 = re.search(rb'<row r="7".*?</row>', x), re.search(rb'<row r="8".*?</row>', x)
+    return x[:m7.start()] + m8.group(0) + m7.group(0) + x[m8.end():]
+
+
+def _huge_row(x: bytes) -> bytes:  # a sheet that inflates to about 60 MB from a small zip member
+    filler = b'<row r="99000"><c r="A99000" t="inlineStr"><is><t>' + b"x" * 60_000_000 + b"</t></is></c></row>"
+    return x.replace(b"</sheetData>", filler + b"</sheetData>")
+
+
+_xml_case("forged_dimension", "distillation", _forge_dimension, None)
+_xml_case("forged_dimension_far_row", "distillation",
+          lambda x: _forge_dimension(x).replace(b"</sheetData>", b'<row r="99999"><c r="XFD99999"><v>1</v></c>'
+                                                b"</row></sheetData>"), r"column 16384, beyond the 256 columns")
+_xml_case("duplicate_row", "distillation", _duplicate_row, r"sheet 'distillation'.*row 8 appears twice")
+_xml_case("rows_out_of_order", "distillation", _swap_rows, r"sheet 'distillation'.*row 7 appears after row 8")
+_xml_case("sheet_inflates_too_far", "distillation", _huge_row, r"unpacks to 60 MB; assaycut reads parts up to 50 MB")
+_xml_case("number_cell_holds_text", "distillation", _sub(b"<v>70</v>", b"<v>seventy</v>"),
+          r"sheet 'distillation'.*damaged sheet XML")
+_xml_case("bad_shared_string_index", "crude",
+          _sub(b'<c r="A1" t="inlineStr"><is><t>Whole-crude data (test)</t></is></c>', b'<c r="A1" t="s"><v>99999</v></c>'),
+          r"sheet 'crude'.*damaged sheet XML")
+_xml_case("bad_cell_reference", "distillation", _sub(b'r="A8"', b'r="8A"'), r"sheet 'distillation'.*damaged sheet XML")
+_xml_case("truncated_sheet", "distillation", lambda x: x[: len(x) // 2], r"sheet 'distillation'.*damaged sheet XML")
+
+
+@case("many_shared_strings", r"part 'xl/sharedStrings.xml' of the workbook unpacks to")
+def _(d):
+    n = 3_000_000
+    sst = (b'<?xml version="1.0" encoding="UTF-8"?><sst xmlns="http://schemas.openxmlformats.org/spreadsheetml/'
+           b'2006/main" count="%d" uniqueCount="%d">' % (n, n) + b"<si><t>abcdefghij</t></si>" * n + b"</sst>")
+    p = rezip(_book(d, "sst.xlsx"), {"xl/sharedStrings.xml": lambda _: sst})
+    return ["yields", str(p)], [p]
+
+
+@case("hidden_sheet_with_near_name", r"sheets 'crude' and 'crude ' have the same name")
+def _(d):
+    import openpyxl
+
+    p = _book(d, "twin.xlsx")
+    wb = openpyxl.load_workbook(p)
+    ws = wb.copy_worksheet(wb["crude"])
+    ws.title = "crude "
+    ws.sheet_state = "hidden"
+    wb.save(p)
+    return ["yields", str(p)], [p]
+
+
+@case("crude_name_too_long", r"the crude name is 30000 characters long; at most 200")
+def _(d):
+    p = _book(d, "long.xlsx", set_cell("crude", 2, 1, "N" * 30_000))
+    return ["yields", str(p)], [p]
+
+
+@case("cut_name_too_long", r"name is 2000 characters long; at most 200")
+def _(d):
+    p = d / "cuts.toml"
+    p.write_text(f'[[cut]]\nname = "{"k" * 2000}"\nend_c = 200\n[[cut]]\nname = "rest"\n')
+    return ["yields", "--cuts", str(p)], [p]
+
+
+@case("too_many_cuts", r"5000 cuts; a cut set holds at most 100")
+def _(d):
+    p = d / "cuts.toml"
+    p.write_text("".join(f'[[cut]]\nname = "c{i}"\nend_c = {i * 0.1}\n' for i in range(4999))
+                 + '[[cut]]\nname = "rest"\n')
+    return ["yields", "--cuts", str(p)], [p]
+
+
+@case("control_character_in_cut_name", r"name holds a control character")
+def _(d):
+    p = d / "cuts.toml"
+    p.write_text('[[cut]]\nname = "naph\\u001b]0;x\\u0007"\nend_c = 200\n[[cut]]\nname = "rest"\n')
+    return ["yields", "--cuts", str(p)], [p]
+
+
 if __name__ == "__main__":  # pragma: no cover - writes the corpus for inspection
     import sys
 

@@ -77,14 +77,44 @@ class CutSet:
         return CutSet(cuts, label or self.label, dict(self.overlaps))
 
 
+MAX_CUTS = 100
+"""Most cuts in a cut set (a column makes a handful of products; a fine grid of narrow cuts a few dozen)."""
+MAX_NAME_CHARS = 200
+"""Longest cut name accepted. [characters]"""
+
+
+def normal_name(name: str) -> str:
+    """A cut name as matched against limits and options: Unicode NFKC, surrounding whitespace removed.
+
+    Examples
+    --------
+    >>> normal_name(" ﬁrst naphtha ")
+    'first naphtha'
+    """
+    import unicodedata
+
+    return unicodedata.normalize("NFKC", name).strip()
+
+
 def validate_cut_set(cuts: list[Cut], label: str) -> None:
-    """Refuse empty sets, duplicate names, missing ends and cut points that do not increase."""
+    """Refuse empty or oversized sets, long or duplicate names, missing ends and cut points that do not
+    increase."""
     if not cuts:
         raise CutSetError(f"{label}: no cuts; give at least one [[cut]] with a name")
+    if len(cuts) > MAX_CUTS:
+        raise CutSetError(f"{label}: {len(cuts)} cuts; a cut set holds at most {MAX_CUTS}")
     seen = set()
     for i, c in enumerate(cuts):
-        if not c.name or not str(c.name).strip():
+        if not isinstance(c.name, str) or not c.name.strip():
             raise CutSetError(f"{label}: cut {i + 1} has an empty name")
+        if len(c.name) > MAX_NAME_CHARS:
+            raise CutSetError(f"{label}: cut {i + 1}'s name is {len(c.name)} characters long; at most "
+                              f"{MAX_NAME_CHARS} are accepted")
+        if any(ord(ch) < 32 or 127 <= ord(ch) < 160 for ch in c.name):
+            raise CutSetError(f"{label}: cut {i + 1}'s name holds a control character; use plain text")
+        if c.end_c is not None and (isinstance(c.end_c, bool) or not isinstance(c.end_c, (int, float, np.floating))
+                                    or not np.isfinite(c.end_c)):
+            raise CutSetError(f"{label}: cut {c.name!r} ends at {c.end_c!r}; expected a finite TBP in °C")
         if c.name in seen:
             raise CutSetError(f"{label}: duplicate cut name {c.name!r}; each cut needs its own name")
         seen.add(c.name)

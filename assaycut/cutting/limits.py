@@ -226,6 +226,20 @@ def unmatched_cuts(limits: list[Limit], names: list[str]) -> list[str]:
     return list(dict.fromkeys(lim.cut for lim in limits if lim.cut not in names))
 
 
+def nearest_cut(name: str, names: list[str]) -> str | None:
+    """The cut name closest to ``name`` (difflib's ratio, at least 0.6), for a message; None if none is close.
+
+    Examples
+    --------
+    >>> nearest_cut("kerosine", ["naphtha", "kerosene", "diesel"])
+    'kerosene'
+    """
+    import difflib
+
+    close = difflib.get_close_matches(name, names, n=1, cutoff=0.6)
+    return close[0] if close else None
+
+
 def check_limits(cuts, limits: list[Limit]):
     """Check every limit against the cut table.
 

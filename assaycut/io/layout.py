@@ -38,8 +38,19 @@ UNIT_SUFFIX = re.compile(r"^[a-z][a-z0-9_]*_(c|f|k|pct|wt_pct|cst|cp|mg_koh_g|kg
                          r"g_ml|bar|mmhg|api|sg|degc|degf)$")
 MAX_ROWS = 100_000
 """Largest number of rows read from one sheet; larger tables are refused."""
-MAX_BYTES = 20 * 1024 * 1024
-"""Largest input file read. [bytes]"""
+MAX_BYTES = 20_000_000
+"""Largest input file read (20 MB). [bytes]"""
+MAX_MEMBER_BYTES = 50_000_000
+"""Largest uncompressed size of one part of an .xlsx (a sheet, the shared strings); real assay workbooks
+hold well under 1 MB. [bytes]"""
+MAX_UNPACKED_BYTES = 200_000_000
+"""Largest uncompressed size of a whole .xlsx. [bytes]"""
+MAX_CELLS = 1_000_000
+"""Largest number of cells read from one workbook (real assay workbooks hold a few thousand)."""
+MAX_COLUMNS = 256
+"""Columns read per sheet: a value further right is refused."""
+MAX_NAME_CHARS = 200
+"""Longest crude, cut or quality name accepted. [characters]"""
 
 INSTRUCTIONS = {
     SHEET_CRUDE: "Whole-crude data. One field per row; give at least one of api_gravity, sg_60f, "

@@ -7,7 +7,7 @@ import tomllib
 from importlib import resources
 from pathlib import Path
 
-from ..cutting.cutset import Cut, CutSet
+from ..cutting.cutset import Cut, CutSet, normal_name
 from ..cutting.limits import LIMIT_KEYS, SCALAR_PROPERTIES, Limit, validate_property
 from ..errors import AssaycutError, InputError
 from ..studies.compare import Price, PriceSet
@@ -68,8 +68,8 @@ def cut_set_from_dict(doc: dict, path: str) -> CutSet:
             if isinstance(w, bool) or not isinstance(w, (int, float)) or not -200.0 <= w <= 200.0:
                 raise InputError(f"[[cut]] {i} ({name!r}): 'overlap_c' must be a TBP 5-95 overlap of -200 to 200 °C "
                                  f"(negative: a gap); found {w!r}", file=path)
-            overlaps[name.strip()] = float(w)
-        cuts.append(Cut(name.strip(), end, swing))
+            overlaps[normal_name(name)] = float(w)
+        cuts.append(Cut(normal_name(name), end, swing))
     try:
         return CutSet(cuts, path, overlaps)
     except AssaycutError as exc:
@@ -115,7 +115,7 @@ def limits_from_dicts(items: list[dict], where: str) -> list[Limit]:
             raise InputError(f"[[limit]] {i}: give 'min', 'max' or both", file=where)
         if lo is not None and hi is not None and lo > hi:
             raise InputError(f"[[limit]] {i}: min {lo:g} is above max {hi:g}", file=where)
-        out.append(Limit(it["cut"], it["property"], None if lo is None else float(lo),
+        out.append(Limit(normal_name(it["cut"]), it["property"], None if lo is None else float(lo),
                          None if hi is None else float(hi), bool(it.get("strict", False)),
                          str(it.get("label", "")), str(it.get("source", ""))))
     return out

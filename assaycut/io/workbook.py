@@ -23,8 +23,12 @@ from .cells import (
     to_number,
 )
 from .layout import (
-    MAX_BYTES,
+    MAX_CELLS,
+    MAX_COLUMNS,
+    MAX_MEMBER_BYTES,
+    MAX_NAME_CHARS,
     MAX_ROWS,
+    MAX_UNPACKED_BYTES,
     METHODS,
     PCT_COLUMNS,
     SHEET_CRUDE,
@@ -52,13 +56,21 @@ def _open_workbook(data: bytes, path: str):
             names = set(z.namelist())
             if "xl/workbook.xml" not in names:
                 raise InputError("a zip archive but not an .xlsx workbook (no xl/workbook.xml)", file=path)
+            for info in z.infolist():
+                if info.file_size > MAX_MEMBER_BYTES:
+                    raise InputError(f"part {info.filename!r} of the workbook unpacks to {info.file_size / 1e6:.0f} "
+                                     f"MB; assaycut reads parts up to {MAX_MEMBER_BYTES / 1e6:.0f} MB (real assay "
+                                     f"workbooks hold well under 1 MB)", file=path)
             total = sum(i.file_size for i in z.infolist())
-            if total > 20 * MAX_BYTES:
-                raise InputError(f"the workbook unpacks to {total / 1e6:.0f} MB; refused as too large", file=path)
+            if total > MAX_UNPACKED_BYTES:
+                raise InputError(f"the workbook unpacks to {total / 1e6:.0f} MB; assaycut reads workbooks up to "
+                                 f"{MAX_UNPACKED_BYTES / 1e6:.0f} MB unpacked", file=path)
     except zipfile.BadZipFile as exc:
         raise InputError(f"a damaged zip archive ({exc}); expected an .xlsx workbook", file=path) from None
     try:
-        return openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
+        wb = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
+        wb.assaycut_budget = _Budget()
+        return wb
     except InputError:
         raise
     except Exception as exc:  # openpyxl and defusedxml raise many types; all mean "unreadable"
@@ -73,20 +85,78 @@ def _open_workbook(data: bytes, path: str):
                          f"as .xlsx", file=path) from None
 
 
-def _rows(ws, loc: SourceLocation):
-    """Rows of a sheet as lists of values, 1-based row numbers, at most MAX_ROWS."""
-    out = []
-    for i, row in enumerate(ws.iter_rows(values_only=True), start=1):
-        if i > MAX_ROWS:
-            raise loc.err(f"more than {MAX_ROWS} rows; assaycut reads at most {MAX_ROWS} rows per sheet")
-        out.append(list(row))
+class _Budget:
+    """Cells read so far from one workbook, against :data:`~assaycut.io.layout.MAX_CELLS`."""
+
+    def __init__(self):
+        self.cells = 0
+
+
+def _rows(ws, loc: SourceLocation, budget: _Budget | None = None):
+    """Rows of a sheet as lists of values, 1-based row numbers, at most MAX_ROWS.
+
+    The sheet's XML is parsed row by row without trusting its declared ``<dimension>`` (a forged one would
+    pad every row to 16,384 columns, an understated one would drop rows): every row present is read, rows
+    must come in increasing order without repeats, at most :data:`MAX_COLUMNS` columns, and the workbook's
+    cells count against :data:`MAX_CELLS`.  Damaged XML is one error naming the sheet and row."""
+    from openpyxl.worksheet._reader import WorkSheetParser
+
+    budget = budget or getattr(ws.parent, "assaycut_budget", None) or _Budget()
+    out: list[list] = []
+    last = 0
+    wb = ws.parent
+    try:
+        with ws._get_source() as src:
+            parser = WorkSheetParser(src, ws._shared_strings, data_only=wb.data_only, epoch=wb.epoch,
+                                     date_formats=wb._date_formats, timedelta_formats=wb._timedelta_formats)
+            for idx, cells in parser.parse():
+                if idx <= last:
+                    raise loc.err(f"row {idx} appears {'twice' if idx == last else 'after row ' + str(last)} in "
+                                  f"the sheet's XML; the file is damaged or was edited by hand (save it again "
+                                  f"from a spreadsheet program)", idx)
+                if idx > MAX_ROWS:
+                    raise loc.err(f"more than {MAX_ROWS} rows; assaycut reads at most {MAX_ROWS} rows per sheet")
+                budget.cells += len(cells)
+                if budget.cells > MAX_CELLS:
+                    raise loc.err(f"more than {MAX_CELLS:,} cells in the workbook; real assay workbooks hold a "
+                                  f"few thousand")
+                width = max((c["column"] for c in cells if c["value"] is not None), default=0)
+                if width > MAX_COLUMNS:
+                    raise loc.err(f"a value in column {width}, beyond the {MAX_COLUMNS} columns assaycut reads", idx)
+                row = [None] * width
+                for c in cells:
+                    if c["column"] <= width:
+                        row[c["column"] - 1] = c["value"]
+                out.extend([] for _ in range(idx - last - 1))
+                out.append(row)
+                last = idx
+    except InputError:
+        raise
+    except MemoryError:
+        raise
+    except Exception as exc:  # openpyxl's parser raises many types on damaged XML
+        raise loc.err(f"damaged sheet XML after row {last} ({type(exc).__name__}: {str(exc)[:120]}); save the "
+                      f"workbook again from a spreadsheet program", last + 1 if last else None) from None
     while out and all(cell_text(v) == "" for v in out[-1]):
         out.pop()
     return out
 
 
+def _norm(name: str) -> str:
+    """A sheet name as matched: Unicode NFKC, case-folded, surrounding whitespace removed."""
+    import unicodedata
+
+    return unicodedata.normalize("NFKC", name).casefold().strip()
+
+
 def _sheet(wb, name: str, path: str, required: bool):
-    names = {s.lower().strip(): s for s in wb.sheetnames}
+    names: dict[str, str] = {}
+    for s in wb.sheetnames:
+        k = _norm(s)
+        if k in names:
+            raise InputError(f"sheets {names[k]!r} and {s!r} have the same name once case and spaces are ignored; "
+                             f"rename or delete one (a hidden sheet must not stand in for a visible one)", file=path)
+        names[k] = s
     if name not in names:
         if required:
             raise InputError(f"no sheet named '{name}'; the workbook has "
@@ -196,6 +266,9 @@ def _read_crude(ws, loc: SourceLocation):
                           f"(e.g. pour_point_c)", r, "field")
     if not name:
         raise loc.err("no crude name: add a row 'name | <crude name>'")
+    if len(name) > MAX_NAME_CHARS or len(origin) > MAX_NAME_CHARS:
+        raise loc.err(f"the crude {'name' if len(name) > MAX_NAME_CHARS else 'origin'} is "
+                      f"{max(len(name), len(origin))} characters long; at most {MAX_NAME_CHARS} are accepted")
     sg = gravity_from_inputs(grav, loc, grows)
     return name, origin, sg, sulfur, extras, notes, grav
 

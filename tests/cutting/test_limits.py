@@ -87,7 +87,27 @@ def test_limit_on_a_missing_cut_warns_by_name(demo_paths):
 
     cs = CutSet([Cut("naphtha", 177.0), Cut("kero", 232.0), Cut("diesel", 343.0), Cut("rest", None)], "test cuts")
     res = run_yields(load_assay(demo_paths[0]), cs, read_limits(None))
-    assert any("limits on 'kerosene' are not checked" in w and "test cuts" in w for w in res.warnings)
+    assert any("limits on cut 'kerosene' are not checked" in w and "test cuts" in w for w in res.warnings)
+
+
+def test_limit_cut_names_normalised_and_near_misses_named(demo_paths, tmp_path):
+    # Limits name cuts after Unicode NFKC and whitespace trimming; a name that still does not match (here
+    # "kerosene" with a Cyrillic о, U+043E) is warned about with the nearest cut name.
+    from assaycut.cutting.cutset import default_cut_set
+    from assaycut.io import load_assay
+    from assaycut.io.tomlfiles import read_limits
+    from assaycut.yields import run_yields
+
+    p = tmp_path / "l.toml"
+    p.write_text('[[limit]]\ncut = "  diesel "\nproperty = "sulfur_wt_pct"\nmax = 0.001\n'
+                 '[[limit]]\ncut = "ker\u043esene"\nproperty = "sulfur_wt_pct"\nmax = 0.001\n'
+                 '[[limit]]\ncut = "\uff44iesel"\nproperty = "sg"\nmax = 0.5\n', encoding="utf-8")
+    lim = read_limits(str(p))
+    res = run_yields(load_assay(demo_paths[0]), default_cut_set(), lim)
+    checked = res.limits[res.limits["cut"] == "diesel"]
+    assert len(checked) == 2 and set(checked["status"]) == {"fail"}  # both diesel limits matched and checked
+    w = [x for x in res.warnings if "not checked" in x]
+    assert len(w) == 1 and "nearest is 'kerosene'" in w[0] and "sulfur" in w[0]
 
 
 def test_shipped_limit_sets_and_quality_limits():
