@@ -68,16 +68,76 @@ def atomic_write(path: str | os.PathLike, write, *, inputs: tuple[str, ...] = ()
                 raise InputError(f"refusing to write the report over the input file {src}", file=str(target))
         if Path(src).resolve() == target.resolve():
             raise InputError(f"refusing to write the report over the input file {src}", file=str(target))
-    target.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
+    prepare_folder(target.parent)
+    mode = _mode_for(target)
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=TEMP_SUFFIX, dir=target.parent)
+    except OSError as exc:
+        raise InputError(f"cannot write into this folder ({exc.strerror})", file=str(target.parent)) from None
     os.close(fd)
     _PENDING.add(tmp)
     try:
         write(tmp)
+        os.chmod(tmp, mode)
         os.replace(tmp, target)
+    except OSError as exc:
+        raise InputError(f"cannot write the report file ({exc.strerror or exc})", file=str(target)) from None
     finally:
         _PENDING.discard(tmp)
         with contextlib.suppress(OSError):
             if os.path.exists(tmp):
                 os.unlink(tmp)
     return target
+
+
+TEMP_SUFFIX = ".part"
+"""Suffix of the temporary file of a write in progress (``.<name>.<random>.part`` beside the target)."""
+
+
+def _mode_for(target: Path) -> int:
+    """The permission bits a written file gets: an existing file's own, else 0666 less the umask (as any
+    program creating a file gets; the temporary file alone would be 0600)."""
+    try:
+        return target.stat().st_mode & 0o7777
+    except OSError:
+        mask = os.umask(0)
+        os.umask(mask)
+        return 0o666 & ~mask
+
+
+def prepare_folder(folder: Path) -> None:
+    """Create a report folder (and its parents), or refuse one that cannot be: a file in its place, no
+    permission."""
+    if folder.exists() and not folder.is_dir():
+        raise InputError("is not a folder; give a folder for the report", file=str(folder))
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise InputError(f"cannot create the report folder ({exc.strerror or exc})", file=str(folder)) from None
+
+
+def check_targets(folder: Path, names, inputs: tuple[str, ...] = ()) -> None:
+    """Before a set of report files is written: the folder can be written, and no target name is taken
+    by a folder or an input file; stale temporary files of these names from a killed run are removed."""
+    prepare_folder(folder)
+    if not os.access(folder, os.W_OK | os.X_OK):
+        raise InputError("the report folder is read-only; give another --out", file=str(folder))
+    for name in names:
+        target = folder / name
+        if target.is_dir():
+            raise InputError(f"a folder named {name!r} is in the way of a report file; nothing was written",
+                             file=str(folder))
+        for src in inputs:
+            with contextlib.suppress(OSError):
+                if Path(src).resolve() == target.resolve():
+                    raise InputError(f"refusing to write the report over the input file {src}", file=str(target))
+        for stale in folder.glob(f".{glob_escape(name)}.*{TEMP_SUFFIX}"):
+            with contextlib.suppress(OSError):
+                stale.unlink()
+
+
+def glob_escape(name: str) -> str:
+    """``name`` with glob wildcards escaped."""
+    import glob
+
+    return glob.escape(name)

@@ -65,8 +65,11 @@ def _root(ctx: typer.Context) -> None:
 
 def _on_sigterm(signum, frame):  # pragma: no cover - exercised by a subprocess test
     from ..files import cleanup_pending
+    from .batch import kill_pools, release_claims
 
+    kill_pools()
     cleanup_pending()
+    release_claims()
     sys.stderr.write("assaycut: error: terminated; no partial report was left\n")
     os._exit(143)
 

@@ -32,6 +32,52 @@ class YieldJob:
     sigmas: object = None
     rate_bbl_per_day: float | None = None
     unit: str = "C"  # display unit of the report's temperatures ('C' or 'F')
+    claims: str = ""  # the run's claims folder for report folder names (see claim_folder); "" for one assay
+
+
+def claim_folder(root: Path, base: str, claims: str) -> Path:
+    """The report folder of one assay of a batch: ``root/base``, or ``base_2``, ``base_3``... when another
+    assay of the same run already claimed it (two crudes whose names give the same folder name, e.g.
+    "Crude A" and "Crude/A", or names sharing their first 60 characters).  A claim is a file created
+    exclusively in the run's claims folder (``claims``, outside the reports), so worker processes never share
+    a folder; folders of earlier runs are reused."""
+    from ..files import prepare_folder
+
+    for k in range(1, 100_000):
+        name = base if k == 1 else f"{base}_{k}"
+        try:
+            fd = os.open(os.path.join(claims, name), os.O_CREAT | os.O_EXCL | os.O_WRONLY, 0o600)
+        except FileExistsError:
+            continue
+        os.close(fd)
+        folder = root / name
+        prepare_folder(folder)
+        return folder
+    raise AssaycutError(f"{root}: too many assays named like {base!r}")
+
+
+CLAIMS: list[str] = []
+"""Claims folders of running batches (removed at the end, and by the SIGTERM handler)."""
+
+
+def new_claims() -> str:
+    """A fresh claims folder for one batch run."""
+    import tempfile
+
+    d = tempfile.mkdtemp(prefix="assaycut-claims-")
+    CLAIMS.append(d)
+    return d
+
+
+def release_claims(claims: str = "") -> None:
+    """Remove a batch run's claims folder (all of them when ``claims`` is empty)."""
+    import shutil
+
+    for d in [claims] if claims else list(CLAIMS):
+        if d:
+            shutil.rmtree(d, ignore_errors=True)
+            if d in CLAIMS:
+                CLAIMS.remove(d)
 
 
 def run_one(path: str, job: YieldJob, progress=None):
@@ -55,7 +101,13 @@ def run_one(path: str, job: YieldJob, progress=None):
         if job.report_root is not None:
             from ..report.write import slug, write_yield_report
 
-            folder = job.report_root if job.single_folder else job.report_root / slug(assay.name)
+            if job.single_folder or not job.claims:
+                folder = job.report_root if job.single_folder else job.report_root / slug(assay.name)
+            else:
+                folder = claim_folder(job.report_root, slug(assay.name), job.claims)
+                if folder.name != slug(assay.name):
+                    result.warnings.append(f"report folder {folder.name!r}: {slug(assay.name)!r} is taken by "
+                                           f"another assay of this run with a similar name")
             written = write_yield_report(result, folder, job.inputs, job.unit)
         return result, written, None
     except AssaycutError as exc:
@@ -66,9 +118,45 @@ def run_one(path: str, job: YieldJob, progress=None):
         return None, [], f"{path}: unexpected {type(exc).__name__}: {exc} (please report this with the file)"
 
 
+_PARENT = {"pid": None}
+ACTIVE_POOLS: list = []
+"""Worker pools running now (killed by the SIGTERM handler of :func:`assaycut.cli.main`)."""
+
+
+def _worker_init(parent_pid: int) -> None:
+    """Worker start: leave Ctrl-C to the parent (it cancels the batch), and die with the parent: on Linux the
+    kernel sends SIGKILL when the parent dies (prctl PR_SET_PDEATHSIG); elsewhere each task checks the
+    parent first."""
+    import signal
+
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    _PARENT["pid"] = parent_pid
+    try:
+        import ctypes
+
+        libc = ctypes.CDLL("libc.so.6", use_errno=True)
+        libc.prctl(1, signal.SIGKILL, 0, 0, 0)  # PR_SET_PDEATHSIG = 1
+    except (OSError, AttributeError):
+        pass
+    if os.getppid() != parent_pid:  # the parent died before the line above
+        os._exit(1)
+
+
 def _worker(args):
     path, job = args
+    if _PARENT["pid"] is not None and os.getppid() != _PARENT["pid"]:
+        os._exit(1)  # orphaned: never write for a dead parent
     return run_one(path, job)
+
+
+def kill_pools() -> None:
+    """Kill the worker processes of every running pool at once (Ctrl-C, SIGTERM)."""
+    import contextlib
+
+    for pool in list(ACTIVE_POOLS):
+        for proc in list(getattr(pool, "_processes", {}).values()):
+            with contextlib.suppress(Exception):
+                proc.kill()
 
 
 def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, progress: bool | None = None):
@@ -101,12 +189,26 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
         if parallel:
             from concurrent.futures import ProcessPoolExecutor, as_completed
 
-            with ProcessPoolExecutor(max_workers=min(cores, len(paths))) as pool:
+            pool = ProcessPoolExecutor(max_workers=min(cores, len(paths)), initializer=_worker_init,
+                                       initargs=(os.getpid(),))
+            ACTIVE_POOLS.append(pool)
+            futs: dict = {}
+            try:
                 futs = {pool.submit(_worker, (p, job)): i for i, p in enumerate(paths)}
                 for f in as_completed(futs):
                     outcomes[futs[f]] = f.result()
                     if bar:
                         bar.advance()
+            except BaseException:  # Ctrl-C or an error: cancel what is pending and stop the workers now
+                for f in futs:
+                    f.cancel()
+                kill_pools()
+                pool.shutdown(wait=False, cancel_futures=True)
+                raise
+            else:
+                pool.shutdown(wait=True)
+            finally:
+                ACTIVE_POOLS.remove(pool)
         elif len(paths) == 1 and job.uncertainty_draws:
             with progress_bar("uncertainty draws", job.uncertainty_draws) as draws:
                 outcomes[0] = run_one(paths[0], job, progress=draws)

@@ -13,6 +13,7 @@ import functools
 import json
 import math
 import os
+import re
 import sys
 from pathlib import Path
 from typing import Annotated, Optional
@@ -31,9 +32,29 @@ EXIT_INTERNAL = 3
 """Exit code of an unexpected internal error."""
 
 
+_CONTROL = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
+
+
+def printable(text: str) -> str:
+    """Text safe for a terminal: control characters (escape sequences, bells, carriage returns; not newline
+    or tab) shown as \\xNN, so that a file or crude name cannot drive the terminal.
+
+    Examples
+    --------
+    >>> printable("crude\\x1b]0;owned\\x07.xlsx")
+    'crude\\\\x1b]0;owned\\\\x07.xlsx'
+    """
+    return _CONTROL.sub(lambda m: f"\\x{ord(m.group(0)):02x}", text)
+
+
+def say(text: str, err: bool = False) -> None:
+    """A line on stdout (or stderr), control characters made visible (:func:`printable`)."""
+    typer.echo(printable(str(text)), err=err)
+
+
 def error_line(msg: str) -> None:
     """One error line on stderr."""
-    typer.echo(f"assaycut: error: {msg}", err=True)
+    say(f"assaycut: error: {msg}", err=True)
 
 
 def echo_json(doc) -> None:
@@ -44,7 +65,7 @@ def echo_json(doc) -> None:
 def echo_lines(lines: list[str]) -> None:
     """Text lines on stdout."""
     for line in lines:
-        typer.echo(line)
+        say(line)
 
 
 class ProgressBar:
@@ -53,7 +74,13 @@ class ProgressBar:
 
     def __init__(self, label: str, total: int):
         from rich.console import Console
-        from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeRemainingColumn
+        from rich.progress import (
+            BarColumn,
+            MofNCompleteColumn,
+            Progress,
+            TextColumn,
+            TimeRemainingColumn,
+        )
 
         self._p = Progress(TextColumn(label), BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
                            console=Console(stderr=True), transient=True)

@@ -29,6 +29,7 @@ from .common import (
     load_prices,
     parse_ends,
     resolve_assays,
+    say,
 )
 
 app = typer.Typer()
@@ -98,7 +99,7 @@ def compare(
     from ..report.console import compare_text, written_text
 
     echo_lines(compare_text(table, worth, ps.currency if ps else None, WORTH_CAVEAT, inside, bool(uncertainty)))
-    typer.echo(written_text(written))
+    say(written_text(written))
 
 
 def pd_concat(frames):
@@ -192,7 +193,7 @@ def blend(
             return
         new = do_blend(chosen, basis="vol", name=name, shrinkage=shrinkage)
         write_assay_workbook(new, str(out), inputs=tuple(p for p, _ in items))
-        typer.echo(f"Optimal blend written to {out}")
+        say(f"Optimal blend written to {out}")
         return
     if out is None:
         raise AssaycutError("give --out NEW.xlsx for the blended assay")
@@ -206,7 +207,7 @@ def blend(
     from ..report.console import blend_text
 
     echo_lines(blend_text(new))
-    typer.echo(f"Assay workbook written to {out}")
+    say(f"Assay workbook written to {out}")
 
 
 def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield, cuts, folder: Path):
@@ -244,5 +245,5 @@ def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min
     files = {"blend_plan.png": png_bytes(plot_blend_plan, plan), "blend_plan.xlsx": buf.getvalue(),
              "blend_plan.json": (json.dumps(blend_plan_json(plan), indent=2, ensure_ascii=False) + "\n").encode()}
     written = place_files(folder, files, tuple(p for p, _, _ in parents))
-    typer.echo(f"  Plan written to {written[0].parent} (blend_plan.json, .xlsx, .png)")
+    say(f"  Plan written to {written[0].parent} (blend_plan.json, .xlsx, .png)")
     return plan, parents

@@ -9,7 +9,7 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import AssaycutError
-from .common import JsonOpt, TdMethod, TUnit, echo_json, echo_lines, guarded
+from .common import JsonOpt, TdMethod, TUnit, echo_json, echo_lines, guarded, say
 
 app = typer.Typer()
 
@@ -80,7 +80,7 @@ def convert(
         echo_lines(convert_text(frm.value, to.value, used, pts, out, "°F" if fahrenheit else "°C",
                                 c_to_f if fahrenheit else (lambda x: x), filled_inputs(pts, frm.value, to.value)))
     for w in warnings:
-        typer.echo(f"warning: {w}", err=True)
+        say(f"warning: {w}", err=True)
 
 
 def _points_from_args(points: list[str] | None, fahrenheit: bool) -> dict[float, float]:

@@ -25,6 +25,7 @@ from .common import (
     load_prices,
     parse_ends,
     progress_bar,
+    say,
 )
 
 app = typer.Typer()
@@ -83,8 +84,8 @@ def vectors(
     from ..report.console import written_text
 
     for name, base, deltas in entries:
-        typer.echo(f"{name}: base cut table and per-°C vectors for {len(deltas)} cut points (±{VECTOR_STEP_C:g} °C)")
-    typer.echo(written_text(written, "Vectors"))
+        say(f"{name}: base cut table and per-°C vectors for {len(deltas)} cut points (±{VECTOR_STEP_C:g} °C)")
+    say(written_text(written, "Vectors"))
 
 
 @app.command()
@@ -126,11 +127,11 @@ def shift(
     from ..report.studyreports import shift_csv
     from ..report.write import place_files, slug
 
-    typer.echo(f"{a.name}: cut-point change " + ", ".join(f"{k} -> {v:g} °C" for k, v in parse_ends(end).items()))
-    typer.echo(shift_text(delta))
+    say(f"{a.name}: cut-point change " + ", ".join(f"{k} -> {v:g} °C" for k, v in parse_ends(end).items()))
+    say(shift_text(delta))
     written = place_files(out or Path("reports") / slug(a.name), {f"{slug(a.name)}_shift.csv": shift_csv(delta)},
                           (path,))
-    typer.echo(written_text(written))
+    say(written_text(written))
 
 
 @app.command()
@@ -176,7 +177,7 @@ def sweep(
     from ..report.console import sweep_text, written_text
 
     echo_lines(sweep_text(a.name, df))
-    typer.echo(written_text(written, "Sweep"))
+    say(written_text(written, "Sweep"))
 
 
 @app.command()
@@ -256,6 +257,6 @@ def optimize(
         from ..report.console import optimum_text
 
         echo_lines(optimum_text(a.name, what, unit, res, cs, before.cuts, after.cuts))
-        typer.echo(f"Plot written to {written[0]}")
+        say(f"Plot written to {written[0]}")
     if not res.feasible:
         raise typer.Exit(EXIT_NO_ANSWER)

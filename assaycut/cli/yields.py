@@ -31,6 +31,7 @@ from .common import (
     load_cut_set,
     load_limits,
     resolve_assays,
+    say,
 )
 
 app = typer.Typer()
@@ -94,7 +95,7 @@ def yields(
     (exit code 2 at the end).
     """
     from ..studies.uncertainty import Sigmas
-    from .batch import YieldJob, run_batch
+    from .batch import YieldJob, new_claims, release_claims, run_batch
 
     cs = load_cut_set(cuts, end, overlap)
     lim = load_limits(limits)
@@ -105,8 +106,16 @@ def yields(
     job = YieldJob(cs, lim, method.value, (api, sg, density, sulfur), root,
                    single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
                    sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
-                   unit=unit.value)
-    results, written, failures = run_batch(paths, job)
+                   unit=unit.value, claims=new_claims() if root is not None and len(paths) > 1 else "")
+    try:
+        results, written, failures = run_batch(paths, job)
+    finally:
+        if job.claims:
+            release_claims(job.claims)
+    suffixed = [w for r in results for w in r.warnings if w.startswith("report folder ")]
+    if suffixed and (json_out or len(results) > BRIEF_OVER):
+        say(f"note: {len(suffixed)} report folder(s) took a suffix because crude names gave the same folder name: "
+            + "; ".join(suffixed[:5]) + (" ..." if len(suffixed) > 5 else ""), err=True)
     if len(paths) == 1 and failures:
         raise AssaycutError(failures[0][1])
     for _, msg in failures:
@@ -133,15 +142,15 @@ def _print_report(results, written, n_cuts: int, unit: str = "C") -> None:
     from ..report.console import FLASH_FOOTNOTE, written_text, yield_text
 
     if len(results) > BRIEF_OVER:
-        typer.echo(f"{len(results)} assays cut with {n_cuts} cuts; see the library summary.")
+        say(f"{len(results)} assays cut with {n_cuts} cuts; see the library summary.")
     else:
         for r in results:
             echo_lines(yield_text(r, unit))
             for w in r.warnings:
-                typer.echo(f"warning: {w}", err=True)
-    typer.echo(FLASH_FOOTNOTE)
+                say(f"warning: {w}", err=True)
+    say(FLASH_FOOTNOTE)
     if written:
-        typer.echo(written_text(written))
+        say(written_text(written))
 
 
 @app.command()
@@ -192,4 +201,4 @@ def template(
     from ..io.assaywriter import write_assay_workbook
 
     write_assay_workbook(None, str(path))
-    typer.echo(f"Blank assay workbook written to {path}")
+    say(f"Blank assay workbook written to {path}")

@@ -32,7 +32,13 @@ from ..methods.characterisation import meabp_pseudo_components
 from ..methods.d86 import D86_STD
 from ..model.crude import CrudeModel
 from .cutset import CutSet
-from .ideal import LIGHT_ENDS_MAX_C, columns_frame, cut_columns, derive_qualities, first_row
+from .ideal import (
+    LIGHT_ENDS_MAX_C,
+    columns_frame,
+    cut_columns,
+    derive_qualities,
+    first_row,
+)
 from .qualities import product_quality_columns
 
 Z95 = 1.6448536269514722

@@ -17,6 +17,9 @@ from ..model.assay import Assay
 from .cells import SourceLocation, gravity_from_inputs, parse_curve_rows, read_bytes
 from .layout import MAX_ROWS
 
+MAX_FIELD_CHARS = 1000
+"""Longest CSV field read (a number or a header needs a few characters)."""
+
 
 def read_curve_csv(path: str, *, api: float | None = None, sg: float | None = None,
                    density: float | None = None, sulfur: float | None = None, data: bytes | None = None,
@@ -53,6 +56,7 @@ def read_curve_csv(path: str, *, api: float | None = None, sg: float | None = No
                          "temp_c/temp_f/temp_k", file=path) from None
     if "\x00" in text:
         raise InputError("contains binary data; expected a CSV text file", file=path)
+    text = text.replace("\r\n", "\n").replace("\r", "\n")  # CR-only and mixed line endings are accepted
     lines = text.splitlines()
     if not any(line.strip() for line in lines):
         raise InputError("the file has no rows", file=path)
@@ -61,12 +65,20 @@ def read_curve_csv(path: str, *, api: float | None = None, sg: float | None = No
     first = next(line for line in lines if line.strip())
     delim = ";" if first.count(";") > first.count(",") else ","
     rows = []
-    for raw in csv.reader(io.StringIO(text), delimiter=delim):
-        row = [c.strip() for c in raw]
-        if delim == ";":
-            row = [c.replace(",", ".") if c.replace(",", "").replace(".", "").lstrip("+-").isdigit() else c
-                   for c in row]
-        rows.append(row)
+    reader = csv.reader(io.StringIO(text), delimiter=delim)
+    try:
+        for raw in reader:
+            if any(len(c) > MAX_FIELD_CHARS for c in raw):
+                raise InputError(f"a field longer than {MAX_FIELD_CHARS} characters; expected numbers",
+                                 file=path, row=reader.line_num)
+            row = [c.strip() for c in raw]
+            if delim == ";":
+                row = [c.replace(",", ".") if c.replace(",", "").replace(".", "").lstrip("+-").isdigit() else c
+                       for c in row]
+            rows.append(row)
+    except csv.Error as exc:
+        raise InputError(f"not a readable CSV ({exc}); expected two columns of numbers", file=path,
+                         row=reader.line_num) from None
     h = next((i for i, r in enumerate(rows) if any(c for c in r)), None)
     if h is None:
         raise InputError("the file has no values; expected a header vol_pct/wt_pct, temp_c/temp_f/temp_k and points",

@@ -25,6 +25,9 @@ def _load(path: str) -> dict:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError(f"not valid TOML: {exc}", file=path) from None
+    except RecursionError:
+        raise InputError("TOML nested too deeply; a cut, limits or price file is flat tables of numbers and "
+                         "texts", file=path) from None
 
 
 def _temp(v, key: str, i: int, path: str) -> float:

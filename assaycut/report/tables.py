@@ -289,14 +289,31 @@ def text_table(cuts) -> str:
     return "\n".join(lines)
 
 
+def md(text) -> str:
+    """Text for a Markdown line or table cell: line breaks and control characters become spaces, HTML and
+    Markdown markup characters are escaped, '|' becomes '/'.
+
+    Examples
+    --------
+    >>> md("Crude <b>A</b>\\n# owned | *x*")
+    'Crude &lt;b&gt;A&lt;/b&gt; \\\\# owned / \\\\*x\\\\*'
+    """
+    import html
+    import re
+
+    t = re.sub(r"[\x00-\x1f\x7f-\x9f]", " ", str(text))
+    t = html.escape(t, quote=False).replace("|", "/")
+    return re.sub(r"([\\`*_\[\]#!~])", r"\\\1", t)
+
+
 def markdown_summary(result) -> str:
-    """A short Markdown summary of one yield result."""
+    """A short Markdown summary of one yield result (names and texts escaped by :func:`md`)."""
     a = result.assay
     m = result.model
-    out = [f"# Yield report: {a.name}", "",
+    out = [f"# Yield report: {md(a.name)}", "",
            "*Estimates for screening and planning, not measured properties.*", "",
-           f"- Source: `{a.source}` (sha256 `{a.sha256[:16]}...`)",
-           f"- Origin: {a.origin or '-'}",
+           f"- Source: `{md(a.source).replace('`', '')}` (sha256 `{a.sha256[:16]}...`)",
+           f"- Origin: {md(a.origin) if a.origin else '-'}",
            f"- Whole crude: {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
            + (f"{m.sulfur_wt_pct:.3f} wt %" if m.sulfur_wt_pct is not None else "not given"),
            f"- Curve measured to {pct_text(m.curve.measured_hi)} vol % "
@@ -311,7 +328,7 @@ def markdown_summary(result) -> str:
     for r in result.cuts.to_dict("records"):
         rng = f"{_fmt(r['start_c'], 0) if r['start_c'] == r['start_c'] else 'IBP'}-" \
               f"{_fmt(r['end_c'], 0) if r['end_c'] == r['end_c'] else 'end'}"
-        name = str(safe_text(r["name"])).replace("|", "/") + (" (extrap.)" if r["extrapolated"] else "")
+        name = md(safe_text(r["name"])) + (" (extrap.)" if r["extrapolated"] else "")
         out.append(f"| {name} | {rng} | {_fmt(r['vol_pct'], 2)} | {_fmt(r['wt_pct'], 2)} | {_fmt(r['api'], 1)} | "
                    f"{_fmt(r['sulfur_wt_pct'], 3)} | {_fmt(r['watson_k'], 2)} | "
                    f"{_fmt(r['cetane_index_d4737'], 1)} | {_fmt(r['flash_c_est'], 0)} |")
@@ -319,9 +336,9 @@ def markdown_summary(result) -> str:
         out += ["", "## Product limits", "", "| Cut | Limit | Required | Value | Status |", "|---|---|---|---:|---|"]
         for r in result.limits.to_dict("records"):
             shown = "≥ 95" if is_lower_bound(r["property"], r["value"]) else _fmt(r["value"], 1)
-            out.append(f"| {r['cut']} | {r['label'] or r['property']} | {r['limit']} | {shown} | "
+            out.append(f"| {md(r['cut'])} | {md(r['label'] or r['property'])} | {r['limit']} | {shown} | "
                        f"{r['status'].upper()} |")
     if result.warnings:
-        out += ["", "## Warnings", ""] + [f"- {w}" for w in result.warnings]
-    out += ["", "## Cautions", ""] + [f"- {n}" for n in result.notes]
+        out += ["", "## Warnings", ""] + [f"- {md(w)}" for w in result.warnings]
+    out += ["", "## Cautions", ""] + [f"- {md(n)}" for n in result.notes]
     return "\n".join(out) + "\n"

@@ -8,7 +8,7 @@ import io
 import re
 from pathlib import Path
 
-from ..files import atomic_write, safe_text
+from ..files import atomic_write, check_targets, safe_text
 from .tables import (
     LONG_COLUMNS,
     display_cuts,
@@ -52,7 +52,9 @@ def csv_text(headers: list[str], rows: list[list]) -> str:
 
 
 def place_files(outdir: Path, files: dict[str, bytes], inputs: tuple[str, ...]) -> list[Path]:
-    """Write rendered files into ``outdir``, each atomically."""
+    """Write rendered files into ``outdir``, each atomically, after checking every target first
+    (:func:`~assaycut.files.check_targets`): a set is not left half-written by a name that is in the way."""
+    check_targets(Path(outdir), list(files), inputs)
     return [atomic_write(outdir / name, _bytes_writer(data), inputs=inputs) for name, data in files.items()]
 
 
