@@ -5,12 +5,14 @@ from __future__ import annotations
 
 import contextlib
 import os
+import re
 import tempfile
 from pathlib import Path
 
 from .errors import InputError
 
 _TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
+_ILLEGAL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")
 
 
 def safe_text(value):
@@ -18,7 +20,8 @@ def safe_text(value):
 
     A string that starts with ``=``, ``+``, ``-``, ``@``, tab or carriage return is prefixed with a single
     quote (the OWASP CSV-injection advice).  A lone "-" (a dimensionless unit, or a missing value) cannot be
-    a formula and stays as it is.  Non-strings are returned unchanged.
+    a formula and stays as it is.  Control characters a spreadsheet cannot hold become '?'.  Non-strings
+    are returned unchanged.
 
     Examples
     --------
@@ -27,8 +30,10 @@ def safe_text(value):
     >>> safe_text("Selkie Light"), safe_text("-")
     ('Selkie Light', '-')
     """
-    if isinstance(value, str) and value.startswith(_TRIGGERS) and value != "-":
-        return "'" + value
+    if isinstance(value, str):
+        value = _ILLEGAL.sub("?", value)  # characters a spreadsheet cannot hold (XML 1.0) shown as '?'
+        if value.startswith(_TRIGGERS) and value != "-":
+            return "'" + value
     return value
 
 

@@ -121,8 +121,14 @@ def sg_to_api(sg):
     60.62491514
     """
     if np.isscalar(sg):
+        if not sg > 0:
+            from .errors import ConversionError
+
+            raise ConversionError(f"specific gravity must be positive; got {sg!r}")
         return 141.5 / sg - 131.5
-    return 141.5 / np.asarray(sg, dtype=float) - 131.5
+    with np.errstate(divide="ignore", invalid="ignore"):  # array rows: SG <= 0 gives NaN, not inf
+        arr = np.asarray(sg, dtype=float)
+        return np.where(arr > 0, 141.5 / np.where(arr > 0, arr, 1.0) - 131.5, np.nan)
 
 
 def _thermal_factor_60f_to_15c(rho60):

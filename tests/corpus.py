@@ -151,7 +151,7 @@ def _(d):
     return ["yields", str(p)], [p]
 
 
-@case("workbook_50_mb", r"the file is 5\d MB; assaycut reads files up to")
+@case("workbook_50_mb", r"the file is 5\d\.\d MB; assaycut reads files up to 20 MB")
 def _(d):
     import os
 
@@ -346,7 +346,7 @@ def _xml_case(name, sheet, fn, expect):
     @case(name, expect)
     def _(d):
         p = rezip(_book(d, f"{name}.xlsx"), {SHEET_XML[sheet]: fn})
-        return ["yields", str(p), "--json"], [p]
+        return ["yields", str(p)], [p]
 
 
 def _sub(old: bytes, new: bytes, count: int = 1):
@@ -396,6 +396,8 @@ _xml_case("bad_shared_string_index", "crude",
           _sub(b'<c r="A1" t="inlineStr"><is><t>Whole-crude data (test)</t></is></c>', b'<c r="A1" t="s"><v>99999</v></c>'),
           r"sheet 'crude'.*damaged sheet XML")
 _xml_case("bad_cell_reference", "distillation", _sub(b'r="A8"', b'r="8A"'), r"sheet 'distillation'.*damaged sheet XML")
+_xml_case("bad_date_serial", "distillation", _sub(b'<c r="B8" t="n"><v>150</v></c>', b'<c r="B8" t="d"><v>soon</v></c>'),
+          r"sheet 'distillation'.*damaged sheet XML")
 _xml_case("truncated_sheet", "distillation", lambda x: x[: len(x) // 2], r"sheet 'distillation'.*damaged sheet XML")
 
 
@@ -421,20 +423,27 @@ def _(d):
     return ["yields", str(p)], [p]
 
 
+@case("csv_name_with_control_characters", None)
+def _(d):  # the crude name of a curve CSV is its file name: control characters become "_"
+    p = d / "crude\x07bell.csv"
+    p.write_text("vol_pct,temp_c\n2,20\n10,90\n30,180\n50,270\n70,380\n90,520\n")
+    return ["yields", str(p), "--api", "30", "--out", str(d / "out")], [p]
+
+
 @case("crude_name_too_long", r"the crude name is 30000 characters long; at most 200")
 def _(d):
     p = _book(d, "long.xlsx", set_cell("crude", 2, 1, "N" * 30_000))
     return ["yields", str(p)], [p]
 
 
-@case("cut_name_too_long", r"name is 2000 characters long; at most 200")
+@case("cuts_name_too_long", r"name is 2000 characters long; at most 200")
 def _(d):
     p = d / "cuts.toml"
     p.write_text(f'[[cut]]\nname = "{"k" * 2000}"\nend_c = 200\n[[cut]]\nname = "rest"\n')
     return ["yields", "--cuts", str(p)], [p]
 
 
-@case("too_many_cuts", r"5000 cuts; a cut set holds at most 100")
+@case("cuts_too_many", r"5000 cuts; a cut set holds at most 100")
 def _(d):
     p = d / "cuts.toml"
     p.write_text("".join(f'[[cut]]\nname = "c{i}"\nend_c = {i * 0.1}\n' for i in range(4999))
@@ -442,11 +451,93 @@ def _(d):
     return ["yields", "--cuts", str(p)], [p]
 
 
-@case("control_character_in_cut_name", r"name holds a control character")
+@case("cuts_control_character_in_name", r"name holds a control character")
 def _(d):
     p = d / "cuts.toml"
     p.write_text('[[cut]]\nname = "naph\\u001b]0;x\\u0007"\nend_c = 200\n[[cut]]\nname = "rest"\n')
     return ["yields", "--cuts", str(p)], [p]
+
+
+# -- numbers out of range, odd outputs --------------------------------------------------------------------
+_toml_case("cuts_nested_too_deeply", "x = " + "[" * 5000 + "]" * 5000 + "\n", r"TOML nested too deeply")
+_price_case("prices_huge", "[products]\n" + _ALL + '"vacuum residue" = { per_t = 1e308 }\n',
+            r"the price 1e\+308 is out of range")
+
+
+@case("convert_nan", r"'50=nan': expected PERCENT=TEMP with finite numbers")
+def _(d):
+    return ["convert", "10=100", "50=nan", "90=300", "--json"], []
+
+
+@case("convert_inf", r"'50=inf': expected PERCENT=TEMP with finite numbers")
+def _(d):
+    return ["convert", "10=100", "50=inf", "90=300", "--json"], []
+
+
+@case("convert_huge_temperature", r"'50=1e308': the temperature must lie between absolute zero and 1500 °C")
+def _(d):
+    return ["convert", "10=100", "50=1e308", "90=300", "--json"], []
+
+
+@case("convert_d1160_pressure_too_high", r"pressure 1000000.0 mmHg is outside 0.01-1520 mmHg")
+def _(d):
+    return ["convert", "10=100", "50=200", "90=300", "--from", "D1160", "--to", "AET", "--pressure-mmhg", "1e6"], []
+
+
+@case("convert_d1160_pressure_too_low", r"pressure 1e-09 mmHg is outside 0.01-1520 mmHg")
+def _(d):
+    return ["convert", "10=100", "50=200", "90=300", "--from", "D1160", "--to", "AET", "--pressure-mmhg", "1e-9"], []
+
+
+@case("d1160_pressure_out_of_range", r"sheet 'distillation': a D1160 curve needs its pressure in mmHg \(0.01-1520\); "
+                                    r"got 1000000.0$")
+def _(d):
+    def m(s):
+        s["distillation"][1][1] = "D1160"
+        s["distillation"][2][1] = 1e6
+    p = _book(d, "d1160.xlsx", m)
+    return ["yields", str(p)], [p]
+
+
+def _blend_bounds_case(name, bound, expect):
+    @case(name, expect)
+    def _(d):
+        from assaycut.io.tomlfiles import demo_assay_paths
+
+        a, b = demo_assay_paths()[:2]
+        return ["blend", "--optimize", f"{a}={bound}", str(b), "--prices", str(_DEMO_PRICES), "--out",
+                str(d / "mix.xlsx")], []
+
+
+_DEMO_PRICES = Path(__file__).resolve().parent.parent / "assays_demo" / "prices_demo.toml"
+_blend_bounds_case("blend_bounds_outside_0_100", "-50:150", r"share bounds -50:150 % for .*from 0 to 100 %")
+_blend_bounds_case("blend_bounds_nan", "nan:50", r"share bounds nan:50 % for .*from 0 to 100 %")
+_blend_bounds_case("blend_bounds_reversed", "60:20", r"share bounds 60:20 % for .*the minimum is above the maximum")
+
+
+@case("csv_field_too_long", r"long.csv, row 2: not a readable CSV \(field larger than field limit")
+def _(d):
+    p = d / "long.csv"
+    p.write_text("vol_pct,temp_c\n10," + "1" * 200_000 + "\n50,200\n")
+    return ["yields", str(p), "--api", "30"], [p]
+
+
+@case("csv_cr_only_line_endings", None)
+def _(d):
+    p = d / "mac.csv"
+    p.write_bytes(b"vol_pct,temp_c\r2,20\r10,90\r30,180\r\n50,270\n70,380\r90,520\r")
+    return ["yields", str(p), "--api", "30", "--out", str(d / "out")], [p]
+
+
+@case("out_is_dev_null", r"/dev/null: is not a folder")
+def _(d):
+    return ["yields", "--out", "/dev/null"], []
+
+
+@case("out_blocked_by_a_folder", r"a folder named 'Selkie_Light_cuts.csv' is in the way")
+def _(d):
+    (d / "out" / "Selkie_Light_cuts.csv").mkdir(parents=True)
+    return ["yields", "--out", str(d / "out")], []
 
 
 if __name__ == "__main__":  # pragma: no cover - writes the corpus for inspection

@@ -111,7 +111,8 @@ def run_one(path: str, job: YieldJob, progress=None):
             written = write_yield_report(result, folder, job.inputs, job.unit)
         return result, written, None
     except AssaycutError as exc:
-        return None, [], str(exc)
+        msg = str(exc)  # errors from the core (a curve that cannot be modelled) name the file here
+        return None, [], msg if msg.startswith(str(path)) else f"{path}: {msg}"
     except MemoryError:
         return None, [], f"{path}: out of memory; the input is too large"
     except Exception as exc:  # a batch goes on; the failure is reported with its path
@@ -128,7 +129,9 @@ def _worker_init(parent_pid: int) -> None:
     kernel sends SIGKILL when the parent dies (prctl PR_SET_PDEATHSIG); elsewhere each task checks the
     parent first."""
     import signal
+    import warnings
 
+    warnings.simplefilter("ignore")  # library warnings are not our output (as in cli.common.guarded)
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     _PARENT["pid"] = parent_pid
     try:

@@ -15,6 +15,7 @@ import math
 import os
 import re
 import sys
+import warnings
 from pathlib import Path
 from typing import Annotated, Optional
 
@@ -57,9 +58,20 @@ def error_line(msg: str) -> None:
     say(f"assaycut: error: {msg}", err=True)
 
 
+def _finite(doc):
+    """``doc`` with every non-finite float replaced by None (JSON has no NaN or Infinity)."""
+    if isinstance(doc, float):
+        return doc if math.isfinite(doc) else None
+    if isinstance(doc, dict):
+        return {k: _finite(v) for k, v in doc.items()}
+    if isinstance(doc, (list, tuple)):
+        return [_finite(v) for v in doc]
+    return doc
+
+
 def echo_json(doc) -> None:
-    """A JSON document on stdout, indented, non-ASCII kept."""
-    typer.echo(json.dumps(doc, indent=2, ensure_ascii=False))
+    """A JSON document on stdout, indented, non-ASCII kept; never NaN or Infinity (strict JSON)."""
+    typer.echo(json.dumps(_finite(doc), indent=2, ensure_ascii=False, allow_nan=False))
 
 
 def echo_lines(lines: list[str]) -> None:
@@ -119,12 +131,15 @@ def interrupted() -> None:
 
 
 def guarded(func):
-    """Turn AssaycutErrors into one line on stderr and exit code 2; never a traceback."""
+    """Turn AssaycutErrors into one line on stderr and exit code 2; never a traceback; library warnings
+    (numpy RuntimeWarnings, openpyxl UserWarnings, matplotlib glyph warnings) never reach stderr."""
 
     @functools.wraps(func)
     def wrapper(*args, **kwargs):
         try:
-            return func(*args, **kwargs)
+            with warnings.catch_warnings():  # library warnings (numpy, openpyxl, matplotlib) are not our output
+                warnings.simplefilter("ignore")
+                return func(*args, **kwargs)
         except (typer.Exit, typer.Abort):
             raise
         except AssaycutError as exc:

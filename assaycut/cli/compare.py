@@ -180,20 +180,20 @@ def blend(
 
     if out is not None and out.suffix.lower() != ".xlsx":
         raise AssaycutError(f"{out}: the blend is written as an assay workbook; give a path ending in .xlsx")
-    if optimize_:
-        plan, parents = _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield, cuts,
-                                        out.parent if out is not None else Path("reports") / "blend")
+    if optimize_:  # every file is written before anything is printed (a closed pipe must not lose them)
+        plan, parents, lines = _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield,
+                                               cuts, out.parent if out is not None else Path("reports") / "blend")
+        if plan.feasible and out is not None:
+            chosen = [(a, m, plan.shares_pct[a.name]) for _, a, m in parents if plan.shares_pct[a.name] > 1e-6]
+            total = sum(x for _, _, x in chosen)
+            chosen = [(a, m, x * 100.0 / total) for a, m, x in chosen]
+            new = do_blend(chosen, basis="vol", name=name, shrinkage=shrinkage)
+            write_assay_workbook(new, str(out), inputs=tuple(p for p, a, _ in parents
+                                                             if plan.shares_pct[a.name] > 1e-6))
+            lines.append(f"Optimal blend written to {out}")
+        echo_lines(lines)
         if not plan.feasible:
             raise typer.Exit(EXIT_NO_ANSWER)
-        items = [(p, plan.shares_pct[a.name]) for p, a, _ in parents if plan.shares_pct[a.name] > 1e-6]
-        chosen = [(a, m, plan.shares_pct[a.name]) for _, a, m in parents if plan.shares_pct[a.name] > 1e-6]
-        total = sum(x for _, _, x in chosen)
-        chosen = [(a, m, x * 100.0 / total) for a, m, x in chosen]
-        if out is None:
-            return
-        new = do_blend(chosen, basis="vol", name=name, shrinkage=shrinkage)
-        write_assay_workbook(new, str(out), inputs=tuple(p for p, _ in items))
-        say(f"Optimal blend written to {out}")
         return
     if out is None:
         raise AssaycutError("give --out NEW.xlsx for the blended assay")
@@ -239,11 +239,10 @@ def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min
     targets = BlendTargets(api_min, api_max, sulfur_max, parse_ends(min_yield, option="--min-yield",
                                                                     what="a yield in vol %"))
     plan = optimize_blend(results, bounds, targets, ps, objective.value)
-    echo_lines(blend_plan_text(plan))
     buf = io.BytesIO()
     blend_plan_workbook(plan).save(buf)
     files = {"blend_plan.png": png_bytes(plot_blend_plan, plan), "blend_plan.xlsx": buf.getvalue(),
              "blend_plan.json": (json.dumps(blend_plan_json(plan), indent=2, ensure_ascii=False) + "\n").encode()}
     written = place_files(folder, files, tuple(p for p, _, _ in parents))
-    say(f"  Plan written to {written[0].parent} (blend_plan.json, .xlsx, .png)")
-    return plan, parents
+    lines = blend_plan_text(plan) + [f"  Plan written to {written[0].parent} (blend_plan.json, .xlsx, .png)"]
+    return plan, parents, lines

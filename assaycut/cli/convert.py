@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import enum
+import math
 from pathlib import Path
 from typing import Annotated, Optional
 
@@ -37,8 +38,8 @@ def convert(
     to: Annotated[ToMethod, typer.Option("--to", help="Method to convert to (AET for D1160 data).")] = ToMethod.TBP,
     method: Annotated[TdMethod, typer.Option("--method", help="Correlation for TBP <-> D86.")] =
     TdMethod.daubert_1994,
-    pressure_mmhg: Annotated[Optional[float], typer.Option("--pressure-mmhg", help="Pressure of D1160 data [mmHg].",
-                                                           min=1e-6)] = None,
+    pressure_mmhg: Annotated[Optional[float], typer.Option("--pressure-mmhg", help="Pressure of D1160 data "
+                                                           "[mmHg], 0.01-1520.")] = None,
     watson_k: Annotated[Optional[float], typer.Option("--watson-k", help="Watson K of D1160 material for the "
                                                       "Maxwell-Bonnell correction (default 12: none).",
                                                       min=8.0, max=14.0)] = None,
@@ -94,6 +95,10 @@ def _points_from_args(points: list[str] | None, fahrenheit: bool) -> dict[float,
             pv, tv = float(p), float(t)
         except ValueError:
             raise AssaycutError(f"{it!r}: expected PERCENT=TEMP with numbers, e.g. 50=206.7") from None
+        if not (math.isfinite(pv) and math.isfinite(tv)):
+            raise AssaycutError(f"{it!r}: expected PERCENT=TEMP with finite numbers")
+        if not (-273.15 < (f_to_c(tv) if fahrenheit else tv) <= 1500.0):
+            raise AssaycutError(f"{it!r}: the temperature must lie between absolute zero and 1500 °C")
         if not sep or not (0.0 <= pv <= 100.0):
             raise AssaycutError(f"{it!r}: expected PERCENT=TEMP with a percent between 0 and 100")
         if pv in pts:

@@ -2,18 +2,21 @@
 
 from __future__ import annotations
 
+import math
+import os
+
 from ..errors import InputError
 from ..model.assay import Assay
 from .cells import read_bytes
 
 
-def load_assay(path: str, *, api: float | None = None, sg: float | None = None, density: float | None = None,
+def load_assay(path: str | os.PathLike, *, api: float | None = None, sg: float | None = None, density: float | None = None,
                sulfur: float | None = None) -> Assay:
     """Read an assay from an .xlsx workbook or a quick-curve .csv, chosen by content and extension.
 
     Parameters
     ----------
-    path : str
+    path : str or path-like
         Assay file.
     api, sg, density, sulfur : float, optional
         Whole-crude data for a curve CSV ([°API], [-], [kg/m3 at 15 °C], [wt %]); refused for a workbook,
@@ -26,6 +29,14 @@ def load_assay(path: str, *, api: float | None = None, sg: float | None = None, 
     from .csvcurve import read_curve_csv
     from .workbook import read_workbook
 
+    if not isinstance(path, (str, os.PathLike)):
+        raise InputError(f"expected a file path; got {type(path).__name__}")
+    path = os.fspath(path)
+    if not isinstance(path, str):
+        path = os.fsdecode(path)
+    for v, what in ((api, "api"), (sg, "sg"), (density, "density"), (sulfur, "sulfur")):
+        if v is not None and (isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v)):
+            raise InputError(f"{what} must be a finite number; got {v!r}", file=path)
     ext = path.lower().rsplit(".", 1)[-1] if "." in path else ""
     if ext not in ("xlsx", "xlsm", "csv", "txt"):
         raise InputError(f"unknown assay file type {'.' + ext if ext else '(no extension)'}; expected .xlsx "

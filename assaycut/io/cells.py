@@ -78,7 +78,7 @@ def read_bytes(path: str) -> bytes:
     if size == 0:
         raise InputError("the file is empty", file=path)
     if size > MAX_BYTES:
-        raise InputError(f"the file is {size / 1e6:.0f} MB; assaycut reads files up to {MAX_BYTES / 1e6:.0f} MB",
+        raise InputError(f"the file is {size / 1e6:.1f} MB; assaycut reads files up to {MAX_BYTES / 1e6:.0f} MB",
                          file=path)
     with open(path, "rb") as fh:
         return fh.read()

@@ -11,11 +11,12 @@ import csv
 import hashlib
 import io
 import os
+import re
 
 from ..errors import InputError
 from ..model.assay import Assay
 from .cells import SourceLocation, gravity_from_inputs, parse_curve_rows, read_bytes
-from .layout import MAX_ROWS
+from .layout import MAX_NAME_CHARS, MAX_ROWS
 
 MAX_FIELD_CHARS = 1000
 """Longest CSV field read (a number or a header needs a few characters)."""
@@ -95,5 +96,6 @@ def read_curve_csv(path: str, *, api: float | None = None, sg: float | None = No
     if sulfur is not None and not 0.0 <= sulfur <= 15.0:
         raise InputError(f"--sulfur {sulfur:g} is outside 0-15 wt %", file=path)
     stem = os.path.splitext(os.path.basename(path))[0]
+    stem = re.sub(r"[\x00-\x1f\x7f-\x9f]", "_", stem)[:MAX_NAME_CHARS] or "curve"  # a file name is not a name
     return Assay(name=name or stem, sg=sgv, sulfur_wt_pct=sulfur, curves=[curve], source=path,
                  sha256=hashlib.sha256(data).hexdigest(), gravity_inputs=grav)

@@ -161,9 +161,17 @@ CRUDE_PRICE_PROPERTIES = ("api", "sg", "density_15c_kg_m3", "sulfur_wt_pct")
 """Whole-crude properties a crude price may be adjusted on (besides the crude sheet's extras)."""
 
 
+MAX_PRICE_NUMBER = 1e9
+"""Largest magnitude of a number in a price file (prices, bounds, adjustments): far above any oil price, far
+below where the worth arithmetic would overflow."""
+
+
 def _number(v, what: str, path: str) -> float:
     if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v):
         raise InputError(f"{what} must be a number; found {v!r}", file=path)
+    if abs(v) > MAX_PRICE_NUMBER:
+        raise InputError(f"{what} {v:g} is out of range; a price file's numbers lie within ±{MAX_PRICE_NUMBER:g}",
+                         file=path)
     return float(v)
 
 

@@ -266,6 +266,9 @@ def _read_crude(ws, loc: SourceLocation):
                           f"(e.g. pour_point_c)", r, "field")
     if not name:
         raise loc.err("no crude name: add a row 'name | <crude name>'")
+    for key, text in (("name", name), ("origin", origin)):
+        if any(ord(ch) < 32 or 127 <= ord(ch) < 160 for ch in text):
+            raise loc.err(f"the crude {key} holds a control character (e.g. a line break); use plain text")
     if len(name) > MAX_NAME_CHARS or len(origin) > MAX_NAME_CHARS:
         raise loc.err(f"the crude {'name' if len(name) > MAX_NAME_CHARS else 'origin'} is "
                       f"{max(len(name), len(origin))} characters long; at most {MAX_NAME_CHARS} are accepted")

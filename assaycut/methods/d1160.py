@@ -75,6 +75,11 @@ def watson_k_factor(t_ref_c):
     return np.clip((c_to_f(np.asarray(t_ref_c, dtype=float)) - 200.0) / 200.0, 0.0, 1.0)
 
 
+PRESSURE_RANGE_MMHG = (0.01, 1520.0)
+"""Pressures accepted for the Maxwell-Bonnell conversion: about 0.01 mmHg to 2 atm, the span of the published
+charts behind API TDB 5A1.19 (recalled from memory; check the current edition). [mmHg]"""
+
+
 def vacuum_to_aet_maxwell_bonnell(temp_c, pressure_mmhg: float, watson_k: float | None = None):
     """Vacuum distillation temperature to atmospheric equivalent temperature (AET), Maxwell-Bonnell [1]_.
 
@@ -107,8 +112,8 @@ def vacuum_to_aet_maxwell_bonnell(temp_c, pressure_mmhg: float, watson_k: float 
 
     Notes
     -----
-    Valid range: petroleum fractions distilled at about 0.1-760 mmHg [2]_; D1160 is a vacuum method, and
-    callers warn above 760 mmHg.
+    Valid range: petroleum fractions distilled at :data:`PRESSURE_RANGE_MMHG` (outside it a ConversionError);
+    D1160 is a vacuum method, and callers warn above 760 mmHg.
 
     References
     ----------
@@ -127,8 +132,10 @@ def vacuum_to_aet_maxwell_bonnell(temp_c, pressure_mmhg: float, watson_k: float 
     >>> round(float(vacuum_to_aet_maxwell_bonnell((365 - 32) / 1.8, 10.0, watson_k=12.5)) * 1.8 + 32, 1)
     625.5
     """
-    if not (pressure_mmhg > 0 and math.isfinite(pressure_mmhg)):
-        raise ConversionError(f"pressure must be a positive number of mmHg; got {pressure_mmhg}")
+    lo, hi = PRESSURE_RANGE_MMHG
+    if not (isinstance(pressure_mmhg, (int, float, np.floating)) and lo <= pressure_mmhg <= hi):
+        raise ConversionError(f"pressure {pressure_mmhg!r} mmHg is outside {lo:g}-{hi:g} mmHg, the range of the "
+                              f"Maxwell-Bonnell correlation (ASTM D1160 itself runs at about 1-50 mmHg)")
     if watson_k is not None and not (math.isfinite(watson_k) and 8.0 <= watson_k <= 14.0):
         raise ConversionError(f"Watson K must be a number between 8 and 14; got {watson_k}")
     q = maxwell_bonnell_q(pressure_mmhg)

@@ -136,3 +136,84 @@ class Assay:
     def api(self) -> float:
         """Whole-crude API gravity. [°API]"""
         return sg_to_api(self.sg)
+
+
+CURVE_METHODS = ("TBP", "D86", "D2887", "D1160")
+"""Distillation methods a curve may be given in."""
+SG_RANGE = (0.5, 1.3)
+"""Whole-crude specific gravities accepted from the library API (0.5 is about 150 °API; the readers'
+0-100 °API is inside). [-]"""
+
+
+def validate_assay(assay) -> None:
+    """Check an :class:`Assay` built by code (the library API) as the readers check files: whole-crude
+    gravity and sulfur in range, at least one curve, each curve's arrays finite, of equal length, percents
+    within 0-100 and temperatures above absolute zero, a D1160 curve with its pressure, narrow-cut columns
+    of equal length.
+
+    Raises
+    ------
+    InputError
+        Naming the assay's source (when it has one) and what was expected.
+    """
+    import math
+
+    from ..errors import InputError
+
+    src = getattr(assay, "source", "") or None
+
+    def bad(msg, whole_crude=True):
+        raise InputError(msg, file=src if whole_crude else None)
+
+    if not isinstance(assay, Assay):
+        raise InputError(f"expected an Assay; got {type(assay).__name__}")
+    if not isinstance(assay.name, str) or not assay.name.strip():
+        bad("the assay has no name")
+    lo, hi = SG_RANGE
+    if isinstance(assay.sg, bool) or not isinstance(assay.sg, (int, float, np.floating)) or not lo <= assay.sg <= hi:
+        bad(f"whole-crude SG {assay.sg!r} is outside {lo:g}-{hi:g}")
+    s = assay.sulfur_wt_pct
+    if s is not None and (isinstance(s, bool) or not isinstance(s, (int, float, np.floating)) or not 0.0 <= s <= 15.0):
+        bad(f"whole-crude sulfur {s!r} wt % is outside 0-15 wt %")
+    if not isinstance(assay.curves, (list, tuple)) or not assay.curves:
+        bad("the assay has no distillation curve")
+    for k, c in enumerate(assay.curves, start=1):
+        where = c.where if isinstance(c, CurveData) else ""
+        what = where or f"curve {k}"
+        if not isinstance(c, CurveData):
+            bad(f"{what}: expected a CurveData; got {type(c).__name__}", not where)
+        if c.method not in CURVE_METHODS:
+            bad(f"{what}: method {c.method!r} is not one of {', '.join(CURVE_METHODS)}", not where)
+        if c.basis not in ("vol", "wt"):
+            bad(f"{what}: basis {c.basis!r}; expected 'vol' or 'wt'", not where)
+        try:
+            p = np.asarray(c.percent, dtype=float)
+            t = np.asarray(c.temp_c, dtype=float)
+        except (TypeError, ValueError):
+            bad(f"{what}: percent and temp_c must be arrays of numbers", not where)
+        if p.ndim != 1 or t.ndim != 1 or p.size != t.size:
+            bad(f"{what}: {p.size} percents against {t.size} temperatures; give one temperature per percent", not where)
+        if p.size < 2:
+            bad(f"{what}: {p.size} point(s); a curve needs at least two", not where)
+        if not (np.all(np.isfinite(p)) and np.all(np.isfinite(t))):
+            bad(f"{what}: percents and temperatures must be finite numbers", not where)
+        if np.any(p < 0) or np.any(p > 100):
+            bad(f"{what}: percents must lie within 0-100 %", not where)
+        if np.any(t <= -273.15) or np.any(t > 1500.0):
+            bad(f"{what}: temperatures must lie above absolute zero and at most 1500 °C", not where)
+        if c.method == "D1160":
+            from ..methods.d1160 import PRESSURE_RANGE_MMHG
+
+            pr = c.pressure_mmhg
+            a, b = PRESSURE_RANGE_MMHG
+            if pr is None or isinstance(pr, bool) or not isinstance(pr, (int, float)) or not a <= pr <= b:
+                bad(f"{what}: a D1160 curve needs its pressure in mmHg ({a:g}-{b:g}); got {pr!r}", not where)
+        if c.watson_k is not None and not (isinstance(c.watson_k, (int, float)) and math.isfinite(c.watson_k)
+                                           and 8.0 <= c.watson_k <= 14.0):
+            bad(f"{what}: Watson K {c.watson_k!r} is outside 8-14", not where)
+    nc = assay.narrow_cuts
+    if nc is not None:
+        cols = [nc.start_c, nc.end_c, nc.vol_pct, nc.wt_pct, nc.sg, nc.sulfur_wt_pct, *nc.extras.values()]
+        sizes = {np.asarray(x).size for x in cols}
+        if len(sizes) != 1:
+            bad("narrow cuts: the columns differ in length")

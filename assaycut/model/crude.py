@@ -22,7 +22,7 @@ import numpy as np
 from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k
 from ..units import pct_text
-from .assay import Assay
+from .assay import Assay, validate_assay
 from .distributions import density_distribution, sulfur_distribution
 from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
@@ -121,7 +121,13 @@ def build_model(assay: Assay, method: str = "daubert-1994") -> CrudeModel:
     Returns
     -------
     CrudeModel
+
+    Raises
+    ------
+    InputError
+        For an assay the readers would have refused (:func:`~assaycut.model.assay.validate_assay`).
     """
+    validate_assay(assay)
     warnings: list[str] = [w for c in assay.curves for w in c.warnings]
     methods: dict[str, str] = {}
     p, t = _tbp_points(assay, method, warnings, methods)

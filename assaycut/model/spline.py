@@ -179,9 +179,11 @@ class Pchip:
         return i, t
 
     def __call__(self, xq):
-        """Value at ``xq`` (held constant beyond the end nodes)."""
+        """Value at ``xq`` (held constant beyond the end nodes; NaN in, NaN out)."""
         i, t = self._locate(xq)
-        return self._hermite(i, t)
+        out = self._hermite(i, t)
+        nan = np.isnan(np.asarray(xq, dtype=float))
+        return np.where(nan, np.nan, out) if np.any(nan) else out
 
     def _hermite(self, i, t):
         return hermite_combine(hermite_basis(t), self.y[i], self.y[i + 1], self.h[i] * self.d[i],
@@ -208,14 +210,15 @@ class Pchip:
         """
         if not np.all(np.diff(self.y) >= 0):
             raise ValueError("inverse needs non-decreasing values")
-        yq = np.clip(np.asarray(yq, dtype=float), self.y[0], self.y[-1])
+        raw = np.asarray(yq, dtype=float)
+        yq = np.clip(np.nan_to_num(raw, nan=self.y[0]), self.y[0], self.y[-1])
         i = np.clip(np.searchsorted(self.y, yq, side="left") - 1, 0, self.x.size - 2)
         h = self.h[i]
         t = hermite_solve(self.y[i], self.y[i + 1], h * self.d[i], h * self.d[i + 1], yq)
         x = self.x[i] + t * h
         # exact at the nodes, where a zero end slope would leave the bisection ~sqrt(eps) short
         x = np.where(yq == self.y[i + 1], self.x[i + 1], x)
-        return np.where(yq == self.y[i], self.x[i], x)
+        return np.where(np.isnan(raw), np.nan, np.where(yq == self.y[i], self.x[i], x))  # NaN in, NaN out
 
 
 def interval_mean(spline, a, b):

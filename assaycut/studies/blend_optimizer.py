@@ -184,6 +184,11 @@ def _share_bounds(bounds: dict[str, tuple[float, float]], names: list[str]):
     unknown = [b for b in bounds if b not in names]
     if unknown:
         raise StudyError(f"share bounds name {unknown[0]!r}, which is not a candidate crude")
+    for nm, (a, b) in bounds.items():
+        if not (np.isfinite(a) and np.isfinite(b) and 0.0 <= a <= 100.0 and 0.0 <= b <= 100.0):
+            raise StudyError(f"share bounds {a:g}:{b:g} % for {nm!r}: each bound must be a number from 0 to 100 %")
+        if a > b:
+            raise StudyError(f"share bounds {a:g}:{b:g} % for {nm!r}: the minimum is above the maximum")
     if np.any(lo > hi) or lo.sum() > 1 + 1e-9 or hi.sum() < 1 - 1e-9:
         raise StudyError(f"the share bounds cannot add up to 100 %: minimums add to {lo.sum() * 100:g} %, "
                          f"maximums to {hi.sum() * 100:g} %")

@@ -106,3 +106,132 @@ def test_help_and_convert_do_not_import_heavy_libraries():
                              env={**os.environ, "PYTHONWARNINGS": "ignore"})
         assert out.returncode == 0, out.stderr
         assert out.stdout.strip() == "[]", (args, out.stdout)
+
+
+def test_report_file_modes_follow_the_umask_and_keep_an_existing_mode(tmp_path):
+    # POSIX: a new file gets 0666 less the umask (0644 under umask 022); replacing a file keeps its mode.
+    old = os.umask(0o022)
+    try:
+        assert runner.invoke(app, ["yields", "--out", str(tmp_path)]).exit_code == 0
+        csvp = tmp_path / "Selkie_Light_cuts.csv"
+        assert csvp.stat().st_mode & 0o777 == 0o644
+        csvp.chmod(0o444)
+        assert runner.invoke(app, ["yields", "--out", str(tmp_path)]).exit_code == 0
+        assert csvp.stat().st_mode & 0o777 == 0o444
+    finally:
+        os.umask(old)
+
+
+def test_report_set_checked_before_any_file_is_written_and_stale_parts_removed(tmp_path):
+    (tmp_path / "Selkie_Light_summary.md").mkdir()
+    r = runner.invoke(app, ["yields", "--out", str(tmp_path)])
+    assert r.exit_code == 2 and "in the way of a report file; nothing was written" in r.stderr
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["Selkie_Light_summary.md"]
+    (tmp_path / "Selkie_Light_summary.md").rmdir()
+    stale = tmp_path / ".Selkie_Light_yields.xlsx.k3j2h1.part"  # left by a killed run
+    stale.write_bytes(b"half")
+    assert runner.invoke(app, ["yields", "--out", str(tmp_path)]).exit_code == 0
+    assert not stale.exists()
+
+
+def test_read_only_report_folder_is_one_line_exit_2(tmp_path, monkeypatch):
+    # root may write anywhere, so the folder's permission check is exercised by refusing write access
+    real = os.access
+    monkeypatch.setattr(os, "access", lambda p, mode: False if str(p) == str(tmp_path) and mode & os.W_OK
+                        else real(p, mode))
+    r = runner.invoke(app, ["yields", "--out", str(tmp_path)])
+    assert r.exit_code == 2
+    assert r.stderr.strip().endswith("the report folder is read-only; give another --out")
+
+
+def test_batch_report_folders_never_collide(tmp_path, book):
+    # "Crude A", "Crude/A" and "Crude:A" give the same folder name; each gets its own folder, and it is said.
+    from tests.corpus import set_cell
+
+    paths = [book(set_cell("crude", 2, 1, n), name=f"c{i}.xlsx") for i, n in enumerate(["Crude A", "Crude/A",
+                                                                                         "Crude:A"])]
+    out = tmp_path / "out"
+    r = runner.invoke(app, ["yields", *map(str, paths), "--out", str(out)])
+    assert r.exit_code == 0, r.stderr
+    folders = sorted(p.name for p in out.iterdir() if p.is_dir())
+    assert folders == ["Crude_A", "Crude_A_2", "Crude_A_3"]
+    assert all(len(list((out / f).glob("*_yields.xlsx"))) == 1 for f in folders)
+    assert r.stderr.count("is taken by another assay of this run") == 2
+    assert not list(out.rglob(".assaycut*"))  # no claim markers left in the reports
+
+
+def test_control_characters_never_reach_the_terminal(tmp_path):
+    p = tmp_path / "crude\x1b]0;owned\x07.csv"
+    p.write_text("vol_pct,temp_c\n10,abc\n")
+    r = runner.invoke(app, ["check", str(p), "--api", "30"])
+    out = r.stdout + r.stderr
+    assert "\x1b" not in out and "\x07" not in out
+    assert "\\x1b]0;owned\\x07" in out
+
+
+def test_markdown_summary_escapes_names(tmp_path, book):
+    from tests.corpus import set_cell
+
+    p = book(set_cell("crude", 2, 1, "Evil <script>alert(1)</script> [link](http://x) *bold*"))
+    assert runner.invoke(app, ["yields", str(p), "--out", str(tmp_path)]).exit_code == 0
+    md = next(tmp_path.glob("*_summary.md")).read_text()
+    first = md.splitlines()[0]
+    assert first == "# Yield report: Evil &lt;script&gt;alert(1)&lt;/script&gt; \\[link\\](http://x) \\*bold\\*"
+    assert "<script>" not in md
+    # a line break in a name cannot reach the summary: the reader refuses control characters in names
+    q = book(set_cell("crude", 2, 1, "Evil\n# injected"), name="nl.xlsx")
+    r = runner.invoke(app, ["yields", str(q), "--out", str(tmp_path / "q")])
+    assert r.exit_code == 2 and "control character" in r.stderr
+
+
+def test_library_warnings_never_reach_stderr(capsys):
+    import warnings
+
+    from assaycut.cli.common import guarded
+
+    @guarded
+    def noisy():
+        import numpy as np
+
+        warnings.warn("glyph missing", UserWarning)
+        return np.log(np.array([0.0]))  # RuntimeWarning: divide by zero
+
+    noisy()
+    assert capsys.readouterr().err == ""
+
+
+def test_blend_plan_files_written_before_printing(tmp_path, demo_paths):
+    # Piped into `head -1`, the command must still write its files (written first, printed after).
+    from tests.helpers import DEMO_PRICES
+
+    out = tmp_path / "mix.xlsx"
+    cmd = (f"{sys.executable} -m assaycut blend --optimize '{demo_paths[0]}=20:60' '{demo_paths[2]}' --prices "
+           f"'{DEMO_PRICES}' --out '{out}' | head -1")
+    r = subprocess.run(cmd, shell=True, capture_output=True, text=True, timeout=120)
+    assert r.stdout.startswith("Optimal blend")
+    assert out.exists() and (tmp_path / "blend_plan.json").exists()
+
+
+def test_core_errors_in_a_batch_name_the_file(tmp_path, monkeypatch):
+    import json
+
+    from assaycut.errors import CurveError
+
+    good = tmp_path / "a.csv"
+    good.write_text("vol_pct,temp_c\n2,20\n10,90\n50,270\n90,520\n")
+    bad = tmp_path / "b.csv"
+    bad.write_text("vol_pct,temp_c\n2,20\n10,90\n50,270\n90,520\n")
+    import assaycut.yields as y
+
+    real = y.build_model
+
+    def fail_for_b(assay, method="daubert-1994"):
+        if assay.name == "b":
+            raise CurveError("the curve cannot be modelled")
+        return real(assay, method)
+
+    monkeypatch.setattr(y, "build_model", fail_for_b)
+    r = runner.invoke(app, ["yields", str(good), str(bad), "--api", "30", "--json"])
+    assert r.exit_code == 2
+    errors = json.loads(r.stdout)["errors"]
+    assert len(errors) == 1 and errors[0].startswith(f"{bad}: the curve cannot be modelled")

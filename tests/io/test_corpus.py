@@ -15,8 +15,12 @@ from tests.helpers import sha256
 runner = CliRunner()
 
 
-def test_corpus_is_large_enough():
+def test_corpus_is_large_enough_and_the_readme_counts_it():
+    from pathlib import Path
+
     assert len(CASES) >= 40
+    readme = (Path(__file__).resolve().parents[2] / "README.md").read_text(encoding="utf-8")
+    assert f"{len(CASES)}-case bad-input corpus" in readme
 
 
 @pytest.mark.parametrize("name,build,expect", CASES, ids=[c[0] for c in CASES])
