@@ -398,6 +398,10 @@ _xml_case("bad_shared_string_index", "crude",
 _xml_case("bad_cell_reference", "distillation", _sub(b'r="A8"', b'r="8A"'), r"sheet 'distillation'.*damaged sheet XML")
 _xml_case("bad_date_serial", "distillation", _sub(b'<c r="B8" t="n"><v>150</v></c>', b'<c r="B8" t="d"><v>soon</v></c>'),
           r"sheet 'distillation'.*damaged sheet XML")
+_xml_case("bad_boolean_cell", "distillation", _sub(b'<c r="B8" t="n"><v>150</v></c>', b'<c r="B8" t="b"><v>maybe</v></c>'),
+          r"sheet 'distillation'")
+_xml_case("bad_style_index", "distillation", _sub(b'<c r="B8" t="n"><v>150</v></c>', b'<c r="B8" s="999"><v>150</v></c>'),
+          None)  # a style that does not exist changes no value: the number is read as it is
 _xml_case("truncated_sheet", "distillation", lambda x: x[: len(x) // 2], r"sheet 'distillation'.*damaged sheet XML")
 
 

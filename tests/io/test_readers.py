@@ -302,3 +302,19 @@ def test_d86_curve_converted_by_chosen_method(book, method):
     d = json.loads(r.stdout)
     assert d["methods"]["curve"] == f"D86 to TBP by {method}"
     assert sum(c["vol_pct"] for c in d["cuts"]) == pytest.approx(100.0, abs=1e-9)
+
+
+def test_understated_dimension_loses_no_row(good_book, tmp_path):
+    # A sheet whose <dimension> claims fewer rows than it holds (A1:B3 on a 12-row curve) is read whole: the
+    # same points as the honest file (identity), none silently dropped.
+    import re
+
+    from tests.corpus import SHEET_XML, rezip
+
+    liar = rezip(good_book, {SHEET_XML["distillation"]: lambda x: re.sub(rb'<dimension ref="[^"]*"\s*/>',
+                                                                            b'<dimension ref="A1:B3"/>', x)},
+                 out=tmp_path / "liar.xlsx")
+    a, b = load_assay(str(good_book)), load_assay(str(liar))
+    np.testing.assert_array_equal(a.curves[0].percent, b.curves[0].percent)
+    np.testing.assert_array_equal(a.curves[0].temp_c, b.curves[0].temp_c)
+    assert a.curves[0].percent.size == 7
