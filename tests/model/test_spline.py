@@ -82,3 +82,39 @@ def test_segment_integrals_match_scipy(tv):
     assert_allclose(got, [s.integrate(a, b) for a, b in zip(t[:-1], t[1:])], rtol=1e-10, atol=1e-9)
     half = segment_antiderivative(0.5, h, v[:-1], v[1:], pchip_slopes(t, v)[:-1], pchip_slopes(t, v)[1:])
     assert_allclose(half, [s.integrate(a, a + w / 2) for a, w in zip(t[:-1], h)], rtol=1e-10, atol=1e-9)
+
+
+def test_fast_inverse_equals_the_reference_and_is_exact():
+    # The fast inverse (table bracket + Newton) against the reference bisection/Newton solve, on the demo
+    # crudes' TBP curves and on random monotone curves with flat steps: equal to 1e-9, and V(T(V)) = V
+    # (identity) to 1e-9.
+    from assaycut.io import load_assay
+    from assaycut.io.tomlfiles import demo_assay_paths
+    from assaycut.model.crude import build_model
+
+    rng = np.random.default_rng(20261202)
+    splines = [build_model(load_assay(p)).curve.spline for p in demo_assay_paths()]
+    for _ in range(200):
+        x = np.unique(rng.uniform(-50.0, 900.0, rng.integers(2, 40)))
+        if x.size < 2:
+            continue
+        y = np.cumsum(rng.choice([0.0, 0.0, 0.5, 3.0, 20.0], x.size) * rng.uniform(0, 1, x.size))
+        splines.append(Pchip(x, y))
+    for s in splines:
+        q = np.concatenate([rng.uniform(s.y[0] - 1.0, s.y[-1] + 1.0, 300), s.y, [np.nan]])
+        fast, ref = s.inverse(q), s.inverse_reference(q)
+        # equal to 1e-9 where the root is well conditioned; where the curve is nearly flat the root moves by
+        # (the reference's own residual + rounding of the curve value) / slope, so the allowance grows by that
+        ok = np.isfinite(q)
+        ymax = max(1.0, float(np.max(np.abs(s.y))))
+        r = ref[ok]
+        qc = np.clip(q[ok], s.y[0], s.y[-1])
+        slope = np.abs(s(r + 1e-3) - s(r - 1e-3)) / 2e-3
+        allow = 1e-9 + (np.abs(s(r) - qc) + 1e-13 * ymax) / np.maximum(slope, 1e-300)
+        assert np.all(np.abs(fast[ok] - r) <= allow)
+        assert np.isnan(fast[~ok]).all()
+        np.testing.assert_allclose(s(fast[ok]), qc, rtol=0, atol=1e-12 * ymax)  # V(T(V)) = V, exactly
+        t = rng.uniform(s.x[0], s.x[-1], 300)
+        v = s(t)
+        back = s(s.inverse(v))  # V(T(V)) = V; T itself is not unique on a flat step
+        np.testing.assert_allclose(back, v, rtol=0, atol=1e-9 * max(1.0, float(np.max(np.abs(s.y)))))
