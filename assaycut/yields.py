@@ -158,7 +158,9 @@ def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
     """Warnings about the cuts: reaching into the extension, D86 estimates above 400 °C, empty cuts, estimates
     left empty outside their method's range."""
     warnings = []
-    ext = cuts.loc[cuts["extrapolated"], "name"].tolist()
+    names = cuts["name"].tolist()
+    d86 = cuts["d86_c"].tolist()
+    ext = [n for n, x in zip(names, cuts["extrapolated"].tolist()) if x]
     c = model.curve
     if model.all_on_extension:
         warnings.append(f"every cut is flagged extrapolated: {model.all_on_extension}")
@@ -168,16 +170,16 @@ def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
             where += f" or below {pct_text(c.safe_lo)} vol %"
         warnings.append(f"cut(s) {', '.join(ext)} depend on the fitted extension (they reach {where}, where the "
                         f"curve is fitted or shaped by the fit; measured to {pct_text(c.measured_hi)} vol %)")
-    hot = [r["name"] for r in cuts.to_dict("records") if r["d86_c"] and max(r["d86_c"].values()) > 400.0]
+    hot = [n for n, d in zip(names, d86) if d and max(d.values()) > 400.0]
     if hot:
         warnings.append(f"the D86 estimate of {', '.join(hot)} goes above 400 °C, beyond the data behind "
                         f"Daubert 1994 (and a D86 is not run on such material): treat it as indicative only")
-    empty = cuts.loc[cuts["vol_pct"] <= 1e-9, "name"].tolist()
+    empty = [n for n, v in zip(names, cuts["vol_pct"].tolist()) if v <= 1e-9]
     if empty:
         warnings.append(f"cut(s) {', '.join(empty)} have no yield: their qualities are left empty")
     ranges = describe_ranges()
     for col, what in (("cetane_index_d4737", "cetane index"), ("flash_c_est", "flash estimate")):
-        out = cuts.loc[cuts["d86_c"].notna() & cuts[col].isna(), "name"].tolist()
+        out = [n for n, d, v in zip(names, d86, cuts[col].tolist()) if d is not None and v != v]
         if out:
             warnings.append(f"{what} left empty for {', '.join(out)}: the cut's D86 or density lies outside "
                             f"the method's range ({ranges[col]})")
