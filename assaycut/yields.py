@@ -62,6 +62,8 @@ class YieldResult:
     """Product curves of a real column (see :func:`assaycut.cutting.products.fractionate`); None for ideal cuts."""
     bands: object = None
     """P10/P50/P90 per cut under the measurement uncertainty (see :mod:`assaycut.studies.uncertainty`), or None."""
+    json_doc: dict | None = None
+    """The ``yields --json`` object, when a batch worker made it (else made from the fields on demand)."""
 
 
 METHOD_NOTES = {

@@ -33,6 +33,17 @@ class YieldJob:
     rate_bbl_per_day: float | None = None
     unit: str = "C"  # display unit of the report's temperatures ('C' or 'F')
     claims: str = ""  # the run's claims folder for report folder names (see claim_folder); "" for one assay
+    json_doc: bool = False  # make each assay's JSON object in the worker (yields --json)
+    light: bool = False  # send back only the JSON object and the warnings (nothing else of the result is used)
+
+
+@dataclass
+class LightResult:
+    """What a batch that prints JSON alone needs of an assay's result (cheap to send between processes)."""
+
+    name: str
+    warnings: list
+    json_doc: dict
 
 
 def claim_folder(root: Path, base: str, claims: str) -> Path:
@@ -109,6 +120,12 @@ def run_one(path: str, job: YieldJob, progress=None):
                     result.warnings.append(f"report folder {folder.name!r}: {slug(assay.name)!r} is taken by "
                                            f"another assay of this run with a similar name")
             written = write_yield_report(result, folder, job.inputs, job.unit)
+        if job.json_doc:
+            from ..report.jsonout import yield_json
+
+            result.json_doc = yield_json(result)
+            if job.light:
+                return LightResult(assay.name, list(result.warnings), result.json_doc), written, None
         return result, written, None
     except AssaycutError as exc:
         msg = str(exc)  # errors from the core (a curve that cannot be modelled) name the file here
@@ -145,11 +162,18 @@ def _worker_init(parent_pid: int) -> None:
         os._exit(1)
 
 
+TASK_SIZE = 8
+"""Assays per task sent to a worker (fewer round trips between processes)."""
+
+
 def _worker(args):
-    path, job = args
-    if _PARENT["pid"] is not None and os.getppid() != _PARENT["pid"]:
-        os._exit(1)  # orphaned: never write for a dead parent
-    return run_one(path, job)
+    chunk, job = args
+    out = []
+    for path in chunk:
+        if _PARENT["pid"] is not None and os.getppid() != _PARENT["pid"]:
+            os._exit(1)  # orphaned: never write for a dead parent
+        out.append(run_one(path, job))
+    return out
 
 
 def kill_pools() -> None:
@@ -192,16 +216,22 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
         if parallel:
             from concurrent.futures import ProcessPoolExecutor, as_completed
 
+            outcomes[0] = run_one(paths[0], job)  # in the parent first: the forked workers inherit its imports
+            if bar:
+                bar.advance()
+
             pool = ProcessPoolExecutor(max_workers=min(cores, len(paths)), initializer=_worker_init,
                                        initargs=(os.getpid(),))
             ACTIVE_POOLS.append(pool)
             futs: dict = {}
             try:
-                futs = {pool.submit(_worker, (p, job)): i for i, p in enumerate(paths)}
+                starts = range(1, len(paths), TASK_SIZE)
+                futs = {pool.submit(_worker, (paths[k:k + TASK_SIZE], job)): k for k in starts}
                 for f in as_completed(futs):
-                    outcomes[futs[f]] = f.result()
-                    if bar:
-                        bar.advance()
+                    for j, outcome in enumerate(f.result()):
+                        outcomes[futs[f] + j] = outcome
+                        if bar:
+                            bar.advance()
             except BaseException:  # Ctrl-C or an error: cancel what is pending and stop the workers now
                 for f in futs:
                     f.cancel()

@@ -69,9 +69,15 @@ def _finite(doc):
     return doc
 
 
-def echo_json(doc) -> None:
-    """A JSON document on stdout, indented, non-ASCII kept; never NaN or Infinity (strict JSON)."""
-    typer.echo(json.dumps(_finite(doc), indent=2, ensure_ascii=False, allow_nan=False))
+def echo_json(doc, compact: bool = False) -> None:
+    """A JSON document on stdout, non-ASCII kept, never NaN or Infinity (strict JSON); indented, or on one
+    line with ``compact`` (large batches: Python's fast JSON encoder works only without indentation)."""
+    kw = {"separators": (",", ":")} if compact else {"indent": 2}
+    try:
+        text = json.dumps(doc, ensure_ascii=False, allow_nan=False, **kw)
+    except ValueError:  # a non-finite number slipped through: null it
+        text = json.dumps(_finite(doc), ensure_ascii=False, allow_nan=False, **kw)
+    typer.echo(text)
 
 
 def echo_lines(lines: list[str]) -> None:

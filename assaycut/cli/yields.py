@@ -106,7 +106,8 @@ def yields(
     job = YieldJob(cs, lim, method.value, (api, sg, density, sulfur), root,
                    single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
                    sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
-                   unit=unit.value, claims=new_claims() if root is not None and len(paths) > 1 else "")
+                   unit=unit.value, claims=new_claims() if root is not None and len(paths) > 1 else "",
+                   json_doc=json_out, light=json_out and not write)
     try:
         results, written, failures = run_batch(paths, job)
     finally:
@@ -127,7 +128,7 @@ def yields(
     if json_out:
         from ..report.jsonout import yields_document
 
-        echo_json(yields_document(results, len(paths), failures))
+        echo_json(yields_document(results, len(paths), failures), compact=len(paths) > BRIEF_OVER)
         if failures:
             raise typer.Exit(EXIT_INPUT)
         return

@@ -188,8 +188,9 @@ def _why_missing(prop: str) -> str:
 def frame_columns(cuts) -> dict[str, np.ndarray]:
     """Cut-column arrays of one row from a cut table (the inverse of
     :func:`assaycut.cutting.ideal.columns_frame` for the properties a limit can name)."""
-    cols = {c: cuts[c].to_numpy(dtype=float)[None, :] for c in SCALAR_PROPERTIES}
-    cols.update({c: cuts[c].to_numpy(dtype=float)[None, :] for c in cuts.columns if is_quality(c)})
+    names = list(SCALAR_PROPERTIES) + [c for c in cuts.columns if c not in SCALAR_PROPERTIES and is_quality(c)]
+    block = cuts[names].to_numpy(dtype=float)  # one copy, not a column access per property
+    cols = {c: block[:, k][None, :] for k, c in enumerate(names)}
     nan7 = [math.nan] * len(D86_STD)
     cols["d86"] = np.array([[[float(d[str(p)]) for p in D86_STD] if d else nan7 for d in cuts["d86_c"]]])
     return cols

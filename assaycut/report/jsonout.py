@@ -39,10 +39,10 @@ def json_safe(v):
 
 
 def records(df) -> list[dict]:
-    """The rows of a DataFrame as JSON-safe dicts (column by column: ``tolist`` gives Python scalars, much
-    faster than ``DataFrame.to_dict`` on small tables)."""
-    cols = [(c, [json_safe(v) for v in df[c].tolist()]) for c in df.columns]
-    return [{c: vals[i] for c, vals in cols} for i in range(len(df))]
+    """The rows of a DataFrame as JSON-safe dicts (through one object array: much faster than
+    ``DataFrame.to_dict`` on small tables)."""
+    cols = list(df.columns)
+    return [{c: json_safe(v) for c, v in zip(cols, row)} for row in df.to_numpy(dtype=object).tolist()]
 
 
 def cut_records(df) -> list[dict]:
@@ -90,7 +90,7 @@ def extension_json(model) -> dict:
 
 def yields_document(results, n_paths: int, failures: list[tuple[str, str]]) -> dict:
     """``assaycut yields --json``: one assay's object, or ``{"assays": [...], "errors": [...]}`` for several."""
-    objs = [yield_json(r) for r in results]
+    objs = [getattr(r, "json_doc", None) or yield_json(r) for r in results]  # made in a worker, or now
     return objs[0] if n_paths == 1 else {"assays": objs, "errors": [m for _, m in failures]}
 
 
