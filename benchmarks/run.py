@@ -4,7 +4,9 @@
     python benchmarks/run.py --smoke    # tiny sizes, for CI (never judged on speed)
 
 Prints a readable table, then as its last line one JSON object with library_vs_floor, library_vs_naive,
-sweep_ms, help_vs_bare, scaling_10k_vs_1k and peak_mb (and the raw timings).  Figures are medians of
+sweep_ms, help_vs_bare, scaling_10k_vs_1k, peak_mb, model_build_ms, and the command-line ratios
+json_400_vs_40, summary_400_vs_40, optimize_vs_yields, uncertainty_2000_vs_yields, workbooks_10k_s and
+workbooks_10k_vs_read (and the raw timings).  Figures are medians of
 several runs.  The generated library perturbs the three invented demo crudes (temperatures, percents,
 gravity and sulfur), so every assay has its own curve, density and sulfur distribution.
 """
@@ -139,6 +141,66 @@ def peak_child(n: int) -> None:
     print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0)
 
 
+QUICK_CSV = "vol_pct,temp_c\n" + "".join(f"{p},{{t{i}:.1f}}\n" for i, p in enumerate((2, 10, 30, 50, 70, 85, 95)))
+QUICK_T = (20.0, 90.0, 180.0, 270.0, 380.0, 480.0, 560.0)
+
+
+def write_quick_csvs(folder: Path, n: int, seed: int = 11) -> None:
+    """n quick-curve CSVs (the invented demo curve shape, temperatures scaled by ±5 %)."""
+    rng = np.random.default_rng(seed)
+    folder.mkdir(parents=True, exist_ok=True)
+    for i in range(n):
+        f = rng.uniform(0.95, 1.05)
+        (folder / f"c{i:05d}.csv").write_text(QUICK_CSV.format(**{f"t{k}": t * f for k, t in enumerate(QUICK_T)}))
+
+
+def cli_time(args: list[str], repeats: int) -> float:
+    """Median wall time of one assaycut command (a fresh process, as a user runs it). [s]"""
+    return help_time([sys.executable, "-m", "assaycut", *args], repeats)
+
+
+def cli_figures(smoke: bool) -> tuple[dict, dict]:
+    """The command-line ratios: 400 vs 40 assays through ``yields --json`` and ``--summary-only``;
+    ``optimize --prices``, ``--uncertainty 2000`` and ``--summary-only`` over many workbooks against their
+    references."""
+    import shutil
+
+    from assaycut.io.tomlfiles import demo_assay_paths
+
+    few, many, reps = (4, 12, 1) if smoke else (40, 400, 3)
+    draws = 40 if smoke else 2000
+    n_books = 30 if smoke else 10_000
+    prices = str(ROOT / "assays_demo" / "prices_demo.toml")
+    with tempfile.TemporaryDirectory() as d:
+        d = Path(d)
+        write_quick_csvs(d / "few", few)
+        write_quick_csvs(d / "many", many)
+        t_few = cli_time(["yields", str(d / "few"), "--api", "33", "--json"], reps)
+        t_many = cli_time(["yields", str(d / "many"), "--api", "33", "--json"], reps)
+        s_few = cli_time(["yields", str(d / "few"), "--api", "33", "--summary-only", "--out", str(d / "o1")], reps)
+        s_many = cli_time(["yields", str(d / "many"), "--api", "33", "--summary-only", "--out", str(d / "o2")], reps)
+        t_one = cli_time(["yields", "--json"], reps)
+        t_opt = cli_time(["optimize", "--prices", prices, "--json"], reps)
+        t_unc = cli_time(["yields", "--json", "--uncertainty", str(draws)], 1 if not smoke else reps)
+        books = d / "books"
+        books.mkdir()
+        demos = demo_assay_paths()
+        for i in range(n_books):
+            shutil.copy(demos[i % len(demos)], books / f"b{i:05d}.xlsx")
+        t0 = time.perf_counter()
+        for p in sorted(books.iterdir()):
+            p.read_bytes()
+        t_read = time.perf_counter() - t0
+        t_books = cli_time(["yields", str(books), "--summary-only", "--out", str(d / "o3")], 1)
+    figures = {"json_400_vs_40": t_many / t_few, "summary_400_vs_40": s_many / s_few,
+               "optimize_vs_yields": t_opt / t_one, "uncertainty_2000_vs_yields": t_unc / t_one,
+               "workbooks_10k_s": t_books, "workbooks_10k_vs_read": t_books / t_read}
+    raw = {"json_few_s": t_few, "json_many_s": t_many, "summary_few_s": s_few, "summary_many_s": s_many,
+           "yields_json_s": t_one, "optimize_s": t_opt, "uncertainty_s": t_unc, "uncertainty_draws": draws,
+           "workbooks": n_books, "workbooks_read_s": t_read, "cli_few": few, "cli_many": many}
+    return figures, raw
+
+
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--smoke", action="store_true", help="tiny sizes for CI")
@@ -174,6 +236,7 @@ def main() -> None:
         t_bare = help_time([sys.executable, str(bare), "--help"], 5 if not args.smoke else 1)
     peak = float(subprocess.run([sys.executable, __file__, "--peak-child", str(big)], capture_output=True,
                                 text=True, check=True).stdout.strip().splitlines()[-1])
+    cli, cli_raw = cli_figures(args.smoke)
     figures = {
         "library_vs_floor": t_lib / t_floor,
         "library_vs_naive": t_naive / t_lib,
@@ -181,13 +244,17 @@ def main() -> None:
         "help_vs_bare": t_help / t_bare,
         "scaling_10k_vs_1k": t_lib / t_small,
         "peak_mb": peak,
+        "model_build_ms": t_models / big * 1000.0,
+        **cli,
     }
     raw = {"assays": big, "cuts": len(CUTS8.cuts), "cores": os.cpu_count(), "generate_s": t_gen,
            "model_build_s": t_models, "library_cut_s": t_lib, "library_cut_small_s": t_small,
            "floor_s": t_floor, "naive_estimated_s": t_naive, "naive_subsample": naive_n,
-           "help_s": t_help, "bare_help_s": t_bare, "smoke": args.smoke}
+           "help_s": t_help, "bare_help_s": t_bare, "smoke": args.smoke, **cli_raw}
     goals = {"library_vs_floor": "<= 10", "library_vs_naive": ">= 20", "sweep_ms": "<= 50", "help_vs_bare": "<= 1.3",
-             "scaling_10k_vs_1k": "8 to 12", "peak_mb": "<= 300"}
+             "scaling_10k_vs_1k": "8 to 12", "peak_mb": "<= 300", "model_build_ms": "<= 0.5",
+             "json_400_vs_40": "<= 2", "summary_400_vs_40": "<= 2", "optimize_vs_yields": "<= 3",
+             "uncertainty_2000_vs_yields": "<= 2", "workbooks_10k_s": "<= 60", "workbooks_10k_vs_read": "-"}
     print(f"assaycut library benchmark: {big} assays, {len(CUTS8.cuts)} cuts, {os.cpu_count()} cores"
           + (" (smoke sizes)" if args.smoke else ""))
     print(f"  generate library            {t_gen:9.3f} s")

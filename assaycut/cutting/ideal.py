@@ -94,7 +94,7 @@ def columns_frame(names: list[str], cols: dict[str, np.ndarray]):
     return df[CUT_COLUMNS + extra + ["estimated"]]
 
 
-def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
+def cut_columns(model: CrudeModel, ends: np.ndarray, only=None) -> dict[str, np.ndarray]:
     """Per-cut yields and qualities for many cut-point sets at once.
 
     Parameters
@@ -102,6 +102,9 @@ def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
     model : CrudeModel
     ends : numpy.ndarray
         Cut points, shape (m, n-1): m alternative cut sets of n cuts. [°C]
+    only : set of str, optional
+        Measured narrow-cut qualities to compute (default all; see
+        :func:`~assaycut.cutting.qualities.quality_columns`).
 
     Returns
     -------
@@ -141,7 +144,7 @@ def cut_columns(model: CrudeModel, ends: np.ndarray) -> dict[str, np.ndarray]:
     out["overlap_c"] = np.concatenate([out["tbp_95_c"][:, :-1] - out["tbp_5_c"][:, 1:], nan_col], axis=1)
     gas = ~(np.isfinite(t_end) & ~(t_end <= LIGHT_ENDS_MAX_C)) & ~np.isnan(t_end)
     vals, est = quality_columns(model, va, vb, wa, wb, out["meabp_c"], out["sg"], out["watson_k"],
-                                gas | (vol <= 1e-9))
+                                gas | (vol <= 1e-9), only)
     out.update(vals)
     out["estimated"] = est
     out["extrapolated"] = (curve.is_extrapolated(va, vb) | _all_flag(model, vol)) & (vol > 1e-9)

@@ -52,7 +52,8 @@ NOT_ESTIMATED = ("nitrogen, metals, CCR, asphaltenes, wax, acid number, mercapta
                  "forms' light-fraction coefficients and basis are unsettled)")
 
 
-def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas) -> tuple[dict[str, np.ndarray], dict[str, np.ndarray]]:
+def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas,
+                    only=None) -> tuple[dict[str, np.ndarray], dict[str, np.ndarray]]:
     """Per-cut values of every quality, and which are estimated.
 
     Parameters
@@ -65,6 +66,9 @@ def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas) -> tuple[dict[str
         The cut's MeABP [°C], SG [-] and Watson K [-].
     gas : numpy.ndarray
         True for cuts with no D86 estimate (light ends): nothing is estimated for them.
+    only : set of str, optional
+        Compute only these measured qualities (and the viscosities, which the 40/100 °C values come from);
+        the estimates are computed in any case.  A study that reads few qualities saves the rest.
 
     Returns
     -------
@@ -75,11 +79,11 @@ def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas) -> tuple[dict[str
     some = (vb - va) > 1e-9
     rows = getattr(model, "row_qualities", None)
     if rows is None:  # one crude model: every row is that crude
-        values = _measured(getattr(model, "qualities", {}), va, vb, wa, wb, some)
+        values = _measured(_wanted(getattr(model, "qualities", {}), only), va, vb, wa, wb, some)
     else:  # a batch: row r is crude r, each with its own qualities
         values = {}
         for r, quals in enumerate(rows):
-            for name, v in _measured(quals, va[r], vb[r], wa[r], wb[r], some[r]).items():
+            for name, v in _measured(_wanted(quals, only), va[r], vb[r], wa[r], wb[r], some[r]).items():
                 values.setdefault(name, np.full(va.shape, np.nan))[r] = v
     sul = getattr(model, "sulfur_rows_estimated", None)
     if sul is not None:
@@ -155,6 +159,15 @@ def add_estimates(values: dict, estimated: dict, meabp, sg, kw, ok) -> None:
         fill = ~np.isfinite(have) & valid & np.isfinite(v)
         values[name] = np.where(fill, v, have)
         estimated[name] = fill | estimated.get(name, np.zeros(shape, bool))
+
+
+def _wanted(qualities: dict, only) -> dict:
+    """The qualities named in ``only`` (all when None), with every viscosity when one is wanted (ASTM D341
+    needs the measured pair)."""
+    if only is None:
+        return qualities
+    visc = any(VISCOSITY.match(n) for n in only)
+    return {n: q for n, q in qualities.items() if n in only or (visc and VISCOSITY.match(n))}
 
 
 def _measured(qualities: dict, va, vb, wa, wb, some) -> dict[str, np.ndarray]:

@@ -236,7 +236,8 @@ class Pchip:
         f = ((c3 * t + c2) * t + m0) * t + c0
         bad = (np.abs(f) > 1e-13 * np.maximum(np.abs(y0) + np.abs(y1), 1e-300)) & (y1 > y0)
         if np.any(bad):  # a zero slope at the root: the reference solve for these points only
-            t = np.where(bad, hermite_solve(y0, y1, m0, m1, q), t)
+            t = np.array(t, dtype=float, copy=True)
+            t[bad] = hermite_solve(y0[bad], y1[bad], m0[bad], m1[bad], q[bad])
         t = np.where(y1 > y0, t, 0.0)
         x = self.x[i] + t * h
         x = np.where(q == y1, self.x[i + 1], x)

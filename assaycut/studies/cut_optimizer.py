@@ -50,12 +50,20 @@ POPSIZE = 10
 """Differential evolution population per moving cut point."""
 MAXITER = 400
 """Differential evolution generations at most; stopping before means the population converged."""
-STALL_GENERATIONS = 60
+STALL_GENERATIONS = 25
 """With no candidate meeting every requirement, the search stops when the smallest total violation has not
-improved for this many generations (the problem is then reported infeasible)."""
-DE_TOL = 1e-5
+improved for this many generations (the problem is then reported infeasible); with feasible candidates, when
+the best objective has not improved (:data:`SETTLED_REL`)."""
+DE_TOL = 3e-4
+MIN_GENERATIONS = 40
+"""Generations the global search always runs."""
+SETTLED_REL = 1e-6
+"""The search also stops when its best feasible objective has improved by less than this fraction over the
+last :data:`STALL_GENERATIONS` generations (then SLSQP refines)."""
 """Differential evolution stops when the spread of the population's objective falls below this fraction of
 its mean."""
+FD_STEP_C = 1e-3
+"""Forward-difference step of the refinement's gradients. [°C]"""
 SEED = 20261202
 """Random seed of the search: the same problem gives the same answer."""
 
@@ -292,6 +300,10 @@ class _Problem:
         self.model, self.names, self.ends0, self.var = model, names, ends0, var
         self.maximize, self.prices = maximize, prices
         self.limits = applicable(lims, names)
+        # only the qualities the limits and the prices read are computed for each candidate
+        self.only = {lim.property for lim in self.limits}
+        if prices is not None:
+            self.only |= {a.property for p in prices.products.values() for a in p.adjust}
         self.mins = [(names.index(n), v) for n, v in mins.items() if v > 0]
         self.labels = ([lim.describe() for lim in self.limits]
                        + [f"{names[j]}: volume yield >= {v:g} vol % (guard rail)" for j, v in self.mins])
@@ -311,7 +323,7 @@ class _Problem:
     def evaluate(self, x):
         """(objective, margins, order gaps) of candidates ``x`` (rows)."""
         x = np.atleast_2d(x)
-        cols = cut_columns(self.model, self.full(x))
+        cols = cut_columns(self.model, self.full(x), only=self.only)
         self.last_cols = cols
         self.evaluations += x.shape[0]
         obj = _objective(cols, self.names, self.maximize, self.prices)
@@ -412,12 +424,17 @@ def _global_search(problem: _Problem, bounds, x0, progress):
     def tick(intermediate_result):
         hist = state["history"]
         hist.append(state["viol"])
+        best = state.setdefault("best", [])
+        best.append(float(intermediate_result.fun) if state["feasible"] else math.inf)
         if progress is not None:
             progress(len(hist), MAXITER)
         stalled = (not state["feasible"] and len(hist) > STALL_GENERATIONS
                    and hist[-STALL_GENERATIONS - 1] - hist[-1] <= 1e-9 * max(hist[-1], 1.0))
-        state["stalled"] = stalled
-        return stalled
+        # the best feasible point no longer improving: the refinement takes it from here
+        settled = (state["feasible"] and len(best) > max(STALL_GENERATIONS, MIN_GENERATIONS)
+                   and best[-STALL_GENERATIONS - 1] - best[-1] <= SETTLED_REL * abs(best[-1]))
+        state["stalled"] = stalled or settled
+        return stalled or settled
 
     cons = []
     n_con = len(problem.use) + max(len(lo) - 1, 0)
@@ -433,27 +450,34 @@ def _global_search(problem: _Problem, bounds, x0, progress):
 
 
 def _refine(problem: _Problem, x_start, bounds):
-    """SLSQP from the global search's best point, then the best point meeting every requirement on the
-    straight line from that point to SLSQP's answer (SLSQP may stop a hair outside an active limit; the answer
+    """SLSQP from the global search's best point (forward-difference gradients, batched), then the best point
+    meeting every requirement on the straight line from that point to SLSQP's answer (SLSQP may stop a hair outside an active limit; the answer
     must never break one).  Returns (x, objective, margins) at that point."""
     from scipy.optimize import minimize
 
     fixed_lo, fixed_hi = bounds
     obj_s, _, _ = problem.evaluate(x_start[None, :])
     scale = max(abs(float(obj_s[0])), 1.0)
+    n = x_start.size
     cache: dict = {}
 
-    def at(x):  # SLSQP asks for the objective and each constraint at the same point: evaluate once
-        key = np.asarray(x, dtype=float).tobytes()
+    def at(x):
+        """Objective, its gradient, the constraints and their Jacobian at x, from one batched evaluation of x
+        and its n forward steps (SLSQP asks for all four at the same point)."""
+        x = np.asarray(x, dtype=float)
+        key = x.tobytes()
         if key not in cache:
-            if len(cache) > 256:
+            if len(cache) > 64:
                 cache.clear()
-            cache[key] = problem.scaled(np.asarray(x, dtype=float)[None, :])
+            pts = np.vstack([x, x + FD_STEP_C * np.eye(n)])
+            obj, cons = problem.scaled(pts)
+            cache[key] = (-obj[0] / scale, -(obj[1:] - obj[0]) / FD_STEP_C / scale, cons[0],
+                          ((cons[1:] - cons[0]) / FD_STEP_C).T)
         return cache[key]
 
     n_con = len(problem.use) + max(len(problem.var) - 1, 0)
-    cons = [{"type": "ineq", "fun": lambda x: at(x)[1][0]}] if n_con else []
-    res = minimize(lambda x: -float(at(x)[0][0]) / scale, x_start, method="SLSQP",
+    cons = [{"type": "ineq", "fun": lambda x: at(x)[2], "jac": lambda x: at(x)[3]}] if n_con else []
+    res = minimize(lambda x: at(x)[0], x_start, jac=lambda x: at(x)[1], method="SLSQP",
                    bounds=list(zip(fixed_lo, fixed_hi)), constraints=cons,
                    options={"maxiter": 100, "ftol": 1e-10})
     x_opt = np.clip(res.x, fixed_lo, fixed_hi)
