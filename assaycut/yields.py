@@ -88,7 +88,7 @@ METHOD_NOTES = {
 
 def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
                method: str = "daubert-1994", model: CrudeModel | None = None, uncertainty_draws: int = 0,
-               sigmas=None, rate_bbl_per_day: float | None = None, progress=None) -> YieldResult:
+               sigmas=None, rate_bbl_per_day: float | None = None, progress=None, map_fn=map) -> YieldResult:
     """Model, cut and check one assay.
 
     Parameters
@@ -109,6 +109,8 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         (:func:`~assaycut.cutting.ideal.add_rates`). [bbl/d]
     progress : callable, optional
         ``progress(done, total)`` during the uncertainty draws.
+    map_fn : callable
+        Map-like callable sharing the uncertainty draws out (see :func:`~assaycut.studies.uncertainty.monte_carlo`).
 
     Returns
     -------
@@ -150,7 +152,7 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         from .studies.uncertainty import Sigmas, monte_carlo
 
         bands = monte_carlo(assay, cut_set, sigmas or Sigmas(), uncertainty_draws, method=method,
-                            progress=progress)
+                            progress=progress, map_fn=map_fn)
         methods["uncertainty"] = (f"Monte Carlo over the curve model, {bands.attrs['draws']} draws "
                                   f"({bands.attrs['failed']} failed); ideal cuts; {bands.attrs['sigmas']}")
     return YieldResult(assay, model, cut_set, cuts, lim, clo, warnings, notes, methods, products, bands)

@@ -4,6 +4,7 @@ writers do the work."""
 
 from __future__ import annotations
 
+import contextlib
 import os
 from dataclasses import dataclass
 from pathlib import Path
@@ -91,7 +92,7 @@ def release_claims(claims: str = "") -> None:
                 CLAIMS.remove(d)
 
 
-def run_one(path: str, job: YieldJob, progress=None):
+def run_one(path: str, job: YieldJob, progress=None, map_fn=map):
     """Load, model, cut and (optionally) report one assay (``progress(done, total)`` follows the uncertainty
     draws).
 
@@ -107,7 +108,7 @@ def run_one(path: str, job: YieldJob, progress=None):
         assay = load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
         result = run_yields(assay, job.cut_set, job.limits, method=job.method,
                             uncertainty_draws=job.uncertainty_draws, sigmas=job.sigmas,
-                            rate_bbl_per_day=job.rate_bbl_per_day, progress=progress)
+                            rate_bbl_per_day=job.rate_bbl_per_day, progress=progress, map_fn=map_fn)
         written = []
         if job.report_root is not None:
             from ..report.write import slug, write_yield_report
@@ -174,6 +175,34 @@ def _worker(args):
             os._exit(1)  # orphaned: never write for a dead parent
         out.append(run_one(path, job))
     return out
+
+
+@contextlib.contextmanager
+def draw_pool(job: YieldJob):
+    """A map over worker processes for the uncertainty draws of one assay (builtin ``map`` on one core or for
+    few draws); the pool stops with the run, as a batch's does."""
+    from ..studies.uncertainty import DRAW_CHUNK
+
+    cores = os.cpu_count() or 1
+    if cores < 2 or job.uncertainty_draws < 2 * DRAW_CHUNK:
+        yield map
+        return
+    from concurrent.futures import ProcessPoolExecutor
+
+    from ..studies import uncertainty  # noqa: F401  (imported before the fork, so workers inherit it)
+
+    pool = ProcessPoolExecutor(max_workers=cores, initializer=_worker_init, initargs=(os.getpid(),))
+    ACTIVE_POOLS.append(pool)
+    try:
+        yield pool.map
+    except BaseException:
+        kill_pools()
+        pool.shutdown(wait=False, cancel_futures=True)
+        raise
+    else:
+        pool.shutdown(wait=True)
+    finally:
+        ACTIVE_POOLS.remove(pool)
 
 
 def kill_pools() -> None:
@@ -243,8 +272,8 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
             finally:
                 ACTIVE_POOLS.remove(pool)
         elif len(paths) == 1 and job.uncertainty_draws:
-            with progress_bar("uncertainty draws", job.uncertainty_draws) as draws:
-                outcomes[0] = run_one(paths[0], job, progress=draws)
+            with progress_bar("uncertainty draws", job.uncertainty_draws) as draws, draw_pool(job) as map_fn:
+                outcomes[0] = run_one(paths[0], job, progress=draws, map_fn=map_fn)
         else:
             for i, p in enumerate(paths):
                 outcomes[i] = run_one(p, job)

@@ -172,13 +172,15 @@ class BatchModel:
         return np.where(self._col(self.sulfur_dist.missing, out), np.nan, out)
 
 
-def cut_library(models: list[CrudeModel], cut_set: CutSet) -> tuple[list[str], dict[str, np.ndarray]]:
+def cut_library(models: list[CrudeModel], cut_set: CutSet, only=None) -> tuple[list[str], dict[str, np.ndarray]]:
     """Cut many crude models with one cut set, as arrays over crudes.
 
     Parameters
     ----------
     models : list of CrudeModel
     cut_set : CutSet
+    only : set of str, optional
+        Measured narrow-cut qualities to compute (default all; an empty set for none).
 
     Returns
     -------
@@ -190,7 +192,7 @@ def cut_library(models: list[CrudeModel], cut_set: CutSet) -> tuple[list[str], d
     parts = []
     for i in range(0, len(models), CHUNK):  # fixed-size chunks: time linear in the library, memory bounded
         chunk = models[i:i + CHUNK]
-        parts.append(cut_columns(BatchModel(chunk), np.repeat(ends[None, :], len(chunk), axis=0)))
+        parts.append(cut_columns(BatchModel(chunk), np.repeat(ends[None, :], len(chunk), axis=0), only=only))
     if len(parts) == 1:
         return names, parts[0]
     out = {k: np.concatenate([p[k] for p in parts], axis=0) for k in parts[0] if k != "estimated"}
@@ -221,7 +223,7 @@ def library_summary(assays, models: list[CrudeModel], cut_set: CutSet):
     """
     import pandas as pd
 
-    names, cols = cut_library(models, cut_set)
+    names, cols = cut_library(models, cut_set, only=set())  # the summary reads no narrow-cut quality
     data = {"crude": [a.name for a in assays], "source": [a.source for a in assays],
             "sha256": [a.sha256 for a in assays], "api": [a.api for a in assays],
             "sulfur_wt_pct": [m.sulfur_wt_pct for m in models]}

@@ -109,7 +109,7 @@ class CrudeModel:
         return interval_mean(self.sulfur_dist, wa, wb)
 
 
-def build_model(assay: Assay, method: str = "daubert-1994") -> CrudeModel:
+def build_model(assay: Assay, method: str = "daubert-1994", qualities: bool = True) -> CrudeModel:
     """Build the crude model from an assay (the steps are in the module docstring).
 
     Parameters
@@ -117,6 +117,9 @@ def build_model(assay: Assay, method: str = "daubert-1994") -> CrudeModel:
     assay : Assay
     method : str
         TBP <-> D86 method for D86 input curves: 'daubert-1994' (default) or 'riazi-daubert-1986'.
+    qualities : bool
+        Build the narrow-cut quality distributions (default); a study that reads only yields, gravity and
+        sulfur (the uncertainty draws) skips them.
 
     Returns
     -------
@@ -132,8 +135,12 @@ def build_model(assay: Assay, method: str = "daubert-1994") -> CrudeModel:
     methods: dict[str, str] = {}
     p, t = _tbp_points(assay, method, warnings, methods)
     if assay.curves[0].basis != "wt":
-        return _fit(assay, p, t, warnings, methods)
-    return _fit_weight_basis(assay, p, t, warnings, methods)
+        model = _fit(assay, p, t, warnings, methods)
+    else:
+        model = _fit_weight_basis(assay, p, t, warnings, methods)
+    if qualities:
+        model.qualities = quality_distributions(assay, model, model.warnings, model.methods)
+    return model
 
 
 WT_NODE_TOL = 1e-9
@@ -197,7 +204,6 @@ def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str]) -> Cr
         methods["sulfur"] = ("estimated: Riazi, Nasimi & Roomi (1999) on pseudo-components of the curve (M and n20 "
                              "by Riazi-Daubert 1987), non-decreasing with boiling range, scaled to the whole-crude "
                              f"sulfur {model.sulfur_wt_pct:.3f} wt %")
-    model.qualities = quality_distributions(assay, model, warnings, methods)
     return model
 
 

@@ -208,20 +208,23 @@ class Pchip:
 
         Within a flat step the left end of the step is returned.  Values beyond the range are clipped to
         the end nodes; NaN in, NaN out.  Fast and exact: a table of the interpolant at
-        :data:`INVERSE_TABLE_STEPS` points per segment (made once) brackets the root within a sixteenth of its
+        :data:`INVERSE_TABLE_STEPS` points per segment (made once) brackets the root within an eighth of its
         segment, and Newton steps on the segment's cubic from the linear guess inside that bracket reach
         machine precision; any point not converged then is solved by :func:`hermite_solve` (the reference
         method, :meth:`inverse_reference`).
         """
         raw = np.asarray(yq, dtype=float)
         q = np.clip(np.nan_to_num(raw, nan=self.y[0]), self.y[0], self.y[-1])
-        xs, ys, seg = self._table()
-        j = np.clip(np.searchsorted(ys, q, side="left") - 1, 0, xs.size - 2)
-        i = seg[j]
+        ys = self._table()
+        k = INVERSE_TABLE_STEPS
+        n = self.h.size
+        j = np.clip(np.searchsorted(ys, q, side="left") - 1, 0, ys.size - 2)
+        i = np.minimum(j // k, n - 1)
         h = self.h[i]
         y0, y1 = self.y[i], self.y[i + 1]
         m0, m1 = h * self.d[i], h * self.d[i + 1]
-        tl, th = (xs[j] - self.x[i]) / h, (xs[j + 1] - self.x[i]) / h
+        tl = (j - i * k) / k
+        th = np.minimum(tl + 1.0 / k, 1.0)
         dy = ys[j + 1] - ys[j]
         with np.errstate(divide="ignore", invalid="ignore"):
             t = np.where(dy > 0, tl + (q - ys[j]) / np.where(dy > 0, dy, 1.0) * (th - tl), tl)
@@ -256,7 +259,8 @@ class Pchip:
         return np.where(np.isnan(raw), np.nan, np.where(q == self.y[i], self.x[i], x))
 
     def _table(self):
-        """(x, y, segment) at :data:`INVERSE_TABLE_STEPS` points per segment and the last node, made once."""
+        """The interpolant's values at :data:`INVERSE_TABLE_STEPS` points per segment and at the last node,
+        made once (the points themselves follow from the nodes)."""
         if self._inv is None:
             if not np.all(np.diff(self.y) >= 0):
                 raise ValueError("inverse needs non-decreasing values")
@@ -264,20 +268,18 @@ class Pchip:
             n = self.h.size
             seg = np.repeat(np.arange(n), k)
             tt = np.tile(np.arange(k) / k, n)
-            xs = np.concatenate([self.x[seg] + tt * self.h[seg], self.x[-1:]])
             ys = np.concatenate([hermite_combine(hermite_basis(tt), self.y[seg], self.y[seg + 1],
                                                  self.h[seg] * self.d[seg], self.h[seg] * self.d[seg + 1]),
                                  self.y[-1:]])
-            ys = np.maximum.accumulate(ys)  # rounding must not make the table fall
-            self._inv = (xs, ys, np.concatenate([seg, [n - 1]]))
+            self._inv = np.maximum.accumulate(ys)  # rounding must not make the table fall
         return self._inv
 
 
-INVERSE_TABLE_STEPS = 16
+INVERSE_TABLE_STEPS = 8
 """Points per segment of the table that brackets the inverse."""
 NEWTON_STEPS = 4
 """Newton steps of the fast inverse from its bracketed linear guess (quadratic convergence: 4 reach machine
-precision from a sixteenth of a segment)."""
+precision from an eighth of a segment)."""
 
 
 def interval_mean(spline, a, b):

@@ -66,8 +66,29 @@ def perturb(assay: Assay, sig: Sigmas, rng: np.random.Generator) -> Assay:
     return a
 
 
+DRAW_CHUNK = 250
+"""Draws modelled together; chunk k draws from its own generator seeded with (seed, k), so the bands depend
+on the seed alone, not on how many processes share the work."""
+
+
+def _draw_chunk(args):
+    """Model and cut one chunk of draws: (columns of :data:`BAND_QUALITIES` over the draws, failed draws)."""
+    assay, cut_set, sig, count, seed, k, method = args
+    rng = np.random.default_rng([seed, k])
+    models, failed = [], 0
+    for _ in range(count):
+        try:
+            models.append(build_model(perturb(assay, sig, rng), method, qualities=False))
+        except AssaycutError:
+            failed += 1
+    if not models:
+        return {}, failed
+    _, cols = cut_library(models, cut_set, only=set())  # the bands read no narrow-cut quality
+    return {q: np.asarray(cols[q], dtype=float) for q in BAND_QUALITIES}, failed
+
+
 def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 200, seed: int = 20261201,
-                method: str = "daubert-1994", progress=None):
+                method: str = "daubert-1994", progress=None, map_fn=map):
     """P10/P50/P90 of each cut's yields and qualities under the assay's measurement uncertainty.
 
     Parameters
@@ -83,7 +104,10 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
     method : str
         TBP <-> D86 method for D86 input curves.
     progress : callable, optional
-        ``progress(done, n)`` as the draws are modelled.
+        ``progress(done, n)`` as chunks of draws are done.
+    map_fn : callable
+        A map-like callable for the chunks of :data:`DRAW_CHUNK` draws (e.g. a process pool's ``imap``, to
+        share them between cores); the builtin ``map`` by default.
 
     Returns
     -------
@@ -95,22 +119,24 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
 
     if not 20 <= n <= 5000:
         raise StudyError(f"the number of draws must be between 20 and 5000; got {n}")
-    rng = np.random.default_rng(seed)
-    models, failed = [], 0
-    for k in range(n):
-        try:
-            models.append(build_model(perturb(assay, sig, rng), method))
-        except AssaycutError:
-            failed += 1
-        if progress is not None and (k + 1) % 10 == 0:
-            progress(k + 1, n)
-    if len(models) < 10:
-        raise StudyError(f"only {len(models)} of {n} perturbed draws could be modelled; the uncertainties are too "
+    names, _ = cut_set.reported()
+    jobs = [(assay, cut_set, sig, min(DRAW_CHUNK, n - k0), seed, k, method)
+            for k, k0 in enumerate(range(0, n, DRAW_CHUNK))]
+    parts, failed, done = [], 0, 0
+    for (cols, bad), job in zip(map_fn(_draw_chunk, jobs), jobs):
+        failed += bad
+        if cols:
+            parts.append(cols)
+        done += job[3]
+        if progress is not None:
+            progress(done, n)
+    used = sum(p["vol_pct"].shape[0] for p in parts)
+    if used < 10:
+        raise StudyError(f"only {used} of {n} perturbed draws could be modelled; the uncertainties are too "
                          f"large for this curve")
-    names, cols = cut_library(models, cut_set)
     out = {"name": names}
     for q in BAND_QUALITIES:
-        v = np.asarray(cols[q], dtype=float)
+        v = np.concatenate([p[q] for p in parts], axis=0)
         ok = np.isfinite(v).sum(axis=0) >= max(5, v.shape[0] // 2)  # a quality estimated in most draws
         filled = np.where(np.isfinite(v), v, 0.0)
         for pct in (10, 50, 90):
@@ -119,7 +145,7 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
                 val[ok] = np.nanpercentile(np.where(np.isfinite(v[:, ok]), filled[:, ok], np.nan), pct, axis=0)
             out[f"{q}_p{pct}"] = val
     df = pd.DataFrame(out)
-    df.attrs.update(draws=len(models), failed=failed, sigmas=sig.describe())
+    df.attrs.update(draws=used, failed=failed, sigmas=sig.describe())
     return df
 
 

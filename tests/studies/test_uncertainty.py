@@ -60,3 +60,24 @@ def test_cli_uncertainty(tmp_path, demo_paths):
     import openpyxl
 
     assert "uncertainty" in openpyxl.load_workbook(tmp_path / "comparison.xlsx").sheetnames
+
+
+def test_draws_shared_between_processes_give_the_same_bands():
+    # Identity: the draws of chunk k come from the seed (seed, k) alone, so sharing the chunks between
+    # processes changes nothing.
+    from concurrent.futures import ProcessPoolExecutor
+
+    import pandas as pd
+
+    from assaycut.cutting.cutset import default_cut_set
+    from assaycut.io import load_assay
+    from assaycut.io.tomlfiles import demo_assay_paths
+    from assaycut.studies.uncertainty import DRAW_CHUNK, monte_carlo
+
+    a = load_assay(demo_assay_paths()[0])
+    n = DRAW_CHUNK + 30
+    serial = monte_carlo(a, default_cut_set(), n=n, seed=5)
+    with ProcessPoolExecutor(max_workers=2) as pool:
+        shared = monte_carlo(a, default_cut_set(), n=n, seed=5, map_fn=pool.map)
+    pd.testing.assert_frame_equal(serial, shared)
+    assert serial.attrs["draws"] + serial.attrs["failed"] == n
