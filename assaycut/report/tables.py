@@ -115,12 +115,20 @@ def unit_of(col: str) -> str:
     return lab[lab.rindex("[") + 1:-1] if lab.endswith("]") and "[" in lab else "-"
 
 
-def long_rows(cuts, crude: str) -> list[list]:
+def long_rows(cuts, crude: str, escaped: bool = False) -> list[list]:
     """The cut table in long form for planning models and BI tools: one row per (cut, property) value with
     its unit and, for yields and rates, the basis ('vol' or 'wt'); D86 points as d86_<p>_c; missing values
-    left out (:data:`LONG_COLUMNS`)."""
+    left out (:data:`LONG_COLUMNS`).  With ``escaped`` the crude and cut names are escaped against formula
+    injection here, once (the other texts are the project's own)."""
+    if escaped:
+        crude = safe_text(crude)
     rows = []
-    for rec in cuts.to_dict("records"):
+    cols = list(cuts.columns)
+    units = {c: (unit_of(c), basis_of(c)) for c in cols}
+    for values in cuts.to_numpy(dtype=object).tolist():  # one object array: far faster than to_dict on small tables
+        rec = dict(zip(cols, values))
+        if escaped:
+            rec["name"] = safe_text(rec["name"])
         for col, v in rec.items():
             if col in ("name", "estimated", "extrapolated"):
                 continue
@@ -130,7 +138,7 @@ def long_rows(cuts, crude: str) -> list[list]:
                 continue
             if v is None or isinstance(v, (str, bool)) or not math.isfinite(float(v)):
                 continue
-            rows.append([crude, rec["name"], col, unit_of(col), float(v), basis_of(col)])
+            rows.append([crude, rec["name"], col, units[col][0], float(v), units[col][1]])
     return rows
 
 

@@ -33,11 +33,16 @@ def _bytes_writer(data: bytes):
     return write
 
 
-def csv_text(headers: list[str], rows: list[list]) -> str:
-    """CSV text with text cells escaped against formula injection; NaN written as empty."""
+def csv_text(headers: list[str], rows: list[list], escaped: bool = False) -> str:
+    """CSV text with text cells escaped against formula injection; NaN written as empty.  With ``escaped``
+    the caller guarantees that the rows' texts are already escaped and hold no NaN (the long tables), and the
+    rows are written as they are."""
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow([safe_text(h) for h in headers])
+    if escaped:
+        w.writerows(rows)
+        return buf.getvalue()
     for r in rows:
         out = []
         for v in r:
@@ -131,5 +136,6 @@ def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
     files = {"library_summary.xlsx": buf.getvalue(),
              "library_summary.csv": csv_text(heads, df.values.tolist()).encode("utf-8"),
              "library_long.csv": csv_text(LONG_COLUMNS, [row for r in results
-                                                         for row in long_rows(r.cuts, r.assay.name)]).encode("utf-8")}
+                                                         for row in long_rows(r.cuts, r.assay.name, escaped=True)],
+                                          escaped=True).encode("utf-8")}
     return place_files(folder, files, tuple(inputs))
