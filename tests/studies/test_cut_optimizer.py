@@ -8,6 +8,7 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
+from assaycut.cli.common import load_prices
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.cutting.ideal import cut_columns
 from assaycut.cutting.limits import limit_margins
@@ -17,7 +18,6 @@ from assaycut.io.tomlfiles import demo_assay_paths, read_limits
 from assaycut.model.crude import build_model
 from assaycut.studies.cut_optimizer import optimize_cut_points
 from assaycut.yields import run_yields
-from assaycut.cli.common import load_prices
 from tests.helpers import DEMO_PRICES, cli_app, cli_error
 
 runner = CliRunner()
