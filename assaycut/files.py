@@ -4,6 +4,7 @@ temporary file in the same folder, then renamed), and text escaped against sprea
 from __future__ import annotations
 
 import contextlib
+import glob
 import os
 import re
 import tempfile
@@ -136,13 +137,6 @@ def check_targets(folder: Path, names, inputs: tuple[str, ...] = ()) -> None:
             with contextlib.suppress(OSError):
                 if Path(src).resolve() == target.resolve():
                     raise InputError(f"refusing to write the report over the input file {src}", file=str(target))
-        for stale in folder.glob(f".{glob_escape(name)}.*{TEMP_SUFFIX}"):
+        for stale in folder.glob(f".{glob.escape(name)}.*{TEMP_SUFFIX}"):
             with contextlib.suppress(OSError):
                 stale.unlink()
-
-
-def glob_escape(name: str) -> str:
-    """``name`` with glob wildcards escaped."""
-    import glob
-
-    return glob.escape(name)

@@ -178,23 +178,15 @@ def _worker(args):
 
 
 @contextlib.contextmanager
-def draw_pool(job: YieldJob):
-    """A map over worker processes for the uncertainty draws of one assay (builtin ``map`` on one core or for
-    few draws); the pool stops with the run, as a batch's does."""
-    from ..studies.uncertainty import DRAW_CHUNK
-
-    cores = os.cpu_count() or 1
-    if cores < 2 or job.uncertainty_draws < 2 * DRAW_CHUNK:
-        yield map
-        return
+def worker_pool(workers: int):
+    """A process pool whose workers ignore Ctrl-C and die with the parent (:func:`_worker_init`); on an error
+    or an interrupt, pending work is cancelled and the workers are killed at once."""
     from concurrent.futures import ProcessPoolExecutor
 
-    from ..studies import uncertainty  # noqa: F401  (imported before the fork, so workers inherit it)
-
-    pool = ProcessPoolExecutor(max_workers=cores, initializer=_worker_init, initargs=(os.getpid(),))
+    pool = ProcessPoolExecutor(max_workers=workers, initializer=_worker_init, initargs=(os.getpid(),))
     ACTIVE_POOLS.append(pool)
     try:
-        yield pool.map
+        yield pool
     except BaseException:
         kill_pools()
         pool.shutdown(wait=False, cancel_futures=True)
@@ -203,6 +195,22 @@ def draw_pool(job: YieldJob):
         pool.shutdown(wait=True)
     finally:
         ACTIVE_POOLS.remove(pool)
+
+
+@contextlib.contextmanager
+def draw_pool(job: YieldJob):
+    """A map over worker processes for the uncertainty draws of one assay (builtin ``map`` on one core or for
+    few draws)."""
+    from ..studies.uncertainty import DRAW_CHUNK
+
+    cores = os.cpu_count() or 1
+    if cores < 2 or job.uncertainty_draws < 2 * DRAW_CHUNK:
+        yield map
+        return
+    from ..studies import uncertainty  # noqa: F401  (imported before the fork, so workers inherit it)
+
+    with worker_pool(cores) as pool:
+        yield pool.map
 
 
 def kill_pools() -> None:
@@ -243,17 +251,13 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
     bar = ProgressBar("cutting assays", len(paths)) if progress else None
     try:
         if parallel:
-            from concurrent.futures import ProcessPoolExecutor, as_completed
+            from concurrent.futures import as_completed
 
             outcomes[0] = run_one(paths[0], job)  # in the parent first: the forked workers inherit its imports
             if bar:
                 bar.advance()
 
-            pool = ProcessPoolExecutor(max_workers=min(cores, len(paths)), initializer=_worker_init,
-                                       initargs=(os.getpid(),))
-            ACTIVE_POOLS.append(pool)
-            futs: dict = {}
-            try:
+            with worker_pool(min(cores, len(paths))) as pool:
                 starts = range(1, len(paths), TASK_SIZE)
                 futs = {pool.submit(_worker, (paths[k:k + TASK_SIZE], job)): k for k in starts}
                 for f in as_completed(futs):
@@ -261,16 +265,6 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
                         outcomes[futs[f] + j] = outcome
                         if bar:
                             bar.advance()
-            except BaseException:  # Ctrl-C or an error: cancel what is pending and stop the workers now
-                for f in futs:
-                    f.cancel()
-                kill_pools()
-                pool.shutdown(wait=False, cancel_futures=True)
-                raise
-            else:
-                pool.shutdown(wait=True)
-            finally:
-                ACTIVE_POOLS.remove(pool)
         elif len(paths) == 1 and job.uncertainty_draws:
             with progress_bar("uncertainty draws", job.uncertainty_draws) as draws, draw_pool(job) as map_fn:
                 outcomes[0] = run_one(paths[0], job, progress=draws, map_fn=map_fn)

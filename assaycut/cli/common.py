@@ -58,17 +58,6 @@ def error_line(msg: str) -> None:
     say(f"assaycut: error: {msg}", err=True)
 
 
-def _finite(doc):
-    """``doc`` with every non-finite float replaced by None (JSON has no NaN or Infinity)."""
-    if isinstance(doc, float):
-        return doc if math.isfinite(doc) else None
-    if isinstance(doc, dict):
-        return {k: _finite(v) for k, v in doc.items()}
-    if isinstance(doc, (list, tuple)):
-        return [_finite(v) for v in doc]
-    return doc
-
-
 def echo_json(doc, compact: bool = False) -> None:
     """A JSON document on stdout, non-ASCII kept, never NaN or Infinity (strict JSON); indented, or on one
     line with ``compact`` (large batches: Python's fast JSON encoder works only without indentation)."""
@@ -76,7 +65,9 @@ def echo_json(doc, compact: bool = False) -> None:
     try:
         text = json.dumps(doc, ensure_ascii=False, allow_nan=False, **kw)
     except ValueError:  # a non-finite number slipped through: null it
-        text = json.dumps(_finite(doc), ensure_ascii=False, allow_nan=False, **kw)
+        from ..report.jsonout import json_safe
+
+        text = json.dumps(json_safe(doc), ensure_ascii=False, allow_nan=False, **kw)
     typer.echo(text)
 
 

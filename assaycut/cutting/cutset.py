@@ -96,6 +96,17 @@ def normal_name(name: str) -> str:
     return unicodedata.normalize("NFKC", name).strip()
 
 
+def has_control_characters(text: str) -> bool:
+    """True when ``text`` holds a C0 or C1 control character (a line break, an escape, a bell...).
+
+    Examples
+    --------
+    >>> has_control_characters("naphtha"), has_control_characters("naph\\x1btha")
+    (False, True)
+    """
+    return any(ord(ch) < 32 or 127 <= ord(ch) < 160 for ch in text)
+
+
 def validate_cut_set(cuts: list[Cut], label: str) -> None:
     """Refuse empty or oversized sets, long or duplicate names, missing ends and cut points that do not
     increase."""
@@ -110,7 +121,7 @@ def validate_cut_set(cuts: list[Cut], label: str) -> None:
         if len(c.name) > MAX_NAME_CHARS:
             raise CutSetError(f"{label}: cut {i + 1}'s name is {len(c.name)} characters long; at most "
                               f"{MAX_NAME_CHARS} are accepted")
-        if any(ord(ch) < 32 or 127 <= ord(ch) < 160 for ch in c.name):
+        if has_control_characters(c.name):
             raise CutSetError(f"{label}: cut {i + 1}'s name holds a control character; use plain text")
         if c.end_c is not None and (isinstance(c.end_c, bool) or not isinstance(c.end_c, (int, float, np.floating))
                                     or not np.isfinite(c.end_c)):

@@ -8,6 +8,7 @@ import zipfile
 
 import numpy as np
 
+from ..cutting.cutset import has_control_characters
 from ..errors import InputError
 from ..methods.blending_indices import RULES
 from ..model.assay import Assay, CurveData, LightEnds, NarrowCuts
@@ -267,7 +268,7 @@ def _read_crude(ws, loc: SourceLocation):
     if not name:
         raise loc.err("no crude name: add a row 'name | <crude name>'")
     for key, text in (("name", name), ("origin", origin)):
-        if any(ord(ch) < 32 or 127 <= ord(ch) < 160 for ch in text):
+        if has_control_characters(text):
             raise loc.err(f"the crude {key} holds a control character (e.g. a line break); use plain text")
     if len(name) > MAX_NAME_CHARS or len(origin) > MAX_NAME_CHARS:
         raise loc.err(f"the crude {'name' if len(name) > MAX_NAME_CHARS else 'origin'} is "

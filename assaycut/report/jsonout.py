@@ -16,7 +16,7 @@ from ..units import sg_to_density15
 
 
 def json_safe(v):
-    """JSON-safe value: NaN/inf become None, numpy scalars become Python numbers (dicts recursively).
+    """JSON-safe value: NaN/inf become None, numpy scalars become Python numbers (dicts and lists recursively).
 
     Examples
     --------
@@ -29,6 +29,8 @@ def json_safe(v):
         return v
     if isinstance(v, dict):
         return {k: json_safe(x) for k, x in v.items()}
+    if isinstance(v, (list, tuple)):
+        return [json_safe(x) for x in v]
     if isinstance(v, (np.bool_, bool)):
         return bool(v)
     if isinstance(v, (np.integer,)):

@@ -303,7 +303,7 @@ class _Problem:
         # only the qualities the limits and the prices read are computed for each candidate
         self.only = {lim.property for lim in self.limits}
         if prices is not None:
-            self.only |= {a.property for p in prices.products.values() for a in p.adjust}
+            self.only = self.only.union(*(needed(p) for p in prices.products.values()))
         self.mins = [(names.index(n), v) for n, v in mins.items() if v > 0]
         self.labels = ([lim.describe() for lim in self.limits]
                        + [f"{names[j]}: volume yield >= {v:g} vol % (guard rail)" for j, v in self.mins])
