@@ -46,7 +46,7 @@ DEFAULT_MIN_YIELD_PCT = 3.0
 is smaller. [vol % of crude] (our choice, common practice, no source)"""
 METHOD = "differential evolution (scipy, Lampinen constraint handling) refined by SLSQP"
 """How the optimum is searched, as reported."""
-POPSIZE = 10
+POPSIZE = 6
 """Differential evolution population per moving cut point."""
 MAXITER = 400
 """Differential evolution generations at most; stopping before means the population converged."""
