@@ -47,6 +47,10 @@ class LightResult:
     json_doc: dict
 
 
+FOLDER_NOTE = "report folder "
+"""Start of the warning that an assay's report folder took a suffix (the CLI collects these)."""
+
+
 def claim_folder(root: Path, base: str, claims: str) -> Path:
     """The report folder of one assay of a batch: ``root/base``, or ``base_2``, ``base_3``... when another
     assay of the same run already claimed it (two crudes whose names give the same folder name, e.g.
@@ -118,7 +122,7 @@ def run_one(path: str, job: YieldJob, progress=None, map_fn=map):
             else:
                 folder = claim_folder(job.report_root, slug(assay.name), job.claims)
                 if folder.name != slug(assay.name):
-                    result.warnings.append(f"report folder {folder.name!r}: {slug(assay.name)!r} is taken by "
+                    result.warnings.append(f"{FOLDER_NOTE}{folder.name!r}: {slug(assay.name)!r} is taken by "
                                            f"another assay of this run with a similar name")
             written = write_yield_report(result, folder, job.inputs, job.unit)
         if job.json_doc:

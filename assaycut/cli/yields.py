@@ -95,7 +95,7 @@ def yields(
     (exit code 2 at the end).
     """
     from ..studies.uncertainty import Sigmas
-    from .batch import YieldJob, new_claims, release_claims, run_batch
+    from .batch import FOLDER_NOTE, YieldJob, new_claims, release_claims, run_batch
 
     cs = load_cut_set(cuts, end, overlap)
     lim = load_limits(limits)
@@ -113,7 +113,7 @@ def yields(
     finally:
         if job.claims:
             release_claims(job.claims)
-    suffixed = [w for r in results for w in r.warnings if w.startswith("report folder ")]
+    suffixed = [w for r in results for w in r.warnings if w.startswith(FOLDER_NOTE)]
     if suffixed and (json_out or len(results) > BRIEF_OVER):
         say(f"note: {len(suffixed)} report folder(s) took a suffix because crude names gave the same folder name: "
             + "; ".join(suffixed[:5]) + (" ..." if len(suffixed) > 5 else ""), err=True)
