@@ -1,8 +1,8 @@
 """Command line of assaycut: a thin shell over the readers, the core and the report writers.
 
 Each command family is a Typer app of its own (:mod:`.yields`, :mod:`.convert`, :mod:`.compare`,
-:mod:`.cutpoints`), composed here with ``add_typer``; the families share :mod:`.common` and import neither
-each other nor this module.  :mod:`.batch` runs the yield job over many files.
+:mod:`.cutpoints`, :mod:`.explore`), composed here with ``add_typer``; the families share :mod:`.common` and
+import neither each other nor this module.  :mod:`.batch` runs the yield job over many files.
 """
 
 from __future__ import annotations
@@ -14,7 +14,7 @@ import sys
 import typer
 from typer.core import TyperGroup
 
-from . import compare, convert, cutpoints, yields
+from . import compare, convert, cutpoints, explore, yields
 from .common import TdMethod, error_line, interrupted
 
 
@@ -49,7 +49,7 @@ app = typer.Typer(
     pretty_exceptions_enable=False,
     rich_markup_mode=None,
 )
-for _family in (yields, convert, compare, cutpoints):
+for _family in (yields, convert, compare, cutpoints, explore):
     app.add_typer(_family.app)
 
 

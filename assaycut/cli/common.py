@@ -224,8 +224,7 @@ def load_cut_set(cuts: Path | None, ends: list[str] | None, overlaps: list[str] 
     from ..io.tomlfiles import read_cut_set
 
     cs = read_cut_set(str(cuts)) if cuts else default_cut_set()
-    changes = parse_ends(ends)
-    cs = cs.with_ends(changes, cs.label + " with --end changes") if changes else cs
+    cs = cs.with_end_changes(parse_ends(ends))
     if overlaps:
         cs.overlaps.update(parse_ends(overlaps, option="--overlap", what="a TBP width in °C"))
         targets_for(cs, cs.overlaps)  # refuses unknown cuts and absurd overlaps now

@@ -76,6 +76,12 @@ class CutSet:
                 for c in self.cuts]
         return CutSet(cuts, label or self.label, dict(self.overlaps))
 
+    def with_end_changes(self, changes: dict[str, float]) -> "CutSet":
+        """The cut set with some cut points moved ({cut name: TBP end [°C]}), labelled as --end changes; this
+        same cut set when there are none.  ``yields --end`` and the explorer's handles both go through it, so
+        that their answers agree."""
+        return self.with_ends(changes, self.label + " with --end changes") if changes else self
+
 
 MAX_CUTS = 100
 """Most cuts in a cut set (a column makes a handful of products; a fine grid of narrow cuts a few dozen)."""

@@ -79,6 +79,40 @@ def cut_set_from_dict(doc: dict, path: str) -> CutSet:
         raise InputError(str(exc).removeprefix(f"{path}: "), file=path) from None
 
 
+def cut_set_toml(cs: CutSet, title: str = "") -> str:
+    """A cut set as cut-set TOML text that :func:`read_cut_set` reads back to the same cuts, ends [°C], swing
+    flags and overlaps [°C] (``title`` becomes the opening comment lines).
+
+    Names are TOML basic strings: JSON's string escapes are valid TOML ones, and a cut name holds no control
+    character (:func:`~assaycut.cutting.cutset.validate_cut_set`).
+
+    Examples
+    --------
+    >>> from assaycut.cutting.cutset import Cut, CutSet
+    >>> print(cut_set_toml(CutSet([Cut("naphtha", 177.5), Cut('gas "oil"', None)])))
+    [[cut]]
+    name = "naphtha"
+    end_c = 177.5
+    <BLANKLINE>
+    [[cut]]
+    name = "gas \\"oil\\""
+    <BLANKLINE>
+    """
+    import json
+
+    lines = [f"# {t}" for t in title.splitlines()] + ([""] if title else [])
+    for c in cs.cuts:
+        lines += ["[[cut]]", f"name = {json.dumps(c.name, ensure_ascii=False)}"]
+        if c.end_c is not None:
+            lines.append(f"end_c = {float(c.end_c)!r}")
+        if c.swing:
+            lines.append("swing = true")
+        if c.name in cs.overlaps:
+            lines.append(f"overlap_c = {float(cs.overlaps[c.name])!r}")
+        lines.append("")
+    return "\n".join(lines)
+
+
 def read_cut_set(path: str) -> CutSet:
     """Read a cut-set TOML file.
 
