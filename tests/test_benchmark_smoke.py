@@ -19,5 +19,5 @@ def test_benchmark_smoke_runs():
     assert out.returncode == 0, out.stderr
     figures = json.loads(out.stdout.strip().splitlines()[-1])
     assert set(figures) >= {"library_vs_floor", "library_vs_naive", "sweep_ms", "help_vs_bare", "scaling_10k_vs_1k",
-                            "peak_mb"}
+                            "peak_mb", "explore_update_ms"}
     assert all(isinstance(figures[k], (int, float)) for k in figures if k != "raw")

@@ -2,8 +2,9 @@
 the cut set, limits and prices, and the documents the page asks for.
 
 Every answer is made by the same functions as the command line's: a cut is :func:`assaycut.yields.run_yields`
-on the crude's model with the cut points moved by :meth:`~assaycut.cutting.cutset.CutSet.with_end_changes`, and
-its JSON is :func:`assaycut.report.jsonout.yield_json`, so ``POST /api/cut`` equals ``assaycut yields --end ... --json``.
+on the crude's model with the cut points moved by
+:meth:`~assaycut.cutting.cutset.CutSet.with_end_changes`, and its JSON is
+:func:`assaycut.report.jsonout.yield_json`, so ``POST /api/cut`` equals ``assaycut yields --end ... --json``.
 """
 
 from __future__ import annotations

@@ -1,0 +1,83 @@
+"""End to end in a real headless browser (Debian's Chromium driven by playwright-python): the page loads,
+a cut-point handle is dragged, and the table's yields follow, equal to the server's own answer.
+
+Without Chromium on the machine the test is skipped, unless ASSAYCUT_REQUIRE_BROWSER=1 (CI sets it, after
+installing Chromium in .ci/run), when a missing browser fails it.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import shutil
+import urllib.request
+
+import pytest
+
+from tests.explore.serving import running_explorer
+
+CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
+if CHROMIUM is None and os.environ.get("ASSAYCUT_REQUIRE_BROWSER") != "1":
+    pytest.skip("no Chromium on this machine (apt-get install chromium); CI requires it", allow_module_level=True)
+
+FLAGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+         "--disable-background-networking", "--disable-component-update", "--disable-sync"]
+
+
+def api_cut(port: int, token: str, assay: str, ends: dict) -> dict:
+    req = urllib.request.Request(f"http://127.0.0.1:{port}/api/cut",
+                                 data=json.dumps({"assay": assay, "ends": ends}).encode(),
+                                 headers={"Authorization": f"Bearer {token}", "Content-Type": "application/json"})
+    with urllib.request.urlopen(req, timeout=10) as r:
+        return json.loads(r.read())
+
+
+def test_drag_a_handle_and_the_yields_follow(tmp_path):
+    assert CHROMIUM, "ASSAYCUT_REQUIRE_BROWSER=1 but no chromium is installed"
+    from playwright.sync_api import sync_playwright
+
+    with running_explorer("--prices", "assays_demo/prices_demo.toml") as (url, port, token, _), sync_playwright() as p:
+        browser = p.chromium.launch(executable_path=CHROMIUM, args=FLAGS)
+        try:
+            page = browser.new_page(viewport={"width": 1500, "height": 1000}, accept_downloads=True)
+            errors = []
+            page.on("pageerror", lambda e: errors.append(str(e)))
+            page.on("console", lambda m: errors.append(m.text) if m.type == "error" else None)
+            page.goto(url)
+            page.wait_for_selector("body[data-ready=yes]", timeout=20_000)
+            cell = page.locator('article[data-crude="Selkie Light"] tr[data-cut="kerosene"] td[data-col="vol_pct"]')
+            field = page.locator('input[data-cut-point="kerosene"]')
+            before, t_before = cell.inner_text(), float(field.input_value())
+            assert t_before == 232.0
+            # the kerosene handle's knob, dragged 15 px up (a higher cut point)
+            box = page.locator('g[data-handle="kerosene"] rect.knob').bounding_box()
+            x, y = box["x"] + box["width"] / 2, box["y"] + box["height"] / 2
+            page.mouse.move(x, y)
+            page.mouse.down()
+            for k in range(1, 6):
+                page.mouse.move(x, y - 3 * k)
+            page.mouse.up()
+            page.wait_for_function(
+                "([sel, old]) => document.querySelector(sel).textContent !== old",
+                arg=['article[data-crude="Selkie Light"] tr[data-cut="kerosene"] td[data-col="vol_pct"]', before],
+                timeout=10_000)
+            t_after = float(field.input_value())
+            assert t_after > t_before + 5  # the handle went up
+            page.wait_for_timeout(500)  # let the last request of the drag land
+            want = api_cut(port, token, "Selkie Light", {"kerosene": t_after})
+            kero = next(c for c in want["cuts"] if c["name"] == "kerosene")
+            assert float(cell.inner_text()) == pytest.approx(kero["vol_pct"], abs=0.006)  # shown to 2 decimals
+            assert float(cell.inner_text()) > float(before)
+            # the cut-set download carries the dragged cut point
+            with page.expect_download() as dl:
+                page.click("#save-cuts")
+            saved = tmp_path / "saved.toml"
+            dl.value.save_as(saved)
+            from assaycut.io.tomlfiles import read_cut_set
+
+            cs = read_cut_set(str(saved))
+            assert dict(zip(cs.names, cs.ends_c))["kerosene"] == t_after
+            page.screenshot(path=str(tmp_path / "explorer.png"), full_page=True)
+            assert errors == []
+        finally:
+            browser.close()
