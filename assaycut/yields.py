@@ -10,8 +10,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from .cutting.cutset import CutSet
-from .cutting.ideal import add_rates, closure, cut_table
-from .cutting.limits import Limit, check_limits, nearest_cut, unmatched_cuts
+from .cutting.ideal import add_rates, closure, cut_rows, cut_table
+from .cutting.limits import Limit, check_limits, limit_rows, nearest_cut, unmatched_cuts
 from .cutting.qualities import ESTIMATED, NOT_ESTIMATED
 from .methods.product_properties import describe_ranges
 from .model.assay import Assay
@@ -39,10 +39,11 @@ class YieldResult:
     assay : Assay
     model : CrudeModel
     cut_set : CutSet
-    cuts : pandas.DataFrame
-        The cut table (see :data:`assaycut.cutting.ideal.CUT_COLUMNS`).
-    limits : pandas.DataFrame
-        Product-limit status (see :func:`assaycut.cutting.limits.check_limits`).
+    cuts : pandas.DataFrame or list of dict
+        The cut table (see :data:`assaycut.cutting.ideal.CUT_COLUMNS`); its rows as dicts when run with
+        ``frames=False``.
+    limits : pandas.DataFrame or list of dict
+        Product-limit status (see :func:`assaycut.cutting.limits.check_limits`); rows as dicts likewise.
     closure : dict
         Σ vol % - 100 and Σ wt % - 100. [%]
     warnings, notes : list of str
@@ -88,7 +89,8 @@ METHOD_NOTES = {
 
 def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
                method: str = "daubert-1994", model: CrudeModel | None = None, uncertainty_draws: int = 0,
-               sigmas=None, rate_bbl_per_day: float | None = None, progress=None, map_fn=map) -> YieldResult:
+               sigmas=None, rate_bbl_per_day: float | None = None, progress=None, map_fn=map,
+               frames: bool = True) -> YieldResult:
     """Model, cut and check one assay.
 
     Parameters
@@ -111,6 +113,10 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         ``progress(done, total)`` during the uncertainty draws.
     map_fn : callable
         Map-like callable sharing the uncertainty draws out (see :func:`~assaycut.studies.uncertainty.monte_carlo`).
+    frames : bool
+        Give the cut table and the limit status as DataFrames (default, what the report writers take), or,
+        when False, as lists of row dicts with the same keys and values, made without pandas (for a result that
+        is only printed as JSON; ideal cuts without --rate only, else DataFrames anyway).
 
     Returns
     -------
@@ -118,20 +124,26 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     """
     model = model or build_model(assay, method)
     products = None
-    if cut_set.overlaps:
-        from .cutting.products import fractionate
-
-        cuts, products = fractionate(model, cut_set, cut_set.overlaps)
+    if not frames and not cut_set.overlaps and rate_bbl_per_day is None:
+        cuts, cols = cut_rows(model, cut_set)
+        names = [r["name"] for r in cuts]
+        lim = limit_rows(names, cols, limits or [])
     else:
-        cuts = cut_table(model, cut_set)
-    if rate_bbl_per_day is not None:
-        cuts = add_rates(cuts, rate_bbl_per_day, float(sg_to_density15(assay.sg)))
-    lim = check_limits(cuts, limits or [])
+        if cut_set.overlaps:
+            from .cutting.products import fractionate
+
+            cuts, products = fractionate(model, cut_set, cut_set.overlaps)
+        else:
+            cuts = cut_table(model, cut_set)
+        if rate_bbl_per_day is not None:
+            cuts = add_rates(cuts, rate_bbl_per_day, float(sg_to_density15(assay.sg)))
+        lim = check_limits(cuts, limits or [])
+        names = list(cuts["name"])
     clo = closure(cuts)
     warnings = list(model.warnings) + _cut_warnings(cuts, model)
-    missing = unmatched_cuts(limits or [], list(cuts["name"]))
+    missing = unmatched_cuts(limits or [], names)
     for c in missing:
-        near = nearest_cut(c, list(cuts["name"]))
+        near = nearest_cut(c, names)
         which = "; ".join(lim.describe() for lim in (limits or []) if lim.cut == c)
         warnings.append(f"limits on cut {c!r} are not checked ({which}): the cut set ({cut_set.label}) has no cut "
                         f"of that name" + (f"; nearest is {near!r}" if near else "") + "; rename the cut or the limit")
@@ -162,9 +174,13 @@ def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
     """Warnings about the cuts: reaching into the extension, D86 estimates above 400 °C, empty cuts, estimates
     left empty outside their method's range."""
     warnings = []
-    names = cuts["name"].tolist()
-    d86 = cuts["d86_c"].tolist()
-    ext = [n for n, x in zip(names, cuts["extrapolated"].tolist()) if x]
+
+    def column(key: str) -> list:
+        return [r[key] for r in cuts] if isinstance(cuts, list) else cuts[key].tolist()
+
+    names = column("name")
+    d86 = column("d86_c")
+    ext = [n for n, x in zip(names, column("extrapolated")) if x]
     c = model.curve
     if model.all_on_extension:
         warnings.append(f"every cut is flagged extrapolated: {model.all_on_extension}")
@@ -178,12 +194,12 @@ def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
     if hot:
         warnings.append(f"the D86 estimate of {', '.join(hot)} goes above 400 °C, beyond the data behind "
                         f"Daubert 1994 (and a D86 is not run on such material): treat it as indicative only")
-    empty = [n for n, v in zip(names, cuts["vol_pct"].tolist()) if v <= 1e-9]
+    empty = [n for n, v in zip(names, column("vol_pct")) if v <= 1e-9]
     if empty:
         warnings.append(f"cut(s) {', '.join(empty)} have no yield: their qualities are left empty")
     ranges = describe_ranges()
     for col, what in (("cetane_index_d4737", "cetane index"), ("flash_c_est", "flash estimate")):
-        out = [n for n, d, v in zip(names, d86, cuts[col].tolist()) if d is not None and v != v]
+        out = [n for n, d, v in zip(names, d86, column(col)) if d is not None and v != v]
         if out:
             warnings.append(f"{what} left empty for {', '.join(out)}: the cut's D86 or density lies outside "
                             f"the method's range ({ranges[col]})")

@@ -112,7 +112,8 @@ def run_one(path: str, job: YieldJob, progress=None, map_fn=map):
         assay = load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
         result = run_yields(assay, job.cut_set, job.limits, method=job.method,
                             uncertainty_draws=job.uncertainty_draws, sigmas=job.sigmas,
-                            rate_bbl_per_day=job.rate_bbl_per_day, progress=progress, map_fn=map_fn)
+                            rate_bbl_per_day=job.rate_bbl_per_day, progress=progress, map_fn=map_fn,
+                            frames=not job.light)
         written = []
         if job.report_root is not None:
             from ..report.write import slug, write_yield_report

@@ -87,11 +87,47 @@ def columns_frame(names: list[str], cols: dict[str, np.ndarray]):
     est = cols.get("estimated", {})
     df = pd.DataFrame({k: v for k, v in cols.items() if k not in ("d86", "estimated")})
     df.insert(0, "name", names)
-    df["d86_c"] = [None if not np.all(np.isfinite(r)) else {str(p): float(x) for p, x in zip(D86_STD, r)}
-                   for r in cols["d86"]]
+    df["d86_c"] = _d86_dicts(cols["d86"])
     extra = sorted(c for c in df.columns if c not in CUT_COLUMNS and np.isfinite(df[c].to_numpy(float)).any())
     df["estimated"] = [[k for k in sorted(est) if bool(est[k][i])] for i in range(len(df))]
     return df[CUT_COLUMNS + extra + ["estimated"]]
+
+
+def _d86_dicts(d86) -> list:
+    """Each cut's D86 as {"0": .., "10": .., ...} [°C], or None where any point is missing."""
+    return [None if not np.all(np.isfinite(r)) else {str(p): float(x) for p, x in zip(D86_STD, r)} for r in d86]
+
+
+def columns_rows(names: list[str], cols: dict[str, np.ndarray]) -> list[dict]:
+    """The rows of :func:`columns_frame` as plain dicts, without building a DataFrame: the same keys in the
+    same order and the same values (Python floats and bools), for the paths that only print JSON."""
+    est = cols.get("estimated", {})
+    arrays = {k: np.asarray(v) for k, v in cols.items() if k not in ("d86", "estimated")}
+    extra = sorted(c for c, v in arrays.items() if c not in CUT_COLUMNS and np.isfinite(v.astype(float)).any())
+    keys = [k for k in CUT_COLUMNS + extra if k not in ("name", "d86_c")]
+    lists = {k: arrays[k].tolist() for k in keys}
+    d86 = _d86_dicts(cols["d86"])
+    flags = sorted(est)
+    rows = []
+    for i, name in enumerate(names):
+        row = {"name": name}
+        for k in CUT_COLUMNS[1:] + extra:
+            row[k] = d86[i] if k == "d86_c" else lists[k][i]
+        row["estimated"] = [k for k in flags if bool(est[k][i])]
+        rows.append(row)
+    return rows
+
+
+def cut_rows(model: CrudeModel, cut_set: CutSet) -> tuple[list[dict], dict[str, np.ndarray]]:
+    """:func:`cut_table` without the DataFrame: the rows as dicts (:func:`columns_rows`) and the one-row cut
+    columns the limit checks read (:func:`assaycut.cutting.limits.limit_rows`; each D86 is all missing where
+    any of its points is, as in the table)."""
+    names, ends = cut_set.reported()
+    cols = cut_columns(model, ends[None, :])
+    rows = columns_rows(names, first_row(cols))
+    d86 = np.array(cols["d86"], dtype=float)
+    d86[~np.all(np.isfinite(d86), axis=-1)] = np.nan
+    return rows, {**cols, "d86": d86}
 
 
 def cut_columns(model: CrudeModel, ends: np.ndarray, only=None) -> dict[str, np.ndarray]:
@@ -124,17 +160,17 @@ def cut_columns(model: CrudeModel, ends: np.ndarray, only=None) -> dict[str, np.
     vol = vb - va
     wt = wb - wa
     curve = model.curve
-    mid_vol_c = np.where(vol > 1e-9, curve.temp_at(0.5 * (va + vb)), np.nan)
-    vabp = curve.mean_temp(va, vb)
-    sg = model.mean_sg(va, vb)
-    sulfur = model.mean_sulfur(wa, wb)
     fr = np.array(D86_STD + (5,), float) / 100.0
     slice_v = va[..., None] + fr * vol[..., None]
-    tbp_all = curve.temp_at(slice_v)
+    nodes = 0.5 * (va + vb)[..., None] + 0.5 * vol[..., None] * _GL_X
+    mid, ta, tb, tbp_all, t_nodes = _temps_at(curve, [0.5 * (va + vb), va, vb, slice_v, nodes])
+    mid_vol_c = np.where(vol > 1e-9, mid, np.nan)
+    vabp = curve.mean_temp(va, vb, ta, tb)
+    sg = model.mean_sg(va, vb)
+    sulfur = model.mean_sulfur(wa, wb)
     tbp = tbp_all[..., :-1]
     s_crude = np.nan if model.sulfur_wt_pct is None else model.sulfur_wt_pct
-    nodes = 0.5 * (va + vb)[..., None] + 0.5 * vol[..., None] * _GL_X
-    meabp = meabp_pseudo_components(curve.temp_at(nodes), model.sg_dist(nodes), _GL_W)
+    meabp = meabp_pseudo_components(t_nodes, model.sg_dist(nodes), _GL_W)
     out = {"start_c": t_start, "end_c": t_end, "vol_pct": vol, "wt_pct": wt, "cum_vol_pct": vb, "cum_wt_pct": wb,
            "mid_vol_c": mid_vol_c}
     out.update(derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp))
@@ -149,6 +185,16 @@ def cut_columns(model: CrudeModel, ends: np.ndarray, only=None) -> dict[str, np.
     out["estimated"] = est
     out["extrapolated"] = (curve.is_extrapolated(va, vb) | _all_flag(model, vol)) & (vol > 1e-9)
     return out
+
+
+def _temps_at(curve, pcts: list[np.ndarray]) -> list[np.ndarray]:
+    """``curve.temp_at`` of several arrays of percents in one call (the inverse is pointwise, so the values are
+    those of separate calls; row-wise curves keep their rows: the arrays share the leading axis). [°C]"""
+    m = pcts[0].shape[0]
+    flat = [p.reshape(m, -1) for p in pcts]
+    t = curve.temp_at(np.concatenate(flat, axis=1))
+    cuts = np.cumsum([f.shape[1] for f in flat])[:-1]
+    return [part.reshape(p.shape) for part, p in zip(np.split(t, cuts, axis=1), pcts)]
 
 
 def _all_flag(model, like) -> np.ndarray:
@@ -253,4 +299,6 @@ def closure(df) -> dict[str, float]:
     >>> closure(pd.DataFrame({"vol_pct": [40.0, 60.0], "wt_pct": [35.0, 65.0]}))
     {'vol_pct': 0.0, 'wt_pct': 0.0}
     """
+    if isinstance(df, list):  # rows of cut_rows
+        return {k: float(np.sum([r[k] for r in df]) - 100.0) for k in ("vol_pct", "wt_pct")}
     return {"vol_pct": float(df["vol_pct"].sum() - 100.0), "wt_pct": float(df["wt_pct"].sum() - 100.0)}

@@ -259,7 +259,16 @@ def check_limits(cuts, limits: list[Limit]):
     import pandas as pd
 
     names = list(cuts["name"])
-    cols = frame_columns(cuts) if limits else {}
+    return pd.DataFrame(limit_rows(names, frame_columns(cuts) if limits else {}, limits), columns=LIMIT_COLUMNS)
+
+
+LIMIT_COLUMNS = ["cut", "property", "label", "limit", "value", "status", "note", "source"]
+"""Columns of the limit-status table."""
+
+
+def limit_rows(names: list[str], cols: dict, limits: list[Limit]) -> list[dict]:
+    """The rows of :func:`check_limits` as dicts (keys :data:`LIMIT_COLUMNS`), from one row of cut columns
+    (:func:`frame_columns`, or :func:`assaycut.cutting.ideal.cut_rows`)."""
     out = []
     for lim in applicable(limits, names):
         value = float(limit_values(cols, names.index(lim.cut), lim.property)[0])
@@ -270,7 +279,7 @@ def check_limits(cuts, limits: list[Limit]):
             note = LOWER_BOUND_NOTE
         out.append({"cut": lim.cut, "property": lim.property, "label": lim.label, "limit": lim.bounds_text(),
                     "value": value, "status": status, "note": note, "source": lim.source})
-    return pd.DataFrame(out, columns=["cut", "property", "label", "limit", "value", "status", "note", "source"])
+    return out
 
 
 def limit_margins(cols: dict, names: list[str], limits: list[Limit]):

@@ -94,14 +94,16 @@ class TbpCurve:
         """TBP temperature [°C] at cumulative ``pct`` [vol %] distilled (left end of a flat step)."""
         return self.spline.inverse(pct)
 
-    def mean_temp(self, pct_a, pct_b):
+    def mean_temp(self, pct_a, pct_b, ta=None, tb=None):
         """Volume-average TBP over [pct_a, pct_b] [vol %], by parts: ∫T dV = [T V] - ∫V dT. [°C]
 
-        Where the interval has no width, the temperature at that point is returned.
+        Where the interval has no width, the temperature at that point is returned.  ``ta``, ``tb``: the
+        TBP at ``pct_a`` and ``pct_b`` [°C] when the caller has them already (else found here).
         """
         pct_a = np.asarray(pct_a, dtype=float)
         pct_b = np.asarray(pct_b, dtype=float)
-        ta, tb = self.temp_at(pct_a), self.temp_at(pct_b)
+        ta = self.temp_at(pct_a) if ta is None else ta
+        tb = self.temp_at(pct_b) if tb is None else tb
         # the inverse returns the left end of flat steps; integrate V(T) over [ta, tb]
         area = tb * pct_b - ta * pct_a - self.spline.integral(ta, tb)
         width = pct_b - pct_a

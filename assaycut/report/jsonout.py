@@ -41,8 +41,10 @@ def json_safe(v):
 
 
 def records(df) -> list[dict]:
-    """The rows of a DataFrame as JSON-safe dicts (through one object array: much faster than
-    ``DataFrame.to_dict`` on small tables)."""
+    """The rows of a DataFrame (or a list of row dicts) as JSON-safe dicts (through one object array: much
+    faster than ``DataFrame.to_dict`` on small tables)."""
+    if isinstance(df, list):
+        return [{c: json_safe(v) for c, v in row.items()} for row in df]
     cols = list(df.columns)
     return [{c: json_safe(v) for c, v in zip(cols, row)} for row in df.to_numpy(dtype=object).tolist()]
 
