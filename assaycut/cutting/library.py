@@ -17,7 +17,9 @@ from ..model.spline import (
     hermite_basis,
     hermite_combine,
     hermite_solve,
+    INVERSE_TABLE_STEPS,
     interval_mean,
+    newton_on_segment,
     segment_antiderivative,
     segment_integrals,
 )
@@ -65,6 +67,7 @@ class BatchPchip:
         self.off = np.arange(n)[:, None] * span
         self.flat = (X + self.off).ravel()
         self.n, self.k = n, k
+        self._inv = None
 
     def _rows(self, q):
         q = np.asarray(q, dtype=float)
@@ -103,7 +106,49 @@ class BatchPchip:
         return self.antiderivative(b) - self.antiderivative(a)
 
     def inverse(self, yq):
-        """Row-wise x where the (non-decreasing) spline reaches ``yq``; the left end of flat steps."""
+        """Row-wise x where the (non-decreasing) spline reaches ``yq``; the left end of flat steps.
+
+        The method of :meth:`~assaycut.model.spline.Pchip.inverse`, row-wise: a table of every spline at
+        :data:`~assaycut.model.spline.INVERSE_TABLE_STEPS` points per segment (made once) brackets the root,
+        Newton steps on the segment's cubic finish it, and any point not converged is solved by
+        :func:`~assaycut.model.spline.hermite_solve` (:meth:`inverse_reference`, which it is tested against).
+        """
+        q2, shape = self._rows(yq)
+        ymin, ymax = self.Y[:, :1], self.Y[:, -1:]
+        q2 = np.clip(q2, ymin, ymax)
+        ys, yoff = self._table()
+        k = INVERSE_TABLE_STEPS
+        width = ys.shape[1]
+        rows = np.broadcast_to(np.arange(self.n)[:, None], q2.shape)
+        g = np.searchsorted((ys + yoff).ravel(), (q2 + yoff).ravel(), side="left").reshape(q2.shape) - 1
+        j = np.clip(g - rows * width, 0, width - 2)
+        i = np.minimum(j // k, self.k - 2)
+        h = self.H[rows, i]
+        y0, y1 = self.Y[rows, i], self.Y[rows, i + 1]
+        m0, m1 = h * self.D[rows, i], h * self.D[rows, i + 1]
+        t = newton_on_segment(y0, y1, m0, m1, q2, ys[rows, j], ys[rows, j + 1], (j - i * k) / k)
+        x = self.X[rows, i] + t * h
+        x = np.where(q2 == y1, self.X[rows, i + 1], x)
+        x = np.where(q2 == y0, self.X[rows, i], x)
+        return x.reshape(shape)
+
+    def _table(self):
+        """Each row's spline at INVERSE_TABLE_STEPS points per segment and at its last node, made once, and the
+        row offsets that let one flat search serve every row."""
+        if self._inv is None:
+            k = INVERSE_TABLE_STEPS
+            tt = np.arange(k) / k
+            y0, y1 = self.Y[:, :-1, None], self.Y[:, 1:, None]
+            m0, m1 = (self.H * self.D[:, :-1])[..., None], (self.H * self.D[:, 1:])[..., None]
+            vals = hermite_combine(hermite_basis(tt), y0, y1, m0, m1).reshape(self.n, -1)
+            ys = np.maximum.accumulate(np.concatenate([vals, self.Y[:, -1:]], axis=1), axis=1)
+            span = float(np.max(ys) - np.min(ys)) + 10.0
+            self._inv = (ys, np.arange(self.n)[:, None] * span)
+        return self._inv
+
+    def inverse_reference(self, yq):
+        """The reference row-wise inverse: :func:`~assaycut.model.spline.hermite_solve` on the segment found by
+        a search of the nodes."""
         q2, shape = self._rows(yq)
         ymin, ymax = self.Y[:, :1], self.Y[:, -1:]
         q2 = np.clip(q2, ymin, ymax)

@@ -223,25 +223,7 @@ class Pchip:
         h = self.h[i]
         y0, y1 = self.y[i], self.y[i + 1]
         m0, m1 = h * self.d[i], h * self.d[i + 1]
-        tl = (j - i * k) / k
-        th = np.minimum(tl + 1.0 / k, 1.0)
-        dy = ys[j + 1] - ys[j]
-        with np.errstate(divide="ignore", invalid="ignore"):
-            t = np.where(dy > 0, tl + (q - ys[j]) / np.where(dy > 0, dy, 1.0) * (th - tl), tl)
-        c3 = 2 * y0 - 2 * y1 + m0 + m1
-        c2 = -3 * y0 + 3 * y1 - 2 * m0 - m1
-        c0 = y0 - q
-        for _ in range(NEWTON_STEPS):
-            f = ((c3 * t + c2) * t + m0) * t + c0
-            fp = (3 * c3 * t + 2 * c2) * t + m0
-            with np.errstate(divide="ignore", invalid="ignore"):
-                t = np.clip(np.where(fp > 0, t - f / np.where(fp > 0, fp, 1.0), t), tl, th)
-        f = ((c3 * t + c2) * t + m0) * t + c0
-        bad = (np.abs(f) > 1e-13 * np.maximum(np.abs(y0) + np.abs(y1), 1e-300)) & (y1 > y0)
-        if np.any(bad):  # a zero slope at the root: the reference solve for these points only
-            t = np.array(t, dtype=float, copy=True)
-            t[bad] = hermite_solve(y0[bad], y1[bad], m0[bad], m1[bad], q[bad])
-        t = np.where(y1 > y0, t, 0.0)
+        t = newton_on_segment(y0, y1, m0, m1, q, ys[j], ys[j + 1], (j - i * k) / k)
         x = self.x[i] + t * h
         x = np.where(q == y1, self.x[i + 1], x)
         return np.where(np.isnan(raw), np.nan, np.where(q == y0, self.x[i], x))
@@ -273,6 +255,49 @@ class Pchip:
                                  self.y[-1:]])
             self._inv = np.maximum.accumulate(ys)  # rounding must not make the table fall
         return self._inv
+
+
+def newton_on_segment(y0, y1, m0, m1, q, ya, yb, tl):
+    """Position t (0-1) in a cubic Hermite segment where it reaches ``q``, from a table bracket.
+
+    The root lies in [tl, tl + 1/INVERSE_TABLE_STEPS], where the segment goes from ``ya`` to ``yb``; Newton
+    steps on p(t) = c3 t^3 + c2 t^2 + m0 t + y0 start from the linear guess inside it and stay in it.  Points
+    whose residual is still above 1e-13 of the values (a zero slope at the root) are solved by
+    :func:`hermite_solve`; a flat segment gives 0 (its left end).
+
+    Parameters
+    ----------
+    y0, y1, m0, m1 : numpy.ndarray
+        End values and end slopes times the width of each point's segment.
+    q : numpy.ndarray
+        Values sought, inside [y0, y1].
+    ya, yb, tl : numpy.ndarray
+        The bracket's table values and its left position in the segment.
+
+    Returns
+    -------
+    numpy.ndarray
+        t of each point.
+    """
+    k = INVERSE_TABLE_STEPS
+    th = np.minimum(tl + 1.0 / k, 1.0)
+    dy = yb - ya
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = np.where(dy > 0, tl + (q - ya) / np.where(dy > 0, dy, 1.0) * (th - tl), tl)
+    c3 = 2 * y0 - 2 * y1 + m0 + m1
+    c2 = -3 * y0 + 3 * y1 - 2 * m0 - m1
+    c0 = y0 - q
+    for _ in range(NEWTON_STEPS):
+        f = ((c3 * t + c2) * t + m0) * t + c0
+        fp = (3 * c3 * t + 2 * c2) * t + m0
+        with np.errstate(divide="ignore", invalid="ignore"):
+            t = np.clip(np.where(fp > 0, t - f / np.where(fp > 0, fp, 1.0), t), tl, th)
+    f = ((c3 * t + c2) * t + m0) * t + c0
+    bad = (np.abs(f) > 1e-13 * np.maximum(np.abs(y0) + np.abs(y1), 1e-300)) & (y1 > y0)
+    if np.any(bad):  # a zero slope at the root: the reference solve for these points only
+        t = np.array(t, dtype=float, copy=True)
+        t[bad] = hermite_solve(y0[bad], y1[bad], m0[bad], m1[bad], q[bad])
+    return np.where(y1 > y0, t, 0.0)
 
 
 INVERSE_TABLE_STEPS = 8
