@@ -36,6 +36,8 @@ class YieldJob:
     claims: str = ""  # the run's claims folder for report folder names (see claim_folder); "" for one assay
     json_doc: bool = False  # make each assay's JSON object in the worker (yields --json)
     light: bool = False  # send back only the JSON object and the warnings (nothing else of the result is used)
+    frames: bool = True  # cut tables as DataFrames (what the report writers and printed tables take); else rows
+    json_text: bool = False  # a light result carries its JSON object already encoded on one line (big batches)
 
 
 @dataclass
@@ -44,7 +46,8 @@ class LightResult:
 
     name: str
     warnings: list
-    json_doc: dict
+    json_doc: dict | None
+    json_text: str | None = None  # the same object encoded on one line (see YieldJob.json_text), json_doc then None
 
 
 FOLDER_NOTE = "report folder "
@@ -104,42 +107,99 @@ def run_one(path: str, job: YieldJob, progress=None, map_fn=map):
     -------
     (YieldResult or None, list of written paths, error message or None)
     """
-    from ..io import load_assay
     from ..yields import run_yields
 
     try:
-        api, sg, density, sulfur = job.gravity
-        assay = load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
+        assay = _load(path, job)
         result = run_yields(assay, job.cut_set, job.limits, method=job.method,
                             uncertainty_draws=job.uncertainty_draws, sigmas=job.sigmas,
                             rate_bbl_per_day=job.rate_bbl_per_day, progress=progress, map_fn=map_fn,
-                            frames=not job.light)
-        written = []
-        if job.report_root is not None:
-            from ..report.write import slug, write_yield_report
-
-            if job.single_folder or not job.claims:
-                folder = job.report_root if job.single_folder else job.report_root / slug(assay.name)
-            else:
-                folder = claim_folder(job.report_root, slug(assay.name), job.claims)
-                if folder.name != slug(assay.name):
-                    result.warnings.append(f"{FOLDER_NOTE}{folder.name!r}: {slug(assay.name)!r} is taken by "
-                                           f"another assay of this run with a similar name")
-            written = write_yield_report(result, folder, job.inputs, job.unit)
-        if job.json_doc:
-            from ..report.jsonout import yield_json
-
-            result.json_doc = yield_json(result)
-            if job.light:
-                return LightResult(assay.name, list(result.warnings), result.json_doc), written, None
-        return result, written, None
-    except AssaycutError as exc:
-        msg = str(exc)  # errors from the core (a curve that cannot be modelled) name the file here
-        return None, [], msg if msg.startswith(str(path)) else f"{path}: {msg}"
-    except MemoryError:
-        return None, [], f"{path}: out of memory; the input is too large"
+                            frames=job.frames)
+        return _deliver(result, job)
     except Exception as exc:  # a batch goes on; the failure is reported with its path
-        return None, [], f"{path}: unexpected {type(exc).__name__}: {exc} (please report this with the file)"
+        return None, [], _failure(path, exc)
+
+
+def _load(path: str, job: YieldJob):
+    from ..io import load_assay
+
+    api, sg, density, sulfur = job.gravity
+    return load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
+
+
+def _failure(path: str, exc: Exception) -> str:
+    """The one-line message of an assay that failed, naming its file."""
+    if isinstance(exc, AssaycutError):
+        msg = str(exc)  # errors from the core (a curve that cannot be modelled) name the file here
+        return msg if msg.startswith(str(path)) else f"{path}: {msg}"
+    if isinstance(exc, MemoryError):
+        return f"{path}: out of memory; the input is too large"
+    return f"{path}: unexpected {type(exc).__name__}: {exc} (please report this with the file)"
+
+
+def _deliver(result, job: YieldJob):
+    """Write the assay's report (when asked) and make its JSON object (when asked): the outcome of one assay."""
+    written = []
+    assay = result.assay
+    if job.report_root is not None:
+        from ..report.write import slug, write_yield_report
+
+        if job.single_folder or not job.claims:
+            folder = job.report_root if job.single_folder else job.report_root / slug(assay.name)
+        else:
+            folder = claim_folder(job.report_root, slug(assay.name), job.claims)
+            if folder.name != slug(assay.name):
+                result.warnings.append(f"{FOLDER_NOTE}{folder.name!r}: {slug(assay.name)!r} is taken by "
+                                       f"another assay of this run with a similar name")
+        written = write_yield_report(result, folder, job.inputs, job.unit)
+    if job.json_doc:
+        from ..report.jsonout import yield_json
+
+        result.json_doc = yield_json(result)
+        if job.light and job.json_text:
+            from .common import json_text
+
+            return LightResult(assay.name, list(result.warnings), None, json_text(result.json_doc, True)), written, None
+        if job.light:
+            return LightResult(assay.name, list(result.warnings), result.json_doc), written, None
+    return result, written, None
+
+
+def together(job: YieldJob) -> bool:
+    """Whether a job's assays can be cut together by the library engine (:func:`run_chunk`): row results only
+    (no report or printed table), ideal cuts, no rates, no uncertainty draws."""
+    return (not job.frames and job.report_root is None and not job.cut_set.overlaps
+            and job.rate_bbl_per_day is None and not job.uncertainty_draws)
+
+
+def run_chunk(paths: list[str], job: YieldJob) -> list:
+    """The outcomes of :func:`run_one` for several assays, cut together by the library engine when the job
+    allows (:func:`together`; :func:`assaycut.yields.run_yields_many`, equal to one cut per assay to 1e-9),
+    else one by one.  A file that fails to load or model is reported and the others go on."""
+    if not together(job) or len(paths) < 2:
+        return [run_one(p, job) for p in paths]
+    from ..yields import build_model, run_yields_many  # the core's own model builder, as run_yields uses
+
+    outcomes: list = [None] * len(paths)
+    good = []
+    for i, p in enumerate(paths):
+        try:
+            assay = _load(p, job)
+            good.append((i, assay, build_model(assay, job.method)))
+        except Exception as exc:
+            outcomes[i] = (None, [], _failure(p, exc))
+    try:
+        results = run_yields_many([a for _, a, _ in good], [m for _, _, m in good], job.cut_set, job.limits)
+    except Exception:  # cut them one by one instead, so that each failure names its own file
+        for i, _, _ in good:
+            outcomes[i] = run_one(paths[i], job)
+        return outcomes
+    for (i, _, _), res in zip(good, results):
+        try:
+            outcomes[i] = _deliver(res, job)
+        except Exception as exc:
+            outcomes[i] = (None, [], _failure(paths[i], exc))
+    return outcomes
 
 
 _PARENT = {"pid": None}
@@ -168,12 +228,17 @@ def _worker_init(parent_pid: int) -> None:
         os._exit(1)
 
 
-TASK_SIZE = 8
-"""Assays per task sent to a worker (fewer round trips between processes)."""
+TASK_SIZE = 16
+"""Assays per task sent to a worker (fewer round trips between processes; a chunk cut together by the library
+engine when the job allows)."""
 
 
 def _worker(args):
     chunk, job = args
+    if _PARENT["pid"] is not None and os.getppid() != _PARENT["pid"]:
+        os._exit(1)  # orphaned: never write for a dead parent
+    if together(job):
+        return run_chunk(chunk, job)  # no files are written: one check per chunk is enough
     out = []
     for path in chunk:
         if _PARENT["pid"] is not None and os.getppid() != _PARENT["pid"]:
@@ -273,6 +338,11 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
         elif len(paths) == 1 and job.uncertainty_draws:
             with progress_bar("uncertainty draws", job.uncertainty_draws) as draws, draw_pool(job) as map_fn:
                 outcomes[0] = run_one(paths[0], job, progress=draws, map_fn=map_fn)
+        elif together(job) and len(paths) > 1:
+            for k in range(0, len(paths), TASK_SIZE):
+                outcomes[k:k + TASK_SIZE] = run_chunk(paths[k:k + TASK_SIZE], job)
+                if bar:
+                    bar.advance(len(paths[k:k + TASK_SIZE]))
         else:
             for i, p in enumerate(paths):
                 outcomes[i] = run_one(p, job)

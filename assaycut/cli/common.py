@@ -59,16 +59,20 @@ def error_line(msg: str) -> None:
 
 
 def echo_json(doc, compact: bool = False) -> None:
-    """A JSON document on stdout, non-ASCII kept, never NaN or Infinity (strict JSON); indented, or on one
+    """A JSON document on stdout (:func:`json_text`)."""
+    typer.echo(json_text(doc, compact))
+
+
+def json_text(doc, compact: bool = False) -> str:
+    """A JSON document as text, non-ASCII kept, never NaN or Infinity (strict JSON); indented, or on one
     line with ``compact`` (large batches: Python's fast JSON encoder works only without indentation)."""
     kw = {"separators": (",", ":")} if compact else {"indent": 2}
     try:
-        text = json.dumps(doc, ensure_ascii=False, allow_nan=False, **kw)
+        return json.dumps(doc, ensure_ascii=False, allow_nan=False, **kw)
     except ValueError:  # a non-finite number slipped through: null it
         from ..report.jsonout import json_safe
 
-        text = json.dumps(json_safe(doc), ensure_ascii=False, allow_nan=False, **kw)
-    typer.echo(text)
+        return json.dumps(json_safe(doc), ensure_ascii=False, allow_nan=False, **kw)
 
 
 def echo_lines(lines: list[str]) -> None:
@@ -96,8 +100,8 @@ class ProgressBar:
         self._p.start()
         self._t = self._p.add_task(label, total=total)
 
-    def advance(self) -> None:
-        self._p.advance(self._t)
+    def advance(self, n: int = 1) -> None:
+        self._p.advance(self._t, n)
 
     def __call__(self, done: int, total: int) -> None:
         self._p.update(self._t, completed=done, total=total)

@@ -25,6 +25,7 @@ from .common import (
     UncertOpt,
     echo_json,
     echo_lines,
+    json_text,
     error_line,
     guarded,
     load,
@@ -107,7 +108,8 @@ def yields(
                    single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
                    sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
                    unit=unit.value, claims=new_claims() if root is not None and len(paths) > 1 else "",
-                   json_doc=json_out, light=json_out and not write)
+                   json_doc=json_out, light=json_out and not write, json_text=len(paths) > BRIEF_OVER,
+                   frames=root is not None or (not json_out and len(paths) <= BRIEF_OVER))
     try:
         results, written, failures = run_batch(paths, job)
     finally:
@@ -128,7 +130,12 @@ def yields(
     if json_out:
         from ..report.jsonout import yields_document
 
-        echo_json(yields_document(results, len(paths), failures), compact=len(paths) > BRIEF_OVER)
+        texts = [getattr(r, "json_text", None) for r in results]
+        if len(paths) > 1 and texts and all(texts):  # objects encoded in the workers: join them
+            typer.echo('{"assays":[' + ",".join(texts) + '],"errors":'
+                       + json_text([m for _, m in failures], compact=True) + "}")
+        else:
+            echo_json(yields_document(results, len(paths), failures), compact=len(paths) > BRIEF_OVER)
         if failures:
             raise typer.Exit(EXIT_INPUT)
         return

@@ -123,9 +123,14 @@ def long_rows(cuts, crude: str, escaped: bool = False) -> list[list]:
     if escaped:
         crude = safe_text(crude)
     rows = []
-    cols = list(cuts.columns)
+    if isinstance(cuts, list):  # rows as dicts (a result made without DataFrames)
+        cols = list(cuts[0]) if cuts else []
+        table = [list(r.values()) for r in cuts]
+    else:
+        cols = list(cuts.columns)
+        table = cuts.to_numpy(dtype=object).tolist()  # one object array: far faster than to_dict on small tables
     units = {c: (unit_of(c), basis_of(c)) for c in cols}
-    for values in cuts.to_numpy(dtype=object).tolist():  # one object array: far faster than to_dict on small tables
+    for values in table:
         rec = dict(zip(cols, values))
         if escaped:
             rec["name"] = safe_text(rec["name"])

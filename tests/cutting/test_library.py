@@ -127,3 +127,37 @@ def test_batch_inverse_equals_the_reference_and_each_rows_own():
         allow = 1e-9 + (np.abs(s(ref[r]) - qc) + rounding) / np.maximum(slope, 1e-300)
         assert np.all(np.abs(fast[r] - ref[r]) <= allow), r
         np.testing.assert_allclose(fast[r], own[r], rtol=0, atol=1e-9)
+
+
+def test_json_batch_cut_together_equals_each_file_alone(tmp_path, demo_paths):
+    # `yields --json` over many files cuts them together (library engine, in chunks, serially or in worker
+    # processes) and joins objects encoded in the workers; each object must equal that file's own
+    # `yields FILE --json` to 1e-9 (the fast path against the reference path), with the same texts.
+    import json
+    import shutil
+
+    from typer.testing import CliRunner
+
+    from assaycut.cli import app
+    from tests.cutting.test_rows import assert_close_docs
+
+    rng = np.random.default_rng(5)  # invented quick curves, inputs only
+    books, curves = tmp_path / "books", tmp_path / "curves"
+    books.mkdir()
+    curves.mkdir()
+    for i in range(11):
+        shutil.copy(demo_paths[i % 3], books / f"d{i:02d}.xlsx")
+    for i in range(55):  # 50 or more: worker processes
+        t = np.array([20.0, 90.0, 180.0, 270.0, 380.0, 480.0, 560.0]) * rng.uniform(0.95, 1.05)
+        (curves / f"q{i:02d}.csv").write_text("vol_pct,temp_c\n" + "".join(
+            f"{p},{x:.1f}\n" for p, x in zip((2, 10, 30, 50, 70, 85, 95), t)))
+    runner = CliRunner()
+    for folder, extra in ((books, []), (curves, ["--api", "31"])):
+        r = runner.invoke(app, ["yields", str(folder), "--json", *extra])
+        assert r.exit_code == 0, r.stderr
+        assert r.stdout.count("\n") == 1  # more than 10 assays: one line
+        doc = json.loads(r.stdout)
+        assert doc["errors"] == [] and len(doc["assays"]) == len(list(folder.iterdir()))
+        for obj in doc["assays"]:
+            one = runner.invoke(app, ["yields", obj["assay"]["source"], "--json", *extra])
+            assert_close_docs(json.loads(one.stdout), obj, obj["assay"]["source"])
