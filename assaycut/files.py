@@ -4,6 +4,7 @@ temporary file in the same folder, then renamed), and text escaped against sprea
 from __future__ import annotations
 
 import contextlib
+import functools
 import glob
 import os
 import re
@@ -68,12 +69,9 @@ def atomic_write(path: str | os.PathLike, write, *, inputs: tuple[str, ...] = ()
         The final path.
     """
     target = Path(path)
-    for src in inputs:
-        with contextlib.suppress(OSError):
-            if Path(src).exists() and target.exists() and os.path.samefile(src, target):
-                raise InputError(f"refusing to write the report over the input file {src}", file=str(target))
-        if Path(src).resolve() == target.resolve():
-            raise InputError(f"refusing to write the report over the input file {src}", file=str(target))
+    clash = input_clash(target, inputs)
+    if clash is not None:
+        raise InputError(f"refusing to write the report over the input file {clash}", file=str(target))
     prepare_folder(target.parent)
     mode = _mode_for(target)
     try:
@@ -94,6 +92,35 @@ def atomic_write(path: str | os.PathLike, write, *, inputs: tuple[str, ...] = ()
             if os.path.exists(tmp):
                 os.unlink(tmp)
     return target
+
+
+def input_clash(target: Path, inputs: tuple[str, ...]) -> str | None:
+    """The input file that ``target`` is (the same resolved path, or the same file by another name: a hard or
+    symbolic link), or None.  The inputs are resolved and stat-ed once per run (:func:`_input_identities`)."""
+    if not inputs:
+        return None
+    paths, files = _input_identities(tuple(inputs))
+    try:
+        hit = paths.get(str(target.resolve()))
+    except OSError:
+        hit = None
+    if hit is None:
+        with contextlib.suppress(OSError):
+            st = target.stat()
+            hit = files.get((st.st_dev, st.st_ino))
+    return hit
+
+
+@functools.lru_cache(maxsize=8)
+def _input_identities(inputs: tuple[str, ...]) -> tuple[dict, dict]:
+    """{resolved path: input} and {(device, inode): input} of a run's input files (those that exist)."""
+    paths, files = {}, {}
+    for src in inputs:
+        with contextlib.suppress(OSError):
+            paths.setdefault(str(Path(src).resolve()), src)
+            st = os.stat(src)
+            files.setdefault((st.st_dev, st.st_ino), src)
+    return paths, files
 
 
 TEMP_SUFFIX = ".part"
@@ -133,10 +160,9 @@ def check_targets(folder: Path, names, inputs: tuple[str, ...] = ()) -> None:
         if target.is_dir():
             raise InputError(f"a folder named {name!r} is in the way of a report file; nothing was written",
                              file=str(folder))
-        for src in inputs:
-            with contextlib.suppress(OSError):
-                if Path(src).resolve() == target.resolve():
-                    raise InputError(f"refusing to write the report over the input file {src}", file=str(target))
+        clash = input_clash(target, inputs)
+        if clash is not None:
+            raise InputError(f"refusing to write the report over the input file {clash}", file=str(target))
         for stale in folder.glob(f".{glob.escape(name)}.*{TEMP_SUFFIX}"):
             with contextlib.suppress(OSError):
                 stale.unlink()

@@ -280,6 +280,24 @@ def _(d):
     return ["blend", f"{a}=100", "--out", str(a)], [a]
 
 
+@case("blend_onto_a_hard_link_of_input", r"refusing to write the report over the input file")
+def _(d):
+    import os
+
+    a = _book(d, "parent.xlsx")
+    twin = d / "twin.xlsx"
+    os.link(a, twin)  # the same file by another name
+    return ["blend", f"{a}=100", "--out", str(twin)], [a]
+
+
+@case("blend_onto_a_symbolic_link_of_input", r"refusing to write the report over the input file")
+def _(d):
+    a = _book(d, "parent.xlsx")
+    alias = d / "alias.xlsx"
+    alias.symlink_to(a)
+    return ["blend", f"{a}=100", "--out", str(alias)], [a]
+
+
 @case("blend_bad_syntax", r"expected ASSAY=PERCENT")
 def _(d):
     return ["blend", "just_a_file.xlsx", "--out", str(d / "m.xlsx")], []
