@@ -10,7 +10,7 @@ from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
 from .assay import Assay
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
-from .spline import Pchip, pchip_slopes, segment_antiderivative, segment_integrals
+from .spline import Pchip, hermite_combine, hermite_integral_basis, segment_integrals, slopes_on
 from .tbp_curve import TbpCurve
 
 
@@ -93,14 +93,16 @@ def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):
         t = (qc - x[i]) / h[i]
         return i, t, np.minimum(q - x[0], 0.0), np.maximum(q - x[-1], 0.0)
 
-    ends = [locate(a), locate(b)]
+    # the interval ends' segments and integral weights, once (segment_antiderivative's arithmetic, pre-split)
+    ends = [(i, hermite_integral_basis(t), h[i], below, above) for i, t, below, above in (locate(a), locate(b))]
     width = b - a
+    slopes = slopes_on(x)
 
     def means(y):
-        d = pchip_slopes(x, y)
+        d = slopes(y)
         cum = np.concatenate([[0.0], np.cumsum(segment_integrals(h, y, d))])
-        anti = [cum[i] + segment_antiderivative(t, h[i], y[i], y[i + 1], d[i], d[i + 1]) + below * y[0]
-                + above * y[-1] for i, t, below, above in ends]
+        anti = [cum[i] + hi * hermite_combine(w, y[i], y[i + 1], hi * d[i], hi * d[i + 1]) + below * y[0]
+                + above * y[-1] for i, w, hi, below, above in ends]
         return (anti[1] - anti[0]) / width
 
     return means
@@ -217,7 +219,8 @@ def sulfur_distribution(model, assay: Assay, le_mids) -> None:
     wa, wb = model.wt_at_vol(va), model.wt_at_vol(vb)
     ok = np.isfinite(nc.sulfur_wt_pct) & (wb > wa)
     first = float(wa[ok].min())
-    fixed = [(float(model.wt_at_vol(m)), 0.0) for m, _ in le_mids if model.wt_at_vol(m) < first]
+    le_w = model.wt_at_vol(np.array([m for m, _ in le_mids], dtype=float)).tolist()  # one call for them all
+    fixed = [(w, 0.0) for w in le_w if w < first]
     raw = property_spline(wa[ok], wb[ok], nc.sulfur_wt_pct[ok], fixed)
     total = raw.integral(0.0, 100.0) / 100.0
     if model.sulfur_wt_pct is None:

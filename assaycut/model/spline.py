@@ -113,25 +113,47 @@ def pchip_slopes(x: np.ndarray, y: np.ndarray) -> np.ndarray:
     >>> pchip_slopes(np.array([0.0, 1.0, 3.0]), np.array([0.0, 2.0, 6.0])).tolist()
     [2.0, 2.0, 2.0]
     """
+    return slopes_on(x)(np.asarray(y, dtype=float))
+
+
+def slopes_on(x: np.ndarray):
+    """A function ``y -> pchip_slopes(x, y)`` for fixed abscissae, with the parts that depend on x alone
+    computed once (the same arithmetic, so the same slopes to the last bit): for a spline whose node values
+    are adjusted many times, as :func:`assaycut.model.distributions.property_spline` does.
+
+    Parameters
+    ----------
+    x : numpy.ndarray
+        Strictly increasing abscissae, shape (n,), n >= 2. [any unit]
+
+    Returns
+    -------
+    callable
+        y (shape (n,)) -> dy/dx at every node, shape (n,).
+    """
     x = np.asarray(x, dtype=float)
-    y = np.asarray(y, dtype=float)
     h = np.diff(x)
-    m = np.diff(y) / h
     n = x.size
-    if n == 2:
-        return np.array([m[0], m[0]])
-    d = np.zeros(n)
-    m0, m1 = m[:-1], m[1:]
     h0, h1 = h[:-1], h[1:]
     w1 = 2.0 * h1 + h0
     w2 = h1 + 2.0 * h0
-    same = (np.sign(m0) * np.sign(m1)) > 0
-    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        whmean = (w1 / m0 + w2 / m1) / (w1 + w2)
-        d[1:-1] = np.where(same, 1.0 / np.where(same, whmean, 1.0), 0.0)
-    d[0] = _edge_slope(h[0], h[1], m[0], m[1])
-    d[-1] = _edge_slope(h[-1], h[-2], m[-1], m[-2])
-    return d
+    wsum = w1 + w2
+
+    def slopes(y):
+        m = np.diff(y) / h
+        if n == 2:
+            return np.array([m[0], m[0]])
+        d = np.zeros(n)
+        m0, m1 = m[:-1], m[1:]
+        same = (np.sign(m0) * np.sign(m1)) > 0
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            whmean = (w1 / m0 + w2 / m1) / wsum
+            d[1:-1] = np.where(same, 1.0 / np.where(same, whmean, 1.0), 0.0)
+        d[0] = _edge_slope(h[0], h[1], m[0], m[1])
+        d[-1] = _edge_slope(h[-1], h[-2], m[-1], m[-2])
+        return d
+
+    return slopes
 
 
 def _edge_slope(h0, h1, m0, m1):
