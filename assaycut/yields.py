@@ -9,8 +9,6 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-import numpy as np
-
 from .cutting.cutset import CutSet
 from .cutting.ideal import add_rates, closure, cut_rows, cut_table
 from .cutting.limits import Limit, check_limits, limit_rows, nearest_cut, unmatched_cuts
@@ -173,7 +171,7 @@ def run_yields_many(assays: list[Assay], models: list[CrudeModel], cut_set: CutS
     list of YieldResult
         Cut tables and limit status as lists of row dicts.
     """
-    from .cutting.ideal import columns_rows, first_row
+    from .cutting.ideal import columns_rows, first_row, with_table_d86
     from .cutting.library import cut_library
 
     if cut_set.overlaps:
@@ -181,13 +179,10 @@ def run_yields_many(assays: list[Assay], models: list[CrudeModel], cut_set: CutS
     if not assays:
         return []
     names, cols = cut_library(models, cut_set)
-    d86 = np.array(cols["d86"], dtype=float)
-    d86[~np.all(np.isfinite(d86), axis=-1)] = np.nan
+    cols = with_table_d86(cols)
     out = []
     for r, (assay, model) in enumerate(zip(assays, models)):
-        row = {k: (v[r:r + 1] if k != "estimated" else {n: f[r:r + 1] for n, f in v.items()})
-               for k, v in cols.items() if k != "d86"}
-        row["d86"] = d86[r:r + 1]
+        row = {k: (v[r:r + 1] if k != "estimated" else {n: f[r:r + 1] for n, f in v.items()}) for k, v in cols.items()}
         cuts = columns_rows(names, first_row(row))
         lim = limit_rows(names, row, limits or [])
         out.append(_assemble(assay, model, cut_set, limits, cuts, lim, names, None))

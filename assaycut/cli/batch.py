@@ -159,7 +159,8 @@ def _deliver(result, job: YieldJob):
         if job.light and job.json_text:
             from .common import json_text
 
-            return LightResult(assay.name, list(result.warnings), None, json_text(result.json_doc, True)), written, None
+            text = json_text(result.json_doc, compact=True)
+            return LightResult(assay.name, list(result.warnings), None, text), written, None
         if job.light:
             return LightResult(assay.name, list(result.warnings), result.json_doc), written, None
     return result, written, None

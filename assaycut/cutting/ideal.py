@@ -124,10 +124,15 @@ def cut_rows(model: CrudeModel, cut_set: CutSet) -> tuple[list[dict], dict[str, 
     any of its points is, as in the table)."""
     names, ends = cut_set.reported()
     cols = cut_columns(model, ends[None, :])
-    rows = columns_rows(names, first_row(cols))
+    return columns_rows(names, first_row(cols)), with_table_d86(cols)
+
+
+def with_table_d86(cols: dict) -> dict:
+    """Cut columns with each cut's D86 all missing where any of its points is, as the cut table holds it
+    (the limits then read the same D86 from the columns as from the table)."""
     d86 = np.array(cols["d86"], dtype=float)
     d86[~np.all(np.isfinite(d86), axis=-1)] = np.nan
-    return rows, {**cols, "d86": d86}
+    return {**cols, "d86": d86}
 
 
 def cut_columns(model: CrudeModel, ends: np.ndarray, only=None) -> dict[str, np.ndarray]:
