@@ -9,6 +9,8 @@ const PALETTE = ["#0f6e7c", "#b4532a", "#5d7f1e", "#6d4aa0", "#b68a00", "#8a3b5c
 const SHOWN_AT_START = 3;       // crudes shown side by side when the page opens
 const STEP_C = 0.5;             // handle positions snap to this [°C]
 const MIN_GAP_C = 1.0;          // a cut point stays this far from its neighbours [°C]
+const KEY_STEP_C = 1.0;         // an arrow key moves a focused handle this far [°C]; with Shift, KEY_BIG_STEP_C
+const KEY_BIG_STEP_C = 10.0;
 const CHART = { w: 660, h: 430, left: 56, right: 128, top: 14, bottom: 40 };
 const CHART_FLOOR_C = 50;       // the chart starts this far below the lowest cut point (light ends below it clip)
 
@@ -166,11 +168,14 @@ function drawChart() {
 function drawHandles() {
   const s = state.scale;
   const g = document.getElementById("handles");
+  const focused = document.activeElement ? document.activeElement.getAttribute("data-handle") : null;
   g.replaceChildren();
   for (const name of cutPoints()) {
     const t = state.ends[name];
     const y = s.y(t);
-    const h = svg("g", { class: "handle", "data-handle": name, cursor: "ns-resize" });
+    const h = svg("g", { class: "handle", "data-handle": name, cursor: "ns-resize", tabindex: 0, role: "slider",
+                         "aria-label": `${name} end, °C (arrow keys: 1 °C, with Shift: 10 °C)`,
+                         "aria-valuenow": num(t, 1) });
     h.append(svg("line", { x1: s.x0, x2: s.x1, y1: y, y2: y, stroke: "#1e2a2f", "stroke-width": 1,
                            "stroke-dasharray": t === state.start[name] ? "none" : "3 2", opacity: 0.7 }));
     for (const c of state.crudes) {
@@ -185,6 +190,13 @@ function drawHandles() {
     h.append(grab, knob, label);
     g.append(h);
     h.addEventListener("pointerdown", ev => startDrag(ev, name, h));
+    h.addEventListener("keydown", ev => {
+      const step = { ArrowUp: 1, ArrowRight: 1, ArrowDown: -1, ArrowLeft: -1 }[ev.key];
+      if (!step) return;
+      ev.preventDefault();
+      setEnd(name, state.ends[name] + step * (ev.shiftKey ? KEY_BIG_STEP_C : KEY_STEP_C));
+    });
+    if (focused === name) h.focus();
   }
 }
 
