@@ -19,6 +19,7 @@ from ..model.spline import (
     hermite_solve,
     INVERSE_TABLE_STEPS,
     interval_mean,
+    inverse_table,
     newton_on_segment,
     segment_antiderivative,
     segment_integrals,
@@ -136,12 +137,7 @@ class BatchPchip:
         """Each row's spline at INVERSE_TABLE_STEPS points per segment and at its last node, made once, and the
         row offsets that let one flat search serve every row."""
         if self._inv is None:
-            k = INVERSE_TABLE_STEPS
-            tt = np.arange(k) / k
-            y0, y1 = self.Y[:, :-1, None], self.Y[:, 1:, None]
-            m0, m1 = (self.H * self.D[:, :-1])[..., None], (self.H * self.D[:, 1:])[..., None]
-            vals = hermite_combine(hermite_basis(tt), y0, y1, m0, m1).reshape(self.n, -1)
-            ys = np.maximum.accumulate(np.concatenate([vals, self.Y[:, -1:]], axis=1), axis=1)
+            ys = inverse_table(self.Y, self.H, self.D)
             span = float(np.max(ys) - np.min(ys)) + 10.0
             self._inv = (ys, np.arange(self.n)[:, None] * span)
         return self._inv

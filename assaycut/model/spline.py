@@ -268,15 +268,33 @@ class Pchip:
         if self._inv is None:
             if not np.all(np.diff(self.y) >= 0):
                 raise ValueError("inverse needs non-decreasing values")
-            k = INVERSE_TABLE_STEPS
-            n = self.h.size
-            seg = np.repeat(np.arange(n), k)
-            tt = np.tile(np.arange(k) / k, n)
-            ys = np.concatenate([hermite_combine(hermite_basis(tt), self.y[seg], self.y[seg + 1],
-                                                 self.h[seg] * self.d[seg], self.h[seg] * self.d[seg + 1]),
-                                 self.y[-1:]])
-            self._inv = np.maximum.accumulate(ys)  # rounding must not make the table fall
+            self._inv = inverse_table(self.y, self.h, self.d)
         return self._inv
+
+
+def inverse_table(y, h, d):
+    """Values of cubic Hermite splines at :data:`INVERSE_TABLE_STEPS` evenly spaced points of every segment and
+    at the last node, along the last axis (one spline, or one per row), never falling (rounding must not make
+    the table fall): the bracket of the fast inverse.
+
+    Parameters
+    ----------
+    y, d : numpy.ndarray
+        Node values and slopes, shape (..., n).
+    h : numpy.ndarray
+        Segment widths, shape (..., n-1).
+
+    Returns
+    -------
+    numpy.ndarray
+        Shape (..., (n-1) x INVERSE_TABLE_STEPS + 1).
+    """
+    k = INVERSE_TABLE_STEPS
+    tt = np.arange(k) / k
+    y0, y1 = y[..., :-1, None], y[..., 1:, None]
+    m0, m1 = (h * d[..., :-1])[..., None], (h * d[..., 1:])[..., None]
+    vals = hermite_combine(hermite_basis(tt), y0, y1, m0, m1).reshape(*y.shape[:-1], -1)
+    return np.maximum.accumulate(np.concatenate([vals, y[..., -1:]], axis=-1), axis=-1)
 
 
 def newton_on_segment(y0, y1, m0, m1, q, ya, yb, tl):
