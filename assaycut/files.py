@@ -8,7 +8,7 @@ import functools
 import glob
 import os
 import re
-import tempfile
+import secrets
 from pathlib import Path
 
 from .errors import InputError
@@ -74,12 +74,16 @@ def atomic_write(path: str | os.PathLike, write, *, inputs: tuple[str, ...] = ()
         raise InputError(f"refusing to write the report over the input file {clash}", file=str(target))
     prepare_folder(target.parent)
     mode = _mode_for(target)
+    # the temporary name is registered before the file exists, so that an interruption at any point leaves
+    # nothing behind (cleanup_pending removes registered names that exist)
+    tmp = str(target.parent / f".{target.name}.{secrets.token_hex(6)}{TEMP_SUFFIX}")
+    _PENDING.add(tmp)
     try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=TEMP_SUFFIX, dir=target.parent)
+        fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o600)
     except OSError as exc:
+        _PENDING.discard(tmp)
         raise InputError(f"cannot write into this folder ({exc.strerror})", file=str(target.parent)) from None
     os.close(fd)
-    _PENDING.add(tmp)
     try:
         write(tmp)
         os.chmod(tmp, mode)

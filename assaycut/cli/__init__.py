@@ -63,20 +63,44 @@ def _root(ctx: typer.Context) -> None:
                    sigma_sg=0.0005, sigma_sulfur=3.0)
 
 
-def _on_sigterm(signum, frame):  # pragma: no cover - exercised by a subprocess test
+def _stop_now(message: str, code: int) -> None:  # pragma: no cover - exercised by subprocess tests
+    """Stop at once: kill worker pools, remove temporary report files and batch claims, one line, exit."""
     from ..files import cleanup_pending
     from .batch import kill_pools, release_claims
 
     kill_pools()
     cleanup_pending()
     release_claims()
-    sys.stderr.write("assaycut: error: terminated; no partial report was left\n")
-    os._exit(143)
+    sys.stderr.write(f"assaycut: error: {message}; no partial report was left\n")
+    os._exit(code)
+
+
+def _on_sigterm(signum, frame):  # pragma: no cover - exercised by a subprocess test
+    _stop_now("terminated", 143)
+
+
+def _unraisable(hook):
+    """A ``sys.unraisablehook`` that does not let Ctrl-C be lost.
+
+    Python raises KeyboardInterrupt wherever the main thread is when Ctrl-C arrives; inside a weak-reference
+    callback or a ``__del__`` (matplotlib runs many while drawing the plots) the exception cannot propagate,
+    is printed as "Exception ignored in ..." with a traceback, and the run would go on writing reports.  This
+    hook stops the run there instead, as the normal Ctrl-C path does (exit 130, no partial report); other
+    unraisable exceptions go to the previous hook.
+    """
+
+    def unraisable(info):  # pragma: no cover - exercised by the interrupt tests
+        if info.exc_type is not None and issubclass(info.exc_type, KeyboardInterrupt):
+            _stop_now("interrupted", 130)
+        hook(info)
+
+    return unraisable
 
 
 def main() -> None:
     """Console entry point."""
     signal.signal(signal.SIGTERM, _on_sigterm)
+    sys.unraisablehook = _unraisable(sys.unraisablehook)
     try:
         app()
     except KeyboardInterrupt:

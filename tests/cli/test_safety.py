@@ -235,3 +235,43 @@ def test_core_errors_in_a_batch_name_the_file(tmp_path, monkeypatch):
     assert r.exit_code == 2
     errors = json.loads(r.stdout)["errors"]
     assert len(errors) == 1 and errors[0].startswith(f"{bad}: the curve cannot be modelled")
+
+
+LOST_INTERRUPT = r'''
+import sys, weakref
+from assaycut import files
+from assaycut.cli import _unraisable
+
+sys.unraisablehook = _unraisable(sys.unraisablehook)
+tmp = sys.argv[1]
+files._PENDING.add(tmp)
+open(tmp, "w").write("half a report")
+
+
+class Plot:
+    pass
+
+
+def callback(_ref):  # Ctrl-C arriving while Python runs a weak-reference callback
+    raise KeyboardInterrupt
+
+
+p = Plot()
+r = weakref.ref(p, callback)
+del p  # the callback runs here; its exception cannot propagate
+print("went on after Ctrl-C")
+'''
+
+
+def test_ctrl_c_inside_a_weakref_callback_still_stops_the_run(tmp_path):
+    # Python cannot raise KeyboardInterrupt out of a weak-reference callback (it prints "Exception ignored in"
+    # with a traceback and goes on; CPython documentation, sys.unraisablehook); matplotlib runs such callbacks
+    # while drawing, so a Ctrl-C there was lost and a batch went on writing reports.  The hook stops it.
+    part = tmp_path / ".report.xlsx.abc.part"
+    r = subprocess.run([sys.executable, "-c", LOST_INTERRUPT, str(part)], capture_output=True, text=True,
+                       timeout=60)
+    assert r.returncode == 130, r.stderr
+    assert "went on" not in r.stdout
+    assert "Traceback" not in r.stderr
+    assert r.stderr.strip() == "assaycut: error: interrupted; no partial report was left"
+    assert not part.exists()
