@@ -15,7 +15,7 @@ from .cutting.limits import Limit, check_limits, limit_rows, nearest_cut, unmatc
 from .cutting.qualities import ESTIMATED, NOT_ESTIMATED
 from .methods.product_properties import describe_ranges
 from .model.assay import Assay
-from .model.crude import CrudeModel, build_model
+from .model.crude import CrudeModel, build_model, build_models  # noqa: F401 (build_models: for batches)
 from .units import pct_text, residual_text, sg_to_density15
 
 CAUTIONS = [

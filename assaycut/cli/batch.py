@@ -179,16 +179,30 @@ def run_chunk(paths: list[str], job: YieldJob) -> list:
     else one by one.  A file that fails to load or model is reported and the others go on."""
     if not together(job) or len(paths) < 2:
         return [run_one(p, job) for p in paths]
-    from ..yields import build_model, run_yields_many  # the core's own model builder, as run_yields uses
+    from ..yields import build_model, build_models, run_yields_many  # the core's own model builders
 
     outcomes: list = [None] * len(paths)
-    good = []
+    loaded = []
     for i, p in enumerate(paths):
         try:
-            assay = _load(p, job)
-            good.append((i, assay, build_model(assay, job.method)))
+            loaded.append((i, _load(p, job)))
         except Exception as exc:
             outcomes[i] = (None, [], _failure(p, exc))
+    try:  # the models of the chunk built together (each the model build_model gives)
+        built = build_models([a for _, a in loaded], job.method)
+    except Exception:  # a programming error: build them one by one, so that it names its own file
+        built = []
+        for i, a in loaded:
+            try:
+                built.append(build_model(a, job.method))
+            except Exception as exc:
+                built.append(exc)
+    good = []
+    for (i, assay), m in zip(loaded, built):
+        if isinstance(m, Exception):
+            outcomes[i] = (None, [], _failure(paths[i], m))
+        else:
+            good.append((i, assay, m))
     try:
         results = run_yields_many([a for _, a, _ in good], [m for _, _, m in good], job.cut_set, job.limits)
     except Exception:  # cut them one by one instead, so that each failure names its own file

@@ -83,6 +83,55 @@ def fit_riazi_distribution(percent, temp_c) -> RiaziFit:
     >>> round(f.t0_k, 1), round(f.a, 2), round(f.b, 2)
     (300.0, 5.0, 1.5)
     """
+    v, t = _fit_points(percent, temp_c)
+    with np.errstate(all="ignore"):
+        best = _fit_grid(v, t)
+    return _fit_result(best, v.size)
+
+
+def fit_riazi_many(curves) -> list:
+    """:func:`fit_riazi_distribution` of many curves at once: the grid search runs over all curves with the
+    same number of fitted points in one array call, each row the same arithmetic as the one-curve fit (so the
+    same fit to the last bit; tested).
+
+    Parameters
+    ----------
+    curves : sequence of (array_like, array_like)
+        (cumulative percent [%], TBP [°C]) of each curve.
+
+    Returns
+    -------
+    list of RiaziFit or CurveError
+        Each curve's fit, or the error :func:`fit_riazi_distribution` would raise for it.
+    """
+    out: list = [None] * len(curves)
+    by_size: dict[int, list] = {}
+    for k, (percent, temp_c) in enumerate(curves):
+        try:
+            v, t = _fit_points(percent, temp_c)
+        except CurveError as e:
+            out[k] = e
+            continue
+        by_size.setdefault(v.size, []).append((k, v, t))
+    for n, rows in by_size.items():
+        if len(rows) == 1:
+            k, v, t = rows[0]
+            with np.errstate(all="ignore"):
+                bests = [_fit_grid(v, t)]
+        else:
+            with np.errstate(all="ignore"):
+                bests = _fit_grid_rows(np.array([r[1] for r in rows]), np.array([r[2] for r in rows]))
+        for (k, _, _), best in zip(rows, bests):
+            try:
+                out[k] = _fit_result(best, n)
+            except CurveError as e:
+                out[k] = e
+    return out
+
+
+def _fit_points(percent, temp_c):
+    """The points the fit uses: fractions strictly inside 0-1 and absolute temperatures [K], subsampled to
+    :data:`MAX_FIT_POINTS`; refused when fewer than 3."""
     v = np.asarray(percent, dtype=float) / 100.0
     t = np.asarray(temp_c, dtype=float) + 273.15
     keep = (v > 0) & (v < 1)
@@ -93,36 +142,84 @@ def fit_riazi_distribution(percent, temp_c) -> RiaziFit:
     if v.size < 3:
         raise CurveError(f"the curve has {v.size} point(s) strictly between 0 and 100 %; at least 3 are "
                          f"needed to fit its extension")
-    with np.errstate(all="ignore"):
-        best = _fit_grid(v, t)
+    return v, t
+
+
+def _fit_result(best, npoints: int) -> RiaziFit:
+    """The fit from the grid search's best (T0, A, B, rms), refused when there is none or it is not usable."""
     if best is None or not all(np.isfinite(best)) or best[1] <= 0 or best[2] <= 0:
         raise CurveError("the curve's extension cannot be fitted: the measured points do not follow a distillation "
                          "curve's shape (check percents and temperatures)")
-    return RiaziFit(best[0], best[1], best[2], best[3], int(v.size))
+    return RiaziFit(best[0], best[1], best[2], best[3], int(npoints))
+
+
+GRID = 400
+"""Trial values of T0 per pass of the grid search (three passes, each refining around the best)."""
+ROWS_PER_CALL = 16
+"""Curves searched together in one array call (bounded so that the arrays stay in the processor's cache)."""
 
 
 def _fit_grid(v, t):
     """Grid search over T0 with linear least squares for A, B; returns (T0, A, B, rms) or None."""
-    xx = np.log(-np.log1p(-v))
-    tmin = t.min()
+    return _fit_grid_rows(v[None, :], t[None, :])[0]
+
+
+def _fit_grid_rows(v, t):
+    """The grid search of :func:`fit_riazi_distribution` for curves with the same number of points, one per row
+    of ``v`` (fractions) and ``t`` [K], shape (R, n); (T0, A, B, rms) or None per row.
+
+    For each trial T0 (:data:`GRID` per pass, three passes each refining around the best), the linearised form
+    ln((T-T0)/T0) = (1/B) ln(A/B) + (1/B) ln ln(1/(1-x)) is solved by least squares, and the T0 with the least
+    squared temperature deviation is kept.  The points lie along the first axis of the work arrays and every
+    sum over them runs along that axis (a plain sequential sum), so a row's result does not depend on which
+    other rows are searched with it: one curve is a batch of one.
+    """
+    out = []
+    for k in range(0, v.shape[0], ROWS_PER_CALL):
+        out += _grid_block(v[k:k + ROWS_PER_CALL], t[k:k + ROWS_PER_CALL])
+    return out
+
+
+def _grid_block(v, t):
+    """:func:`_fit_grid_rows` of at most :data:`ROWS_PER_CALL` rows."""
+    rows, n = v.shape
+    xx = np.log(-np.log1p(-v)).T[:, :, None]                       # (n, R, 1)
+    tt = t.T[:, :, None]
+    tmin = t.min(axis=1)
     lo, hi = 0.2 * tmin, tmin * (1 - 1e-6)
-    best = None
+    xm = xx.sum(axis=0) / n                                         # (R, 1)
+    dx = xx - xm
+    sxx = (dx * dx).sum(axis=0)                                     # (R, 1)
+    alive = np.ones(rows, dtype=bool)
+    best = np.zeros((rows, 4))
+    r = np.arange(rows)
+    work = np.empty((n, rows, GRID))
     for _ in range(3):
-        t0 = np.linspace(lo, hi, 400)[:, None]
-        y = np.log(np.maximum((t - t0) / t0, 1e-300))
-        xm, ym = xx.mean(), y.mean(axis=1, keepdims=True)
-        sxx = ((xx - xm) ** 2).sum()
-        slope = (((xx - xm) * (y - ym)).sum(axis=1, keepdims=True) / sxx) if sxx > 0 else np.ones_like(ym)
+        t0 = np.linspace(lo, hi, GRID, axis=1)                      # (R, GRID)
+        np.subtract(tt, t0, out=work)
+        work /= t0
+        np.maximum(work, 1e-300, out=work)
+        y = np.log(work, out=work)                                  # ln((T - T0)/T0), (n, R, GRID)
+        ym = y.sum(axis=0) / n
+        y -= ym
+        y *= dx
+        with np.errstate(all="ignore"):
+            slope = np.where(sxx > 0, y.sum(axis=0) / np.where(sxx > 0, sxx, 1.0), 1.0)
         slope = np.maximum(slope, 1e-6)
         icpt = ym - slope * xm
         b = 1.0 / slope
         a = b * np.exp(icpt * b)
-        pred = t0 * (1.0 + np.exp(icpt + slope * xx))
-        sse = ((pred - t) ** 2).sum(axis=1)
-        if not np.isfinite(sse).any():
-            return None
-        k = int(np.nanargmin(np.where(np.isfinite(sse), sse, np.nan)))
-        best = (float(t0[k, 0]), float(a[k, 0]), float(b[k, 0]), float(np.sqrt(sse[k] / v.size)))
-        step = (hi - lo) / 399
-        lo, hi = max(best[0] - step, 1e-3), min(best[0] + step, tmin * (1 - 1e-9))
-    return best
+        pred = np.multiply(slope, xx, out=work)
+        pred += icpt
+        np.exp(pred, out=pred)
+        pred += 1.0
+        pred *= t0
+        pred -= tt
+        sse = np.square(pred, out=pred).sum(axis=0)                 # (R, GRID)
+        finite = np.isfinite(sse)
+        alive &= finite.any(axis=1)
+        k = np.argmin(np.where(finite, sse, np.inf), axis=1)
+        best = np.stack([t0[r, k], a[r, k], b[r, k], np.sqrt(sse[r, k] / n)], axis=1)
+        step = (hi - lo) / (GRID - 1)
+        lo, hi = np.maximum(best[:, 0] - step, 1e-3), np.minimum(best[:, 0] + step, tmin * (1 - 1e-9))
+    return [tuple(float(z) for z in best[i]) if alive[i] else None for i in range(rows)]

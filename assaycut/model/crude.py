@@ -23,12 +23,13 @@ from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k
 from ..units import pct_text
 from .assay import Assay, validate_assay
-from .distributions import density_distribution, sulfur_distribution
+from .distributions import density_distribution_steps, narrow_cut_positions, sulfur_distribution_steps
 from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
-from .qualities import estimated_sulfur, quality_distributions
+from .qualities import estimated_sulfur_steps, quality_distributions
 from .spline import Pchip, interval_mean
-from .tbp_curve import TbpCurve, build_curve, staircase
+from .steps import run_alone, run_together
+from .tbp_curve import TbpCurve, build_curve_steps, staircase
 
 
 @dataclass
@@ -130,14 +131,48 @@ def build_model(assay: Assay, method: str = "daubert-1994", qualities: bool = Tr
     InputError
         For an assay the readers would have refused (:func:`~assaycut.model.assay.validate_assay`).
     """
+    return run_alone(model_steps(assay, method, qualities))
+
+
+def build_models(assays, method: str = "daubert-1994", qualities: bool = True) -> list:
+    """Build many crude models together: each is the model :func:`build_model` gives for that assay (to the
+    last bit; tested), with the expensive kernels (the extension's distribution fit, the density and sulfur
+    distributions' mean matching) run over all the assays at once (:func:`~assaycut.model.steps.run_together`).
+
+    Parameters
+    ----------
+    assays : sequence of Assay
+    method : str
+        As for :func:`build_model`.
+    qualities : bool
+        As for :func:`build_model`.
+
+    Returns
+    -------
+    list of CrudeModel or AssaycutError
+        In the order of ``assays``: the model, or the error :func:`build_model` would raise for that assay.
+    """
+    assays = list(assays)
+    out: list = []
+    for k in range(0, len(assays), BUILD_CHUNK):
+        out += run_together([model_steps(a, method, qualities) for a in assays[k:k + BUILD_CHUNK]])
+    return out
+
+
+BUILD_CHUNK = 256
+"""Models built side by side at most (bounds the memory of the models in progress)."""
+
+
+def model_steps(assay: Assay, method: str = "daubert-1994", qualities: bool = True):
+    """:func:`build_model` as a step function (:mod:`assaycut.model.steps`)."""
     validate_assay(assay)
     warnings: list[str] = [w for c in assay.curves for w in c.warnings]
     methods: dict[str, str] = {}
     p, t = _tbp_points(assay, method, warnings, methods)
     if assay.curves[0].basis != "wt":
-        model = _fit(assay, p, t, warnings, methods)
+        model = yield from _fit(assay, p, t, warnings, methods)
     else:
-        model = _fit_weight_basis(assay, p, t, warnings, methods)
+        model = yield from _fit_weight_basis(assay, p, t, warnings, methods)
     if qualities:
         model.qualities = quality_distributions(assay, model, model.warnings, model.methods)
     return model
@@ -147,8 +182,8 @@ WT_NODE_TOL = 1e-9
 """How closely a weight-basis curve's own nodes are reproduced by the model's wt % distilled. [wt %]"""
 
 
-def _fit_weight_basis(assay: Assay, w, t, warnings: list[str], methods: dict[str, str]) -> CrudeModel:
-    """The crude model of a weight-basis curve, exact at its nodes.
+def _fit_weight_basis(assay: Assay, w, t, warnings: list[str], methods: dict[str, str]):
+    """The crude model of a weight-basis curve, exact at its nodes (a step function).
 
     The volume percent of each node is found so that the model's own weight distilled, W(V) = ∫0^V SG dv /
     SG_crude with the density distribution the model then uses for every cut, equals the measured wt % at
@@ -160,7 +195,7 @@ def _fit_weight_basis(assay: Assay, w, t, warnings: list[str], methods: dict[str
     closes = abs(float(w[-1]) - 100.0) < 1e-9
     model = None
     for _ in range(60):
-        model = _fit(assay, v, t, list(warnings), dict(methods))
+        model = yield from _fit(assay, v, t, list(warnings), dict(methods))
         miss = w - model.wt_at_vol(v)
         if float(np.max(np.abs(miss))) < WT_NODE_TOL:
             break
@@ -177,10 +212,11 @@ def _fit_weight_basis(assay: Assay, w, t, warnings: list[str], methods: dict[str
     return model
 
 
-def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str]) -> CrudeModel:
-    """Curve model, density and sulfur distributions for volume-basis TBP points (p [vol %], t [°C])."""
+def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str]):
+    """Curve model, density and sulfur distributions for volume-basis TBP points (p [vol %], t [°C]); a step
+    function."""
     le_t, le_v, le_mids = _light_ends_nodes(assay, float(t[0]))
-    curve = build_curve(p, t, front_t=le_t, front_v=le_v)
+    curve = yield from build_curve_steps(p, t, front_t=le_t, front_v=le_v)
     warnings += curve.warnings
     if curve.light_ends_pct == 0.0:
         le_mids = []
@@ -188,14 +224,16 @@ def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str]) -> Cr
         methods["extension"] = (f"Riazi distribution fitted to {curve.fit.npoints} points "
                                 f"(RMS {curve.fit.rms_c:.1f} °C); used past {pct_text(curve.measured_hi)} vol %"
                                 + (f" and before {pct_text(curve.measured_lo)} vol %" if curve.measured_lo > 0 else ""))
-    sg_dist, dens_rec, dens_src, kw_fit = density_distribution(assay, curve, le_mids, warnings)
+    positions = narrow_cut_positions(assay, curve) if assay.narrow_cuts is not None else None
+    sg_dist, dens_rec, dens_src, kw_fit = yield from density_distribution_steps(assay, curve, le_mids, warnings,
+                                                                                positions)
     methods["density"] = (f"{dens_src}; scaled by {dens_rec:+.2f} % to reproduce the whole-crude SG "
                           f"{assay.sg:.4f}")
     model = CrudeModel(curve, sg_dist, None, assay.sg, assay.sulfur_wt_pct, dens_rec, None, dens_src,
                        kw_fit, _properties_on_extension(assay, curve, kw_fit), methods=methods, warnings=warnings)
-    sulfur_distribution(model, assay, le_mids)
+    yield from sulfur_distribution_steps(model, assay, le_mids, positions)
     if model.sulfur_dist is None and model.sulfur_wt_pct is not None:
-        model.sulfur_dist = estimated_sulfur(model)
+        model.sulfur_dist = yield from estimated_sulfur_steps(model)
         model.sulfur_estimated = True
         model.sulfur_reconciliation_pct = None
         warnings[:] = [w for w in warnings if not w.startswith("no narrow-cut sulfur")]
@@ -229,9 +267,9 @@ def _properties_on_extension(assay: Assay, curve: TbpCurve, kw_fit: float | None
     nc = assay.narrow_cuts
     if nc is None:
         return ""
-    lo, hi = (float(curve.temp_at(curve.safe_lo)), float(curve.temp_at(curve.safe_hi)))
+    lo, hi = curve.temp_at_node(curve.safe_lo), curve.temp_at_node(curve.safe_hi)  # both are measured nodes
     bounds = np.concatenate([nc.start_c, nc.end_c])
-    at_node = np.isclose(bounds[:, None], curve.measured_temp_c[None, :], rtol=0.0, atol=AT_NODE_C).any(axis=1)
+    at_node = (np.abs(bounds[:, None] - curve.measured_temp_c[None, :]) <= AT_NODE_C).any(axis=1)
     out = bounds[np.isfinite(bounds) & ((bounds > hi + 1e-9) | (bounds < lo - 1e-9)) & ~at_node]
     if out.size:
         return (f"narrow-cut boundaries at {', '.join(f'{b:g}' for b in np.unique(out))} °C lie where the curve "

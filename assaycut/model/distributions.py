@@ -10,16 +10,19 @@ from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
 from .assay import Assay
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
-from .spline import Pchip, hermite_combine, hermite_integral_basis, segment_integrals, slopes_on
+from .spline import Pchip, hermite_combine, hermite_integral_basis, segment_integrals, slopes_on, slopes_on_rows
+from .steps import Need, run_alone
 from .tbp_curve import TbpCurve
 
 
 def narrow_cut_positions(assay: Assay, curve: TbpCurve):
     """Start and end vol % of each narrow cut on the curve (open start 0 %, open end 100 %). [vol %]"""
     nc = assay.narrow_cuts
-    va = np.where(np.isnan(nc.start_c), 0.0, curve.pct_at(np.nan_to_num(nc.start_c)))
-    vb = np.where(np.isnan(nc.end_c), 100.0, curve.pct_at(np.nan_to_num(nc.end_c)))
-    return va, vb
+    ends = np.concatenate([nc.start_c, nc.end_c])
+    open_end = np.isnan(ends)
+    v = curve.pct_at(np.where(open_end, 0.0, ends))  # both ends in one call
+    k = nc.start_c.size
+    return np.where(open_end[:k], 0.0, v[:k]), np.where(open_end[k:], 100.0, v[k:])
 
 
 def property_spline(lo, hi, values, fixed=(), iterations: int = 30, floor: float | None = 0.0) -> Pchip:
@@ -48,6 +51,12 @@ def property_spline(lo, hi, values, fixed=(), iterations: int = 30, floor: float
     Pchip
         Property against percent distilled.
     """
+    return run_alone(property_spline_steps(lo, hi, values, fixed, iterations, floor))
+
+
+def property_spline_steps(lo, hi, values, fixed=(), iterations: int = 30, floor: float | None = 0.0):
+    """:func:`property_spline` as a step function (:mod:`assaycut.model.steps`): the node correction is a
+    :class:`MeanMatchNeed`, so that many splines can be corrected in one array call."""
     lo, hi, vals = (np.asarray(z, dtype=float) for z in (lo, hi, values))
     mids = 0.5 * (lo + hi)
     fx = np.array([q[0] for q in fixed], dtype=float)
@@ -62,21 +71,83 @@ def property_spline(lo, hi, values, fixed=(), iterations: int = 30, floor: float
     if x.size == 1:
         return Pchip(np.array([0.0, 100.0]), np.array([y0[0], y0[0]]))
     cut_idx = order[keep][is_cut]
-    a, b, target = lo[cut_idx], hi[cut_idx], vals[cut_idx]
-    y = y0.copy()
-    best, best_err = y.copy(), np.inf
     tol = 1e-7 * max(float(np.max(np.abs(vals))), 1e-12)
-    means = _interval_means(x, a, b)
-    for _ in range(iterations):
-        err = target - means(y)
-        worst = float(np.max(np.abs(err))) if err.size else 0.0
-        if worst >= 0.95 * best_err:  # no longer improving
-            break
-        best, best_err = y.copy(), worst
-        if worst < tol:
-            break
-        y[is_cut] = y[is_cut] + err if floor is None else np.maximum(y[is_cut] + err, floor)
+    best = yield MeanMatchNeed(x, y0, is_cut, lo[cut_idx], hi[cut_idx], vals[cut_idx], tol, iterations, floor)
     return Pchip(x, best)
+
+
+class MeanMatchNeed(Need):
+    """The node correction of :func:`property_spline`: node values y (nodes x fixed) such that the PCHIP's mean
+    over each cut [a, b] reproduces ``target`` (fixed-point iteration y_i <- y_i + (target_i - mean_i) on the
+    cut nodes, at most ``iterations`` times, stopping below ``tol`` or when it no longer improves; the best
+    node values found).  Many are solved in one array call by :meth:`together`."""
+
+    __slots__ = ("x", "y0", "is_cut", "a", "b", "target", "tol", "iterations", "floor")
+
+    def __init__(self, x, y0, is_cut, a, b, target, tol, iterations, floor):
+        self.x, self.y0, self.is_cut, self.a, self.b, self.target = x, y0, is_cut, a, b, target
+        self.tol, self.iterations, self.floor = tol, iterations, floor
+
+    def alone(self):
+        y = self.y0.copy()
+        best, best_err = y.copy(), np.inf
+        means = _interval_means(self.x, self.a, self.b)
+        is_cut, floor, tol = self.is_cut, self.floor, self.tol
+        for _ in range(self.iterations):
+            err = self.target - means(y)
+            worst = float(np.max(np.abs(err))) if err.size else 0.0
+            if worst >= 0.95 * best_err:  # no longer improving
+                break
+            best, best_err = y.copy(), worst
+            if worst < tol:
+                break
+            y[is_cut] = y[is_cut] + err if floor is None else np.maximum(y[is_cut] + err, floor)
+        return best
+
+    @classmethod
+    def together(cls, needs):
+        groups: dict[tuple, list[int]] = {}
+        for k, n in enumerate(needs):
+            key = (n.x.size, n.iterations, n.floor, n.is_cut.tobytes())
+            groups.setdefault(key, []).append(k)
+        out: list = [None] * len(needs)
+        for idx in groups.values():
+            if len(idx) == 1:
+                out[idx[0]] = needs[idx[0]].alone()
+                continue
+            rows = [needs[k] for k in idx]
+            for k, y in zip(idx, _mean_match_rows(rows)):
+                out[k] = y
+        return out
+
+
+def _mean_match_rows(rows: list[MeanMatchNeed]) -> list[np.ndarray]:
+    """:meth:`MeanMatchNeed.alone` of many problems with the same node count, cut pattern, iteration limit and
+    floor, row-wise (the same arithmetic, each row stopping where it would alone)."""
+    first = rows[0]
+    x = np.array([r.x for r in rows])
+    y = np.array([r.y0 for r in rows])
+    a = np.array([r.a for r in rows])
+    b = np.array([r.b for r in rows])
+    target = np.array([r.target for r in rows])
+    tol = np.array([r.tol for r in rows])
+    is_cut, floor = first.is_cut, first.floor
+    means = _interval_means_rows(x, a, b)
+    best = y.copy()
+    best_err = np.full(len(rows), np.inf)
+    active = np.ones(len(rows), dtype=bool)
+    for _ in range(first.iterations):
+        err = target - means(y)
+        worst = np.max(np.abs(err), axis=1) if err.shape[1] else np.zeros(len(rows))
+        active &= ~(worst >= 0.95 * best_err)  # no longer improving: keeps its best
+        best[active] = y[active]
+        best_err = np.where(active, worst, best_err)
+        active &= ~(worst < tol)
+        if not active.any():
+            break
+        moved = y[:, is_cut] + err if floor is None else np.maximum(y[:, is_cut] + err, floor)
+        y[:, is_cut] = np.where(active[:, None], moved, y[:, is_cut])
+    return list(best)
 
 
 def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):
@@ -108,6 +179,35 @@ def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):
     return means
 
 
+
+def _interval_means_rows(x: np.ndarray, a: np.ndarray, b: np.ndarray):
+    """:func:`_interval_means` row-wise: x (R, n) nodes, a and b (R, k) intervals; y (R, n) -> means (R, k),
+    each row the same arithmetic as the one-spline function."""
+    h = np.diff(x, axis=1)
+    rows = np.arange(x.shape[0])[:, None]
+    n = x.shape[1]
+
+    def locate(q):
+        qc = np.clip(q, x[:, :1], x[:, -1:])
+        i = np.clip((qc[:, :, None] >= x[:, None, :]).sum(axis=2) - 1, 0, n - 2)  # searchsorted, side right
+        hi = h[rows, i]
+        t = (qc - x[rows, i]) / hi
+        return i, t, hi, np.minimum(q - x[:, :1], 0.0), np.maximum(q - x[:, -1:], 0.0)
+
+    ends = [(i, hermite_integral_basis(t), hi, below, above) for i, t, hi, below, above in (locate(a), locate(b))]
+    width = b - a
+    slopes = slopes_on_rows(x)
+
+    def means(y):
+        d = slopes(y)
+        cum = np.concatenate([np.zeros((y.shape[0], 1)), np.cumsum(segment_integrals(h, y, d), axis=1)], axis=1)
+        anti = [cum[rows, i] + hi * hermite_combine(w, y[rows, i], y[rows, i + 1], hi * d[rows, i],
+                                                    hi * d[rows, i + 1]) + below * y[:, :1] + above * y[:, -1:]
+                for i, w, hi, below, above in ends]
+        return (anti[1] - anti[0]) / width
+
+    return means
+
 _GAS_NOTE = ("; no light-ends analysis: the curve below n-pentane's boiling point (36.1 °C) is given the SG of the "
              "C2-C5 paraffins boiling at the same temperature (assumed)")
 
@@ -138,18 +238,25 @@ def density_distribution(assay: Assay, curve: TbpCurve, le_mids, warnings: list[
         SG [-] against vol % [%]; the scale applied, (factor - 1) x 100 [%]; the source described; the fitted
         Watson K [-] (None with narrow-cut densities).
     """
+    return run_alone(density_distribution_steps(assay, curve, le_mids, warnings))
+
+
+def density_distribution_steps(assay: Assay, curve: TbpCurve, le_mids, warnings: list[str], positions=None):
+    """:func:`density_distribution` as a step function (:mod:`assaycut.model.steps`); ``positions`` as for
+    :func:`sulfur_distribution_steps`."""
     nc = assay.narrow_cuts
     gas_v = np.array([])
     if not le_mids and curve.temp_at(0.0) < GAS_RANGE_MAX_C:
         v_top = float(curve.pct_at(GAS_RANGE_MAX_C))
         gas_v = np.linspace(0.0, v_top, 9)[:-1] + v_top / 16.0
     if nc is not None and np.isfinite(nc.sg).sum() >= 2:
-        va, vb = narrow_cut_positions(assay, curve)
+        va, vb = narrow_cut_positions(assay, curve) if positions is None else positions
         ok = np.isfinite(nc.sg) & (vb > va)
         first = float(va[ok].min()) if ok.any() else 0.0
         gas = [(float(m), float(g)) for m, g in zip(gas_v, gas_range_sg(curve.temp_at(gas_v))) if m < first] \
             if gas_v.size else []
-        raw = property_spline(va[ok], vb[ok], nc.sg[ok], [(m, g) for m, g in le_mids if m < first] + gas)
+        raw = yield from property_spline_steps(va[ok], vb[ok], nc.sg[ok],
+                                               [(m, g) for m, g in le_mids if m < first] + gas)
         source = "narrow-cut densities (monotone spline against mid-volume %, matching each cut's mean)"
         if gas:
             source += _GAS_NOTE
@@ -210,18 +317,26 @@ def sulfur_distribution(model, assay: Assay, le_mids) -> None:
     le_mids : list of (mid vol % [%], SG [-])
         Light-ends components placed on the curve.
     """
+    run_alone(sulfur_distribution_steps(model, assay, le_mids))
+
+
+def sulfur_distribution_steps(model, assay: Assay, le_mids, positions=None):
+    """:func:`sulfur_distribution` as a step function (:mod:`assaycut.model.steps`); ``positions``: the narrow
+    cuts' (start, end) vol % on the model's curve when the caller has them (:func:`narrow_cut_positions`)."""
     nc = assay.narrow_cuts
     if nc is None or np.isfinite(nc.sulfur_wt_pct).sum() < 2:
         model.warnings.append("no narrow-cut sulfur (fewer than 2 values): cut sulfur is left empty")
         model.methods["sulfur"] = "not estimated (no narrow-cut sulfur)"
         return
-    va, vb = narrow_cut_positions(assay, model.curve)
-    wa, wb = model.wt_at_vol(va), model.wt_at_vol(vb)
+    va, vb = narrow_cut_positions(assay, model.curve) if positions is None else positions
+    k = va.size
+    w = model.wt_at_vol(np.concatenate([va, vb, np.array([m for m, _ in le_mids], dtype=float)]))  # one call
+    wa, wb = w[:k], w[k:2 * k]
     ok = np.isfinite(nc.sulfur_wt_pct) & (wb > wa)
     first = float(wa[ok].min())
-    le_w = model.wt_at_vol(np.array([m for m, _ in le_mids], dtype=float)).tolist()  # one call for them all
+    le_w = w[2 * k:].tolist()
     fixed = [(w, 0.0) for w in le_w if w < first]
-    raw = property_spline(wa[ok], wb[ok], nc.sulfur_wt_pct[ok], fixed)
+    raw = yield from property_spline_steps(wa[ok], wb[ok], nc.sulfur_wt_pct[ok], fixed)
     total = raw.integral(0.0, 100.0) / 100.0
     if model.sulfur_wt_pct is None:
         model.sulfur_wt_pct = float(total)

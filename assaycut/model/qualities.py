@@ -26,7 +26,8 @@ from ..methods.fraction_properties import (
     sulfur_riazi_1999,
 )
 from .assay import Assay
-from .distributions import narrow_cut_positions, property_spline
+from .distributions import narrow_cut_positions, property_spline, property_spline_steps
+from .steps import run_alone
 from .lightends import GAS_RANGE_MAX_C
 from .spline import Pchip
 
@@ -211,6 +212,11 @@ def estimated_sulfur(model) -> Pchip:
     Pchip
         Sulfur [wt %] against weight % distilled, reconciled.
     """
+    return run_alone(estimated_sulfur_steps(model))
+
+
+def estimated_sulfur_steps(model):
+    """:func:`estimated_sulfur` as a step function (:mod:`assaycut.model.steps`)."""
     edges = np.linspace(0.0, 100.0, SULFUR_SLICES + 1)
     va, vb = edges[:-1], edges[1:]
     tb = model.curve.mean_temp(va, vb)
@@ -223,7 +229,7 @@ def estimated_sulfur(model) -> Pchip:
         s = np.where(tb < GAS_RANGE_MAX_C, 0.0, sulfur_riazi_1999(heavy_form, sg, ri, m))
     s = np.maximum.accumulate(np.nan_to_num(s, nan=0.0))
     wa, wb = model.wt_at_vol(va), model.wt_at_vol(vb)
-    raw = property_spline(wa, wb, s)
+    raw = yield from property_spline_steps(wa, wb, s)
     total = float(raw.integral(0.0, 100.0)) / 100.0
     factor = model.sulfur_wt_pct / total if total > 0 else 0.0
     return Pchip(raw.x, raw.y * factor)

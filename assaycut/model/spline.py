@@ -14,6 +14,11 @@ from __future__ import annotations
 
 import numpy as np
 
+try:  # the ufunc behind numpy.clip, without its Python wrapper (the same results; ~1 µs less per call)
+    from numpy._core.umath import clip as _clip
+except ImportError:  # pragma: no cover - other numpy layouts
+    _clip = np.clip
+
 
 def hermite_basis(t):
     """Cubic Hermite basis (h00, h10, h01, h11) at t in [0, 1]: p(t) = h00 y0 + h10 m0 + h01 y1 + h11 m1,
@@ -132,15 +137,18 @@ def slopes_on(x: np.ndarray):
         y (shape (n,)) -> dy/dx at every node, shape (n,).
     """
     x = np.asarray(x, dtype=float)
-    h = np.diff(x)
-    n = x.size
+    return _slopes_with(x[1:] - x[:-1], x.size)
+
+
+def _slopes_with(h: np.ndarray, n: int):
+    """:func:`slopes_on` from the segment widths ``h`` (n - 1 of them)."""
     h0, h1 = h[:-1], h[1:]
     w1 = 2.0 * h1 + h0
     w2 = h1 + 2.0 * h0
     wsum = w1 + w2
 
     def slopes(y):
-        m = np.diff(y) / h
+        m = (y[1:] - y[:-1]) / h
         if n == 2:
             return np.array([m[0], m[0]])
         d = np.zeros(n)
@@ -156,14 +164,56 @@ def slopes_on(x: np.ndarray):
     return slopes
 
 
+def slopes_on_rows(x: np.ndarray):
+    """:func:`slopes_on` for one spline per row: x of shape (R, n), n >= 2; the function maps y (R, n) to the
+    slopes (R, n), each row the same arithmetic as :func:`slopes_on` on that row (the end slopes'
+    limiting by selection instead of branches)."""
+    x = np.asarray(x, dtype=float)
+    h = np.diff(x, axis=1)
+    n = x.shape[1]
+    h0, h1 = h[:, :-1], h[:, 1:]
+    w1 = 2.0 * h1 + h0
+    w2 = h1 + 2.0 * h0
+    wsum = w1 + w2
+
+    def slopes(y):
+        m = np.diff(y, axis=1) / h
+        if n == 2:
+            return np.concatenate([m, m], axis=1)
+        d = np.zeros(y.shape)
+        m0, m1 = m[:, :-1], m[:, 1:]
+        same = (np.sign(m0) * np.sign(m1)) > 0
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            whmean = (w1 / m0 + w2 / m1) / wsum
+            d[:, 1:-1] = np.where(same, 1.0 / np.where(same, whmean, 1.0), 0.0)
+        d[:, 0] = _edge_slope_rows(h[:, 0], h[:, 1], m[:, 0], m[:, 1])
+        d[:, -1] = _edge_slope_rows(h[:, -1], h[:, -2], m[:, -1], m[:, -2])
+        return d
+
+    return slopes
+
+
+def _edge_slope_rows(h0, h1, m0, m1):
+    """:func:`_edge_slope` element-wise."""
+    d = ((2.0 * h0 + h1) * m0 - h0 * m1) / (h0 + h1)
+    limit = (np.sign(m0) != np.sign(m1)) & (np.abs(d) > np.abs(3.0 * m0))
+    return np.where(np.sign(d) != np.sign(m0), 0.0, np.where(limit, 3.0 * m0, d))
+
+
+def _sign(v: float) -> float:
+    """numpy.sign of one float (NaN for NaN)."""
+    return float((v > 0) - (v < 0)) if v == v else v
+
+
 def _edge_slope(h0, h1, m0, m1):
     """One-sided three-point end slope, limited so as to stay shape-preserving."""
+    h0, h1, m0, m1 = float(h0), float(h1), float(m0), float(m1)
     d = ((2.0 * h0 + h1) * m0 - h0 * m1) / (h0 + h1)
-    if np.sign(d) != np.sign(m0):
+    if _sign(d) != _sign(m0):
         return 0.0
-    if np.sign(m0) != np.sign(m1) and abs(d) > abs(3.0 * m0):
+    if _sign(m0) != _sign(m1) and abs(d) > abs(3.0 * m0):
         return 3.0 * m0
-    return float(d)
+    return d
 
 
 class Pchip:
@@ -186,18 +236,21 @@ class Pchip:
         y = np.asarray(y, dtype=float)
         if x.ndim != 1 or x.size < 2 or x.size != y.size:
             raise ValueError("Pchip needs two or more nodes, x and y of equal length")
-        if not np.all(np.diff(x) > 0):
+        h = x[1:] - x[:-1]
+        if not (h > 0).all():
             raise ValueError("Pchip nodes must be strictly increasing")
-        self.x, self.y = x, y
-        self.d = pchip_slopes(x, y)
-        self.h = np.diff(x)
-        self._cum = np.concatenate([[0.0], np.cumsum(segment_integrals(self.h, y, self.d))])
+        self.x, self.y, self.h = x, y, h
+        self.d = _slopes_with(h, x.size)(y)
+        cum = np.empty(x.size)
+        cum[0] = 0.0
+        np.cumsum(segment_integrals(h, y, self.d), out=cum[1:])
+        self._cum = cum
         self._inv = None
 
     # -- evaluation -------------------------------------------------------------------------------------
     def _locate(self, xq):
-        xq = np.clip(np.asarray(xq, dtype=float), self.x[0], self.x[-1])
-        i = np.clip(np.searchsorted(self.x, xq, side="right") - 1, 0, self.x.size - 2)
+        xq = _clip(np.asarray(xq, dtype=float), self.x[0], self.x[-1])
+        i = _clip(np.searchsorted(self.x, xq, side="right") - 1, 0, self.x.size - 2)
         t = (xq - self.x[i]) / self.h[i]
         return i, t
 

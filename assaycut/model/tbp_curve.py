@@ -17,9 +17,10 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import CurveError
-from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution
+from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution, fit_riazi_many
 from ..units import pct_text
 from .spline import Pchip
+from .steps import Need, run_alone
 
 END_FRACTION = 0.9995
 """The curve's 100 % point is placed at this fraction of the fitted distribution."""
@@ -94,6 +95,16 @@ class TbpCurve:
         """TBP temperature [°C] at cumulative ``pct`` [vol %] distilled (left end of a flat step)."""
         return self.spline.inverse(pct)
 
+    def temp_at_node(self, pct: float) -> float:
+        """TBP [°C] at a percent [vol %] that is one of the curve's node values (a measured point, the light
+        ends' 0 %): the first node with that value, which is what :meth:`temp_at` gives there (the left end of
+        a flat step), found without the inverse's search (tested against it)."""
+        y = self.spline.y
+        k = int(np.searchsorted(y, pct, side="left"))
+        if k >= y.size or y[k] != pct:
+            raise ValueError(f"{pct!r} % is not a node of the curve")
+        return float(self.spline.x[k])
+
     def mean_temp(self, pct_a, pct_b, ta=None, tb=None):
         """Volume-average TBP over [pct_a, pct_b] [vol %], by parts: ∫T dV = [T V] - ∫V dT. [°C]
 
@@ -161,6 +172,29 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> TbpCurve:
     CurveError
         Fewer than two points, temperatures falling as percent rises, or an extension that cannot be fitted.
     """
+    return run_alone(build_curve_steps(percent, temp_c, front_t=front_t, front_v=front_v))
+
+
+class RiaziNeed(Need):
+    """The Riazi distribution fitted to a curve's measured points (:func:`fit_riazi_distribution`); many at
+    once by :func:`~assaycut.methods.riazi_distribution.fit_riazi_many`."""
+
+    __slots__ = ("percent", "temp_c")
+
+    def __init__(self, percent, temp_c):
+        self.percent, self.temp_c = percent, temp_c
+
+    def alone(self):
+        return fit_riazi_distribution(self.percent, self.temp_c)
+
+    @classmethod
+    def together(cls, needs):
+        return fit_riazi_many([(n.percent, n.temp_c) for n in needs])
+
+
+def build_curve_steps(percent, temp_c, *, front_t=None, front_v=None):
+    """:func:`build_curve` as a step function (:mod:`assaycut.model.steps`): the extension's fit is a
+    :class:`RiaziNeed`."""
     warnings: list[str] = []
     v, t = _checked_points(percent, temp_c)
     t = _widen_repeats(v, t, warnings)
@@ -171,7 +205,7 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> TbpCurve:
     need_tail = v[-1] < 100.0
     need_front = v[0] > 0.0 and not placed
     if need_tail or need_front:
-        fit = fit_riazi_distribution(v, t)
+        fit = yield RiaziNeed(v, t)
         if fit.rms_c > POOR_FIT_RMS_C:
             warnings.append(f"the distribution fitted for the curve's extension deviates from the measured "
                             f"points by {fit.rms_c:.1f} °C RMS (above {POOR_FIT_RMS_C:g} °C): extrapolated "

@@ -2,7 +2,8 @@
 
 Monte Carlo over the curve model: each draw perturbs the measured TBP temperatures and percents, the
 densities (whole crude and narrow cuts) and the sulfur contents by independent normal errors, rebuilds the
-crude model, and all draws are cut together by the library engine (arrays over draws).  Reported: P10, P50
+crude model (the draws of a chunk together, :func:`~assaycut.model.crude.build_models`), and all draws are cut
+together by the library engine (arrays over draws).  Reported: P10, P50
 and P90 per cut.
 
 The default standard deviations are ASSUMPTIONS of ours, not values from the standards: the repeatability
@@ -21,7 +22,7 @@ from ..cutting.cutset import CutSet
 from ..cutting.library import cut_library
 from ..errors import AssaycutError, StudyError
 from ..model.assay import Assay
-from ..model.crude import build_model
+from ..model.crude import build_models
 
 
 @dataclass(frozen=True)
@@ -75,12 +76,9 @@ def _draw_chunk(args):
     """Model and cut one chunk of draws: (columns of :data:`BAND_QUALITIES` over the draws, failed draws)."""
     assay, cut_set, sig, count, seed, k, method = args
     rng = np.random.default_rng([seed, k])
-    models, failed = [], 0
-    for _ in range(count):
-        try:
-            models.append(build_model(perturb(assay, sig, rng), method, qualities=False))
-        except AssaycutError:
-            failed += 1
+    built = build_models([perturb(assay, sig, rng) for _ in range(count)], method, qualities=False)
+    models = [m for m in built if not isinstance(m, AssaycutError)]
+    failed = count - len(models)
     if not models:
         return {}, failed
     _, cols = cut_library(models, cut_set, only=set())  # the bands read no narrow-cut quality

@@ -230,7 +230,17 @@ def test_core_errors_in_a_batch_name_the_file(tmp_path, monkeypatch):
             raise CurveError("the curve cannot be modelled")
         return real(assay, method)
 
+    def fail_for_b_together(assays, method="daubert-1994"):  # the batch builder: errors in place
+        out = []
+        for a in assays:
+            try:
+                out.append(fail_for_b(a, method))
+            except CurveError as e:
+                out.append(e)
+        return out
+
     monkeypatch.setattr(y, "build_model", fail_for_b)
+    monkeypatch.setattr(y, "build_models", fail_for_b_together)
     r = runner.invoke(app, ["yields", str(good), str(bad), "--api", "30", "--json"])
     assert r.exit_code == 2
     errors = json.loads(r.stdout)["errors"]

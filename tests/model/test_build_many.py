@@ -1,0 +1,201 @@
+"""Models built together (build_models, the array kernels) against each one built alone (build_model).
+
+The expected values are the reference path's own models: the check is that the batched path changes no bit
+of any model (curve, density and sulfur distributions, qualities, fit, warnings, methods), and that the row
+kernels equal their one-problem kernels.  The random inputs are invented; what is checked is the identity of
+the two paths.
+"""
+
+from __future__ import annotations
+
+import copy
+
+import numpy as np
+import pytest
+
+from assaycut.errors import AssaycutError, CurveError
+from assaycut.io import load_assay
+from assaycut.methods.riazi_distribution import fit_riazi_distribution, fit_riazi_many
+from assaycut.model.assay import Assay, CurveData, LightEnds, NarrowCuts
+from assaycut.model.crude import build_model, build_models
+from assaycut.model.distributions import MeanMatchNeed, property_spline_steps
+from assaycut.model.spline import Pchip, slopes_on, slopes_on_rows
+from assaycut.model.tbp_curve import build_curve
+
+
+def leaves(obj, path="model"):
+    """Every leaf of a model as (path, value): arrays as bytes, so that equality is to the last bit."""
+    if isinstance(obj, np.ndarray):
+        yield path, (obj.shape, obj.dtype.str, obj.tobytes())
+    elif isinstance(obj, Pchip):
+        for s in ("x", "y", "d", "h"):
+            yield from leaves(getattr(obj, s), f"{path}.{s}")
+    elif hasattr(obj, "__dict__"):
+        yield path, type(obj).__name__
+        for k, v in vars(obj).items():
+            yield from leaves(v, f"{path}.{k}")
+    elif isinstance(obj, dict):
+        yield path, sorted(map(str, obj))
+        for k, v in obj.items():
+            yield from leaves(v, f"{path}[{k}]")
+    elif isinstance(obj, (list, tuple)):
+        yield path, len(obj)
+        for k, v in enumerate(obj):
+            yield from leaves(v, f"{path}[{k}]")
+    elif isinstance(obj, float) and obj != obj:
+        yield path, "nan"
+    else:
+        yield path, obj
+
+
+def assert_same_models(alone, together):
+    assert len(alone) == len(together)
+    for k, (a, b) in enumerate(zip(alone, together)):
+        if isinstance(a, AssaycutError):
+            assert type(b) is type(a) and str(b) == str(a), k
+            continue
+        la, lb = dict(leaves(a)), dict(leaves(b))
+        assert la.keys() == lb.keys(), k
+        diff = [p for p in la if la[p] != lb[p]]
+        assert not diff, (k, diff[:5])
+
+
+def alone_or_error(assay, **kw):
+    try:
+        return build_model(assay, **kw)
+    except AssaycutError as e:
+        return e
+
+
+def perturbed(base: Assay, rng, k: int) -> Assay:
+    """A demo crude with its temperatures, gravity and sulfur scaled (as the benchmark's library does)."""
+    a = copy.deepcopy(base)
+    f_t, f_sg, f_s = rng.uniform(0.96, 1.04), rng.uniform(0.98, 1.02), rng.uniform(0.8, 1.2)
+    for c in a.curves:
+        c.temp_c = (c.temp_c + 273.15) * f_t - 273.15
+    a.sg *= f_sg
+    if a.sulfur_wt_pct is not None:
+        a.sulfur_wt_pct *= f_s
+    if a.narrow_cuts is not None:
+        nc = a.narrow_cuts
+        nc.start_c = (nc.start_c + 273.15) * f_t - 273.15
+        nc.end_c = (nc.end_c + 273.15) * f_t - 273.15
+        nc.sg = nc.sg * f_sg
+        nc.sulfur_wt_pct = nc.sulfur_wt_pct * f_s
+    a.name = f"{base.name} {k}"
+    return a
+
+
+def random_curve_assay(rng, k: int) -> Assay:
+    """A quick curve (no narrow cuts): both bases, some closed at 100 %, some with light ends."""
+    pct = np.array([0.0, 5, 10, 30, 50, 70, 90] if k % 5 else [3.0, 10, 30, 50, 70, 100])
+    temps = np.cumsum(rng.uniform(5.0, 90.0, pct.size)) + rng.uniform(-40.0, 60.0)
+    basis = "wt" if k % 3 == 0 else "vol"
+    le = LightEnds({"propane": 0.4, "n-butane": 1.1}, "vol") if k % 4 == 1 and pct[0] > 0 else None
+    return Assay(f"random {k}", float(rng.uniform(0.75, 0.98)), [CurveData("TBP", basis, pct, temps)],
+                 sulfur_wt_pct=float(rng.uniform(0.05, 4.0)) if k % 2 else None, light_ends=le)
+
+
+def test_demo_crudes_with_qualities(demo_paths):
+    assays = [load_assay(p) for p in demo_paths]
+    assert_same_models([build_model(a) for a in assays], build_models(assays))
+
+
+def test_perturbed_library_and_draws_of_one_crude(demo_paths):
+    rng = np.random.default_rng(20261202)  # invented perturbations
+    bases = [load_assay(p) for p in demo_paths]
+    assays = [perturbed(bases[k % len(bases)], rng, k) for k in range(90)]
+    assert_same_models([alone_or_error(a, qualities=False) for a in assays], build_models(assays, qualities=False))
+
+
+def test_random_quick_curves_both_bases_and_errors_in_place():
+    rng = np.random.default_rng(7)
+    assays = [random_curve_assay(rng, k) for k in range(60)]
+    # refused ones in the middle: a falling curve and a curve with two points strictly inside 0-100 %
+    assays.insert(10, Assay("falling", 0.85, [CurveData("TBP", "vol", np.array([5.0, 30, 60]),
+                                                        np.array([80.0, 200, 150]))]))
+    assays.insert(30, Assay("short", 0.85, [CurveData("TBP", "vol", np.array([0.0, 20, 40]),
+                                                      np.array([30.0, 150, 250]))]))
+    alone = [alone_or_error(a) for a in assays]
+    assert isinstance(alone[10], CurveError) and isinstance(alone[30], CurveError)
+    assert sum(isinstance(m, AssaycutError) for m in alone) >= 2
+    assert_same_models(alone, build_models(assays))
+
+
+def test_d86_and_vacuum_curves(demo_paths):
+    base = next(a for a in map(load_assay, demo_paths) if any(c.method == "D1160" for c in a.curves))
+    rng = np.random.default_rng(3)
+    assays = [perturbed(base, rng, k) for k in range(12)]
+    d86 = []
+    for k in range(12):
+        t = np.array([35.0, 70, 120, 180, 250, 320, 360]) * rng.uniform(0.95, 1.05)
+        d86.append(Assay(f"d86 {k}", 0.86, [CurveData("D86", "vol", np.array([0.0, 10, 30, 50, 70, 90, 95]), t)],
+                         sulfur_wt_pct=1.0))
+    for method in ("daubert-1994", "riazi-daubert-1986"):
+        all_ = assays + d86
+        assert_same_models([alone_or_error(a, method=method) for a in all_], build_models(all_, method=method))
+
+
+def test_riazi_fits_together_equal_each_alone():
+    rng = np.random.default_rng(11)
+    curves = []
+    for _ in range(120):
+        n = int(rng.integers(3, 15))
+        curves.append((np.sort(rng.uniform(1, 95, n)), np.sort(rng.uniform(20, 600, n))))
+    curves += [(np.array([0.0, 10, 100]), np.array([10.0, 20, 30])),   # one point inside: refused
+               (np.array([10.0, 20, 30]), np.array([100.0, 100, 100]))]  # no shape to fit
+    for c, many in zip(curves, fit_riazi_many(curves)):
+        try:
+            one = fit_riazi_distribution(*c)
+        except CurveError as e:
+            assert isinstance(many, CurveError) and str(many) == str(e)
+            continue
+        assert (many.t0_k, many.a, many.b, many.rms_c, many.npoints) == (one.t0_k, one.a, one.b, one.rms_c,
+                                                                         one.npoints)
+
+
+def test_row_slopes_equal_one_spline_slopes():
+    rng = np.random.default_rng(5)
+    for n in (2, 3, 7, 13):
+        x = np.cumsum(rng.uniform(0.1, 5.0, (40, n)), axis=1)
+        y = rng.normal(0.0, 3.0, (40, n))
+        y[::4] = np.sort(y[::4], axis=1)   # monotone rows
+        y[1::4, 1:] = y[1::4, :1]          # flat rows
+        rows = slopes_on_rows(x)(y)
+        for r in range(40):
+            assert rows[r].tobytes() == slopes_on(x[r])(y[r]).tobytes(), (n, r)
+
+
+def test_mean_matching_together_equals_alone():
+    rng = np.random.default_rng(9)
+    needs = []
+    for k in range(50):
+        edges = np.sort(rng.uniform(0.0, 100.0, 9))
+        vals = np.sort(rng.uniform(0.6, 1.0, 8)) if k % 2 else rng.uniform(0.0, 4.0, 8)
+        steps = property_spline_steps(edges[:-1], edges[1:], vals, [(0.5, 0.5)] if k % 3 == 0 else (),
+                                      floor=None if k % 5 == 0 else 0.0)
+        needs.append(next(steps))
+    assert all(isinstance(n, MeanMatchNeed) for n in needs)
+    for one, many in zip([n.alone() for n in needs], MeanMatchNeed.together(needs)):
+        assert one.tobytes() == many.tobytes()
+
+
+def test_temp_at_node_is_the_inverse_at_every_node():
+    rng = np.random.default_rng(13)
+    for k in range(60):
+        front = (None, None)
+        if k % 3 == 0:    # from 0 %, a repeated percent (a flat step), closed at 100 %
+            pct = np.array([0.0, 10, 30, 30, 70, 100])
+            temps = np.cumsum(rng.uniform(5.0, 90.0, pct.size)) + rng.uniform(-40.0, 60.0)
+        elif k % 3 == 1:  # light ends placed in front of the first point (a staircase)
+            pct = np.array([2.0, 10, 30, 50, 70, 90])
+            temps = np.cumsum(rng.uniform(5.0, 90.0, pct.size)) + rng.uniform(40.0, 60.0)
+            front = ([-0.51, -0.5, 35.99, 36.0], [0.0, 0.6, 0.6, 2.0])
+        else:             # a front extension before 2 % and a tail past 90 %
+            pct = np.array([2.0, 10, 30, 50, 70, 90])
+            temps = np.array([45.0, 95, 190, 280, 370, 480]) * rng.uniform(0.9, 1.1)
+        curve = build_curve(pct, temps, front_t=front[0], front_v=front[1])
+        for v in np.unique(curve.spline.y):
+            assert curve.temp_at_node(float(v)) == float(curve.temp_at(float(v))), (k, v)
+    with pytest.raises(ValueError):
+        curve.temp_at_node(12.345)
