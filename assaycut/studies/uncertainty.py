@@ -50,11 +50,23 @@ BAND_QUALITIES = ["vol_pct", "wt_pct", "sg", "api", "sulfur_wt_pct", "watson_k",
 
 def perturb(assay: Assay, sig: Sigmas, rng: np.random.Generator) -> Assay:
     """One Monte Carlo draw of the assay: measured values plus independent normal errors, curves kept
-    monotone (running maximum) and percents inside 0-100."""
-    a = copy.deepcopy(assay)
-    for c in a.curves:
+    monotone (running maximum) and percents inside 0-100.
+
+    With a light-ends analysis, the percent of the curve's first point is not perturbed: the light ends are the
+    curve's first fraction (collected and analysed by gas chromatography in a TBP distillation), so their
+    total and that percent are one measurement; perturbing it alone would leave the light ends off the curve
+    in about a third of the draws (they are placed only where they meet the first point within 0.1 %).
+    """
+    a = copy.copy(assay)  # shallow copies: every perturbed array is a new one, the rest is shared read-only
+    a.curves = [copy.copy(c) for c in assay.curves]
+    if assay.narrow_cuts is not None:
+        a.narrow_cuts = copy.copy(assay.narrow_cuts)
+    le = assay.light_ends
+    for k, c in enumerate(a.curves):
         t = c.temp_c + rng.normal(0.0, sig.temp_c, c.temp_c.size)
         p = np.clip(c.percent + rng.normal(0.0, sig.pct, c.percent.size), 0.0, 100.0)
+        if k == 0 and le is not None and le.amounts and c.percent[0] > 0:
+            p[0] = c.percent[0]  # the light ends' total: one measurement with the light-ends analysis
         c.temp_c = np.maximum.accumulate(t + np.arange(t.size) * 1e-6)
         c.percent = np.maximum.accumulate(p)
     a.sg = assay.sg + rng.normal(0.0, sig.sg)
