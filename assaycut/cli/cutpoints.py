@@ -236,11 +236,12 @@ def optimize(
         res = optimize_cut_points(model, cs, lim, maximize=maximize, prices=ps, span_c=span, min_yields=mins,
                                   free=free, progress=bar)
     new_cs = cs.with_ends({c.name: float(e) for c, e in zip(cs.cuts, res.ends_c)}, cs.label + " optimised")
-    before = run_yields(a, cs, lim, model=model)
-    after = run_yields(a, new_cs, lim, model=model)
+    tables = out is not None or not json_out  # the plot and the printed table read both runs' tables
+    before = run_yields(a, cs, lim, model=model) if tables else None
+    after = run_yields(a, new_cs, lim, model=model, frames=tables)  # JSON alone: rows, no pandas
     unit = "vol %" if maximize else f"{ps.currency}/bbl"
     what = f"{maximize} yield" if maximize else "gross product worth"
-    if out is not None or not json_out:
+    if tables:
         from ..report.studyreports import plot_optimum
         from ..report.write import place_files, png_bytes, slug
 
