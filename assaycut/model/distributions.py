@@ -72,8 +72,9 @@ def property_spline_steps(lo, hi, values, fixed=(), iterations: int = 30, floor:
         return Pchip(np.array([0.0, 100.0]), np.array([y0[0], y0[0]]))
     cut_idx = order[keep][is_cut]
     tol = 1e-7 * max(float(np.max(np.abs(vals))), 1e-12)
-    best = yield MeanMatchNeed(x, y0, is_cut, lo[cut_idx], hi[cut_idx], vals[cut_idx], tol, iterations, floor)
-    return Pchip(x, best)
+    best, d, cum = yield MeanMatchNeed(x, y0, is_cut, lo[cut_idx], hi[cut_idx], vals[cut_idx], tol, iterations,
+                                       floor)
+    return Pchip.from_parts(x, best, d, cum)
 
 
 class MeanMatchNeed(Need):
@@ -89,19 +90,24 @@ class MeanMatchNeed(Need):
         self.tol, self.iterations, self.floor = tol, iterations, floor
 
     def alone(self):
+        """(best node values, their PCHIP slopes, their cumulative segment integrals)."""
         y = self.y0.copy()
-        best, best_err = y.copy(), np.inf
+        best, best_err = None, np.inf
         means = _interval_means(self.x, self.a, self.b)
         is_cut, floor, tol = self.is_cut, self.floor, self.tol
         for _ in range(self.iterations):
-            err = self.target - means(y)
+            m, d, cum = means(y)
+            err = self.target - m
             worst = float(np.max(np.abs(err))) if err.size else 0.0
             if worst >= 0.95 * best_err:  # no longer improving
                 break
-            best, best_err = y.copy(), worst
+            best, best_err = (y.copy(), d, cum), worst
             if worst < tol:
                 break
             y[is_cut] = y[is_cut] + err if floor is None else np.maximum(y[is_cut] + err, floor)
+        if best is None:  # no iteration at all
+            d = slopes_on(self.x)(y)
+            best = (y, d, _cumulative(self.x, y, d))
         return best
 
     @classmethod
@@ -133,25 +139,31 @@ def _mean_match_rows(rows: list[MeanMatchNeed]) -> list[np.ndarray]:
     tol = np.array([r.tol for r in rows])
     is_cut, floor = first.is_cut, first.floor
     means = _interval_means_rows(x, a, b)
+    if first.iterations < 1:
+        return [r.alone() for r in rows]
     best = y.copy()
+    best_d = np.zeros_like(y)
+    best_cum = np.zeros_like(y)
     best_err = np.full(len(rows), np.inf)
     active = np.ones(len(rows), dtype=bool)
     for _ in range(first.iterations):
-        err = target - means(y)
+        m, d, cum = means(y)
+        err = target - m
         worst = np.max(np.abs(err), axis=1) if err.shape[1] else np.zeros(len(rows))
         active &= ~(worst >= 0.95 * best_err)  # no longer improving: keeps its best
-        best[active] = y[active]
+        best[active], best_d[active], best_cum[active] = y[active], d[active], cum[active]
         best_err = np.where(active, worst, best_err)
         active &= ~(worst < tol)
         if not active.any():
             break
         moved = y[:, is_cut] + err if floor is None else np.maximum(y[:, is_cut] + err, floor)
         y[:, is_cut] = np.where(active[:, None], moved, y[:, is_cut])
-    return list(best)
+    return [(best[r], best_d[r], best_cum[r]) for r in range(len(rows))]
 
 
 def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):
-    """A function y -> mean of the PCHIP through (x, y) over each [a, b] (held flat beyond the end nodes).
+    """A function y -> (mean of the PCHIP through (x, y) over each [a, b] (held flat beyond the end nodes), its
+    slopes, its cumulative segment integrals).
 
     The same exact integral as :meth:`Pchip.integral`, with the interval ends located once, since only the
     node values change between the iterations of :func:`property_spline`.
@@ -174,15 +186,20 @@ def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):
         cum = np.concatenate([[0.0], np.cumsum(segment_integrals(h, y, d))])
         anti = [cum[i] + hi * hermite_combine(w, y[i], y[i + 1], hi * d[i], hi * d[i + 1]) + below * y[0]
                 + above * y[-1] for i, w, hi, below, above in ends]
-        return (anti[1] - anti[0]) / width
+        return (anti[1] - anti[0]) / width, d, cum
 
     return means
+
+
+def _cumulative(x, y, d):
+    """Cumulative segment integrals of the PCHIP (x, y, d), from 0 at x[0]."""
+    return np.concatenate([[0.0], np.cumsum(segment_integrals(x[1:] - x[:-1], y, d))])
 
 
 
 def _interval_means_rows(x: np.ndarray, a: np.ndarray, b: np.ndarray):
     """:func:`_interval_means` row-wise: x (R, n) nodes, a and b (R, k) intervals; y (R, n) -> means (R, k),
-    each row the same arithmetic as the one-spline function."""
+    slopes and cumulative integrals (R, n), each row the same arithmetic as the one-spline function."""
     h = np.diff(x, axis=1)
     rows = np.arange(x.shape[0])[:, None]
     n = x.shape[1]
@@ -204,7 +221,7 @@ def _interval_means_rows(x: np.ndarray, a: np.ndarray, b: np.ndarray):
         anti = [cum[rows, i] + hi * hermite_combine(w, y[rows, i], y[rows, i + 1], hi * d[rows, i],
                                                     hi * d[rows, i + 1]) + below * y[:, :1] + above * y[:, -1:]
                 for i, w, hi, below, above in ends]
-        return (anti[1] - anti[0]) / width
+        return (anti[1] - anti[0]) / width, d, cum
 
     return means
 
@@ -298,7 +315,7 @@ def density_distribution_steps(assay: Assay, curve: TbpCurve, le_mids, warnings:
                         "assumed from the C2-C5 paraffins boiling at the same temperature; give a light-ends "
                         "analysis for measured values")
     factor = 100.0 * assay.sg / raw.integral(0.0, 100.0)
-    return Pchip(raw.x, raw.y * factor), (factor - 1.0) * 100.0, source, kw
+    return raw.scaled(factor), (factor - 1.0) * 100.0, source, kw
 
 
 def sulfur_distribution(model, assay: Assay, le_mids) -> None:
@@ -345,7 +362,7 @@ def sulfur_distribution_steps(model, assay: Assay, le_mids, positions=None):
         model.sulfur_dist = raw
     else:
         factor = model.sulfur_wt_pct / total if total > 0 else 1.0
-        model.sulfur_dist = Pchip(raw.x, raw.y * factor)
+        model.sulfur_dist = raw.scaled(factor)
         model.sulfur_reconciliation_pct = (factor - 1.0) * 100.0
     model.methods["sulfur"] = (f"narrow-cut sulfur (monotone spline against mid-weight %, matching each cut's "
                                f"mean); scaled by {model.sulfur_reconciliation_pct:+.2f} % to reproduce the "

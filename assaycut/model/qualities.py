@@ -232,4 +232,4 @@ def estimated_sulfur_steps(model):
     raw = yield from property_spline_steps(wa, wb, s)
     total = float(raw.integral(0.0, 100.0)) / 100.0
     factor = model.sulfur_wt_pct / total if total > 0 else 0.0
-    return Pchip(raw.x, raw.y * factor)
+    return raw.scaled(factor)

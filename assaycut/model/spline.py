@@ -247,6 +247,24 @@ class Pchip:
         self._cum = cum
         self._inv = None
 
+    @classmethod
+    def from_parts(cls, x, y, d, cum) -> "Pchip":
+        """The interpolant through (x, y) from slopes ``d`` and cumulative segment integrals ``cum`` already
+        computed by the same construction (:func:`slopes_on`, :func:`segment_integrals`), e.g. by an iteration
+        that adjusted y; nothing is checked or recomputed."""
+        out = cls.__new__(cls)
+        out.x, out.y, out.d, out._cum = x, y, d, cum
+        out.h = x[1:] - x[:-1]
+        out._inv = None
+        return out
+
+    def scaled(self, factor: float) -> "Pchip":
+        """The interpolant of ``factor`` x y (factor >= 0): the PCHIP construction is homogeneous in y, so its
+        slopes and integrals are this one's times the factor (equal to rebuilding from factor x y but for
+        rounding)."""
+        f = float(factor)
+        return Pchip.from_parts(self.x, self.y * f, self.d * f, self._cum * f)
+
     # -- evaluation -------------------------------------------------------------------------------------
     def _locate(self, xq):
         xq = _clip(np.asarray(xq, dtype=float), self.x[0], self.x[-1])

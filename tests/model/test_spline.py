@@ -118,3 +118,22 @@ def test_fast_inverse_equals_the_reference_and_is_exact():
         v = s(t)
         back = s(s.inverse(v))  # V(T(V)) = V; T itself is not unique on a flat step
         np.testing.assert_allclose(back, v, rtol=0, atol=1e-9 * max(1.0, float(np.max(np.abs(s.y)))))
+
+
+def test_scaled_equals_the_interpolant_of_scaled_values():
+    # The PCHIP slopes (Fritsch & Butland harmonic mean, Moler's end slopes) are homogeneous of degree 1 in y,
+    # so scaling the values scales slopes and integrals; checked against scipy's PchipInterpolator of the
+    # scaled values (scipy as the outside reference) to rounding.
+    rng = np.random.default_rng(21)
+    for k in range(40):
+        x = np.cumsum(rng.uniform(0.2, 9.0, int(rng.integers(2, 14))))
+        y = rng.normal(1.0, 0.4, x.size) if k % 2 else np.sort(rng.uniform(0.5, 1.1, x.size))
+        f = float(rng.uniform(0.0, 3.0)) if k % 7 else 0.0
+        s = Pchip(x, y).scaled(f)
+        ref = PchipInterpolator(x, y * f)
+        q = rng.uniform(x[0], x[-1], 50)
+        scale = max(1.0, float(np.max(np.abs(y * f))))
+        assert_allclose(s(q), ref(q), rtol=0, atol=1e-13 * scale)
+        assert_allclose(s.integral(x[0], q), [ref.integrate(x[0], b) for b in q],
+                        rtol=0, atol=1e-11 * scale * (x[-1] - x[0]))
+        assert_allclose(s.d, Pchip(x, y * f).d, rtol=1e-13, atol=1e-13 * scale)
