@@ -49,7 +49,7 @@ def fit_riazi_distribution(percent, temp_c) -> RiaziFit:
 
     For each trial T0 the linearised form ln((T-T0)/T0) = (1/B) ln(A/B) + (1/B) ln ln(1/(1-x)) [2]_ is
     solved by least squares; T0 is chosen to minimise the squared temperature deviation (grid search,
-    refined twice).  Vectorised over the trial values.
+    refined three times).  Vectorised over the trial values.
 
     Parameters
     ----------
@@ -153,8 +153,9 @@ def _fit_result(best, npoints: int) -> RiaziFit:
     return RiaziFit(best[0], best[1], best[2], best[3], int(npoints))
 
 
-GRID = 400
-"""Trial values of T0 per pass of the grid search (three passes, each refining around the best)."""
+GRID_PASSES = (400, 100, 100, 100)
+"""Trial values of T0 in each pass of the grid search: the first spans 0.2 Tmin to Tmin, each later one the
+two steps of the previous pass around its best (the last step is about 1e-8 of the first span)."""
 ROWS_PER_CALL = 16
 """Curves searched together in one array call (bounded so that the arrays stay in the processor's cache)."""
 
@@ -168,7 +169,7 @@ def _fit_grid_rows(v, t):
     """The grid search of :func:`fit_riazi_distribution` for curves with the same number of points, one per row
     of ``v`` (fractions) and ``t`` [K], shape (R, n); (T0, A, B, rms) or None per row.
 
-    For each trial T0 (:data:`GRID` per pass, three passes each refining around the best), the linearised form
+    For each trial T0 (:data:`GRID_PASSES`, each pass refining around the best), the linearised form
     ln((T-T0)/T0) = (1/B) ln(A/B) + (1/B) ln ln(1/(1-x)) is solved by least squares, and the T0 with the least
     squared temperature deviation is kept.  The points lie along the first axis of the work arrays and every
     sum over them runs along that axis (a plain sequential sum), so a row's result does not depend on which
@@ -193,13 +194,13 @@ def _grid_block(v, t):
     alive = np.ones(rows, dtype=bool)
     best = np.zeros((rows, 4))
     r = np.arange(rows)
-    work = np.empty((n, rows, GRID))
-    for _ in range(3):
-        t0 = np.linspace(lo, hi, GRID, axis=1)                      # (R, GRID)
+    for grid in GRID_PASSES:
+        work = np.empty((n, rows, grid))
+        t0 = np.linspace(lo, hi, grid, axis=1)                      # (R, grid)
         np.subtract(tt, t0, out=work)
         work /= t0
         np.maximum(work, 1e-300, out=work)
-        y = np.log(work, out=work)                                  # ln((T - T0)/T0), (n, R, GRID)
+        y = np.log(work, out=work)                                  # ln((T - T0)/T0), (n, R, grid)
         ym = y.sum(axis=0) / n
         y -= ym
         y *= dx
@@ -215,11 +216,11 @@ def _grid_block(v, t):
         pred += 1.0
         pred *= t0
         pred -= tt
-        sse = np.square(pred, out=pred).sum(axis=0)                 # (R, GRID)
+        sse = np.square(pred, out=pred).sum(axis=0)                 # (R, grid)
         finite = np.isfinite(sse)
         alive &= finite.any(axis=1)
         k = np.argmin(np.where(finite, sse, np.inf), axis=1)
         best = np.stack([t0[r, k], a[r, k], b[r, k], np.sqrt(sse[r, k] / n)], axis=1)
-        step = (hi - lo) / (GRID - 1)
+        step = (hi - lo) / (grid - 1)
         lo, hi = np.maximum(best[:, 0] - step, 1e-3), np.minimum(best[:, 0] + step, tmin * (1 - 1e-9))
     return [tuple(float(z) for z in best[i]) if alive[i] else None for i in range(rows)]
