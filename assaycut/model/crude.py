@@ -180,6 +180,10 @@ def model_steps(assay: Assay, method: str = "daubert-1994", qualities: bool = Tr
 
 WT_NODE_TOL = 1e-9
 """How closely a weight-basis curve's own nodes are reproduced by the model's wt % distilled. [wt %]"""
+FREEZE_FIT_WT = 1e-6
+"""Once every node of a weight-basis curve is this close, the passes keep the extension's fit as it is: the fit
+is a grid search, so refitting points that move by less than this can hop between two neighbouring grid values
+and stall the passes just above :data:`WT_NODE_TOL`; the extension still joins the last point exactly. [wt %]"""
 
 
 def _fit_weight_basis(assay: Assay, w, t, warnings: list[str], methods: dict[str, str]):
@@ -194,11 +198,15 @@ def _fit_weight_basis(assay: Assay, w, t, warnings: list[str], methods: dict[str
     v = _to_volume_basis(w, t, assay, warnings, methods)
     closes = abs(float(w[-1]) - 100.0) < 1e-9
     model = None
+    fit = None
     for _ in range(60):
-        model = yield from _fit(assay, v, t, list(warnings), dict(methods))
+        model = yield from _fit(assay, v, t, list(warnings), dict(methods), fit)
         miss = w - model.wt_at_vol(v)
-        if float(np.max(np.abs(miss))) < WT_NODE_TOL:
+        worst = float(np.max(np.abs(miss)))
+        if worst < WT_NODE_TOL:
             break
+        if worst < FREEZE_FIT_WT:  # from here on the extension keeps this fit (see FREEZE_FIT_WT)
+            fit = model.curve.fit
         v = np.clip(v + miss * model.sg / model.sg_dist(v), 0.0, 100.0)
         if closes:
             v[-1] = 100.0
@@ -212,11 +220,11 @@ def _fit_weight_basis(assay: Assay, w, t, warnings: list[str], methods: dict[str
     return model
 
 
-def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str]):
+def _fit(assay: Assay, p, t, warnings: list[str], methods: dict[str, str], fit=None):
     """Curve model, density and sulfur distributions for volume-basis TBP points (p [vol %], t [°C]); a step
-    function."""
+    function.  ``fit``: the extension's Riazi fit to use instead of fitting these points."""
     le_t, le_v, le_mids = _light_ends_nodes(assay, float(t[0]))
-    curve = yield from build_curve_steps(p, t, front_t=le_t, front_v=le_v)
+    curve = yield from build_curve_steps(p, t, front_t=le_t, front_v=le_v, fit=fit)
     warnings += curve.warnings
     if curve.light_ends_pct == 0.0:
         le_mids = []

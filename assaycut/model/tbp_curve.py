@@ -192,9 +192,10 @@ class RiaziNeed(Need):
         return fit_riazi_many([(n.percent, n.temp_c) for n in needs])
 
 
-def build_curve_steps(percent, temp_c, *, front_t=None, front_v=None):
+def build_curve_steps(percent, temp_c, *, front_t=None, front_v=None, fit: RiaziFit | None = None):
     """:func:`build_curve` as a step function (:mod:`assaycut.model.steps`): the extension's fit is a
-    :class:`RiaziNeed`."""
+    :class:`RiaziNeed`, unless ``fit`` gives the one to use."""
+    given_fit = fit
     warnings: list[str] = []
     v, t = _checked_points(percent, temp_c)
     t = _widen_repeats(v, t, warnings)
@@ -205,7 +206,7 @@ def build_curve_steps(percent, temp_c, *, front_t=None, front_v=None):
     need_tail = v[-1] < 100.0
     need_front = v[0] > 0.0 and not placed
     if need_tail or need_front:
-        fit = yield RiaziNeed(v, t)
+        fit = given_fit if given_fit is not None else (yield RiaziNeed(v, t))
         if fit.rms_c > POOR_FIT_RMS_C:
             warnings.append(f"the distribution fitted for the curve's extension deviates from the measured "
                             f"points by {fit.rms_c:.1f} °C RMS (above {POOR_FIT_RMS_C:g} °C): extrapolated "
