@@ -38,6 +38,7 @@ class YieldJob:
     light: bool = False  # send back only the JSON object and the warnings (nothing else of the result is used)
     frames: bool = True  # cut tables as DataFrames (what the report writers and printed tables take); else rows
     json_text: bool = False  # a light result carries its JSON object already encoded on one line (big batches)
+    summary: bool = False  # send back only the assay's library-summary row and long-table lines (SummaryResult)
 
 
 @dataclass
@@ -48,6 +49,17 @@ class LightResult:
     warnings: list
     json_doc: dict | None
     json_text: str | None = None  # the same object encoded on one line (see YieldJob.json_text), json_doc then None
+
+
+@dataclass
+class SummaryResult:
+    """What a batch that writes the library summary alone needs of an assay's result: its summary row
+    (:func:`~assaycut.cutting.library.summary_rows`) and its lines of the long table (CSV text, escaped)."""
+
+    name: str
+    warnings: list
+    row: list
+    long_text: str
 
 
 FOLDER_NOTE = "report folder "
@@ -137,10 +149,20 @@ def _failure(path: str, exc: Exception) -> str:
     return f"{path}: unexpected {type(exc).__name__}: {exc} (please report this with the file)"
 
 
-def _deliver(result, job: YieldJob):
-    """Write the assay's report (when asked) and make its JSON object (when asked): the outcome of one assay."""
+def _deliver(result, job: YieldJob, row: list | None = None):
+    """Write the assay's report (when asked) and make its JSON object (when asked): the outcome of one assay.
+    ``row``: its library-summary row when the caller made it with its chunk (summary jobs)."""
     written = []
     assay = result.assay
+    if job.summary:
+        from ..cutting.library import summary_rows
+        from ..report.tables import long_rows
+        from ..report.write import csv_body
+
+        if row is None:
+            row = summary_rows([assay], [result.model], job.cut_set)[0]
+        text = csv_body(long_rows(result.cuts, assay.name, escaped=True), escaped=True)
+        return SummaryResult(assay.name, list(result.warnings), row, text), written, None
     if job.report_root is not None:
         from ..report.write import slug, write_yield_report
 
@@ -209,9 +231,17 @@ def run_chunk(paths: list[str], job: YieldJob) -> list:
         for i, _, _ in good:
             outcomes[i] = run_one(paths[i], job)
         return outcomes
-    for (i, _, _), res in zip(good, results):
+    rows = [None] * len(good)
+    if job.summary:  # the chunk's library-summary rows in one library-engine cut
+        from ..cutting.library import summary_rows
+
         try:
-            outcomes[i] = _deliver(res, job)
+            rows = summary_rows([a for _, a, _ in good], [m for _, _, m in good], job.cut_set)
+        except Exception:  # made one by one in _deliver instead, so that a failure names its own file
+            rows = [None] * len(good)
+    for (i, _, _), res, row in zip(good, results, rows):
+        try:
+            outcomes[i] = _deliver(res, job, row)
         except Exception as exc:
             outcomes[i] = (None, [], _failure(paths[i], exc))
     return outcomes

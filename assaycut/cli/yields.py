@@ -109,7 +109,8 @@ def yields(
                    sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
                    unit=unit.value, claims=new_claims() if root is not None and len(paths) > 1 else "",
                    json_doc=json_out, light=json_out and not write, json_text=len(paths) > BRIEF_OVER,
-                   frames=root is not None or (not json_out and len(paths) <= BRIEF_OVER))
+                   frames=root is not None or (not json_out and len(paths) <= BRIEF_OVER),
+                   summary=summary_only and write and not json_out and len(paths) > BRIEF_OVER)
     try:
         results, written, failures = run_batch(paths, job)
     finally:

@@ -9,6 +9,8 @@ stacked; evaluation, exact integrals and inverses run row-wise over all assays a
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from ..model.crude import CrudeModel
@@ -247,6 +249,26 @@ SUMMARY_QUALITIES = [("vol_pct", "vol %"), ("wt_pct", "wt %"), ("api", "API"), (
 """Per-cut columns of the library summary, with their short unit-bearing labels."""
 
 
+def summary_columns(cut_set: CutSet) -> list[str]:
+    """The columns of :func:`library_summary` for a cut set."""
+    names, _ = cut_set.reported()
+    return (["crude", "source", "sha256", "api", "sulfur_wt_pct"]
+            + [f"{cut} {label}" for cut in names for _, label in SUMMARY_QUALITIES] + ["extrapolated_cuts"])
+
+
+def summary_rows(assays, models: list[CrudeModel], cut_set: CutSet) -> list[list]:
+    """The rows of :func:`library_summary` as lists of plain values (no pandas), in :func:`summary_columns`
+    order; a missing value is NaN."""
+    names, cols = cut_library(models, cut_set, only=set())  # the summary reads no narrow-cut quality
+    per_cut = np.stack([cols[key][:, j] for j in range(len(names)) for key, _ in SUMMARY_QUALITIES], axis=1)
+    out = []
+    for a, m, values, flags in zip(assays, models, per_cut.tolist(), cols["extrapolated"]):
+        sulfur = m.sulfur_wt_pct if m.sulfur_wt_pct is not None else math.nan
+        out.append([a.name, a.source, a.sha256, a.api, sulfur, *values,
+                    ", ".join(n for n, e in zip(names, flags) if e)])
+    return out
+
+
 def library_summary(assays, models: list[CrudeModel], cut_set: CutSet):
     """One row per crude with its yields and key qualities per cut.
 
@@ -260,16 +282,8 @@ def library_summary(assays, models: list[CrudeModel], cut_set: CutSet):
     -------
     pandas.DataFrame
         Columns: crude, source, sha256, api, sulfur_wt_pct, then '<cut> <label>' for each cut and quality of
-        :data:`SUMMARY_QUALITIES`, then extrapolated_cuts.
+        :data:`SUMMARY_QUALITIES`, then extrapolated_cuts (:func:`summary_rows` in a DataFrame).
     """
     import pandas as pd
 
-    names, cols = cut_library(models, cut_set, only=set())  # the summary reads no narrow-cut quality
-    data = {"crude": [a.name for a in assays], "source": [a.source for a in assays],
-            "sha256": [a.sha256 for a in assays], "api": [a.api for a in assays],
-            "sulfur_wt_pct": [m.sulfur_wt_pct for m in models]}
-    for j, cut in enumerate(names):
-        for key, label in SUMMARY_QUALITIES:
-            data[f"{cut} {label}"] = cols[key][:, j]
-    data["extrapolated_cuts"] = [", ".join(n for n, e in zip(names, row) if e) for row in cols["extrapolated"]]
-    return pd.DataFrame(data)
+    return pd.DataFrame(summary_rows(assays, models, cut_set), columns=summary_columns(cut_set))

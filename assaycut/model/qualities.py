@@ -176,7 +176,7 @@ def _reconcile(q: Quality, assay: Assay, warnings: list[str]) -> str:
     if not (target > 0 and mean > 0 and np.all(np.diff(q.cum.y) >= 0)):
         return f"the crude sheet's {crude:g} is not used to reconcile it: the blending index is not positive"
     f = target / mean
-    q.cum = Pchip(q.cum.x, q.cum.y * f)
+    q.cum = q.cum.scaled(f)
     q.reconciliation_pct = (f - 1.0) * 100.0
     if abs(q.reconciliation_pct) > RECONCILE_WARN_PCT:
         warnings.append(f"{q.name}: the narrow cuts are scaled by {q.reconciliation_pct:+.1f} % to reproduce the "

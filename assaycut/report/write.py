@@ -38,8 +38,15 @@ def csv_text(headers: list[str], rows: list[list], escaped: bool = False) -> str
     the caller guarantees that the rows' texts are already escaped and hold no NaN (the long tables), and the
     rows are written as they are."""
     buf = io.StringIO()
+    csv.writer(buf, lineterminator="\n").writerow([safe_text(h) for h in headers])
+    return buf.getvalue() + csv_body(rows, escaped)
+
+
+def csv_body(rows: list[list], escaped: bool = False) -> str:
+    """The rows of :func:`csv_text` without its header line (texts joined from several parts of a batch give
+    the same file)."""
+    buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
-    w.writerow([safe_text(h) for h in headers])
     if escaped:
         w.writerows(rows)
         return buf.getvalue()
@@ -110,10 +117,17 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (),
 
 def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
     """Library summary (xlsx and CSV), one row per assay."""
-    from ..cutting.library import library_summary
+    from ..cutting.library import summary_columns, summary_rows
     from .xlsx import finish_workbook, write_table
 
-    df = library_summary([r.assay for r in results], [r.model for r in results], cs)
+    columns = summary_columns(cs)
+    if all(hasattr(r, "row") for r in results):  # summary results made in the workers
+        rows = [r.row for r in results]
+        long_text = "".join(r.long_text for r in results)
+    else:
+        rows = summary_rows([r.assay for r in results], [r.model for r in results], cs)
+        long_text = csv_body([row for r in results for row in long_rows(r.cuts, r.assay.name, escaped=True)],
+                             escaped=True)
     import openpyxl
 
     wb = openpyxl.Workbook()
@@ -121,21 +135,19 @@ def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
     ws.title = "library"
     heads = [{"crude": "Crude", "source": "Source file", "sha256": "sha256", "api": "API gravity [°API]",
               "sulfur_wt_pct": "Sulfur [wt %]", "extrapolated_cuts": "Cuts using the extension"}.get(c, c)
-             for c in df.columns]
-    fmts = [None, None, None, "0.0", "0.000"] + ["0.00"] * (len(df.columns) - 6) + [None]
-    write_table(ws, heads, df.values.tolist(), fmts, widths=[22, 40, 20] + [12] * (len(df.columns) - 3))
+             for c in columns]
+    fmts = [None, None, None, "0.0", "0.000"] + ["0.00"] * (len(columns) - 6) + [None]
+    write_table(ws, heads, rows, fmts, widths=[22, 40, 20] + [12] * (len(columns) - 3))
     ws.freeze_panes = "B2"
     ws2 = wb.create_sheet("notes")
     from ..yields import CAUTIONS
 
     write_table(ws2, ["Topic", "Text"], [["Caution", c] for c in CAUTIONS]
-                + [["Cut set", cs.label], ["Assays", str(len(df))]], widths=[20, 120])
+                + [["Cut set", cs.label], ["Assays", str(len(rows))]], widths=[20, 120])
     finish_workbook(wb, "Library summary")
     buf = io.BytesIO()
     wb.save(buf)
     files = {"library_summary.xlsx": buf.getvalue(),
-             "library_summary.csv": csv_text(heads, df.values.tolist()).encode("utf-8"),
-             "library_long.csv": csv_text(LONG_COLUMNS, [row for r in results
-                                                         for row in long_rows(r.cuts, r.assay.name, escaped=True)],
-                                          escaped=True).encode("utf-8")}
+             "library_summary.csv": csv_text(heads, rows).encode("utf-8"),
+             "library_long.csv": (csv_text(LONG_COLUMNS, []) + long_text).encode("utf-8")}
     return place_files(folder, files, tuple(inputs))

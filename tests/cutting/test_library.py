@@ -161,3 +161,58 @@ def test_json_batch_cut_together_equals_each_file_alone(tmp_path, demo_paths):
         for obj in doc["assays"]:
             one = runner.invoke(app, ["yields", obj["assay"]["source"], "--json", *extra])
             assert_close_docs(json.loads(one.stdout), obj, obj["assay"]["source"])
+
+
+def test_summary_rows_made_in_the_workers_give_the_same_files(tmp_path, demo_paths):
+    # Identity of two paths: a summary-only batch sends back each assay's summary row and long-table lines
+    # (made with its chunk, in the workers) instead of its whole result; the library files must be the same
+    # bytes (CSV) and values (xlsx) as when the parent makes them from whole results.
+    import shutil
+
+    import openpyxl
+
+    from assaycut.cli.batch import SummaryResult, YieldJob, run_batch
+    from assaycut.io.tomlfiles import read_limits
+    from assaycut.report.write import write_library_summary
+
+    paths = []
+    for i in range(23):
+        p = tmp_path / "in" / f"a{i:02d}.xlsx"
+        p.parent.mkdir(exist_ok=True)
+        shutil.copy(demo_paths[i % 3], p)
+        paths.append(str(p))
+    bad = tmp_path / "in" / "bad.xlsx"
+    bad.write_text("not a workbook")
+    paths.insert(5, str(bad))
+    cs = default_cut_set()
+    files = {}
+    for summary in (False, True):
+        for parallel in (False, True):
+            job = YieldJob(cs, read_limits(None), frames=False, summary=summary)
+            results, _, failures = run_batch(paths, job, parallel=parallel, progress=False)
+            assert [p for p, _ in failures] == [str(bad)]
+            assert all(isinstance(r, SummaryResult) for r in results) == summary
+            out = tmp_path / f"out_{summary}_{parallel}"
+            write_library_summary(results, cs, out, tuple(paths))
+            ws = openpyxl.load_workbook(out / "library_summary.xlsx")["library"]
+            files[summary, parallel] = ((out / "library_summary.csv").read_bytes(),
+                                        (out / "library_long.csv").read_bytes(),
+                                        [[c.value for c in row] for row in ws.iter_rows()])
+    ref = files[False, False]
+    assert len(ref[2]) == 1 + 23
+
+    def same(a, b):
+        # numbers to 1e-9 (the library engine cuts chunk by chunk, and a chunk's rows agree with each assay
+        # cut alone to 1e-9, not to the last bit), every text exactly
+        try:
+            return float(a) == pytest.approx(float(b), rel=1e-9, abs=1e-12)
+        except (TypeError, ValueError):
+            return a == b
+
+    for key, (summary_csv, long_csv, cells) in files.items():
+        for got, want in ((summary_csv, ref[0]), (long_csv, ref[1])):
+            g = [line.split(",") for line in got.decode().splitlines()]
+            w = [line.split(",") for line in want.decode().splitlines()]
+            assert len(g) == len(w) and all(len(x) == len(y) for x, y in zip(g, w)), key
+            assert all(same(x, y) for gl, wl in zip(g, w) for x, y in zip(gl, wl)), key
+        assert all(same(x, y) for gr, wr in zip(cells, ref[2]) for x, y in zip(gr, wr)), key
