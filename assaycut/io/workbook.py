@@ -43,7 +43,6 @@ from .layout import (
 
 
 def _open_workbook(data: bytes, path: str):
-    import openpyxl
     from openpyxl.xml import DEFUSEDXML
 
     if not DEFUSEDXML:
@@ -69,7 +68,9 @@ def _open_workbook(data: bytes, path: str):
     except zipfile.BadZipFile as exc:
         raise InputError(f"a damaged zip archive ({exc}); expected an .xlsx workbook", file=path) from None
     try:
-        wb = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
+        reader = _reader_class()(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
+        reader.read()
+        wb = reader.wb
         wb.assaycut_budget = _Budget()
         return wb
     except InputError:
@@ -84,6 +85,73 @@ def _open_workbook(data: bytes, path: str):
                              "not expand XML entities", file=path) from None
         raise InputError(f"not a readable .xlsx workbook ({chain[-1]}); save it again from a spreadsheet program "
                          f"as .xlsx", file=path) from None
+
+
+def _reader_class():
+    """openpyxl's workbook reader (read-only, as ``openpyxl.load_workbook`` uses it), except that its worksheets
+    do not parse their declared ``<dimension>`` on opening: :func:`_rows` never uses it (it reads every row
+    present), and parsing it cost about a fifth of reading a demo workbook."""
+    from openpyxl.reader.excel import ExcelReader
+    from openpyxl.worksheet._read_only import ReadOnlyWorksheet
+
+    class Sheet(ReadOnlyWorksheet):
+        def _get_size(self):
+            self._max_row = self._max_column = self._min_row = self._min_column = None
+
+    class Reader(ExcelReader):
+        def read(self):
+            # ExcelReader.read's steps (a ValueError means unreadable XML, as there), with the stylesheet's
+            # date formats remembered by content (:func:`_styles`) and the lighter worksheets below
+            self.read_manifest()
+            self.read_strings()
+            self.read_workbook()
+            self.read_properties()
+            self.read_custom()
+            self.read_theme()
+            _styles(self.archive, self.wb)
+            self.read_worksheets()
+            self.parser.assign_names()
+
+        def read_worksheets(self):
+            for sheet, rel in self.parser.find_sheets():
+                if rel.target not in self.valid_files:
+                    continue
+                if "chartsheet" in rel.Type:
+                    self.read_chartsheet(sheet, rel)
+                    continue
+                ws = Sheet(self.wb, sheet.name, rel.target, self.shared_strings)
+                ws.sheet_state = sheet.state
+                self.wb._sheets.append(ws)
+
+    return Reader
+
+
+_STYLE_FORMATS: dict[bytes, tuple[frozenset, frozenset]] = {}
+"""The date and time-interval cell formats of stylesheets read before, by the SHA-256 of xl/styles.xml (at
+most 64): a batch of workbooks written by one program shares one stylesheet."""
+
+
+def _styles(archive, wb) -> None:
+    """Set the workbook's date and time-interval cell formats (all the sheet parser needs of its styles) from
+    xl/styles.xml: parsed by openpyxl the first time a stylesheet is seen (so a damaged or entity-declaring one
+    is refused as before), remembered by its content after that."""
+    import hashlib
+
+    from openpyxl.styles.stylesheet import apply_stylesheet
+
+    try:
+        src = archive.read("xl/styles.xml")
+    except KeyError:
+        return
+    key = hashlib.sha256(src).digest()
+    known = _STYLE_FORMATS.get(key)
+    if known is None:
+        apply_stylesheet(archive, wb)
+        if len(_STYLE_FORMATS) >= 64:
+            _STYLE_FORMATS.clear()
+        _STYLE_FORMATS[key] = (frozenset(wb._date_formats), frozenset(wb._timedelta_formats))
+        return
+    wb._date_formats, wb._timedelta_formats = set(known[0]), set(known[1])
 
 
 class _Budget:
