@@ -12,7 +12,7 @@ from .assay import Assay
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
 from .spline import Pchip, hermite_combine, hermite_integral_basis, segment_integrals, slopes_on, slopes_on_rows
 from .steps import Need, run_alone
-from .tbp_curve import TbpCurve
+from .tbp_curve import CurveTempNeed, TbpCurve
 
 
 def narrow_cut_positions(assay: Assay, curve: TbpCurve):
@@ -263,15 +263,17 @@ def density_distribution_steps(assay: Assay, curve: TbpCurve, le_mids, warnings:
     :func:`sulfur_distribution_steps`."""
     nc = assay.narrow_cuts
     gas_v = np.array([])
-    if not le_mids and curve.temp_at(0.0) < GAS_RANGE_MAX_C:
+    if not le_mids and curve.ibp_c < GAS_RANGE_MAX_C:  # the IBP is the TBP at 0 %
         v_top = float(curve.pct_at(GAS_RANGE_MAX_C))
         gas_v = np.linspace(0.0, v_top, 9)[:-1] + v_top / 16.0
     if nc is not None and np.isfinite(nc.sg).sum() >= 2:
         va, vb = narrow_cut_positions(assay, curve) if positions is None else positions
         ok = np.isfinite(nc.sg) & (vb > va)
         first = float(va[ok].min()) if ok.any() else 0.0
-        gas = [(float(m), float(g)) for m, g in zip(gas_v, gas_range_sg(curve.temp_at(gas_v))) if m < first] \
-            if gas_v.size else []
+        gas = []
+        if gas_v.size:
+            t_gas = yield CurveTempNeed(curve, gas_v)
+            gas = [(float(m), float(g)) for m, g in zip(gas_v, gas_range_sg(t_gas)) if m < first]
         raw = yield from property_spline_steps(va[ok], vb[ok], nc.sg[ok],
                                                [(m, g) for m, g in le_mids if m < first] + gas)
         source = "narrow-cut densities (monotone spline against mid-volume %, matching each cut's mean)"
@@ -284,7 +286,7 @@ def density_distribution_steps(assay: Assay, curve: TbpCurve, le_mids, warnings:
                             "Watson K fitted to the whole-crude gravity")
         grid = np.linspace(0.0, 100.0, 201)
         mids = 0.5 * (grid[1:] + grid[:-1])
-        t_mids = curve.temp_at(mids)
+        t_mids = yield CurveTempNeed(curve, mids)
         cbrt = watson_k_numerator(t_mids)
         fixed = mids < curve.light_ends_pct
         le_sg = np.full_like(mids, np.nan)

@@ -307,19 +307,9 @@ class Pchip:
         method, :meth:`inverse_reference`).
         """
         raw = np.asarray(yq, dtype=float)
-        q = np.clip(np.nan_to_num(raw, nan=self.y[0]), self.y[0], self.y[-1])
-        ys = self._table()
-        k = INVERSE_TABLE_STEPS
-        n = self.h.size
-        j = np.clip(np.searchsorted(ys, q, side="left") - 1, 0, ys.size - 2)
-        i = np.minimum(j // k, n - 1)
-        h = self.h[i]
-        y0, y1 = self.y[i], self.y[i + 1]
-        m0, m1 = h * self.d[i], h * self.d[i + 1]
-        t = newton_on_segment(y0, y1, m0, m1, q, ys[j], ys[j + 1], (j - i * k) / k)
-        x = self.x[i] + t * h
-        x = np.where(q == y1, self.x[i + 1], x)
-        return np.where(np.isnan(raw), np.nan, np.where(q == y0, self.x[i], x))
+        out = inverse_rows(self.x[None, :], self.y[None, :], self.h[None, :], self.d[None, :],
+                           raw.reshape(1, -1), self._table()[None, :])
+        return out.reshape(raw.shape)
 
     def inverse_reference(self, yq):
         """The reference inverse: :func:`hermite_solve` on the segment found by a search of the nodes (the
@@ -341,6 +331,37 @@ class Pchip:
                 raise ValueError("inverse needs non-decreasing values")
             self._inv = inverse_table(self.y, self.h, self.d)
         return self._inv
+
+
+def inverse_rows(x, y, h, d, yq, table=None):
+    """The fast inverse of :meth:`Pchip.inverse` for one spline per row: x, y, d of shape (R, n), h (R, n-1),
+    values sought ``yq`` (R, m); x [unit of x] where each row's spline reaches each value.
+
+    Row r's answers depend on row r alone (each row's bracket is found by its own search, every other step is
+    element-wise, and the rare points finished by the reference solve are finished row by row), so a spline
+    inverted with others gives the same values to the last bit as inverted alone: one spline is a batch of
+    one.  ``table``: the rows' :func:`inverse_table` when the caller keeps it.
+    """
+    raw = np.asarray(yq, dtype=float)
+    lo, hi = y[:, :1], y[:, -1:]
+    q = _clip(np.where(np.isnan(raw), lo, raw), lo, hi)
+    ys = inverse_table(y, h, d) if table is None else table
+    k = INVERSE_TABLE_STEPS
+    n = h.shape[1]
+    width = ys.shape[1]
+    j = np.empty(q.shape, dtype=np.intp)
+    for r in range(q.shape[0]):
+        j[r] = np.searchsorted(ys[r], q[r], side="left")
+    j = _clip(j - 1, 0, width - 2)
+    i = np.minimum(j // k, n - 1)
+    rows = np.arange(q.shape[0])[:, None]
+    hh = h[rows, i]
+    y0, y1 = y[rows, i], y[rows, i + 1]
+    m0, m1 = hh * d[rows, i], hh * d[rows, i + 1]
+    t = newton_on_segment(y0, y1, m0, m1, q, ys[rows, j], ys[rows, j + 1], (j - i * k) / k, rowwise=True)
+    out = x[rows, i] + t * hh
+    out = np.where(q == y1, x[rows, i + 1], out)
+    return np.where(np.isnan(raw), np.nan, np.where(q == y0, x[rows, i], out))
 
 
 def inverse_table(y, h, d):
@@ -368,7 +389,7 @@ def inverse_table(y, h, d):
     return np.maximum.accumulate(np.concatenate([vals, y[..., -1:]], axis=-1), axis=-1)
 
 
-def newton_on_segment(y0, y1, m0, m1, q, ya, yb, tl):
+def newton_on_segment(y0, y1, m0, m1, q, ya, yb, tl, rowwise: bool = False):
     """Position t (0-1) in a cubic Hermite segment where it reaches ``q``, from a table bracket.
 
     The root lies in [tl, tl + 1/INVERSE_TABLE_STEPS], where the segment goes from ``ya`` to ``yb``; Newton
@@ -384,6 +405,10 @@ def newton_on_segment(y0, y1, m0, m1, q, ya, yb, tl):
         Values sought, inside [y0, y1].
     ya, yb, tl : numpy.ndarray
         The bracket's table values and its left position in the segment.
+
+    rowwise : bool
+        The points are (R, m) arrays, one row per spline: the rare points left to the reference solve are
+        solved row by row (its iteration count depends on the points solved together).
 
     Returns
     -------
@@ -407,7 +432,12 @@ def newton_on_segment(y0, y1, m0, m1, q, ya, yb, tl):
     bad = (np.abs(f) > 1e-13 * np.maximum(np.abs(y0) + np.abs(y1), 1e-300)) & (y1 > y0)
     if np.any(bad):  # a zero slope at the root: the reference solve for these points only
         t = np.array(t, dtype=float, copy=True)
-        t[bad] = hermite_solve(y0[bad], y1[bad], m0[bad], m1[bad], q[bad])
+        if rowwise:  # each row's points solved together, as that row alone would be
+            for r in np.nonzero(bad.any(axis=1))[0]:
+                b = bad[r]
+                t[r, b] = hermite_solve(y0[r, b], y1[r, b], m0[r, b], m1[r, b], q[r, b])
+        else:
+            t[bad] = hermite_solve(y0[bad], y1[bad], m0[bad], m1[bad], q[bad])
     return np.where(y1 > y0, t, 0.0)
 
 

@@ -19,7 +19,7 @@ import numpy as np
 from ..errors import CurveError
 from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution, fit_riazi_many
 from ..units import pct_text
-from .spline import Pchip
+from .spline import Pchip, inverse_rows, inverse_table
 from .steps import Need, run_alone
 
 END_FRACTION = 0.9995
@@ -190,6 +190,39 @@ class RiaziNeed(Need):
     @classmethod
     def together(cls, needs):
         return fit_riazi_many([(n.percent, n.temp_c) for n in needs])
+
+
+class CurveTempNeed(Need):
+    """TBP [°C] of a curve at percents [vol %] (:meth:`TbpCurve.temp_at`); for many curves at once
+    :meth:`together` inverts the curves with the same node count and number of percents row-wise
+    (:func:`~assaycut.model.spline.inverse_rows`: the same values to the last bit)."""
+
+    __slots__ = ("curve", "pct")
+
+    def __init__(self, curve: "TbpCurve", pct):
+        self.curve, self.pct = curve, np.asarray(pct, dtype=float)
+
+    def alone(self):
+        return self.curve.temp_at(self.pct)
+
+    @classmethod
+    def together(cls, needs):
+        out: list = [None] * len(needs)
+        groups: dict[tuple, list[int]] = {}
+        for k, n in enumerate(needs):
+            groups.setdefault((n.curve.spline.x.size, n.pct.shape), []).append(k)
+        for idx in groups.values():
+            if len(idx) == 1:
+                out[idx[0]] = needs[idx[0]].alone()
+                continue
+            sp = [needs[k].curve.spline for k in idx]
+            x, y, h, d = (np.array([getattr(s, a) for s in sp]) for a in ("x", "y", "h", "d"))
+            table = inverse_table(y, h, d)
+            res = inverse_rows(x, y, h, d, np.array([needs[k].pct.ravel() for k in idx]), table)
+            for r, k in enumerate(idx):
+                sp[r]._inv = table[r]  # each curve keeps its bracket table, as its own first inverse would
+                out[k] = res[r].reshape(needs[k].pct.shape)
+        return out
 
 
 def build_curve_steps(percent, temp_c, *, front_t=None, front_v=None, fit: RiaziFit | None = None):

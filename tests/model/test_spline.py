@@ -137,3 +137,20 @@ def test_scaled_equals_the_interpolant_of_scaled_values():
         assert_allclose(s.integral(x[0], q), [ref.integrate(x[0], b) for b in q],
                         rtol=0, atol=1e-11 * scale * (x[-1] - x[0]))
         assert_allclose(s.d, Pchip(x, y * f).d, rtol=1e-13, atol=1e-13 * scale)
+
+
+def test_row_wise_inverse_equals_each_spline_alone():
+    # Identity of two paths: splines inverted together, one per row, give each spline's own inverse to the
+    # last bit (flat steps, values beyond the ends, NaN and infinities included).
+    from assaycut.model.spline import inverse_rows
+
+    rng = np.random.default_rng(17)
+    for n in (2, 3, 9, 41):
+        x = np.cumsum(rng.uniform(0.1, 20.0, (30, n)), axis=1)
+        y = np.cumsum(rng.choice([0.0, 0.0, 0.5, 3.0, 20.0], (30, n)) * rng.uniform(0, 1, (30, n)), axis=1)
+        splines = [Pchip(x[r], y[r]) for r in range(30)]
+        q = np.array([np.concatenate([rng.uniform(y[r, 0] - 1, y[r, -1] + 1, 40), y[r, :3], [np.nan, np.inf]])
+                      for r in range(30)])
+        together = inverse_rows(x, y, np.diff(x, axis=1), np.array([s.d for s in splines]), q)
+        for r, s in enumerate(splines):
+            assert together[r].tobytes() == s.inverse(q[r]).tobytes(), (n, r)
