@@ -38,7 +38,8 @@ class YieldJob:
     light: bool = False  # send back only the JSON object and the warnings (nothing else of the result is used)
     frames: bool = True  # cut tables as DataFrames (what the report writers and printed tables take); else rows
     json_text: bool = False  # a light result carries its JSON object already encoded on one line (big batches)
-    summary: bool = False  # send back only the assay's library-summary row and long-table lines (SummaryResult)
+    summary: bool = False  # send back only the assay's library-summary row and long-table lines (SummaryResult);
+    # such a job has no limits (nothing it writes shows them)
 
 
 @dataclass
@@ -149,18 +150,20 @@ def _failure(path: str, exc: Exception) -> str:
     return f"{path}: unexpected {type(exc).__name__}: {exc} (please report this with the file)"
 
 
-def _deliver(result, job: YieldJob, row: list | None = None):
-    """Write the assay's report (when asked) and make its JSON object (when asked): the outcome of one assay.
-    ``row``: its library-summary row when the caller made it with its chunk (summary jobs)."""
+def _deliver(result, job: YieldJob):
+    """Write the assay's report (when asked) and make its JSON object (when asked), or its library-summary
+    parts (summary jobs): the outcome of one assay."""
     written = []
     assay = result.assay
     if job.summary:
-        from ..cutting.library import summary_rows
+        from ..cutting.library import summary_row, summary_rows
         from ..report.tables import long_rows
         from ..report.write import csv_body
 
-        if row is None:
+        if job.cut_set.overlaps or not isinstance(result.cuts, list):  # the summary reads the ideal cuts
             row = summary_rows([assay], [result.model], job.cut_set)[0]
+        else:
+            row = summary_row(assay, result.model, result.cuts)
         text = csv_body(long_rows(result.cuts, assay.name, escaped=True), escaped=True)
         return SummaryResult(assay.name, list(result.warnings), row, text), written, None
     if job.report_root is not None:
@@ -231,17 +234,9 @@ def run_chunk(paths: list[str], job: YieldJob) -> list:
         for i, _, _ in good:
             outcomes[i] = run_one(paths[i], job)
         return outcomes
-    rows = [None] * len(good)
-    if job.summary:  # the chunk's library-summary rows in one library-engine cut
-        from ..cutting.library import summary_rows
-
+    for (i, _, _), res in zip(good, results):
         try:
-            rows = summary_rows([a for _, a, _ in good], [m for _, _, m in good], job.cut_set)
-        except Exception:  # made one by one in _deliver instead, so that a failure names its own file
-            rows = [None] * len(good)
-    for (i, _, _), res, row in zip(good, results, rows):
-        try:
-            outcomes[i] = _deliver(res, job, row)
+            outcomes[i] = _deliver(res, job)
         except Exception as exc:
             outcomes[i] = (None, [], _failure(paths[i], exc))
     return outcomes

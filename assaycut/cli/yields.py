@@ -104,13 +104,14 @@ def yields(
     inputs = tuple(paths) + tuple(str(x) for x in (cuts, limits) if x)
     write = out is not None or not json_out
     root = (out or Path("reports")) if write and not summary_only else None
-    job = YieldJob(cs, lim, method.value, (api, sg, density, sulfur), root,
+    summary = summary_only and write and not json_out and len(paths) > BRIEF_OVER
+    job = YieldJob(cs, [] if summary else lim, method.value, (api, sg, density, sulfur), root,
                    single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
                    sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
                    unit=unit.value, claims=new_claims() if root is not None and len(paths) > 1 else "",
                    json_doc=json_out, light=json_out and not write, json_text=len(paths) > BRIEF_OVER,
                    frames=root is not None or (not json_out and len(paths) <= BRIEF_OVER),
-                   summary=summary_only and write and not json_out and len(paths) > BRIEF_OVER)
+                   summary=summary)
     try:
         results, written, failures = run_batch(paths, job)
     finally:

@@ -269,6 +269,15 @@ def summary_rows(assays, models: list[CrudeModel], cut_set: CutSet) -> list[list
     return out
 
 
+def summary_row(assay, model: CrudeModel, cuts: list[dict]) -> list:
+    """An assay's :func:`summary_rows` row from its ideal cut table already made as row dicts (the library
+    engine's values for that assay: the same numbers; None where a value is missing)."""
+    sulfur = model.sulfur_wt_pct if model.sulfur_wt_pct is not None else math.nan
+    values = [c[key] for c in cuts for key, _ in SUMMARY_QUALITIES]
+    return [assay.name, assay.source, assay.sha256, assay.api, sulfur, *values,
+            ", ".join(c["name"] for c in cuts if c["extrapolated"])]
+
+
 def library_summary(assays, models: list[CrudeModel], cut_set: CutSet):
     """One row per crude with its yields and key qualities per cut.
 

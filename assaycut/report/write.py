@@ -118,7 +118,7 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (),
 def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
     """Library summary (xlsx and CSV), one row per assay."""
     from ..cutting.library import summary_columns, summary_rows
-    from .xlsx import finish_workbook, write_table
+    from .xlsx import fast_table_workbook
 
     columns = summary_columns(cs)
     if all(hasattr(r, "row") for r in results):  # summary results made in the workers
@@ -128,26 +128,16 @@ def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
         rows = summary_rows([r.assay for r in results], [r.model for r in results], cs)
         long_text = csv_body([row for r in results for row in long_rows(r.cuts, r.assay.name, escaped=True)],
                              escaped=True)
-    import openpyxl
-
-    wb = openpyxl.Workbook()
-    ws = wb.active
-    ws.title = "library"
     heads = [{"crude": "Crude", "source": "Source file", "sha256": "sha256", "api": "API gravity [°API]",
               "sulfur_wt_pct": "Sulfur [wt %]", "extrapolated_cuts": "Cuts using the extension"}.get(c, c)
              for c in columns]
     fmts = [None, None, None, "0.0", "0.000"] + ["0.00"] * (len(columns) - 6) + [None]
-    write_table(ws, heads, rows, fmts, widths=[22, 40, 20] + [12] * (len(columns) - 3))
-    ws.freeze_panes = "B2"
-    ws2 = wb.create_sheet("notes")
     from ..yields import CAUTIONS
 
-    write_table(ws2, ["Topic", "Text"], [["Caution", c] for c in CAUTIONS]
-                + [["Cut set", cs.label], ["Assays", str(len(rows))]], widths=[20, 120])
-    finish_workbook(wb, "Library summary")
-    buf = io.BytesIO()
-    wb.save(buf)
-    files = {"library_summary.xlsx": buf.getvalue(),
+    notes = [["Caution", c] for c in CAUTIONS] + [["Cut set", cs.label], ["Assays", str(len(rows))]]
+    book = fast_table_workbook([("library", heads, rows, fmts, [22, 40, 20] + [12] * (len(columns) - 3)),
+                                ("notes", ["Topic", "Text"], notes, None, [20, 120])], "Library summary")
+    files = {"library_summary.xlsx": book,
              "library_summary.csv": csv_text(heads, rows).encode("utf-8"),
              "library_long.csv": (csv_text(LONG_COLUMNS, []) + long_text).encode("utf-8")}
     return place_files(folder, files, tuple(inputs))
