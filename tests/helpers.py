@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import hashlib
 import re
+import signal
 from pathlib import Path
 
 from typer.testing import CliRunner
@@ -23,6 +24,17 @@ CUT_ROWS = [["Narrow cuts (test)"], ["start_c", "end_c", "vol_pct", "wt_pct", "s
             [150.0, 230.0, 15.0, 14.0, 0.80, 0.3], [230.0, 340.0, 20.0, 19.6, 0.845, 0.9],
             [340.0, 470.0, 20.0, 20.9, 0.90, 1.6], [470.0, None, 25.0, 28.7, 0.98, 2.6]]
 LIGHT_ROWS = [["Light ends (test)"], ["component", "wt_pct"], ["C3", 0.3], ["iC4", 0.25], ["nC4", 0.7]]
+
+
+def ctrl_c_as_at_a_terminal() -> None:
+    """``preexec_fn`` of a child run that a test interrupts with SIGINT: Ctrl-C handled as at a terminal.
+
+    A command started in the background by a shell (``pytest ... &``, a CI runner's job) inherits SIGINT
+    ignored (POSIX shell, asynchronous lists), and Python turns SIGINT into KeyboardInterrupt only when its
+    parent left the signal alone (Python documentation, ``signal`` module: "SIGINT is translated into a
+    KeyboardInterrupt exception if the parent process has not changed it"); such a child rightly goes on
+    after SIGINT, so a test of Ctrl-C restores the default first."""
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
 
 
 def write_book(path: Path, sheets: dict[str, list[list]]) -> Path:

@@ -7,7 +7,6 @@ import neither each other nor this module.  :mod:`.batch` runs the yield job ove
 
 from __future__ import annotations
 
-import os
 import signal
 import sys
 
@@ -15,7 +14,7 @@ import typer
 from typer.core import TyperGroup
 
 from . import compare, convert, cutpoints, explore, yields
-from .common import TdMethod, error_line, interrupted
+from .common import TdMethod, error_line, interrupted, stop_now
 
 
 class _OneLineErrors(TyperGroup):
@@ -63,20 +62,8 @@ def _root(ctx: typer.Context) -> None:
                    sigma_sg=0.0005, sigma_sulfur=3.0)
 
 
-def _stop_now(message: str, code: int) -> None:  # pragma: no cover - exercised by subprocess tests
-    """Stop at once: kill worker pools, remove temporary report files and batch claims, one line, exit."""
-    from ..files import cleanup_pending
-    from .batch import kill_pools, release_claims
-
-    kill_pools()
-    cleanup_pending()
-    release_claims()
-    sys.stderr.write(f"assaycut: error: {message}; no partial report was left\n")
-    os._exit(code)
-
-
 def _on_sigterm(signum, frame):  # pragma: no cover - exercised by a subprocess test
-    _stop_now("terminated", 143)
+    stop_now("terminated", 143)
 
 
 def _unraisable(hook):
@@ -91,7 +78,7 @@ def _unraisable(hook):
 
     def unraisable(info):  # pragma: no cover - exercised by the interrupt tests
         if info.exc_type is not None and issubclass(info.exc_type, KeyboardInterrupt):
-            _stop_now("interrupted", 130)
+            interrupted()
         hook(info)
 
     return unraisable
@@ -105,4 +92,3 @@ def main() -> None:
         app()
     except KeyboardInterrupt:
         interrupted()
-        sys.exit(130)

@@ -10,7 +10,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import AssaycutError
-from .common import ProgressBar, progress_bar
+from .common import AT_STOP, ProgressBar, progress_bar
 
 PARALLEL_MIN = 50
 """Batches of at least this many assays use worker processes (when the machine has more than one core)."""
@@ -331,6 +331,9 @@ def kill_pools() -> None:
         for proc in list(getattr(pool, "_processes", {}).values()):
             with contextlib.suppress(Exception):
                 proc.kill()
+
+
+AT_STOP.extend([kill_pools, release_claims])  # Ctrl-C and SIGTERM: kill the workers, then drop the claims
 
 
 def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, progress: bool | None = None):

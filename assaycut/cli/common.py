@@ -123,12 +123,36 @@ def progress_bar(label: str, total: int = 100):
         bar.close()
 
 
-def interrupted() -> None:
-    """Ctrl-C: remove the temporary file of a write in progress and say so."""
+AT_STOP: list = []
+"""What :func:`stop_now` undoes before the process ends, in order (the batch runner registers its worker-pool
+kill and its claims-folder removal here: this module cannot import it)."""
+
+
+def stop_now(message: str, code: int) -> None:  # pragma: no cover - exercised by subprocess tests
+    """Stop at once (Ctrl-C, SIGTERM): kill worker pools, remove temporary report files and batch claims, say
+    so in one line, flush the output and leave the process with ``os._exit``.
+
+    ``os._exit`` and not ``sys.exit``: an interrupt can arrive while the main thread holds a lock of a worker
+    pool (a future's condition inside ``as_completed``, say); the normal interpreter exit then joins the pool's
+    manager thread, which waits for that lock for ever.  Everything the run still owns is cleaned up here first.
+    """
     from ..files import cleanup_pending
 
+    for undo in AT_STOP:  # kill the worker pools first: nothing more gets written
+        with contextlib.suppress(Exception):
+            undo()
     cleanup_pending()
-    error_line("interrupted; no partial report was left")
+    with contextlib.suppress(Exception):
+        sys.stdout.flush()
+    error_line(f"{message}; no partial report was left")
+    with contextlib.suppress(Exception):
+        sys.stderr.flush()
+    os._exit(code)
+
+
+def interrupted() -> None:
+    """Ctrl-C: stop at once (:func:`stop_now`), exit code 130 (128 + SIGINT, common practice, no source)."""
+    stop_now("interrupted", 130)
 
 
 def guarded(func):
@@ -152,7 +176,6 @@ def guarded(func):
             raise typer.Exit(0) from None
         except KeyboardInterrupt:
             interrupted()
-            raise typer.Exit(130) from None
         except MemoryError:
             error_line("out of memory; the input is too large")
             raise typer.Exit(EXIT_INPUT) from None

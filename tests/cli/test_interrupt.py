@@ -13,6 +13,8 @@ from pathlib import Path
 
 import pytest
 
+from tests.helpers import ctrl_c_as_at_a_terminal
+
 pytestmark = pytest.mark.skipif(not Path("/proc").exists() or (os.cpu_count() or 1) < 2,
                                 reason="needs Linux /proc and two cores for a parallel batch")
 
@@ -54,7 +56,8 @@ def test_interrupt_stops_a_parallel_batch(tmp_path, sig, code, group):
         (src / f"crude_{i:03d}.csv").write_text("vol_pct,temp_c\n2,20\n10,90\n30,180\n50,270\n70,380\n90,520\n")
     out = tmp_path / "out"
     proc = subprocess.Popen([sys.executable, "-m", "assaycut", "yields", str(src), "--api", "33", "--out",
-                             str(out)], stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, start_new_session=True)
+                             str(out)], stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, start_new_session=True,
+                            preexec_fn=ctrl_c_as_at_a_terminal)
     t0 = time.monotonic()
     workers: set[int] = set()
     while time.monotonic() - t0 < 60:  # wait until the workers run and write

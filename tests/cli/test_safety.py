@@ -15,6 +15,7 @@ import pytest
 from typer.testing import CliRunner
 
 from assaycut.cli import app
+from tests.helpers import ctrl_c_as_at_a_terminal
 
 runner = CliRunner()
 
@@ -27,7 +28,8 @@ def test_interrupted_run_leaves_no_partial_files(tmp_path, demo_paths, sig, code
         shutil.copy(demo_paths[i % 3], src / f"a{i:02d}.xlsx")
     out = tmp_path / "out"
     proc = subprocess.Popen([sys.executable, "-m", "assaycut", "yields", str(src), "--out", str(out)],
-                            stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+                            stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True,
+                            preexec_fn=ctrl_c_as_at_a_terminal)
     deadline = time.time() + 60
     while time.time() < deadline and not (out.exists() and any(out.rglob("*.png"))):
         time.sleep(0.05)  # wait until the run is writing reports
@@ -285,3 +287,39 @@ def test_ctrl_c_inside_a_weakref_callback_still_stops_the_run(tmp_path):
     assert "Traceback" not in r.stderr
     assert r.stderr.strip() == "assaycut: error: interrupted; no partial report was left"
     assert not part.exists()
+
+
+HELD_LOCK_INTERRUPT = r'''
+import time
+from assaycut.cli.batch import worker_pool
+from assaycut.cli.common import guarded
+
+
+def slow(x):
+    time.sleep(1.0)
+    return x
+
+
+@guarded
+def batch():
+    with worker_pool(2) as pool:
+        fut = pool.submit(slow, 1)
+        fut._condition.acquire()  # Ctrl-C arrives while a future's lock is held (as inside as_completed)
+        raise KeyboardInterrupt
+
+
+batch()
+print("went on after Ctrl-C")
+'''
+
+
+def test_ctrl_c_while_a_pool_lock_is_held_still_exits(tmp_path):
+    # A Ctrl-C can arrive while the main thread holds a worker-pool future's lock (between the lock calls of
+    # as_completed, say); the normal interpreter exit then joins the pool's manager thread, which waits for
+    # that lock for ever (this test hung so before).  The interrupt now ends the process at once after its
+    # cleanup.  (concurrent.futures: the executor's atexit hook joins its threads; CPython source.)
+    r = subprocess.run([sys.executable, "-c", HELD_LOCK_INTERRUPT], capture_output=True, text=True, timeout=30,
+                       cwd=tmp_path)
+    assert r.returncode == 130, r.stderr
+    assert "went on" not in r.stdout
+    assert r.stderr.strip() == "assaycut: error: interrupted; no partial report was left"
