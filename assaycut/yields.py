@@ -116,7 +116,8 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     frames : bool
         Give the cut table and the limit status as DataFrames (default, what the report writers take), or,
         when False, as lists of row dicts with the same keys and values, made without pandas (for a result that
-        is only printed as JSON; ideal cuts without --rate only, else DataFrames anyway).
+        is only printed as JSON; ideal cuts without --rate only, else DataFrames anyway); the uncertainty
+        bands likewise (a :class:`~assaycut.studies.uncertainty.BandRows` then).
 
     Returns
     -------
@@ -144,7 +145,7 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         from .studies.uncertainty import Sigmas, monte_carlo
 
         res.bands = monte_carlo(assay, cut_set, sigmas or Sigmas(), uncertainty_draws, method=method,
-                                progress=progress, map_fn=map_fn)
+                                progress=progress, map_fn=map_fn, frames=frames)
         res.methods["uncertainty"] = (f"Monte Carlo over the curve model, {res.bands.attrs['draws']} draws "
                                       f"({res.bands.attrs['failed']} failed); ideal cuts; "
                                       f"{res.bands.attrs['sigmas']}")

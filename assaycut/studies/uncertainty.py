@@ -97,8 +97,15 @@ def _draw_chunk(args):
     return {q: np.asarray(cols[q], dtype=float) for q in BAND_QUALITIES}, failed
 
 
+class BandRows(list):
+    """The bands without pandas (``monte_carlo(..., frames=False)``): one dict per cut with the columns of the
+    DataFrame, and the same ``attrs``."""
+
+    attrs: dict
+
+
 def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 200, seed: int = 20261201,
-                method: str = "daubert-1994", progress=None, map_fn=map):
+                method: str = "daubert-1994", progress=None, map_fn=map, frames: bool = True):
     """P10/P50/P90 of each cut's yields and qualities under the assay's measurement uncertainty.
 
     Parameters
@@ -118,15 +125,15 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
     map_fn : callable
         A map-like callable for the chunks of :data:`DRAW_CHUNK` draws (e.g. a process pool's ``imap``, to
         share them between cores); the builtin ``map`` by default.
+    frames : bool
+        A DataFrame (default) or, without pandas, a :class:`BandRows` of the same rows and ``attrs``.
 
     Returns
     -------
-    pandas.DataFrame
+    pandas.DataFrame or BandRows
         One row per cut: name, then ``<quality>_p10``, ``_p50``, ``_p90`` for :data:`BAND_QUALITIES`;
         ``attrs`` hold 'draws' (used), 'failed' (draws whose perturbed data could not be modelled) and 'sigmas'.
     """
-    import pandas as pd
-
     if not 20 <= n <= 5000:
         raise StudyError(f"the number of draws must be between 20 and 5000; got {n}")
     names, _ = cut_set.reported()
@@ -154,8 +161,16 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
             if ok.any():
                 val[ok] = np.nanpercentile(np.where(np.isfinite(v[:, ok]), filled[:, ok], np.nan), pct, axis=0)
             out[f"{q}_p{pct}"] = val
+    attrs = {"draws": used, "failed": failed, "sigmas": sig.describe()}
+    if not frames:
+        rows = BandRows({k: (v[j] if k == "name" else float(v[j])) for k, v in out.items()}
+                        for j in range(len(names)))
+        rows.attrs = attrs
+        return rows
+    import pandas as pd
+
     df = pd.DataFrame(out)
-    df.attrs.update(draws=used, failed=failed, sigmas=sig.describe())
+    df.attrs.update(attrs)
     return df
 
 

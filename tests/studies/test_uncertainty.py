@@ -99,3 +99,16 @@ def test_every_draw_keeps_the_light_ends_on_the_curve(k):
     models = build_models([perturb(a, Sigmas(), rng) for _ in range(200)], qualities=False)
     assert all(m.curve.light_ends_pct > 0 for m in models)
     assert not any("do not fit before the first measured point" in w for m in models for w in m.warnings)
+
+
+def test_rows_without_pandas_are_the_frame(assay):
+    # Identity: the pandas-free bands (frames=False, what `yields --json` prints) hold the DataFrame's rows,
+    # value for value (NaN where the frame has NaN), and its attrs.
+    cs = default_cut_set()
+    frame = monte_carlo(assay, cs, n=40, seed=7)
+    rows = monte_carlo(assay, cs, n=40, seed=7, frames=False)
+    assert rows.attrs == frame.attrs
+    assert [r["name"] for r in rows] == list(frame["name"])
+    for r, f in zip(rows, frame.to_dict("records")):
+        assert r.keys() == f.keys()
+        np.testing.assert_array_equal([r[k] for k in r if k != "name"], [f[k] for k in f if k != "name"])
