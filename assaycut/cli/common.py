@@ -142,10 +142,9 @@ def stop_now(message: str, code: int) -> None:  # pragma: no cover - exercised b
         with contextlib.suppress(Exception):
             undo()
     cleanup_pending()
-    with contextlib.suppress(Exception):
+    with contextlib.suppress(Exception):  # a signal that arrives inside a write cannot write again: exit anyway
         sys.stdout.flush()
-    error_line(f"{message}; no partial report was left")
-    with contextlib.suppress(Exception):
+        error_line(f"{message}; no partial report was left")
         sys.stderr.flush()
     os._exit(code)
 
