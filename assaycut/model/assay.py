@@ -195,11 +195,11 @@ def validate_assay(assay) -> None:
             bad(f"{what}: {p.size} percents against {t.size} temperatures; give one temperature per percent", not where)
         if p.size < 2:
             bad(f"{what}: {p.size} point(s); a curve needs at least two", not where)
-        if not (np.all(np.isfinite(p)) and np.all(np.isfinite(t))):
+        if not (np.isfinite(p).all() and np.isfinite(t).all()):
             bad(f"{what}: percents and temperatures must be finite numbers", not where)
-        if np.any(p < 0) or np.any(p > 100):
+        if p.min() < 0 or p.max() > 100:  # finite and two or more: min and max say it
             bad(f"{what}: percents must lie within 0-100 %", not where)
-        if np.any(t <= -273.15) or np.any(t > 1500.0):
+        if t.min() <= -273.15 or t.max() > 1500.0:
             bad(f"{what}: temperatures must lie above absolute zero and at most 1500 °C", not where)
         if c.method == "D1160":
             from ..methods.d1160 import PRESSURE_RANGE_MMHG

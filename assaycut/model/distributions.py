@@ -64,7 +64,7 @@ def property_spline_steps(lo, hi, values, fixed=(), iterations: int = 30, floor:
     x = np.concatenate([mids, fx])
     order = np.argsort(x, kind="stable")
     x = x[order]
-    keep = np.concatenate([[True], np.diff(x) > 1e-9])
+    keep = np.concatenate([[True], (x[1:] - x[:-1]) > 1e-9])
     is_cut = (order < mids.size)[keep]
     x = x[keep]
     y0 = np.concatenate([vals, fy])[order][keep]

@@ -277,7 +277,7 @@ class Pchip:
         i, t = self._locate(xq)
         out = self._hermite(i, t)
         nan = np.isnan(np.asarray(xq, dtype=float))
-        return np.where(nan, np.nan, out) if np.any(nan) else out
+        return np.where(nan, np.nan, out) if nan.any() else out
 
     def _hermite(self, i, t):
         return hermite_combine(hermite_basis(t), self.y[i], self.y[i + 1], self.h[i] * self.d[i],
@@ -294,6 +294,11 @@ class Pchip:
 
     def integral(self, a, b):
         """Integral of y from ``a`` to ``b``. [y·x]"""
+        a = np.asarray(a, dtype=float)
+        b = np.asarray(b, dtype=float)
+        if a.ndim == 1 and a.shape == b.shape:  # both ends in one (element-wise) call: the same values
+            both = self.antiderivative(np.concatenate([b, a]))
+            return both[:b.size] - both[b.size:]
         return self.antiderivative(b) - self.antiderivative(a)
 
     def inverse(self, yq):

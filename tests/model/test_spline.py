@@ -154,3 +154,23 @@ def test_row_wise_inverse_equals_each_spline_alone():
         together = inverse_rows(x, y, np.diff(x, axis=1), np.array([s.d for s in splines]), q)
         for r, s in enumerate(splines):
             assert together[r].tobytes() == s.inverse(q[r]).tobytes(), (n, r)
+
+
+def test_integral_over_many_intervals_equals_scipy():
+    # Interval ends as arrays (both ends in one call) against scipy's PchipInterpolator.integrate, interval by
+    # interval (scipy as the outside reference), ends inside, beyond the nodes (held flat) and reversed.
+    rng = np.random.default_rng(23)
+    for k in range(30):
+        x = np.cumsum(rng.uniform(0.2, 9.0, int(rng.integers(2, 12))))
+        y = rng.normal(1.0, 0.4, x.size)
+        s, ref = Pchip(x, y), PchipInterpolator(x, y)
+        a = rng.uniform(x[0], x[-1], 25)
+        b = rng.uniform(x[0], x[-1], 25)
+        scale = max(1.0, float(np.max(np.abs(y))))
+        assert_allclose(s.integral(a, b), [ref.integrate(p, q) for p, q in zip(a, b)],
+                        rtol=0, atol=1e-11 * scale * (x[-1] - x[0]))
+        # beyond the end nodes the interpolant is held at its end values (our convention, not scipy's)
+        lo, hi = x[0] - 3.0, x[-1] + 2.0
+        assert_allclose(s.integral(np.array([lo, x[0]]), np.array([x[-1], hi])),
+                        [3.0 * y[0] + ref.integrate(x[0], x[-1]), ref.integrate(x[0], x[-1]) + 2.0 * y[-1]],
+                        rtol=0, atol=1e-11 * scale * (hi - lo))
