@@ -267,7 +267,7 @@ def build_curve_steps(percent, temp_c, *, front_t=None, front_v=None, fit: Riazi
     le_pct = float(le_v[-1]) if placed else 0.0
     T = np.concatenate(tt)
     V = np.concatenate(vv)
-    if not (T[1:] > T[:-1]).all():
+    if ((T[1:] - T[:-1]) <= 0).any():  # np.diff's arithmetic without its call
         raise CurveError("the curve's extension does not join the measured points monotonically; "
                          "check the last points of the curve")
     safe_lo = float(v[1]) if need_front else measured_lo
@@ -288,8 +288,8 @@ def _checked_points(percent, temp_c) -> tuple[np.ndarray, np.ndarray]:
         raise CurveError(f"the curve runs from {pct_text(v[0])} % at {t[0]:.2f} °C to {pct_text(v[-1])} % at "
                          f"{t[-1]:.2f} °C; a "
                          f"distillation curve must rise by at least 1 °C and some percent")
-    if (t[1:] < t[:-1]).any():
-        k = int(np.argmax(t[1:] < t[:-1]))
+    if ((t[1:] - t[:-1]) < 0).any():
+        k = int(np.argmax((t[1:] - t[:-1]) < 0))
         raise CurveError(f"temperature falls from {t[k]:.2f} °C at {pct_text(v[k])} % to {t[k + 1]:.2f} °C at "
                          f"{pct_text(v[k + 1])} %; temperatures must rise with percent distilled")
     return v, t
@@ -297,7 +297,7 @@ def _checked_points(percent, temp_c) -> tuple[np.ndarray, np.ndarray]:
 
 def _widen_repeats(v: np.ndarray, t: np.ndarray, warnings: list[str]) -> np.ndarray:
     """Repeated temperatures at rising percent become vertical steps :data:`STEP_C` wide."""
-    rep = t[1:] == t[:-1]
+    rep = (t[1:] - t[:-1]) == 0
     if not rep.any():
         return t
     for k in np.nonzero(rep)[0]:
