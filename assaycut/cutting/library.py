@@ -261,21 +261,22 @@ def summary_rows(assays, models: list[CrudeModel], cut_set: CutSet) -> list[list
     order; a missing value is NaN."""
     names, cols = cut_library(models, cut_set, only=set())  # the summary reads no narrow-cut quality
     per_cut = np.stack([cols[key][:, j] for j in range(len(names)) for key, _ in SUMMARY_QUALITIES], axis=1)
-    out = []
-    for a, m, values, flags in zip(assays, models, per_cut.tolist(), cols["extrapolated"]):
-        sulfur = m.sulfur_wt_pct if m.sulfur_wt_pct is not None else math.nan
-        out.append([a.name, a.source, a.sha256, a.api, sulfur, *values,
-                    ", ".join(n for n, e in zip(names, flags) if e)])
-    return out
+    return [_summary_line(a, m, values, [n for n, e in zip(names, flags) if e])
+            for a, m, values, flags in zip(assays, models, per_cut.tolist(), cols["extrapolated"])]
 
 
 def summary_row(assay, model: CrudeModel, cuts: list[dict]) -> list:
     """An assay's :func:`summary_rows` row from its ideal cut table already made as row dicts (the library
     engine's values for that assay: the same numbers; None where a value is missing)."""
+    return _summary_line(assay, model, [c[key] for c in cuts for key, _ in SUMMARY_QUALITIES],
+                         [c["name"] for c in cuts if c["extrapolated"]])
+
+
+def _summary_line(assay, model: CrudeModel, values: list, flagged: list[str]) -> list:
+    """One row in :func:`summary_columns` order: the crude's own columns, the per-cut ``values``, then the
+    names of the cuts that use the extension."""
     sulfur = model.sulfur_wt_pct if model.sulfur_wt_pct is not None else math.nan
-    values = [c[key] for c in cuts for key, _ in SUMMARY_QUALITIES]
-    return [assay.name, assay.source, assay.sha256, assay.api, sulfur, *values,
-            ", ".join(c["name"] for c in cuts if c["extrapolated"])]
+    return [assay.name, assay.source, assay.sha256, assay.api, sulfur, *values, ", ".join(flagged)]
 
 
 def library_summary(assays, models: list[CrudeModel], cut_set: CutSet):
