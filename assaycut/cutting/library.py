@@ -45,7 +45,7 @@ class BatchPchip:
 
     def __init__(self, splines: list[Pchip | None]):
         n = len(splines)
-        self.missing = np.array([s is None for s in splines])
+        missing = np.array([s is None for s in splines])
         real = [s if s is not None else Pchip([0.0, 1.0], [0.0, 0.0]) for s in splines]
         lens = np.array([s.x.size for s in real])
         k = int(lens.max())
@@ -58,11 +58,30 @@ class BatchPchip:
         D[inside] = np.concatenate([s.d for s in real])
         last = lens - 1
         rows = np.arange(n)
-        self.lo, self.hi = X[:, 0].copy(), X[rows, last]
         # padding: flat continuation past each spline's last node
+        hi = X[rows, last]
         extra = np.arange(k)[None, :] - last[:, None]
-        X = np.where(inside, X, self.hi[:, None] + extra)
-        Y = np.where(inside, Y, Y[rows, last][:, None])
+        self._setup(np.where(inside, X, hi[:, None] + extra), np.where(inside, Y, Y[rows, last][:, None]), D, hi,
+                    missing)
+
+    @classmethod
+    def from_rows(cls, x, y, d, lens=None) -> "BatchPchip":
+        """The batch of the splines whose nodes [unit of x], values and slopes are the rows of x, y, d (R, n),
+        as made by the PCHIP construction (:func:`~assaycut.model.spline.slopes_on_rows`); ``lens``: each row's
+        node count when rows are padded past it as this class pads them (default: none is).  Equal to the
+        batch of their Pchip objects."""
+        x = np.asarray(x, float)
+        last = np.full(x.shape[0], x.shape[1] - 1) if lens is None else np.asarray(lens) - 1
+        out = cls.__new__(cls)
+        out._setup(x, np.asarray(y, float), np.asarray(d, float), x[np.arange(x.shape[0]), last],
+                   np.zeros(x.shape[0], dtype=bool))
+        return out
+
+    def _setup(self, X, Y, D, hi, missing):
+        """Set the padded node arrays (R, k), each row's last real node ``hi`` and the rows missing."""
+        n, k = X.shape
+        self.missing = missing
+        self.lo, self.hi = X[:, 0].copy(), hi
         self.X, self.Y, self.D = X, Y, D
         self.H = np.diff(X, axis=1)
         self.C = np.concatenate([np.zeros((n, 1)), np.cumsum(segment_integrals(self.H, Y, D), axis=1)], axis=1)
@@ -166,10 +185,16 @@ class BatchPchip:
 class BatchCurve:
     """Row-wise counterpart of :class:`~assaycut.model.tbp_curve.TbpCurve` for many crudes."""
 
-    def __init__(self, models: list[CrudeModel]):
-        self.spline = BatchPchip([m.curve.spline for m in models])
-        self.safe_lo = np.array([m.curve.safe_lo for m in models])[:, None]
-        self.safe_hi = np.array([m.curve.safe_hi for m in models])[:, None]
+    def __init__(self, models: list[CrudeModel] | None, spline: BatchPchip | None = None, safe_lo=None,
+                 safe_hi=None):
+        """From the crudes' models, or (``models`` None) from the batch spline and the safe ranges [vol %]."""
+        if models is not None:
+            spline = BatchPchip([m.curve.spline for m in models])
+            safe_lo = [m.curve.safe_lo for m in models]
+            safe_hi = [m.curve.safe_hi for m in models]
+        self.spline = spline
+        self.safe_lo = np.asarray(safe_lo, dtype=float).reshape(-1, 1)
+        self.safe_hi = np.asarray(safe_hi, dtype=float).reshape(-1, 1)
 
     def pct_at(self, temp_c):
         return self.spline(temp_c)
@@ -189,17 +214,32 @@ class BatchModel:
     """Row-wise counterpart of :class:`~assaycut.model.crude.CrudeModel`: axis 0 runs over the crudes."""
 
     def __init__(self, models: list[CrudeModel]):
-        self.n = len(models)
-        self.curve = BatchCurve(models)
-        self.sg_dist = BatchPchip([m.sg_dist for m in models])
-        self.sulfur_dist = BatchPchip([m.sulfur_dist for m in models])
-        self.sg = np.array([m.sg for m in models])[:, None]
-        self.sulfur_wt_pct = np.array([np.nan if m.sulfur_wt_pct is None else m.sulfur_wt_pct
-                                       for m in models])[:, None]
+        self._setup(BatchCurve(models), BatchPchip([m.sg_dist for m in models]),
+                    BatchPchip([m.sulfur_dist for m in models]), [m.sg for m in models],
+                    [np.nan if m.sulfur_wt_pct is None else m.sulfur_wt_pct for m in models],
+                    [m.all_on_extension != "" for m in models], [m.qualities for m in models],
+                    [m.sulfur_estimated for m in models])
+
+    @classmethod
+    def from_rows(cls, rows) -> "BatchModel":
+        """The batch of draws modelled as arrays (:class:`~assaycut.model.draws.DrawRows`): no narrow-cut
+        qualities, sulfur from the narrow cuts."""
+        out = cls.__new__(cls)
+        n = rows.sg.size
+        curve = BatchCurve(None, BatchPchip.from_rows(*rows.curve), rows.safe_lo, rows.safe_hi)
+        out._setup(curve, BatchPchip.from_rows(*rows.sg_dist), BatchPchip.from_rows(*rows.sulfur_dist), rows.sg,
+                   rows.sulfur_wt_pct, rows.on_extension, [{}] * n, np.zeros(n, dtype=bool))
+        return out
+
+    def _setup(self, curve, sg_dist, sulfur_dist, sg, sulfur_wt_pct, on_extension, qualities, estimated):
+        self.curve, self.sg_dist, self.sulfur_dist = curve, sg_dist, sulfur_dist
+        self.n = sg_dist.n
+        self.sg = np.asarray(sg, dtype=float).reshape(-1, 1)
+        self.sulfur_wt_pct = np.asarray(sulfur_wt_pct, dtype=float).reshape(-1, 1)
         self._a0 = self.sg_dist.antiderivative(np.zeros((self.n, 1)))
-        self.all_on_extension = np.array([m.all_on_extension != "" for m in models])
-        self.row_qualities = [m.qualities for m in models]
-        self.sulfur_rows_estimated = np.array([m.sulfur_estimated for m in models])
+        self.all_on_extension = np.asarray(on_extension, dtype=bool)
+        self.row_qualities = qualities
+        self.sulfur_rows_estimated = np.asarray(estimated, dtype=bool)
 
     def _col(self, arr, like):
         return arr.reshape((-1,) + (1,) * (np.ndim(like) - 1))

@@ -131,25 +131,33 @@ def _mean_match_rows(rows: list[MeanMatchNeed]) -> list[np.ndarray]:
     """:meth:`MeanMatchNeed.alone` of many problems with the same node count, cut pattern, iteration limit and
     floor, row-wise (the same arithmetic, each row stopping where it would alone)."""
     first = rows[0]
-    x = np.array([r.x for r in rows])
-    y = np.array([r.y0 for r in rows])
-    a = np.array([r.a for r in rows])
-    b = np.array([r.b for r in rows])
-    target = np.array([r.target for r in rows])
-    tol = np.array([r.tol for r in rows])
-    is_cut, floor = first.is_cut, first.floor
-    means = _interval_means_rows(x, a, b)
     if first.iterations < 1:
         return [r.alone() for r in rows]
+    best, best_d, best_cum = mean_match_arrays(*(np.array([getattr(r, a) for r in rows])
+                                                  for a in ("x", "y0", "is_cut", "a", "b", "target", "tol")),
+                                                first.iterations, first.floor)
+    return [(best[r], best_d[r], best_cum[r]) for r in range(len(rows))]
+
+
+def mean_match_arrays(x, y, is_cut, a, b, target, tol, iterations: int, floor):
+    """The node correction of :class:`MeanMatchNeed` row-wise (iterations >= 1): nodes x and start values y
+    (R, n), the cut nodes ``is_cut`` (n,) or (R, n) with every row alike, intervals a, b and their ``target``
+    means (R, k), tolerances ``tol`` (R,); the best node values, their slopes and cumulative integrals, (R, n)
+    each, every row as :meth:`MeanMatchNeed.alone` gives it."""
+    is_cut = np.asarray(is_cut, dtype=bool)
+    if is_cut.ndim == 2:
+        is_cut = is_cut[0]
+    y = np.array(y, dtype=float)
+    means = _interval_means_rows(x, a, b)
     best = y.copy()
     best_d = np.zeros_like(y)
     best_cum = np.zeros_like(y)
-    best_err = np.full(len(rows), np.inf)
-    active = np.ones(len(rows), dtype=bool)
-    for _ in range(first.iterations):
+    best_err = np.full(y.shape[0], np.inf)
+    active = np.ones(y.shape[0], dtype=bool)
+    for _ in range(iterations):
         m, d, cum = means(y)
         err = target - m
-        worst = np.max(np.abs(err), axis=1) if err.shape[1] else np.zeros(len(rows))
+        worst = np.max(np.abs(err), axis=1) if err.shape[1] else np.zeros(y.shape[0])
         active &= ~(worst >= 0.95 * best_err)  # no longer improving: keeps its best
         best[active], best_d[active], best_cum[active] = y[active], d[active], cum[active]
         best_err = np.where(active, worst, best_err)
@@ -158,7 +166,7 @@ def _mean_match_rows(rows: list[MeanMatchNeed]) -> list[np.ndarray]:
             break
         moved = y[:, is_cut] + err if floor is None else np.maximum(y[:, is_cut] + err, floor)
         y[:, is_cut] = np.where(active[:, None], moved, y[:, is_cut])
-    return [(best[r], best_d[r], best_cum[r]) for r in range(len(rows))]
+    return best, best_d, best_cum
 
 
 def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):

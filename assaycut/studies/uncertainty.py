@@ -2,9 +2,9 @@
 
 Monte Carlo over the curve model: each draw perturbs the measured TBP temperatures and percents, the
 densities (whole crude and narrow cuts) and the sulfur contents by independent normal errors, rebuilds the
-crude model (the draws of a chunk together, :func:`~assaycut.model.crude.build_models`), and all draws are cut
-together by the library engine (arrays over draws).  Reported: P10, P50
-and P90 per cut.
+crude model (the draws of a chunk as arrays over draws, :func:`~assaycut.model.draws.build_draws`, the
+draws it does not cover by :func:`~assaycut.model.crude.build_models`), and all draws are cut together by the
+library engine (arrays over draws).  Reported: P10, P50 and P90 per cut.
 
 The default standard deviations are ASSUMPTIONS of ours, not values from the standards: the repeatability
 figures of ASTM D2892 (TBP), D4052 (density) and D4294 / D2622 (sulfur) must be confirmed against the current
@@ -13,16 +13,17 @@ editions and the laboratory's own precision before the bands are relied on.
 
 from __future__ import annotations
 
-import copy
 from dataclasses import dataclass
 
 import numpy as np
 
 from ..cutting.cutset import CutSet
-from ..cutting.library import cut_library
+from ..cutting.ideal import cut_columns
+from ..cutting.library import BatchModel, cut_library
 from ..errors import AssaycutError, StudyError
 from ..model.assay import Assay
 from ..model.crude import build_models
+from ..model.draws import DrawValues, build_draws
 
 
 @dataclass(frozen=True)
@@ -50,33 +51,54 @@ BAND_QUALITIES = ["vol_pct", "wt_pct", "sg", "api", "sulfur_wt_pct", "watson_k",
 
 def perturb(assay: Assay, sig: Sigmas, rng: np.random.Generator) -> Assay:
     """One Monte Carlo draw of the assay: measured values plus independent normal errors, curves kept
-    monotone (running maximum) and percents inside 0-100.
+    monotone (running maximum) and percents inside 0-100 (:func:`draw_values` of one draw).
 
     With a light-ends analysis, the percent of the curve's first point is not perturbed: the light ends are the
     curve's first fraction (collected and analysed by gas chromatography in a TBP distillation), so their
     total and that percent are one measurement; perturbing it alone would leave the light ends off the curve
     in about a third of the draws (they are placed only where they meet the first point within 0.1 %).
     """
-    a = copy.copy(assay)  # shallow copies: every perturbed array is a new one, the rest is shared read-only
-    a.curves = [copy.copy(c) for c in assay.curves]
-    if assay.narrow_cuts is not None:
-        a.narrow_cuts = copy.copy(assay.narrow_cuts)
+    return draw_values(assay, sig, rng, 1).assay(assay, 0)
+
+
+def draw_values(assay: Assay, sig: Sigmas, rng: np.random.Generator, count: int) -> DrawValues:
+    """``count`` draws of the assay's measured values (:func:`perturb`'s errors), one row per draw.
+
+    Each draw takes its normal errors from ``rng`` in the order of the measurements: per curve its
+    temperatures then its percents, the whole-crude SG, the whole-crude sulfur (when given), the narrow-cut
+    SG and sulfur (with narrow cuts); the draws one after the other, so the values are those of ``count``
+    calls of :func:`perturb` on the same generator.
+    """
     le = assay.light_ends
-    for k, c in enumerate(a.curves):
-        t = c.temp_c + rng.normal(0.0, sig.temp_c, c.temp_c.size)
-        p = np.clip(c.percent + rng.normal(0.0, sig.pct, c.percent.size), 0.0, 100.0)
-        if k == 0 and le is not None and le.amounts and c.percent[0] > 0:
-            p[0] = c.percent[0]  # the light ends' total: one measurement with the light-ends analysis
-        c.temp_c = np.maximum.accumulate(t + np.arange(t.size) * 1e-6)
-        c.percent = np.maximum.accumulate(p)
-    a.sg = assay.sg + rng.normal(0.0, sig.sg)
-    if a.sulfur_wt_pct is not None:
-        a.sulfur_wt_pct = max(assay.sulfur_wt_pct * (1.0 + rng.normal(0.0, sig.sulfur_rel)), 0.0)
-    nc = a.narrow_cuts
+    nc = assay.narrow_cuts
+    scales = []
+    for c in assay.curves:
+        scales += [np.full(c.temp_c.size, sig.temp_c), np.full(c.percent.size, sig.pct)]
+    scales.append(np.array([sig.sg]))
+    if assay.sulfur_wt_pct is not None:
+        scales.append(np.array([sig.sulfur_rel]))
     if nc is not None:
-        nc.sg = nc.sg + rng.normal(0.0, sig.sg, nc.sg.size)
-        nc.sulfur_wt_pct = np.maximum(nc.sulfur_wt_pct * (1.0 + rng.normal(0.0, sig.sulfur_rel, nc.sg.size)), 0.0)
-    return a
+        scales += [np.full(nc.sg.size, sig.sg), np.full(nc.sg.size, sig.sulfur_rel)]
+    sizes = [x.size for x in scales]
+    err = np.split(0.0 + rng.standard_normal((count, sum(sizes))) * np.concatenate(scales),
+                   np.cumsum(sizes)[:-1], axis=1)  # what rng.normal(0.0, scale) gives, value for value
+    percent, temp_c = [], []
+    for k, c in enumerate(assay.curves):
+        t = c.temp_c + err[2 * k]
+        p = np.clip(c.percent + err[2 * k + 1], 0.0, 100.0)
+        if k == 0 and le is not None and le.amounts and c.percent[0] > 0:
+            p[:, 0] = c.percent[0]  # the light ends' total: one measurement with the light-ends analysis
+        temp_c.append(np.maximum.accumulate(t + np.arange(t.shape[1]) * 1e-6, axis=1))
+        percent.append(np.maximum.accumulate(p, axis=1))
+    k = 2 * len(assay.curves)
+    out = DrawValues(percent, temp_c, assay.sg + err[k][:, 0])
+    if assay.sulfur_wt_pct is not None:
+        k += 1
+        out.sulfur_wt_pct = np.maximum(assay.sulfur_wt_pct * (1.0 + err[k][:, 0]), 0.0)
+    if nc is not None:
+        out.nc_sg = nc.sg + err[k + 1]
+        out.nc_sulfur_wt_pct = np.maximum(nc.sulfur_wt_pct * (1.0 + err[k + 2]), 0.0)
+    return out
 
 
 DRAW_CHUNK = 250
@@ -85,16 +107,27 @@ on the seed alone, not on how many processes share the work."""
 
 
 def _draw_chunk(args):
-    """Model and cut one chunk of draws: (columns of :data:`BAND_QUALITIES` over the draws, failed draws)."""
-    assay, cut_set, sig, count, seed, k, method = args
+    """Model and cut one chunk of draws: (columns of :data:`BAND_QUALITIES` over the draws, failed draws).
+
+    The draws are modelled as arrays over draws (:func:`~assaycut.model.draws.build_draws`) where they can be,
+    the others one by one by the reference builder; each draw's model is the one :func:`build_model` gives it.
+    """
+    assay, cut_set, sig, count, seed, k, method, fast = args
     rng = np.random.default_rng([seed, k])
-    built = build_models([perturb(assay, sig, rng) for _ in range(count)], method, qualities=False)
+    vals = draw_values(assay, sig, rng, count)
+    groups, left = build_draws(assay, vals) if fast else ([], list(range(count)))
+    _, ends = cut_set.reported()
+    parts = []
+    for g in groups:  # the bands read no narrow-cut quality
+        parts.append(cut_columns(BatchModel.from_rows(g), np.repeat(ends[None, :], g.sg.size, axis=0), only=set()))
+    built = build_models([vals.assay(assay, r) for r in left], method, qualities=False)
     models = [m for m in built if not isinstance(m, AssaycutError)]
-    failed = count - len(models)
-    if not models:
+    failed = len(left) - len(models)
+    if models:
+        parts.append(cut_library(models, cut_set, only=set())[1])
+    if not parts:
         return {}, failed
-    _, cols = cut_library(models, cut_set, only=set())  # the bands read no narrow-cut quality
-    return {q: np.asarray(cols[q], dtype=float) for q in BAND_QUALITIES}, failed
+    return {q: np.concatenate([np.asarray(p[q], dtype=float) for p in parts], axis=0) for q in BAND_QUALITIES}, failed
 
 
 class BandRows(list):
@@ -105,7 +138,7 @@ class BandRows(list):
 
 
 def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 200, seed: int = 20261201,
-                method: str = "daubert-1994", progress=None, map_fn=map, frames: bool = True):
+                method: str = "daubert-1994", progress=None, map_fn=map, frames: bool = True, fast: bool = True):
     """P10/P50/P90 of each cut's yields and qualities under the assay's measurement uncertainty.
 
     Parameters
@@ -127,6 +160,9 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
         share them between cores); the builtin ``map`` by default.
     frames : bool
         A DataFrame (default) or, without pandas, a :class:`BandRows` of the same rows and ``attrs``.
+    fast : bool
+        Model the draws as arrays over draws where they can be (default); False builds every draw by the
+        reference builder (the same models; the tests compare the two).
 
     Returns
     -------
@@ -137,7 +173,7 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
     if not 20 <= n <= 5000:
         raise StudyError(f"the number of draws must be between 20 and 5000; got {n}")
     names, _ = cut_set.reported()
-    jobs = [(assay, cut_set, sig, min(DRAW_CHUNK, n - k0), seed, k, method)
+    jobs = [(assay, cut_set, sig, min(DRAW_CHUNK, n - k0), seed, k, method, fast)
             for k, k0 in enumerate(range(0, n, DRAW_CHUNK))]
     parts, failed, done = [], 0, 0
     for (cols, bad), job in zip(map_fn(_draw_chunk, jobs), jobs):
