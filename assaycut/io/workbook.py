@@ -40,9 +40,12 @@ from .layout import (
     TEMP_COLUMNS,
     UNIT_SUFFIX,
 )
+from .xlsxlean import LeanBook, LeanSheet, Unusual
 
 
-def _open_workbook(data: bytes, path: str):
+def _check_archive(data: bytes, path: str) -> None:
+    """The checks on the zip archive before any of its XML is read: a zip with xl/workbook.xml, no part
+    above :data:`MAX_MEMBER_BYTES` unpacked and all of them within :data:`MAX_UNPACKED_BYTES`."""
     from openpyxl.xml import DEFUSEDXML
 
     if not DEFUSEDXML:
@@ -67,6 +70,34 @@ def _open_workbook(data: bytes, path: str):
                                  f"{MAX_UNPACKED_BYTES / 1e6:.0f} MB unpacked", file=path)
     except zipfile.BadZipFile as exc:
         raise InputError(f"a damaged zip archive ({exc}); expected an .xlsx workbook", file=path) from None
+
+
+def _open_lean(data: bytes):
+    """The workbook by the lean reader (:mod:`assaycut.io.xlsxlean`), or :class:`~assaycut.io.xlsxlean.Unusual`
+    when it does not read it; after :func:`_check_archive`."""
+    z = zipfile.ZipFile(io.BytesIO(data))
+    try:
+        try:
+            styles = z.read("xl/styles.xml")
+        except KeyError:
+            date_styles = frozenset()
+        else:
+            import hashlib
+
+            known = _STYLE_FORMATS.get(hashlib.sha256(styles).digest())
+            if known is None:
+                raise Unusual("a stylesheet not read before")
+            date_styles = known[0]
+        wb = LeanBook(z, date_styles)
+    except BaseException:
+        z.close()
+        raise
+    wb.assaycut_budget = _Budget()
+    return wb
+
+
+def _open_workbook(data: bytes, path: str):
+    """The workbook by openpyxl (the reference reader), after :func:`_check_archive`."""
     try:
         reader = _reader_class()(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
         reader.read()
@@ -167,45 +198,55 @@ def _rows(ws, loc: SourceLocation, budget: _Budget | None = None):
     The sheet's XML is parsed row by row without trusting its declared ``<dimension>`` (a forged one would
     pad every row to 16,384 columns, an understated one would drop rows): every row present is read, rows
     must come in increasing order without repeats, at most :data:`MAX_COLUMNS` columns, and the workbook's
-    cells count against :data:`MAX_CELLS`.  Damaged XML is one error naming the sheet and row."""
+    cells count against :data:`MAX_CELLS`.  Damaged XML is one error naming the sheet and row.  A sheet of
+    the lean reader hands on the same rows as openpyxl's parser (its own refusals go to the caller)."""
+    budget = budget or getattr(ws.parent, "assaycut_budget", None) or _Budget()
+    if isinstance(ws, LeanSheet):
+        return _gather(ws.rows(), loc, budget, [0])
     from openpyxl.worksheet._reader import WorkSheetParser
 
-    budget = budget or getattr(ws.parent, "assaycut_budget", None) or _Budget()
-    out: list[list] = []
-    last = 0
     wb = ws.parent
+    last = [0]
     try:
         with ws._get_source() as src:
             parser = WorkSheetParser(src, ws._shared_strings, data_only=wb.data_only, epoch=wb.epoch,
                                      date_formats=wb._date_formats, timedelta_formats=wb._timedelta_formats)
-            for idx, cells in parser.parse():
-                if idx <= last:
-                    raise loc.err(f"row {idx} appears {'twice' if idx == last else 'after row ' + str(last)} in "
-                                  f"the sheet's XML; the file is damaged or was edited by hand (save it again "
-                                  f"from a spreadsheet program)", idx)
-                if idx > MAX_ROWS:
-                    raise loc.err(f"more than {MAX_ROWS} rows; assaycut reads at most {MAX_ROWS} rows per sheet")
-                budget.cells += len(cells)
-                if budget.cells > MAX_CELLS:
-                    raise loc.err(f"more than {MAX_CELLS:,} cells in the workbook; real assay workbooks hold a "
-                                  f"few thousand")
-                width = max((c["column"] for c in cells if c["value"] is not None), default=0)
-                if width > MAX_COLUMNS:
-                    raise loc.err(f"a value in column {width}, beyond the {MAX_COLUMNS} columns assaycut reads", idx)
-                row = [None] * width
-                for c in cells:
-                    if c["column"] <= width:
-                        row[c["column"] - 1] = c["value"]
-                out.extend([] for _ in range(idx - last - 1))
-                out.append(row)
-                last = idx
+            return _gather(parser.parse(), loc, budget, last)
     except InputError:
         raise
     except MemoryError:
         raise
     except Exception as exc:  # openpyxl's parser raises many types on damaged XML
-        raise loc.err(f"damaged sheet XML after row {last} ({type(exc).__name__}: {str(exc)[:120]}); save the "
-                      f"workbook again from a spreadsheet program", last + 1 if last else None) from None
+        raise loc.err(f"damaged sheet XML after row {last[0]} ({type(exc).__name__}: {str(exc)[:120]}); save the "
+                      f"workbook again from a spreadsheet program", last[0] + 1 if last[0] else None) from None
+
+
+def _gather(parsed, loc: SourceLocation, budget: _Budget, last: list[int]) -> list[list]:
+    """The checks and the row lists of :func:`_rows` over a sheet parser's ``(row number, cells)``; ``last[0]``
+    follows the last row read (for the caller's message on damaged XML)."""
+    out: list[list] = []
+    for idx, cells in parsed:
+        prev = last[0]
+        if idx <= prev:
+            raise loc.err(f"row {idx} appears {'twice' if idx == prev else 'after row ' + str(prev)} in "
+                          f"the sheet's XML; the file is damaged or was edited by hand (save it again "
+                          f"from a spreadsheet program)", idx)
+        if idx > MAX_ROWS:
+            raise loc.err(f"more than {MAX_ROWS} rows; assaycut reads at most {MAX_ROWS} rows per sheet")
+        budget.cells += len(cells)
+        if budget.cells > MAX_CELLS:
+            raise loc.err(f"more than {MAX_CELLS:,} cells in the workbook; real assay workbooks hold a "
+                          f"few thousand")
+        width = max((c["column"] for c in cells if c["value"] is not None), default=0)
+        if width > MAX_COLUMNS:
+            raise loc.err(f"a value in column {width}, beyond the {MAX_COLUMNS} columns assaycut reads", idx)
+        row = [None] * width
+        for c in cells:
+            if c["column"] <= width:
+                row[c["column"] - 1] = c["value"]
+        out.extend([] for _ in range(idx - prev - 1))
+        out.append(row)
+        last[0] = idx
     while out and all(cell_text(v) == "" for v in out[-1]):
         out.pop()
     return out
@@ -262,10 +303,34 @@ def read_workbook(path: str, data: bytes | None = None) -> Assay:
     InputError
         With file, sheet, row and column of the first problem found.
     """
+    data = read_bytes(path) if data is None else data
+    _check_archive(data, path)
+    try:  # the lean reader where it reads the file; the reference reader otherwise, and for every refusal
+        return _read_book(_open_lean(data), path, data)
+    except (Unusual, InputError):
+        pass
+    return _read_book(_open_workbook(data, path), path, data)
+
+
+def read_workbook_reference(path: str, data: bytes | None = None) -> Assay:
+    """:func:`read_workbook` by openpyxl alone (the reference the lean reader is tested against)."""
+    data = read_bytes(path) if data is None else data
+    _check_archive(data, path)
+    return _read_book(_open_workbook(data, path), path, data)
+
+
+def read_workbook_lean(path: str, data: bytes | None = None) -> Assay:
+    """:func:`read_workbook` by the lean reader alone (raises :class:`~assaycut.io.xlsxlean.Unusual` where it
+    does not read the file; for tests)."""
+    data = read_bytes(path) if data is None else data
+    _check_archive(data, path)
+    return _read_book(_open_lean(data), path, data)
+
+
+def _read_book(wb, path: str, data: bytes) -> Assay:
+    """The assay from an opened workbook (either reader's), closed after."""
     import hashlib
 
-    data = read_bytes(path) if data is None else data
-    wb = _open_workbook(data, path)
     try:
         crude = _read_crude(_sheet(wb, SHEET_CRUDE, path, True), SourceLocation(path, SHEET_CRUDE))
         curves = [_read_curve(_sheet(wb, SHEET_CURVE, path, True), SourceLocation(path, SHEET_CURVE))]
