@@ -307,7 +307,9 @@ def read_workbook(path: str, data: bytes | None = None) -> Assay:
     _check_archive(data, path)
     try:  # the lean reader where it reads the file; the reference reader otherwise, and for every refusal
         return _read_book(_open_lean(data), path, data)
-    except (Unusual, InputError):
+    except MemoryError:
+        raise
+    except Exception:  # noqa: BLE001 - Unusual, a refusal, or anything else the lean reader meets
         pass
     return _read_book(_open_workbook(data, path), path, data)
 

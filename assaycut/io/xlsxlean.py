@@ -140,9 +140,14 @@ class _TextCollector:
         self.parts: list[str] = []
         self.path: list[str] = []
         self.taking = False
+        self.plain = False
 
     def start(self, tag):
         self.path.append(tag)  # below the <si> or <is> element
+        if self.path == [self.T]:
+            if self.plain:
+                raise Unusual("two plain texts in one string")
+            self.plain = True
         self.taking = self.path == [self.T] or self.path == [self.R, self.T]
 
     def end(self):
@@ -249,7 +254,10 @@ def _sheet_rows(src: bytes, strings: list[str], date_styles: frozenset):
             else:
                 st["col"] += 1
             s = attrs.get("s")
-            st["cell"] = (attrs.get("t", "n"), int(s) if s else 0)
+            try:
+                st["cell"] = (attrs.get("t", "n"), int(s) if s else 0)
+            except ValueError:
+                raise Unusual(f"style {s!r}") from None
             st["v"], st["text"], st["where"] = None, None, 3
         elif w == 3:
             if tag == V:
@@ -259,6 +267,8 @@ def _sheet_rows(src: bytes, strings: list[str], date_styles: frozenset):
             elif tag == F:
                 raise Unusual("a formula cell")
             elif tag == IS:
+                if st["text"] is not None:
+                    raise Unusual("two inline strings in a cell")
                 st["text"], st["where"], st["depth"] = _TextCollector(), 5, 0
             else:  # openpyxl ignores other children of a cell (extLst)
                 st["where"], st["depth"] = 6, 1

@@ -177,7 +177,7 @@ def _with_doctype(x: bytes) -> bytes:
     return x[:decl] + b'<!DOCTYPE worksheet [<!ENTITY a "b">]>' + x[decl:]
 
 
-@pytest.mark.parametrize("what", ["formula", "doctype", "defined name", "date"])
+@pytest.mark.parametrize("what", ["formula", "doctype", "defined name", "date", "bad style", "two inline strings"])
 def test_what_the_lean_reader_does_not_read_goes_to_the_reference(tmp_path, what):
     import openpyxl
 
@@ -188,6 +188,10 @@ def test_what_the_lean_reader_does_not_read_goes_to_the_reference(tmp_path, what
                                                                   b"</c></row></sheetData>")})
     elif what == "doctype":
         rezip(p, {"xl/worksheets/sheet1.xml": _with_doctype})
+    elif what == "bad style":  # openpyxl: int("x") fails, a damaged sheet
+        rezip(p, {"xl/worksheets/sheet1.xml": _sub(b'<c r="A1" t="inlineStr">', b'<c r="A1" s="x" t="inlineStr">')})
+    elif what == "two inline strings":  # openpyxl takes the first
+        rezip(p, {"xl/worksheets/sheet1.xml": _sub(b"<is><t>text</t></is>", b"<is><t>text</t></is><is><t>b</t></is>")})
     else:
         wb = openpyxl.load_workbook(p)
         if what == "defined name":
@@ -232,3 +236,16 @@ def test_rows_are_handed_on_as_parsed_so_the_limits_stop_a_huge_sheet_early(tmp_
     with pytest.raises(Unusual):
         list(rows)
     wb.close()
+
+
+def test_a_failure_of_any_kind_in_the_lean_reader_gives_the_references_refusal(tmp_path):
+    p = write_book(tmp_path / "a.xlsx", base_sheets())
+    read_workbook_reference(str(p))  # the stylesheet is known
+    with zipfile.ZipFile(p) as z:
+        src = z.read("xl/worksheets/sheet1.xml")
+    assert b'<c r="A1" t="inlineStr">' in src
+    rezip(p, {"xl/worksheets/sheet1.xml": lambda _: src.replace(b'<c r="A1" t="inlineStr">',
+                                                                b'<c r="A1" s="x" t="inlineStr">', 1)})
+    ref = _outcome(read_workbook_reference, p)
+    assert ref[0] == "InputError" and "damaged sheet XML" in ref[1]
+    assert _outcome(read_workbook, p) == ref
