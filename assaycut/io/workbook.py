@@ -43,9 +43,10 @@ from .layout import (
 from .xlsxlean import LeanBook, LeanSheet, Unusual
 
 
-def _check_archive(data: bytes, path: str) -> None:
+def _check_archive(data: bytes, path: str) -> zipfile.ZipFile:
     """The checks on the zip archive before any of its XML is read: a zip with xl/workbook.xml, no part
-    above :data:`MAX_MEMBER_BYTES` unpacked and all of them within :data:`MAX_UNPACKED_BYTES`."""
+    above :data:`MAX_MEMBER_BYTES` unpacked and all of them within :data:`MAX_UNPACKED_BYTES`.  Returns the
+    archive, open (the caller closes it)."""
     from openpyxl.xml import DEFUSEDXML
 
     if not DEFUSEDXML:
@@ -55,40 +56,37 @@ def _check_archive(data: bytes, path: str) -> None:
         raise InputError("not an .xlsx workbook (the file is not a zip archive); save the assay as Excel .xlsx",
                          file=path)
     try:
-        with zipfile.ZipFile(io.BytesIO(data)) as z:
-            names = set(z.namelist())
-            if "xl/workbook.xml" not in names:
-                raise InputError("a zip archive but not an .xlsx workbook (no xl/workbook.xml)", file=path)
-            for info in z.infolist():
-                if info.file_size > MAX_MEMBER_BYTES:
-                    raise InputError(f"part {info.filename!r} of the workbook unpacks to {info.file_size / 1e6:.0f} "
-                                     f"MB; assaycut reads parts up to {MAX_MEMBER_BYTES / 1e6:.0f} MB (real assay "
-                                     f"workbooks hold well under 1 MB)", file=path)
-            total = sum(i.file_size for i in z.infolist())
-            if total > MAX_UNPACKED_BYTES:
-                raise InputError(f"the workbook unpacks to {total / 1e6:.0f} MB; assaycut reads workbooks up to "
-                                 f"{MAX_UNPACKED_BYTES / 1e6:.0f} MB unpacked", file=path)
+        z = zipfile.ZipFile(io.BytesIO(data))
     except zipfile.BadZipFile as exc:
         raise InputError(f"a damaged zip archive ({exc}); expected an .xlsx workbook", file=path) from None
-
-
-def _open_lean(data: bytes):
-    """The workbook by the lean reader (:mod:`assaycut.io.xlsxlean`), or :class:`~assaycut.io.xlsxlean.Unusual`
-    when it does not read it; after :func:`_check_archive`."""
-    z = zipfile.ZipFile(io.BytesIO(data))
     try:
-        try:
-            styles = z.read("xl/styles.xml")
-        except KeyError:
-            date_styles = frozenset()
-        else:
-            import hashlib
+        names = set(z.namelist())
+        if "xl/workbook.xml" not in names:
+            raise InputError("a zip archive but not an .xlsx workbook (no xl/workbook.xml)", file=path)
+        for info in z.infolist():
+            if info.file_size > MAX_MEMBER_BYTES:
+                raise InputError(f"part {info.filename!r} of the workbook unpacks to {info.file_size / 1e6:.0f} "
+                                 f"MB; assaycut reads parts up to {MAX_MEMBER_BYTES / 1e6:.0f} MB (real assay "
+                                 f"workbooks hold well under 1 MB)", file=path)
+        total = sum(i.file_size for i in z.infolist())
+        if total > MAX_UNPACKED_BYTES:
+            raise InputError(f"the workbook unpacks to {total / 1e6:.0f} MB; assaycut reads workbooks up to "
+                             f"{MAX_UNPACKED_BYTES / 1e6:.0f} MB unpacked", file=path)
+    except BaseException:
+        z.close()
+        raise
+    return z
 
-            known = _STYLE_FORMATS.get(hashlib.sha256(styles).digest())
-            if known is None:
-                raise Unusual("a stylesheet not read before")
-            date_styles = known[0]
-        wb = LeanBook(z, date_styles)
+
+def _open_lean(z: zipfile.ZipFile):
+    """The workbook by the lean reader (:mod:`assaycut.io.xlsxlean`) from the archive :func:`_check_archive`
+    opened (closed with the workbook, or here on a failure), or :class:`~assaycut.io.xlsxlean.Unusual` when it
+    does not read it."""
+    try:
+        key, known = _stylesheet(z)
+        if key is not None and known is None:
+            raise Unusual("a stylesheet not read before")
+        wb = LeanBook(z, known[0] if known else frozenset())
     except BaseException:
         z.close()
         raise
@@ -162,20 +160,28 @@ _STYLE_FORMATS: dict[bytes, tuple[frozenset, frozenset]] = {}
 most 64): a batch of workbooks written by one program shares one stylesheet."""
 
 
-def _styles(archive, wb) -> None:
-    """Set the workbook's date and time-interval cell formats (all the sheet parser needs of its styles) from
-    xl/styles.xml: parsed by openpyxl the first time a stylesheet is seen (so a damaged or entity-declaring one
-    is refused as before), remembered by its content after that."""
+def _stylesheet(archive) -> tuple[bytes | None, tuple[frozenset, frozenset] | None]:
+    """The key of the archive's xl/styles.xml in :data:`_STYLE_FORMATS` (None without one) and the formats
+    remembered under it (None when not read before)."""
     import hashlib
-
-    from openpyxl.styles.stylesheet import apply_stylesheet
 
     try:
         src = archive.read("xl/styles.xml")
     except KeyError:
-        return
+        return None, None
     key = hashlib.sha256(src).digest()
-    known = _STYLE_FORMATS.get(key)
+    return key, _STYLE_FORMATS.get(key)
+
+
+def _styles(archive, wb) -> None:
+    """Set the workbook's date and time-interval cell formats (all the sheet parser needs of its styles) from
+    xl/styles.xml: parsed by openpyxl the first time a stylesheet is seen (so a damaged or entity-declaring one
+    is refused as before), remembered by its content after that."""
+    from openpyxl.styles.stylesheet import apply_stylesheet
+
+    key, known = _stylesheet(archive)
+    if key is None:
+        return
     if known is None:
         apply_stylesheet(archive, wb)
         if len(_STYLE_FORMATS) >= 64:
@@ -304,9 +310,9 @@ def read_workbook(path: str, data: bytes | None = None) -> Assay:
         With file, sheet, row and column of the first problem found.
     """
     data = read_bytes(path) if data is None else data
-    _check_archive(data, path)
+    z = _check_archive(data, path)
     try:  # the lean reader where it reads the file; the reference reader otherwise, and for every refusal
-        return _read_book(_open_lean(data), path, data)
+        return _read_book(_open_lean(z), path, data)
     except MemoryError:
         raise
     except Exception:  # noqa: BLE001 - Unusual, a refusal, or anything else the lean reader meets
@@ -317,7 +323,7 @@ def read_workbook(path: str, data: bytes | None = None) -> Assay:
 def read_workbook_reference(path: str, data: bytes | None = None) -> Assay:
     """:func:`read_workbook` by openpyxl alone (the reference the lean reader is tested against)."""
     data = read_bytes(path) if data is None else data
-    _check_archive(data, path)
+    _check_archive(data, path).close()
     return _read_book(_open_workbook(data, path), path, data)
 
 
@@ -325,8 +331,7 @@ def read_workbook_lean(path: str, data: bytes | None = None) -> Assay:
     """:func:`read_workbook` by the lean reader alone (raises :class:`~assaycut.io.xlsxlean.Unusual` where it
     does not read the file; for tests)."""
     data = read_bytes(path) if data is None else data
-    _check_archive(data, path)
-    return _read_book(_open_lean(data), path, data)
+    return _read_book(_open_lean(_check_archive(data, path)), path, data)
 
 
 def _read_book(wb, path: str, data: bytes) -> Assay:

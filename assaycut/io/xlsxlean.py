@@ -4,7 +4,7 @@ It parses the few parts the assay reader needs (the package manifest, the workbo
 relationships, the shared strings, the worksheets' ``sheetData``) with expat directly, and hands each sheet's
 rows on exactly as openpyxl's read-only sheet parser yields them (``(row number, [{"column", "value"}])``),
 so that every check on them (row order, size limits, cell values) stays in one place,
-:func:`assaycut.io.workbook._rows`.  It is about five times faster than openpyxl on a demo workbook.
+:func:`assaycut.io.workbook._rows`.  It reads a demo workbook in about 2.4 ms where openpyxl takes 6.4.
 
 It reads only what it understands.  Anything else raises :class:`Unusual`, and the caller reads the file with
 openpyxl instead (the reference reader, which then reads it or refuses it with its own message): any XML
@@ -62,9 +62,9 @@ def _parser(start, end=None, chars=None):
     return p
 
 
-def _parse(p, src: bytes) -> None:
+def _parse(p, src: bytes, final: bool = True) -> None:
     try:
-        p.Parse(src, True)
+        p.Parse(src, final)
     except expat.ExpatError as exc:
         raise Unusual(f"XML: {exc}") from None
 
@@ -345,10 +345,7 @@ def _sheet_rows(src: bytes, strings: list[str], date_styles: frozenset):
 
     p = _parser(start, end, chars)
     for k in range(0, max(len(src), 1), _CHUNK):  # rows handed on as they are parsed: the caller's limits on
-        try:                                     # rows and cells stop a huge sheet early, as with openpyxl
-            p.Parse(src[k:k + _CHUNK], k + _CHUNK >= len(src))
-        except expat.ExpatError as exc:
-            raise Unusual(f"XML: {exc}") from None
+        _parse(p, src[k:k + _CHUNK], k + _CHUNK >= len(src))  # rows and cells stop a huge sheet early
         yield from rows
         rows.clear()
 

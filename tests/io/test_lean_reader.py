@@ -22,7 +22,7 @@ from assaycut.io.workbook import (
     read_workbook_reference,
 )
 from assaycut.io.xlsxlean import Unusual
-from tests.corpus import CASES, rezip
+from tests.corpus import CASES, _sub, rezip
 from tests.helpers import base_sheets, write_book
 
 
@@ -35,8 +35,10 @@ def _outcome(fn, path: Path):
 
 def _sheet_rows(path: Path, lean: bool) -> dict:
     data = path.read_bytes()
-    _check_archive(data, str(path))
-    wb = _open_lean(data) if lean else _open_workbook(data, str(path))
+    z = _check_archive(data, str(path))
+    if not lean:
+        z.close()
+    wb = _open_lean(z) if lean else _open_workbook(data, str(path))
     try:
         return {name: _rows(wb[name], SourceLocation(str(path), name)) for name in wb.sheetnames}
     finally:
@@ -143,13 +145,6 @@ def test_the_test_assay_written_by_openpyxl_reads_alike(tmp_path):
     _same_rows(p)
 
 
-def _sub(old: bytes, new: bytes):
-    def fn(x: bytes) -> bytes:
-        assert old in x, old
-        return x.replace(old, new, 1)
-    return fn
-
-
 def test_hand_edited_strings_and_cells_read_as_the_reference_reads_them(tmp_path):
     p = _xlsxwriter_book(tmp_path / "book.xlsx")  # XlsxWriter writes shared strings (openpyxl inline ones)
     with zipfile.ZipFile(p) as z:
@@ -230,7 +225,7 @@ def test_rows_are_handed_on_as_parsed_so_the_limits_stop_a_huge_sheet_early(tmp_
     many = b"".join(b'<row r="%d"><c r="A%d"><v>1</v></c></row>' % (r, r) for r in range(100, 100 + 20_000))
     rezip(p, {"xl/worksheets/sheet2.xml": lambda x: x.replace(b"</sheetData>", many)})  # then damaged: no end
     data = p.read_bytes()
-    wb = _open_lean(data)
+    wb = _open_lean(_check_archive(data, str(p)))
     rows = wb["second sheet"].rows()
     assert next(rows)[0] == 1  # the first row, before the damage far below is met
     with pytest.raises(Unusual):
