@@ -40,13 +40,11 @@ from .layout import (
     TEMP_COLUMNS,
     UNIT_SUFFIX,
 )
-from .xlsxlean import LeanBook, LeanSheet, Unusual
 
 
-def _check_archive(data: bytes, path: str) -> zipfile.ZipFile:
+def _check_archive(data: bytes, path: str) -> None:
     """The checks on the zip archive before any of its XML is read: a zip with xl/workbook.xml, no part
-    above :data:`MAX_MEMBER_BYTES` unpacked and all of them within :data:`MAX_UNPACKED_BYTES`.  Returns the
-    archive, open (the caller closes it)."""
+    above :data:`MAX_MEMBER_BYTES` unpacked and all of them within :data:`MAX_UNPACKED_BYTES`."""
     from openpyxl.xml import DEFUSEDXML
 
     if not DEFUSEDXML:
@@ -72,36 +70,18 @@ def _check_archive(data: bytes, path: str) -> zipfile.ZipFile:
         if total > MAX_UNPACKED_BYTES:
             raise InputError(f"the workbook unpacks to {total / 1e6:.0f} MB; assaycut reads workbooks up to "
                              f"{MAX_UNPACKED_BYTES / 1e6:.0f} MB unpacked", file=path)
-    except BaseException:
+    finally:
         z.close()
-        raise
-    return z
-
-
-def _open_lean(z: zipfile.ZipFile):
-    """The workbook by the lean reader (:mod:`assaycut.io.xlsxlean`) from the archive :func:`_check_archive`
-    opened (closed with the workbook, or here on a failure), or :class:`~assaycut.io.xlsxlean.Unusual` when it
-    does not read it."""
-    try:
-        key, known = _stylesheet(z)
-        if key is not None and known is None:
-            raise Unusual("a stylesheet not read before")
-        wb = LeanBook(z, known[0] if known else frozenset())
-    except BaseException:
-        z.close()
-        raise
-    wb.assaycut_budget = _Budget()
-    return wb
 
 
 def _open_workbook(data: bytes, path: str):
-    """The workbook by openpyxl (the reference reader), after :func:`_check_archive`."""
+    """The workbook by openpyxl's public reader (``openpyxl.load_workbook``, read-only, formulas kept as
+    formulas, no external links), after :func:`_check_archive`; its sheets are parsed row by row by
+    :func:`_rows`."""
+    from openpyxl import load_workbook
+
     try:
-        reader = _reader_class()(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
-        reader.read()
-        wb = reader.wb
-        wb.assaycut_budget = _Budget()
-        return wb
+        wb = load_workbook(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
     except InputError:
         raise
     except Exception as exc:  # openpyxl and defusedxml raise many types; all mean "unreadable"
@@ -114,81 +94,16 @@ def _open_workbook(data: bytes, path: str):
                              "not expand XML entities", file=path) from None
         raise InputError(f"not a readable .xlsx workbook ({chain[-1]}); save it again from a spreadsheet program "
                          f"as .xlsx", file=path) from None
+    wb.assaycut_budget = _Budget()
+    return wb
 
 
-def _reader_class():
-    """openpyxl's workbook reader (read-only, as ``openpyxl.load_workbook`` uses it), except that its worksheets
-    do not parse their declared ``<dimension>`` on opening: :func:`_rows` never uses it (it reads every row
-    present), and parsing it cost about a fifth of reading a demo workbook."""
-    from openpyxl.reader.excel import ExcelReader
-    from openpyxl.worksheet._read_only import ReadOnlyWorksheet
-
-    class Sheet(ReadOnlyWorksheet):
-        def _get_size(self):
-            self._max_row = self._max_column = self._min_row = self._min_column = None
-
-    class Reader(ExcelReader):
-        def read(self):
-            # ExcelReader.read's steps (a ValueError means unreadable XML, as there), with the stylesheet's
-            # date formats remembered by content (:func:`_styles`) and the lighter worksheets below
-            self.read_manifest()
-            self.read_strings()
-            self.read_workbook()
-            self.read_properties()
-            self.read_custom()
-            self.read_theme()
-            _styles(self.archive, self.wb)
-            self.read_worksheets()
-            self.parser.assign_names()
-
-        def read_worksheets(self):
-            for sheet, rel in self.parser.find_sheets():
-                if rel.target not in self.valid_files:
-                    continue
-                if "chartsheet" in rel.Type:
-                    self.read_chartsheet(sheet, rel)
-                    continue
-                ws = Sheet(self.wb, sheet.name, rel.target, self.shared_strings)
-                ws.sheet_state = sheet.state
-                self.wb._sheets.append(ws)
-
-    return Reader
-
-
-_STYLE_FORMATS: dict[bytes, tuple[frozenset, frozenset]] = {}
-"""The date and time-interval cell formats of stylesheets read before, by the SHA-256 of xl/styles.xml (at
-most 64): a batch of workbooks written by one program shares one stylesheet."""
-
-
-def _stylesheet(archive) -> tuple[bytes | None, tuple[frozenset, frozenset] | None]:
-    """The key of the archive's xl/styles.xml in :data:`_STYLE_FORMATS` (None without one) and the formats
-    remembered under it (None when not read before)."""
-    import hashlib
-
-    try:
-        src = archive.read("xl/styles.xml")
-    except KeyError:
-        return None, None
-    key = hashlib.sha256(src).digest()
-    return key, _STYLE_FORMATS.get(key)
-
-
-def _styles(archive, wb) -> None:
-    """Set the workbook's date and time-interval cell formats (all the sheet parser needs of its styles) from
-    xl/styles.xml: parsed by openpyxl the first time a stylesheet is seen (so a damaged or entity-declaring one
-    is refused as before), remembered by its content after that."""
-    from openpyxl.styles.stylesheet import apply_stylesheet
-
-    key, known = _stylesheet(archive)
-    if key is None:
-        return
-    if known is None:
-        apply_stylesheet(archive, wb)
-        if len(_STYLE_FORMATS) >= 64:
-            _STYLE_FORMATS.clear()
-        _STYLE_FORMATS[key] = (frozenset(wb._date_formats), frozenset(wb._timedelta_formats))
-        return
-    wb._date_formats, wb._timedelta_formats = set(known[0]), set(known[1])
+OPENPYXL_PARSER_NAMES = ("openpyxl.worksheet._reader.WorkSheetParser", "ReadOnlyWorksheet._get_source",
+                         "ReadOnlyWorksheet._shared_strings", "Workbook._date_formats",
+                         "Workbook._timedelta_formats")
+"""The private openpyxl names :func:`_rows` needs (openpyxl is pinned below 3.2 for them; a test fails if one
+moves).  The public row iterator cannot serve: it drops a repeated row silently and pads every row to its
+last cell, so neither the row-order check nor the column bound could be kept through it."""
 
 
 class _Budget:
@@ -204,11 +119,9 @@ def _rows(ws, loc: SourceLocation, budget: _Budget | None = None):
     The sheet's XML is parsed row by row without trusting its declared ``<dimension>`` (a forged one would
     pad every row to 16,384 columns, an understated one would drop rows): every row present is read, rows
     must come in increasing order without repeats, at most :data:`MAX_COLUMNS` columns, and the workbook's
-    cells count against :data:`MAX_CELLS`.  Damaged XML is one error naming the sheet and row.  A sheet of
-    the lean reader hands on the same rows as openpyxl's parser (its own refusals go to the caller)."""
+    cells count against :data:`MAX_CELLS`.  Damaged XML is one error naming the sheet and row.  The rows
+    come from openpyxl's sheet parser (:data:`OPENPYXL_PARSER_NAMES`)."""
     budget = budget or getattr(ws.parent, "assaycut_budget", None) or _Budget()
-    if isinstance(ws, LeanSheet):
-        return _gather(ws.rows(), loc, budget, [0])
     from openpyxl.worksheet._reader import WorkSheetParser
 
     wb = ws.parent
@@ -310,32 +223,12 @@ def read_workbook(path: str, data: bytes | None = None) -> Assay:
         With file, sheet, row and column of the first problem found.
     """
     data = read_bytes(path) if data is None else data
-    z = _check_archive(data, path)
-    try:  # the lean reader where it reads the file; the reference reader otherwise, and for every refusal
-        return _read_book(_open_lean(z), path, data)
-    except MemoryError:
-        raise
-    except Exception:  # noqa: BLE001 - Unusual, a refusal, or anything else the lean reader meets
-        pass
+    _check_archive(data, path)
     return _read_book(_open_workbook(data, path), path, data)
-
-
-def read_workbook_reference(path: str, data: bytes | None = None) -> Assay:
-    """:func:`read_workbook` by openpyxl alone (the reference the lean reader is tested against)."""
-    data = read_bytes(path) if data is None else data
-    _check_archive(data, path).close()
-    return _read_book(_open_workbook(data, path), path, data)
-
-
-def read_workbook_lean(path: str, data: bytes | None = None) -> Assay:
-    """:func:`read_workbook` by the lean reader alone (raises :class:`~assaycut.io.xlsxlean.Unusual` where it
-    does not read the file; for tests)."""
-    data = read_bytes(path) if data is None else data
-    return _read_book(_open_lean(_check_archive(data, path)), path, data)
 
 
 def _read_book(wb, path: str, data: bytes) -> Assay:
-    """The assay from an opened workbook (either reader's), closed after."""
+    """The assay from an opened workbook, closed after."""
     import hashlib
 
     try:

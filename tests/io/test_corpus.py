@@ -9,6 +9,7 @@ import pytest
 from typer.testing import CliRunner
 
 from assaycut.cli import app
+from assaycut.errors import AssaycutError
 from tests.corpus import CASES
 from tests.helpers import sha256
 
@@ -40,3 +41,29 @@ def test_corpus_case(tmp_path, monkeypatch, name, build, expect):
         assert lines[0].startswith("assaycut: error: ")
         assert re.search(expect, lines[0]), lines[0]
     assert {str(p): sha256(p) for p in inputs} == before
+
+
+def _outcome(path):
+    import pickle
+
+    from assaycut.io import load_assay
+    try:
+        return "ok", pickle.dumps(load_assay(str(path)))
+    except AssaycutError as e:
+        return "refused", str(e)
+
+
+def test_a_workbook_reads_the_same_whatever_was_read_before(tmp_path):
+    """The reader keeps no state between files: every .xlsx of the corpus gives the same assay or the same
+    refusal read in corpus order and in reverse order (a reader that remembered stylesheets once read a file
+    differently after another with the same stylesheet)."""
+    paths = []
+    for name, build, _ in CASES:
+        d = tmp_path / name
+        d.mkdir()
+        _, files = build(d)
+        paths += [p for p in files if str(p).endswith(".xlsx")]
+    assert len(paths) > 40
+    forward = [_outcome(p) for p in paths]
+    backward = [_outcome(p) for p in reversed(paths)][::-1]
+    assert forward == backward

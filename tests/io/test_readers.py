@@ -318,3 +318,29 @@ def test_understated_dimension_loses_no_row(good_book, tmp_path):
     np.testing.assert_array_equal(a.curves[0].percent, b.curves[0].percent)
     np.testing.assert_array_equal(a.curves[0].temp_c, b.curves[0].temp_c)
     assert a.curves[0].percent.size == 7
+
+
+def test_openpyxl_private_parser_names_still_there():
+    """The reader needs openpyxl's sheet parser (row numbers, repeated rows) through the private names of
+    OPENPYXL_PARSER_NAMES; pyproject pins openpyxl below 3.2 for them.  This fails as soon as one moves."""
+    import importlib
+    from pathlib import Path
+
+    from openpyxl import load_workbook
+    from assaycut.io.workbook import OPENPYXL_PARSER_NAMES
+
+    parser_cls = getattr(importlib.import_module("openpyxl.worksheet._reader"), "WorkSheetParser")
+    demo = Path(__file__).parents[2] / "assays_demo" / "selkie_light.xlsx"
+    wb = load_workbook(demo, read_only=True, data_only=False, keep_links=False)
+    try:
+        ws = wb["distillation"]
+        for name in OPENPYXL_PARSER_NAMES[1:]:
+            owner, attr = name.split(".")
+            assert hasattr(ws if owner == "ReadOnlyWorksheet" else wb, attr), name
+        with ws._get_source() as src:
+            rows = list(parser_cls(src, ws._shared_strings, data_only=False, epoch=wb.epoch,
+                                   date_formats=wb._date_formats, timedelta_formats=wb._timedelta_formats).parse())
+    finally:
+        wb.close()
+    idx, cells = rows[0]
+    assert idx == 1 and {"column", "value"} <= set(cells[0])
