@@ -51,11 +51,16 @@ def test_exact_at_nodes_monotone_and_no_overshoot(tv):
 @settings(max_examples=200, deadline=None)
 @given(monotone_curve(allow_flat=False), st.floats(0.0, 1.0))
 def test_inverse_round_trip(tv, frac):
-    # Identity required by the curve model: T(V(T)) = T within 1e-6 °C where V rises strictly.
+    # Identity required by the curve model: T(V(T)) = T where V rises strictly, to the problem's conditioning:
+    # V(T) carries a rounding error of a few ulp of the values, which the inverse turns into an error in T of
+    # that over the local slope dV/dT (large near a nearly flat stretch); 1e3 ulp of slack on top of 1e-9 °C.
     t, v = tv
     p = Pchip(t, v)
     tq = t[0] + frac * (t[-1] - t[0])
-    assert abs(float(p.inverse(p(tq))) - tq) < 1e-6
+    h = 1e-7 * (t[-1] - t[0])
+    slope = float(p(min(tq + h, t[-1])) - p(max(tq - h, t[0]))) / (min(tq + h, t[-1]) - max(tq - h, t[0]))
+    bound = 1e-9 + 1e3 * np.finfo(float).eps * float(np.max(np.abs(v))) / max(slope, 1e-300)
+    assert abs(float(p.inverse(p(tq))) - tq) <= bound
 
 
 def test_flat_step_stays_flat():
