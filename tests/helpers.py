@@ -87,3 +87,20 @@ def cuts_of(assay):
     from assaycut.yields import run_yields
 
     return run_yields(assay, default_cut_set()).cuts.set_index("name")
+
+
+def reference_inverse(s, yq):
+    """The reference inverse of one spline: hermite_solve (bisection-guarded Newton) on the segment found by a
+    search of the node values, left end of flat steps; what the fast inverse is held to."""
+    import numpy as np
+
+    from assaycut.model.spline import hermite_solve
+
+    raw = np.asarray(yq, dtype=float)
+    x, y, d = s.x, s.y, s.d
+    q = np.clip(np.nan_to_num(raw, nan=y[0]), y[0], y[-1])
+    i = np.clip(np.searchsorted(y, q, side="left") - 1, 0, x.size - 2)
+    h = x[i + 1] - x[i]
+    t = hermite_solve(y[i], y[i + 1], h * d[i], h * d[i + 1], q)
+    out = np.where(q == y[i + 1], x[i + 1], x[i] + t * h)
+    return np.where(np.isnan(raw), np.nan, np.where(q == y[i], x[i], out))

@@ -10,7 +10,7 @@ from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
 from .assay import Assay
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
-from .spline import Pchip, hermite_combine, hermite_integral_basis, segment_integrals, slopes_on, slopes_on_rows
+from .spline import Pchip, hermite_combine, hermite_integral_basis, search_rows, segment_integrals, slopes_on
 from .steps import Need, run_alone
 from .tbp_curve import CurveTempNeed, TbpCurve
 
@@ -90,25 +90,15 @@ class MeanMatchNeed(Need):
         self.tol, self.iterations, self.floor = tol, iterations, floor
 
     def alone(self):
-        """(best node values, their PCHIP slopes, their cumulative segment integrals)."""
-        y = self.y0.copy()
-        best, best_err = None, np.inf
-        means = _interval_means(self.x, self.a, self.b)
-        is_cut, floor, tol = self.is_cut, self.floor, self.tol
-        for _ in range(self.iterations):
-            m, d, cum = means(y)
-            err = self.target - m
-            worst = float(np.max(np.abs(err))) if err.size else 0.0
-            if worst >= 0.95 * best_err:  # no longer improving
-                break
-            best, best_err = (y.copy(), d, cum), worst
-            if worst < tol:
-                break
-            y[is_cut] = y[is_cut] + err if floor is None else np.maximum(y[is_cut] + err, floor)
-        if best is None:  # no iteration at all
-            d = slopes_on(self.x)(y)
-            best = (y, d, _cumulative(self.x, y, d))
-        return best
+        """(best node values, their PCHIP slopes, their cumulative segment integrals): the problem as a batch of
+        one (:func:`mean_match_arrays`)."""
+        if self.iterations < 1:  # no iteration at all
+            d = slopes_on(self.x)(self.y0)
+            return self.y0.copy(), d, _cumulative(self.x, self.y0, d)
+        best, d, cum = mean_match_arrays(self.x[None, :], self.y0[None, :], self.is_cut, self.a[None, :],
+                                         self.b[None, :], self.target[None, :], np.array([self.tol]),
+                                         self.iterations, self.floor)
+        return best[0], d[0], cum[0]
 
     @classmethod
     def together(cls, needs):
@@ -159,7 +149,10 @@ def mean_match_arrays(x, y, is_cut, a, b, target, tol, iterations: int, floor):
         err = target - m
         worst = np.max(np.abs(err), axis=1) if err.shape[1] else np.zeros(y.shape[0])
         active &= ~(worst >= 0.95 * best_err)  # no longer improving: keeps its best
-        best[active], best_d[active], best_cum[active] = y[active], d[active], cum[active]
+        keep = active[:, None]
+        np.copyto(best, y, where=keep)
+        np.copyto(best_d, d, where=keep)
+        np.copyto(best_cum, cum, where=keep)
         best_err = np.where(active, worst, best_err)
         active &= ~(worst < tol)
         if not active.any():
@@ -169,36 +162,6 @@ def mean_match_arrays(x, y, is_cut, a, b, target, tol, iterations: int, floor):
     return best, best_d, best_cum
 
 
-def _interval_means(x: np.ndarray, a: np.ndarray, b: np.ndarray):
-    """A function y -> (mean of the PCHIP through (x, y) over each [a, b] (held flat beyond the end nodes), its
-    slopes, its cumulative segment integrals).
-
-    The same exact integral as :meth:`Pchip.integral`, with the interval ends located once, since only the
-    node values change between the iterations of :func:`property_spline`.
-    """
-    h = np.diff(x)
-
-    def locate(q):
-        qc = np.clip(q, x[0], x[-1])
-        i = np.clip(np.searchsorted(x, qc, side="right") - 1, 0, x.size - 2)
-        t = (qc - x[i]) / h[i]
-        return i, t, np.minimum(q - x[0], 0.0), np.maximum(q - x[-1], 0.0)
-
-    # the interval ends' segments and integral weights, once (segment_antiderivative's arithmetic, pre-split)
-    ends = [(i, hermite_integral_basis(t), h[i], below, above) for i, t, below, above in (locate(a), locate(b))]
-    width = b - a
-    slopes = slopes_on(x)
-
-    def means(y):
-        d = slopes(y)
-        cum = np.concatenate([[0.0], np.cumsum(segment_integrals(h, y, d))])
-        anti = [cum[i] + hi * hermite_combine(w, y[i], y[i + 1], hi * d[i], hi * d[i + 1]) + below * y[0]
-                + above * y[-1] for i, w, hi, below, above in ends]
-        return (anti[1] - anti[0]) / width, d, cum
-
-    return means
-
-
 def _cumulative(x, y, d):
     """Cumulative segment integrals of the PCHIP (x, y, d), from 0 at x[0]."""
     return np.concatenate([[0.0], np.cumsum(segment_integrals(x[1:] - x[:-1], y, d))])
@@ -206,30 +169,36 @@ def _cumulative(x, y, d):
 
 
 def _interval_means_rows(x: np.ndarray, a: np.ndarray, b: np.ndarray):
-    """:func:`_interval_means` row-wise: x (R, n) nodes, a and b (R, k) intervals; y (R, n) -> means (R, k),
-    slopes and cumulative integrals (R, n), each row the same arithmetic as the one-spline function."""
+    """A function y -> (mean of the PCHIP through (x, y) over each [a, b] (held flat beyond the end nodes), its
+    slopes, its cumulative segment integrals), one spline per row: x (R, n) nodes, a and b (R, k) intervals;
+    y (R, n) -> means (R, k), slopes and cumulative integrals (R, n).
+
+    The exact integral of :meth:`Pchip.integral`, with the interval ends located once, since only the node
+    values change between the iterations of :func:`property_spline`.
+    """
     h = np.diff(x, axis=1)
     rows = np.arange(x.shape[0])[:, None]
     n = x.shape[1]
-
-    def locate(q):
-        qc = np.clip(q, x[:, :1], x[:, -1:])
-        i = np.clip((qc[:, :, None] >= x[:, None, :]).sum(axis=2) - 1, 0, n - 2)  # searchsorted, side right
-        hi = h[rows, i]
-        t = (qc - x[rows, i]) / hi
-        return i, t, hi, np.minimum(q - x[:, :1], 0.0), np.maximum(q - x[:, -1:], 0.0)
-
-    ends = [(i, hermite_integral_basis(t), hi, below, above) for i, t, hi, below, above in (locate(a), locate(b))]
+    k = a.shape[1]
+    q = np.concatenate([a, b], axis=1)  # both ends of every interval, located once
+    qc = np.clip(q, x[:, :1], x[:, -1:])
+    i = np.clip(search_rows(x, qc, "right") - 1, 0, n - 2)
+    hi = h[rows, i]
+    w = hermite_integral_basis((qc - x[rows, i]) / hi)
+    below, above = np.minimum(q - x[:, :1], 0.0), np.maximum(q - x[:, -1:], 0.0)
+    at = (rows * n + i).ravel()  # flat positions of each end's left node
     width = b - a
-    slopes = slopes_on_rows(x)
+    slopes = slopes_on(x)
 
     def means(y):
         d = slopes(y)
         cum = np.concatenate([np.zeros((y.shape[0], 1)), np.cumsum(segment_integrals(h, y, d), axis=1)], axis=1)
-        anti = [cum[rows, i] + hi * hermite_combine(w, y[rows, i], y[rows, i + 1], hi * d[rows, i],
-                                                    hi * d[rows, i + 1]) + below * y[:, :1] + above * y[:, -1:]
-                for i, w, hi, below, above in ends]
-        return (anti[1] - anti[0]) / width, d, cum
+        yf, df = y.ravel(), d.ravel()
+        y0, y1 = yf[at].reshape(q.shape), yf[at + 1].reshape(q.shape)
+        d0, d1 = df[at].reshape(q.shape), df[at + 1].reshape(q.shape)
+        anti = (cum.ravel()[at].reshape(q.shape) + hi * hermite_combine(w, y0, y1, hi * d0, hi * d1)
+                + below * y[:, :1] + above * y[:, -1:])
+        return (anti[:, k:] - anti[:, :k]) / width, d, cum
 
     return means
 

@@ -30,7 +30,7 @@ from .assay import SG_RANGE, Assay, validate_assay
 from .crude import AT_NODE_C
 from .distributions import mean_match_arrays
 from .lightends import GAS_RANGE_MAX_C, convert_basis, find_component
-from .spline import hermite_basis, hermite_combine, segment_antiderivative, slopes_on_rows
+from .spline import Pchip, pad_nodes, slopes_on
 from .tbp_curve import END_CAP_C, END_FRACTION, LIGHT_ENDS_TOL_PCT, METHANE_NBP_C, STEP_C
 
 
@@ -82,14 +82,13 @@ class DrawRows:
     ----------
     index : numpy.ndarray
         The draws' rows in the :class:`DrawValues`.
-    curve : (numpy.ndarray, numpy.ndarray, numpy.ndarray, numpy.ndarray)
-        TBP curve nodes: TBP [°C], vol % distilled [vol %], slopes [vol %/°C], each (R, nodes), and each row's
-        node count (the rows past it padded as the library engine pads them).
+    curve : Pchip
+        vol % distilled against TBP [°C], one row per draw (rows padded past their own nodes).
     safe_lo, safe_hi : numpy.ndarray
         The range where the curve does not depend on its extension (:class:`~assaycut.model.tbp_curve.TbpCurve`),
         (R,). [vol %]
-    sg_dist, sulfur_dist : (numpy.ndarray, numpy.ndarray, numpy.ndarray)
-        Density against vol % and sulfur against wt % distilled: nodes [%], values [-] / [wt %], slopes.
+    sg_dist, sulfur_dist : Pchip
+        Density [-] against vol % and sulfur [wt %] against wt % distilled, one row per draw.
     sg, sulfur_wt_pct : numpy.ndarray
         Whole crude, (R,). [-], [wt %]
     on_extension : numpy.ndarray
@@ -97,11 +96,11 @@ class DrawRows:
     """
 
     index: np.ndarray
-    curve: tuple
+    curve: Pchip
     safe_lo: np.ndarray
     safe_hi: np.ndarray
-    sg_dist: tuple
-    sulfur_dist: tuple
+    sg_dist: Pchip
+    sulfur_dist: Pchip
     sg: np.ndarray
     sulfur_wt_pct: np.ndarray
     on_extension: np.ndarray
@@ -383,14 +382,14 @@ def _curve(live: _Live, assay: Assay, le: _LightEnds | None, tail: bool, front: 
         live.only(~(live.T[:, 0] < GAS_RANGE_MAX_C))
     if live.n == 0:
         return False
-    live.D = slopes_on_rows(live.T)(live.V)
+    live.D = slopes_on(live.T)(live.V)
     measured_lo = np.where(live.placed | (live.v[:, 0] == 0.0), 0.0, live.v[:, 0])
     live.safe_lo = live.v[:, 1] if front else measured_lo
     live.safe_hi = live.v[:, -2] if tail else live.v[:, -1]
     nc = assay.narrow_cuts
     ends = np.concatenate([nc.start_c, nc.end_c])
     open_end = np.isnan(ends)
-    pos = _eval_rows(live.T, live.V, live.D, np.broadcast_to(np.where(open_end, 0.0, ends), (live.n, ends.size)))
+    pos = Pchip(live.T, live.V, live.D)(np.broadcast_to(np.where(open_end, 0.0, ends), (live.n, ends.size)))
     k = nc.start_c.size
     live.va = np.where(open_end[:k], 0.0, pos[:, :k])
     live.vb = np.where(open_end[k:], 100.0, pos[:, k:])
@@ -400,17 +399,13 @@ def _curve(live: _Live, assay: Assay, le: _LightEnds | None, tail: bool, front: 
 
 
 def _merge(subs: list[_Live]) -> _Live:
-    """The groups in one set again, their curves padded to one node count as the library engine pads them
-    (:class:`~assaycut.cutting.library.BatchPchip`: nodes 1, 2, ... °C past the last, its value held, slope 0)."""
+    """The groups in one set again, their curves padded to one node count as :class:`~assaycut.model.spline.Pchip`
+    pads rows (nodes 1, 2, ... °C past the last, its value held, slope 0)."""
     if len(subs) == 1:
         return subs[0]
     width = max(sub.T.shape[1] for sub in subs)
     for sub in subs:
-        extra = width - sub.T.shape[1]
-        if extra:
-            sub.T = np.concatenate([sub.T, sub.T[:, -1:] + np.arange(1, extra + 1)[None, :]], axis=1)
-            sub.V = np.concatenate([sub.V, np.repeat(sub.V[:, -1:], extra, axis=1)], axis=1)
-            sub.D = np.concatenate([sub.D, np.zeros((sub.n, extra))], axis=1)
+        sub.T, sub.V, sub.D = pad_nodes(sub.T, sub.V, sub.D, width)
     out = _Live(np.concatenate([sub.index for sub in subs]), subs[0].left)
     for k, v in vars(subs[0]).items():
         if isinstance(v, np.ndarray) and k != "index":
@@ -441,14 +436,13 @@ def _distributions(live: _Live, assay: Assay, le: _LightEnds | None) -> DrawRows
     sg_spline = _property_rows(live)
     if sg_spline is None:
         return None
-    live.sx, live.sy, live.sd, live.scum = sg_spline
-    factor = 100.0 * live.sg / _integral_rows(live.sx, live.sy, live.sd, live.scum)
-    live.sy, live.sd, live.scum = (z * factor[:, None] for z in (live.sy, live.sd, live.scum))
+    sg_dist = sg_spline.scaled(100.0 * live.sg / _integral_0_100(sg_spline))
+    live.sx, live.sy, live.sd, live.scum = sg_dist.X, sg_dist.Y, sg_dist.D, sg_dist.C  # kept row by row
     # sulfur: narrow-cut sulfur at mid-weight %, light ends below the first cut carrying none
     mids = live.le_mid if placed else np.zeros((live.n, 0))
     q = np.concatenate([live.va, live.vb, mids], axis=1)
-    a0 = _antiderivative_rows(live.sx, live.sy, live.sd, live.scum, np.zeros((live.n, 1)))
-    w = (_antiderivative_rows(live.sx, live.sy, live.sd, live.scum, q) - a0) / live.sg[:, None]
+    a0 = sg_dist.antiderivative(np.zeros((live.n, 1)))
+    w = (sg_dist.antiderivative(q) - a0) / live.sg[:, None]
     live.wa, live.wb, live.lew = w[:, :k], w[:, k:2 * k], w[:, 2 * k:]
     _most(live, np.isfinite(live.ncs) & (live.wb > live.wa))
     if live.n == 0:
@@ -463,21 +457,21 @@ def _distributions(live: _Live, assay: Assay, le: _LightEnds | None) -> DrawRows
     s_spline = _property_rows(live)
     if s_spline is None:
         return None
-    x, y, d, cum = s_spline
-    total = _integral_rows(x, y, d, cum) / 100.0
+    total = _integral_0_100(s_spline) / 100.0
     given = np.isfinite(live.sulfur)
     with np.errstate(divide="ignore", invalid="ignore"):
         factor = np.where(given, np.where(total > 0, live.sulfur / total, 1.0), 1.0)
     sulfur = np.where(given, live.sulfur, total)
-    return DrawRows(live.index, (live.T, live.V, live.D, live.lens), live.safe_lo, live.safe_hi,
-                    (live.sx, live.sy, live.sd), (x, y * factor[:, None], d * factor[:, None]), live.sg, sulfur,
+    return DrawRows(live.index, Pchip(live.T, live.V, live.D, last=live.lens - 1), live.safe_lo, live.safe_hi,
+                    Pchip(live.sx, live.sy, live.sd, live.scum), s_spline.scaled(factor), live.sg, sulfur,
                     live.on_ext)
 
 
 def _property_rows(live: _Live):
     """distributions.property_spline row-wise from live.lo, live.hi, live.val (the cuts) and live.fx, live.fy
-    (the points held): (x, y, slopes, cumulative integrals) of the rows kept (those whose nodes fall in the
-    most common order), or None when the spline would be one constant (the reference builder's)."""
+    (the points held): the splines (a :class:`~assaycut.model.spline.Pchip` of rows) of the rows kept (those
+    whose nodes fall in the most common order), or None when the spline would be one constant (the reference
+    builder's)."""
     mids = 0.5 * (live.lo + live.hi)
     x = np.concatenate([mids, live.fx], axis=1)
     order = np.argsort(x, axis=1, kind="stable")
@@ -504,40 +498,13 @@ def _property_rows(live: _Live):
     tol = 1e-7 * np.maximum(np.max(np.abs(live.val), axis=1), 1e-12)
     best, d, cum = mean_match_arrays(x, y0, is_cut, live.lo[:, cut_idx], live.hi[:, cut_idx],
                                       live.val[:, cut_idx], tol, 30, 0.0)
-    return x, best, d, cum
+    return Pchip(x, best, d, cum)
 
 
-def _locate_rows(x, q):
-    """Pchip._locate row-wise: (segment index, position in it) of q (R, m) on nodes x (R, n)."""
-    n = x.shape[1]
-    qc = np.clip(q, x[:, :1], x[:, -1:])
-    i = np.clip((qc[:, :, None] >= x[:, None, :]).sum(axis=2) - 1, 0, n - 2)  # searchsorted, side right
-    rows = np.arange(x.shape[0])[:, None]
-    h = x[rows, i + 1] - x[rows, i]
-    return rows, i, (qc - x[rows, i]) / h, h
-
-
-def _eval_rows(x, y, d, q):
-    """Pchip.__call__ row-wise (q without NaN)."""
-    rows, i, t, h = _locate_rows(x, q)
-    return hermite_combine(hermite_basis(t), y[rows, i], y[rows, i + 1], h * d[rows, i], h * d[rows, i + 1])
-
-
-def _antiderivative_rows(x, y, d, cum, q):
-    """Pchip.antiderivative row-wise: the integral from each row's first node to q (R, m)."""
-    below = np.minimum(q - x[:, :1], 0.0) * y[:, :1]
-    above = np.maximum(q - x[:, -1:], 0.0) * y[:, -1:]
-    rows, i, t, h = _locate_rows(x, q)
-    part = segment_antiderivative(t, h, y[rows, i], y[rows, i + 1], d[rows, i], d[rows, i + 1])
-    return cum[rows, i] + part + below + above
-
-
-def _integral_rows(x, y, d, cum):
-    """Pchip.integral(0, 100) row-wise, (R,)."""
-    ends = np.tile(np.array([[100.0, 0.0]]), (x.shape[0], 1))
-    both = np.concatenate([_antiderivative_rows(x, y, d, cum, ends[:, :1]),
-                           _antiderivative_rows(x, y, d, cum, ends[:, 1:])], axis=1)
-    return both[:, 0] - both[:, 1]
+def _integral_0_100(spline: Pchip) -> np.ndarray:
+    """Each row's integral from 0 to 100 % (R,)."""
+    n = spline.rows
+    return spline.integral(np.zeros((n, 1)), np.full((n, 1), 100.0))[:, 0]
 
 
 def _on_extension(live: _Live, nc) -> np.ndarray:

@@ -102,14 +102,14 @@ def pchip_slopes(x: np.ndarray, y: np.ndarray) -> np.ndarray:
     Parameters
     ----------
     x : numpy.ndarray
-        Strictly increasing abscissae, shape (n,), n >= 2. [any unit]
+        Strictly increasing abscissae, shape (n,) or one spline per row (R, n); n >= 2. [any unit]
     y : numpy.ndarray
-        Ordinates, shape (n,). [any unit]
+        Ordinates, the shape of x. [any unit]
 
     Returns
     -------
     numpy.ndarray
-        dy/dx at every node, shape (n,).  [unit of y / unit of x]
+        dy/dx at every node, the shape of x.  [unit of y / unit of x]
 
     Examples
     --------
@@ -123,182 +123,251 @@ def pchip_slopes(x: np.ndarray, y: np.ndarray) -> np.ndarray:
 
 def slopes_on(x: np.ndarray):
     """A function ``y -> pchip_slopes(x, y)`` for fixed abscissae, with the parts that depend on x alone
-    computed once (the same arithmetic, so the same slopes to the last bit): for a spline whose node values
-    are adjusted many times, as :func:`assaycut.model.distributions.property_spline` does.
+    computed once: for a spline whose node values are adjusted many times, as
+    :func:`assaycut.model.distributions.property_spline` does.  The one slope routine: a single spline (x of
+    shape (n,)) is a batch of one, and every row's slopes are that row's own arithmetic.
+
+    Fritsch & Carlson (1980) interior slopes in the weighted harmonic-mean form of Fritsch & Butland (1984):
+    d_i = (w1 + w2) / (w1 / m_{i-1} + w2 / m_i) with w1 = 2 h_i + h_{i-1}, w2 = h_i + 2 h_{i-1} where the
+    neighbouring secants m have one sign, else 0; one-sided three-point end slopes (Moler 2004, ch. 3).
 
     Parameters
     ----------
     x : numpy.ndarray
-        Strictly increasing abscissae, shape (n,), n >= 2. [any unit]
+        Strictly increasing abscissae, shape (n,) or (R, n), n >= 2. [any unit]
 
     Returns
     -------
     callable
-        y (shape (n,)) -> dy/dx at every node, shape (n,).
+        y (the shape of x) -> dy/dx at every node (the shape of x).
     """
     x = np.asarray(x, dtype=float)
-    return _slopes_with(x[1:] - x[:-1], x.size)
-
-
-def _slopes_with(h: np.ndarray, n: int):
-    """:func:`slopes_on` from the segment widths ``h`` (n - 1 of them)."""
-    h0, h1 = h[:-1], h[1:]
-    w1 = 2.0 * h1 + h0
-    w2 = h1 + 2.0 * h0
-    wsum = w1 + w2
-
-    def slopes(y):
-        m = (y[1:] - y[:-1]) / h
-        if n == 2:
-            return np.array([m[0], m[0]])
-        d = np.zeros(n)
-        m0, m1 = m[:-1], m[1:]
-        same = (np.sign(m0) * np.sign(m1)) > 0
-        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-            whmean = (w1 / m0 + w2 / m1) / wsum
-            d[1:-1] = np.where(same, 1.0 / np.where(same, whmean, 1.0), 0.0)
-        d[0] = _edge_slope(h[0], h[1], m[0], m[1])
-        d[-1] = _edge_slope(h[-1], h[-2], m[-1], m[-2])
-        return d
-
-    return slopes
-
-
-def slopes_on_rows(x: np.ndarray):
-    """:func:`slopes_on` for one spline per row: x of shape (R, n), n >= 2; the function maps y (R, n) to the
-    slopes (R, n), each row the same arithmetic as :func:`slopes_on` on that row (the end slopes'
-    limiting by selection instead of branches)."""
-    x = np.asarray(x, dtype=float)
-    h = np.diff(x, axis=1)
-    n = x.shape[1]
+    one = x.ndim == 1
+    x2 = x[None, :] if one else x
+    h = x2[:, 1:] - x2[:, :-1]
+    n = x2.shape[1]
     h0, h1 = h[:, :-1], h[:, 1:]
     w1 = 2.0 * h1 + h0
     w2 = h1 + 2.0 * h0
     wsum = w1 + w2
+    if n > 2:
+        h_end, h_next = h[:, _ENDS], h[:, _NEXT]
 
     def slopes(y):
-        m = np.diff(y, axis=1) / h
+        y = y[None, :] if one else y
+        m = (y[:, 1:] - y[:, :-1]) / h
         if n == 2:
-            return np.concatenate([m, m], axis=1)
-        d = np.zeros(y.shape)
-        m0, m1 = m[:, :-1], m[:, 1:]
-        same = (np.sign(m0) * np.sign(m1)) > 0
-        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-            whmean = (w1 / m0 + w2 / m1) / wsum
-            d[:, 1:-1] = np.where(same, 1.0 / np.where(same, whmean, 1.0), 0.0)
-        d[:, 0] = _edge_slope_rows(h[:, 0], h[:, 1], m[:, 0], m[:, 1])
-        d[:, -1] = _edge_slope_rows(h[:, -1], h[:, -2], m[:, -1], m[:, -2])
-        return d
+            d = np.concatenate([m, m], axis=1)
+        else:
+            d = np.zeros(y.shape)
+            m0, m1 = m[:, :-1], m[:, 1:]
+            same = (np.sign(m0) * np.sign(m1)) > 0
+            with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+                whmean = (w1 / m0 + w2 / m1) / wsum
+                d[:, 1:-1] = np.where(same, 1.0 / np.where(same, whmean, 1.0), 0.0)
+            d[:, _ENDS] = _edge_slope(h_end, h_next, m[:, _ENDS], m[:, _NEXT])  # both ends in one call
+        return d[0] if one else d
 
     return slopes
 
 
-def _edge_slope_rows(h0, h1, m0, m1):
-    """:func:`_edge_slope` element-wise."""
+_ENDS, _NEXT = [0, -1], [1, -2]
+"""The end segments of a spline and their neighbours (the first and last end slopes' three points)."""
+
+
+def _edge_slope(h0, h1, m0, m1):
+    """One-sided three-point end slope, limited so as to stay shape-preserving (element-wise)."""
     d = ((2.0 * h0 + h1) * m0 - h0 * m1) / (h0 + h1)
     limit = (np.sign(m0) != np.sign(m1)) & (np.abs(d) > np.abs(3.0 * m0))
     return np.where(np.sign(d) != np.sign(m0), 0.0, np.where(limit, 3.0 * m0, d))
 
 
-def _sign(v: float) -> float:
-    """numpy.sign of one float (NaN for NaN)."""
-    return float((v > 0) - (v < 0)) if v == v else v
+def search_rows(table: np.ndarray, q: np.ndarray, side: str) -> np.ndarray:
+    """Row-wise ``numpy.searchsorted``: for each row r, ``searchsorted(table[r], q[r], side)`` exactly.
 
+    ``table`` (R, w), each row non-decreasing and finite; ``q`` (R, m).  NaN sorts last, as in numpy.  A batch
+    of one is numpy's own search.  More rows are searched in one flat search of the rows laid end to end
+    (row r shifted by r times the span of all rows, each query clipped to one unit beyond its row's range,
+    which keeps its answer); that shift can round a query onto a neighbouring table value, so every answer
+    is then checked against its own row, table[r, j-1] < q <= table[r, j] ('left'; <, <= swapped for
+    'right'), and the rows with a wrong one are searched again alone.  Each row's answer is thus that row's
+    alone, whatever the other rows hold (an unchecked shifted search once made a curve's inverse depend on its
+    batch by up to 276 °C on flat steps).
 
-def _edge_slope(h0, h1, m0, m1):
-    """One-sided three-point end slope, limited so as to stay shape-preserving."""
-    h0, h1, m0, m1 = float(h0), float(h1), float(m0), float(m1)
-    d = ((2.0 * h0 + h1) * m0 - h0 * m1) / (h0 + h1)
-    if _sign(d) != _sign(m0):
-        return 0.0
-    if _sign(m0) != _sign(m1) and abs(d) > abs(3.0 * m0):
-        return 3.0 * m0
-    return d
+    Examples
+    --------
+    >>> search_rows(np.array([[0.0, 1.0, 1.0, 2.0], [5.0, 6.0, 7.0, 8.0]]), np.array([[1.0], [7.5]]), "left").tolist()
+    [[1], [3]]
+    """
+    q = np.where(np.isnan(q), np.inf, q)
+    if table.shape[0] == 1:
+        return np.searchsorted(table[0], q[0], side=side)[None, :]
+    rows, width = table.shape
+    lo, hi = table[:, :1], table[:, -1:]
+    span = float(np.max(hi) - np.min(lo)) + 10.0
+    off = np.arange(rows, dtype=float)[:, None] * span
+    flat = (table + off).ravel()
+    j = np.searchsorted(flat, (_clip(q, lo - 1.0, hi + 1.0) + off).ravel(), side=side).reshape(q.shape)
+    j = _clip(j - np.arange(rows)[:, None] * width, 0, width)
+    r = np.arange(rows)[:, None]
+    below = table[r, np.maximum(j - 1, 0)]
+    above = table[r, np.minimum(j, width - 1)]
+    if side == "left":
+        ok = ((j == 0) | (below < q)) & ((j == width) | (above >= q))
+    else:
+        ok = ((j == 0) | (below <= q)) & ((j == width) | (above > q))
+    for k in np.nonzero(~ok.all(axis=1))[0]:
+        j[k] = np.searchsorted(table[k], q[k], side=side)
+    return j
 
 
 class Pchip:
-    """A monotone cubic Hermite interpolant y(x) with exact integral and inverse.
+    """Monotone cubic Hermite interpolants y(x) with exact integrals and an exact inverse, one per row.
 
-    Outside [x[0], x[-1]] the value is held at the end values (no extrapolation).
+    The one spline of the project: a single spline is a batch of one.  Built from 1-D nodes it answers queries
+    of any shape with that shape; built from rows (R, n), or stacked from single splines (:meth:`stack`), it
+    answers row-wise: a query's first axis runs over the rows (a scalar, or a query whose first axis is not R,
+    is asked of every row).  Rows of different lengths are *padded*: nodes 1, 2, ... units past each row's last
+    node, its value held, slope 0, and each row stops at its own last node (``last``); padding keeps one
+    array per attribute and the arithmetic of every row its own (bisection search per row), so a spline
+    answers the same inside any batch as alone, to the rounding of its integral's last segment.
+
+    Outside [x[0], x[last]] the value is held at the end values (no extrapolation).
 
     Parameters
     ----------
     x : array_like
-        Strictly increasing nodes. [any unit]
+        Strictly increasing nodes, (n,) or (R, n). [any unit]
     y : array_like
-        Values at the nodes. [any unit]
+        Values at the nodes, the shape of x. [any unit]
+    d, cum : array_like, optional
+        Slopes and cumulative segment integrals already computed by the same construction
+        (:func:`slopes_on`, :func:`segment_integrals`), e.g. by an iteration that adjusted y; taken as given.
+    last : array_like of int, optional
+        Index of each row's last real node (rows padded past it); default the last column.
     """
 
-    __slots__ = ("x", "y", "d", "h", "_cum", "_inv")
+    __slots__ = ("X", "Y", "D", "H", "C", "lo", "hi", "single", "missing", "_tab")
 
-    def __init__(self, x, y):
-        x = np.asarray(x, dtype=float)
-        y = np.asarray(y, dtype=float)
-        if x.ndim != 1 or x.size < 2 or x.size != y.size:
-            raise ValueError("Pchip needs two or more nodes, x and y of equal length")
-        h = x[1:] - x[:-1]
-        if not (h > 0).all():
+    def __init__(self, x, y, d=None, cum=None, last=None):
+        X = np.asarray(x, dtype=float)
+        Y = np.asarray(y, dtype=float)
+        single = X.ndim == 1
+        if single:
+            X, Y = X[None, :], Y[None, :]
+        if X.ndim != 2 or X.shape[1] < 2 or X.shape != Y.shape:
+            raise ValueError("Pchip needs two or more nodes, x and y of equal shape")
+        H = X[:, 1:] - X[:, :-1]
+        if not (H > 0).all():
             raise ValueError("Pchip nodes must be strictly increasing")
-        self.x, self.y, self.h = x, y, h
-        self.d = _slopes_with(h, x.size)(y)
-        cum = np.empty(x.size)
-        cum[0] = 0.0
-        np.cumsum(segment_integrals(h, y, self.d), out=cum[1:])
-        self._cum = cum
-        self._inv = None
+        D = slopes_on(X)(Y) if d is None else np.asarray(d, dtype=float).reshape(X.shape)
+        if cum is None:
+            C = np.empty(X.shape)
+            C[:, 0] = 0.0
+            np.cumsum(segment_integrals(H, Y, D), axis=1, out=C[:, 1:])
+        else:
+            C = np.asarray(cum, dtype=float).reshape(X.shape)
+        self.X, self.Y, self.D, self.H, self.C = X, Y, D, H, C
+        self.lo = X[:, 0]
+        self.hi = X[:, -1] if last is None else X[np.arange(X.shape[0]), np.asarray(last)]
+        self.single = single
+        self.missing = np.zeros(X.shape[0], dtype=bool)
+        self._tab = None
 
     @classmethod
     def from_parts(cls, x, y, d, cum) -> "Pchip":
         """The interpolant through (x, y) from slopes ``d`` and cumulative segment integrals ``cum`` already
-        computed by the same construction (:func:`slopes_on`, :func:`segment_integrals`), e.g. by an iteration
-        that adjusted y; nothing is checked or recomputed."""
-        out = cls.__new__(cls)
-        out.x, out.y, out.d, out._cum = x, y, d, cum
-        out.h = x[1:] - x[:-1]
-        out._inv = None
+        computed by the same construction; nothing is recomputed."""
+        return cls(x, y, d, cum)
+
+    @classmethod
+    def stack(cls, splines: list) -> "Pchip":
+        """The splines (single ones, or None) as the rows of one, padded to the longest (see the class).  A
+        None row is a zero spline, flagged in ``missing``."""
+        real = [s if s is not None else Pchip([0.0, 1.0], [0.0, 0.0]) for s in splines]
+        lens = np.array([s.X.shape[1] for s in real])
+        width = int(lens.max())
+        padded = [pad_nodes(s.X, s.Y, s.D, width) for s in real]
+        X, Y, D = (np.concatenate([p[k] for p in padded]) for k in range(3))
+        out = cls(X, Y, D, last=lens - 1)
+        out.missing = np.array([s is None for s in splines])
         return out
 
-    def scaled(self, factor: float) -> "Pchip":
-        """The interpolant of ``factor`` x y (factor >= 0): the PCHIP construction is homogeneous in y, so its
-        slopes and integrals are this one's times the factor (equal to rebuilding from factor x y but for
-        rounding)."""
-        f = float(factor)
-        return Pchip.from_parts(self.x, self.y * f, self.d * f, self._cum * f)
+    @property
+    def x(self):
+        """The nodes: (n,) for a single spline, (R, n) for rows (padded ones included)."""
+        return self.X[0] if self.single else self.X
+
+    @property
+    def y(self):
+        """The node values, shaped as :attr:`x`."""
+        return self.Y[0] if self.single else self.Y
+
+    @property
+    def d(self):
+        """The node slopes, shaped as :attr:`x`."""
+        return self.D[0] if self.single else self.D
+
+    @property
+    def rows(self) -> int:
+        """Number of splines (1 for a single one)."""
+        return self.X.shape[0]
+
+    def scaled(self, factor) -> "Pchip":
+        """The interpolant of ``factor`` x y (factor >= 0, one, or one per row): the PCHIP construction is
+        homogeneous in y, so its slopes and integrals are this one's times the factor (equal to rebuilding from
+        factor x y but for rounding)."""
+        f = np.asarray(factor, dtype=float).reshape(-1, 1)
+        out = Pchip.__new__(Pchip)
+        out.X, out.H, out.lo, out.hi, out.single, out.missing = self.X, self.H, self.lo, self.hi, self.single, \
+            self.missing
+        out.Y, out.D, out.C, out._tab = self.Y * f, self.D * f, self.C * f, None
+        return out
 
     # -- evaluation -------------------------------------------------------------------------------------
-    def _locate(self, xq):
-        xq = _clip(np.asarray(xq, dtype=float), self.x[0], self.x[-1])
-        i = _clip(np.searchsorted(self.x, xq, side="right") - 1, 0, self.x.size - 2)
-        t = (xq - self.x[i]) / self.h[i]
-        return i, t
+    def _query(self, q):
+        """A query as (R, m) rows and the shape of the answer."""
+        q = np.asarray(q, dtype=float)
+        if self.single:
+            return q.reshape(1, -1), q.shape
+        if q.ndim == 0 or q.shape[0] != self.X.shape[0]:
+            q = np.broadcast_to(q, (self.X.shape[0],) + q.shape)
+        return q.reshape(self.X.shape[0], -1), q.shape
+
+    def _locate(self, q2):
+        qc = _clip(q2, self.lo[:, None], self.hi[:, None])
+        i = _clip(search_rows(self.X, qc, "right") - 1, 0, self.X.shape[1] - 2)
+        rows = np.arange(self.X.shape[0])[:, None]
+        h = self.H[rows, i]
+        return rows, i, (qc - self.X[rows, i]) / h, h
 
     def __call__(self, xq):
         """Value at ``xq`` (held constant beyond the end nodes; NaN in, NaN out)."""
-        i, t = self._locate(xq)
-        out = self._hermite(i, t)
-        nan = np.isnan(np.asarray(xq, dtype=float))
-        return np.where(nan, np.nan, out) if nan.any() else out
-
-    def _hermite(self, i, t):
-        return hermite_combine(hermite_basis(t), self.y[i], self.y[i + 1], self.h[i] * self.d[i],
-                               self.h[i] * self.d[i + 1])
+        q2, shape = self._query(xq)
+        rows, i, t, h = self._locate(q2)
+        out = hermite_combine(hermite_basis(t), self.Y[rows, i], self.Y[rows, i + 1], h * self.D[rows, i],
+                              h * self.D[rows, i + 1])
+        out = np.where(np.isnan(q2), np.nan, out)
+        return out.reshape(shape)
 
     def antiderivative(self, xq):
         """Integral of y from x[0] to ``xq`` (constant continuation outside the nodes). [y·x]"""
-        xq = np.asarray(xq, dtype=float)
-        below = np.minimum(xq - self.x[0], 0.0) * self.y[0]
-        above = np.maximum(xq - self.x[-1], 0.0) * self.y[-1]
-        i, t = self._locate(xq)
-        part = segment_antiderivative(t, self.h[i], self.y[i], self.y[i + 1], self.d[i], self.d[i + 1])
-        return self._cum[i] + part + below + above
+        q2, shape = self._query(xq)
+        below = np.minimum(q2 - self.lo[:, None], 0.0) * self.Y[:, :1]
+        above = np.maximum(q2 - self.hi[:, None], 0.0) * self.Y[:, -1:]
+        rows, i, t, h = self._locate(q2)
+        part = segment_antiderivative(t, h, self.Y[rows, i], self.Y[rows, i + 1], self.D[rows, i],
+                                      self.D[rows, i + 1])
+        return (self.C[rows, i] + part + below + above).reshape(shape)
 
     def integral(self, a, b):
         """Integral of y from ``a`` to ``b``. [y·x]"""
         a = np.asarray(a, dtype=float)
         b = np.asarray(b, dtype=float)
-        if a.ndim == 1 and a.shape == b.shape:  # both ends in one (element-wise) call: the same values
-            both = self.antiderivative(np.concatenate([b, a]))
-            return both[:b.size] - both[b.size:]
+        if a.ndim >= 1 and a.shape == b.shape:  # both ends in one (element-wise) call: the same values
+            both = self.antiderivative(np.concatenate([b, a], axis=-1))
+            m = b.shape[-1]
+            return both[..., :m] - both[..., m:]
         return self.antiderivative(b) - self.antiderivative(a)
 
     def inverse(self, yq):
@@ -308,83 +377,64 @@ class Pchip:
         the end nodes; NaN in, NaN out.  Fast and exact: a table of the interpolant at
         :data:`INVERSE_TABLE_STEPS` points per segment (made once) brackets the root within an eighth of its
         segment, and Newton steps on the segment's cubic from the linear guess inside that bracket reach
-        machine precision; any point not converged then is solved by :func:`hermite_solve` (the reference
-        method, :meth:`inverse_reference`).
+        machine precision; any point not converged then is solved by :func:`hermite_solve`, row by row.
+        Row r's answers depend on row r alone.
         """
-        raw = np.asarray(yq, dtype=float)
-        out = inverse_rows(self.x[None, :], self.y[None, :], self.h[None, :], self.d[None, :],
-                           raw.reshape(1, -1), self._table()[None, :])
-        return out.reshape(raw.shape)
+        q2, shape = self._query(yq)
+        Y, H, D, X = self.Y, self.H, self.D, self.X
+        lo, hi = Y[:, :1], Y[:, -1:]
+        q = _clip(np.where(np.isnan(q2), lo, q2), lo, hi)
+        ys = self.table()
+        k = INVERSE_TABLE_STEPS
+        j = _clip(search_rows(ys, q, "left") - 1, 0, ys.shape[1] - 2)
+        i = np.minimum(j // k, H.shape[1] - 1)
+        rows = np.arange(q.shape[0])[:, None]
+        hh = H[rows, i]
+        y0, y1 = Y[rows, i], Y[rows, i + 1]
+        m0, m1 = hh * D[rows, i], hh * D[rows, i + 1]
+        t = newton_on_segment(y0, y1, m0, m1, q, ys[rows, j], ys[rows, j + 1], (j - i * k) / k)
+        out = X[rows, i] + t * hh
+        out = np.where(q == y1, X[rows, i + 1], out)
+        out = np.where(np.isnan(q2), np.nan, np.where(q == y0, X[rows, i], out))
+        return out.reshape(shape)
 
-    def inverse_reference(self, yq):
-        """The reference inverse: :func:`hermite_solve` on the segment found by a search of the nodes (the
-        fast :meth:`inverse` is tested against it to 1e-9)."""
-        raw = np.asarray(yq, dtype=float)
-        q = np.clip(np.nan_to_num(raw, nan=self.y[0]), self.y[0], self.y[-1])
-        i = np.clip(np.searchsorted(self.y, q, side="left") - 1, 0, self.x.size - 2)
-        h = self.h[i]
-        t = hermite_solve(self.y[i], self.y[i + 1], h * self.d[i], h * self.d[i + 1], q)
-        x = self.x[i] + t * h
-        x = np.where(q == self.y[i + 1], self.x[i + 1], x)
-        return np.where(np.isnan(raw), np.nan, np.where(q == self.y[i], self.x[i], x))
-
-    def _table(self):
-        """The interpolant's values at :data:`INVERSE_TABLE_STEPS` points per segment and at the last node,
-        made once (the points themselves follow from the nodes)."""
-        if self._inv is None:
-            if not np.all(np.diff(self.y) >= 0):
+    def table(self) -> np.ndarray:
+        """Each row's values at :data:`INVERSE_TABLE_STEPS` points per segment and at its last node (the
+        inverse's bracket), made once; (R, (n - 1) x INVERSE_TABLE_STEPS + 1)."""
+        if self._tab is None:
+            if not (self.Y[:, 1:] >= self.Y[:, :-1]).all():
                 raise ValueError("inverse needs non-decreasing values")
-            self._inv = inverse_table(self.y, self.h, self.d)
-        return self._inv
+            self._tab = inverse_table(self.Y, self.H, self.D)
+        return self._tab
 
 
-def inverse_rows(x, y, h, d, yq, table=None):
-    """The fast inverse of :meth:`Pchip.inverse` for one spline per row: x, y, d of shape (R, n), h (R, n-1),
-    values sought ``yq`` (R, m); x [unit of x] where each row's spline reaches each value.
-
-    Row r's answers depend on row r alone (each row's bracket is found by its own search, every other step is
-    element-wise, and the rare points finished by the reference solve are finished row by row), so a spline
-    inverted with others gives the same values to the last bit as inverted alone: one spline is a batch of
-    one.  ``table``: the rows' :func:`inverse_table` when the caller keeps it.
-    """
-    raw = np.asarray(yq, dtype=float)
-    lo, hi = y[:, :1], y[:, -1:]
-    q = _clip(np.where(np.isnan(raw), lo, raw), lo, hi)
-    ys = inverse_table(y, h, d) if table is None else table
-    k = INVERSE_TABLE_STEPS
-    n = h.shape[1]
-    width = ys.shape[1]
-    j = np.empty(q.shape, dtype=np.intp)
-    for r in range(q.shape[0]):
-        j[r] = np.searchsorted(ys[r], q[r], side="left")
-    j = _clip(j - 1, 0, width - 2)
-    i = np.minimum(j // k, n - 1)
-    rows = np.arange(q.shape[0])[:, None]
-    hh = h[rows, i]
-    y0, y1 = y[rows, i], y[rows, i + 1]
-    m0, m1 = hh * d[rows, i], hh * d[rows, i + 1]
-    t = newton_on_segment(y0, y1, m0, m1, q, ys[rows, j], ys[rows, j + 1], (j - i * k) / k, rowwise=True)
-    out = x[rows, i] + t * hh
-    out = np.where(q == y1, x[rows, i + 1], out)
-    return np.where(np.isnan(raw), np.nan, np.where(q == y0, x[rows, i], out))
+def pad_nodes(x, y, d, width: int):
+    """Spline rows (R, n) padded to ``width`` nodes as :class:`Pchip` pads them: nodes 1, 2, ... units past the
+    last, its value held, slope 0.  Returns (x, y, d), each (R, width)."""
+    extra = width - x.shape[1]
+    if extra <= 0:
+        return x, y, d
+    step = np.arange(1, extra + 1)[None, :]
+    return (np.concatenate([x, x[:, -1:] + step], axis=1), np.concatenate([y, np.repeat(y[:, -1:], extra, axis=1)],
+            axis=1), np.concatenate([d, np.zeros((x.shape[0], extra))], axis=1))
 
 
 def inverse_table(y, h, d):
     """Values of cubic Hermite splines at :data:`INVERSE_TABLE_STEPS` evenly spaced points of every segment and
-    at the last node, along the last axis (one spline, or one per row), never falling (rounding must not make
-    the table fall): the bracket of the fast inverse.
+    at the last node, along the last axis (one spline per row), never falling (rounding must not make the
+    table fall): the bracket of :meth:`Pchip.inverse`.
 
     Parameters
     ----------
     y, d : numpy.ndarray
-        Node values and slopes, shape (..., n).
+        Node values and slopes, shape (R, n).
     h : numpy.ndarray
-        Segment widths, shape (..., n-1).
+        Segment widths, shape (R, n-1).
 
     Returns
     -------
     numpy.ndarray
-        Shape (..., (n-1) x INVERSE_TABLE_STEPS + 1).
+        Shape (R, (n-1) x INVERSE_TABLE_STEPS + 1).
     """
     k = INVERSE_TABLE_STEPS
     tt = np.arange(k) / k
@@ -394,13 +444,14 @@ def inverse_table(y, h, d):
     return np.maximum.accumulate(np.concatenate([vals, y[..., -1:]], axis=-1), axis=-1)
 
 
-def newton_on_segment(y0, y1, m0, m1, q, ya, yb, tl, rowwise: bool = False):
-    """Position t (0-1) in a cubic Hermite segment where it reaches ``q``, from a table bracket.
+def newton_on_segment(y0, y1, m0, m1, q, ya, yb, tl):
+    """Position t (0-1) in cubic Hermite segments where each reaches ``q``, from a table bracket; (R, m)
+    arrays, one row per spline.
 
     The root lies in [tl, tl + 1/INVERSE_TABLE_STEPS], where the segment goes from ``ya`` to ``yb``; Newton
     steps on p(t) = c3 t^3 + c2 t^2 + m0 t + y0 start from the linear guess inside it and stay in it.  Points
     whose residual is still above 1e-13 of the values (a zero slope at the root) are solved by
-    :func:`hermite_solve`; a flat segment gives 0 (its left end).
+    :func:`hermite_solve` (each point's answer its own); a flat segment gives 0 (its left end).
 
     Parameters
     ----------
@@ -410,10 +461,6 @@ def newton_on_segment(y0, y1, m0, m1, q, ya, yb, tl, rowwise: bool = False):
         Values sought, inside [y0, y1].
     ya, yb, tl : numpy.ndarray
         The bracket's table values and its left position in the segment.
-
-    rowwise : bool
-        The points are (R, m) arrays, one row per spline: the rare points left to the reference solve are
-        solved row by row (its iteration count depends on the points solved together).
 
     Returns
     -------
@@ -435,14 +482,9 @@ def newton_on_segment(y0, y1, m0, m1, q, ya, yb, tl, rowwise: bool = False):
             t = np.clip(np.where(fp > 0, t - f / np.where(fp > 0, fp, 1.0), t), tl, th)
     f = ((c3 * t + c2) * t + m0) * t + c0
     bad = (np.abs(f) > 1e-13 * np.maximum(np.abs(y0) + np.abs(y1), 1e-300)) & (y1 > y0)
-    if np.any(bad):  # a zero slope at the root: the reference solve for these points only
+    if np.any(bad):  # a zero slope at the root: the reference solve for these points only (point by point)
         t = np.array(t, dtype=float, copy=True)
-        if rowwise:  # each row's points solved together, as that row alone would be
-            for r in np.nonzero(bad.any(axis=1))[0]:
-                b = bad[r]
-                t[r, b] = hermite_solve(y0[r, b], y1[r, b], m0[r, b], m1[r, b], q[r, b])
-        else:
-            t[bad] = hermite_solve(y0[bad], y1[bad], m0[bad], m1[bad], q[bad])
+        t[bad] = hermite_solve(y0[bad], y1[bad], m0[bad], m1[bad], q[bad])
     return np.where(y1 > y0, t, 0.0)
 
 
@@ -454,8 +496,8 @@ precision from an eighth of a segment)."""
 
 
 def interval_mean(spline, a, b):
-    """Mean of ``spline`` over [a, b] (its exact integral over the width); the value at ``a`` where the interval
-    has no width.  Works for :class:`Pchip` and for the row-wise batch splines of the library engine.
+    """Mean of ``spline`` (a :class:`Pchip`, one or rows) over [a, b] (its exact integral over the width); the
+    value at ``a`` where the interval has no width.
 
     Examples
     --------
@@ -474,7 +516,8 @@ def hermite_solve(y0, y1, m0, m1, target, newton: int = 8, bisections: int = 40)
 
     p(t) = (2t³-3t²+1) y0 + (t³-2t²+t) m0 + (-2t³+3t²) y1 + (t³-t²) m1, with m = h·slope.  Newton steps from
     the linear guess, kept inside a shrinking bracket (a step leaving it is replaced by bisection), converge
-    to machine precision in a few steps; the rare points not converged then (a zero slope at the root) are
+    to machine precision in a few steps (a point stops at its first step below 1e-15, so its answer does not
+    depend on the points solved with it); the rare points not converged then (a zero slope at the root) are
     finished by bisection.  On a flat segment the left end (t = 0) is returned.
 
     Parameters
@@ -506,17 +549,19 @@ def hermite_solve(y0, y1, m0, m1, target, newton: int = 8, bisections: int = 40)
         t = np.where(rise > 0, np.clip(-c0 / np.where(rise > 0, rise, 1.0), 0.0, 1.0), 0.0)
     lo = np.zeros_like(t)
     hi = np.ones_like(t)
+    moving = np.ones(t.shape, dtype=bool)
     for _ in range(newton):
         f = ((c3 * t + c2) * t + c1) * t + c0
         fp = (3 * c3 * t + 2 * c2) * t + c1
-        lo = np.where(f < 0, t, lo)
-        hi = np.where(f >= 0, t, hi)
+        lo = np.where(moving & (f < 0), t, lo)
+        hi = np.where(moving & (f >= 0), t, hi)
         with np.errstate(divide="ignore", invalid="ignore"):
             cand = np.where(fp > 0, t - f / np.where(fp > 0, fp, 1.0), -1.0)
         new = np.where(rise > 0, np.where((cand > lo) & (cand < hi), cand, 0.5 * (lo + hi)), 0.0)
-        done = np.max(np.abs(new - t), initial=0.0) < 1e-15
-        t = new
-        if done:
+        step = np.abs(new - t)
+        t = np.where(moving, new, t)
+        moving &= ~(step < 1e-15)  # this point has converged: it stays (each point's steps are its own)
+        if not moving.any():
             break
     f = ((c3 * t + c2) * t + c1) * t + c0
     scale = np.maximum(np.abs(y0) + np.abs(y1), 1e-300)

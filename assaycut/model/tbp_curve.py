@@ -19,7 +19,7 @@ import numpy as np
 from ..errors import CurveError
 from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution, fit_riazi_many
 from ..units import pct_text
-from .spline import Pchip, inverse_rows, inverse_table
+from .spline import Pchip
 from .steps import Need, run_alone
 
 END_FRACTION = 0.9995
@@ -195,7 +195,7 @@ class RiaziNeed(Need):
 class CurveTempNeed(Need):
     """TBP [°C] of a curve at percents [vol %] (:meth:`TbpCurve.temp_at`); for many curves at once
     :meth:`together` inverts the curves with the same node count and number of percents row-wise
-    (:func:`~assaycut.model.spline.inverse_rows`: the same values to the last bit)."""
+    (:meth:`~assaycut.model.spline.Pchip.inverse` of their stack: the same values to the last bit)."""
 
     __slots__ = ("curve", "pct")
 
@@ -215,12 +215,9 @@ class CurveTempNeed(Need):
             if len(idx) == 1:
                 out[idx[0]] = needs[idx[0]].alone()
                 continue
-            sp = [needs[k].curve.spline for k in idx]
-            x, y, h, d = (np.array([getattr(s, a) for s in sp]) for a in ("x", "y", "h", "d"))
-            table = inverse_table(y, h, d)
-            res = inverse_rows(x, y, h, d, np.array([needs[k].pct.ravel() for k in idx]), table)
+            res = Pchip.stack([needs[k].curve.spline for k in idx]).inverse(
+                np.array([needs[k].pct.ravel() for k in idx]))
             for r, k in enumerate(idx):
-                sp[r]._inv = table[r]  # each curve keeps its bracket table, as its own first inverse would
                 out[k] = res[r].reshape(needs[k].pct.shape)
         return out
 

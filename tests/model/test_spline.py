@@ -6,6 +6,8 @@ import numpy as np
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
+
+from tests.helpers import reference_inverse
 from scipy.interpolate import PchipInterpolator
 
 from assaycut.model.spline import Pchip
@@ -107,7 +109,7 @@ def test_fast_inverse_equals_the_reference_and_is_exact():
         splines.append(Pchip(x, y))
     for s in splines:
         q = np.concatenate([rng.uniform(s.y[0] - 1.0, s.y[-1] + 1.0, 300), s.y, [np.nan]])
-        fast, ref = s.inverse(q), s.inverse_reference(q)
+        fast, ref = s.inverse(q), reference_inverse(s, q)
         # equal to 1e-9 where the root is well conditioned; where the curve is nearly flat the root moves by
         # (the reference's own residual + rounding of the curve value) / slope, so the allowance grows by that
         ok = np.isfinite(q)
@@ -145,20 +147,32 @@ def test_scaled_equals_the_interpolant_of_scaled_values():
 
 
 def test_row_wise_inverse_equals_each_spline_alone():
-    # Identity of two paths: splines inverted together, one per row, give each spline's own inverse to the
-    # last bit (flat steps, values beyond the ends, NaN and infinities included).
-    from assaycut.model.spline import inverse_rows
-
+    # Identity of two paths: splines inverted together, one per row (equal lengths, and stacked from
+    # different lengths, so padded), give each spline's own inverse to the last bit (flat steps, values beyond
+    # the ends, NaN and infinities included), whatever the other rows hold.
     rng = np.random.default_rng(17)
     for n in (2, 3, 9, 41):
         x = np.cumsum(rng.uniform(0.1, 20.0, (30, n)), axis=1)
         y = np.cumsum(rng.choice([0.0, 0.0, 0.5, 3.0, 20.0], (30, n)) * rng.uniform(0, 1, (30, n)), axis=1)
+        y[::3] += 1e4 * np.arange(10)[:, None]  # rows far apart in value: no shared search may round them
         splines = [Pchip(x[r], y[r]) for r in range(30)]
         q = np.array([np.concatenate([rng.uniform(y[r, 0] - 1, y[r, -1] + 1, 40), y[r, :3], [np.nan, np.inf]])
                       for r in range(30)])
-        together = inverse_rows(x, y, np.diff(x, axis=1), np.array([s.d for s in splines]), q)
+        together = Pchip(x, y).inverse(q)
         for r, s in enumerate(splines):
             assert together[r].tobytes() == s.inverse(q[r]).tobytes(), (n, r)
+    sizes = rng.integers(2, 30, 60)
+    splines = []
+    for n in sizes:
+        x = np.cumsum(rng.uniform(0.1, 20.0, n)) + rng.uniform(-100, 1000)
+        y = np.cumsum(rng.choice([0.0, 0.0, 0.5, 3.0, 20.0], n) * rng.uniform(0, 1, n)) + rng.uniform(0, 1e5)
+        splines.append(Pchip(x, y))
+    q = np.array([np.resize(np.concatenate([rng.uniform(s.y[0] - 1, s.y[-1] + 1, 40), s.y]), 70) for s in splines])
+    for chunk in (1, 7, 60):
+        for k in range(0, 60, chunk):
+            together = Pchip.stack(splines[k:k + chunk]).inverse(q[k:k + chunk])
+            for r, s in enumerate(splines[k:k + chunk]):
+                assert together[r].tobytes() == s.inverse(q[k + r]).tobytes(), (chunk, k + r)
 
 
 def test_integral_over_many_intervals_equals_scipy():
@@ -179,3 +193,24 @@ def test_integral_over_many_intervals_equals_scipy():
         assert_allclose(s.integral(np.array([lo, x[0]]), np.array([x[-1], hi])),
                         [3.0 * y[0] + ref.integrate(x[0], x[-1]), ref.integrate(x[0], x[-1]) + 2.0 * y[-1]],
                         rtol=0, atol=1e-11 * scale * (hi - lo))
+
+
+def test_a_spline_answers_the_same_in_any_batch_near_flat_steps():
+    # Identity of two paths, where it once broke: curves on the vol % scale with flat steps, inverted at their
+    # node values and a few ulp beside them, stacked 400 and 16 at a time, give each curve's own inverse to the
+    # last bit (a shared search on row-shifted values rounded those ulp away and moved answers by up to 276 °C).
+    rng = np.random.default_rng(30)
+    splines = []
+    for _ in range(400):
+        n = int(rng.integers(4, 25))
+        x = np.cumsum(rng.uniform(1.0, 60.0, n)) - 40.0
+        y = np.cumsum(rng.choice([0.0, 0.0, 0.3, 4.0, 12.0], n) * rng.uniform(0, 1, n))
+        splines.append(Pchip(x, 100.0 * y / max(y[-1], 1e-9)))
+    ulp = np.spacing(100.0)
+    q = np.array([np.resize(np.concatenate([s.y, s.y - ulp, s.y - 4 * ulp, s.y + ulp, s.y - 1e-11]), 120)
+                  for s in splines])
+    own = [s.inverse(q[r]).tobytes() for r, s in enumerate(splines)]
+    for chunk in (1, 16, 400):
+        for k in range(0, 400, chunk):
+            together = Pchip.stack(splines[k:k + chunk]).inverse(q[k:k + chunk])
+            assert [row.tobytes() for row in together] == own[k:k + chunk], (chunk, k)
