@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 from .cutting.cutset import CutSet
 from .cutting.ideal import add_rates, closure, cut_rows, cut_table
 from .cutting.limits import Limit, check_limits, limit_rows, nearest_cut, unmatched_cuts
-from .cutting.qualities import ESTIMATED, NOT_ESTIMATED
+from .cutting.cut_qualities import ESTIMATED, NOT_ESTIMATED
 from .methods.product_properties import describe_ranges
 from .model.assay import Assay
 from .model.crude import CrudeModel, build_model, build_models  # noqa: F401 (build_models: for batches)
@@ -60,7 +60,7 @@ class YieldResult:
     notes: list[str] = field(default_factory=list)
     methods: dict[str, str] = field(default_factory=dict)
     products: dict | None = None
-    """Product curves of a real column (see :func:`assaycut.cutting.products.fractionate`); None for ideal cuts."""
+    """Product curves of a real column (see :func:`assaycut.cutting.real_column.fractionate`); None for ideal cuts."""
     bands: object = None
     """P10/P50/P90 per cut under the measurement uncertainty (see :mod:`assaycut.studies.uncertainty`), or None."""
     json_doc: dict | None = None
@@ -131,7 +131,7 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         lim = limit_rows(names, cols, limits or [])
     else:
         if cut_set.overlaps:
-            from .cutting.products import fractionate
+            from .cutting.real_column import fractionate
 
             cuts, products = fractionate(model, cut_set, cut_set.overlaps)
         else:
@@ -155,7 +155,7 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
 def run_yields_many(assays: list[Assay], models: list[CrudeModel], cut_set: CutSet,
                     limits: list[Limit] | None = None) -> list[YieldResult]:
     """:func:`run_yields` with ``frames=False`` for many assays at once: their models are cut together by the
-    library engine (:func:`~assaycut.cutting.library.cut_library`, row-wise arrays over the assays), then each
+    library engine (:func:`~assaycut.cutting.library_engine.cut_library`, row-wise arrays over the assays), then each
     result is assembled as :func:`run_yields` does.  Ideal cuts only (no overlaps); the same results as one
     :func:`run_yields` per assay to 1e-9 (tested), not bit for bit (the row-wise arithmetic differs).
 
@@ -173,7 +173,7 @@ def run_yields_many(assays: list[Assay], models: list[CrudeModel], cut_set: CutS
         Cut tables and limit status as lists of row dicts.
     """
     from .cutting.ideal import columns_rows, first_row, with_table_d86
-    from .cutting.library import cut_library
+    from .cutting.library_engine import cut_library
 
     if cut_set.overlaps:
         raise ValueError("run_yields_many cuts ideal cuts only; use run_yields for real-column products")

@@ -135,7 +135,7 @@ def peak_child(n: int) -> None:
     """Child process: generate, model and cut n assays; print the peak resident memory in MB."""
     import resource
 
-    from assaycut.cutting.library import cut_library
+    from assaycut.cutting.library_engine import cut_library
 
     models = [build_model(a) for a in generate_library(n)]
     cut_library(models, CUTS8)
@@ -238,7 +238,7 @@ def main() -> None:
         peak_child(args.peak_child)
         return
     from assaycut.cutting.cutset import default_cut_set
-    from assaycut.cutting.library import cut_library
+    from assaycut.cutting.library_engine import cut_library
     from assaycut.studies.cutpoints import sweep
 
     big, small, naive_n, reps = (10_000, 1_000, 100, 5) if not args.smoke else (30, 10, 3, 1)

@@ -1,7 +1,7 @@
 """Behaviour snapshot: the JSON and CSV outputs of the demo crudes, for comparing two versions of assaycut.
 
     python benchmarks/snapshot.py DIR            # write the snapshot into DIR
-    python benchmarks/snapshot.py DIR --compare OTHER_DIR
+    python benchmarks/snapshot.py DIR --compare OTHER_DIR [--rtol 1e-9]
 
 It runs the CLI (`yields`, `compare --prices`, `shift`, `sweep`, `check`, `convert`, `optimize`, `blend`)
 on every demo crude, keeps stdout of the `--json` runs and the CSV files of the reports, and removes what
@@ -29,8 +29,9 @@ PRICES = DEMO / "prices_demo.toml"
 
 
 def _scrub(text: str, tmp: str) -> str:
-    """Remove what changes between versions or runs: version strings, sha256 values, temporary paths."""
-    text = text.replace(tmp, "<tmp>")
+    """Remove what changes between versions or runs: version strings, sha256 values, temporary paths and the
+    checkout's own path."""
+    text = text.replace(tmp, "<tmp>").replace(str(ROOT), "<root>")
     text = re.sub(r'("version"\s*:\s*)"[^"]*"', r'\1"<version>"', text)
     text = re.sub(r"\b[0-9a-f]{64}\b", "<sha256>", text)
     return text
@@ -119,13 +120,40 @@ def _xlsx_cells(path: Path) -> str:
     return "\n".join(lines) + "\n"
 
 
-def compare(a: Path, b: Path) -> int:
+_NUMBER = re.compile(r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?")
+
+
+def _same(x: str, y: str, rtol: float) -> tuple[bool, float]:
+    """Whether two snapshot texts agree: the same text between numbers and every number within ``rtol``
+    relative (exactly equal when rtol is 0); and the largest relative difference of a number."""
+    if x == y:
+        return True, 0.0
+    nx, ny = _NUMBER.findall(x), _NUMBER.findall(y)
+    if rtol == 0.0 or _NUMBER.sub("#", x) != _NUMBER.sub("#", y) or len(nx) != len(ny):
+        return False, float("inf")
+    worst = 0.0
+    for u, v in zip(nx, ny):
+        if u != v:
+            fu, fv = float(u), float(v)
+            worst = max(worst, abs(fu - fv) / max(abs(fu), abs(fv), 1e-300))
+    return worst <= rtol, worst
+
+
+def compare(a: Path, b: Path, rtol: float = 0.0) -> int:
     names = sorted({p.name for p in a.iterdir()} | {p.name for p in b.iterdir()})
-    bad = [n for n in names if not (a / n).exists() or not (b / n).exists()
-           or (a / n).read_bytes() != (b / n).read_bytes()]
-    for n in bad:
-        print(f"differs: {n}")
-    print(f"{len(names) - len(bad)} of {len(names)} snapshot files identical")
+    bad, near = [], []
+    for n in names:
+        if not (a / n).exists() or not (b / n).exists():
+            bad.append((n, float("inf")))
+            continue
+        ok, worst = _same((a / n).read_text(encoding="utf-8"), (b / n).read_text(encoding="utf-8"), rtol)
+        (near if ok and worst > 0 else bad if not ok else []).append((n, worst))
+    for n, w in bad:
+        print(f"differs: {n}" + (f" (largest relative difference {w:.3g})" if w != float("inf") else ""))
+    for n, w in near:
+        print(f"within {rtol:g}: {n} (largest relative difference {w:.3g})")
+    print(f"{len(names) - len(bad) - len(near)} of {len(names)} snapshot files identical, {len(near)} within "
+          f"the tolerance")
     return 1 if bad else 0
 
 
@@ -133,6 +161,8 @@ def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("dir", type=Path)
     ap.add_argument("--compare", type=Path, metavar="OTHER_DIR", help="compare DIR with a snapshot in OTHER_DIR")
+    ap.add_argument("--rtol", type=float, default=0.0,
+                    help="with --compare: numbers may differ by this much, relative (default 0: identical)")
     ns = ap.parse_args()
     if ns.compare is None:
         if ns.dir.exists():
@@ -140,7 +170,7 @@ def main() -> int:
         write_snapshot(ns.dir)
         print(f"snapshot written to {ns.dir}")
         return 0
-    return compare(ns.dir, ns.compare)
+    return compare(ns.dir, ns.compare, ns.rtol)
 
 
 if __name__ == "__main__":

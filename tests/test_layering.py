@@ -4,6 +4,7 @@ crossing modules, module size.  Rules of this project (common practice for layer
 from __future__ import annotations
 
 import ast
+import re
 from pathlib import Path
 
 import pytest
@@ -133,6 +134,65 @@ def test_package_keeps_the_layering_rules():
     assert violations(project_modules()) == []
 
 
+ALLOWED_PRIVATE_ATTRIBUTES = {
+    ("assaycut.cli.batch_runner", "os._exit"), ("assaycut.cli.common", "os._exit"),  # documented in os
+    # openpyxl's sheet parser, pinned (assaycut.io.workbook.OPENPYXL_PARSER_NAMES; tests/io/test_readers.py)
+    ("assaycut.io.workbook", "ws._get_source"), ("assaycut.io.workbook", "ws._shared_strings"),
+    ("assaycut.io.workbook", "wb._date_formats"), ("assaycut.io.workbook", "wb._timedelta_formats"),
+}
+"""Private attributes of other modules that a module may use, each with its reason."""
+
+
+def private_attribute_uses(modules: dict[str, tuple[Path, str]]) -> list[str]:
+    """``obj._name`` read or set where ``_name`` is not defined in the module itself (a def, a class, a name or
+    ``self.``/``cls.`` attribute assigned, an argument, a slot name): a private attribute of another module's
+    object, one line each."""
+    out = []
+    for mod, (_, src) in modules.items():
+        tree = ast.parse(src)
+        own = set()
+        for n in ast.walk(tree):
+            if isinstance(n, (ast.FunctionDef, ast.AsyncFunctionDef, ast.ClassDef)):
+                own.add(n.name)
+            elif isinstance(n, ast.Name) and isinstance(n.ctx, ast.Store):
+                own.add(n.id)
+            elif isinstance(n, ast.Attribute) and isinstance(n.ctx, ast.Store) \
+                    and isinstance(n.value, ast.Name) and n.value.id in ("self", "cls"):
+                own.add(n.attr)
+            elif isinstance(n, ast.arg):
+                own.add(n.arg)
+            elif isinstance(n, ast.Constant) and isinstance(n.value, str):
+                own.add(n.value)
+        for n in ast.walk(tree):
+            if isinstance(n, ast.Attribute) and n.attr.startswith("_") and not n.attr.startswith("__") \
+                    and n.attr not in own and (mod, ast.unparse(n)) not in ALLOWED_PRIVATE_ATTRIBUTES:
+                out.append(f"{mod} line {n.lineno}: private attribute {ast.unparse(n)} of another module")
+    return out
+
+
+def test_no_private_attribute_crosses_modules():
+    assert private_attribute_uses(project_modules()) == []
+
+
+def test_tests_import_no_private_names():
+    # Tests go through the public interface: a private name imported by a test ties it to one implementation.
+    found = []
+    for path in sorted((PACKAGE.parent / "tests").rglob("*.py")):
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.ImportFrom) and (node.module or "").startswith("assaycut"):
+                found += [f"{path.name} line {node.lineno}: {a.name}" for a in node.names
+                          if a.name.startswith("_") and not a.name.startswith("__")]
+    assert found == []
+
+
+def test_the_private_attribute_check_can_fail(tmp_path):
+    mods = _fake_package(tmp_path, {"__init__.py": "", "model/__init__.py": "",
+                                    "model/a.py": "def f(s):\n    return s._inv\n\n\ndef g(s):\n    s._inv = 2\n",
+                                    "model/b.py": "class S:\n    def __init__(self):\n        self._inv = 1\n"})
+    assert private_attribute_uses(mods) == ["assaycut.model.a line 2: private attribute s._inv of another module",
+                                            "assaycut.model.a line 6: private attribute s._inv of another module"]
+
+
 def test_modules_stay_short_and_the_top_level_small():
     long = {m: src.count("\n") for m, (_, src) in project_modules().items() if src.count("\n") > MAX_LINES}
     assert long == {}
@@ -168,3 +228,27 @@ def test_the_checker_finds_each_kind_of_violation(tmp_path, files, expected):
     # The rules above must be able to fail: each synthetic package breaks one rule.
     found = violations(_fake_package(tmp_path, files))
     assert any(expected in v for v in found), found
+
+
+def readme_layout(text: str) -> set[str]:
+    """The module paths (relative to assaycut/) the README's Layout block names: a line ``  name/`` opens a
+    folder, the ``*.py`` names on the lines below it belong to it; names on the lines before any folder
+    belong to the package itself."""
+    block = text[text.index("\n    assaycut/\n") + 1:text.index("\n    tests/")]
+    out, folder = set(), ""
+    for line in block.splitlines()[1:]:
+        indent = len(line) - len(line.lstrip())
+        first = re.split(r"\s{3,}", line.strip())[0]
+        if indent == 6:
+            folder = first.split()[0] if first.split()[0].endswith("/") else ""
+        elif indent != 8:  # a continued description
+            continue
+        out |= {folder + n for n in re.findall(r"\b\w+\.py\b", first)}
+    return out
+
+
+def test_the_readme_layout_names_every_module():
+    text = (PACKAGE.parent / "README.md").read_text(encoding="utf-8")
+    named = readme_layout(text)
+    tree = {p.relative_to(PACKAGE).as_posix() for p in PACKAGE.rglob("*.py")}
+    assert sorted(tree - named) == [] and sorted(named - tree) == []

@@ -30,7 +30,7 @@ def test_density15_round_trip_and_size():
     # Round trip (identity), and the size of the 60 °F -> 15 °C correction: a medium crude (SG 0.85) expands
     # by about 0.08-0.10 % per °C near ambient (recalled from memory; ASTM D1250 / API MPMS 11.1 tables give
     # alpha60 of about 4.7e-4 per °F there), and 15 °C lies 0.556 °C below 60 °F, so its density is 0.04-0.06 %
-    # higher.  A K0 off by 2x would fall outside.  Water at 60 °F is 999.016 kg/m3 (reference sheet §6).
+    # higher.  A K0 off by 2x would fall outside.  Water at 60 °F is 999.016 kg/m3 (from memory).
     for sg in (0.7, 0.85, 1.0):
         rho = units.sg_to_density15(sg)
         assert units.density15_to_sg(rho) == pytest.approx(sg, rel=1e-10)

@@ -1,8 +1,9 @@
 """Command line of assaycut: a thin shell over the readers, the core and the report writers.
 
-Each command family is a Typer app of its own (:mod:`.yields`, :mod:`.convert`, :mod:`.compare`,
-:mod:`.cutpoints`, :mod:`.explore`), composed here with ``add_typer``; the families share :mod:`.common` and
-import neither each other nor this module.  :mod:`.batch` runs the yield job over many files.
+Each command family is a Typer app of its own (:mod:`.yields_cmd`, :mod:`.convert_cmd`, :mod:`.compare_cmd`,
+:mod:`.blend_cmd`, :mod:`.cutpoints_cmd`, :mod:`.explore_cmd`), composed here with ``add_typer``; the families
+share :mod:`.common` and import neither each other nor this module.  :mod:`.batch_runner` runs the yield job
+over many files.
 """
 
 from __future__ import annotations
@@ -13,7 +14,7 @@ import sys
 import typer
 from typer.core import TyperGroup
 
-from . import compare, convert, cutpoints, explore, yields
+from . import blend_cmd, compare_cmd, convert_cmd, cutpoints_cmd, explore_cmd, yields_cmd
 from .common import TdMethod, error_line, interrupted, stop_now
 
 
@@ -48,7 +49,7 @@ app = typer.Typer(
     pretty_exceptions_enable=False,
     rich_markup_mode=None,
 )
-for _family in (yields, convert, compare, cutpoints, explore):
+for _family in (yields_cmd, convert_cmd, compare_cmd, blend_cmd, cutpoints_cmd, explore_cmd):
     app.add_typer(_family.app)
 
 
@@ -56,7 +57,7 @@ for _family in (yields, convert, compare, cutpoints, explore):
 def _root(ctx: typer.Context) -> None:
     """Bare `assaycut` runs the yield report on the demo assay."""
     if ctx.invoked_subcommand is None:
-        ctx.invoke(yields.yields, assays=None, cuts=None, limits=None, out=None, json_out=False, end=None,
+        ctx.invoke(yields_cmd.yields, assays=None, cuts=None, limits=None, out=None, json_out=False, end=None,
                    api=None, sg=None, density=None, sulfur=None, method=TdMethod.daubert_1994,
                    summary_only=False, overlap=None, uncertainty=0, sigma_temp=2.0, sigma_pct=0.3,
                    sigma_sg=0.0005, sigma_sulfur=3.0)

@@ -246,7 +246,7 @@ def parse_ends(items: list[str] | None, option: str = "--end", what: str = "a te
 def load_cut_set(cuts: Path | None, ends: list[str] | None, overlaps: list[str] | None = None):
     """The cut set of --cuts (or the shipped default), with the --end and --overlap changes applied."""
     from ..cutting.cutset import default_cut_set
-    from ..cutting.products import targets_for
+    from ..cutting.real_column import targets_for
     from ..io.tomlfiles import read_cut_set
 
     cs = read_cut_set(str(cuts)) if cuts else default_cut_set()

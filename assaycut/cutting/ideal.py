@@ -44,7 +44,7 @@ from ..methods.product_properties import (
 from ..model.crude import CrudeModel
 from ..units import sg_to_api, sg_to_density15
 from .cutset import CutSet
-from .qualities import quality_columns
+from .cut_qualities import quality_columns
 
 LIGHT_ENDS_MAX_C = 40.0
 """Cuts ending at or below this TBP are light ends: no D86 is estimated for them (D86 does not apply to
@@ -145,7 +145,7 @@ def cut_columns(model: CrudeModel, ends: np.ndarray, only=None) -> dict[str, np.
         Cut points, shape (m, n-1): m alternative cut sets of n cuts. [°C]
     only : set of str, optional
         Measured narrow-cut qualities to compute (default all; see
-        :func:`~assaycut.cutting.qualities.quality_columns`).
+        :func:`~assaycut.cutting.cut_qualities.quality_columns`).
 
     Returns
     -------

@@ -21,7 +21,7 @@ import numpy as np
 
 from ..methods.blending_indices import RULES, VISCOSITY
 from ..methods.d86 import D86_STD
-from .qualities import ESTIMATED
+from .cut_qualities import ESTIMATED
 
 RECOVERED_AT = re.compile(r"^recovered_at_(\d+(?:\.\d+)?)c_pct$")
 """Property name of the D86 volume recovered at a temperature."""
@@ -98,7 +98,7 @@ def limit_title(cut: str, label: str) -> str:
 
 def is_quality(prop: str) -> bool:
     """True for a narrow-cut quality or estimated property name (:mod:`assaycut.methods.blending_indices`,
-    :data:`assaycut.cutting.qualities.ESTIMATED`)."""
+    :data:`assaycut.cutting.cut_qualities.ESTIMATED`)."""
     return prop in RULES or bool(VISCOSITY.match(prop)) or prop in ESTIMATED
 
 

@@ -13,8 +13,19 @@ volume fractions the rule names.  The canonical property names (the narrow-cut c
 * ``rvp_kpa``: RVP^1.25 on volume (Chevron; Gary & Handwerk);
 * ``ron``, ``mon``: linear by volume (common practice);
 * ``smoke_point_mm``: 1/SP linear by volume (empirical: it reproduces the ASTM D1322 toluene/iso-octane
-  reference blends within about 1 mm, where linear SP errs by up to 7 mm; reference sheet PROPERTIES §6);
+  reference blends within about 1 mm, where linear SP errs by up to 7 mm; Jones & Pujadó, Handbook of
+  Petroleum Processing, Table 16.16, quoted second-hand);
 * any other numeric column: linear by weight, and the report says so.
+
+Contents
+--------
+- :class:`BlendRule`: How one property blends: its basis ('wt' or 'vol'), index and inverse, and...
+- :func:`wickey_chittenden_index`: Flash-point blending index, Wickey & Chittenden (1963) [2]_: log10 BI =...
+- :func:`flash_from_wickey_chittenden_index`: Inverse of :func:`wickey_chittenden_index`: flash point [°C] of a
+  blending index
+- :func:`rule_for`: The blending rule of a narrow-cut property column
+- :func:`blend`: Blend one property over components by its rule
+- constants: ``K0``, ``MASS_ADDITIVE``, ``VOLUME_ADDITIVE``, ``VISCOSITY``, ``RULES``
 
 References
 ----------
@@ -35,6 +46,9 @@ from typing import Callable, NamedTuple
 import numpy as np
 
 from .blending_rules import vbn_refutas, viscosity_from_vbn_refutas
+
+__all__ = ["BlendRule", "wickey_chittenden_index", "flash_from_wickey_chittenden_index", "rule_for", "blend", "K0",
+           "MASS_ADDITIVE", "VOLUME_ADDITIVE", "VISCOSITY", "RULES"]
 
 K0 = 273.15
 """°C to K. [K]"""
@@ -78,7 +92,7 @@ def wickey_chittenden_index(flash_c):
 
     Examples
     --------
-    The printed index table the reference sheet cites (20 °C -> 3281, 50 °C -> 306):
+    The printed index table of [2]_, quoted second-hand (20 °C -> 3281, 50 °C -> 306):
 
     >>> [round(float(x)) for x in wickey_chittenden_index([20.0, 50.0])]
     [3281, 306]
@@ -173,7 +187,7 @@ def blend(name: str, values, fractions):
 
     Examples
     --------
-    Reference sheet PROPERTIES §6 check values (computed there): 50/50 of -15 and +15 °C pour points gives
+    Computed from the index forms above (not printed examples): 50/50 of -15 and +15 °C pour points gives
     +4.4 °C, of cloud points +6.7 °C; 50/50 vol of 40 and 70 °C flash points gives 47.8 °C:
 
     >>> [round(float(blend(n, v, [1, 1])), 1) for n, v in (("pour_point_c", [-15, 15]),

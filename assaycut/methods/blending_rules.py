@@ -3,6 +3,12 @@ shrinkage of light hydrocarbons blended into crude.
 
 Gravity (by volume on SG) and mass-based contents (by weight) blend linearly and need no function of
 their own; see :mod:`assaycut.studies.blend`.
+
+Contents
+--------
+- :func:`vbn_refutas`: Refutas viscosity blending number
+- :func:`viscosity_from_vbn_refutas`: Kinematic viscosity from a Refutas blending number (the inverse of...
+- :func:`shrinkage_api_mpms_12_3`: Volume shrinkage of a light/heavy hydrocarbon blend, API MPMS Ch
 """
 
 from __future__ import annotations
@@ -10,6 +16,8 @@ from __future__ import annotations
 import numpy as np
 
 from ..units import as_scalar
+
+__all__ = ["vbn_refutas", "viscosity_from_vbn_refutas", "shrinkage_api_mpms_12_3"]
 
 
 def vbn_refutas(nu_cst):

@@ -4,6 +4,18 @@ molecular weight.
 All functions accept numpy arrays (vectorised over cuts or assays).  Temperatures in °C unless a name
 says otherwise; each docstring gives the unit the source works in.
 
+Contents
+--------
+- :func:`watson_k`: Watson (UOP) characterisation factor
+- :func:`sg_from_watson_k`: Specific gravity of a fraction at constant Watson K
+- :func:`watson_k_numerator`: Cube root of the absolute boiling point in °R, (1.8 T_b[K])^(1/3): the...
+- :func:`average_boiling_points_api_2b1_1`: Average boiling points of a fraction from its ASTM D86 curve (API TDB
+  2B1.1)
+- :func:`mw_riazi_daubert_1987`: Molecular weight by Riazi-Daubert 1987 (API TDB 2B2.1)
+- :func:`mw_in_range`: True where (Tb, SG) lie inside the Riazi-Daubert 1987 range (Tb 90-1050 °F,...
+- :func:`meabp_pseudo_components`: Mean average boiling point of a fraction from its own TBP curve, taken as...
+- constants: ``MW_RANGE_TB_C``, ``MW_RANGE_API``
+
 References
 ----------
 .. [1] Watson, K. M., Nelson, E. F., "Improved Methods for Approximating Critical and Thermal Properties of
@@ -21,6 +33,9 @@ from __future__ import annotations
 import numpy as np
 
 from ..units import as_scalar, c_to_f, c_to_rankine, f_to_c, sg_to_api
+
+__all__ = ["watson_k", "sg_from_watson_k", "watson_k_numerator", "average_boiling_points_api_2b1_1",
+           "mw_riazi_daubert_1987", "mw_in_range", "meabp_pseudo_components", "MW_RANGE_TB_C", "MW_RANGE_API"]
 
 
 def watson_k(meabp_c, sg):

@@ -1,5 +1,13 @@
 """Vacuum distillation (ASTM D1160) temperatures to the atmospheric equivalent temperature, Maxwell-Bonnell.
 
+Contents
+--------
+- :func:`maxwell_bonnell_q`: Maxwell-Bonnell Q of a pressure, anchored so that 760 mmHg is the identity
+- :func:`watson_k_factor`: The factor f of the Maxwell-Bonnell Watson K correction, from the Kw = 12...
+- :func:`vacuum_to_aet_maxwell_bonnell`: Vacuum distillation temperature to atmospheric equivalent temperature
+  (AET),...
+- constants: ``Q_IDENTITY``, ``C_OFFSET``, ``PRESSURE_RANGE_MMHG``
+
 References
 ----------
 .. [1] Maxwell, J. B., Bonnell, L. S., "Derivation and Precision of a New Vapor Pressure Correlation for
@@ -19,6 +27,9 @@ import numpy as np
 
 from ..errors import ConversionError
 from ..units import as_scalar, c_to_f
+
+__all__ = ["maxwell_bonnell_q", "watson_k_factor", "vacuum_to_aet_maxwell_bonnell", "Q_IDENTITY", "C_OFFSET",
+           "PRESSURE_RANGE_MMHG"]
 
 Q_IDENTITY = 1.0 / 748.1
 """The Q at which T' = T for every T: the value the pressure fit should take at 760 mmHg. [-]"""
@@ -124,7 +135,7 @@ def vacuum_to_aet_maxwell_bonnell(temp_c, pressure_mmhg: float, watson_k: float 
 
     Examples
     --------
-    No printed example is at hand; computed from the equations (the reference sheet's check value): 200 °C
+    No printed example is at hand; computed from the equations of [1] and [2] (not a printed example): 200 °C
     observed at 10 mmHg is about 348.8 °C AET; 365 °F at 10 mmHg with Kw 12.5 is 625.5 °F.
 
     >>> round(float(vacuum_to_aet_maxwell_bonnell(200.0, 10.0)), 2)

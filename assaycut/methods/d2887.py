@@ -4,6 +4,12 @@ Both are Daubert-type constructions in °F: the 50 % point is converted first, t
 difference (:mod:`assaycut.methods.segments`).  D2887 percents are weight percents; the TBP of API TDB
 3A3.1 is on the same weight basis.
 
+Contents
+--------
+- :func:`d2887_to_tbp_api_3a3_1`: ASTM D2887 simulated distillation to TBP, API TDB 3A3.1 [2]_ (Daubert 1994 [1]_)
+- :func:`d2887_to_d86_api_3a3_2`: ASTM D2887 simulated distillation to ASTM D86, API TDB 3A3.2 [2]_
+- constants: ``SD_STD``, ``SD_TBP_SEGMENTS``, ``SD_D86_SEGMENTS``, ``SD_D86_POINTS``, ``SD_D86_50``
+
 References
 ----------
 .. [1] Daubert, T. E., "Petroleum fraction distillation interconversions", Hydrocarbon Processing 73(9)
@@ -20,6 +26,9 @@ from typing import Mapping
 
 from ..errors import ConversionError
 from .segments import chain_mapping, normalise_points, power_step, require_points
+
+__all__ = ["d2887_to_tbp_api_3a3_1", "d2887_to_d86_api_3a3_2", "SD_STD", "SD_TBP_SEGMENTS", "SD_D86_SEGMENTS",
+           "SD_D86_POINTS", "SD_D86_50"]
 
 SD_STD = (5, 10, 30, 50, 70, 90, 95, 100)
 """Standard ASTM D2887 points of API TDB 3A3.1: its lowest segment is 5-10 % (the worked example converts a

@@ -5,6 +5,18 @@ exists vectorised over many curves (:func:`tbp_to_d86_daubert_1994_array`), whic
 for every cut's D86 estimate.  Units inside the correlations follow their sources: °F for Daubert 1994, K
 for Riazi-Daubert 1986.
 
+Contents
+--------
+- :func:`d86_to_tbp_daubert_1994`: ASTM D86 to TBP by Daubert 1994 [1]_ (API TDB 3A1.1, 1994 revision [2]_)
+- :func:`tbp_to_d86_daubert_1994`: TBP to ASTM D86 by inverting Daubert 1994 [1]_ (API TDB 3A1.1, 1994 revision...
+- :func:`tbp_to_d86_daubert_1994_array`: TBP to ASTM D86 by inverting Daubert 1994, vectorised over curves (the
+  same...
+- :func:`d86_to_tbp_riazi_daubert_1986`: ASTM D86 to TBP by Riazi-Daubert 1986 [3]_, point by point (API TDB
+  3A1.1,...
+- :func:`tbp_to_d86_riazi_daubert_1986`: TBP to ASTM D86 by inverting Riazi-Daubert 1986 [3]_ point by point: D86
+  =...
+- constants: ``D86_STD``, ``RD1986_K``, ``RD1986_R``, ``D94_SEGMENTS``, ``D94_50``
+
 References
 ----------
 .. [1] Daubert, T. E., "Petroleum fraction distillation interconversions", Hydrocarbon Processing 73(9)
@@ -33,6 +45,10 @@ from .segments import (
     power_step,
     require_points,
 )
+
+__all__ = ["d86_to_tbp_daubert_1994", "tbp_to_d86_daubert_1994", "tbp_to_d86_daubert_1994_array",
+           "d86_to_tbp_riazi_daubert_1986", "tbp_to_d86_riazi_daubert_1986", "D86_STD", "RD1986_K", "RD1986_R",
+           "D94_SEGMENTS", "D94_50"]
 
 D86_STD = (0, 10, 30, 50, 70, 90, 95)
 """Standard ASTM D86 points of the TBP <-> D86 correlations. [vol %]"""

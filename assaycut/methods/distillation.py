@@ -4,6 +4,17 @@ The published methods live one family to a module: :mod:`~assaycut.methods.d86` 
 Riazi-Daubert 1986), :mod:`~assaycut.methods.d2887` (API TDB 3A3.1, 3A3.2) and
 :mod:`~assaycut.methods.d1160` (Maxwell-Bonnell).  :func:`convert` picks one by name.  Non-monotone results
 and points outside a correlation's data range are reported as warnings, never hidden.
+
+Contents
+--------
+- :class:`Conversion`: A published conversion: the function, the name reports give it, and the...
+- :func:`fill_standard_points`: Fill the standard points that lie between the given ones and are missing, by...
+- :func:`check_monotone`: Warnings for a converted curve whose temperature falls as percent rises
+- :func:`range_warnings`: Warnings for input points outside the temperature range of the data behind...
+- :func:`vacuum_warnings`: Warnings for a D1160 pressure: above 760 mmHg the method (a vacuum...
+- :func:`filled_inputs`: The input points :func:`convert` fills for a (``frm``, ``to``) conversion,...
+- :func:`convert`: Convert a curve between methods by name
+- constants: ``METHODS``, ``CONVERSIONS``, ``STANDARD_POINTS``
 """
 
 from __future__ import annotations
@@ -23,6 +34,9 @@ from .d86 import (
 from .d1160 import vacuum_to_aet_maxwell_bonnell
 from .d2887 import SD_D86_POINTS, SD_STD, d2887_to_d86_api_3a3_2, d2887_to_tbp_api_3a3_1
 from .segments import normalise_points
+
+__all__ = ["Conversion", "fill_standard_points", "check_monotone", "range_warnings", "vacuum_warnings",
+           "filled_inputs", "convert", "METHODS", "CONVERSIONS", "STANDARD_POINTS"]
 
 METHODS = ("daubert-1994", "riazi-daubert-1986")
 """Names of the TBP <-> D86 methods."""

@@ -3,9 +3,29 @@ table does not cover: kinematic viscosity, pour, cloud and freezing points, anil
 refractive index and sulfur.
 
 Tb is the fraction's mean average boiling point (MeABP), as in the API TDB 2B procedures.  Every value is a
-screening estimate; each function states its validity range and the confidence of its coefficients (from the
-reference sheet PROPERTIES.md: "one source" means the coefficients were checked against one open
-implementation and the printed example it quotes).
+screening estimate; each function states its validity range and the confidence of its coefficients ("one
+source": the coefficients were checked against one open implementation and the printed example it quotes,
+not against the primary publication itself).
+
+Contents
+--------
+- :func:`viscosity_api_11a4_2`: Kinematic viscosity at 100 °F and 210 °F from Tb and Watson K, API TDB...
+- :func:`viscosity_d341`: Kinematic viscosity at ``t_c`` from two points, ASTM D341 (Walther), D341-09...
+- :func:`pour_point_api_2b8_1`: Pour point from SG, Tb and ν at 100 °F, API TDB 2B8.1 [1]_: TP = 753 + 136...
+- :func:`pour_point_in_range`: The validity range of :func:`pour_point_api_2b8_1` (bool array)
+- :func:`freeze_point_api_2b11_1`: Freezing point, API TDB 2B11.1 [1]_: TF = -2390.42 + 1826 SG + 122.49 Kw -...
+- :func:`freeze_point_in_range`: The validity range of :func:`freeze_point_api_2b11_1` (bool array)
+- :func:`cloud_point_api_2b12_1`: Cloud point, API TDB 2B12.1 [1]_: log10 TCL = -7.41 + 5.49 log10 Tb - 0.712...
+- :func:`cloud_point_in_range`: The validity range of :func:`cloud_point_api_2b12_1` (bool array)
+- :func:`aniline_point_api_2b9_1`: Aniline point, API TDB 2B9.1 [1]_: AP = -1253.7 - 0.139 Tb + 107.8 Kw +...
+- :func:`aniline_point_in_range`: The validity range of :func:`aniline_point_api_2b9_1` (bool array)
+- :func:`smoke_point_api_2b10_1`: Smoke point, API TDB 2B10.1 [1]_: ln SP = -1.028 + 0.474 Kw - 0.00168 Tb, SP...
+- :func:`smoke_point_in_range`: The validity range of :func:`smoke_point_api_2b10_1` (bool array)
+- :func:`refractive_index_riazi_daubert_1987`: Refractive index n20 from Tb and SG by the Riazi-Daubert (1987)
+  parameter I...
+- :func:`refractive_index_in_range`: The Tb range of :func:`refractive_index_riazi_daubert_1987` (bool array)
+- :func:`sulfur_riazi_1999`: Sulfur of a fraction, Riazi, Nasimi & Roomi (1999) [4]_, clipped at 0:
+- :func:`ri_and_m`: Refractivity intercept Ri = n - d20/2 and m = M (n - 1.475), with d20 = SG -...
 
 References
 ----------
@@ -23,6 +43,11 @@ from __future__ import annotations
 import numpy as np
 
 from ..units import c_to_f, c_to_rankine, f_to_c
+
+__all__ = ["viscosity_api_11a4_2", "viscosity_d341", "pour_point_api_2b8_1", "pour_point_in_range",
+           "freeze_point_api_2b11_1", "freeze_point_in_range", "cloud_point_api_2b12_1", "cloud_point_in_range",
+           "aniline_point_api_2b9_1", "aniline_point_in_range", "smoke_point_api_2b10_1", "smoke_point_in_range",
+           "refractive_index_riazi_daubert_1987", "refractive_index_in_range", "sulfur_riazi_1999", "ri_and_m"]
 
 
 def _rankine_to_c(t_r):
@@ -60,7 +85,7 @@ def viscosity_api_11a4_2(tb_c, kw):
     Notes
     -----
     No validity range is given in the sources at hand.  Confidence: one open source, backed by four printed
-    TDB examples it quotes (reference sheet §1a).
+    TDB examples it quotes (API TDB 11A4.2, quoted second-hand).
 
     Examples
     --------
@@ -111,7 +136,7 @@ def viscosity_d341(nu1, t1_c, nu2, t2_c, t_c):
 
     Examples
     --------
-    API TDB 11A4.4 example B (reference sheet §1c): 1.644 cSt at 32 °F and 0.925 cSt at 104 °F give 1.201
+    API TDB 11A4.4 example B (quoted second-hand): 1.644 cSt at 32 °F and 0.925 cSt at 104 °F give 1.201
     cSt at 68 °F:
 
     >>> round(float(viscosity_d341(1.644, 0.0, 0.925, 40.0, 20.0)), 3)
@@ -250,7 +275,8 @@ def refractive_index_riazi_daubert_1987(tb_c, sg):
 
     Examples
     --------
-    n-decane (Tb 447.3 K, SG 0.7342): 1.4113 by the reference sheet's computation; measured n20 1.4102.
+    n-decane (Tb 447.3 K, SG 0.7342): 1.4113 computed from the equations (no printed example at hand); measured n20
+    1.4102 (from memory).
 
     >>> round(float(refractive_index_riazi_daubert_1987(447.3 - 273.15, 0.7342)), 4)
     1.4113
@@ -291,7 +317,7 @@ def sulfur_riazi_1999(mw, sg, ri, m):
 
     Examples
     --------
-    The paper's Table 3 (as the reference sheet quotes it): crude no. 1 cut (M 202, SG 0.837, Ri 1.0511,
+    The paper's Table 3 (quoted second-hand): crude no. 1 cut (M 202, SG 0.837, Ri 1.0511,
     m -1.4849) printed 1.19 wt %; crude no. 61 cut (M 1484, SG 1.0209, Ri 1.1611, m 289.28) printed 2.85:
 
     >>> cuts = ((202, 0.837, 1.0511, -1.4849), (1484, 1.0209, 1.1611, 289.28))

@@ -4,6 +4,15 @@ cetane index and the flash point.
 Every value is an estimate for screening.  Flash point is a safety property: an estimate never replaces a
 measurement by ASTM D93.
 
+Contents
+--------
+- :func:`cetane_index_d4737`: Calculated cetane index by four-variable equation, ASTM D4737 Procedure A...
+- :func:`flash_point_api_2b7_1`: Closed-cup flash point estimated from the D86 10 % point, API TDB 2B7.1
+- :func:`cci_in_range`: Whether D86 10/50/90 % [°C] and density at 15 °C [kg/m³] lie inside...
+- :func:`flash_in_range`: Whether a D86 10 % point [°C] lies inside :data:`FLASH_T10_RANGE_C` (bool array)
+- :func:`describe_ranges`: The validity ranges above as text, for method notes and warnings, by output...
+- constants: ``CCI_RANGE``, ``FLASH_T10_RANGE_C``
+
 References
 ----------
 .. [1] ASTM D4737, *Standard Test Method for Calculated Cetane Index by Four Variable Equation*,
@@ -17,6 +26,9 @@ from __future__ import annotations
 import numpy as np
 
 from ..units import as_scalar, c_to_f, f_to_c
+
+__all__ = ["cetane_index_d4737", "flash_point_api_2b7_1", "cci_in_range", "flash_in_range", "describe_ranges",
+           "CCI_RANGE", "FLASH_T10_RANGE_C"]
 
 
 def cetane_index_d4737(t10_c, t50_c, t90_c, density15_g_ml):

@@ -4,6 +4,13 @@
 
 with T and T0 absolute temperatures and x the fraction distilled.
 
+Contents
+--------
+- :class:`RiaziFit`: Parameters of a fitted Riazi distribution (T0 [K], A, B) and its RMS...
+- :func:`fit_riazi_distribution`: Fit the Riazi distribution [1]_ to a TBP curve
+- :func:`fit_riazi_many`: :func:`fit_riazi_distribution` of many curves at once: the grid search runs...
+- constants: ``MAX_FIT_POINTS``, ``GRID_PASSES``, ``ROWS_PER_CALL``
+
 References
 ----------
 .. [1] Riazi, M. R., "A Distribution Model for C7+ Fractions Characterization of Petroleum Fluids",
@@ -22,6 +29,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import CurveError
+
+__all__ = ["RiaziFit", "fit_riazi_distribution", "fit_riazi_many", "MAX_FIT_POINTS", "GRID_PASSES",
+           "ROWS_PER_CALL"]
 
 MAX_FIT_POINTS = 400
 """Curves with more points are fitted on an even subsample of this many (bounds time and memory)."""

@@ -4,6 +4,17 @@ Daubert 1994 (API TDB 3A1.1) and API TDB 3A3.1 / 3A3.2 convert the 50 % point fi
 temperature difference, building the curve out from 50 % upward and downward.  This module holds that
 construction once, vectorised over curves, in °F as the methods are published; the method modules supply
 the 50 % anchor and the segment constants.
+
+Contents
+--------
+- :func:`rising`: Segment differences checked to rise: a fall beyond :data:`FALL_TOL_F` is an...
+- :func:`power_step`: Forward segment step Y = A · X^B
+- :func:`inverse_power_step`: Inverse segment step X = (Y / A)^(1/B)
+- :func:`chain_from_50`: Build converted curves out from their 50 % points, segment by segment,...
+- :func:`normalise_points`: {percent: temperature} with float values and whole-number percents as int keys
+- :func:`require_points`: Refuse a curve that lacks a point the method needs, naming what it has
+- :func:`chain_mapping`: Run :func:`chain_from_50` on one curve given as {percent: temperature [°C]}
+- constants: ``FALL_TOL_F``
 """
 
 from __future__ import annotations
@@ -14,6 +25,9 @@ import numpy as np
 
 from ..errors import ConversionError
 from ..units import c_to_f, f_to_c
+
+__all__ = ["rising", "power_step", "inverse_power_step", "chain_from_50", "normalise_points", "require_points",
+           "chain_mapping", "FALL_TOL_F"]
 
 FALL_TOL_F = 1e-6
 """A segment may fall by this much (rounding noise of a monotone curve) and count as flat. [°F]"""

@@ -26,7 +26,7 @@ from .assay import Assay, validate_assay
 from .distributions import density_distribution_steps, narrow_cut_positions, sulfur_distribution_steps
 from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
-from .qualities import estimated_sulfur_steps, quality_distributions
+from .quality_distributions import estimated_sulfur_steps, quality_distributions
 from .spline import Pchip, interval_mean
 from .steps import run_alone, run_together
 from .tbp_curve import TbpCurve, build_curve_steps, staircase
@@ -59,7 +59,7 @@ class CrudeModel:
     sulfur_estimated : bool
         Cut sulfur is estimated from the whole-crude sulfur (no narrow-cut sulfur).
     qualities : dict of str to Quality
-        The other narrow-cut qualities (:mod:`assaycut.model.qualities`).
+        The other narrow-cut qualities (:mod:`assaycut.model.quality_distributions`).
     all_on_extension : str
         Why every cut's gravity (and what follows from it: weight yields, Watson K, sulfur, estimates) depends
         on the curve's fitted extension; empty when it does not (:func:`_properties_on_extension`).

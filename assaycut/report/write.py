@@ -117,7 +117,7 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (),
 
 def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
     """Library summary (xlsx and CSV), one row per assay."""
-    from ..cutting.library import summary_columns, summary_rows
+    from ..cutting.library_engine import summary_columns, summary_rows
     from .xlsx import fast_table_workbook
 
     columns = summary_columns(cs)

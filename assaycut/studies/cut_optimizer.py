@@ -135,7 +135,25 @@ def needed(price) -> set[str]:
     return {a.property for a in price.adjust}
 
 
-def _objective(cols: dict, names: list[str], maximize: str | None, prices: PriceSet | None) -> np.ndarray:
+def objective_values(cols: dict, names: list[str], maximize: str | None, prices: PriceSet | None) -> np.ndarray:
+    """The optimiser's objective for rows of cut columns: the volume yield of cut ``maximize`` [vol %], or
+    with ``prices`` the product worth per barrel of crude, Σ vol %/100 × adjusted price per bbl [currency/bbl]
+    (a cut without a price is an error; an unpriceable row worth -1e12).
+
+    Parameters
+    ----------
+    cols : dict of str to numpy.ndarray
+        Cut columns of shape (rows, cuts) (:func:`~assaycut.cutting.ideal.cut_columns`).
+    names : list of str
+        The cuts' names, in column order.
+    maximize : str or None
+    prices : PriceSet or None
+
+    Returns
+    -------
+    numpy.ndarray
+        One value per row.
+    """
     if maximize is not None:
         return cols["vol_pct"][:, names.index(maximize)]
     total = np.zeros(cols["vol_pct"].shape[0])
@@ -326,7 +344,7 @@ class _Problem:
         cols = cut_columns(self.model, self.full(x), only=self.only)
         self.last_cols = cols
         self.evaluations += x.shape[0]
-        obj = _objective(cols, self.names, self.maximize, self.prices)
+        obj = objective_values(cols, self.names, self.maximize, self.prices)
         marg, _ = limit_margins(cols, self.names, self.limits)
         yld = np.stack([cols["vol_pct"][:, j] - v for j, v in self.mins], axis=1) if self.mins else \
             np.zeros((x.shape[0], 0))

@@ -19,7 +19,7 @@ import numpy as np
 
 from ..cutting.cutset import CutSet
 from ..cutting.ideal import cut_columns
-from ..cutting.library import BatchModel, cut_library
+from ..cutting.library_engine import BatchModel, cut_library
 from ..errors import AssaycutError, StudyError
 from ..model.assay import Assay
 from ..model.crude import build_models

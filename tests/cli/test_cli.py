@@ -26,7 +26,7 @@ def test_yields_json_shape_and_no_files(tmp_path, monkeypatch):
     assert set(d["assay"]) == {"name", "source", "sha256", "api", "sg", "density_15c_kg_m3", "sulfur_wt_pct"}
     assert d["assay"]["name"] == "Selkie Light"
     assert [c["name"] for c in d["cuts"]][0] == "light ends"
-    from assaycut.cutting.qualities import ESTIMATED
+    from assaycut.cutting.cut_qualities import ESTIMATED
 
     qualities = set(ESTIMATED) | {"nitrogen_wt_ppm", "acid_number_mg_koh_g", "ron"}  # demo narrow-cut columns
     for c in d["cuts"]:
@@ -235,7 +235,7 @@ def test_convert_fahrenheit_and_d1160():
 
 
 def test_convert_d1160_watson_k_and_pressure_warning():
-    # API TDB 5A1.19 Watson K correction (reference sheet check value, computed): 365 °F at 10 mmHg with Kw 12.5
+    # API TDB 5A1.19 Watson K correction (computed from the equations, not printed): 365 °F at 10 mmHg with Kw 12.5
     # is 625.5 °F; 300 °C at 760 mmHg is 300 °C (definition of the normal boiling point).
     r = runner.invoke(app, ["convert", "--from", "D1160", "--to", "AET", "--pressure-mmhg", "10", "--watson-k",
                             "12.5", "--unit", "F", "--json", "50=365"])

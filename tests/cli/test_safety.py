@@ -291,7 +291,7 @@ def test_ctrl_c_inside_a_weakref_callback_still_stops_the_run(tmp_path):
 
 HELD_LOCK_INTERRUPT = r'''
 import time
-from assaycut.cli.batch import worker_pool
+from assaycut.cli.batch_runner import worker_pool
 from assaycut.cli.common import guarded
 
 

@@ -81,7 +81,7 @@ def test_daubert_1994_si_segment_constants_agree():
 
 
 def test_maxwell_bonnell_check_values():
-    # Computed from the Maxwell-Bonnell equations (reference sheet check values, not printed in a source):
+    # Computed from the Maxwell-Bonnell equations (computed from the equations of Maxwell & Bonnell 1957 and API TDB 5A1.19; not printed in a source):
     # 200 °C at 10 mmHg is about 348.8 °C AET; 365 °F at 10 mmHg with Kw 12.5 gives T' 627.9 °F, Tb 625.5 °F.
     assert abs(vacuum_to_aet_maxwell_bonnell(200.0, 10.0) - 348.8) < 0.05
     # The 760 mmHg anchoring (d1160.maxwell_bonnell_q) moves these by about 0.05 °F, hence 0.1 °F.
@@ -129,8 +129,8 @@ def _nbp_and_10mmhg(name):
 @pytest.mark.parametrize("name", ["n-decane", "n-dodecane", "n-tetradecane", "1-methylnaphthalene"])
 def test_maxwell_bonnell_watson_k_correction_against_pure_compounds(name):
     # Outside source: the `chemicals` library's vapour pressure and density data (see _nbp_and_10mmhg). From
-    # the temperature at 10 mmHg, the Kw-corrected AET (API TDB 5A1.19 with the sign of the corrected
-    # reference sheet) comes closer to the compound's normal boiling point than the Kw = 12 form, and within
+    # the temperature at 10 mmHg, the Kw-corrected AET (API TDB 5A1.19, with the sign that lowers a paraffinic
+    # fraction's AET below atmospheric pressure) comes closer to the compound's normal boiling point than the Kw = 12 form, and within
     # 1 °C of it.
     tb, t10, kw = _nbp_and_10mmhg(name)
     plain = vacuum_to_aet_maxwell_bonnell(t10 - 273.15, 10.0) + 273.15
@@ -150,7 +150,7 @@ def test_maxwell_bonnell_watson_k_correction_heavier_compounds(name):
 
 
 def test_maxwell_bonnell_watson_k_sign():
-    # API TDB 5A1.19 (sign as in the corrected reference sheet): below atmospheric pressure a paraffinic
+    # API TDB 5A1.19 (the sign checked by the pure-compound test above): below atmospheric pressure a paraffinic
     # fraction (Kw > 12) comes out lower than the Kw = 12 estimate and an aromatic one higher; above 760 mmHg
     # the other way round (log10(P/760) changes sign).
     base = vacuum_to_aet_maxwell_bonnell(250.0, 10.0)
@@ -166,7 +166,7 @@ def test_d2887_to_tbp_keeps_50pct_point():
 
 
 def test_d2887_to_tbp_printed_example():
-    # API TDB 3A3.1 worked example (quoted second-hand, reference sheet PROPERTIES §8d): SD at
+    # API TDB 3A3.1 worked example (quoted second-hand): SD at
     # 5/10/30/50/70/90/95 % of 293/305/324/336/344/359/369 °F gives TBP 322.2/327.7/332.4/336.0/339.6/350.1/357.4
     # °F, printed to 0.1 °F: the lowest segment is 5-10 % and the 30-10 constant 0.011903.
     sd = {p: (f - 32) / 1.8 for p, f in zip((5, 10, 30, 50, 70, 90, 95), (293, 305, 324, 336, 344, 359, 369))}

@@ -1,5 +1,6 @@
-"""Estimated fraction properties and blending indices against the printed examples the reference sheet
-PROPERTIES.md names (each example is quoted there from one open implementation's doctests: "one source")."""
+"""Estimated fraction properties and blending indices against the printed examples of the API TDB procedures
+and papers named beside each check (each quoted second-hand from one open implementation's doctests: "one
+source")."""
 
 from __future__ import annotations
 
@@ -56,7 +57,7 @@ def test_cold_flow_printed_examples():
 
 def test_aniline_smoke_and_refractive_index():
     # API TDB 2B9.1 (635.5 °R) and 2B10.1 (16.7 mm) printed examples, one source; Riazi-Daubert 1987 n20 of
-    # n-decane against its measured 1.4102 (reference sheet §3d; the method's
+    # n-decane against its measured 1.4102 (from memory; the method's
     # error is about 0.002), its Tb from the `chemicals` library.
     ap = fp.aniline_point_api_2b9_1(0.8304, f_to_c(570.2), _kw(570.2 + 459.67, 0.8304))
     assert float(ap) == pytest.approx(_r_to_c(635.5), abs=0.05 / 1.8)
@@ -74,14 +75,14 @@ def test_sulfur_riazi_1999_printed_values():
 
 
 def test_wickey_chittenden_printed_table():
-    # Printed index table (reference sheet §6): 20 °C -> 3281, 30 -> 1400, 50 -> 306, 80 -> 45, 100 -> 15.
+    # Printed index table of Wickey & Chittenden (1963), quoted second-hand: 20 °C -> 3281, 30 -> 1400, 50 -> 306, 80 -> 45, 100 -> 15.
     got = wickey_chittenden_index([20.0, 30.0, 50.0, 80.0, 100.0])
     assert np.allclose(got, [3281, 1400, 306, 45, 15], rtol=0.02)
     assert float(flash_from_wickey_chittenden_index(wickey_chittenden_index(61.0))) == pytest.approx(61.0, abs=1e-9)
 
 
 def test_rvp_index_printed_lp_blend():
-    # Course notes' printed LP blend (reference sheet §6): 17 924.9 gal butane (54 psi), 35 000 LSR (11.2),
+    # A printed LP blend of refinery course notes (quoted second-hand, from memory of the source): 17 924.9 gal butane (54 psi), 35 000 LSR (11.2),
     # 43 599.3 reformate (3.2), 24 225.8 FCC naphtha (1.4) -> printed blend RVP 15.0 psi (the index is a pure
     # power, so psi in, psi out).
     vols = [17924.9, 35000.0, 43599.3, 24225.8]
@@ -91,7 +92,7 @@ def test_rvp_index_printed_lp_blend():
 def test_smoke_point_reciprocal_rule_on_d1322_reference_blends():
     # ASTM D1322 reference blends of toluene in iso-octane (Jones & Pujadó, Handbook of Petroleum Processing,
     # Table 16.16): 0 % toluene 42.8 mm, 40 % 14.7 mm; a 50/50 blend of those two is 20 % toluene, printed 22.7
-    # mm. The reciprocal rule reproduces the printed blends within 1.2 mm (reference sheet §6).
+    # mm. The reciprocal rule reproduces the printed blends within 1.2 mm.
     assert float(blend("smoke_point_mm", [42.8, 14.7], [1, 1])) == pytest.approx(22.7, abs=1.2)
 
 

@@ -18,7 +18,7 @@ def test_cci_reference_point():
 
 
 def _cetane_index_d976(t50_c, d15):
-    """ASTM D976 cetane index, SI form (reference sheet §7): a different published method, for cross-checks."""
+    """ASTM D976 cetane index, SI form (constants from memory): a different published method, for cross-checks."""
     return 454.74 - 1641.416 * d15 + 774.74 * d15 ** 2 - 0.554 * t50_c + 97.803 * np.log10(t50_c) ** 2
 
 
@@ -39,7 +39,7 @@ def test_cci_trends():
 
 def _flash_riazi_daubert_1987_c(t10_c):
     """Riazi-Daubert 1987 flash point from D86 T10, 1/TF = -0.024209 + 2.84947/T10 + 3.4254e-3 ln T10 in K
-    (reference sheet §7, constants recalled from memory there): a second published method for a cross-check."""
+    (constants from memory): a second published method for a cross-check."""
     t = t10_c + 273.15
     return 1.0 / (-0.024209 + 2.84947 / t + 3.4254e-3 * np.log(t)) - 273.15
 

@@ -16,7 +16,7 @@ import pytest
 from assaycut.errors import AssaycutError, CurveError
 from assaycut.io import load_assay
 from assaycut.methods.riazi_distribution import fit_riazi_distribution, fit_riazi_many
-from assaycut.model.assay import Assay, CurveData, LightEnds, NarrowCuts
+from assaycut.model.assay import Assay, CurveData, LightEnds
 from assaycut.model.crude import build_model, build_models
 from assaycut.model.distributions import MeanMatchNeed, property_spline_steps
 from assaycut.model.spline import Pchip, slopes_on

@@ -15,7 +15,7 @@ import pytest
 
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.cutting.ideal import cut_columns
-from assaycut.cutting.library import BatchModel
+from assaycut.cutting.library_engine import BatchModel
 from assaycut.errors import AssaycutError
 from assaycut.io import load_assay
 from assaycut.model.assay import Assay, CurveData, LightEnds, NarrowCuts

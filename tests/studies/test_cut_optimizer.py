@@ -99,9 +99,9 @@ def test_optimum_matches_brute_force_grid_three_cut_points(demo):
     for k, g in enumerate(mesh):
         ends[:, 2 + k] = g.ravel()
     cols, ok = _brute_force(m, cs, read_limits(), None, ends)
-    from assaycut.studies.cut_optimizer import _objective
+    from assaycut.studies.cut_optimizer import objective_values
 
-    obj = _objective(cols, cs.names, None, ps)
+    obj = objective_values(cols, cs.names, None, ps)
     best = obj[ok].max()
     tol = _resolution(obj, ok, mesh[0].shape)
     assert best - 1e-9 <= res.objective <= best + tol
@@ -117,11 +117,11 @@ def test_hand_found_cut_points_are_a_lower_bound(demo):
     ps = load_prices(DEMO_PRICES)
     hand = cs.ends_c.copy()
     hand[1:] = [25.0, 150.1, 232.5, 358.0, 620.0]
-    from assaycut.studies.cut_optimizer import _objective
+    from assaycut.studies.cut_optimizer import objective_values
 
     cols, ok = _brute_force(m, cs, read_limits(), None, hand[None, :])
     assert ok[0]
-    worth_hand = float(_objective(cols, cs.names, None, ps)[0])
+    worth_hand = float(objective_values(cols, cs.names, None, ps)[0])
     res = optimize_cut_points(m, cs, read_limits(), prices=ps, min_yields={"all": 0.0})
     assert res.feasible and res.converged
     assert res.objective >= worth_hand - 1e-9

@@ -26,7 +26,7 @@ from ..methods.fraction_properties import (
     sulfur_riazi_1999,
 )
 from .assay import Assay
-from .distributions import narrow_cut_positions, property_spline, property_spline_steps
+from .distributions import narrow_cut_positions, property_spline_steps
 from .steps import run_alone
 from .lightends import GAS_RANGE_MAX_C
 from .spline import Pchip
@@ -200,7 +200,8 @@ def estimated_sulfur(model) -> Pchip:
     naphtha rising through the distillates (our choice, outside the heavy form's stated range for the light
     slices).  The slices' sulfur is made non-decreasing along the curve (sulfur rises with boiling range in
     straight-run cuts; common practice, no source).  The distribution is then scaled so that the crude reproduces
-    its sulfur (the reference sheet's §5b suggestion; the values are estimates).
+    its sulfur (our choice: the form gives the shape, the crude's measured sulfur the level; the values are
+    estimates).
 
     Parameters
     ----------

@@ -96,7 +96,7 @@ def yields(
     (exit code 2 at the end).
     """
     from ..studies.uncertainty import Sigmas
-    from .batch import FOLDER_NOTE, YieldJob, new_claims, release_claims, run_batch
+    from .batch_runner import FOLDER_NOTE, YieldJob, new_claims, release_claims, run_batch
 
     cs = load_cut_set(cuts, end, overlap)
     lim = load_limits(limits)

@@ -105,7 +105,7 @@ def test_d341_gives_40c_viscosity_from_two_measured_temperatures():
 def test_real_column_products_carry_the_qualities_and_balance():
     # Mass balance (identity): with overlapping product boundaries, Σ wt % x nitrogen over the products still
     # equals the crude's, and the products report the same quality columns as ideal cuts.
-    from assaycut.cutting.products import fractionate
+    from assaycut.cutting.real_column import fractionate
 
     a = _assay({"nitrogen_wt_ppm": [0.0, 40.0, 300.0, 2500.0]}, {"nitrogen_wt_ppm": 800.0})
     m = build_model(a)

@@ -7,7 +7,7 @@ import pytest
 
 from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
 from assaycut.cutting.ideal import cut_columns
-from assaycut.cutting.library import cut_library, library_summary
+from assaycut.cutting.library_engine import cut_library, library_summary
 from assaycut.io import load_assay
 from assaycut.model.assay import Assay, CurveData
 from assaycut.model.crude import build_model
@@ -56,7 +56,7 @@ def test_parallel_run_identical_to_serial(tmp_path, demo_paths):
     import json
     import shutil
 
-    from assaycut.cli.batch import YieldJob, run_batch
+    from assaycut.cli.batch_runner import YieldJob, run_batch
     from assaycut.io.tomlfiles import read_limits
     from assaycut.report.jsonout import yield_json
 
@@ -172,7 +172,7 @@ def test_summary_rows_made_in_the_workers_give_the_same_files(tmp_path, demo_pat
 
     import openpyxl
 
-    from assaycut.cli.batch import SummaryResult, YieldJob, run_batch
+    from assaycut.cli.batch_runner import SummaryResult, YieldJob, run_batch
     from assaycut.io.tomlfiles import read_limits
     from assaycut.report.write import write_library_summary
 

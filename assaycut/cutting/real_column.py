@@ -39,7 +39,7 @@ from .ideal import (
     derive_qualities,
     first_row,
 )
-from .qualities import product_quality_columns
+from .cut_qualities import product_quality_columns
 
 Z95 = 1.6448536269514722
 """Standard normal quantile of 95 %."""

@@ -11,7 +11,7 @@ from typer.testing import CliRunner
 
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.cutting.ideal import cut_table
-from assaycut.cutting.products import fractionate, split_fractions
+from assaycut.cutting.real_column import fractionate, split_fractions
 from assaycut.io import load_assay
 from assaycut.model.crude import build_model
 from assaycut.yields import run_yields

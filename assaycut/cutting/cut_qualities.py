@@ -1,8 +1,8 @@
 """Every narrow-cut quality on every cut, and estimates where the narrow cuts do not cover a cut.
 
-A quality measured on the narrow cuts (:mod:`assaycut.model.qualities`) reaches a cut as the inverse of its
+A quality measured on the narrow cuts (:mod:`assaycut.model.quality_distributions`) reaches a cut as the inverse of its
 blending index's mean over the cut, on the index's basis, where the narrow cuts that measured it cover at
-least :data:`~assaycut.model.qualities.COVERED_FRACTION` of the cut.  Elsewhere a published correlation
+least :data:`~assaycut.model.quality_distributions.COVERED_FRACTION` of the cut.  Elsewhere a published correlation
 estimates it from the cut's MeABP, SG and Watson K, inside the correlation's stated range only
 (:mod:`assaycut.methods.fraction_properties`), and the value is flagged *estimated*.  Viscosities measured at
 two temperatures also give the 40 and 100 °C values by ASTM D341 (flagged estimated).
@@ -29,7 +29,7 @@ from ..methods.fraction_properties import (
     viscosity_api_11a4_2,
     viscosity_d341,
 )
-from ..model.qualities import COVERED_FRACTION
+from ..model.quality_distributions import COVERED_FRACTION
 
 T100F_C, T210F_C = 37.7778, 98.8889
 """100 °F and 210 °F. [°C]"""

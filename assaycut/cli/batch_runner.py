@@ -55,7 +55,7 @@ class LightResult:
 @dataclass
 class SummaryResult:
     """What a batch that writes the library summary alone needs of an assay's result: its summary row
-    (:func:`~assaycut.cutting.library.summary_rows`) and its lines of the long table (CSV text, escaped)."""
+    (:func:`~assaycut.cutting.library_engine.summary_rows`) and its lines of the long table (CSV text, escaped)."""
 
     name: str
     warnings: list
@@ -156,7 +156,7 @@ def _deliver(result, job: YieldJob):
     written = []
     assay = result.assay
     if job.summary:
-        from ..cutting.library import summary_row, summary_rows
+        from ..cutting.library_engine import summary_row, summary_rows
         from ..report.tables import long_rows
         from ..report.write import csv_body
 
