@@ -266,6 +266,9 @@ def _properties_on_extension(assay: Assay, curve: TbpCurve, kw_fit: float | None
     gravity over the whole curve, or a narrow cut's boundary lies where the curve depends on the extension and
     not on a measured point (its position on the curve, hence the distributions through their whole-crude
     reconciliation, then moves with the extension).
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them).
     """
     if curve.fit is None:
         return ""
@@ -286,7 +289,10 @@ def _properties_on_extension(assay: Assay, curve: TbpCurve, kw_fit: float | None
 
 
 def _tbp_points(assay: Assay, method: str, warnings: list[str], methods: dict[str, str]):
-    """The main curve on the TBP basis, extended by the points of any vacuum curve that lie beyond it."""
+    """The main curve on the TBP basis, extended by the points of any vacuum curve that lie beyond it.
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     main = assay.curves[0]
     p, t, w, desc = curve_to_tbp(main, method)
     warnings += w
@@ -349,7 +355,10 @@ def _to_volume_basis(p, t, assay: Assay, warnings: list[str], methods: dict[str,
 
 
 def _light_ends_nodes(assay: Assay, first_t: float):
-    """Light-ends staircase nodes, component vol % of crude and the per-component (mid vol %, SG)."""
+    """Light-ends staircase nodes, component vol % of crude and the per-component (mid vol %, SG).
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     le = assay.light_ends
     if le is None or not le.amounts:
         return None, None, []

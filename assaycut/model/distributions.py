@@ -56,7 +56,10 @@ def property_spline(lo, hi, values, fixed=(), iterations: int = 30, floor: float
 
 def property_spline_steps(lo, hi, values, fixed=(), iterations: int = 30, floor: float | None = 0.0):
     """:func:`property_spline` as a step function (:mod:`assaycut.model.steps`): the node correction is a
-    :class:`MeanMatchNeed`, so that many splines can be corrected in one array call."""
+    :class:`MeanMatchNeed`, so that many splines can be corrected in one array call.
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     lo, hi, vals = (np.asarray(z, dtype=float) for z in (lo, hi, values))
     mids = 0.5 * (lo + hi)
     fx = np.array([q[0] for q in fixed], dtype=float)
@@ -237,7 +240,10 @@ def density_distribution(assay: Assay, curve: TbpCurve, le_mids, warnings: list[
 
 def density_distribution_steps(assay: Assay, curve: TbpCurve, le_mids, warnings: list[str], positions=None):
     """:func:`density_distribution` as a step function (:mod:`assaycut.model.steps`); ``positions`` as for
-    :func:`sulfur_distribution_steps`."""
+    :func:`sulfur_distribution_steps`.
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     nc = assay.narrow_cuts
     gas_v = np.array([])
     if not le_mids and curve.ibp_c < GAS_RANGE_MAX_C:  # the IBP is the TBP at 0 %
@@ -318,7 +324,10 @@ def sulfur_distribution(model, assay: Assay, le_mids) -> None:
 
 def sulfur_distribution_steps(model, assay: Assay, le_mids, positions=None):
     """:func:`sulfur_distribution` as a step function (:mod:`assaycut.model.steps`); ``positions``: the narrow
-    cuts' (start, end) vol % on the model's curve when the caller has them (:func:`narrow_cut_positions`)."""
+    cuts' (start, end) vol % on the model's curve when the caller has them (:func:`narrow_cut_positions`).
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     nc = assay.narrow_cuts
     if nc is None or np.isfinite(nc.sulfur_wt_pct).sum() < 2:
         model.warnings.append("no narrow-cut sulfur (fewer than 2 values): cut sulfur is left empty")

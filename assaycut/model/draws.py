@@ -31,7 +31,7 @@ from .crude import AT_NODE_C
 from .distributions import mean_match_arrays
 from .lightends import GAS_RANGE_MAX_C, convert_basis, find_component
 from .spline import Pchip, pad_nodes, slopes_on
-from .tbp_curve import END_CAP_C, END_FRACTION, LIGHT_ENDS_TOL_PCT, METHANE_NBP_C, STEP_C
+from .tbp_curve import END_CAP_C, END_CAP_STEP_C, END_FRACTION, LIGHT_ENDS_TOL_PCT, METHANE_NBP_C, STEP_C
 
 
 @dataclass
@@ -346,7 +346,7 @@ def _tail(live: _Live) -> list[_Live]:
     with np.errstate(over="ignore", invalid="ignore"):
         tx = _riazi_temp(live, xs) + off[:, None]
     vx = 100.0 * xs
-    cap = np.maximum(END_CAP_C, t[:, -1] + 50.0)
+    cap = np.maximum(END_CAP_C, t[:, -1] + END_CAP_STEP_C)
     under = np.isfinite(tx) & (tx < cap[:, None])
     j = under.sum(axis=1)
     prefix = (under == (np.arange(under.shape[1])[None, :] < j[:, None])).all(axis=1)

@@ -27,6 +27,9 @@ END_FRACTION = 0.9995
 END_CAP_C = 850.0
 """Highest end point given to an extended curve: above about 750-850 °C no TBP or simulated distillation is
 measured, and the heaviest residue is lumped up to this point (common practice, no source). [°C]"""
+END_CAP_STEP_C = 50.0
+"""A curve measured close to or past :data:`END_CAP_C` ends this far above its last point instead (our
+choice). [°C]"""
 POOR_FIT_RMS_C = 5.0
 """RMS deviation of the distribution fit above which a warning is given. [°C]"""
 LIGHT_ENDS_TOL_PCT = 0.1
@@ -274,7 +277,10 @@ def build_curve_steps(percent, temp_c, *, front_t=None, front_v=None, fit: Riazi
 
 
 def _checked_points(percent, temp_c) -> tuple[np.ndarray, np.ndarray]:
-    """The points ordered by percent, refused when fewer than two, flat, or falling in temperature."""
+    """The points ordered by percent, refused when fewer than two, flat, or falling in temperature.
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     v = np.asarray(percent, dtype=float)
     t = np.asarray(temp_c, dtype=float)
     if v.size < 2:
@@ -293,7 +299,10 @@ def _checked_points(percent, temp_c) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _widen_repeats(v: np.ndarray, t: np.ndarray, warnings: list[str]) -> np.ndarray:
-    """Repeated temperatures at rising percent become vertical steps :data:`STEP_C` wide."""
+    """Repeated temperatures at rising percent become vertical steps :data:`STEP_C` wide.
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     rep = (t[1:] - t[:-1]) == 0
     if not rep.any():
         return t
@@ -306,7 +315,10 @@ def _widen_repeats(v: np.ndarray, t: np.ndarray, warnings: list[str]) -> np.ndar
 
 def _place_light_ends(v, t, front_t, front_v, warnings: list[str]):
     """Light-ends staircase nodes (T, V) placed in front of the first measured point, or (None, None) when
-    there are none or they do not fit there (with a warning)."""
+    there are none or they do not fit there (with a warning).
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     if front_t is None or len(front_t) == 0:
         return None, None
     ft, fv = np.asarray(front_t, float), np.asarray(front_v, float)
@@ -331,7 +343,10 @@ def _place_light_ends(v, t, front_t, front_v, warnings: list[str]):
 def _tail_extension(v, t, fit: RiaziFit, warnings: list[str]):
     """Nodes (T, V) past the last measured point: the fitted distribution shifted to meet it, up to its
     :data:`END_FRACTION` point, capped at :data:`END_CAP_C` (the residue above is lumped at the cap), and the
-    lumped share [vol %]."""
+    lumped share [vol %].
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     x_last = v[-1] / 100.0
     z = np.linspace(np.log(1 / (1 - x_last)), np.log(1 / (1 - END_FRACTION)), 40)[1:]
     xs = 1.0 - np.exp(-z)
@@ -339,7 +354,7 @@ def _tail_extension(v, t, fit: RiaziFit, warnings: list[str]):
     with np.errstate(over="ignore", invalid="ignore"):
         tx = fit.temp_c(xs) + off
     vx = 100.0 * xs
-    cap = max(END_CAP_C, t[-1] + 50.0)
+    cap = max(END_CAP_C, t[-1] + END_CAP_STEP_C)
     under = np.isfinite(tx) & (tx < cap)
     tx = np.concatenate([tx[under][:-1], [cap if not under.all() else tx[-1]]])
     vx = np.concatenate([vx[under][:-1], [100.0]])
@@ -352,7 +367,10 @@ def _tail_extension(v, t, fit: RiaziFit, warnings: list[str]):
 
 
 def _front_extension(v, t, fit: RiaziFit):
-    """Nodes (T, V) before the first measured point, from 0 %: the fitted distribution shifted to meet it."""
+    """Nodes (T, V) before the first measured point, from 0 %: the fitted distribution shifted to meet it.
+
+    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
+    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     x_first = v[0] / 100.0
     xs = np.linspace(0.0, x_first, 12)[:-1]
     return fit.temp_c(xs) + t[0] - fit.temp_c(x_first), 100.0 * xs
@@ -384,7 +402,7 @@ def extension_band(curve: TbpCurve, pct) -> tuple[np.ndarray, np.ndarray, list[n
     v, t = curve.measured_pct, curve.measured_temp_c
     if curve.fit is None or v.size < 3 or v[-1] >= 100.0:
         return own, own, []
-    cap = max(END_CAP_C, float(t[-1]) + 50.0)
+    cap = max(END_CAP_C, float(t[-1]) + END_CAP_STEP_C)
     refits = []
     inside = (v > 0.0) & (v < 100.0)
     for n in (None,) + BAND_LAST_POINTS:

@@ -88,7 +88,8 @@ def draw_values(assay: Assay, sig: Sigmas, rng: np.random.Generator, count: int)
         p = np.clip(c.percent + err[2 * k + 1], 0.0, 100.0)
         if k == 0 and le is not None and le.amounts and c.percent[0] > 0:
             p[:, 0] = c.percent[0]  # the light ends' total: one measurement with the light-ends analysis
-        temp_c.append(np.maximum.accumulate(t + np.arange(t.shape[1]) * 1e-6, axis=1))
+        nudge = np.arange(t.shape[1]) * 1e-6 if sig.temp_c > 0 else 0.0  # none when nothing is perturbed
+        temp_c.append(np.maximum.accumulate(t + nudge, axis=1))
         percent.append(np.maximum.accumulate(p, axis=1))
     k = 2 * len(assay.curves)
     out = DrawValues(percent, temp_c, assay.sg + err[k][:, 0])
