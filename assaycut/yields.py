@@ -10,8 +10,9 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from .cutting.cutset import CutSet
-from .cutting.ideal import add_rates, closure, cut_rows, cut_table
-from .cutting.limits import Limit, check_limits, limit_rows, nearest_cut, unmatched_cuts
+from .cutting.cut_table import CutTable
+from .cutting.ideal import add_rates, closure, cut_table
+from .cutting.limits import Limit, check_limits, limit_rows, limit_table, nearest_cut, unmatched_cuts
 from .cutting.cut_qualities import ESTIMATED, NOT_ESTIMATED
 from .methods.product_properties import describe_ranges
 from .model.assay import Assay
@@ -39,11 +40,11 @@ class YieldResult:
     assay : Assay
     model : CrudeModel
     cut_set : CutSet
-    cuts : pandas.DataFrame or list of dict
-        The cut table (see :data:`assaycut.cutting.ideal.CUT_COLUMNS`); its rows as dicts when run with
-        ``frames=False``.
-    limits : pandas.DataFrame or list of dict
-        Product-limit status (see :func:`assaycut.cutting.limits.check_limits`); rows as dicts likewise.
+    cuts : CutTable
+        The cut table (see :data:`assaycut.cutting.ideal.CUT_COLUMNS`); ``.rows()`` or ``.frame()`` for dicts
+        or a DataFrame.
+    limits : CutTable
+        Product-limit status (see :func:`assaycut.cutting.limits.check_limits`).
     closure : dict
         Σ vol % - 100 and Σ wt % - 100. [%]
     warnings, notes : list of str
@@ -53,15 +54,15 @@ class YieldResult:
     assay: Assay
     model: CrudeModel
     cut_set: CutSet
-    cuts: object
-    limits: object
+    cuts: CutTable
+    limits: CutTable
     closure: dict[str, float]
     warnings: list[str] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
     methods: dict[str, str] = field(default_factory=dict)
     products: dict | None = None
     """Product curves of a real column (see :func:`assaycut.cutting.real_column.fractionate`); None for ideal cuts."""
-    bands: object = None
+    bands: CutTable | None = None
     """P10/P50/P90 per cut under the measurement uncertainty (see :mod:`assaycut.studies.uncertainty`), or None."""
     json_doc: dict | None = None
     """The ``yields --json`` object, when a batch worker made it (else made from the fields on demand)."""
@@ -89,8 +90,7 @@ METHOD_NOTES = {
 
 def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
                method: str = "daubert-1994", model: CrudeModel | None = None, uncertainty_draws: int = 0,
-               sigmas=None, rate_bbl_per_day: float | None = None, progress=None, map_fn=map,
-               frames: bool = True) -> YieldResult:
+               sigmas=None, rate_bbl_per_day: float | None = None, progress=None, map_fn=map) -> YieldResult:
     """Model, cut and check one assay.
 
     Parameters
@@ -113,11 +113,6 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         ``progress(done, total)`` during the uncertainty draws.
     map_fn : callable
         Map-like callable sharing the uncertainty draws out (see :func:`~assaycut.studies.uncertainty.monte_carlo`).
-    frames : bool
-        Give the cut table and the limit status as DataFrames (default, what the report writers take), or,
-        when False, as lists of row dicts with the same keys and values, made without pandas (for a result that
-        is only printed as JSON; ideal cuts without --rate only, else DataFrames anyway); the uncertainty
-        bands likewise (a :class:`~assaycut.studies.uncertainty.BandRows` then).
 
     Returns
     -------
@@ -125,27 +120,22 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     """
     model = model or build_model(assay, method)
     products = None
-    if not frames and not cut_set.overlaps and rate_bbl_per_day is None:
-        cuts, cols = cut_rows(model, cut_set)
-        names = [r["name"] for r in cuts]
-        lim = limit_rows(names, cols, limits or [])
-    else:
-        if cut_set.overlaps:
-            from .cutting.real_column import fractionate
+    if cut_set.overlaps:
+        from .cutting.real_column import fractionate
 
-            cuts, products = fractionate(model, cut_set, cut_set.overlaps)
-        else:
-            cuts = cut_table(model, cut_set)
-        if rate_bbl_per_day is not None:
-            cuts = add_rates(cuts, rate_bbl_per_day, float(sg_to_density15(assay.sg)))
-        lim = check_limits(cuts, limits or [])
-        names = list(cuts["name"])
+        cuts, products = fractionate(model, cut_set, cut_set.overlaps)
+    else:
+        cuts = cut_table(model, cut_set)
+    if rate_bbl_per_day is not None:
+        cuts = add_rates(cuts, rate_bbl_per_day, float(sg_to_density15(assay.sg)))
+    lim = check_limits(cuts, limits or [])
+    names = cuts["name"]
     res = _assemble(assay, model, cut_set, limits, cuts, lim, names, products)
     if uncertainty_draws:
         from .studies.uncertainty import Sigmas, monte_carlo
 
         res.bands = monte_carlo(assay, cut_set, sigmas or Sigmas(), uncertainty_draws, method=method,
-                                progress=progress, map_fn=map_fn, frames=frames)
+                                progress=progress, map_fn=map_fn)
         res.methods["uncertainty"] = (f"Monte Carlo over the curve model, {res.bands.attrs['draws']} draws "
                                       f"({res.bands.attrs['failed']} failed); ideal cuts; "
                                       f"{res.bands.attrs['sigmas']}")
@@ -154,7 +144,7 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
 
 def run_yields_many(assays: list[Assay], models: list[CrudeModel], cut_set: CutSet,
                     limits: list[Limit] | None = None) -> list[YieldResult]:
-    """:func:`run_yields` with ``frames=False`` for many assays at once: their models are cut together by the
+    """:func:`run_yields` for many assays at once: their models are cut together by the
     library engine (:func:`~assaycut.cutting.library_engine.cut_library`, row-wise arrays over the assays), then each
     result is assembled as :func:`run_yields` does.  Ideal cuts only (no overlaps); the same results as one
     :func:`run_yields` per assay to 1e-9 (tested), not bit for bit (the row-wise arithmetic differs).
@@ -170,9 +160,8 @@ def run_yields_many(assays: list[Assay], models: list[CrudeModel], cut_set: CutS
     Returns
     -------
     list of YieldResult
-        Cut tables and limit status as lists of row dicts.
     """
-    from .cutting.ideal import columns_rows, first_row, with_table_d86
+    from .cutting.ideal import columns_table, first_row, with_table_d86
     from .cutting.library_engine import cut_library
 
     if cut_set.overlaps:
@@ -184,8 +173,8 @@ def run_yields_many(assays: list[Assay], models: list[CrudeModel], cut_set: CutS
     out = []
     for r, (assay, model) in enumerate(zip(assays, models)):
         row = {k: (v[r:r + 1] if k != "estimated" else {n: f[r:r + 1] for n, f in v.items()}) for k, v in cols.items()}
-        cuts = columns_rows(names, first_row(row))
-        lim = limit_rows(names, row, limits or [])
+        cuts = columns_table(names, first_row(row))
+        lim = limit_table(limit_rows(names, row, limits or []))
         out.append(_assemble(assay, model, cut_set, limits, cuts, lim, names, None))
     return out
 
@@ -216,14 +205,11 @@ def _assemble(assay: Assay, model: CrudeModel, cut_set: CutSet, limits, cuts, li
     return YieldResult(assay, model, cut_set, cuts, lim, clo, warnings, notes, methods, products)
 
 
-def _cut_warnings(cuts, model: CrudeModel) -> list[str]:
+def _cut_warnings(cuts: CutTable, model: CrudeModel) -> list[str]:
     """Warnings about the cuts: reaching into the extension, D86 estimates above 400 °C, empty cuts, estimates
     left empty outside their method's range."""
     warnings = []
-
-    def column(key: str) -> list:
-        return [r[key] for r in cuts] if isinstance(cuts, list) else cuts[key].tolist()
-
+    column = cuts.column
     names = column("name")
     d86 = column("d86_c")
     ext = [n for n, x in zip(names, column("extrapolated")) if x]

@@ -86,7 +86,7 @@ def cuts_of(assay):
     from assaycut.cutting.cutset import default_cut_set
     from assaycut.yields import run_yields
 
-    return run_yields(assay, default_cut_set()).cuts.set_index("name")
+    return run_yields(assay, default_cut_set()).cuts.frame().set_index("name")
 
 
 def reference_inverse(s, yq):

@@ -67,7 +67,7 @@ def test_random_curves_cut_or_refused(curve, sg, sulfur):
         res = run_yields(a, default_cut_set())
     except AssaycutError:
         return
-    cuts = res.cuts
+    cuts = res.cuts.frame()
     # yields sum to 100 % on both bases (identity)
     assert cuts["vol_pct"].sum() == pytest.approx(100.0, abs=1e-6)
     assert cuts["wt_pct"].sum() == pytest.approx(100.0, abs=1e-6)
@@ -102,7 +102,7 @@ def test_random_cut_sets(ends, swings):
     except AssaycutError:
         return
     m = _demo_model()
-    df = cut_table(m, cs)
+    df = cut_table(m, cs).frame()
     assert df["vol_pct"].sum() == pytest.approx(100.0, abs=1e-9)
 
 

@@ -33,7 +33,7 @@ def _assay(**kw):
 
 def test_a_valid_assay_from_code_builds():
     m = build_model(_assay())
-    assert cut_table(m, default_cut_set())["vol_pct"].sum() == pytest.approx(100.0, abs=1e-9)  # mass balance
+    assert cut_table(m, default_cut_set()).frame()["vol_pct"].sum() == pytest.approx(100.0, abs=1e-9)  # mass balance
 
 
 @pytest.mark.parametrize("kw,match", [
@@ -88,6 +88,6 @@ def test_fuzzed_public_api_gives_a_model_or_our_error(sg, sulfur, pct, temp, met
         m = build_model(a)
     except AssaycutError:
         return
-    t = cut_table(m, default_cut_set())
+    t = cut_table(m, default_cut_set()).frame()
     assert t["vol_pct"].sum() == pytest.approx(100.0, abs=1e-6)
     assert t["wt_pct"].sum() == pytest.approx(100.0, abs=1e-6)

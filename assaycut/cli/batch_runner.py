@@ -34,12 +34,16 @@ class YieldJob:
     rate_bbl_per_day: float | None = None
     unit: str = "C"  # display unit of the report's temperatures ('C' or 'F')
     claims: str = ""  # the run's claims folder for report folder names (see claim_folder); "" for one assay
-    json_doc: bool = False  # make each assay's JSON object in the worker (yields --json)
-    light: bool = False  # send back only the JSON object and the warnings (nothing else of the result is used)
-    frames: bool = True  # cut tables as DataFrames (what the report writers and printed tables take); else rows
-    json_text: bool = False  # a light result carries its JSON object already encoded on one line (big batches)
-    summary: bool = False  # send back only the assay's library-summary row and long-table lines (SummaryResult);
-    # such a job has no limits (nothing it writes shows them)
+    output: str = "result"  # what comes back of each assay: one of OUTPUTS
+
+
+OUTPUTS = {
+    "result": "the whole YieldResult (printed tables, reports, the JSON made from it by the caller)",
+    "json": "the assay's JSON object and its warnings, made in the worker (LightResult)",
+    "json-line": "the same object already encoded on one line (LightResult.json_text; big batches)",
+    "summary": "the assay's library-summary row and long-table lines (SummaryResult); the job has no limits",
+}
+"""The output modes of a :class:`YieldJob`, chosen by the command line."""
 
 
 @dataclass
@@ -49,7 +53,7 @@ class LightResult:
     name: str
     warnings: list
     json_doc: dict | None
-    json_text: str | None = None  # the same object encoded on one line (see YieldJob.json_text), json_doc then None
+    json_text: str | None = None  # the same object encoded on one line (output "json-line"), json_doc then None
 
 
 @dataclass
@@ -126,8 +130,7 @@ def run_one(path: str, job: YieldJob, progress=None, map_fn=map):
         assay = _load(path, job)
         result = run_yields(assay, job.cut_set, job.limits, method=job.method,
                             uncertainty_draws=job.uncertainty_draws, sigmas=job.sigmas,
-                            rate_bbl_per_day=job.rate_bbl_per_day, progress=progress, map_fn=map_fn,
-                            frames=job.frames)
+                            rate_bbl_per_day=job.rate_bbl_per_day, progress=progress, map_fn=map_fn)
         return _deliver(result, job)
     except Exception as exc:  # a batch goes on; the failure is reported with its path
         return None, [], _failure(path, exc)
@@ -155,15 +158,15 @@ def _deliver(result, job: YieldJob):
     parts (summary jobs): the outcome of one assay."""
     written = []
     assay = result.assay
-    if job.summary:
+    if job.output == "summary":
         from ..cutting.library_engine import summary_row, summary_rows
         from ..report.tables import long_rows
         from ..report.write import csv_body
 
-        if job.cut_set.overlaps or not isinstance(result.cuts, list):  # the summary reads the ideal cuts
+        if job.cut_set.overlaps or job.rate_bbl_per_day is not None:  # the summary reads the ideal cuts alone
             row = summary_rows([assay], [result.model], job.cut_set)[0]
         else:
-            row = summary_row(assay, result.model, result.cuts)
+            row = summary_row(assay, result.model, result.cuts.rows())
         text = csv_body(long_rows(result.cuts, assay.name, escaped=True), escaped=True)
         return SummaryResult(assay.name, list(result.warnings), row, text), written, None
     if job.report_root is not None:
@@ -177,24 +180,22 @@ def _deliver(result, job: YieldJob):
                 result.warnings.append(f"{FOLDER_NOTE}{folder.name!r}: {slug(assay.name)!r} is taken by "
                                        f"another assay of this run with a similar name")
         written = write_yield_report(result, folder, job.inputs, job.unit)
-    if job.json_doc:
+    if job.output in ("json", "json-line"):
         from ..report.jsonout import yield_json
 
-        result.json_doc = yield_json(result)
-        if job.light and job.json_text:
+        doc = yield_json(result)
+        if job.output == "json-line":
             from .common import json_text
 
-            text = json_text(result.json_doc, compact=True)
-            return LightResult(assay.name, list(result.warnings), None, text), written, None
-        if job.light:
-            return LightResult(assay.name, list(result.warnings), result.json_doc), written, None
+            return LightResult(assay.name, list(result.warnings), None, json_text(doc, compact=True)), written, None
+        return LightResult(assay.name, list(result.warnings), doc), written, None
     return result, written, None
 
 
 def together(job: YieldJob) -> bool:
-    """Whether a job's assays can be cut together by the library engine (:func:`run_chunk`): row results only
-    (no report or printed table), ideal cuts, no rates, no uncertainty draws."""
-    return (not job.frames and job.report_root is None and not job.cut_set.overlaps
+    """Whether a job's assays can be cut together by the library engine (:func:`run_chunk`): no per-assay
+    report, ideal cuts, no rates, no uncertainty draws (the results equal one cut per assay to 1e-9)."""
+    return (job.report_root is None and not job.cut_set.overlaps
             and job.rate_bbl_per_day is None and not job.uncertainty_draws)
 
 
@@ -366,12 +367,14 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
         if parallel:
             from concurrent.futures import as_completed
 
-            outcomes[0] = run_one(paths[0], job)  # in the parent first: the forked workers inherit its imports
+            # the first chunk in the parent first (the forked workers inherit its imports), the others in the
+            # workers: the same chunks as a serial run, so the same results to the last bit
+            outcomes[:TASK_SIZE] = run_chunk(paths[:TASK_SIZE], job)
             if bar:
-                bar.advance()
+                bar.advance(len(paths[:TASK_SIZE]))
 
             with worker_pool(min(cores, len(paths))) as pool:
-                starts = range(1, len(paths), TASK_SIZE)
+                starts = range(TASK_SIZE, len(paths), TASK_SIZE)
                 futs = {pool.submit(_worker, (paths[k:k + TASK_SIZE], job)): k for k in starts}
                 for f in as_completed(futs):
                     for j, outcome in enumerate(f.result()):
@@ -381,7 +384,7 @@ def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, 
         elif len(paths) == 1 and job.uncertainty_draws:
             with progress_bar("uncertainty draws", job.uncertainty_draws) as draws, draw_pool(job) as map_fn:
                 outcomes[0] = run_one(paths[0], job, progress=draws, map_fn=map_fn)
-        elif together(job) and len(paths) > 1:
+        elif len(paths) > 1:
             for k in range(0, len(paths), TASK_SIZE):
                 outcomes[k:k + TASK_SIZE] = run_chunk(paths[k:k + TASK_SIZE], job)
                 if bar:

@@ -102,7 +102,7 @@ def _inside_bands(results) -> list[tuple[str, str, str]]:
 
     out = []
     for j, cut in enumerate(results[0].cuts["name"]):
-        bands = {r.assay.name: (float(r.bands["vol_pct_p10"].iloc[j]), float(r.bands["vol_pct_p90"].iloc[j]))
+        bands = {r.assay.name: (float(r.bands["vol_pct_p10"][j]), float(r.bands["vol_pct_p90"][j]))
                  for r in results}
         out += [(cut, a, b) for a, b in overlapping(bands)]
     return out

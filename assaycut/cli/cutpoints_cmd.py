@@ -66,9 +66,8 @@ def vectors(
         if lim:
             from ..cutting.limits import check_limits
 
-            status = {(x["cut"]): x["status"] for x in check_limits(base, lim).to_dict("records")
-                      if x["status"] == "fail"}
-            base = base.assign(limits=[("fail" if n in status else "") for n in base["name"]])
+            status = {(x["cut"]): x["status"] for x in check_limits(base, lim).rows() if x["status"] == "fail"}
+            base = base.with_columns(base.keys[-1], {"limits": [("fail" if n in status else "") for n in base["name"]]})
         entries.append((a.name, base, deltas))
         if out is not None or not json_out:
             from ..report.studyreports import vectors_files
@@ -238,7 +237,7 @@ def optimize(
     new_cs = cs.with_ends({c.name: float(e) for c, e in zip(cs.cuts, res.ends_c)}, cs.label + " optimised")
     tables = out is not None or not json_out  # the plot and the printed table read both runs' tables
     before = run_yields(a, cs, lim, model=model) if tables else None
-    after = run_yields(a, new_cs, lim, model=model, frames=tables)  # JSON alone: rows, no pandas
+    after = run_yields(a, new_cs, lim, model=model)
     unit = "vol %" if maximize else f"{ps.currency}/bbl"
     what = f"{maximize} yield" if maximize else "gross product worth"
     if tables:

@@ -105,13 +105,13 @@ def yields(
     write = out is not None or not json_out
     root = (out or Path("reports")) if write and not summary_only else None
     summary = summary_only and write and not json_out and len(paths) > BRIEF_OVER
+    output = ("summary" if summary else "result" if write or not json_out
+              else "json-line" if len(paths) > BRIEF_OVER else "json")
     job = YieldJob(cs, [] if summary else lim, method.value, (api, sg, density, sulfur), root,
                    single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
                    sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
                    unit=unit.value, claims=new_claims() if root is not None and len(paths) > 1 else "",
-                   json_doc=json_out, light=json_out and not write, json_text=len(paths) > BRIEF_OVER,
-                   frames=root is not None or (not json_out and len(paths) <= BRIEF_OVER),
-                   summary=summary)
+                   output=output)
     try:
         results, written, failures = run_batch(paths, job)
     finally:
@@ -132,8 +132,8 @@ def yields(
     if json_out:
         from ..report.jsonout import yields_document
 
-        texts = [getattr(r, "json_text", None) for r in results]
-        if len(paths) > 1 and texts and all(texts):  # objects encoded in the workers: join them
+        if job.output == "json-line" and results:  # objects encoded in the workers: join them
+            texts = [r.json_text for r in results]
             typer.echo('{"assays":[' + ",".join(texts) + '],"errors":'
                        + json_text([m for _, m in failures], compact=True) + "}")
         else:

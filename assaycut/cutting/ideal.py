@@ -2,7 +2,7 @@
 
 All cuts are evaluated together in a few numpy passes (no Python loop per cut or per point).
 
-Per-cut results (one DataFrame row per cut):
+Per-cut results (one row per cut of a :class:`~assaycut.cutting.cut_table.CutTable`):
 
 * ``vol_pct`` = V(end) - V(start); ``wt_pct`` = W(end) - W(start) with W(V) = ∫ SG dv / SG_crude;
 * ``tbp_5_c``, ``mid_vol_c``, ``tbp_95_c`` = TBP at 5, 50 and 95 % of the cut's own volume; ``overlap_c`` =
@@ -43,6 +43,7 @@ from ..methods.product_properties import (
 )
 from ..model.crude import CrudeModel
 from ..units import sg_to_api, sg_to_density15
+from .cut_table import CutTable
 from .cutset import CutSet
 from .cut_qualities import quality_columns
 
@@ -58,7 +59,7 @@ CUT_COLUMNS = ["name", "start_c", "end_c", "vol_pct", "wt_pct", "cum_vol_pct", "
                "density_15c_kg_m3", "watson_k", "sulfur_wt_pct", "sulfur_share_pct", "mw", "d86_c", "cetane_index_d4737", "flash_c_est", "extrapolated"]
 
 
-def cut_table(model: CrudeModel, cut_set: CutSet):
+def cut_table(model: CrudeModel, cut_set: CutSet) -> CutTable:
     """Cut the crude model: one row per cut with yields and qualities (see the module docstring).
 
     Parameters
@@ -68,11 +69,12 @@ def cut_table(model: CrudeModel, cut_set: CutSet):
 
     Returns
     -------
-    pandas.DataFrame
-        Columns :data:`CUT_COLUMNS`; ``d86_c`` holds a dict {"0": .., "10": .., ...} [°C] or None.
+    CutTable
+        Columns :data:`CUT_COLUMNS`, then the qualities any cut has, then ``estimated``; ``d86_c`` holds a dict
+        {"0": .., "10": .., ...} [°C] or None.
     """
     names, ends = cut_set.reported()
-    return columns_frame(names, first_row(cut_columns(model, ends[None, :])))
+    return columns_table(names, first_row(cut_columns(model, ends[None, :])))
 
 
 def first_row(cols: dict) -> dict:
@@ -80,51 +82,24 @@ def first_row(cols: dict) -> dict:
     return {k: ({n: f[0] for n, f in v.items()} if k == "estimated" else v[0]) for k, v in cols.items()}
 
 
-def columns_frame(names: list[str], cols: dict[str, np.ndarray]):
-    """The cut-table DataFrame from one row of :func:`cut_columns`-style arrays (``d86`` as a dict per cut)."""
-    import pandas as pd
-
+def columns_table(names: list[str], cols: dict[str, np.ndarray]) -> CutTable:
+    """The cut table from one row of :func:`cut_columns`-style arrays: ``name``, :data:`CUT_COLUMNS` (``d86_c``
+    as a dict per cut, None where any point is missing), the quality columns some cut has a value of (sorted),
+    and ``estimated`` (each cut's list of values that come from a correlation)."""
     est = cols.get("estimated", {})
-    df = pd.DataFrame({k: v for k, v in cols.items() if k not in ("d86", "estimated")})
-    df.insert(0, "name", names)
-    df["d86_c"] = _d86_dicts(cols["d86"])
-    extra = sorted(c for c in df.columns if c not in CUT_COLUMNS and np.isfinite(df[c].to_numpy(float)).any())
-    df["estimated"] = [[k for k in sorted(est) if bool(est[k][i])] for i in range(len(df))]
-    return df[CUT_COLUMNS + extra + ["estimated"]]
+    arrays = {k: np.asarray(v) for k, v in cols.items() if k not in ("d86", "estimated")}
+    extra = sorted(c for c, v in arrays.items() if c not in CUT_COLUMNS and np.isfinite(v.astype(float)).any())
+    out: dict = {"name": list(names)}
+    for k in CUT_COLUMNS[1:] + extra:
+        out[k] = _d86_dicts(cols["d86"]) if k == "d86_c" else arrays[k]
+    flags = sorted(est)
+    out["estimated"] = [[k for k in flags if bool(est[k][i])] for i in range(len(names))]
+    return CutTable(out)
 
 
 def _d86_dicts(d86) -> list:
     """Each cut's D86 as {"0": .., "10": .., ...} [°C], or None where any point is missing."""
     return [None if not np.all(np.isfinite(r)) else {str(p): float(x) for p, x in zip(D86_STD, r)} for r in d86]
-
-
-def columns_rows(names: list[str], cols: dict[str, np.ndarray]) -> list[dict]:
-    """The rows of :func:`columns_frame` as plain dicts, without building a DataFrame: the same keys in the
-    same order and the same values (Python floats and bools), for the paths that only print JSON."""
-    est = cols.get("estimated", {})
-    arrays = {k: np.asarray(v) for k, v in cols.items() if k not in ("d86", "estimated")}
-    extra = sorted(c for c, v in arrays.items() if c not in CUT_COLUMNS and np.isfinite(v.astype(float)).any())
-    keys = [k for k in CUT_COLUMNS + extra if k not in ("name", "d86_c")]
-    lists = {k: arrays[k].tolist() for k in keys}
-    d86 = _d86_dicts(cols["d86"])
-    flags = sorted(est)
-    rows = []
-    for i, name in enumerate(names):
-        row = {"name": name}
-        for k in CUT_COLUMNS[1:] + extra:
-            row[k] = d86[i] if k == "d86_c" else lists[k][i]
-        row["estimated"] = [k for k in flags if bool(est[k][i])]
-        rows.append(row)
-    return rows
-
-
-def cut_rows(model: CrudeModel, cut_set: CutSet) -> tuple[list[dict], dict[str, np.ndarray]]:
-    """:func:`cut_table` without the DataFrame: the rows as dicts (:func:`columns_rows`) and the one-row cut
-    columns the limit checks read (:func:`assaycut.cutting.limits.limit_rows`; each D86 is all missing where
-    any of its points is, as in the table)."""
-    names, ends = cut_set.reported()
-    cols = cut_columns(model, ends[None, :])
-    return columns_rows(names, first_row(cols)), with_table_d86(cols)
 
 
 def with_table_d86(cols: dict) -> dict:
@@ -266,7 +241,7 @@ BBL_M3 = 0.158987294928
 """One US oil barrel (42 US gallons, exact). [m³]"""
 
 
-def add_rates(cuts, rate_bbl_per_day: float, crude_density_kg_m3: float):
+def add_rates(cuts: CutTable, rate_bbl_per_day: float, crude_density_kg_m3: float) -> CutTable:
     """The cut table with daily rates for a crude run of ``rate_bbl_per_day``.
 
     bbl_per_day = rate x vol % / 100; m3_per_day = bbl_per_day x 0.158987 m³/bbl; t_per_day = rate x 0.158987
@@ -274,7 +249,7 @@ def add_rates(cuts, rate_bbl_per_day: float, crude_density_kg_m3: float):
 
     Parameters
     ----------
-    cuts : pandas.DataFrame
+    cuts : CutTable
         A cut table (vol_pct, wt_pct).
     rate_bbl_per_day : float
         Crude run. [bbl/d]
@@ -283,27 +258,21 @@ def add_rates(cuts, rate_bbl_per_day: float, crude_density_kg_m3: float):
 
     Returns
     -------
-    pandas.DataFrame
+    CutTable
         A copy with ``bbl_per_day``, ``m3_per_day`` and ``t_per_day`` after ``cum_wt_pct``.
     """
-    out = cuts.copy()
-    at = list(out.columns).index("cum_wt_pct") + 1
     crude_t = rate_bbl_per_day * BBL_M3 * crude_density_kg_m3 / 1000.0
-    out.insert(at, "t_per_day", crude_t * out["wt_pct"] / 100.0)
-    out.insert(at, "m3_per_day", rate_bbl_per_day * BBL_M3 * out["vol_pct"] / 100.0)
-    out.insert(at, "bbl_per_day", rate_bbl_per_day * out["vol_pct"] / 100.0)
-    return out
+    return cuts.with_columns("cum_wt_pct", {"bbl_per_day": rate_bbl_per_day * cuts["vol_pct"] / 100.0,
+                                            "m3_per_day": rate_bbl_per_day * BBL_M3 * cuts["vol_pct"] / 100.0,
+                                            "t_per_day": crude_t * cuts["wt_pct"] / 100.0})
 
 
-def closure(df) -> dict[str, float]:
+def closure(cuts: CutTable) -> dict[str, float]:
     """Yield closure residuals of a cut table: Σ vol % - 100 and Σ wt % - 100. [%]
 
     Examples
     --------
-    >>> import pandas as pd
-    >>> closure(pd.DataFrame({"vol_pct": [40.0, 60.0], "wt_pct": [35.0, 65.0]}))
+    >>> closure(CutTable({"vol_pct": np.array([40.0, 60.0]), "wt_pct": np.array([35.0, 65.0])}))
     {'vol_pct': 0.0, 'wt_pct': 0.0}
     """
-    if isinstance(df, list):  # rows of cut_rows
-        return {k: float(np.sum([r[k] for r in df]) - 100.0) for k in ("vol_pct", "wt_pct")}
-    return {"vol_pct": float(df["vol_pct"].sum() - 100.0), "wt_pct": float(df["wt_pct"].sum() - 100.0)}
+    return {"vol_pct": float(cuts["vol_pct"].sum() - 100.0), "wt_pct": float(cuts["wt_pct"].sum() - 100.0)}

@@ -22,6 +22,7 @@ import numpy as np
 from ..methods.blending_indices import RULES, VISCOSITY
 from ..methods.d86 import D86_STD
 from .cut_qualities import ESTIMATED
+from .cut_table import CutTable
 
 RECOVERED_AT = re.compile(r"^recovered_at_(\d+(?:\.\d+)?)c_pct$")
 """Property name of the D86 volume recovered at a temperature."""
@@ -185,12 +186,11 @@ def _why_missing(prop: str) -> str:
     return f"{prop} is not estimated for this cut"
 
 
-def frame_columns(cuts) -> dict[str, np.ndarray]:
+def table_columns(cuts: CutTable) -> dict[str, np.ndarray]:
     """Cut-column arrays of one row from a cut table (the inverse of
-    :func:`assaycut.cutting.ideal.columns_frame` for the properties a limit can name)."""
-    names = list(SCALAR_PROPERTIES) + [c for c in cuts.columns if c not in SCALAR_PROPERTIES and is_quality(c)]
-    block = cuts[names].to_numpy(dtype=float)  # one copy, not a column access per property
-    cols = {c: block[:, k][None, :] for k, c in enumerate(names)}
+    :func:`assaycut.cutting.ideal.columns_table` for the properties a limit can name)."""
+    names = list(SCALAR_PROPERTIES) + [c for c in cuts.keys if c not in SCALAR_PROPERTIES and is_quality(c)]
+    cols = {c: np.asarray(cuts[c], dtype=float)[None, :] for c in names}
     nan7 = [math.nan] * len(D86_STD)
     cols["d86"] = np.array([[[float(d[str(p)]) for p in D86_STD] if d else nan7 for d in cuts["d86_c"]]])
     return cols
@@ -241,25 +241,29 @@ def nearest_cut(name: str, names: list[str]) -> str | None:
     return close[0] if close else None
 
 
-def check_limits(cuts, limits: list[Limit]):
+def check_limits(cuts: CutTable, limits: list[Limit]) -> CutTable:
     """Check every limit against the cut table.
 
     Parameters
     ----------
-    cuts : pandas.DataFrame
+    cuts : CutTable
         Cut table from :func:`assaycut.cutting.ideal.cut_table`.
     limits : list of Limit
 
     Returns
     -------
-    pandas.DataFrame
+    CutTable
         One row per limit whose cut exists: cut, property, label, limit, value, status ('pass', 'fail' or
-        'n/a'), note, source.
+        'n/a'), note, source (:data:`LIMIT_COLUMNS`).
     """
-    import pandas as pd
+    names = cuts["name"]
+    return limit_table(limit_rows(names, table_columns(cuts) if limits else {}, limits))
 
-    names = list(cuts["name"])
-    return pd.DataFrame(limit_rows(names, frame_columns(cuts) if limits else {}, limits), columns=LIMIT_COLUMNS)
+
+def limit_table(rows: list[dict]) -> CutTable:
+    """The limit-status table of :func:`limit_rows`' rows (``value`` a float column, the others texts)."""
+    return CutTable({k: (np.array([r[k] for r in rows], dtype=float) if k == "value" else [r[k] for r in rows])
+                     for k in LIMIT_COLUMNS})
 
 
 LIMIT_COLUMNS = ["cut", "property", "label", "limit", "value", "status", "note", "source"]
@@ -268,7 +272,7 @@ LIMIT_COLUMNS = ["cut", "property", "label", "limit", "value", "status", "note",
 
 def limit_rows(names: list[str], cols: dict, limits: list[Limit]) -> list[dict]:
     """The rows of :func:`check_limits` as dicts (keys :data:`LIMIT_COLUMNS`), from one row of cut columns
-    (:func:`frame_columns`, or :func:`assaycut.cutting.ideal.cut_rows`)."""
+    (:func:`table_columns`, or the library engine's columns)."""
     out = []
     for lim in applicable(limits, names):
         value = float(limit_values(cols, names.index(lim.cut), lim.property)[0])

@@ -34,7 +34,7 @@ from ..model.crude import CrudeModel
 from .cutset import CutSet
 from .ideal import (
     LIGHT_ENDS_MAX_C,
-    columns_frame,
+    columns_table,
     cut_columns,
     derive_qualities,
     first_row,
@@ -239,7 +239,7 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
 
     Returns
     -------
-    (pandas.DataFrame, dict)
+    (CutTable, dict)
         The product table (same columns as :func:`~assaycut.cutting.cut_table`; ``start_c``/``end_c`` are the
         cut points, ``mid_vol_c`` the product's own 50 % TBP; products touching no named boundary are the ideal
         cut's rows) and the product curves: 'temp_c' (slice edges, [°C]), 'crude_pct' (crude vol % at the
@@ -305,4 +305,4 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     cols["overlap_c"] = np.concatenate([cols["tbp_95_c"][:-1] - cols["tbp_5_c"][1:], [np.nan]])
     curves = {"temp_c": t_edges, "crude_pct": np.concatenate([[va[0]], vb]), "fractions": f, "cum": cum_pct,
               "slice_temp_c": t_mean, "slice_pct": dv, "split_width_c": widths}
-    return columns_frame(names, cols), curves
+    return columns_table(names, cols), curves

@@ -168,7 +168,7 @@ class Explorer:
             ``products``: each cut's price and worth (:func:`~assaycut.studies.compare.worth_by_product`);
             ``notes``: the worth caveat.
         """
-        from ..report.jsonout import json_safe, records
+        from ..report.jsonout import frame_records, json_safe
         from ..studies.compare import WORTH_CAVEAT, worth_by_product, worth_table
 
         if self.prices is None:
@@ -178,7 +178,7 @@ class Explorer:
         doc = {k: json_safe(float(row[k])) for k in ("worth_per_bbl", "worth_per_t", "crude_price_per_bbl",
                                                      "crude_price_per_t", "margin_per_bbl", "margin_per_t")}
         return {"assay": name, "currency": self.prices.currency, **doc,
-                "products": records(worth_by_product(res, self.prices)), "notes": [WORTH_CAVEAT]}
+                "products": frame_records(worth_by_product(res, self.prices)), "notes": [WORTH_CAVEAT]}
 
     def assays_json(self) -> dict:
         """``GET /api/assays``: the loaded crudes (name, file, gravity, sulfur, the TBP curve to draw and where it

@@ -24,12 +24,12 @@ def yield_text(result, unit: str = "C") -> list[str]:
         lines += ["", q]
     if result.bands is not None:
         lines += ["", *bands_text(result.bands)]
-    fails = result.limits[result.limits["status"] == "fail"]
-    if len(fails):
+    fails = [x for x in result.limits.rows() if x["status"] == "fail"]
+    if fails:
         lines.append("Limits failed: " + "; ".join(f"{limit_title(x['cut'], x['label'] or x['property'])} "
                                                    f"({_limit_value(x)}, "
                                                    f"needs {x['limit']})"
-                                                   for x in fails.to_dict("records")))
+                                                   for x in fails))
     return lines
 
 
@@ -38,7 +38,7 @@ def bands_text(bands) -> list[str]:
     assumptions behind them."""
     head = ["Cut", "vol % P10", "P50", "P90", "wt % P10", "P50", "P90"]
     body = [[r["name"]] + [num(r[f"{q}_p{p}"], 2) for q in ("vol_pct", "wt_pct") for p in (10, 50, 90)]
-            for r in bands.to_dict("records")]
+            for r in bands.rows()]
     widths = [max(len(str(x)) for x in col) for col in zip(head, *body)]
     fmt = [str.ljust] + [str.rjust] * 6
     lines = [f"Yield bands under the measurement uncertainty ({bands.attrs['draws']} draws, "
@@ -167,8 +167,8 @@ def optimum_text(crude: str, what: str, unit: str, res, cut_set, before=None, af
         if res.feasible:
             row += f"{res.ends_c[k]:22.1f}" if ends else f"{'end of curve':>22}"
         if yields:
-            row += f"{num(before['vol_pct'].iloc[k], 2):>13}"
-            row += f"{num(after['vol_pct'].iloc[k], 2):>15}" if res.feasible else ""
+            row += f"{num(before['vol_pct'][k], 2):>13}"
+            row += f"{num(after['vol_pct'][k], 2):>15}" if res.feasible else ""
         if ends and k not in moved:
             row += "  (held)"
         elif ends and res.feasible and abs(res.ends_c[k] - res.start_ends_c[k]) > 1e-9:
@@ -217,7 +217,7 @@ def shift_text(delta) -> str:
              num(r["new_sg"], 4), f(r["sg"], 4), num(r["new_sulfur_wt_pct"], 3), f(r["sulfur_wt_pct"], 3),
              num(r["new_d86_95_c"], 1), f(r["d86_95_c"], 1), num(r["new_cetane_index_d4737"], 1),
              f(r["cetane_index_d4737"], 1), num(r["new_flash_c_est"], 1), f(r["flash_c_est"], 1), r["limit_flips"]]
-            for r in delta.to_dict("records")]
+            for r in delta.rows()]
     widths = [max(len(str(x)) for x in col) for col in zip(head, *body)]
     lines = ["  ".join(str(h).ljust(w) for h, w in zip(head, widths)).rstrip()]
     lines += ["  ".join(str(x).ljust(w) for x, w in zip(row, widths)).rstrip() for row in body]

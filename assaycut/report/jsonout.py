@@ -40,19 +40,22 @@ def json_safe(v):
     return v
 
 
-def records(df) -> list[dict]:
-    """The rows of a DataFrame (or a list of row dicts) as JSON-safe dicts (through one object array: much
-    faster than ``DataFrame.to_dict`` on small tables)."""
-    if isinstance(df, list):
-        return [{c: json_safe(v) for c, v in row.items()} for row in df]
+def records(table) -> list[dict]:
+    """The rows of a :class:`~assaycut.cutting.cut_table.CutTable` as JSON-safe dicts."""
+    return [{c: json_safe(v) for c, v in row.items()} for row in table.rows()]
+
+
+def frame_records(df) -> list[dict]:
+    """The rows of a study's DataFrame as JSON-safe dicts (through one object array: much faster than
+    ``DataFrame.to_dict`` on small tables)."""
     cols = list(df.columns)
     return [{c: json_safe(v) for c, v in zip(cols, row)} for row in df.to_numpy(dtype=object).tolist()]
 
 
-def cut_records(df) -> list[dict]:
+def cut_records(table) -> list[dict]:
     """The rows of a cut table as JSON-safe dicts, each cut's own TBP points gathered as ``tbp_c``
     {"5", "50", "95"} [°C] (from tbp_5_c, mid_vol_c, tbp_95_c; mid_vol_c is kept as well)."""
-    out = records(df)
+    out = records(table)
     for r in out:
         if "tbp_5_c" in r:
             r["tbp_c"] = {"5": r.pop("tbp_5_c"), "50": r.get("mid_vol_c"), "95": r.pop("tbp_95_c")}
@@ -94,7 +97,7 @@ def extension_json(model) -> dict:
 
 def yields_document(results, n_paths: int, failures: list[tuple[str, str]]) -> dict:
     """``assaycut yields --json``: one assay's object, or ``{"assays": [...], "errors": [...]}`` for several."""
-    objs = [getattr(r, "json_doc", None) or yield_json(r) for r in results]  # made in a worker, or now
+    objs = [r.json_doc or yield_json(r) for r in results]  # made in a worker, or now
     return objs[0] if n_paths == 1 else {"assays": objs, "errors": [m for _, m in failures]}
 
 
@@ -115,12 +118,12 @@ def compare_json(results, worth, inside, caveat: str, products=None) -> dict:
     """``assaycut compare --json``: with prices, ``ranked_by`` ('margin_per_bbl' when every crude has a
     price, else 'worth_per_bbl') and ``worth_products`` (each product's price, adjustment and contribution)."""
     doc = {"assays": [yield_json(r) for r in results],
-           "worth": records(worth) if worth is not None else [],
+           "worth": frame_records(worth) if worth is not None else [],
            "inside_bands": [{"cut": c, "crudes": [a, b]} for c, a, b in inside],
            "notes": [caveat] if worth is not None else []}
     if worth is not None:
         doc["ranked_by"] = worth.attrs.get("ranked_by", "worth_per_bbl")
-        doc["worth_products"] = records(products) if products is not None else []
+        doc["worth_products"] = frame_records(products) if products is not None else []
     return doc
 
 
@@ -154,7 +157,7 @@ def shift_json(base, new, delta) -> dict:
 
 def sweep_json(crude: str, df) -> dict:
     """``assaycut sweep --json``."""
-    return {"assay": crude, "lower": df.attrs["lower"], "upper": df.attrs["upper"], "points": records(df)}
+    return {"assay": crude, "lower": df.attrs["lower"], "upper": df.attrs["upper"], "points": frame_records(df)}
 
 
 def optimum_json(crude: str, what: str, unit: str, res, names: list[str], after) -> dict:

@@ -61,7 +61,7 @@ def plot_tbp(result, target) -> None:
     tmin, tmax = float(t.min()), float(t.max())
     span = tmax - tmin
     n_out = 0
-    for i, r in enumerate(result.cuts.to_dict("records")):
+    for i, r in enumerate(result.cuts.rows()):
         lo, hi = r["cum_vol_pct"] - r["vol_pct"], min(r["cum_vol_pct"], PLOT_TOP_PCT)
         if hi <= lo:
             continue
@@ -187,7 +187,7 @@ def plot_products(result, target) -> None:
     c = result.model.curve
     ideal = result.cuts
     p = np.linspace(0.5, 99.5, 100)
-    for j, r in enumerate(ideal.to_dict("records")):
+    for j, r in enumerate(ideal.rows()):
         if r["vol_pct"] <= 1e-9:
             continue
         colour = CUT_COLOURS_DARK[j % len(CUT_COLOURS_DARK)]
@@ -231,7 +231,7 @@ def plot_qualities(result, target) -> None:
     m = result.model
     nc = result.assay.narrow_cuts
     pos = narrow_cut_positions(result.assay, m.curve) if nc is not None else None
-    recs = cuts.to_dict("records")
+    recs = cuts.rows()
     for ax, name in zip(axes.flat, names):
         wt = rule_for(name).basis == "wt"
         for r in recs:
@@ -255,7 +255,7 @@ def plot_qualities(result, target) -> None:
         ax.set_xlim(0, 100)
         ax.tick_params(labelsize=7)
         ax.grid(alpha=0.3)
-        if name.startswith("viscosity") and np.nanmax(cuts[name].to_numpy(float)) > 50:
+        if name.startswith("viscosity") and np.nanmax(np.asarray(cuts[name], dtype=float)) > 50:
             ax.set_yscale("log")
     for ax in list(axes.flat)[len(names):]:
         ax.axis("off")

@@ -72,7 +72,7 @@ def compare_workbook(results, table, worth, currency: str | None, products=None)
         ws = wb.create_sheet("uncertainty")
         rows = []
         for r in results:
-            for b in r.bands.to_dict("records"):
+            for b in r.bands.rows():
                 rows.append([b["name"], r.assay.name, b["vol_pct_p10"], b["vol_pct_p50"], b["vol_pct_p90"]])
         write_table(ws, ["Cut", "Crude", "Yield P10 [vol %]", "Yield P50 [vol %]", "Yield P90 [vol %]"], rows,
                     [None, None, "0.00", "0.00", "0.00"], widths=[20, 20, 16, 16, 16])
@@ -130,9 +130,9 @@ def vectors_files(name: str, base, deltas: dict, step_c: float) -> dict[str, byt
     names, rows = flat_cut_rows(base)
     write_table(ws, [label_for(n) for n in names], rows, [fmt_for(n) for n in names])
     ws = wb.create_sheet("per degree C")
-    cols = [c for c in next(iter(deltas.values())).columns if c != "name"] if deltas else []
+    cols = [c for c in next(iter(deltas.values())).keys if c != "name"] if deltas else []
     write_table(ws, ["Cut point (end of)", "Cut"] + [f"{label_for(c)} per °C" for c in cols],
-                [[cp, r["name"], *[r[c] for c in cols]] for cp, d in deltas.items() for r in d.to_dict("records")],
+                [[cp, r["name"], *[r[c] for c in cols]] for cp, d in deltas.items() for r in d.rows()],
                 [None, None] + ["0.0000"] * len(cols))
     ws.cell(row=ws.max_row + 2, column=1, value=f"Central difference of the exact model: each cut point ± {step_c:g} "
                                                 f"°C, the others held; estimates for screening.")
@@ -141,7 +141,7 @@ def vectors_files(name: str, base, deltas: dict, step_c: float) -> dict[str, byt
     wb.save(buf)
     long = [[r[0], "base", *r[1:]] for r in long_rows(base, name)]
     for cp, d in deltas.items():
-        for rec in d.to_dict("records"):
+        for rec in d.rows():
             for c, v in rec.items():
                 if c != "name" and v == v:
                     long.append([name, cp, rec["name"], c, f"{unit_of(c)}/°C", float(v), basis_of(c)])
@@ -156,7 +156,7 @@ def shift_csv(delta) -> bytes:
     from .tables import label_for
     from .write import csv_text
 
-    cols = [c for c in delta.columns]
+    cols = delta.keys
     heads = []
     for c in cols:
         if c.startswith("new_"):
@@ -166,7 +166,7 @@ def shift_csv(delta) -> bytes:
                           "end_c_base": "End TBP before [°C]", "end_c_new": "End TBP after [°C]"}[c])
         else:
             heads.append(f"Change in {label_for(c)}")
-    return csv_text(heads, delta[cols].values.tolist()).encode("utf-8")
+    return csv_text(heads, [[r[c] for c in cols] for r in delta.rows()]).encode("utf-8")
 
 
 def sweep_headers(df) -> list[str]:

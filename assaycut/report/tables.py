@@ -4,6 +4,9 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
+from ..cutting.cut_table import CutTable
 from ..cutting.limits import is_lower_bound
 from ..files import safe_text
 from ..methods.blending_indices import VISCOSITY
@@ -123,15 +126,8 @@ def long_rows(cuts, crude: str, escaped: bool = False) -> list[list]:
     if escaped:
         crude = safe_text(crude)
     rows = []
-    if isinstance(cuts, list):  # rows as dicts (a result made without DataFrames)
-        cols = list(cuts[0]) if cuts else []
-        table = [list(r.values()) for r in cuts]
-    else:
-        cols = list(cuts.columns)
-        table = cuts.to_numpy(dtype=object).tolist()  # one object array: far faster than to_dict on small tables
-    units = {c: (unit_of(c), basis_of(c)) for c in cols}
-    for values in table:
-        rec = dict(zip(cols, values))
+    units = {c: (unit_of(c), basis_of(c)) for c in cuts.keys}
+    for rec in cuts.rows():
         if escaped:
             rec["name"] = safe_text(rec["name"])
         for col, v in rec.items():
@@ -165,17 +161,20 @@ def in_fahrenheit(cuts):
     Temperatures inside a name (viscosity_40c_cst) stay as they are.  JSON output stays in °C."""
     from ..units import c_to_f
 
-    out = cuts.copy()
-    ren = {c: _f_name(c) for c in out.columns if _is_temperature(c) and c != "d86_c"}
-    for c in ren:
-        v = out[c].to_numpy(dtype=float)
-        out[c] = v * 1.8 if c in DIFFERENCES else c_to_f(v)
-    if "d86_c" in out.columns:
-        out["d86_c"] = [None if d is None else {k: float(c_to_f(v)) for k, v in d.items()} for d in out["d86_c"]]
-        ren["d86_c"] = "d86_f"
-    if "estimated" in out.columns:
-        out["estimated"] = [[ren.get(x, x) for x in e] for e in out["estimated"]]
-    return out.rename(columns=ren)
+    ren = {c: _f_name(c) for c in cuts.keys if _is_temperature(c) and c != "d86_c"}
+    out = {}
+    for c, v in cuts.columns.items():
+        if c in ren:
+            v = np.asarray(v, dtype=float)
+            out[ren[c]] = v * 1.8 if c in DIFFERENCES else c_to_f(v)
+        elif c == "d86_c":
+            out["d86_f"] = [None if d is None else {k: float(c_to_f(x)) for k, x in d.items()} for d in v]
+        elif c == "estimated":
+            names = {**ren, "d86_c": "d86_f"}
+            out[c] = [[names.get(x, x) for x in e] for e in v]
+        else:
+            out[c] = v
+    return CutTable(out, cuts.attrs)
 
 
 def display_cuts(cuts, unit: str = "C"):
@@ -188,21 +187,21 @@ def quality_names(cuts) -> list[str]:
     from ..cutting.ideal import CUT_COLUMNS
 
     standard = set(CUT_COLUMNS) | {_f_name(c) for c in CUT_COLUMNS if _is_temperature(c)} | {"d86_f"}
-    return [c for c in cuts.columns if c not in standard and c not in ("estimated", "bbl_per_day", "m3_per_day",
+    return [c for c in cuts.keys if c not in standard and c not in ("estimated", "bbl_per_day", "m3_per_day",
                                                                           "t_per_day")]
 
 
 def flat_cut_rows(cuts) -> tuple[list[str], list[list]]:
     """Cut table as flat rows (D86 expanded into one column per point), with machine column names."""
-    d86 = "d86_f" if "d86_f" in cuts.columns else "d86_c"
+    d86 = "d86_f" if "d86_f" in cuts else "d86_c"
     u = d86[-1]
-    cols = [c for c in cuts.columns if c != d86]
+    cols = [c for c in cuts.keys if c != d86]
     cols.insert(cols.index("cetane_index_d4737"), "__d86__")
     names = []
     for c in cols:
         names += [f"d86_{p}_{u}" for p in D86_STD] if c == "__d86__" else [c]
     rows = []
-    for rec in cuts.to_dict("records"):
+    for rec in cuts.rows():
         row = []
         for c in cols:
             if c == "__d86__":
@@ -263,9 +262,9 @@ def _shown(spec, cuts):
     """Terminal columns present in ``cuts``, a °C column taken in °F where the table is in °F."""
     out = []
     for c, h, nd in spec:
-        if c in cuts.columns:
+        if c in cuts:
             out.append((c, h, nd))
-        elif _is_temperature(c) and _f_name(c) in cuts.columns:
+        elif _is_temperature(c) and _f_name(c) in cuts:
             out.append((_f_name(c), h.replace("°C", "°F"), nd))
     return out
 
@@ -277,7 +276,7 @@ def quality_text_table(cuts) -> str:
         return ""
     head = ["Cut"] + [h for _, h, _ in cols]
     body = [[str(r["name"])] + [_fmt(r[c], nd) + ("~" if c in r["estimated"] and _fmt(r[c], nd) != "-" else "")
-                                for c, _, nd in cols] for r in cuts.to_dict("records")]
+                                for c, _, nd in cols] for r in cuts.rows()]
     widths = [max(len(x) for x in col) for col in zip(head, *body)]
     lines = ["  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, (h, w) in enumerate(zip(head, widths)))]
     lines.append("  ".join("-" * w for w in widths))
@@ -293,7 +292,7 @@ def text_table(cuts) -> str:
     cols = _shown(TERMINAL_COLUMNS, cuts)
     head = [h for _, h, _ in cols]
     body = [[_fmt(r[c], nd) if c != "name" else str(r[c]) for c, _, nd in cols]
-            for r in cuts.to_dict("records")]
+            for r in cuts.rows()]
     widths = [max(len(x) for x in col) for col in zip(head, *body)]
     lines = ["  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, (h, w) in enumerate(zip(head, widths)))]
     lines.append("  ".join("-" * w for w in widths))
@@ -338,7 +337,7 @@ def markdown_summary(result) -> str:
            f"{residual_text(result.closure['wt_pct'])} %", "",
            "| Cut | TBP range °C | vol % | wt % | API | S wt % | Watson K | CCI | Flash est. °C |",
            "|---|---|---:|---:|---:|---:|---:|---:|---:|"]
-    for r in result.cuts.to_dict("records"):
+    for r in result.cuts.rows():
         rng = f"{_fmt(r['start_c'], 0) if r['start_c'] == r['start_c'] else 'IBP'}-" \
               f"{_fmt(r['end_c'], 0) if r['end_c'] == r['end_c'] else 'end'}"
         name = md(safe_text(r["name"])) + (" (extrap.)" if r["extrapolated"] else "")
@@ -347,7 +346,7 @@ def markdown_summary(result) -> str:
                    f"{_fmt(r['cetane_index_d4737'], 1)} | {_fmt(r['flash_c_est'], 0)} |")
     if len(result.limits):
         out += ["", "## Product limits", "", "| Cut | Limit | Required | Value | Status |", "|---|---|---|---:|---|"]
-        for r in result.limits.to_dict("records"):
+        for r in result.limits.rows():
             shown = "≥ 95" if is_lower_bound(r["property"], r["value"]) else _fmt(r["value"], 1)
             out.append(f"| {md(r['cut'])} | {md(r['label'] or r['property'])} | {r['limit']} | {shown} | "
                        f"{r['status'].upper()} |")

@@ -232,7 +232,7 @@ def _summary_sheet(ws, result) -> None:
     r0 = 6 + len(info)
     ws.cell(row=r0, column=1, value="Yields").font = Font(bold=True)
     yrows = [[rec["name"], rec["vol_pct"], rec["wt_pct"], rec["api"], rec["sulfur_wt_pct"]]
-             for rec in result.cuts.to_dict("records")]
+             for rec in result.cuts.rows()]
     write_table(ws, ["Cut", LABELS["vol_pct"], LABELS["wt_pct"], LABELS["api"], LABELS["sulfur_wt_pct"]], yrows,
                 [None, "0.00", "0.00", "0.0", "0.000"], start_row=r0 + 1, widths=[30, 44, 14, 14, 14])
     ws.freeze_panes = "A4"
@@ -249,11 +249,11 @@ def _qualities_sheet(ws, cuts) -> None:
     from openpyxl.styles import Font, PatternFill
 
     names = quality_names(cuts)
-    rows = [[r["name"], *[r[n] for n in names]] for r in cuts.to_dict("records")]
+    rows = [[r["name"], *[r[n] for n in names]] for r in cuts.rows()]
     write_table(ws, ["Cut", *[label_for(n) for n in names]], rows, [None, *[fmt_for(n) or "0.00" for n in names]],
                 widths=[20] + [14] * len(names))
     est = list(cuts["estimated"])
-    for i, r in enumerate(cuts.to_dict("records"), start=2):
+    for i, r in enumerate(cuts.rows(), start=2):
         if r["extrapolated"]:
             ws.cell(row=i, column=1).fill = PatternFill("solid", fgColor=EXTRAPOLATED_FILL)
         for j, n in enumerate(names, start=2):
@@ -279,7 +279,7 @@ def _limits_sheet(ws, lim) -> None:
 
     write_table(ws, ["Cut", "Property", "Limit", "Required", "Value", "Status", "Note", "Source"],
                 [[r["cut"], r["property"], r["label"], r["limit"], r["value"], r["status"].upper(), r["note"],
-                  r["source"]] for r in lim.to_dict("records")],
+                  r["source"]] for r in lim.rows()],
                 [None, None, None, None, "0.0", None, None, None], widths=[16, 24, 40, 14, 10, 8, 40, 50])
     colors = {"PASS": "C6EFCE", "FAIL": "FFC7CE", "N/A": "EDEDED"}
     for i in range(2, len(lim) + 2):
@@ -298,7 +298,7 @@ def _bands_sheet(ws, bands) -> None:
             heads.append(f"{LABELS[q]} P{pct}")
             keys.append(f"{q}_p{pct}")
             fmts.append(fmt_for(q) or "0.00")
-    write_table(ws, heads, [[r[k] for k in keys] for r in bands.to_dict("records")], fmts)
+    write_table(ws, heads, [[r[k] for k in keys] for r in bands.rows()], fmts)
     ws.column_dimensions["A"].width = 20
     ws.cell(row=len(bands) + 3, column=1, value=safe_text(f"{bands.attrs['draws']} Monte Carlo draws; "
                                                           f"{bands.attrs['sigmas']}"))

@@ -88,7 +88,7 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
     sg = np.array([r.assay.sg for r in results])
     s = np.array([np.nan if r.model.sulfur_wt_pct is None else r.model.sulfur_wt_pct for r in results])
     cuts = list(results[0].cuts["name"])
-    y = np.array([r.cuts.set_index("name").loc[cuts, "vol_pct"].to_numpy() for r in results])  # (crudes, cuts)
+    y = np.array([[r.cuts["vol_pct"][r.cuts.index(c)] for c in cuts] for r in results])  # (crudes, cuts)
     c, label, sign = _objective(results, names, prices, objective)
     lo, hi = _share_bounds(bounds, names)
     rows, rhs, labels, scales = _target_rows(targets, sg, s, y, cuts)

@@ -151,8 +151,10 @@ def comparison_table(results):
         raise StudyError("the assays were cut with different cut sets; compare needs one cut set")
     rows = []
     for r in results:
-        status = {cut: limit_summary(g["status"]) for cut, g in r.limits.groupby("cut")} if len(r.limits) else {}
-        for c in r.cuts.to_dict("records"):
+        lim = r.limits.rows()
+        status = {cut: limit_summary([x["status"] for x in lim if x["cut"] == cut])
+                  for cut in dict.fromkeys(x["cut"] for x in lim)}
+        for c in r.cuts.rows():
             rows.append({"cut": c["name"], "crude": r.assay.name, "vol_pct": c["vol_pct"], "wt_pct": c["wt_pct"],
                          "sg": c["sg"], "api": c["api"], "sulfur_wt_pct": c["sulfur_wt_pct"],
                          "watson_k": c["watson_k"], "limits": status.get(c["name"], "")})
@@ -235,7 +237,7 @@ def worth_by_product(result, prices: PriceSet):
         raise StudyError(f"{prices.label}: no price for cut {missing[0]!r}; give a price for every cut of the "
                          f"cut set ({', '.join(repr(n) for n in result.cuts['name'])})")
     rows = []
-    for c in result.cuts.to_dict("records"):
+    for c in result.cuts.rows():
         p = prices.products[c["name"]]
         empty = not c["vol_pct"] > 0
         value, adj = (np.float64(p.value), np.float64(0.0)) if empty else p.adjusted(c)

@@ -9,6 +9,7 @@ import math
 
 import numpy as np
 
+from ..cutting.cut_table import CutTable
 from ..cutting.cutset import CutSet
 from ..cutting.ideal import cut_columns
 from ..errors import StudyError
@@ -28,22 +29,20 @@ def shift_delta(base, new):
 
     Returns
     -------
-    pandas.DataFrame
+    CutTable
         One row per cut: name, end_c_base, end_c_new; the changes vol_pct, wt_pct, sg, sulfur_wt_pct,
         cetane_index_d4737, flash_c_est, d86_<p>_c (new minus base), and the new absolute values beside them
         (new_vol_pct, new_wt_pct, ..., new_d86_95_c); changed (bool), limit_flips (text).
     """
-    import pandas as pd
-
-    b = base.cuts.set_index("name")
-    n = new.cuts.set_index("name")
-    if list(b.index) != list(n.index):
+    b = {r["name"]: r for r in base.cuts.rows()}
+    n = {r["name"]: r for r in new.cuts.rows()}
+    if list(b) != list(n):
         raise StudyError("the two cut sets have different cuts; a shift compares the same cuts")
     rows = []
-    bl = {(x["cut"], x["property"]): x["status"] for x in base.limits.to_dict("records")}
-    nl = {(x["cut"], x["property"]): (x["status"], x["label"] or x["property"]) for x in new.limits.to_dict("records")}
-    for name in b.index:
-        rb, rn = b.loc[name], n.loc[name]
+    bl = {(x["cut"], x["property"]): x["status"] for x in base.limits.rows()}
+    nl = {(x["cut"], x["property"]): (x["status"], x["label"] or x["property"]) for x in new.limits.rows()}
+    for name in b:
+        rb, rn = b[name], n[name]
         row = {"name": name, "end_c_base": rb["end_c"], "end_c_new": rn["end_c"]}
         for c in DELTA_COLUMNS:
             row[c] = _d(rn[c], rb[c])
@@ -57,7 +56,7 @@ def shift_delta(base, new):
                  if cut == name and bl.get((cut, prop)) not in (None, st)]
         row["limit_flips"] = "; ".join(flips)
         rows.append(row)
-    return pd.DataFrame(rows)
+    return CutTable.from_rows(rows, list(rows[0]) if rows else ["name"])
 
 
 def _d(a, b) -> float:
@@ -157,7 +156,7 @@ def cut_point_vectors(model: CrudeModel, cut_set: CutSet, step_c: float = VECTOR
 
     Returns
     -------
-    (pandas.DataFrame, dict of str to pandas.DataFrame)
+    (CutTable, dict of str to CutTable)
         The base cut table, and {cut-point name (the cut it ends): per-°C change of every numeric column of
         every cut [unit per °C]}; NaN where a quality is missing on either side.
 
@@ -166,7 +165,7 @@ def cut_point_vectors(model: CrudeModel, cut_set: CutSet, step_c: float = VECTOR
     StudyError
         When two cut points lie within 2h of each other (the step would cross them).
     """
-    from ..cutting.ideal import columns_frame, first_row
+    from ..cutting.ideal import columns_table, first_row
 
     names, ends = cut_set.reported()
     gaps = np.diff(ends)
@@ -178,18 +177,19 @@ def cut_point_vectors(model: CrudeModel, cut_set: CutSet, step_c: float = VECTOR
     grid[1:k + 1][np.arange(k), np.arange(k)] += step_c
     grid[k + 1:][np.arange(k), np.arange(k)] -= step_c
     cols = cut_columns(model, grid)
-    frames = [columns_frame(names, first_row({key: (({n: f[i:i + 1] for n, f in v.items()} if key == "estimated"
+    tables = [columns_table(names, first_row({key: (({n: f[i:i + 1] for n, f in v.items()} if key == "estimated"
                                                       else v[i:i + 1])) for key, v in cols.items()}))
               for i in range(2 * k + 1)]
-    base = frames[0]
-    numeric = [c for c in base.columns if c not in ("name", "d86_c", "estimated", "extrapolated")]
+    base = tables[0]
+    numeric = [c for c in base.keys if c not in ("name", "d86_c", "estimated", "extrapolated")]
     deltas = {}
     for j in range(k):
-        plus, minus = frames[1 + j], frames[1 + k + j]
-        d = (plus[numeric].astype(float) - minus[numeric].astype(float)) / (2.0 * step_c)
+        plus, minus = tables[1 + j], tables[1 + k + j]
+        d = {"name": list(names)}
+        d.update({c: (np.asarray(plus[c], dtype=float) - np.asarray(minus[c], dtype=float)) / (2.0 * step_c)
+                  for c in numeric if c not in ("start_c", "end_c")})
         for p in D86_STD:
-            d[f"d86_{p}_c"] = [((a or {}).get(str(p), math.nan) - (b or {}).get(str(p), math.nan)) / (2.0 * step_c)
-                               for a, b in zip(plus["d86_c"], minus["d86_c"])]
-        d.insert(0, "name", names)
-        deltas[names[j]] = d.drop(columns=[c for c in ("start_c", "end_c") if c in d.columns])
+            d[f"d86_{p}_c"] = np.array([((a or {}).get(str(p), math.nan) - (b or {}).get(str(p), math.nan))
+                                        / (2.0 * step_c) for a, b in zip(plus["d86_c"], minus["d86_c"])])
+        deltas[names[j]] = CutTable(d)
     return base, deltas

@@ -17,6 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..cutting.cut_table import CutTable
 from ..cutting.cutset import CutSet
 from ..cutting.ideal import cut_columns
 from ..cutting.library_engine import BatchModel, cut_library
@@ -131,15 +132,8 @@ def _draw_chunk(args):
     return {q: np.concatenate([np.asarray(p[q], dtype=float) for p in parts], axis=0) for q in BAND_QUALITIES}, failed
 
 
-class BandRows(list):
-    """The bands without pandas (``monte_carlo(..., frames=False)``): one dict per cut with the columns of the
-    DataFrame, and the same ``attrs``."""
-
-    attrs: dict
-
-
 def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 200, seed: int = 20261201,
-                method: str = "daubert-1994", progress=None, map_fn=map, frames: bool = True, fast: bool = True):
+                method: str = "daubert-1994", progress=None, map_fn=map, fast: bool = True):
     """P10/P50/P90 of each cut's yields and qualities under the assay's measurement uncertainty.
 
     Parameters
@@ -159,15 +153,13 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
     map_fn : callable
         A map-like callable for the chunks of :data:`DRAW_CHUNK` draws (e.g. a process pool's ``imap``, to
         share them between cores); the builtin ``map`` by default.
-    frames : bool
-        A DataFrame (default) or, without pandas, a :class:`BandRows` of the same rows and ``attrs``.
     fast : bool
         Model the draws as arrays over draws where they can be (default); False builds every draw by the
         reference builder (the same models; the tests compare the two).
 
     Returns
     -------
-    pandas.DataFrame or BandRows
+    CutTable
         One row per cut: name, then ``<quality>_p10``, ``_p50``, ``_p90`` for :data:`BAND_QUALITIES`;
         ``attrs`` hold 'draws' (used), 'failed' (draws whose perturbed data could not be modelled) and 'sigmas'.
     """
@@ -188,7 +180,7 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
     if used < 10:
         raise StudyError(f"only {used} of {n} perturbed draws could be modelled; the uncertainties are too "
                          f"large for this curve")
-    out = {"name": names}
+    out = {"name": list(names)}
     for q in BAND_QUALITIES:
         v = np.concatenate([p[q] for p in parts], axis=0)
         ok = np.isfinite(v).sum(axis=0) >= max(5, v.shape[0] // 2)  # a quality estimated in most draws
@@ -198,17 +190,7 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
             if ok.any():
                 val[ok] = np.nanpercentile(np.where(np.isfinite(v[:, ok]), filled[:, ok], np.nan), pct, axis=0)
             out[f"{q}_p{pct}"] = val
-    attrs = {"draws": used, "failed": failed, "sigmas": sig.describe()}
-    if not frames:
-        rows = BandRows({k: (v[j] if k == "name" else float(v[j])) for k, v in out.items()}
-                        for j in range(len(names)))
-        rows.attrs = attrs
-        return rows
-    import pandas as pd
-
-    df = pd.DataFrame(out)
-    df.attrs.update(attrs)
-    return df
+    return CutTable(out, {"draws": used, "failed": failed, "sigmas": sig.describe()})
 
 
 def overlapping(bands: dict[str, tuple[float, float]]) -> list[tuple[str, str]]:

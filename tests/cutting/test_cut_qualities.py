@@ -37,8 +37,8 @@ def test_cut_of_whole_narrow_cuts_blends_by_each_rule():
     a = _assay({"nitrogen_wt_ppm": [0.0, 40.0, 300.0, 2500.0], "viscosity_50c_cst": [0.5, 1.2, 3.5, 900.0],
                 "cloud_point_c": [np.nan, -40.0, -5.0, np.nan]})
     m = build_model(a)
-    nc = cut_table(m, CutSet([Cut("a", 120.0), Cut("b", 200.0), Cut("c", 300.0), Cut("d", None)])).set_index("name")
-    mid = cut_table(m, TWO_CUTS).set_index("name").loc["middle"]
+    nc = cut_table(m, CutSet([Cut("a", 120.0), Cut("b", 200.0), Cut("c", 300.0), Cut("d", None)])).frame().set_index("name")
+    mid = cut_table(m, TWO_CUTS).frame().set_index("name").loc["middle"]
     w, v = nc.loc[["b", "c"], "wt_pct"].to_numpy(), nc.loc[["b", "c"], "vol_pct"].to_numpy()
     assert mid["nitrogen_wt_ppm"] == pytest.approx(np.dot(w, [40.0, 300.0]) / w.sum(), rel=1e-6)
     assert nc.loc["b", "nitrogen_wt_ppm"] == pytest.approx(40.0, rel=1e-6)  # each narrow cut reproduced
@@ -63,7 +63,7 @@ def test_nitrogen_balance_over_the_cuts():
 def test_column_without_a_rule_is_carried_with_its_warning():
     # A column the rules do not know is never refused nor dropped: carried, linear by weight, and warned about.
     res = run_yields(_assay({"colour_index": [0.5, 1.0, 2.0, 6.0]}), TWO_CUTS)
-    assert "colour_index" in res.cuts.columns and np.isfinite(res.cuts["colour_index"]).all()
+    assert "colour_index" in res.cuts.frame().columns and np.isfinite(res.cuts.frame()["colour_index"]).all()
     assert any("colour_index have no blending rule of their own" in w for w in res.warnings)
 
 
@@ -71,7 +71,7 @@ def test_estimated_sulfur_balances_and_rises_with_boiling_range():
     # With whole-crude sulfur only: mass balance to the crude (identity) and sulfur rising from naphtha to
     # residue (common practice, no source); every cut's sulfur is flagged estimated.
     res = run_yields(_assay({}, sulfur=False), default_cut_set())
-    cuts = res.cuts[res.cuts["vol_pct"] > 0]
+    cuts = res.cuts.frame()[res.cuts.frame()["vol_pct"] > 0]
     assert (cuts["wt_pct"] * cuts["sulfur_wt_pct"]).sum() / 100.0 == pytest.approx(1.3, rel=1e-9)
     s = cuts["sulfur_wt_pct"].to_numpy()
     assert np.all(np.diff(s) >= -1e-12) and s[-1] > 1.3 > s[1]
@@ -83,7 +83,7 @@ def test_whole_crude_data_only_gets_estimated_cold_flow_and_viscosity():
     # viscosity, flagged estimated, not extrapolated-only; the ordering of the trade holds (diesel cloud point
     # above kerosene freeze point, diesel more viscous; common practice, no source).
     a = Assay("t", 0.86, [CurveData("TBP", "vol", PCT, TMP)], sulfur_wt_pct=1.3)
-    cuts = run_yields(a, default_cut_set()).cuts.set_index("name")
+    cuts = run_yields(a, default_cut_set()).cuts.frame().set_index("name")
     kero, diesel = cuts.loc["kerosene"], cuts.loc["diesel"]
     for col in ("freeze_point_c", "viscosity_40c_cst", "sulfur_wt_pct"):
         assert np.isfinite(kero[col]) and col in kero["estimated"]
@@ -97,7 +97,7 @@ def test_d341_gives_40c_viscosity_from_two_measured_temperatures():
     # ASTM D341 (Walther) through the cut's own two measured viscosities: the 40 °C value lies between the
     # 20 and 50 °C ones and is flagged estimated (derived, not measured).
     a = _assay({"viscosity_20c_cst": [0.7, 1.9, 6.0, 5000.0], "viscosity_50c_cst": [0.5, 1.2, 3.5, 900.0]})
-    mid = run_yields(a, TWO_CUTS).cuts.set_index("name").loc["middle"]
+    mid = run_yields(a, TWO_CUTS).cuts.frame().set_index("name").loc["middle"]
     assert mid["viscosity_50c_cst"] < mid["viscosity_40c_cst"] < mid["viscosity_20c_cst"]
     assert "viscosity_40c_cst" in mid["estimated"]
 
@@ -111,5 +111,5 @@ def test_real_column_products_carry_the_qualities_and_balance():
     m = build_model(a)
     prods, _ = fractionate(m, default_cut_set(), {"kerosene": 30.0, "diesel": 40.0})
     assert (prods["wt_pct"] * prods["nitrogen_wt_ppm"]).sum() / 100.0 == pytest.approx(800.0, rel=1e-6)
-    ideal = cut_table(m, default_cut_set())
+    ideal = cut_table(m, default_cut_set()).frame()
     assert set(ideal.columns) <= set(prods.columns)

@@ -36,7 +36,7 @@ def test_yields_at_measured_nodes_equal_measured_differences():
     # percent differences.
     m = simple_model()
     cs = CutSet([Cut(f"c{i}", float(t)) for i, t in enumerate(TMP[1:-1])] + [Cut("rest", None)])
-    df = cut_table(m, cs)
+    df = cut_table(m, cs).frame()
     assert_allclose(df["vol_pct"], np.diff(PCT), atol=1e-9)
 
 
@@ -45,7 +45,7 @@ def test_closure_and_crude_gravity(narrow):
     # Identity: volume yields sum to 100; weight yields follow from W(V) and sum to 100; the volume-weighted
     # cut SG reproduces the crude SG (API MPMS Ch. 11: SG blends by volume).
     m = simple_model(narrow)
-    df = cut_table(m, default_cut_set())
+    df = cut_table(m, default_cut_set()).frame()
     assert df["vol_pct"].sum() == pytest.approx(100.0, abs=1e-9)
     assert df["wt_pct"].sum() == pytest.approx(100.0, abs=1e-9)
     assert (df["vol_pct"] * df["sg"]).sum() / 100.0 == pytest.approx(0.86, abs=1e-9)
@@ -55,14 +55,14 @@ def test_closure_and_crude_gravity(narrow):
 
 def test_sulfur_balance_reproduces_crude():
     # Mass balance (identity): sulfur blends by weight; the reconciled cuts reproduce the whole-crude sulfur.
-    df = cut_table(simple_model(), default_cut_set())
+    df = cut_table(simple_model(), default_cut_set()).frame()
     assert (df["wt_pct"] * df["sulfur_wt_pct"]).sum() / 100.0 == pytest.approx(1.3, abs=1e-9)
     assert df["sulfur_share_pct"].sum() == pytest.approx(100.0, abs=1e-7)
 
 
 def test_api_and_watson_k_per_cut():
     # API MPMS Ch. 11: API = 141.5/SG - 131.5; Watson K against chemicals.utils.Watson_K with the MeABP.
-    df = cut_table(simple_model(), default_cut_set())
+    df = cut_table(simple_model(), default_cut_set()).frame()
     for r in df.to_dict("records"):
         assert r["api"] == pytest.approx(141.5 / r["sg"] - 131.5, rel=1e-12)
         assert r["watson_k"] == pytest.approx(chemicals.utils.Watson_K(r["meabp_c"] + 273.15, r["sg"]), rel=1e-9)
@@ -70,7 +70,7 @@ def test_api_and_watson_k_per_cut():
 
 def test_cci_reproduces_d4737_on_reported_d86_and_density():
     # ASTM D4737 Procedure A applied to the cut's own reported D86 (10/50/90 %) and density at 15 °C.
-    df = cut_table(simple_model(), default_cut_set())
+    df = cut_table(simple_model(), default_cut_set()).frame()
     row = df.set_index("name").loc["diesel"]
     d = row["d86_c"]
     assert row["cetane_index_d4737"] == pytest.approx(
@@ -80,7 +80,7 @@ def test_cci_reproduces_d4737_on_reported_d86_and_density():
 def test_cut_d86_is_narrower_than_tbp():
     # Well-known fact of the trade (common practice, no source): a cut's D86 starts above and ends below its
     # TBP range, because the D86 flask fractionates less sharply.
-    df = cut_table(simple_model(), default_cut_set())
+    df = cut_table(simple_model(), default_cut_set()).frame()
     r = df.set_index("name").loc["diesel"]
     assert r["d86_c"]["0"] > 232.0 and r["d86_c"]["95"] < 343.0
 
@@ -91,7 +91,7 @@ def test_cut_point_in_flat_step_gives_zero_yield():
                                     np.array([20, 150, 200, 350, 600.0]))], sulfur_wt_pct=None)
     m = build_model(a)
     cs = CutSet([Cut("a", 160.0), Cut("b", 190.0), Cut("c", None)])
-    df = cut_table(m, cs)
+    df = cut_table(m, cs).frame()
     assert df.loc[1, "vol_pct"] == pytest.approx(0.0, abs=1e-12)
     assert np.isnan(df.loc[1, "sg"])
 
@@ -131,7 +131,7 @@ def test_demo_assays_close_and_have_plausible_character(demo_paths):
     res = {}
     for p in demo_paths:
         a = load_assay(p)
-        df = cut_table(build_model(a), default_cut_set())
+        df = cut_table(build_model(a), default_cut_set()).frame()
         assert df["vol_pct"].sum() == pytest.approx(100, abs=1e-9)
         assert df["wt_pct"].sum() == pytest.approx(100, abs=1e-9)
         assert np.all(np.diff(df["sg"].to_numpy()) > 0)
@@ -146,8 +146,8 @@ def test_swing_cut_split_into_halves_that_add_up():
     # Identity: the two halves of a swing cut add up to the whole cut on both bases, and split at the
     # mid temperature of the cut's TBP range.
     m = simple_model()
-    plain = cut_table(m, CutSet([Cut("naphtha", 150.0), Cut("swing", 200.0), Cut("rest", None)]))
-    swung = cut_table(m, CutSet([Cut("naphtha", 150.0), Cut("swing", 200.0, swing=True), Cut("rest", None)]))
+    plain = cut_table(m, CutSet([Cut("naphtha", 150.0), Cut("swing", 200.0), Cut("rest", None)])).frame()
+    swung = cut_table(m, CutSet([Cut("naphtha", 150.0), Cut("swing", 200.0, swing=True), Cut("rest", None)])).frame()
     assert swung["name"].tolist() == ["naphtha", "swing (light half)", "swing (heavy half)", "rest"]
     assert swung.loc[1, "end_c"] == 175.0
     for col in ("vol_pct", "wt_pct"):
@@ -160,7 +160,7 @@ def test_narrow_cut_meabp_is_its_boiling_point_and_kw_matches_chemicals():
     # Definition (API TDB 2B1.1): every average boiling point of a narrow fraction is its boiling point; Watson
     # K of it against chemicals.utils.Watson_K at that boiling point and the cut's SG.
     m = simple_model()
-    df = cut_table(m, CutSet([Cut("a", 249.95), Cut("narrow", 250.05), Cut("rest", None)])).set_index("name")
+    df = cut_table(m, CutSet([Cut("a", 249.95), Cut("narrow", 250.05), Cut("rest", None)])).frame().set_index("name")
     r = df.loc["narrow"]
     assert r["meabp_c"] == pytest.approx(250.0, abs=0.01)
     assert r["watson_k"] == pytest.approx(chemicals.utils.Watson_K(250.0 + 273.15, r["sg"]), abs=1e-4)
@@ -188,7 +188,7 @@ def test_watson_k_has_no_threshold_at_the_light_ends_boundary():
     # Continuity (no internal switch): moving a cut point across 40 °C, where D86 estimates start, moves the
     # light cut's Watson K by a hair, not by a step (it moved 0.1 before one basis was used for every cut).
     m = simple_model()
-    kw = [cut_table(m, CutSet([Cut("le", t), Cut("rest", None)])).loc[0, "watson_k"] for t in (39.99, 40.01)]
+    kw = [cut_table(m, CutSet([Cut("le", t), Cut("rest", None)])).frame().loc[0, "watson_k"] for t in (39.99, 40.01)]
     assert abs(kw[1] - kw[0]) < 0.005
 
 
@@ -196,7 +196,7 @@ def test_estimates_do_not_switch_on_a_tbp_start():
     # Continuity: the cetane index and flash estimate of a cut depend on its own D86 and density; moving its
     # start from 149.9 to 150.1 °C (the old switch-on point) moves them by a hair.
     m = simple_model()
-    rows = [cut_table(m, CutSet([Cut("a", t), Cut("mid", 330.0), Cut("rest", None)])).loc[1] for t in (149.9, 150.1)]
+    rows = [cut_table(m, CutSet([Cut("a", t), Cut("mid", 330.0), Cut("rest", None)])).frame().loc[1] for t in (149.9, 150.1)]
     for col in ("flash_c_est", "cetane_index_d4737"):
         assert np.isfinite(rows[0][col]) and np.isfinite(rows[1][col])
         assert abs(rows[0][col] - rows[1][col]) < 0.2
@@ -209,14 +209,14 @@ def test_estimates_outside_their_range_are_empty_and_named():
 
     a = Assay("t", 0.86, [CurveData("TBP", "vol", PCT, TMP)], sulfur_wt_pct=1.3)
     res = run_yields(a, CutSet([Cut("naphtha", 150.0), Cut("gas oil", 330.0), Cut("rest", None)]))
-    cuts = res.cuts.set_index("name")
+    cuts = res.cuts.frame().set_index("name")
     assert np.isnan(cuts.loc["naphtha", "cetane_index_d4737"])
     assert any(w.startswith("cetane index left empty for naphtha") for w in res.warnings)
 
 
 def test_vabp_d86_is_the_mean_of_the_reported_d86():
     # API TDB 2B1.1 definition: VABP = (T10 + T30 + T50 + T70 + T90)/5 of the D86; vabp_c is the TBP average.
-    df = cut_table(simple_model(), default_cut_set())
+    df = cut_table(simple_model(), default_cut_set()).frame()
     r = df.set_index("name").loc["diesel"]
     d = r["d86_c"]
     assert r["vabp_d86_c"] == pytest.approx(np.mean([d[k] for k in ("10", "30", "50", "70", "90")]), rel=1e-12)
@@ -233,7 +233,7 @@ def test_light_ends_without_gas_analysis_get_gas_properties():
     pct = np.array([0.0, 2.0, 8.0, 20.0, 35.0, 55.0, 75.0, 82.0])
     tmp = np.array([-20.0, 15.0, 70.0, 150.0, 230.0, 340.0, 470.0, 540.0])
     res = run_yields(Assay("t", 0.86, [CurveData("TBP", "vol", pct, tmp)], sulfur_wt_pct=1.3), default_cut_set())
-    le = res.cuts.iloc[0]
+    le = res.cuts.frame().iloc[0]
     assert le["end_c"] == 15.0
     assert 0.55 <= le["sg"] <= 0.63
     assert abs(le["watson_k"] - kw_nc4) < 0.6
@@ -261,7 +261,7 @@ def test_point_added_past_the_end_changes_nothing_unflagged(narrow):
     # Invariant (the meaning of the flag): a point added past the measured end of a curve changes nothing in a
     # cut that is not flagged extrapolated (in either run).  Without narrow-cut densities every cut's gravity
     # rests on a Watson K fitted over the whole curve, so every cut is flagged.
-    a, b = (cut_table(build_model(x), default_cut_set()).set_index("name") for x in _tail_pair(narrow))
+    a, b = (cut_table(build_model(x), default_cut_set()).frame().set_index("name") for x in _tail_pair(narrow))
     free = [n for n in a.index if not a.loc[n, "extrapolated"] and not b.loc[n, "extrapolated"]]
     if narrow:
         assert {"light naphtha", "heavy naphtha", "kerosene", "diesel"} <= set(free)
@@ -278,5 +278,5 @@ def test_flag_covers_the_last_measured_interval():
     # The PCHIP's slope at the last measured node comes from the extension: a cut ending inside the last
     # measured interval (70-75 % here, 420-445 °C) depends on it and is flagged; one ending at 420 °C is not.
     a = build_model(_tail_pair(True)[0])
-    cut = lambda t: cut_table(a, CutSet([Cut("x", t), Cut("rest", None)])).loc[0, "extrapolated"]  # noqa: E731
+    cut = lambda t: cut_table(a, CutSet([Cut("x", t), Cut("rest", None)])).frame().loc[0, "extrapolated"]  # noqa: E731
     assert not cut(420.0) and cut(430.0)

@@ -140,7 +140,7 @@ def test_json_batch_cut_together_equals_each_file_alone(tmp_path, demo_paths):
     from typer.testing import CliRunner
 
     from assaycut.cli import app
-    from tests.cutting.test_rows import assert_close_docs
+    from tests.cutting.test_cut_table import assert_close_docs
 
     rng = np.random.default_rng(5)  # invented quick curves, inputs only
     books, curves = tmp_path / "books", tmp_path / "curves"
@@ -189,7 +189,7 @@ def test_summary_rows_made_in_the_workers_give_the_same_files(tmp_path, demo_pat
     files = {}
     for summary in (False, True):
         for parallel in (False, True):
-            job = YieldJob(cs, read_limits(None), frames=False, summary=summary)
+            job = YieldJob(cs, read_limits(None), output="summary" if summary else "result")
             results, _, failures = run_batch(paths, job, parallel=parallel, progress=False)
             assert [p for p, _ in failures] == [str(bad)]
             assert all(isinstance(r, SummaryResult) for r in results) == summary

@@ -7,6 +7,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from assaycut.cutting.cut_table import CutTable
 from assaycut.cutting.limits import Limit, check_limits, limit_margins, recovered_at
 
 
@@ -49,15 +50,16 @@ def test_report_and_optimiser_read_the_same_values():
     import pandas as pd
 
     d86 = {str(p): float(t) for p, t in zip((0, 10, 30, 50, 70, 90, 95), (180, 230, 270, 300, 330, 360, 375))}
-    cuts = pd.DataFrame([{"name": "diesel", "vol_pct": 20.0, "wt_pct": 21.0, "mid_vol_c": 290.0, "vabp_c": 290.0,
+    row = {"name": "diesel", "vol_pct": 20.0, "wt_pct": 21.0, "mid_vol_c": 290.0, "vabp_c": 290.0,
                           "meabp_c": 285.0, "sg": 0.84, "api": 37.0, "density_15c_kg_m3": 839.6, "watson_k": 11.9,
                           "sulfur_wt_pct": 0.5, "mw": 230.0, "cetane_index_d4737": 52.0, "flash_c_est": 90.0,
-                          "d86_c": d86}])
+                          "d86_c": d86}
+    cuts = CutTable.from_rows([row], list(row))
     lims = [Limit("diesel", "recovered_at_250c_pct", max=65.0, strict=True),
             Limit("diesel", "recovered_at_350c_pct", min=85.0), Limit("diesel", "d86_95_c", max=360.0),
             Limit("diesel", "flash_c_est", min=55.0, strict=True)]
     table = check_limits(cuts, lims)
-    assert table["status"].tolist() == ["pass", "fail", "fail", "pass"]
+    assert table["status"] == ["pass", "fail", "fail", "pass"]
     # np.interp by hand: 250 °C lies 20/40 of the way from 230 (10 %) to 270 (30 %): 20 %; 350 °C: 83.33 %
     assert table["value"].tolist()[:3] == pytest.approx([20.0, 83.33333333, 375.0])
 
@@ -74,7 +76,7 @@ def test_every_shipped_limit_is_evaluable_on_the_demo_crudes(demo_paths):
     assert limits
     for p in demo_paths:
         res = run_yields(load_assay(p), default_cut_set(), limits)
-        assert (res.limits["status"] != "n/a").all(), res.limits.loc[res.limits["status"] == "n/a", "label"].tolist()
+        assert (res.limits.frame()["status"] != "n/a").all(), res.limits.frame().loc[res.limits.frame()["status"] == "n/a", "label"].tolist()
 
 
 def test_limit_on_a_missing_cut_warns_by_name(demo_paths):
@@ -104,7 +106,7 @@ def test_limit_cut_names_normalised_and_near_misses_named(demo_paths, tmp_path):
                  '[[limit]]\ncut = "\uff44iesel"\nproperty = "sg"\nmax = 0.5\n', encoding="utf-8")
     lim = read_limits(str(p))
     res = run_yields(load_assay(demo_paths[0]), default_cut_set(), lim)
-    checked = res.limits[res.limits["cut"] == "diesel"]
+    checked = res.limits.frame()[res.limits.frame()["cut"] == "diesel"]
     assert len(checked) == 2 and set(checked["status"]) == {"fail"}  # both diesel limits matched and checked
     w = [x for x in res.warnings if "not checked" in x]
     assert len(w) == 1 and "nearest is 'kerosene'" in w[0] and "sulfur" in w[0]

@@ -42,6 +42,7 @@ def test_conservation_exact(model):
     # Identity: volume, mass and sulfur of the products add up to the crude's.
     cs = default_cut_set()
     df, _ = fractionate(model, cs, {"kerosene": 25.0, "diesel": 35.0, "vacuum gas oil": 60.0})
+    df = df.frame()
     assert df["vol_pct"].sum() == pytest.approx(100.0, abs=1e-9)
     assert df["wt_pct"].sum() == pytest.approx(100.0, abs=1e-9)
     assert (df["vol_pct"] * df["sg"]).sum() / 100.0 == pytest.approx(model.sg, rel=1e-12)
@@ -51,8 +52,9 @@ def test_conservation_exact(model):
 def test_no_overlap_is_the_ideal_cut(model):
     # Identity: with no boundary named the products are the ideal TBP cuts, exactly.
     cs = default_cut_set()
-    ideal = cut_table(model, cs)
+    ideal = cut_table(model, cs).frame()
     real, _ = fractionate(model, cs, {})
+    real = real.frame()
     for col in ("vol_pct", "wt_pct", "sg", "sulfur_wt_pct", "vabp_c", "tbp_5_c", "tbp_95_c", "overlap_c"):
         assert_allclose(real[col], ideal[col], rtol=0, atol=0, equal_nan=True, err_msg=col)
     assert list(real["d86_c"]) == list(ideal["d86_c"])
@@ -76,6 +78,7 @@ def test_overlap_is_the_trade_tbp_5_95_overlap(model, asked):
     # the heavier product's TBP 5 %, on the products' own curves; it must come out as asked within 1 °C.
     cs = default_cut_set()
     real, curves = fractionate(model, cs, {"kerosene": asked})
+    real = real.frame()
     k = list(real["name"]).index("kerosene")
     assert _measured_overlap(curves, k) == pytest.approx(asked, abs=1.0)
     assert real["overlap_c"].iloc[k] == pytest.approx(asked, abs=1.0)
@@ -86,8 +89,9 @@ def test_boundaries_without_overlap_stay_ideal(model):
     # Products touching no named boundary are the ideal cuts, and the ideal sides of the touched products
     # start or end at the cut point itself: light naphtha's D86 is unchanged by a kerosene overlap.
     cs = default_cut_set()
-    ideal = cut_table(model, cs).set_index("name")
+    ideal = cut_table(model, cs).frame().set_index("name")
     real, _ = fractionate(model, cs, {"kerosene": 25.0, "vacuum gas oil": 40.0})
+    real = real.frame()
     real = real.set_index("name")
     for name in ("light ends", "light naphtha", "heavy naphtha"):
         for col in ("vol_pct", "wt_pct", "sg", "sulfur_wt_pct", "mid_vol_c", "flash_c_est", "watson_k"):
@@ -100,7 +104,7 @@ def test_boundaries_without_overlap_stay_ideal(model):
 
 def test_overlap_sharper_than_ideal_refused(model):
     cs = default_cut_set()
-    ideal = cut_table(model, cs).set_index("name")
+    ideal = cut_table(model, cs).frame().set_index("name")
     with pytest.raises(Exception, match="sharper than an ideal cut, which gives"):
         fractionate(model, cs, {"kerosene": float(ideal.loc["kerosene", "overlap_c"]) - 5.0})
 
@@ -109,13 +113,13 @@ def test_ideal_cut_tbp_points_by_identity(model):
     # Identity of the definition: cutting the crude at a cut's own TBP 95 % gives 95 % of the cut's volume;
     # and ideal neighbouring cuts leave a gap (negative overlap; common practice, no source).
     cs = default_cut_set()
-    ideal = cut_table(model, cs).set_index("name")
+    ideal = cut_table(model, cs).frame().set_index("name")
     ker = ideal.loc["kerosene"]
     at95 = cs.with_ends({"kerosene": float(ker["tbp_95_c"])})
     at5 = cs.with_ends({"heavy naphtha": float(ker["tbp_5_c"])})
-    got95 = cut_table(model, at95).set_index("name").loc["kerosene", "vol_pct"]
+    got95 = cut_table(model, at95).frame().set_index("name").loc["kerosene", "vol_pct"]
     # moving the heavy-naphtha end to kerosene's T5 leaves 95 % of the kerosene's volume in kerosene
-    got5 = cut_table(model, at5).set_index("name").loc["kerosene", "vol_pct"]
+    got5 = cut_table(model, at5).frame().set_index("name").loc["kerosene", "vol_pct"]
     assert got95 == pytest.approx(0.95 * ker["vol_pct"], rel=1e-9)
     assert got5 == pytest.approx(0.95 * ker["vol_pct"], rel=1e-9)
     assert (ideal["overlap_c"].dropna() < 0).all()
@@ -125,8 +129,9 @@ def test_overlap_widens_product_distillation(model):
     # Well-known fact of the trade (common practice, no source): poorer fractionation gives a product a
     # heavier back end and lighter front end, so its D86 95 % rises and its D86 10 % falls.
     cs = default_cut_set()
-    ideal = cut_table(model, cs).set_index("name")
+    ideal = cut_table(model, cs).frame().set_index("name")
     real, _ = fractionate(model, cs, {"heavy naphtha": 30.0, "kerosene": 30.0})
+    real = real.frame()
     real = real.set_index("name")
     assert real.loc["kerosene", "d86_c"]["95"] > ideal.loc["kerosene", "d86_c"]["95"]
     assert real.loc["kerosene", "d86_c"]["10"] < ideal.loc["kerosene", "d86_c"]["10"]
@@ -139,8 +144,8 @@ def test_limit_checks_use_product_curves(model):
     cs = default_cut_set()
     cs.overlaps.update({"kerosene": 40.0})
     res = run_yields(a, cs, read_limits(), model=model)
-    lim = res.limits.set_index("property").loc["d86_95_c"]
-    assert lim["value"] == pytest.approx(res.cuts.set_index("name").loc["diesel", "d86_c"]["95"])
+    lim = res.limits.frame().set_index("property").loc["d86_95_c"]
+    assert lim["value"] == pytest.approx(res.cuts.frame().set_index("name").loc["diesel", "d86_c"]["95"])
     assert "fractionation" in res.methods
 
 

@@ -226,7 +226,7 @@ def test_weight_basis_tbp_curve_exact_at_its_nodes(book):
         if drop_cuts:
             a.narrow_cuts = None
         m = build_model(a)
-        df = cut_table(m, _node_cuts([t for _, t in pts[1:-1]]))
+        df = cut_table(m, _node_cuts([t for _, t in pts[1:-1]])).frame()
         diffs = np.diff([p for p, _ in pts[:-1]])
         assert_wt = df["wt_pct"].to_numpy()
         assert np.allclose(assert_wt[1:-1], diffs[1:], atol=1e-6), assert_wt
@@ -246,7 +246,7 @@ def test_heavy_weight_basis_curve_open_data_exact_at_nodes():
     w = np.array([5, 10, 20, 30, 40, 50, 60, 70.0])
     t = np.array([239.85, 306.85, 395.85, 463.85, 519.85, 572.85, 625.85, 683.85])
     m = build_model(Assay("heavy", float(api_to_sg(10.9)), [CurveData("TBP", "wt", w, t)]))
-    df = cut_table(m, _node_cuts(t[[1, 3, 5, 7]]))
+    df = cut_table(m, _node_cuts(t[[1, 3, 5, 7]])).frame()
     assert np.allclose(df["wt_pct"].to_numpy()[:4], [10.0, 20.0, 20.0, 20.0], atol=1e-6)
     assert np.allclose(m.wt_at_vol(m.curve.pct_at(t)), w, atol=1e-6)
 

@@ -162,10 +162,10 @@ def test_draw_values_are_sequential_draws_in_measurement_order(demo_paths):
 def test_bands_fast_equal_reference(demo_paths, k):
     a = load_assay(demo_paths[k])
     cs = default_cut_set()
-    fast = monte_carlo(a, cs, n=300, seed=4, frames=False)
-    ref = monte_carlo(a, cs, n=300, seed=4, frames=False, fast=False)
+    fast = monte_carlo(a, cs, n=300, seed=4)
+    ref = monte_carlo(a, cs, n=300, seed=4, fast=False)
     assert fast.attrs == ref.attrs
-    for rf, rr in zip(fast, ref):
+    for rf, rr in zip(fast.rows(), ref.rows()):
         assert rf.keys() == rr.keys() and rf["name"] == rr["name"]
         for key in rf:
             if key != "name":

@@ -32,7 +32,7 @@ def blend_props(results, v):
     sg_b = float(v @ sg)
     api = 141.5 / sg_b - 131.5
     sulfur = float((v * sg * s).sum() / sg_b)
-    diesel = float(v @ np.array([r.cuts.set_index("name").loc["diesel", "vol_pct"] for r in results]))
+    diesel = float(v @ np.array([r.cuts.frame().set_index("name").loc["diesel", "vol_pct"] for r in results]))
     return api, sulfur, diesel
 
 

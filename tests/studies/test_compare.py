@@ -22,13 +22,13 @@ def test_worth_by_hand(demos):
     # barrel, so worth per barrel equals that price; per tonne it follows each cut's density).
     a, m = demos[0]
     res = run_yields(a, default_cut_set(), model=m)
-    names = list(res.cuts["name"])
+    names = list(res.cuts.frame()["name"])
     ps = PriceSet({n: Price(50.0, "bbl") for n in names}, {a.name: Price(40.0, "bbl")}, "USD", "tiny")
     w = worth_table([res], ps).iloc[0]
     assert w["worth_per_bbl"] == pytest.approx(50.0, rel=1e-12)
     assert w["margin_per_bbl"] == pytest.approx(10.0, rel=1e-12)
     by_hand = sum(c["wt_pct"] / 100 * 50.0 / (c["density_15c_kg_m3"] * 0.158987294928 / 1000)
-                  for c in res.cuts.to_dict("records"))
+                  for c in res.cuts.frame().to_dict("records"))
     assert w["worth_per_t"] == pytest.approx(by_hand, rel=1e-12)
     ps2 = PriceSet({names[0]: Price(50.0, "bbl")}, {}, "USD", "short.toml")
     with pytest.raises(StudyError, match=r"short.toml: no price for cut 'light naphtha'"):
@@ -89,7 +89,7 @@ def test_quality_adjustment_arithmetic_by_hand(demos, tmp_path):
     prices = read_prices(str(p))
     for assay, _ in demos:
         res = run_yields(assay, default_cut_set())
-        vr = res.cuts.set_index("name").loc["vacuum residue"]
+        vr = res.cuts.frame().set_index("name").loc["vacuum residue"]
         row = worth_by_product(res, prices).set_index("cut").loc["vacuum residue"]
         by_hand = max(250.0, 390.0 - 24.0 * (vr["sulfur_wt_pct"] - 1.0) + 3.0 * (vr["api"] - 10.0))
         assert row["price"] == pytest.approx(by_hand, rel=1e-12)

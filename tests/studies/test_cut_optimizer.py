@@ -36,7 +36,7 @@ def test_optimum_meets_every_limit(demo):
     assert res.feasible and res.objective > res.start_objective
     new = cs.with_ends({c.name: float(e) for c, e in zip(cs.cuts, res.ends_c)})
     out = run_yields(a, new, read_limits(), model=m)
-    rel = out.limits[out.limits["cut"].isin(["kerosene", "diesel", "vacuum gas oil"])]
+    rel = out.limits.frame()[out.limits.frame()["cut"].isin(["kerosene", "diesel", "vacuum gas oil"])]
     assert set(rel["status"]) <= {"pass", "n/a"}
     assert (rel["status"] == "n/a").sum() == len(res.not_evaluated)
 
@@ -127,7 +127,7 @@ def test_hand_found_cut_points_are_a_lower_bound(demo):
     assert res.objective >= worth_hand - 1e-9
     new = cs.with_ends({c.name: float(e) for c, e in zip(cs.cuts, res.ends_c)})
     out = run_yields(a, new, read_limits(), model=m)
-    assert "fail" not in set(out.limits["status"])
+    assert "fail" not in set(out.limits.frame()["status"])
 
 
 def test_default_guard_rail_keeps_the_neighbour(demo):
@@ -137,11 +137,11 @@ def test_default_guard_rail_keeps_the_neighbour(demo):
     cs = default_cut_set()
     res = optimize_cut_points(m, cs, read_limits(), maximize="diesel")
     new = cs.with_ends({c.name: float(e) for c, e in zip(cs.cuts, res.ends_c)})
-    ker = run_yields(a, new, None, model=m).cuts.set_index("name").loc["kerosene", "vol_pct"]
+    ker = run_yields(a, new, None, model=m).cuts.frame().set_index("name").loc["kerosene", "vol_pct"]
     assert ker >= 3.0 - 1e-9
     res5 = optimize_cut_points(m, cs, read_limits(), maximize="diesel", min_yields={"kerosene": 5.0})
     new5 = cs.with_ends({c.name: float(e) for c, e in zip(cs.cuts, res5.ends_c)})
-    assert run_yields(a, new5, None, model=m).cuts.set_index("name").loc["kerosene", "vol_pct"] >= 5.0 - 1e-9
+    assert run_yields(a, new5, None, model=m).cuts.frame().set_index("name").loc["kerosene", "vol_pct"] >= 5.0 - 1e-9
     assert res5.objective <= res.objective + 1e-9  # a tighter rail cannot give more diesel
     with pytest.raises(StudyError, match="no cut named 'jet'"):
         optimize_cut_points(m, cs, read_limits(), maximize="diesel", min_yields={"jet": 5.0})

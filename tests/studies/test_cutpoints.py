@@ -24,7 +24,7 @@ def test_shift_deltas_sum_to_zero_and_touch_only_neighbours(demos):
     cs = default_cut_set()
     base = run_yields(a, cs, read_limits(), model=m)
     new = run_yields(a, cs.with_ends({"diesel": 360.0}), read_limits(), model=m)
-    d = shift_delta(base, new)
+    d = shift_delta(base, new).frame()
     assert d["vol_pct"].sum() == pytest.approx(0.0, abs=1e-9)
     assert d["wt_pct"].sum() == pytest.approx(0.0, abs=1e-9)
     assert d.loc[d["changed"], "name"].tolist() == ["diesel", "vacuum gas oil"]
@@ -56,7 +56,7 @@ def test_sweep_endpoints_equal_single_runs(demos):
     df = sweep(m, cs, "kerosene", 210.0, 250.0, 2.0)
     assert len(df) == 21
     for t, row in ((210.0, df.iloc[0]), (250.0, df.iloc[-1])):
-        single = run_yields(a, cs.with_ends({"kerosene": t}), model=m).cuts.set_index("name")
+        single = run_yields(a, cs.with_ends({"kerosene": t}), model=m).cuts.frame().set_index("name")
         assert row["lower_vol_pct"] == pytest.approx(single.loc["kerosene", "vol_pct"], abs=1e-12)
         assert row["upper_wt_pct"] == pytest.approx(single.loc["diesel", "wt_pct"], abs=1e-12)
         assert row["upper_d86_10_c"] == pytest.approx(single.loc["diesel", "d86_c"]["10"], abs=1e-9)
@@ -89,9 +89,9 @@ def test_four_times_the_per_degree_vector_matches_a_4c_shift(demos, cut_point):
     end = {c.name: c.end_c for c in cs.cuts}[cut_point]
     for assay, model in demos:
         _, vec = cut_point_vectors(model, cs)
-        d = vec[cut_point].set_index("name")
+        d = vec[cut_point].frame().set_index("name")
         moved = shift_delta(run_yields(assay, cs, model=model),
-                            run_yields(assay, cs.with_ends({cut_point: end + 4.0}), model=model)).set_index("name")
+                            run_yields(assay, cs.with_ends({cut_point: end + 4.0}), model=model)).frame().set_index("name")
         for q in ("vol_pct", "wt_pct", "sg", "sulfur_wt_pct"):
             ok = np.isfinite(moved[q]) & np.isfinite(d[q])
             assert np.all(np.abs(4.0 * d[q][ok] - moved[q][ok]) <= 0.02 * np.abs(moved[q][ok]) + 1e-4), (assay.name, q)

@@ -27,21 +27,21 @@ def assay():
 def test_zero_uncertainty_is_deterministic(assay):
     # Identity: with every sigma zero each draw is the assay itself, so P10 = P50 = P90 = the plain result.
     bands = monte_carlo(assay, default_cut_set(), Sigmas(0.0, 0.0, 0.0, 0.0), n=20)
-    plain = cut_table(build_model(assay), default_cut_set())
+    plain = cut_table(build_model(assay), default_cut_set()).frame()
     for q in ("vol_pct", "wt_pct", "sg", "sulfur_wt_pct"):
         for p in (10, 50, 90):
             np.testing.assert_allclose(bands[f"{q}_p{p}"], plain[q], atol=1e-4, err_msg=q)
 
 
 def test_bands_ordered_and_widen(assay):
-    small = monte_carlo(assay, default_cut_set(), Sigmas(1.0, 0.1, 0.0002, 0.01), n=60)
-    big = monte_carlo(assay, default_cut_set(), Sigmas(4.0, 0.6, 0.002, 0.06), n=60)
+    small = monte_carlo(assay, default_cut_set(), Sigmas(1.0, 0.1, 0.0002, 0.01), n=60).frame()
+    big = monte_carlo(assay, default_cut_set(), Sigmas(4.0, 0.6, 0.002, 0.06), n=60).frame()
     for df in (small, big):
         assert (df["vol_pct_p10"] <= df["vol_pct_p50"] + 1e-12).all()
         assert (df["vol_pct_p50"] <= df["vol_pct_p90"] + 1e-12).all()
     width = lambda d: (d["vol_pct_p90"] - d["vol_pct_p10"]).sum()  # noqa: E731
     assert width(big) > width(small)
-    again = monte_carlo(assay, default_cut_set(), Sigmas(1.0, 0.1, 0.0002, 0.01), n=60)
+    again = monte_carlo(assay, default_cut_set(), Sigmas(1.0, 0.1, 0.0002, 0.01), n=60).frame()
     assert again.equals(small)  # same seed, same bands
 
 
@@ -76,9 +76,9 @@ def test_draws_shared_between_processes_give_the_same_bands():
 
     a = load_assay(demo_assay_paths()[0])
     n = DRAW_CHUNK + 30
-    serial = monte_carlo(a, default_cut_set(), n=n, seed=5)
+    serial = monte_carlo(a, default_cut_set(), n=n, seed=5).frame()
     with ProcessPoolExecutor(max_workers=2) as pool:
-        shared = monte_carlo(a, default_cut_set(), n=n, seed=5, map_fn=pool.map)
+        shared = monte_carlo(a, default_cut_set(), n=n, seed=5, map_fn=pool.map).frame()
     pd.testing.assert_frame_equal(serial, shared)
     assert serial.attrs["draws"] + serial.attrs["failed"] == n
 
@@ -101,14 +101,3 @@ def test_every_draw_keeps_the_light_ends_on_the_curve(k):
     assert not any("do not fit before the first measured point" in w for m in models for w in m.warnings)
 
 
-def test_rows_without_pandas_are_the_frame(assay):
-    # Identity: the pandas-free bands (frames=False, what `yields --json` prints) hold the DataFrame's rows,
-    # value for value (NaN where the frame has NaN), and its attrs.
-    cs = default_cut_set()
-    frame = monte_carlo(assay, cs, n=40, seed=7)
-    rows = monte_carlo(assay, cs, n=40, seed=7, frames=False)
-    assert rows.attrs == frame.attrs
-    assert [r["name"] for r in rows] == list(frame["name"])
-    for r, f in zip(rows, frame.to_dict("records")):
-        assert r.keys() == f.keys()
-        np.testing.assert_array_equal([r[k] for k in r if k != "name"], [f[k] for k in f if k != "name"])

@@ -57,12 +57,12 @@ def _assay(case: str) -> Assay:
 def _check(a: Assay) -> None:
     cs = default_cut_set()
     base = run_yields(a, cs).cuts
-    bands = monte_carlo(a, cs, Sigmas(temp_c=0.0, pct=0.0, sg=0.0, sulfur_rel=0.0), n=20, frames=False)
+    bands = monte_carlo(a, cs, Sigmas(temp_c=0.0, pct=0.0, sg=0.0, sulfur_rel=0.0), n=20)
     assert bands.attrs["failed"] == 0 and bands.attrs["draws"] == 20
-    for j, row in enumerate(bands):
-        assert row["name"] == base["name"].iloc[j]
+    for j, row in enumerate(bands.rows()):
+        assert row["name"] == base["name"][j]
         for q in BAND_QUALITIES:
-            want = float(base[q].iloc[j])
+            want = float(base[q][j])
             for p in ("p10", "p50", "p90"):
                 got = row[f"{q}_{p}"]
                 if np.isnan(want):

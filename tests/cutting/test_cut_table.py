@@ -1,11 +1,8 @@
-"""The DataFrame-free path of the yield job (``run_yields(frames=False)``, used when only JSON is printed)
-against the reference path (DataFrames): the same JSON object exactly, on the demo crudes and on random
-curves.  The reference is the project's own DataFrame path, which the rest of the suite checks against
-published sources; here only the equality of the two paths is at stake."""
+"""The one result table: its two edge shapes (rows for the JSON, a DataFrame for the report writers) hold the
+same values; the library engine's results equal one run_yields per assay.  Only the identity of paths is
+at stake here; the rest of the suite checks the values against published sources."""
 
 from __future__ import annotations
-
-import json
 
 import numpy as np
 import pytest
@@ -23,44 +20,40 @@ SWING = CutSet([Cut("naphtha", 150.0), Cut("kero swing", 200.0, swing=True), Cut
                 Cut("gas oil", 900.0), Cut("beyond", 950.0), Cut("residue", None)], "swing set")
 
 
-def both(assay, cs, limits):
-    model = build_model(assay)
-    ref = yield_json(run_yields(assay, cs, limits, model=model))
-    fast = yield_json(run_yields(assay, cs, limits, model=model, frames=False))
-    assert json.dumps(fast) == json.dumps(ref)  # the same text: keys in the same order too
-    return ref, fast
+def assert_same_rows(rows, records):
+    """The table's rows (plain Python values) equal the DataFrame's records value for value (NaN for NaN)."""
+    assert len(rows) == len(records)
+    for r, f in zip(rows, records):
+        assert list(r) == list(f)
+        for k in r:
+            x, y = r[k], f[k]
+            if isinstance(x, float) and x != x:
+                assert isinstance(y, float) and y != y, k
+            else:
+                assert x == y and type(x) is type(y), (k, x, y)
 
 
-@pytest.mark.parametrize("limits", ["blendstock", "finished", None])
 @pytest.mark.parametrize("cs", [default_cut_set(), SWING])
-def test_demo_crudes_same_json(demo_paths, cs, limits):
-    lim = read_limits(limits) if limits else []
-    lim = lim + [Limit("kerosine", "sulfur_wt_pct", max=0.2)]  # a limit on a cut the set lacks: warned about
+def test_rows_and_frame_are_the_same_table(demo_paths, cs):
+    # Identity of the two edge shapes: the rows (what the JSON prints) and the DataFrame (what the report
+    # writers take) of the cut table, the limit status and the bands hold the same values in the same order.
+    from assaycut.studies.uncertainty import monte_carlo
+
+    lim = read_limits("blendstock")
     for p in demo_paths:
-        ref, fast = both(load_assay(p), cs, lim)
-        assert fast == ref
-        assert isinstance(run_yields(load_assay(p), cs, lim, frames=False).cuts, list)
+        a = load_assay(p)
+        res = run_yields(a, cs, lim, uncertainty_draws=20)
+        for table in (res.cuts, res.limits, res.bands):
+            assert_same_rows(table.rows(), table.frame().to_dict("records"))
+        assert list(res.cuts.frame().columns) == res.cuts.keys
+        assert res.bands.frame().attrs == res.bands.attrs == monte_carlo(a, cs, n=20).attrs
 
 
-def test_random_curves_same_json():
-    rng = np.random.default_rng(20261202)  # invented random inputs; the check is the equality of two paths
-    pct = np.array([0.0, 5, 10, 30, 50, 70, 90])
-    for k in range(40):
-        temps = np.cumsum(rng.uniform(5.0, 90.0, pct.size)) + rng.uniform(-40.0, 60.0)
-        basis = "wt" if k % 3 == 0 else "vol"
-        assay = Assay(f"random {k}", float(rng.uniform(0.75, 0.98)),
-                      [CurveData("TBP", basis, pct.copy(), temps)],
-                      sulfur_wt_pct=float(rng.uniform(0.05, 4.0)) if k % 2 else None)
-        ref, fast = both(assay, default_cut_set() if k % 4 else SWING, read_limits(None))
-        assert fast == ref, k
+def test_a_table_refuses_columns_of_unequal_length():
+    from assaycut.cutting.cut_table import CutTable
 
-
-def test_overlaps_and_rates_keep_the_dataframe_path(demo_paths):
-    a = load_assay(demo_paths[0])
-    cs = default_cut_set()
-    cs.overlaps.update({"kerosene": 20.0})
-    assert not isinstance(run_yields(a, cs, [], frames=False).cuts, list)
-    assert not isinstance(run_yields(a, default_cut_set(), [], frames=False, rate_bbl_per_day=1e5).cuts, list)
+    with pytest.raises(ValueError, match="unequal length"):
+        CutTable({"name": ["a", "b"], "vol_pct": np.array([1.0])})
 
 
 def assert_close_docs(a, b, where=""):
@@ -98,5 +91,5 @@ def test_many_at_once_equal_one_by_one(demo_paths):
         lim = read_limits(None) + [Limit("kerosine", "sulfur_wt_pct", max=0.2)]
         many = run_yields_many(assays, models, cs, lim)
         for a, m, r in zip(assays, models, many):
-            one = run_yields(a, cs, lim, model=m, frames=False)
+            one = run_yields(a, cs, lim, model=m)
             assert_close_docs(yield_json(one), yield_json(r), a.name)
