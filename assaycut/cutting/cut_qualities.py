@@ -58,8 +58,8 @@ def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas,
 
     Parameters
     ----------
-    model : CrudeModel
-        Its ``qualities`` and ``sulfur_estimated``.
+    model : BatchModel
+        Its ``row_qualities`` and ``sulfur_rows_estimated``.
     va, vb, wa, wb : numpy.ndarray
         Each cut's bounds on the volume and weight bases. [%]
     meabp, sg, kw : numpy.ndarray
@@ -77,19 +77,15 @@ def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas,
     """
     estimated: dict[str, np.ndarray] = {}
     some = (vb - va) > 1e-9
-    rows = getattr(model, "row_qualities", None)
-    if rows is None:  # one crude model: every row is that crude
-        values = _measured(_wanted(getattr(model, "qualities", {}), only), va, vb, wa, wb, some)
-    else:  # a batch: row r is crude r, each with its own qualities
+    rows = model.row_qualities
+    if len(rows) == 1:  # one crude: every row of the queries is a cut set of that crude
+        values = _measured(_wanted(rows[0], only), va, vb, wa, wb, some)
+    else:  # row r is crude r, each with its own qualities
         values = {}
         for r, quals in enumerate(rows):
             for name, v in _measured(_wanted(quals, only), va[r], vb[r], wa[r], wb[r], some[r]).items():
                 values.setdefault(name, np.full(va.shape, np.nan))[r] = v
-    sul = getattr(model, "sulfur_rows_estimated", None)
-    if sul is not None:
-        estimated["sulfur_wt_pct"] = some & sul.reshape((-1,) + (1,) * (va.ndim - 1))
-    elif getattr(model, "sulfur_estimated", False):
-        estimated["sulfur_wt_pct"] = np.broadcast_to(some, va.shape).copy()
+    estimated["sulfur_wt_pct"] = some & model.sulfur_rows_estimated.reshape((-1,) + (1,) * (va.ndim - 1))
     add_estimates(values, estimated, meabp, sg, kw, some & ~gas)
     return values, estimated
 

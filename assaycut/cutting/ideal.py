@@ -42,6 +42,7 @@ from ..methods.product_properties import (
     flash_point_api_2b7_1,
 )
 from ..model.crude import CrudeModel
+from .model_rows import BatchModel
 from ..units import sg_to_api, sg_to_density15
 from .cut_table import CutTable
 from .cutset import CutSet
@@ -74,7 +75,7 @@ def cut_table(model: CrudeModel, cut_set: CutSet) -> CutTable:
         {"0": .., "10": .., ...} [°C] or None.
     """
     names, ends = cut_set.reported()
-    return columns_table(names, first_row(cut_columns(model, ends[None, :])))
+    return columns_table(names, first_row(cut_columns(BatchModel([model]), ends[None, :])))
 
 
 def first_row(cols: dict) -> dict:
@@ -110,14 +111,16 @@ def with_table_d86(cols: dict) -> dict:
     return {**cols, "d86": d86}
 
 
-def cut_columns(model: CrudeModel, ends: np.ndarray, only=None) -> dict[str, np.ndarray]:
+def cut_columns(model: BatchModel, ends: np.ndarray, only=None) -> dict[str, np.ndarray]:
     """Per-cut yields and qualities for many cut-point sets at once.
 
     Parameters
     ----------
-    model : CrudeModel
+    model : BatchModel
+        One crude (``BatchModel([crude_model])``: ``ends`` are m alternative cut sets of it), or m crudes (row
+        r of ``ends`` cuts crude r).
     ends : numpy.ndarray
-        Cut points, shape (m, n-1): m alternative cut sets of n cuts. [°C]
+        Cut points, shape (m, n-1): m cut sets of n cuts. [°C]
     only : set of str, optional
         Measured narrow-cut qualities to compute (default all; see
         :func:`~assaycut.cutting.cut_qualities.quality_columns`).
@@ -179,9 +182,7 @@ def _temps_at(curve, pcts: list[np.ndarray]) -> list[np.ndarray]:
 
 def _all_flag(model, like) -> np.ndarray:
     """True for every cut of a model whose distributions depend on the extension (row-wise for a batch)."""
-    flag = np.asarray(model.all_on_extension != "" if isinstance(model.all_on_extension, str)
-                      else model.all_on_extension, dtype=bool)
-    return np.broadcast_to(flag.reshape((-1,) + (1,) * (np.ndim(like) - 1)) if flag.ndim else flag, np.shape(like))
+    return np.broadcast_to(model.on_extension.reshape((-1,) + (1,) * (np.ndim(like) - 1)), np.shape(like))
 
 
 def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, meabp) -> dict[str, np.ndarray]:

@@ -1,10 +1,8 @@
 """The assay-library engine: many crude models cut with one cut set as arrays over assays.
 
-Each model's splines (TBP curve, density and sulfur distributions) are stacked as the rows of one
-:class:`~assaycut.model.spline.Pchip` (padded to a common node count); evaluation, exact integrals and
-inverses run row-wise over all assays at once, each row's answers its own.  :class:`BatchModel` offers the same interface as
-:class:`~assaycut.model.crude.CrudeModel` with the first axis running over assays, so the cutting code
-(:func:`~assaycut.cutting.ideal.cut_columns`) serves a single assay, a sweep, and a whole library alike.
+The models of a chunk are one :class:`~assaycut.cutting.model_rows.BatchModel` (their splines stacked as the
+rows of one :class:`~assaycut.model.spline.Pchip`), cut by the same :func:`~assaycut.cutting.ideal.cut_columns`
+that cuts one crude (a batch of one); each row's answers are its own.
 """
 
 from __future__ import annotations
@@ -14,86 +12,12 @@ import math
 import numpy as np
 
 from ..model.crude import CrudeModel
-from ..model.spline import Pchip, interval_mean
-from ..model.tbp_curve import TbpCurve
 from .cutset import CutSet
 from .ideal import cut_columns
+from .model_rows import BatchModel
 
 CHUNK = 1024
 """Crudes cut together in one pass; a library is cut chunk by chunk."""
-
-
-class BatchCurve:
-    """Row-wise counterpart of :class:`~assaycut.model.tbp_curve.TbpCurve` for many crudes."""
-
-    def __init__(self, models: list[CrudeModel] | None, spline: Pchip | None = None, safe_lo=None,
-                 safe_hi=None):
-        """From the crudes' models, or (``models`` None) from the rows' spline and the safe ranges [vol %]."""
-        if models is not None:
-            spline = Pchip.stack([m.curve.spline for m in models])
-            safe_lo = [m.curve.safe_lo for m in models]
-            safe_hi = [m.curve.safe_hi for m in models]
-        self.spline = spline
-        self.safe_lo = np.asarray(safe_lo, dtype=float).reshape(-1, 1)
-        self.safe_hi = np.asarray(safe_hi, dtype=float).reshape(-1, 1)
-
-    def pct_at(self, temp_c):
-        return self.spline(temp_c)
-
-    def temp_at(self, pct):
-        return self.spline.inverse(pct)
-
-    mean_temp = TbpCurve.mean_temp  # same formula; works row-wise through temp_at and spline.integral
-
-    def is_extrapolated(self, pct_a, pct_b):
-        lo = self.safe_lo.reshape((-1,) + (1,) * (np.ndim(pct_a) - 1))
-        hi = self.safe_hi.reshape((-1,) + (1,) * (np.ndim(pct_b) - 1))
-        return (np.asarray(pct_b) > hi + 1e-9) | (np.asarray(pct_a) < lo - 1e-9)
-
-
-class BatchModel:
-    """Row-wise counterpart of :class:`~assaycut.model.crude.CrudeModel`: axis 0 runs over the crudes."""
-
-    def __init__(self, models: list[CrudeModel]):
-        self._setup(BatchCurve(models), Pchip.stack([m.sg_dist for m in models]),
-                    Pchip.stack([m.sulfur_dist for m in models]), [m.sg for m in models],
-                    [np.nan if m.sulfur_wt_pct is None else m.sulfur_wt_pct for m in models],
-                    [m.all_on_extension != "" for m in models], [m.qualities for m in models],
-                    [m.sulfur_estimated for m in models])
-
-    @classmethod
-    def from_rows(cls, rows) -> "BatchModel":
-        """The batch of draws modelled as arrays (:class:`~assaycut.model.draws.DrawRows`): no narrow-cut
-        qualities, sulfur from the narrow cuts."""
-        out = cls.__new__(cls)
-        n = rows.sg.size
-        curve = BatchCurve(None, rows.curve, rows.safe_lo, rows.safe_hi)
-        out._setup(curve, rows.sg_dist, rows.sulfur_dist, rows.sg,
-                   rows.sulfur_wt_pct, rows.on_extension, [{}] * n, np.zeros(n, dtype=bool))
-        return out
-
-    def _setup(self, curve, sg_dist, sulfur_dist, sg, sulfur_wt_pct, on_extension, qualities, estimated):
-        self.curve, self.sg_dist, self.sulfur_dist = curve, sg_dist, sulfur_dist
-        self.n = sg_dist.rows
-        self.sg = np.asarray(sg, dtype=float).reshape(-1, 1)
-        self.sulfur_wt_pct = np.asarray(sulfur_wt_pct, dtype=float).reshape(-1, 1)
-        self._a0 = self.sg_dist.antiderivative(np.zeros((self.n, 1)))
-        self.all_on_extension = np.asarray(on_extension, dtype=bool)
-        self.row_qualities = qualities
-        self.sulfur_rows_estimated = np.asarray(estimated, dtype=bool)
-
-    def _col(self, arr, like):
-        return arr.reshape((-1,) + (1,) * (np.ndim(like) - 1))
-
-    def wt_at_vol(self, vol_pct):
-        v = np.asarray(vol_pct, dtype=float)
-        return (self.sg_dist.antiderivative(v) - self._col(self._a0, v)) / self._col(self.sg, v)
-
-    mean_sg = CrudeModel.mean_sg  # same formula; works row-wise through sg_dist
-
-    def mean_sulfur(self, wa, wb):
-        out = interval_mean(self.sulfur_dist, wa, wb)
-        return np.where(self._col(self.sulfur_dist.missing, out), np.nan, out)
 
 
 def cut_library(models: list[CrudeModel], cut_set: CutSet, only=None) -> tuple[list[str], dict[str, np.ndarray]]:

@@ -40,6 +40,7 @@ from .ideal import (
     first_row,
 )
 from .cut_qualities import product_quality_columns
+from .model_rows import BatchModel
 
 Z95 = 1.6448536269514722
 """Standard normal quantile of 95 %."""
@@ -248,7 +249,7 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     """
     names, ends = cut_set.reported()
     targets = targets_for(cut_set, overlaps)
-    ideal = first_row(cut_columns(model, ends[None, :]))
+    ideal = first_row(cut_columns(BatchModel([model]), ends[None, :]))
     sl = _slices(model, ends)
     widths = solve_split_widths(sl, ends, targets, ideal["overlap_c"][:-1], cut_set.label, names)
     va, vb, dv, t_mean, mass, wa, wb = (sl[k] for k in ("va", "vb", "dv", "t_mean", "mass", "wa", "wb"))

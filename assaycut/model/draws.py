@@ -76,7 +76,7 @@ class DrawValues:
 @dataclass
 class DrawRows:
     """The model arrays of draws built together, one row per draw: what the library engine cuts
-    (:meth:`~assaycut.cutting.library_engine.BatchModel.from_rows`).
+    (:meth:`~assaycut.cutting.model_rows.BatchModel.from_rows`).
 
     Attributes
     ----------

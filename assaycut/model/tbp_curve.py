@@ -109,25 +109,31 @@ class TbpCurve:
         return float(self.spline.x[k])
 
     def mean_temp(self, pct_a, pct_b, ta=None, tb=None):
-        """Volume-average TBP over [pct_a, pct_b] [vol %], by parts: ∫T dV = [T V] - ∫V dT. [°C]
-
-        Where the interval has no width, the temperature at that point is returned.  ``ta``, ``tb``: the
-        TBP at ``pct_a`` and ``pct_b`` [°C] when the caller has them already (else found here).
-        """
-        pct_a = np.asarray(pct_a, dtype=float)
-        pct_b = np.asarray(pct_b, dtype=float)
-        ta = self.temp_at(pct_a) if ta is None else ta
-        tb = self.temp_at(pct_b) if tb is None else tb
-        # the inverse returns the left end of flat steps; integrate V(T) over [ta, tb]
-        area = tb * pct_b - ta * pct_a - self.spline.integral(ta, tb)
-        width = pct_b - pct_a
-        with np.errstate(invalid="ignore", divide="ignore"):
-            return np.where(width > 1e-12, area / np.where(width > 1e-12, width, 1.0), ta)
+        """Volume-average TBP over [pct_a, pct_b] [vol %] (:func:`volume_average_temp`). [°C]"""
+        return volume_average_temp(self, pct_a, pct_b, ta, tb)
 
     def is_extrapolated(self, pct_a, pct_b):
         """True where [pct_a, pct_b] depends on the extension: it reaches outside :attr:`safe_lo` -
         :attr:`safe_hi` (the measured range less its end intervals when those are extended)."""
         return (np.asarray(pct_b) > self.safe_hi + 1e-9) | (np.asarray(pct_a) < self.safe_lo - 1e-9)
+
+
+def volume_average_temp(curve, pct_a, pct_b, ta=None, tb=None):
+    """Volume-average TBP of a curve over [pct_a, pct_b] [vol %], by parts: ∫T dV = [T V] - ∫V dT. [°C]
+
+    Where the interval has no width, the temperature at that point is returned.  ``ta``, ``tb``: the TBP at
+    ``pct_a`` and ``pct_b`` [°C] when the caller has them already (else found here).  ``curve`` is anything with
+    ``temp_at`` and a ``spline`` V(T) (one curve, or curves as rows).
+    """
+    pct_a = np.asarray(pct_a, dtype=float)
+    pct_b = np.asarray(pct_b, dtype=float)
+    ta = curve.temp_at(pct_a) if ta is None else ta
+    tb = curve.temp_at(pct_b) if tb is None else tb
+    # the inverse returns the left end of flat steps; integrate V(T) over [ta, tb]
+    area = tb * pct_b - ta * pct_a - curve.spline.integral(ta, tb)
+    width = pct_b - pct_a
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(width > 1e-12, area / np.where(width > 1e-12, width, 1.0), ta)
 
 
 def staircase(nbps_c, cum_pcts):

@@ -20,6 +20,7 @@ import math
 import numpy as np
 
 from ..cutting.ideal import cut_columns
+from ..cutting.model_rows import BatchModel
 from ..errors import StudyError
 from ..methods.blending_indices import rule_for
 from ..methods.blending_rules import (
@@ -147,7 +148,7 @@ def _narrow_cuts(models, v, sg, t_hi: float) -> NarrowCuts:
     by weight on sulfur."""
     bounds = np.unique(np.concatenate([[15.0], np.arange(50.0, t_hi + 1e-9, NARROW_STEP_C), [t_hi]]))
     bounds = bounds[bounds <= t_hi]
-    cols = [cut_columns(m, bounds[None, :]) for m in models]
+    cols = [cut_columns(BatchModel([m]), bounds[None, :]) for m in models]
     vol = np.array([c["vol_pct"][0] for c in cols])          # (parents, cuts), % of each parent
     sgc = np.array([np.nan_to_num(c["sg"][0]) for c in cols])
     sul = np.array([c["sulfur_wt_pct"][0] for c in cols])

@@ -31,6 +31,7 @@ import numpy as np
 
 from ..cutting.cutset import CutSet
 from ..cutting.ideal import LIGHT_ENDS_MAX_C, cut_columns
+from ..cutting.model_rows import BatchModel
 from ..cutting.limits import TOL, Limit, applicable, limit_margins, limit_values
 from ..errors import StudyError
 from ..model.crude import CrudeModel
@@ -225,7 +226,7 @@ def optimize_cut_points(model: CrudeModel, cut_set: CutSet, limits: list[Limit],
     names = cut_set.names
     ends0 = cut_set.ends_c.copy()
     var, lims, bounds = _search_space(model, names, ends0, limits, maximize, span_c, free)
-    start_vol = cut_columns(model, ends0[None, :])["vol_pct"][0]
+    start_vol = cut_columns(BatchModel([model]), ends0[None, :])["vol_pct"][0]
     mins = _min_yields(names, start_vol, min_yields)
     problem = _Problem(model, names, ends0, var, lims, maximize, prices, mins)
     labels_all = [f"end of {names[i]}" for i in var]
@@ -315,7 +316,7 @@ class _Problem:
     moving points).  Tracks the number of candidates evaluated and each requirement's best margin seen."""
 
     def __init__(self, model, names, ends0, var, lims, maximize, prices, mins):
-        self.model, self.names, self.ends0, self.var = model, names, ends0, var
+        self.model, self.names, self.ends0, self.var = BatchModel([model]), names, ends0, var
         self.maximize, self.prices = maximize, prices
         self.limits = applicable(lims, names)
         # only the qualities the limits and the prices read are computed for each candidate

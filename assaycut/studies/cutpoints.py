@@ -12,6 +12,7 @@ import numpy as np
 from ..cutting.cut_table import CutTable
 from ..cutting.cutset import CutSet
 from ..cutting.ideal import cut_columns
+from ..cutting.model_rows import BatchModel
 from ..errors import StudyError
 from ..methods.d86 import D86_STD
 from ..model.crude import CrudeModel
@@ -121,7 +122,7 @@ def sweep(model: CrudeModel, cut_set: CutSet, name: str, t_from: float, t_to: fl
     sub += [np.nan] + ([ends[k + 1]] if k + 1 < len(ends) else [])
     grid = np.repeat(np.array(sub)[None, :], n_steps, axis=0)
     grid[:, j_lo] = pts
-    cols = cut_columns(model, grid)
+    cols = cut_columns(BatchModel([model]), grid)
     out = {"cut_point_c": pts}
     for side, j in (("lower", j_lo), ("upper", j_lo + 1)):
         for q in SWEEP_QUALITIES:
@@ -176,7 +177,7 @@ def cut_point_vectors(model: CrudeModel, cut_set: CutSet, step_c: float = VECTOR
     grid = np.repeat(ends[None, :], 2 * k + 1, axis=0)
     grid[1:k + 1][np.arange(k), np.arange(k)] += step_c
     grid[k + 1:][np.arange(k), np.arange(k)] -= step_c
-    cols = cut_columns(model, grid)
+    cols = cut_columns(BatchModel([model]), grid)
     tables = [columns_table(names, first_row({key: (({n: f[i:i + 1] for n, f in v.items()} if key == "estimated"
                                                       else v[i:i + 1])) for key, v in cols.items()}))
               for i in range(2 * k + 1)]

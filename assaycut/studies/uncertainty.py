@@ -20,7 +20,8 @@ import numpy as np
 from ..cutting.cut_table import CutTable
 from ..cutting.cutset import CutSet
 from ..cutting.ideal import cut_columns
-from ..cutting.library_engine import BatchModel, cut_library
+from ..cutting.library_engine import cut_library
+from ..cutting.model_rows import BatchModel
 from ..errors import AssaycutError, StudyError
 from ..model.assay import Assay
 from ..model.crude import build_models

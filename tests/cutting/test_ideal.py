@@ -10,6 +10,7 @@ from numpy.testing import assert_allclose
 
 from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
 from assaycut.cutting.ideal import cut_columns, cut_table
+from assaycut.cutting.model_rows import BatchModel
 from assaycut.errors import CutSetError
 from assaycut.io import load_assay
 from assaycut.methods.product_properties import cetane_index_d4737
@@ -101,7 +102,7 @@ def test_cut_point_in_flat_step_gives_zero_yield():
 def test_raising_a_cut_point_never_lowers_the_lighter_cut(t, dt):
     # Monotonicity (style guide invariant): moving a cut point up never lowers the lighter cut's yield.
     m = simple_model()
-    cols = cut_columns(m, np.array([[t, 650.0], [t + dt, 650.0]]))
+    cols = cut_columns(BatchModel([m]), np.array([[t, 650.0], [t + dt, 650.0]]))
     assert cols["vol_pct"][1, 0] >= cols["vol_pct"][0, 0] - 1e-12
     assert cols["wt_pct"][1, 0] >= cols["wt_pct"][0, 0] - 1e-12
 

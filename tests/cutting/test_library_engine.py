@@ -8,6 +8,7 @@ import pytest
 from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
 from assaycut.cutting.ideal import cut_columns
 from assaycut.cutting.library_engine import cut_library, library_summary
+from assaycut.cutting.model_rows import BatchModel
 from assaycut.io import load_assay
 from assaycut.model.assay import Assay, CurveData
 from assaycut.model.crude import build_model
@@ -32,7 +33,7 @@ def test_batch_equals_single(models, cs):
     names, cols = cut_library(models, cs)
     _, ends = cs.reported()
     for r, m in enumerate(models):
-        single = cut_columns(m, ends[None, :])
+        single = cut_columns(BatchModel([m]), ends[None, :])
         est = single.pop("estimated")
         for key in set(est) | set(cols["estimated"]):
             one = est[key][0] if key in est else np.zeros(len(names), bool)

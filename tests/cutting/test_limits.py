@@ -47,7 +47,6 @@ def test_margins_are_distances_to_the_bounds():
 
 def test_report_and_optimiser_read_the_same_values():
     # One evaluator: the yield report's value of each limit equals the optimiser's, for the same cut.
-    import pandas as pd
 
     d86 = {str(p): float(t) for p, t in zip((0, 10, 30, 50, 70, 90, 95), (180, 230, 270, 300, 330, 360, 375))}
     row = {"name": "diesel", "vol_pct": 20.0, "wt_pct": 21.0, "mid_vol_c": 290.0, "vabp_c": 290.0,

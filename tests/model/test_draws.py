@@ -15,7 +15,7 @@ import pytest
 
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.cutting.ideal import cut_columns
-from assaycut.cutting.library_engine import BatchModel
+from assaycut.cutting.model_rows import BatchModel
 from assaycut.errors import AssaycutError
 from assaycut.io import load_assay
 from assaycut.model.assay import Assay, CurveData, LightEnds, NarrowCuts
@@ -51,7 +51,7 @@ def assert_rows_match(assay, vals, method="daubert-1994"):
         for a, b in ((got.curve.safe_lo, want.curve.safe_lo), (got.curve.safe_hi, want.curve.safe_hi),
                      (got.sg, want.sg), (got.sulfur_wt_pct, want.sulfur_wt_pct)):
             np.testing.assert_allclose(a, b, rtol=TOL, atol=TOL)
-        assert np.array_equal(got.all_on_extension, want.all_on_extension)
+        assert np.array_equal(got.on_extension, want.on_extension)
         rep = np.repeat(ends[None, :], g.sg.size, axis=0)
         cw, co = cut_columns(want, rep, only=set()), cut_columns(got, rep, only=set())
         for q in BAND_QUALITIES + ["extrapolated"]:

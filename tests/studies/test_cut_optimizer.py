@@ -12,6 +12,7 @@ from assaycut.cli.common import load_prices
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.cutting.ideal import cut_columns
 from assaycut.cutting.limits import limit_margins
+from assaycut.cutting.model_rows import BatchModel
 from assaycut.errors import StudyError
 from assaycut.io import load_assay
 from assaycut.io.tomlfiles import demo_assay_paths, read_limits
@@ -44,9 +45,9 @@ def test_optimum_meets_every_limit(demo):
 def _brute_force(m, cs, lims, cols_at, ends):
     """Every candidate row of ``ends`` checked against the limits with the limits' own margins (an exhaustive
     search, independent of the optimiser's search); returns (cut columns, feasible mask)."""
-    cols = cut_columns(m, ends)
+    cols = cut_columns(BatchModel([m]), ends)
     marg, _ = limit_margins(cols, cs.names, lims)
-    usable = ~np.isnan(limit_margins(cut_columns(m, cs.ends_c[None, :]), cs.names, lims)[0][0])
+    usable = ~np.isnan(limit_margins(cut_columns(BatchModel([m]), cs.ends_c[None, :]), cs.names, lims)[0][0])
     ok = np.all(np.nan_to_num(marg[:, usable], nan=-1.0) >= 0, axis=1)
     return cols, ok
 
