@@ -18,6 +18,6 @@ def test_benchmark_smoke_runs():
                          text=True, timeout=600)
     assert out.returncode == 0, out.stderr
     figures = json.loads(out.stdout.strip().splitlines()[-1])
-    assert set(figures) >= {"library_vs_floor", "library_vs_naive", "sweep_ms", "help_vs_bare", "scaling_10k_vs_1k",
-                            "peak_mb", "explore_update_ms"}
+    assert set(figures) >= {"batched_vs_alone", "library_vs_naive", "sweep_ms", "help_vs_bare", "scaling_10k_vs_1k",
+                            "peak_mb", "explore_update_ms", "json_startup_s", "json_per_assay_ms"}
     assert all(isinstance(figures[k], (int, float)) for k in figures if k != "raw")

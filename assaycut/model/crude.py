@@ -19,7 +19,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..errors import CurveError
+from ..errors import AssaycutError, CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k
 from ..units import pct_text
 from .assay import Assay, validate_assay
@@ -28,7 +28,7 @@ from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
 from .quality_distributions import estimated_sulfur_steps, quality_distributions
 from .spline import Pchip, interval_mean
-from .steps import run_alone, run_together
+from .steps import run_together
 from .tbp_curve import TbpCurve, build_curve_steps, staircase
 
 
@@ -131,13 +131,17 @@ def build_model(assay: Assay, method: str = "daubert-1994", qualities: bool = Tr
     InputError
         For an assay the readers would have refused (:func:`~assaycut.model.assay.validate_assay`).
     """
-    return run_alone(model_steps(assay, method, qualities))
+    out = build_models([assay], method, qualities)[0]
+    if isinstance(out, AssaycutError):
+        raise out
+    return out
 
 
 def build_models(assays, method: str = "daubert-1994", qualities: bool = True) -> list:
-    """Build many crude models together: each is the model :func:`build_model` gives for that assay (to the
-    last bit; tested), with the expensive kernels (the extension's distribution fit, the density and sulfur
-    distributions' mean matching) run over all the assays at once (:func:`~assaycut.model.steps.run_together`).
+    """Build many crude models together, the expensive kernels (the extension's distribution fit, the density
+    and sulfur distributions' mean matching) run over all the assays at once
+    (:func:`~assaycut.model.steps.run_together`).  The one model builder: :func:`build_model` is a batch of one,
+    and each model is the same to the last bit whatever else is in the batch (tested).
 
     Parameters
     ----------

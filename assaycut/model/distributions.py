@@ -11,7 +11,7 @@ from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
 from .assay import Assay
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
 from .spline import Pchip, hermite_combine, hermite_integral_basis, search_rows, segment_integrals, slopes_on
-from .steps import Need, run_alone
+from .steps import Need, run_one
 from .tbp_curve import CurveTempNeed, TbpCurve
 
 
@@ -51,7 +51,7 @@ def property_spline(lo, hi, values, fixed=(), iterations: int = 30, floor: float
     Pchip
         Property against percent distilled.
     """
-    return run_alone(property_spline_steps(lo, hi, values, fixed, iterations, floor))
+    return run_one(property_spline_steps(lo, hi, values, fixed, iterations, floor))
 
 
 def property_spline_steps(lo, hi, values, fixed=(), iterations: int = 30, floor: float | None = 0.0):
@@ -92,17 +92,6 @@ class MeanMatchNeed(Need):
         self.x, self.y0, self.is_cut, self.a, self.b, self.target = x, y0, is_cut, a, b, target
         self.tol, self.iterations, self.floor = tol, iterations, floor
 
-    def alone(self):
-        """(best node values, their PCHIP slopes, their cumulative segment integrals): the problem as a batch of
-        one (:func:`mean_match_arrays`)."""
-        if self.iterations < 1:  # no iteration at all
-            d = slopes_on(self.x)(self.y0)
-            return self.y0.copy(), d, _cumulative(self.x, self.y0, d)
-        best, d, cum = mean_match_arrays(self.x[None, :], self.y0[None, :], self.is_cut, self.a[None, :],
-                                         self.b[None, :], self.target[None, :], np.array([self.tol]),
-                                         self.iterations, self.floor)
-        return best[0], d[0], cum[0]
-
     @classmethod
     def together(cls, needs):
         groups: dict[tuple, list[int]] = {}
@@ -111,21 +100,22 @@ class MeanMatchNeed(Need):
             groups.setdefault(key, []).append(k)
         out: list = [None] * len(needs)
         for idx in groups.values():
-            if len(idx) == 1:
-                out[idx[0]] = needs[idx[0]].alone()
-                continue
-            rows = [needs[k] for k in idx]
-            for k, y in zip(idx, _mean_match_rows(rows)):
+            for k, y in zip(idx, _mean_match_rows([needs[k] for k in idx])):
                 out[k] = y
         return out
 
 
 def _mean_match_rows(rows: list[MeanMatchNeed]) -> list[np.ndarray]:
-    """:meth:`MeanMatchNeed.alone` of many problems with the same node count, cut pattern, iteration limit and
-    floor, row-wise (the same arithmetic, each row stopping where it would alone)."""
+    """The node correction of many problems with the same node count, cut pattern, iteration limit and floor,
+    row-wise: (best node values, their PCHIP slopes, their cumulative segment integrals) of each, every row
+    stopping where it would alone (:func:`mean_match_arrays`)."""
     first = rows[0]
-    if first.iterations < 1:
-        return [r.alone() for r in rows]
+    if first.iterations < 1:  # no iteration at all: the start values
+        out = []
+        for r in rows:
+            d = slopes_on(r.x)(r.y0)
+            out.append((r.y0.copy(), d, _cumulative(r.x, r.y0, d)))
+        return out
     best, best_d, best_cum = mean_match_arrays(*(np.array([getattr(r, a) for r in rows])
                                                   for a in ("x", "y0", "is_cut", "a", "b", "target", "tol")),
                                                 first.iterations, first.floor)
@@ -136,7 +126,7 @@ def mean_match_arrays(x, y, is_cut, a, b, target, tol, iterations: int, floor):
     """The node correction of :class:`MeanMatchNeed` row-wise (iterations >= 1): nodes x and start values y
     (R, n), the cut nodes ``is_cut`` (n,) or (R, n) with every row alike, intervals a, b and their ``target``
     means (R, k), tolerances ``tol`` (R,); the best node values, their slopes and cumulative integrals, (R, n)
-    each, every row as :meth:`MeanMatchNeed.alone` gives it."""
+    each, every row as it would be alone."""
     is_cut = np.asarray(is_cut, dtype=bool)
     if is_cut.ndim == 2:
         is_cut = is_cut[0]
@@ -235,7 +225,7 @@ def density_distribution(assay: Assay, curve: TbpCurve, le_mids, warnings: list[
         SG [-] against vol % [%]; the scale applied, (factor - 1) x 100 [%]; the source described; the fitted
         Watson K [-] (None with narrow-cut densities).
     """
-    return run_alone(density_distribution_steps(assay, curve, le_mids, warnings))
+    return run_one(density_distribution_steps(assay, curve, le_mids, warnings))
 
 
 def density_distribution_steps(assay: Assay, curve: TbpCurve, le_mids, warnings: list[str], positions=None):
@@ -319,7 +309,7 @@ def sulfur_distribution(model, assay: Assay, le_mids) -> None:
     le_mids : list of (mid vol % [%], SG [-])
         Light-ends components placed on the curve.
     """
-    run_alone(sulfur_distribution_steps(model, assay, le_mids))
+    run_one(sulfur_distribution_steps(model, assay, le_mids))
 
 
 def sulfur_distribution_steps(model, assay: Assay, le_mids, positions=None):

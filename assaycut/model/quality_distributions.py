@@ -27,7 +27,7 @@ from ..methods.fraction_properties import (
 )
 from .assay import Assay
 from .distributions import narrow_cut_positions, property_spline_steps
-from .steps import run_alone
+from .steps import run_one
 from .lightends import GAS_RANGE_MAX_C
 from .spline import Pchip
 
@@ -213,7 +213,7 @@ def estimated_sulfur(model) -> Pchip:
     Pchip
         Sulfur [wt %] against weight % distilled, reconciled.
     """
-    return run_alone(estimated_sulfur_steps(model))
+    return run_one(estimated_sulfur_steps(model))
 
 
 def estimated_sulfur_steps(model):

@@ -1,15 +1,16 @@
-"""Model building as steps, so that many models can be built together with array kernels.
+"""Model building as steps, so that many models are built together with array kernels.
 
 A model is built by a generator (a *step function*) that does its own cheap work in Python and, for each
 expensive numeric kernel, yields a :class:`Need` (the kernel's inputs) and receives the kernel's answer back
-(or has the kernel's :class:`~assaycut.errors.AssaycutError` raised at that point).  The same step function
-then runs in two ways:
+(or has the kernel's :class:`~assaycut.errors.AssaycutError` raised at that point).  :func:`run_together`
+advances many step functions side by side and answers all their pending needs of one kind with one array call
+(:meth:`Need.together`); one model is a batch of one (:func:`run_one`), so there is one way to build a model.
 
-* :func:`run_alone` answers every need with the one-problem kernel (:meth:`Need.alone`): the reference path,
-  what :func:`assaycut.model.crude.build_model` does;
-* :func:`run_together` advances many step functions side by side and answers all their pending needs of one
-  kind with one array call (:meth:`Need.together`), row by row the same arithmetic as the one-problem kernel,
-  so each model is the one :func:`run_alone` gives (the tests compare them to the last bit).
+Why generators rather than stages over rows: each assay takes its own branches (a weight-basis curve refits
+until its nodes close, light ends placed or not, extensions front and back, densities from narrow cuts or
+at constant Watson K, measured or estimated sulfur), and a step function reads as the one assay's sequence of
+decisions, with the kernels shared.  The row-wise stages written for the uncertainty draws
+(:mod:`assaycut.model.draws`, common branches only) took more lines than the step functions for all branches.
 
 Nothing here knows about assays or curves: the needs are defined next to their kernels.
 """
@@ -22,50 +23,24 @@ from ..errors import AssaycutError
 
 
 class Need:
-    """A request for one numeric kernel's answer; subclasses define the kernel.
-
-    Subclasses implement :meth:`alone` (the one-problem kernel) and may implement :meth:`together` (the same
-    kernel over many problems at once, each answer equal to :meth:`alone`'s).
-    """
+    """A request for one numeric kernel's answer; subclasses define the kernel in :meth:`together`."""
 
     __slots__ = ()
 
-    def alone(self):
-        """The answer to this one problem (raises an AssaycutError where the kernel refuses it)."""
-        raise NotImplementedError
-
     @classmethod
     def together(cls, needs: list) -> list:
-        """Answers to many problems of this kind, in order; an AssaycutError in place of a refused one.
-
-        The default answers them one at a time.
-        """
-        out = []
-        for n in needs:
-            try:
-                out.append(n.alone())
-            except AssaycutError as e:
-                out.append(e)
-        return out
+        """Answers to many problems of this kind (one of them alone is a batch of one), in order; an
+        AssaycutError in place of a refused one.  Each answer depends on its own problem alone."""
+        raise NotImplementedError
 
 
-def run_alone(steps):
-    """Run one step function to its end with the one-problem kernels; its return value.
-
-    An AssaycutError raised by a kernel is raised inside the step function where it yielded (so it behaves
-    as if the kernel had been called there).
-    """
-    try:
-        need = next(steps)
-        while True:
-            try:
-                answer = need.alone()
-            except AssaycutError as e:
-                need = steps.throw(e)
-                continue
-            need = steps.send(answer)
-    except StopIteration as stop:
-        return stop.value
+def run_one(steps):
+    """Run one step function to its end (:func:`run_together` of one); its return value, or the AssaycutError
+    that ended it raised."""
+    result = run_together([steps])[0]
+    if isinstance(result, AssaycutError):
+        raise result
+    return result
 
 
 def run_together(all_steps: list) -> list:

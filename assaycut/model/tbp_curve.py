@@ -20,7 +20,7 @@ from ..errors import CurveError
 from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution, fit_riazi_many
 from ..units import pct_text
 from .spline import Pchip
-from .steps import Need, run_alone
+from .steps import Need, run_one
 
 END_FRACTION = 0.9995
 """The curve's 100 % point is placed at this fraction of the fitted distribution."""
@@ -181,7 +181,7 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> TbpCurve:
     CurveError
         Fewer than two points, temperatures falling as percent rises, or an extension that cannot be fitted.
     """
-    return run_alone(build_curve_steps(percent, temp_c, front_t=front_t, front_v=front_v))
+    return run_one(build_curve_steps(percent, temp_c, front_t=front_t, front_v=front_v))
 
 
 class RiaziNeed(Need):
@@ -192,9 +192,6 @@ class RiaziNeed(Need):
 
     def __init__(self, percent, temp_c):
         self.percent, self.temp_c = percent, temp_c
-
-    def alone(self):
-        return fit_riazi_distribution(self.percent, self.temp_c)
 
     @classmethod
     def together(cls, needs):
@@ -211,9 +208,6 @@ class CurveTempNeed(Need):
     def __init__(self, curve: "TbpCurve", pct):
         self.curve, self.pct = curve, np.asarray(pct, dtype=float)
 
-    def alone(self):
-        return self.curve.temp_at(self.pct)
-
     @classmethod
     def together(cls, needs):
         out: list = [None] * len(needs)
@@ -221,8 +215,8 @@ class CurveTempNeed(Need):
         for k, n in enumerate(needs):
             groups.setdefault((n.curve.spline.x.size, n.pct.shape), []).append(k)
         for idx in groups.values():
-            if len(idx) == 1:
-                out[idx[0]] = needs[idx[0]].alone()
+            if len(idx) == 1:  # one curve: its own spline
+                out[idx[0]] = needs[idx[0]].curve.temp_at(needs[idx[0]].pct)
                 continue
             res = Pchip.stack([needs[k].curve.spline for k in idx]).inverse(
                 np.array([needs[k].pct.ravel() for k in idx]))

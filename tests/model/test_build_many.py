@@ -176,11 +176,11 @@ def test_mean_matching_together_equals_alone():
                                       floor=None if k % 5 == 0 else 0.0)
         needs.append(next(steps))
     assert all(isinstance(n, MeanMatchNeed) for n in needs)
-    for one, many in zip([n.alone() for n in needs], MeanMatchNeed.together(needs)):
+    for one, many in zip([MeanMatchNeed.together([n])[0] for n in needs], MeanMatchNeed.together(needs)):
         assert [z.tobytes() for z in one] == [z.tobytes() for z in many]  # node values, slopes, integrals
     # the slopes and integrals handed back are those the interpolant through the node values has
     for n in needs:
-        y, d, cum = n.alone()
+        y, d, cum = MeanMatchNeed.together([n])[0]
         ref = Pchip(n.x, y)
         assert ref.d.tobytes() == d.tobytes() and ref.C[0].tobytes() == cum.tobytes()
 
