@@ -115,10 +115,10 @@ def _draw_chunk(args):
     The draws are modelled as arrays over draws (:func:`~assaycut.model.draws.build_draws`) where they can be,
     the others one by one by the reference builder; each draw's model is the one :func:`build_model` gives it.
     """
-    assay, cut_set, sig, count, seed, k, method, fast = args
+    assay, cut_set, sig, count, seed, k, method = args
     rng = np.random.default_rng([seed, k])
     vals = draw_values(assay, sig, rng, count)
-    groups, left = build_draws(assay, vals) if fast else ([], list(range(count)))
+    groups, left = build_draws(assay, vals)
     _, ends = cut_set.reported()
     parts = []
     for g in groups:  # the bands read no narrow-cut quality
@@ -134,7 +134,7 @@ def _draw_chunk(args):
 
 
 def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 200, seed: int = 20261201,
-                method: str = "daubert-1994", progress=None, map_fn=map, fast: bool = True):
+                method: str = "daubert-1994", progress=None, map_fn=map):
     """P10/P50/P90 of each cut's yields and qualities under the assay's measurement uncertainty.
 
     Parameters
@@ -154,9 +154,6 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
     map_fn : callable
         A map-like callable for the chunks of :data:`DRAW_CHUNK` draws (e.g. a process pool's ``imap``, to
         share them between cores); the builtin ``map`` by default.
-    fast : bool
-        Model the draws as arrays over draws where they can be (default); False builds every draw by the
-        reference builder (the same models; the tests compare the two).
 
     Returns
     -------
@@ -167,7 +164,7 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
     if not 20 <= n <= 5000:
         raise StudyError(f"the number of draws must be between 20 and 5000; got {n}")
     names, _ = cut_set.reported()
-    jobs = [(assay, cut_set, sig, min(DRAW_CHUNK, n - k0), seed, k, method, fast)
+    jobs = [(assay, cut_set, sig, min(DRAW_CHUNK, n - k0), seed, k, method)
             for k, k0 in enumerate(range(0, n, DRAW_CHUNK))]
     parts, failed, done = [], 0, 0
     for (cols, bad), job in zip(map_fn(_draw_chunk, jobs), jobs):
