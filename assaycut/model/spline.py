@@ -229,8 +229,9 @@ class Pchip:
     answers row-wise: a query's first axis runs over the rows (a scalar, or a query whose first axis is not R,
     is asked of every row).  Rows of different lengths are *padded*: nodes 1, 2, ... units past each row's last
     node, its value held, slope 0, and each row stops at its own last node (``last``); padding keeps one
-    array per attribute and the arithmetic of every row its own (bisection search per row), so a spline
-    answers the same inside any batch as alone, to the rounding of its integral's last segment.
+    array per attribute and the arithmetic of every row its own (:func:`search_rows` checks each row's search
+    against the row itself), so a spline answers the same inside any batch as alone, to the rounding of its
+    integral's last segment.
 
     Outside [x[0], x[last]] the value is held at the end values (no extrapolation).
 
