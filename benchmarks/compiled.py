@@ -253,6 +253,108 @@ def cut_all(CX, CY, CD, CN, SX, SY, SD, SN, UX, UY, UD, UN, umiss, sg_crude, end
                 out[r, j, c] = vals[c] if (some or c < 2) else np.nan
 
 
+@njit(cache=False)
+def riazi_grid(v, t, passes, out):
+    """The grid search of :func:`assaycut.methods.riazi_distribution.fit_riazi_many` for curves of n points, one
+    per row of v (fractions) and t [K]: out[r] = (T0, A, B, rms), NaN where no trial T0 gives a finite fit."""
+    rows, n = v.shape
+    xx = np.empty(n)
+    for r in range(rows):
+        tmin = t[r].min()
+        lo, hi = 0.2 * tmin, tmin * (1 - 1e-6)
+        xm = 0.0
+        for i in range(n):
+            xx[i] = math.log(-math.log1p(-v[r, i]))
+            xm += xx[i]
+        xm /= n
+        sxx = 0.0
+        for i in range(n):
+            sxx += (xx[i] - xm) ** 2
+        alive = False
+        for grid in passes:
+            best_sse, bt0, ba, bb = np.inf, np.nan, np.nan, np.nan
+            step = (hi - lo) / (grid - 1)
+            for g in range(grid):
+                t0 = hi if g == grid - 1 else g * step + lo  # numpy.linspace's points
+                ym = 0.0
+                for i in range(n):
+                    ym += math.log(max((t[r, i] - t0) / t0, 1e-300))
+                ym /= n
+                sxy = 0.0
+                for i in range(n):
+                    sxy += (math.log(max((t[r, i] - t0) / t0, 1e-300)) - ym) * (xx[i] - xm)
+                slope = max(sxy / sxx if sxx > 0 else 1.0, 1e-6)
+                icpt = ym - slope * xm
+                sse = 0.0
+                for i in range(n):
+                    d = (math.exp(slope * xx[i] + icpt) + 1.0) * t0 - t[r, i]
+                    sse += d * d
+                if sse < best_sse:
+                    b = 1.0 / slope
+                    best_sse, bt0, ba, bb = sse, t0, b * math.exp(icpt * b), b
+            alive = alive or best_sse < np.inf
+            out[r, 0], out[r, 1], out[r, 2], out[r, 3] = bt0, ba, bb, math.sqrt(best_sse / n)
+            lo, hi = max(bt0 - step, 1e-3), min(bt0 + step, tmin * (1 - 1e-9))
+        if not alive:
+            out[r, :] = np.nan
+
+
+def riazi_fit_vs_compiled(assays, repeats: int = 3) -> dict:
+    """Time the extension's Riazi fit of every assay's main curve (fit_riazi_many, the model builder's largest
+    kernel) against the same grid search compiled, after checking the fits: the RMS deviation to 1e-9
+    (relative), T0 to two steps of the last grid (where two trials tie to rounding)."""
+    from assaycut.methods.riazi_distribution import GRID_PASSES, fit_riazi_many
+    from assaycut.model.crude import build_model
+
+    curves = []
+    for a in assays:  # the TBP points the model builder fits: the curve as the model put it on the TBP basis
+        m = build_model(a, qualities=False)
+        curves.append((m.curve.measured_pct, m.curve.measured_temp_c))
+    fits = fit_riazi_many(curves)
+    by_size: dict = {}
+    for (p, tc), f in zip(curves, fits):
+        inside = (p > 0.0) & (p < 100.0)
+        by_size.setdefault(int(inside.sum()), []).append((p[inside] / 100.0, tc[inside] + 273.15, f))
+    blocks = [(np.array([x[0] for x in rows]), np.array([x[1] for x in rows]), [x[2] for x in rows])
+              for rows in by_size.values()]
+    passes = np.array(GRID_PASSES)
+    worst, worst_steps = 0.0, 0.0
+    for v, t, want in blocks:
+        out = np.empty((v.shape[0], 4))
+        riazi_grid(v, t, passes, out)
+        for r, f in enumerate(want):
+            if isinstance(f, Exception):  # refused by the model: no fit to compare
+                continue
+            # a grid search is defined to its last step: T0 may land on a neighbouring trial where two give
+            # the same squared deviation to rounding (the two use different log/exp); the deviation itself, the
+            # objective, must agree to 1e-9
+            last = 0.8 * float(t[r].min()) / (GRID_PASSES[0] - 1)
+            for grid in GRID_PASSES[1:]:
+                last = 2.0 * last / (grid - 1)
+            worst_steps = max(worst_steps, abs(out[r, 0] - f.t0_k) / last)
+            worst = max(worst, abs(out[r, 3] - f.rms_c) / max(1.0, abs(f.rms_c)))
+    if worst > 1e-9 or worst_steps > 2.0:
+        raise AssertionError(f"the compiled Riazi fit differs from the model's: RMS by {worst:.3g} (relative), T0 "
+                             f"by {worst_steps:.3g} steps of the last grid")
+
+    def timed(fn):
+        best = []
+        for _ in range(repeats):
+            t0 = time.perf_counter()
+            fn()
+            best.append(time.perf_counter() - t0)
+        return sorted(best)[len(best) // 2]
+
+    def compiled():
+        for v, t, _ in blocks:
+            riazi_grid(v, t, passes, np.empty((v.shape[0], 4)))
+
+    t_engine = timed(lambda: fit_riazi_many(curves))
+    t_compiled = timed(compiled)
+    return {"riazi_fit_vs_compiled": t_engine / t_compiled, "riazi_fit_s": t_engine,
+            "riazi_fit_compiled_s": t_compiled, "riazi_rms_max_rel_diff": worst, "riazi_t0_max_steps": worst_steps}
+
+
 def arrays(batch):
     """The padded spline arrays of a BatchModel (curve, SG, sulfur), each row's node count, the missing sulfur
     flags and the crude SG."""
@@ -330,5 +432,6 @@ if __name__ == "__main__":
     from assaycut.model.crude import build_models
 
     n = int(sys.argv[1]) if len(sys.argv) > 1 else 10_000
-    models = build_models(bench.generate_library(n))
-    print(json.dumps(library_vs_compiled(models, bench.CUTS8)))
+    lib = bench.generate_library(n)
+    models = build_models(lib)
+    print(json.dumps({**library_vs_compiled(models, bench.CUTS8), **riazi_fit_vs_compiled(lib[:2000])}))
