@@ -17,7 +17,6 @@ from __future__ import annotations
 
 import math
 import sys
-import time
 from pathlib import Path
 
 import numpy as np
@@ -26,6 +25,7 @@ ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
 from numba import njit  # noqa: E402
+from run import median_time  # noqa: E402  (benchmarks/run.py: the same timing for every figure)
 
 from assaycut.methods.characterisation import MW_RANGE_API, MW_RANGE_TB_C  # noqa: E402
 from assaycut.methods.d86 import D94_50, D94_SEGMENTS  # noqa: E402
@@ -337,20 +337,12 @@ def riazi_fit_vs_compiled(assays, repeats: int = 3) -> dict:
         raise AssertionError(f"the compiled Riazi fit differs from the model's: RMS by {worst:.3g} (relative), T0 "
                              f"by {worst_steps:.3g} steps of the last grid")
 
-    def timed(fn):
-        best = []
-        for _ in range(repeats):
-            t0 = time.perf_counter()
-            fn()
-            best.append(time.perf_counter() - t0)
-        return sorted(best)[len(best) // 2]
-
     def compiled():
         for v, t, _ in blocks:
             riazi_grid(v, t, passes, np.empty((v.shape[0], 4)))
 
-    t_engine = timed(lambda: fit_riazi_many(curves))
-    t_compiled = timed(compiled)
+    t_engine = median_time(lambda: fit_riazi_many(curves), repeats)
+    t_compiled = median_time(compiled, repeats)
     return {"riazi_fit_vs_compiled": t_engine / t_compiled, "riazi_fit_s": t_engine,
             "riazi_fit_compiled_s": t_compiled, "riazi_rms_max_rel_diff": worst, "riazi_t0_max_steps": worst_steps}
 
@@ -408,16 +400,8 @@ def library_vs_compiled(models, cut_set, chunk: int = 1024, repeats: int = 3) ->
     for b, g, a in zip(batches, grids, arrs):  # compiles on the first call; checks every row
         worst = max(worst, check(b, ends, cut_columns(b, g, only=set()), a))
 
-    def timed(fn):
-        best = []
-        for _ in range(repeats):
-            t = time.perf_counter()
-            fn()
-            best.append(time.perf_counter() - t)
-        return sorted(best)[len(best) // 2]
-
-    t_engine = timed(lambda: [cut_columns(b, g, only=set()) for b, g in zip(batches, grids)])
-    t_compiled = timed(lambda: [run_compiled(a, ends) for a in arrs])
+    t_engine = median_time(lambda: [cut_columns(b, g, only=set()) for b, g in zip(batches, grids)], repeats)
+    t_compiled = median_time(lambda: [run_compiled(a, ends) for a in arrs], repeats)
     return {"library_vs_compiled": t_engine / t_compiled, "engine_cut_s": t_engine, "compiled_cut_s": t_compiled,
             "compiled_max_rel_diff": worst}
 
