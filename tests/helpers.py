@@ -94,7 +94,7 @@ def reference_inverse(s, yq):
     search of the node values, left end of flat steps; what the fast inverse is held to."""
     import numpy as np
 
-    from assaycut.model.spline import hermite_solve
+    from assaycut.methods.pchip import hermite_solve
 
     raw = np.asarray(yq, dtype=float)
     x, y, d = s.x, s.y, s.d

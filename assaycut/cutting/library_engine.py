@@ -1,7 +1,7 @@
 """The assay-library engine: many crude models cut with one cut set as arrays over assays.
 
 The models of a chunk are one :class:`~assaycut.cutting.model_rows.BatchModel` (their splines stacked as the
-rows of one :class:`~assaycut.model.spline.Pchip`), cut by the same :func:`~assaycut.cutting.ideal.cut_columns`
+rows of one :class:`~assaycut.methods.pchip.Pchip`), cut by the same :func:`~assaycut.cutting.ideal.cut_columns`
 that cuts one crude (a batch of one); each row's answers are its own.
 """
 

@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..model.crude import CrudeModel
-from ..model.spline import Pchip, interval_mean
+from ..methods.pchip import Pchip, interval_mean
 from ..model.tbp_curve import volume_average_temp
 
 __all__ = ["BatchCurve", "BatchModel"]

@@ -70,7 +70,7 @@ STANDARD_POINTS = {("D86", "TBP"): D86_STD, ("TBP", "D86"): D86_STD, ("D2887", "
 
 def fill_standard_points(points: Mapping[float, float], std) -> tuple[dict[float, float], list[float]]:
     """Fill the standard points that lie between the given ones and are missing, by monotone (PCHIP)
-    interpolation through the given points (Fritsch & Carlson 1980, scipy.interpolate.PchipInterpolator), so
+    interpolation through the given points (Fritsch & Carlson 1980, :class:`~assaycut.methods.pchip.Pchip`), so
     that a curve given at 10/50/90 % converts at every point given.
 
     Parameters
@@ -97,9 +97,9 @@ def fill_standard_points(points: Mapping[float, float], std) -> tuple[dict[float
     missing = [float(s) for s in std if keys[0] < s < keys[-1] and s not in points]
     if not missing:
         return dict(sorted(points.items())), []
-    from scipy.interpolate import PchipInterpolator
+    from .pchip import Pchip
 
-    sp = PchipInterpolator(keys, [points[k] for k in keys])
+    sp = Pchip(keys, [points[k] for k in keys])
     out = dict(points)
     out.update({s: float(sp(s)) for s in missing})
     return dict(sorted(out.items())), missing

@@ -27,7 +27,7 @@ from .distributions import density_distribution_steps, narrow_cut_positions, sul
 from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
 from .quality_distributions import estimated_sulfur_steps, quality_distributions
-from .spline import Pchip, interval_mean
+from ..methods.pchip import Pchip, interval_mean
 from .steps import run_together
 from .tbp_curve import TbpCurve, build_curve_steps, staircase
 

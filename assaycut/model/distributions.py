@@ -10,7 +10,7 @@ from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
 from .assay import Assay
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
-from .spline import Pchip, hermite_combine, hermite_integral_basis, search_rows, segment_integrals, slopes_on
+from ..methods.pchip import Pchip, hermite_combine, hermite_integral_basis, search_rows, segment_integrals, slopes_on
 from .steps import Need, run_one
 from .tbp_curve import CurveTempNeed, TbpCurve
 

@@ -30,7 +30,7 @@ from .assay import SG_RANGE, Assay, validate_assay
 from .crude import AT_NODE_C
 from .distributions import mean_match_arrays
 from .lightends import GAS_RANGE_MAX_C, convert_basis, find_component
-from .spline import Pchip, pad_nodes, slopes_on
+from ..methods.pchip import Pchip, pad_nodes, slopes_on
 from .tbp_curve import END_CAP_C, END_CAP_STEP_C, END_FRACTION, LIGHT_ENDS_TOL_PCT, METHANE_NBP_C, STEP_C
 
 
@@ -399,7 +399,7 @@ def _curve(live: _Live, assay: Assay, le: _LightEnds | None, tail: bool, front: 
 
 
 def _merge(subs: list[_Live]) -> _Live:
-    """The groups in one set again, their curves padded to one node count as :class:`~assaycut.model.spline.Pchip`
+    """The groups in one set again, their curves padded to one node count as :class:`~assaycut.methods.pchip.Pchip`
     pads rows (nodes 1, 2, ... °C past the last, its value held, slope 0)."""
     if len(subs) == 1:
         return subs[0]
@@ -469,7 +469,7 @@ def _distributions(live: _Live, assay: Assay, le: _LightEnds | None) -> DrawRows
 
 def _property_rows(live: _Live):
     """distributions.property_spline row-wise from live.lo, live.hi, live.val (the cuts) and live.fx, live.fy
-    (the points held): the splines (a :class:`~assaycut.model.spline.Pchip` of rows) of the rows kept (those
+    (the points held): the splines (a :class:`~assaycut.methods.pchip.Pchip` of rows) of the rows kept (those
     whose nodes fall in the most common order), or None when the spline would be one constant (the reference
     builder's)."""
     mids = 0.5 * (live.lo + live.hi)

@@ -12,7 +12,7 @@ from ..methods.d1160 import vacuum_to_aet_maxwell_bonnell
 from ..methods.d2887 import SD_STD
 from ..methods.distillation import convert, vacuum_warnings
 from .assay import CurveData
-from .spline import Pchip
+from ..methods.pchip import Pchip
 from .tbp_curve import METHANE_NBP_C
 
 

@@ -29,7 +29,7 @@ from .assay import Assay
 from .distributions import narrow_cut_positions, property_spline_steps
 from .steps import run_one
 from .lightends import GAS_RANGE_MAX_C
-from .spline import Pchip
+from ..methods.pchip import Pchip
 
 COVERED_FRACTION = 0.95
 """A cut takes a quality from the narrow cuts when at least this fraction of it (on the quality's basis) lies

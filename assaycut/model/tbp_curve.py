@@ -1,6 +1,6 @@
 """The TBP curve model: cumulative percent distilled as a monotone function of TBP temperature.
 
-The curve is a monotone PCHIP (:mod:`assaycut.model.spline`) through the measured points, exact at them, with
+The curve is a monotone PCHIP (:mod:`assaycut.methods.pchip`) through the measured points, exact at them, with
 
 * light ends placed at the front as a staircase at each component's normal boiling point;
 * an extension past the last measured point (and before the first, when neither light ends nor a 0 %
@@ -19,7 +19,7 @@ import numpy as np
 from ..errors import CurveError
 from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution, fit_riazi_many
 from ..units import pct_text
-from .spline import Pchip
+from ..methods.pchip import Pchip
 from .steps import Need, run_one
 
 END_FRACTION = 0.9995
@@ -201,7 +201,7 @@ class RiaziNeed(Need):
 class CurveTempNeed(Need):
     """TBP [°C] of a curve at percents [vol %] (:meth:`TbpCurve.temp_at`); for many curves at once
     :meth:`together` inverts the curves with the same node count and number of percents row-wise
-    (:meth:`~assaycut.model.spline.Pchip.inverse` of their stack: the same values to the last bit)."""
+    (:meth:`~assaycut.methods.pchip.Pchip.inverse` of their stack: the same values to the last bit)."""
 
     __slots__ = ("curve", "pct")
 

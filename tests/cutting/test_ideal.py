@@ -175,7 +175,7 @@ def test_meabp_agrees_with_api_2b1_1_on_published_kerosene():
         average_boiling_points_api_2b1_1,
         meabp_pseudo_components,
     )
-    from assaycut.model.spline import Pchip
+    from assaycut.methods.pchip import Pchip
 
     tbp = Pchip(np.array([0, 10, 30, 50, 70, 90.0]), np.array([133.1, 158.1, 189.2, 210.6, 232.9, 258.1]))
     x, w = np.polynomial.legendre.leggauss(16)

@@ -106,7 +106,7 @@ def test_stacked_inverse_equals_the_reference_and_each_rows_own():
     from assaycut.io import load_assay
     from assaycut.io.tomlfiles import demo_assay_paths
     from assaycut.model.crude import build_model
-    from assaycut.model.spline import Pchip
+    from assaycut.methods.pchip import Pchip
 
     rng = np.random.default_rng(7)
     splines = [build_model(load_assay(p)).curve.spline for p in demo_assay_paths()]

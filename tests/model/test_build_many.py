@@ -19,7 +19,7 @@ from assaycut.methods.riazi_distribution import fit_riazi_distribution, fit_riaz
 from assaycut.model.assay import Assay, CurveData, LightEnds
 from assaycut.model.crude import build_model, build_models
 from assaycut.model.distributions import MeanMatchNeed, property_spline_steps
-from assaycut.model.spline import Pchip, slopes_on
+from assaycut.methods.pchip import Pchip, slopes_on
 from assaycut.model.tbp_curve import build_curve
 
 

@@ -10,7 +10,7 @@ from numpy.testing import assert_allclose
 from tests.helpers import reference_inverse
 from scipy.interpolate import PchipInterpolator
 
-from assaycut.model.spline import Pchip
+from assaycut.methods.pchip import Pchip
 
 
 @st.composite
@@ -76,7 +76,7 @@ def test_flat_step_stays_flat():
 def test_segment_integrals_match_scipy(tv):
     # Reference library: scipy's PchipInterpolator.integrate over each segment; the one segment-integral helper
     # serves Pchip, the batched splines and the property-spline means.
-    from assaycut.model.spline import (
+    from assaycut.methods.pchip import (
         pchip_slopes,
         segment_antiderivative,
         segment_integrals,

@@ -8,11 +8,28 @@ the curve model can evaluate, integrate and invert many curves at once without a
 
 The interpolant reproduces the nodes exactly, never overshoots them, keeps flat steps flat, and is
 monotone wherever the data are monotone.
+
+Contents
+--------
+- :class:`Pchip`: monotone cubic Hermite interpolants, one or one per row: value, exact integral, exact inverse
+- :func:`pchip_slopes`, :func:`slopes_on`: the node slopes (the one slope routine)
+- :func:`search_rows`: row-wise ``numpy.searchsorted``, each row's answer its own
+- :func:`interval_mean`: a spline's mean over intervals; :func:`pad_nodes`: rows padded to one width
+- :func:`inverse_table`, :func:`newton_on_segment`, :func:`hermite_solve`: the inverse's bracket, Newton steps
+  and reference solve
+- :func:`hermite_basis`, :func:`hermite_integral_basis`, :func:`hermite_combine`, :func:`segment_integrals`,
+  :func:`segment_antiderivative`: the cubic Hermite segment and its integral
+- constants: ``INVERSE_TABLE_STEPS``, ``NEWTON_STEPS``
 """
 
 from __future__ import annotations
 
 import numpy as np
+
+__all__ = ["hermite_basis", "hermite_integral_basis", "hermite_combine", "segment_integrals",
+           "segment_antiderivative", "pchip_slopes", "slopes_on", "search_rows", "Pchip", "pad_nodes",
+           "inverse_table", "newton_on_segment", "interval_mean", "hermite_solve", "INVERSE_TABLE_STEPS",
+           "NEWTON_STEPS"]
 
 try:  # the ufunc behind numpy.clip, without its Python wrapper (the same results; ~1 µs less per call)
     from numpy._core.umath import clip as _clip
