@@ -99,10 +99,3 @@ class CutTable:
             if k == after:
                 out.update(new)
         return CutTable(out, self.attrs)
-
-    def where(self, mask) -> "CutTable":
-        """The rows where ``mask`` (one bool per row) is true."""
-        m = np.asarray(mask, dtype=bool)
-        idx = np.nonzero(m)[0].tolist()
-        return CutTable({k: ([v[i] for i in idx] if isinstance(v, list) else v[m]) for k, v in self.columns.items()},
-                        self.attrs)

@@ -261,9 +261,8 @@ def check_limits(cuts: CutTable, limits: list[Limit]) -> CutTable:
 
 
 def limit_table(rows: list[dict]) -> CutTable:
-    """The limit-status table of :func:`limit_rows`' rows (``value`` a float column, the others texts)."""
-    return CutTable({k: (np.array([r[k] for r in rows], dtype=float) if k == "value" else [r[k] for r in rows])
-                     for k in LIMIT_COLUMNS})
+    """The limit-status table of :func:`limit_rows`' rows (``value`` a float column when there are rows)."""
+    return CutTable.from_rows(rows, LIMIT_COLUMNS)
 
 
 LIMIT_COLUMNS = ["cut", "property", "label", "limit", "value", "status", "note", "source"]

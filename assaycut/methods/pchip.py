@@ -293,12 +293,6 @@ class Pchip:
         self._tab = None
 
     @classmethod
-    def from_parts(cls, x, y, d, cum) -> "Pchip":
-        """The interpolant through (x, y) from slopes ``d`` and cumulative segment integrals ``cum`` already
-        computed by the same construction; nothing is recomputed."""
-        return cls(x, y, d, cum)
-
-    @classmethod
     def stack(cls, splines: list) -> "Pchip":
         """The splines (single ones, or None) as the rows of one, padded to the longest (see the class).  A
         None row is a zero spline, flagged in ``missing``."""

@@ -77,7 +77,7 @@ def property_spline_steps(lo, hi, values, fixed=(), iterations: int = 30, floor:
     tol = 1e-7 * max(float(np.max(np.abs(vals))), 1e-12)
     best, d, cum = yield MeanMatchNeed(x, y0, is_cut, lo[cut_idx], hi[cut_idx], vals[cut_idx], tol, iterations,
                                        floor)
-    return Pchip.from_parts(x, best, d, cum)
+    return Pchip(x, best, d, cum)
 
 
 class MeanMatchNeed(Need):

@@ -91,8 +91,7 @@ def test_boundaries_without_overlap_stay_ideal(model):
     cs = default_cut_set()
     ideal = cut_table(model, cs).frame().set_index("name")
     real, _ = fractionate(model, cs, {"kerosene": 25.0, "vacuum gas oil": 40.0})
-    real = real.frame()
-    real = real.set_index("name")
+    real = real.frame().set_index("name")
     for name in ("light ends", "light naphtha", "heavy naphtha"):
         for col in ("vol_pct", "wt_pct", "sg", "sulfur_wt_pct", "mid_vol_c", "flash_c_est", "watson_k"):
             assert real.loc[name, col] == ideal.loc[name, col] or (np.isnan(real.loc[name, col])
@@ -131,8 +130,7 @@ def test_overlap_widens_product_distillation(model):
     cs = default_cut_set()
     ideal = cut_table(model, cs).frame().set_index("name")
     real, _ = fractionate(model, cs, {"heavy naphtha": 30.0, "kerosene": 30.0})
-    real = real.frame()
-    real = real.set_index("name")
+    real = real.frame().set_index("name")
     assert real.loc["kerosene", "d86_c"]["95"] > ideal.loc["kerosene", "d86_c"]["95"]
     assert real.loc["kerosene", "d86_c"]["10"] < ideal.loc["kerosene", "d86_c"]["10"]
 
