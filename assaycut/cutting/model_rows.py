@@ -40,7 +40,7 @@ class BatchCurve:
     def mean_temp(self, pct_a, pct_b, ta=None, tb=None):
         """Volume-average TBP over [pct_a, pct_b] [vol %] (:func:`~assaycut.model.tbp_curve.volume_average_temp`).
         [°C]"""
-        return volume_average_temp(self, pct_a, pct_b, ta, tb)
+        return volume_average_temp(self.spline, pct_a, pct_b, ta, tb)
 
     def is_extrapolated(self, pct_a, pct_b):
         lo = self.safe_lo.reshape((-1,) + (1,) * (np.ndim(pct_a) - 1))
@@ -87,14 +87,22 @@ class BatchModel:
                     [m.sulfur_estimated for m in models])
 
     @classmethod
-    def from_rows(cls, rows) -> "BatchModel":
-        """The batch of draws modelled as arrays (:class:`~assaycut.model.draws.DrawRows`): no narrow-cut
-        qualities, sulfur from the narrow cuts."""
+    def from_rows(cls, sets) -> "BatchModel":
+        """The crude models built as rows (the leaf sets of :func:`~assaycut.model.crude.build_draws`), one row
+        per model in the sets' order, without narrow-cut qualities."""
         out = cls.__new__(cls)
-        n = rows.sg.size
-        curve = BatchCurve(None, rows.curve, rows.safe_lo, rows.safe_hi)
-        out._setup(curve, rows.sg_dist, rows.sulfur_dist, rows.sg,
-                   rows.sulfur_wt_pct, rows.on_extension, [{}] * n, np.zeros(n, dtype=bool))
+        cat = lambda name: np.concatenate([getattr(s, name) for s in sets])  # noqa: E731
+        curve = BatchCurve(None, Pchip.stack([s.spline for s in sets]), cat("safe_lo"), cat("safe_hi"))
+        sulfur = Pchip.stack([s.sulfur_dist if s.sulfur_dist is not None else Pchip.stack([None] * s.n)
+                              for s in sets])
+        for s, part in zip(sets, np.split(np.arange(sulfur.rows), np.cumsum([s.n for s in sets])[:-1])):
+            if s.sulfur_dist is None:
+                sulfur.missing[part] = True
+        n = sum(s.n for s in sets)
+        out._setup(curve, Pchip.stack([s.sg_dist for s in sets]), sulfur, cat("sg"),
+                   np.concatenate([np.where(s.s_given | (s.sulfur_dist is not None), s.sulfur, np.nan) for s in sets]),
+                   np.array([t != "" for s in sets for t in s.on_ext]), [{}] * n,
+                   np.concatenate([np.full(s.n, s.estimated) for s in sets]))
         return out
 
     def _setup(self, curve, sg_dist, sulfur_dist, sg, sulfur_wt_pct, on_extension, qualities, estimated):

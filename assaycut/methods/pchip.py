@@ -294,15 +294,24 @@ class Pchip:
 
     @classmethod
     def stack(cls, splines: list) -> "Pchip":
-        """The splines (single ones, or None) as the rows of one, padded to the longest (see the class).  A
-        None row is a zero spline, flagged in ``missing``."""
+        """The splines (single ones, sets of rows, or None) as the rows of one, padded to the longest (see the
+        class).  A None is one zero spline, flagged in ``missing``."""
         real = [s if s is not None else Pchip([0.0, 1.0], [0.0, 0.0]) for s in splines]
-        lens = np.array([s.X.shape[1] for s in real])
-        width = int(lens.max())
+        width = max(s.X.shape[1] for s in real)
         padded = [pad_nodes(s.X, s.Y, s.D, width) for s in real]
         X, Y, D = (np.concatenate([p[k] for p in padded]) for k in range(3))
-        out = cls(X, Y, D, last=lens - 1)
-        out.missing = np.array([s is None for s in splines])
+        last = np.concatenate([(s.X <= s.hi[:, None]).sum(axis=1) - 1 for s in real])
+        out = cls(X, Y, D, last=last)
+        out.missing = np.concatenate([np.ones(r.rows, dtype=bool) if s is None else r.missing
+                                      for s, r in zip(splines, real)])
+        return out
+
+    def take(self, rows) -> "Pchip":
+        """The splines of ``rows`` (positions) as rows of a new one, each row as it was."""
+        rows = np.asarray(rows, dtype=int)
+        out = Pchip.__new__(Pchip)
+        out.X, out.Y, out.D, out.H, out.C = self.X[rows], self.Y[rows], self.D[rows], self.H[rows], self.C[rows]
+        out.lo, out.hi, out.missing, out.single, out._tab = self.lo[rows], self.hi[rows], self.missing[rows], False, None
         return out
 
     @property

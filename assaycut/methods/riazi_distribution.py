@@ -9,6 +9,7 @@ Contents
 - :class:`RiaziFit`: Parameters of a fitted Riazi distribution (T0 [K], A, B) and its RMS...
 - :func:`fit_riazi_distribution`: Fit the Riazi distribution [1]_ to a TBP curve
 - :func:`fit_riazi_many`: :func:`fit_riazi_distribution` of many curves at once: the grid search runs...
+- :func:`riazi_temp_c`: Temperature of the Riazi distribution at a fraction distilled, one or many distributions
 - constants: ``MAX_FIT_POINTS``, ``GRID_PASSES``, ``ROWS_PER_CALL``
 
 References
@@ -30,7 +31,7 @@ import numpy as np
 
 from ..errors import CurveError
 
-__all__ = ["RiaziFit", "fit_riazi_distribution", "fit_riazi_many", "MAX_FIT_POINTS", "GRID_PASSES",
+__all__ = ["RiaziFit", "fit_riazi_distribution", "fit_riazi_many", "riazi_temp_c", "MAX_FIT_POINTS", "GRID_PASSES",
            "ROWS_PER_CALL"]
 
 MAX_FIT_POINTS = 400
@@ -48,10 +49,20 @@ class RiaziFit:
     npoints: int
 
     def temp_c(self, x):
-        """Temperature at fraction ``x`` (0-1) distilled. [°C]"""
-        x = np.clip(np.asarray(x, dtype=float), 0.0, 1.0 - 1e-12)
-        z = np.log(1.0 / (1.0 - x))
-        return self.t0_k * (1.0 + (self.a / self.b * z) ** (1.0 / self.b)) - 273.15
+        """Temperature at fraction ``x`` (0-1) distilled (:func:`riazi_temp_c`). [°C]"""
+        return riazi_temp_c(self.t0_k, self.a, self.b, x)
+
+
+def riazi_temp_c(t0_k, a, b, x):
+    """Temperature of the Riazi distribution at fraction ``x`` (0-1) distilled [°C]:
+    T = T0 (1 + (A/B ln(1/(1-x)))^(1/B)) [1]_, x clipped to [0, 1 - 1e-12].
+
+    ``t0_k`` [K], ``a``, ``b`` [-] broadcast against ``x``: scalars for one distribution, or columns (R, 1)
+    against rows of fractions (R, m) for R distributions.
+    """
+    x = np.clip(np.asarray(x, dtype=float), 0.0, 1.0 - 1e-12)
+    z = np.log(1.0 / (1.0 - x))
+    return t0_k * (1.0 + (a / b * z) ** (1.0 / b)) - 273.15
 
 
 def fit_riazi_distribution(percent, temp_c) -> RiaziFit:

@@ -170,13 +170,14 @@ def validate_assay(assay) -> None:
     if not isinstance(assay.name, str) or not assay.name.strip():
         bad("the assay has no name")
     lo, hi = SG_RANGE
-    if isinstance(assay.sg, bool) or not isinstance(assay.sg, (int, float, np.floating)) or not lo <= assay.sg <= hi:
+    if isinstance(assay.sg, bool) or not isinstance(assay.sg, (int, float, np.floating)):
         bad(f"whole-crude SG {assay.sg!r} is outside {lo:g}-{hi:g}")
     s = assay.sulfur_wt_pct
-    if s is not None and (isinstance(s, bool) or not isinstance(s, (int, float, np.floating)) or not 0.0 <= s <= 15.0):
+    if s is not None and (isinstance(s, bool) or not isinstance(s, (int, float, np.floating))):
         bad(f"whole-crude sulfur {s!r} wt % is outside 0-15 wt %")
     if not isinstance(assay.curves, (list, tuple)) or not assay.curves:
         bad("the assay has no distillation curve")
+    arrays, whats = [], []
     for k, c in enumerate(assay.curves, start=1):
         where = c.where if isinstance(c, CurveData) else ""
         what = where or f"curve {k}"
@@ -195,12 +196,6 @@ def validate_assay(assay) -> None:
             bad(f"{what}: {p.size} percents against {t.size} temperatures; give one temperature per percent", not where)
         if p.size < 2:
             bad(f"{what}: {p.size} point(s); a curve needs at least two", not where)
-        if not (np.isfinite(p).all() and np.isfinite(t).all()):
-            bad(f"{what}: percents and temperatures must be finite numbers", not where)
-        if p.min() < 0 or p.max() > 100:  # finite and two or more: min and max say it
-            bad(f"{what}: percents must lie within 0-100 %", not where)
-        if t.min() <= -273.15 or t.max() > 1500.0:
-            bad(f"{what}: temperatures must lie above absolute zero and at most 1500 °C", not where)
         if c.method == "D1160":
             from ..methods.d1160 import PRESSURE_RANGE_MMHG
 
@@ -211,9 +206,58 @@ def validate_assay(assay) -> None:
         if c.watson_k is not None and not (isinstance(c.watson_k, (int, float)) and math.isfinite(c.watson_k)
                                            and 8.0 <= c.watson_k <= 14.0):
             bad(f"{what}: Watson K {c.watson_k!r} is outside 8-14", not where)
+        arrays.append((p[None, :], t[None, :]))
+        whats.append((what, not where))
+    fault = value_faults(np.array([float(assay.sg)]), np.array([np.nan if s is None else float(s)]),
+                         np.array([s is not None]), arrays, whats)[0]
+    if fault is not None:
+        bad(*fault)
     nc = assay.narrow_cuts
     if nc is not None:
         cols = [nc.start_c, nc.end_c, nc.vol_pct, nc.wt_pct, nc.sg, nc.sulfur_wt_pct, *nc.extras.values()]
         sizes = {np.asarray(x).size for x in cols}
         if len(sizes) != 1:
             bad("narrow cuts: the columns differ in length")
+
+
+def value_faults(sg, sulfur, sulfur_given, curves, whats) -> list:
+    """The first measured value :func:`validate_assay` refuses in each of R rows (assays, or draws of one), or None.
+
+    Parameters
+    ----------
+    sg : numpy.ndarray
+        Whole-crude SG 60/60 °F, (R,). [-]
+    sulfur, sulfur_given : numpy.ndarray
+        Whole-crude sulfur [wt %] and whether it is given, (R,).
+    curves : list of (numpy.ndarray, numpy.ndarray)
+        Per curve, percent [%] and temperature [°C], (R, n) each.
+    whats : list of (str, bool)
+        Per curve, its name in messages and whether its messages name the assay's file.
+
+    Returns
+    -------
+    list of (str, bool) or None
+        Per row, the message and whether it names the file: SG outside :data:`SG_RANGE`, sulfur outside
+        0-15 wt %, then per curve a value not finite, a percent outside 0-100 %, a temperature at or below
+        absolute zero or above 1500 °C.
+    """
+    lo, hi = SG_RANGE
+    checks = [(~((sg >= lo) & (sg <= hi)), lambda r: (f"whole-crude SG {float(sg[r])!r} is outside {lo:g}-{hi:g}",
+                                                       True)),
+              (sulfur_given & ~((sulfur >= 0.0) & (sulfur <= 15.0)),
+               lambda r: (f"whole-crude sulfur {float(sulfur[r])!r} wt % is outside 0-15 wt %", True))]
+    for (p, t), (what, whole) in zip(curves, whats):
+        finite = np.isfinite(p).all(axis=1) & np.isfinite(t).all(axis=1)
+        with np.errstate(invalid="ignore"):
+            checks += [(~finite, lambda r, w=what, f=whole: (f"{w}: percents and temperatures must be finite numbers", f)),
+                       ((p.min(axis=1) < 0) | (p.max(axis=1) > 100),  # finite and two or more: min and max say it
+                        lambda r, w=what, f=whole: (f"{w}: percents must lie within 0-100 %", f)),
+                       ((t.min(axis=1) <= -273.15) | (t.max(axis=1) > 1500.0),
+                        lambda r, w=what, f=whole: (f"{w}: temperatures must lie above absolute zero and at most "
+                                                    f"1500 °C", f))]
+    out: list = [None] * sg.shape[0]
+    for mask, message in checks:
+        for r in np.flatnonzero(mask):
+            if out[r] is None:
+                out[r] = message(int(r))
+    return out

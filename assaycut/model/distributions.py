@@ -1,5 +1,9 @@
 """Property distributions of the crude model: density against volume distilled, sulfur against weight
 distilled, each a monotone spline through the narrow-cut measurements that reproduces each cut's mean.
+
+Built row-wise for a set of crude models under construction (:class:`~assaycut.model.rows.Rows`, the model
+builder's stages :func:`density_rows` and :func:`sulfur_rows`); one spline alone is a set of one
+(:func:`property_spline`).
 """
 
 from __future__ import annotations
@@ -8,26 +12,33 @@ import numpy as np
 
 from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
+from ..methods.pchip import Pchip, hermite_combine, hermite_integral_basis, search_rows, segment_integrals, slopes_on
 from .assay import Assay
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
-from ..methods.pchip import Pchip, hermite_combine, hermite_integral_basis, search_rows, segment_integrals, slopes_on
-from .steps import Need, run_one
-from .tbp_curve import CurveTempNeed, TbpCurve
+from .rows import Rows, each
 
 
-def narrow_cut_positions(assay: Assay, curve: TbpCurve):
-    """Start and end vol % of each narrow cut on the curve (open start 0 %, open end 100 %). [vol %]"""
-    nc = assay.narrow_cuts
-    ends = np.concatenate([nc.start_c, nc.end_c])
+def cut_positions(spline: Pchip, start_c, end_c):
+    """Start and end percent of cuts [start_c, end_c] (TBP [°C]; NaN start: 0 %, NaN end: 100 %) on a curve
+    ``spline`` V(T): one curve with (k,) temperatures, or curves as rows with (R, k). [vol %]"""
+    start_c, end_c = np.asarray(start_c, dtype=float), np.asarray(end_c, dtype=float)
+    ends = np.concatenate([start_c, end_c], axis=-1)
     open_end = np.isnan(ends)
-    v = curve.pct_at(np.where(open_end, 0.0, ends))  # both ends in one call
-    k = nc.start_c.size
-    return np.where(open_end[:k], 0.0, v[:k]), np.where(open_end[k:], 100.0, v[k:])
+    v = spline(np.where(open_end, 0.0, ends))  # both ends in one call
+    k = start_c.shape[-1]
+    return np.where(open_end[..., :k], 0.0, v[..., :k]), np.where(open_end[..., k:], 100.0, v[..., k:])
+
+
+def narrow_cut_positions(assay: Assay, curve):
+    """Start and end vol % of each narrow cut of ``assay`` on ``curve`` (a TbpCurve; open start 0 %, open end
+    100 %). [vol %]"""
+    nc = assay.narrow_cuts
+    return cut_positions(curve.spline, nc.start_c, nc.end_c)
 
 
 def property_spline(lo, hi, values, fixed=(), iterations: int = 30, floor: float | None = 0.0) -> Pchip:
     """Monotone property curve through narrow-cut values placed at their mid percent, adjusted so that its
-    average over each narrow cut reproduces the measured value.
+    average over each narrow cut reproduces the measured value (:func:`property_spline_rows` of one row).
 
     Each measured value sits at the middle of its cut [lo, hi]; the PCHIP through them (held flat beyond the
     outermost points) is then corrected by fixed-point iteration, y_i <- y_i + (measured_i - mean_i), until
@@ -51,79 +62,48 @@ def property_spline(lo, hi, values, fixed=(), iterations: int = 30, floor: float
     Pchip
         Property against percent distilled.
     """
-    return run_one(property_spline_steps(lo, hi, values, fixed, iterations, floor))
+    row = lambda z: np.asarray(z, dtype=float).reshape(1, -1)  # noqa: E731
+    g = Rows([0]).put(pl=row(lo), ph=row(hi), pv=row(values), pfx=row([q[0] for q in fixed]),
+                      pfy=row([q[1] for q in fixed]))
+    sp = property_spline_rows(g, "prop", iterations, floor)[0].prop
+    return Pchip(sp.X[0], sp.Y[0], sp.D[0], sp.C[0])
 
 
-def property_spline_steps(lo, hi, values, fixed=(), iterations: int = 30, floor: float | None = 0.0):
-    """:func:`property_spline` as a step function (:mod:`assaycut.model.steps`): the node correction is a
-    :class:`MeanMatchNeed`, so that many splines can be corrected in one array call.
+def property_spline_rows(g: Rows, name: str, iterations: int = 30, floor: float | None = 0.0) -> list[Rows]:
+    """:func:`property_spline` of every row: the cuts ``pl``, ``ph`` (R, k) with their values ``pv`` and the
+    points held ``pfx``, ``pfy`` (R, f) are row fields; the spline is set as the row field ``name`` (a Pchip of
+    rows).  The sets are split where rows order their nodes differently."""
+    out = []
+    for s in g.split(np.argsort(np.concatenate([0.5 * (g.pl + g.ph), g.pfx], axis=1), axis=1, kind="stable")):
+        mids = 0.5 * (s.pl + s.ph)
+        order = np.argsort(np.concatenate([mids[:1], s.pfx[:1]], axis=1), axis=1, kind="stable")[0]
+        x = np.concatenate([mids, s.pfx], axis=1)[:, order]
+        for t in s.split(np.concatenate([np.ones((s.n, 1), dtype=bool), (x[:, 1:] - x[:, :-1]) > 1e-9], axis=1)):
+            out.append(_property_spline_set(t, order, name, iterations, floor))
+    return out
 
-    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
-    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
-    lo, hi, vals = (np.asarray(z, dtype=float) for z in (lo, hi, values))
-    mids = 0.5 * (lo + hi)
-    fx = np.array([q[0] for q in fixed], dtype=float)
-    fy = np.array([q[1] for q in fixed], dtype=float)
-    x = np.concatenate([mids, fx])
-    order = np.argsort(x, kind="stable")
-    x = x[order]
-    keep = np.concatenate([[True], (x[1:] - x[:-1]) > 1e-9])
-    is_cut = (order < mids.size)[keep]
-    x = x[keep]
-    y0 = np.concatenate([vals, fy])[order][keep]
-    if x.size == 1:
-        return Pchip(np.array([0.0, 100.0]), np.array([y0[0], y0[0]]))
+
+def _property_spline_set(t: Rows, order, name, iterations, floor) -> Rows:
+    """The splines of a set of rows whose nodes come in the same ``order`` and merge alike."""
+    vals = t.pv
+    x = np.concatenate([0.5 * (t.pl + t.ph), t.pfx], axis=1)[:, order]
+    keep = np.concatenate([[True], (x[0, 1:] - x[0, :-1]) > 1e-9])
+    is_cut = (order < vals.shape[1])[keep]
+    x = x[:, keep]
+    y0 = np.concatenate([vals, t.pfy], axis=1)[:, order][:, keep]
+    if x.shape[1] == 1:
+        return t.put(**{name: Pchip(np.broadcast_to([0.0, 100.0], (t.n, 2)), np.repeat(y0, 2, axis=1))})
     cut_idx = order[keep][is_cut]
-    tol = 1e-7 * max(float(np.max(np.abs(vals))), 1e-12)
-    best, d, cum = yield MeanMatchNeed(x, y0, is_cut, lo[cut_idx], hi[cut_idx], vals[cut_idx], tol, iterations,
-                                       floor)
-    return Pchip(x, best, d, cum)
-
-
-class MeanMatchNeed(Need):
-    """The node correction of :func:`property_spline`: node values y (nodes x fixed) such that the PCHIP's mean
-    over each cut [a, b] reproduces ``target`` (fixed-point iteration y_i <- y_i + (target_i - mean_i) on the
-    cut nodes, at most ``iterations`` times, stopping below ``tol`` or when it no longer improves; the best
-    node values found).  Many are solved in one array call by :meth:`together`."""
-
-    __slots__ = ("x", "y0", "is_cut", "a", "b", "target", "tol", "iterations", "floor")
-
-    def __init__(self, x, y0, is_cut, a, b, target, tol, iterations, floor):
-        self.x, self.y0, self.is_cut, self.a, self.b, self.target = x, y0, is_cut, a, b, target
-        self.tol, self.iterations, self.floor = tol, iterations, floor
-
-    @classmethod
-    def together(cls, needs):
-        groups: dict[tuple, list[int]] = {}
-        for k, n in enumerate(needs):
-            key = (n.x.size, n.iterations, n.floor, n.is_cut.tobytes())
-            groups.setdefault(key, []).append(k)
-        out: list = [None] * len(needs)
-        for idx in groups.values():
-            for k, y in zip(idx, _mean_match_rows([needs[k] for k in idx])):
-                out[k] = y
-        return out
-
-
-def _mean_match_rows(rows: list[MeanMatchNeed]) -> list[np.ndarray]:
-    """The node correction of many problems with the same node count, cut pattern, iteration limit and floor,
-    row-wise: (best node values, their PCHIP slopes, their cumulative segment integrals) of each, every row
-    stopping where it would alone (:func:`mean_match_arrays`)."""
-    first = rows[0]
-    if first.iterations < 1:  # no iteration at all: the start values
-        out = []
-        for r in rows:
-            d = slopes_on(r.x)(r.y0)
-            out.append((r.y0.copy(), d, _cumulative(r.x, r.y0, d)))
-        return out
-    best, best_d, best_cum = mean_match_arrays(*(np.array([getattr(r, a) for r in rows])
-                                                  for a in ("x", "y0", "is_cut", "a", "b", "target", "tol")),
-                                                first.iterations, first.floor)
-    return [(best[r], best_d[r], best_cum[r]) for r in range(len(rows))]
+    tol = 1e-7 * np.maximum(np.max(np.abs(vals), axis=1), 1e-12)
+    if iterations < 1:  # no iteration at all: the start values
+        return t.put(**{name: Pchip(x, y0)})
+    best, d, cum = mean_match_arrays(x, y0, is_cut, t.pl[:, cut_idx], t.ph[:, cut_idx], vals[:, cut_idx], tol,
+                                     iterations, floor)
+    return t.put(**{name: Pchip(x, best, d, cum)})
 
 
 def mean_match_arrays(x, y, is_cut, a, b, target, tol, iterations: int, floor):
-    """The node correction of :class:`MeanMatchNeed` row-wise (iterations >= 1): nodes x and start values y
+    """The node correction of :func:`property_spline_rows`, row-wise: nodes x and start values y
     (R, n), the cut nodes ``is_cut`` (n,) or (R, n) with every row alike, intervals a, b and their ``target``
     means (R, k), tolerances ``tol`` (R,); the best node values, their slopes and cumulative integrals, (R, n)
     each, every row as it would be alone."""
@@ -153,12 +133,6 @@ def mean_match_arrays(x, y, is_cut, a, b, target, tol, iterations: int, floor):
         moved = y[:, is_cut] + err if floor is None else np.maximum(y[:, is_cut] + err, floor)
         y[:, is_cut] = np.where(active[:, None], moved, y[:, is_cut])
     return best, best_d, best_cum
-
-
-def _cumulative(x, y, d):
-    """Cumulative segment integrals of the PCHIP (x, y, d), from 0 at x[0]."""
-    return np.concatenate([[0.0], np.cumsum(segment_integrals(x[1:] - x[:-1], y, d))])
-
 
 
 def _interval_means_rows(x: np.ndarray, a: np.ndarray, b: np.ndarray):
@@ -195,153 +169,185 @@ def _interval_means_rows(x: np.ndarray, a: np.ndarray, b: np.ndarray):
 
     return means
 
+
+
 _GAS_NOTE = ("; no light-ends analysis: the curve below n-pentane's boiling point (36.1 °C) is given the SG of the "
              "C2-C5 paraffins boiling at the same temperature (assumed)")
+KW_GRID_STEP_PCT = 0.5
+"""Width of the slices on which a constant-Watson-K density distribution is laid. [vol %]"""
 
 
-def density_distribution(assay: Assay, curve: TbpCurve, le_mids, warnings: list[str]):
-    """SG against vol % distilled, reconciled to the whole-crude SG.
+def density_rows(g: Rows) -> list[Rows]:
+    """The density distribution of every row: SG against vol % distilled, reconciled to the whole-crude SG.
 
-    From the narrow-cut densities (:func:`property_spline` against mid-volume %, light-ends components
-    held at their own SG) where at least two cuts have one; else at constant Watson K fitted to the
-    whole-crude gravity, SG = (1.8 T_b[K])^(1/3)/Kw along the curve (Watson & Nelson 1933; common
-    practice, no single source), light ends at their own SG.  Without a light-ends analysis the part of the
-    curve boiling below n-pentane takes the SG of the paraffins of the same boiling point
+    From the narrow-cut densities (:func:`property_spline_rows` against mid-volume %, light-ends components held
+    at their own SG) where at least two cuts have one; else at constant Watson K fitted to the whole-crude
+    gravity, SG = (1.8 T_b[K])^(1/3)/Kw along the curve (Watson & Nelson 1933; common practice, no single
+    source), light ends at their own SG.  Without a light-ends analysis the part of the curve boiling below
+    n-pentane takes the SG of the paraffins of the same boiling point
     (:func:`~assaycut.model.lightends.gas_range_sg`, assumed) where no narrow cut covers it.  Either way the
     distribution is scaled so that the whole crude integrates to its SG.
 
-    Parameters
-    ----------
-    assay : Assay
-    curve : TbpCurve
-    le_mids : list of (mid vol % [%], SG [-])
-        Light-ends components placed on the curve.
-    warnings : list of str
-        Appended to.
-
-    Returns
-    -------
-    (Pchip, float, str, float or None)
-        SG [-] against vol % [%]; the scale applied, (factor - 1) x 100 [%]; the source described; the fitted
-        Watson K [-] (None with narrow-cut densities).
+    Row fields read: ``spline`` (the curve V(T)), ``placed``, ``le_mid`` with the shared ``le_sg`` (light ends
+    placed: each component's mid vol % and SG), ``le_pct``, ``sg``, ``va``, ``vb`` and ``nc_sg`` (with narrow
+    cuts, the shared ``has_nc``), ``warn``.  Row fields set: ``sg_dist`` (Pchip rows), ``dens_rec`` (the scale,
+    (factor - 1) x 100 [%]), ``dens_src`` (the source described), ``kw`` (the fitted Watson K, NaN with
+    narrow-cut densities).  A row whose light ends weigh as much as the crude gravity allows is refused.
     """
-    return run_one(density_distribution_steps(assay, curve, le_mids, warnings))
+    gas = ~g.placed & (g.spline.lo < GAS_RANGE_MAX_C)  # the IBP is the TBP at 0 %
+    key = np.column_stack([gas] + ([np.isfinite(g.nc_sg)] if g.has_nc else []))
+    return each(g.split(key), _density_set)
 
 
-def density_distribution_steps(assay: Assay, curve: TbpCurve, le_mids, warnings: list[str], positions=None):
-    """:func:`density_distribution` as a step function (:mod:`assaycut.model.steps`); ``positions`` as for
-    :func:`sulfur_distribution_steps`.
+def _density_set(g: Rows) -> list[Rows]:
+    gas = not bool(g.placed[0]) and bool(g.spline.lo[0] < GAS_RANGE_MAX_C)
+    if gas:
+        v_top = g.spline(np.full((g.n, 1), GAS_RANGE_MAX_C))
+        g.put(gas_v=np.linspace(0.0, v_top[:, 0], 9, axis=1)[:, :-1] + v_top / 16.0)
+    if g.has_nc and np.isfinite(g.nc_sg[0]).sum() >= 2:
+        sets = each(g.split(np.isfinite(g.nc_sg) & (g.vb > g.va)), _density_from_cuts, gas)
+    else:
+        sets = _density_at_constant_kw(g, gas)
+    for s in sets:
+        for r in range(s.n):
+            if s.dens_src[r].endswith(_GAS_NOTE):
+                s.warn[r].append("no light-ends analysis: the gravity of the crude boiling below 36.1 °C "
+                                 "(n-pentane) is assumed from the C2-C5 paraffins boiling at the same temperature; "
+                                 "give a light-ends analysis for measured values")
+        factor = 100.0 * s.sg / s.raw.integral(np.zeros((s.n, 1)), np.full((s.n, 1), 100.0))[:, 0]
+        s.put(sg_dist=s.raw.scaled(factor), dens_rec=(factor - 1.0) * 100.0)
+    return sets
 
-    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
-    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
-    nc = assay.narrow_cuts
-    gas_v = np.array([])
-    if not le_mids and curve.ibp_c < GAS_RANGE_MAX_C:  # the IBP is the TBP at 0 %
-        v_top = float(curve.pct_at(GAS_RANGE_MAX_C))
-        gas_v = np.linspace(0.0, v_top, 9)[:-1] + v_top / 16.0
-    if nc is not None and np.isfinite(nc.sg).sum() >= 2:
-        va, vb = narrow_cut_positions(assay, curve) if positions is None else positions
-        ok = np.isfinite(nc.sg) & (vb > va)
-        first = float(va[ok].min()) if ok.any() else 0.0
-        gas = []
-        if gas_v.size:
-            t_gas = yield CurveTempNeed(curve, gas_v)
-            gas = [(float(m), float(g)) for m, g in zip(gas_v, gas_range_sg(t_gas)) if m < first]
-        raw = yield from property_spline_steps(va[ok], vb[ok], nc.sg[ok],
-                                               [(m, g) for m, g in le_mids if m < first] + gas)
-        source = "narrow-cut densities (monotone spline against mid-volume %, matching each cut's mean)"
+
+def _density_from_cuts(g: Rows, gas: bool) -> list[Rows]:
+    ok = np.isfinite(g.nc_sg[0]) & (g.vb[0] > g.va[0])
+    first = g.va[:, ok].min(axis=1) if ok.any() else np.zeros(g.n)
+    placed = bool(g.placed[0])
+    le_x = g.le_mid if placed else np.zeros((g.n, 0))
+    key = [le_x < first[:, None]]
+    if gas:
+        g.put(gas_sg=gas_range_sg(g.spline.inverse(g.gas_v)))
+        key.append(g.gas_v < first[:, None])
+    g.put(first=first)
+    out = []
+    for s in g.split(np.concatenate(key, axis=1)):
+        le_x = s.le_mid if placed else np.zeros((s.n, 0))
+        lm = le_x[0] < s.first[0]
+        fx, fy = [le_x[:, lm]], [np.broadcast_to(s.le_sg[lm] if placed else np.zeros(0), (s.n, int(lm.sum())))]
         if gas:
-            source += _GAS_NOTE
-        kw = None
-    else:
-        if nc is not None:
-            warnings.append("fewer than 2 narrow cuts have a density: cut densities are estimated at constant "
-                            "Watson K fitted to the whole-crude gravity")
-        grid = np.linspace(0.0, 100.0, 201)
-        mids = 0.5 * (grid[1:] + grid[:-1])
-        t_mids = yield CurveTempNeed(curve, mids)
-        cbrt = watson_k_numerator(t_mids)
-        fixed = mids < curve.light_ends_pct
-        le_sg = np.full_like(mids, np.nan)
-        if le_mids:
-            lm = np.array([m for m, _ in le_mids])
-            lg = np.array([g for _, g in le_mids])
-            le_sg = lg[np.clip(np.searchsorted(lm, mids), 0, lm.size - 1)]
-        elif gas_v.size:
-            le_sg = gas_range_sg(t_mids)
-            fixed = np.isfinite(le_sg)
-        dv = 0.5
-        fixed_mass = float((le_sg[fixed] * dv).sum()) if fixed.any() else 0.0
-        if gas_v.size and (fixed.all() or fixed_mass >= 100.0 * assay.sg):
-            # a curve (nearly) all in the gas range: the paraffin assumption cannot meet the crude gravity
-            fixed[:] = False
-            fixed_mass = 0.0
-            gas_v = np.array([])
-        if fixed.all() or fixed_mass >= 100.0 * assay.sg:
-            raise CurveError("the light ends weigh as much as the whole crude's gravity allows; check the "
-                             "light-ends analysis against the crude gravity")
-        kw = float((cbrt[~fixed] * dv).sum() / (100.0 * assay.sg - fixed_mass))
-        raw = Pchip(mids, np.where(fixed, le_sg, sg_from_watson_k(t_mids, kw)))
-        source = f"constant Watson K {kw:.2f} fitted to the whole-crude gravity (no narrow-cut densities)"
-        if gas_v.size:
-            source += _GAS_NOTE
-    if source.endswith(_GAS_NOTE):
-        warnings.append("no light-ends analysis: the gravity of the crude boiling below 36.1 °C (n-pentane) is "
-                        "assumed from the C2-C5 paraffins boiling at the same temperature; give a light-ends "
-                        "analysis for measured values")
-    factor = 100.0 * assay.sg / raw.integral(0.0, 100.0)
-    return raw.scaled(factor), (factor - 1.0) * 100.0, source, kw
+            gm = s.gas_v[0] < s.first[0]
+            fx.append(s.gas_v[:, gm])
+            fy.append(s.gas_sg[:, gm])
+        s.put(pl=s.va[:, ok], ph=s.vb[:, ok], pv=s.nc_sg[:, ok], pfx=np.concatenate(fx, axis=1),
+              pfy=np.concatenate(fy, axis=1))
+        note = _GAS_NOTE if gas and any(f.shape[1] for f in fx[1:]) else ""
+        for t in property_spline_rows(s, "raw"):
+            t.put(dens_src=["narrow-cut densities (monotone spline against mid-volume %, matching each cut's "
+                            "mean)" + note] * t.n, kw=np.full(t.n, np.nan))
+            out.append(t)
+    return out
 
 
-def sulfur_distribution(model, assay: Assay, le_mids) -> None:
-    """Sulfur against wt % distilled, set on ``model`` (its sulfur_dist, sulfur_wt_pct, reconciliation,
-    methods and warnings).
+def _density_at_constant_kw(g: Rows, gas: bool) -> list[Rows]:
+    if g.has_nc:
+        for w in g.warn:
+            w.append("fewer than 2 narrow cuts have a density: cut densities are estimated at constant Watson K "
+                     "fitted to the whole-crude gravity")
+    grid = np.linspace(0.0, 100.0, int(round(100.0 / KW_GRID_STEP_PCT)) + 1)
+    mids = 0.5 * (grid[1:] + grid[:-1])
+    t_mids = g.spline.inverse(np.broadcast_to(mids, (g.n, mids.size)))
+    cbrt = watson_k_numerator(t_mids)
+    fixed = mids[None, :] < g.le_pct[:, None]
+    le_sg = np.full(t_mids.shape, np.nan)
+    if bool(g.placed[0]):
+        lm = g.le_mid
+        le_sg = g.le_sg[np.clip((lm[:, None, :] < mids[None, :, None]).sum(axis=2), 0, lm.shape[1] - 1)]
+    elif gas:
+        le_sg = gas_range_sg(t_mids)
+        fixed = np.isfinite(le_sg)
+    dv = KW_GRID_STEP_PCT
+    fixed_mass = np.array([(le_sg[r, fixed[r]] * dv).sum() for r in range(g.n)])  # each row's own sum
+    gas_used = np.full(g.n, gas)
+    if gas:  # a curve (nearly) all in the gas range: the paraffin assumption cannot meet the crude gravity
+        drop = fixed.all(axis=1) | (fixed_mass >= 100.0 * g.sg)
+        fixed[drop] = False
+        fixed_mass = np.where(drop, 0.0, fixed_mass)
+        gas_used &= ~drop
+    g.put(fixed=fixed, fixed_mass=fixed_mass, gas_used=gas_used, t_mids=t_mids, cbrt=cbrt, le_sgm=le_sg)
+    g = g.fail(g.fixed.all(axis=1) | (g.fixed_mass >= 100.0 * g.sg), lambda r: CurveError(
+        "the light ends weigh as much as the whole crude's gravity allows; check the light-ends analysis "
+        "against the crude gravity"))
+    if not g.n:
+        return []
+    kw = np.array([(g.cbrt[r, ~g.fixed[r]] * dv).sum() for r in range(g.n)]) / (100.0 * g.sg - g.fixed_mass)
+    raw = Pchip(np.broadcast_to(mids, g.t_mids.shape), np.where(g.fixed, g.le_sgm, sg_from_watson_k(g.t_mids,
+                                                                                                     kw[:, None])))
+    src = [f"constant Watson K {kw[r]:.2f} fitted to the whole-crude gravity (no narrow-cut densities)"
+           + (_GAS_NOTE if g.gas_used[r] else "") for r in range(g.n)]
+    return [g.put(raw=raw, dens_src=src, kw=kw)]
 
-    A :func:`property_spline` of narrow-cut sulfur against mid-weight % (light ends carry none), scaled to
+
+def wt_at_vol_rows(g: Rows, vol_pct):
+    """Cumulative wt % distilled at cumulative vol % (R, m) of each row's density distribution ``sg_dist``:
+    W(V) = ∫0^V SG dv / SG_crude. [wt %]"""
+    a0 = g.sg_dist.antiderivative(np.zeros((g.n, 1)))
+    return (g.sg_dist.antiderivative(vol_pct) - a0) / g.sg[:, None]
+
+
+def sulfur_rows(g: Rows) -> list[Rows]:
+    """The sulfur distribution of every row from its narrow cuts: sulfur against wt % distilled.
+
+    A :func:`property_spline_rows` of narrow-cut sulfur against mid-weight % (light ends carry none), scaled to
     reproduce the whole-crude sulfur; without it the narrow cuts give the whole-crude figure.  Fewer than two
-    narrow-cut sulfur values leave cut sulfur empty, with a warning.
+    narrow-cut sulfur values leave the distribution empty (``sulfur_dist`` None for the set), with a warning.
 
-    Parameters
-    ----------
-    model : CrudeModel
-        Its curve and density distribution are used; its sulfur fields are set.
-    assay : Assay
-    le_mids : list of (mid vol % [%], SG [-])
-        Light-ends components placed on the curve.
+    Row fields read: those of :func:`density_rows`' result, ``nc_s`` (narrow-cut sulfur), ``sulfur`` and
+    ``s_given`` (whole-crude sulfur [wt %], given or not).  Row fields set: ``sulfur_dist``, ``sulfur``,
+    ``s_rec`` (the scale, (factor - 1) x 100 [%]; NaN when not reconciled).
     """
-    run_one(sulfur_distribution_steps(model, assay, le_mids))
+    if not g.has_nc:
+        return [_no_sulfur(g)]
+    return each(g.split(np.isfinite(g.nc_s)), _sulfur_set)
 
 
-def sulfur_distribution_steps(model, assay: Assay, le_mids, positions=None):
-    """:func:`sulfur_distribution` as a step function (:mod:`assaycut.model.steps`); ``positions``: the narrow
-    cuts' (start, end) vol % on the model's curve when the caller has them (:func:`narrow_cut_positions`).
+def _no_sulfur(g: Rows) -> Rows:
+    for w, m in zip(g.warn, g.meth):
+        w.append("no narrow-cut sulfur (fewer than 2 values): cut sulfur is left empty")
+        m["sulfur"] = "not estimated (no narrow-cut sulfur)"
+    g.sulfur_dist = None
+    return g.put(s_rec=np.full(g.n, np.nan))
 
-    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
-    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
-    nc = assay.narrow_cuts
-    if nc is None or np.isfinite(nc.sulfur_wt_pct).sum() < 2:
-        model.warnings.append("no narrow-cut sulfur (fewer than 2 values): cut sulfur is left empty")
-        model.methods["sulfur"] = "not estimated (no narrow-cut sulfur)"
-        return
-    va, vb = narrow_cut_positions(assay, model.curve) if positions is None else positions
-    k = va.size
-    w = model.wt_at_vol(np.concatenate([va, vb, np.array([m for m, _ in le_mids], dtype=float)]))  # one call
-    wa, wb = w[:k], w[k:2 * k]
-    ok = np.isfinite(nc.sulfur_wt_pct) & (wb > wa)
-    first = float(wa[ok].min())
-    le_w = w[2 * k:].tolist()
-    fixed = [(w, 0.0) for w in le_w if w < first]
-    raw = yield from property_spline_steps(wa[ok], wb[ok], nc.sulfur_wt_pct[ok], fixed)
-    total = raw.integral(0.0, 100.0) / 100.0
-    if model.sulfur_wt_pct is None:
-        model.sulfur_wt_pct = float(total)
-        model.sulfur_reconciliation_pct = 0.0
-        model.warnings.append(f"no whole-crude sulfur given: {total:.3f} wt % is taken from the narrow cuts")
-        model.sulfur_dist = raw
-    else:
-        factor = model.sulfur_wt_pct / total if total > 0 else 1.0
-        model.sulfur_dist = raw.scaled(factor)
-        model.sulfur_reconciliation_pct = (factor - 1.0) * 100.0
-    model.methods["sulfur"] = (f"narrow-cut sulfur (monotone spline against mid-weight %, matching each cut's "
-                               f"mean); scaled by {model.sulfur_reconciliation_pct:+.2f} % to reproduce the "
-                               f"whole-crude sulfur {model.sulfur_wt_pct:.3f} wt %")
+
+def _sulfur_set(g: Rows) -> list[Rows]:
+    if np.isfinite(g.nc_s[0]).sum() < 2:
+        return [_no_sulfur(g)]
+    k = g.va.shape[1]
+    le_x = g.le_mid if bool(g.placed[0]) else np.zeros((g.n, 0))
+    w = wt_at_vol_rows(g, np.concatenate([g.va, g.vb, le_x], axis=1))  # one call
+    g.put(wa=w[:, :k], wb=w[:, k:2 * k], le_w=w[:, 2 * k:])
+    out = []
+    for s in g.split(np.isfinite(g.nc_s) & (g.wb > g.wa)):
+        ok = np.isfinite(s.nc_s[0]) & (s.wb[0] > s.wa[0])
+        s.put(first=s.wa[:, ok].min(axis=1))
+        for t in s.split(s.le_w < s.first[:, None]):
+            fix = t.le_w[0] < t.first[0]
+            t.put(pl=t.wa[:, ok], ph=t.wb[:, ok], pv=t.nc_s[:, ok], pfx=t.le_w[:, fix],
+                  pfy=np.zeros((t.n, int(fix.sum()))))
+            out += [_sulfur_scaled(u) for u in property_spline_rows(t, "raw")]
+    return out
+
+
+def _sulfur_scaled(g: Rows) -> Rows:
+    """The narrow cuts' sulfur distribution scaled to the whole-crude sulfur where it is given; else the whole
+    crude's sulfur taken from it."""
+    total = g.raw.integral(np.zeros((g.n, 1)), np.full((g.n, 1), 100.0))[:, 0] / 100.0
+    with np.errstate(divide="ignore", invalid="ignore"):
+        factor = np.where(g.s_given, np.where(total > 0, g.sulfur / total, 1.0), 1.0)
+    for r in np.flatnonzero(~g.s_given):
+        g.warn[r].append(f"no whole-crude sulfur given: {total[r]:.3f} wt % is taken from the narrow cuts")
+    g.put(sulfur=np.where(g.s_given, g.sulfur, total), s_rec=(factor - 1.0) * 100.0,
+          sulfur_dist=g.raw.scaled(factor))
+    for r, m in enumerate(g.meth):
+        m["sulfur"] = (f"narrow-cut sulfur (monotone spline against mid-weight %, matching each cut's mean); scaled "
+                       f"by {g.s_rec[r]:+.2f} % to reproduce the whole-crude sulfur {g.sulfur[r]:.3f} wt %")
+    return g

@@ -25,11 +25,12 @@ from ..methods.fraction_properties import (
     ri_and_m,
     sulfur_riazi_1999,
 )
+from ..methods.pchip import Pchip, interval_mean
 from .assay import Assay
-from .distributions import narrow_cut_positions, property_spline_steps
-from .steps import run_one
+from .distributions import narrow_cut_positions, property_spline_rows, wt_at_vol_rows
 from .lightends import GAS_RANGE_MAX_C
-from ..methods.pchip import Pchip
+from .rows import Rows
+from .tbp_curve import volume_average_temp
 
 COVERED_FRACTION = 0.95
 """A cut takes a quality from the narrow cuts when at least this fraction of it (on the quality's basis) lies
@@ -188,7 +189,7 @@ SULFUR_SLICES = 100
 """Slices of the curve on which the sulfur of a crude without narrow-cut sulfur is estimated."""
 
 
-def estimated_sulfur(model) -> Pchip:
+def estimated_sulfur_rows(g: Rows) -> list[Rows]:
     """Sulfur against weight % distilled, estimated when only the whole-crude sulfur is known.
 
     Each slice of the curve is a pseudo-component (Riazi MNL50 §4.8.2): Tb its mean TBP, SG from the density
@@ -203,34 +204,26 @@ def estimated_sulfur(model) -> Pchip:
     its sulfur (our choice: the form gives the shape, the crude's measured sulfur the level; the values are
     estimates).
 
-    Parameters
-    ----------
-    model : CrudeModel
-        Curve, density distribution and whole-crude sulfur.
-
-    Returns
-    -------
-    Pchip
-        Sulfur [wt %] against weight % distilled, reconciled.
+    Row fields read: ``spline`` (the curve V(T)), ``sg_dist``, ``sg`` and ``sulfur`` (the whole crude's
+    sulfur [wt %]).  Row field set: ``sulfur_dist``, sulfur [wt %] against weight % distilled, reconciled.
     """
-    return run_one(estimated_sulfur_steps(model))
-
-
-def estimated_sulfur_steps(model):
-    """:func:`estimated_sulfur` as a step function (:mod:`assaycut.model.steps`)."""
     edges = np.linspace(0.0, 100.0, SULFUR_SLICES + 1)
-    va, vb = edges[:-1], edges[1:]
-    tb = model.curve.mean_temp(va, vb)
-    sg = model.mean_sg(va, vb)
+    va, vb = (np.broadcast_to(e, (g.n, SULFUR_SLICES)) for e in (edges[:-1], edges[1:]))
+    tb = volume_average_temp(g.spline, va, vb)
+    sg = interval_mean(g.sg_dist, va, vb)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):  # odd slices give NaN, counted as 0
         mw = mw_riazi_daubert_1987(tb, sg)
         n = refractive_index_riazi_daubert_1987(tb, sg)
         ri, m = ri_and_m(mw, sg, n)
         heavy_form = np.maximum(mw, 200.0)  # the M >= 200 form for every slice: see the docstring
         s = np.where(tb < GAS_RANGE_MAX_C, 0.0, sulfur_riazi_1999(heavy_form, sg, ri, m))
-    s = np.maximum.accumulate(np.nan_to_num(s, nan=0.0))
-    wa, wb = model.wt_at_vol(va), model.wt_at_vol(vb)
-    raw = yield from property_spline_steps(wa, wb, s)
-    total = float(raw.integral(0.0, 100.0)) / 100.0
-    factor = model.sulfur_wt_pct / total if total > 0 else 0.0
-    return raw.scaled(factor)
+    s = np.maximum.accumulate(np.nan_to_num(s, nan=0.0), axis=1)
+    w = wt_at_vol_rows(g, np.concatenate([va, vb], axis=1))
+    g.put(pl=w[:, :SULFUR_SLICES], ph=w[:, SULFUR_SLICES:], pv=s, pfx=np.zeros((g.n, 0)), pfy=np.zeros((g.n, 0)))
+    out = property_spline_rows(g, "raw")
+    for t in out:
+        total = t.raw.integral(np.zeros((t.n, 1)), np.full((t.n, 1), 100.0))[:, 0] / 100.0
+        with np.errstate(divide="ignore", invalid="ignore"):
+            factor = np.where(total > 0, t.sulfur / total, 0.0)
+        t.put(sulfur_dist=t.raw.scaled(factor))
+    return out

@@ -17,10 +17,10 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import CurveError
-from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution, fit_riazi_many
-from ..units import pct_text
 from ..methods.pchip import Pchip
-from .steps import Need, run_one
+from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution, fit_riazi_many, riazi_temp_c
+from ..units import pct_text
+from .rows import Rows, each
 
 END_FRACTION = 0.9995
 """The curve's 100 % point is placed at this fraction of the fitted distribution."""
@@ -110,7 +110,7 @@ class TbpCurve:
 
     def mean_temp(self, pct_a, pct_b, ta=None, tb=None):
         """Volume-average TBP over [pct_a, pct_b] [vol %] (:func:`volume_average_temp`). [°C]"""
-        return volume_average_temp(self, pct_a, pct_b, ta, tb)
+        return volume_average_temp(self.spline, pct_a, pct_b, ta, tb)
 
     def is_extrapolated(self, pct_a, pct_b):
         """True where [pct_a, pct_b] depends on the extension: it reaches outside :attr:`safe_lo` -
@@ -118,19 +118,19 @@ class TbpCurve:
         return (np.asarray(pct_b) > self.safe_hi + 1e-9) | (np.asarray(pct_a) < self.safe_lo - 1e-9)
 
 
-def volume_average_temp(curve, pct_a, pct_b, ta=None, tb=None):
+def volume_average_temp(spline: Pchip, pct_a, pct_b, ta=None, tb=None):
     """Volume-average TBP of a curve over [pct_a, pct_b] [vol %], by parts: ∫T dV = [T V] - ∫V dT. [°C]
 
-    Where the interval has no width, the temperature at that point is returned.  ``ta``, ``tb``: the TBP at
-    ``pct_a`` and ``pct_b`` [°C] when the caller has them already (else found here).  ``curve`` is anything with
-    ``temp_at`` and a ``spline`` V(T) (one curve, or curves as rows).
+    Where the interval has no width, the temperature at that point is returned.  ``spline`` is the curve V(T)
+    (one curve, or curves as rows); ``ta``, ``tb``: the TBP at ``pct_a`` and ``pct_b`` [°C] when the caller
+    has them already (else found here by the spline's inverse).
     """
     pct_a = np.asarray(pct_a, dtype=float)
     pct_b = np.asarray(pct_b, dtype=float)
-    ta = curve.temp_at(pct_a) if ta is None else ta
-    tb = curve.temp_at(pct_b) if tb is None else tb
+    ta = spline.inverse(pct_a) if ta is None else ta
+    tb = spline.inverse(pct_b) if tb is None else tb
     # the inverse returns the left end of flat steps; integrate V(T) over [ta, tb]
-    area = tb * pct_b - ta * pct_a - curve.spline.integral(ta, tb)
+    area = tb * pct_b - ta * pct_a - spline.integral(ta, tb)
     width = pct_b - pct_a
     with np.errstate(invalid="ignore", divide="ignore"):
         return np.where(width > 1e-12, area / np.where(width > 1e-12, width, 1.0), ta)
@@ -156,12 +156,7 @@ def staircase(nbps_c, cum_pcts):
 
 
 def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> TbpCurve:
-    """Build the TBP curve model from measured points.
-
-    Steps: order and check the points (:func:`_checked_points`), widen repeated temperatures into steps,
-    place the light ends in front (:func:`_place_light_ends`), fit the Riazi distribution where the curve
-    needs an extension, and join the extensions at the back (:func:`_tail_extension`) and front
-    (:func:`_front_extension`).
+    """Build the TBP curve model from measured points (:func:`curve_rows` of one row).
 
     Parameters
     ----------
@@ -181,199 +176,201 @@ def build_curve(percent, temp_c, *, front_t=None, front_v=None) -> TbpCurve:
     CurveError
         Fewer than two points, temperatures falling as percent rises, or an extension that cannot be fitted.
     """
-    return run_one(build_curve_steps(percent, temp_c, front_t=front_t, front_v=front_v))
-
-
-class RiaziNeed(Need):
-    """The Riazi distribution fitted to a curve's measured points (:func:`fit_riazi_distribution`); many at
-    once by :func:`~assaycut.methods.riazi_distribution.fit_riazi_many`."""
-
-    __slots__ = ("percent", "temp_c")
-
-    def __init__(self, percent, temp_c):
-        self.percent, self.temp_c = percent, temp_c
-
-    @classmethod
-    def together(cls, needs):
-        return fit_riazi_many([(n.percent, n.temp_c) for n in needs])
-
-
-class CurveTempNeed(Need):
-    """TBP [°C] of a curve at percents [vol %] (:meth:`TbpCurve.temp_at`); for many curves at once
-    :meth:`together` inverts the curves with the same node count and number of percents row-wise
-    (:meth:`~assaycut.methods.pchip.Pchip.inverse` of their stack: the same values to the last bit)."""
-
-    __slots__ = ("curve", "pct")
-
-    def __init__(self, curve: "TbpCurve", pct):
-        self.curve, self.pct = curve, np.asarray(pct, dtype=float)
-
-    @classmethod
-    def together(cls, needs):
-        out: list = [None] * len(needs)
-        groups: dict[tuple, list[int]] = {}
-        for k, n in enumerate(needs):
-            groups.setdefault((n.curve.spline.x.size, n.pct.shape), []).append(k)
-        for idx in groups.values():
-            if len(idx) == 1:  # one curve: its own spline
-                out[idx[0]] = needs[idx[0]].curve.temp_at(needs[idx[0]].pct)
-                continue
-            res = Pchip.stack([needs[k].curve.spline for k in idx]).inverse(
-                np.array([needs[k].pct.ravel() for k in idx]))
-            for r, k in enumerate(idx):
-                out[k] = res[r].reshape(needs[k].pct.shape)
-        return out
-
-
-def build_curve_steps(percent, temp_c, *, front_t=None, front_v=None, fit: RiaziFit | None = None):
-    """:func:`build_curve` as a step function (:mod:`assaycut.model.steps`): the extension's fit is a
-    :class:`RiaziNeed`, unless ``fit`` gives the one to use."""
-    given_fit = fit
-    warnings: list[str] = []
-    v, t = _checked_points(percent, temp_c)
-    t = _widen_repeats(v, t, warnings)
-    measured_lo, measured_hi = float(v[0]), float(v[-1])
-    le_t, le_v = _place_light_ends(v, t, front_t, front_v, warnings)
-    placed = le_t is not None
-    fit = None
-    need_tail = v[-1] < 100.0
-    need_front = v[0] > 0.0 and not placed
-    if need_tail or need_front:
-        fit = given_fit if given_fit is not None else (yield RiaziNeed(v, t))
-        if fit.rms_c > POOR_FIT_RMS_C:
-            warnings.append(f"the distribution fitted for the curve's extension deviates from the measured "
-                            f"points by {fit.rms_c:.1f} °C RMS (above {POOR_FIT_RMS_C:g} °C): extrapolated "
-                            f"values are uncertain")
-    tt, vv = [t], [v]
-    lumped = 0.0
-    if need_tail:
-        tx, vx, lumped = _tail_extension(v, t, fit, warnings)
-        tt.append(tx)
-        vv.append(vx)
-    if need_front:
-        tx, vx = _front_extension(v, t, fit)
-        if tx[0] < METHANE_NBP_C:
-            raise CurveError(f"the curve starts at {pct_text(v[0])} % and its fitted front reaches {tx[0]:.0f} °C, "
-                             f"below "
-                             f"the boiling point of methane: give the initial boiling point (0 %) or a light-ends "
-                             f"analysis")
-        tt.insert(0, tx)
-        vv.insert(0, vx)
-    if placed:
-        tt.insert(0, le_t)
-        vv.insert(0, le_v)
-    if placed or v[0] == 0.0:
-        measured_lo = 0.0
-    le_pct = float(le_v[-1]) if placed else 0.0
-    T = np.concatenate(tt)
-    V = np.concatenate(vv)
-    if ((T[1:] - T[:-1]) <= 0).any():  # np.diff's arithmetic without its call
-        raise CurveError("the curve's extension does not join the measured points monotonically; "
-                         "check the last points of the curve")
-    safe_lo = float(v[1]) if need_front else measured_lo
-    safe_hi = float(v[-2]) if need_tail else measured_hi
-    return TbpCurve(Pchip(T, V), measured_lo, measured_hi, fit, warnings, le_pct, float(t[0]), safe_lo, safe_hi,
-                    lumped, v.copy(), t.copy())
-
-
-def _checked_points(percent, temp_c) -> tuple[np.ndarray, np.ndarray]:
-    """The points ordered by percent, refused when fewer than two, flat, or falling in temperature.
-
-    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
-    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
     v = np.asarray(percent, dtype=float)
-    t = np.asarray(temp_c, dtype=float)
-    if v.size < 2:
-        raise CurveError(f"a distillation curve needs at least 2 points; got {v.size}")
-    order = np.argsort(v, kind="stable")
-    v, t = v[order], t[order]
-    if t[-1] - t[0] < 1.0 or v[-1] - v[0] <= 0.0:
-        raise CurveError(f"the curve runs from {pct_text(v[0])} % at {t[0]:.2f} °C to {pct_text(v[-1])} % at "
-                         f"{t[-1]:.2f} °C; a "
-                         f"distillation curve must rise by at least 1 °C and some percent")
-    if ((t[1:] - t[:-1]) < 0).any():
-        k = int(np.argmax((t[1:] - t[:-1]) < 0))
-        raise CurveError(f"temperature falls from {t[k]:.2f} °C at {pct_text(v[k])} % to {t[k + 1]:.2f} °C at "
-                         f"{pct_text(v[k + 1])} %; temperatures must rise with percent distilled")
-    return v, t
+    g = Rows([0]).put(v=v[None, :], t=np.asarray(temp_c, dtype=float)[None, :], cwarn=[[]], fit=[None])
+    if front_t is not None and len(front_t):
+        g.front_t = np.asarray(front_t, dtype=float)
+        g.put(front_v=np.asarray(front_v, dtype=float)[None, :])
+    done = curve_rows(g)
+    if not done:
+        raise g.errors[0]
+    return tbp_curve_of(done[0], 0)
 
 
-def _widen_repeats(v: np.ndarray, t: np.ndarray, warnings: list[str]) -> np.ndarray:
-    """Repeated temperatures at rising percent become vertical steps :data:`STEP_C` wide.
+def curve_rows(g: Rows) -> list[Rows]:
+    """The curve model of every row (the steps of the module docstring), row-wise.
 
-    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
-    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
-    rep = (t[1:] - t[:-1]) == 0
+    Row fields read: ``v``, ``t`` (R, n) the measured points [vol %], [°C]; ``cwarn`` (each row's curve warnings,
+    appended to); ``fit`` (a RiaziFit to use for the extension instead of fitting, or None); ``front_v`` (R, 2m)
+    with the shared ``front_t`` (2m,) when light ends are offered (:func:`staircase` nodes).
+
+    Row fields set: the measured points ordered and widened (``mv``, ``mt``), ``placed`` (light ends placed),
+    ``fit``, the nodes ``T``, ``V`` and the curve ``spline`` (rows of V(T)), and the :class:`TbpCurve` figures
+    ``mlo``, ``mhi``, ``le_pct``, ``safe_lo``, ``safe_hi``, ``lumped``.  A row refused (fewer than two points,
+    falling temperatures, an extension that cannot be fitted or joined) gets its CurveError.
+    """
+    g = _checked_points(g)
+    if not g.n:
+        return []
+    _widen_repeats(g)
+    out = []
+    for s in _place_light_ends(g):
+        out += s.split(np.stack([s.mv[:, -1] < 100.0, (s.mv[:, 0] > 0.0) & ~s.placed], axis=1))
+    return each(out, _extend)
+
+
+def tbp_curve_of(g: Rows, r: int) -> TbpCurve:
+    """Row ``r`` of a set built by :func:`curve_rows` as a :class:`TbpCurve` (its own single spline)."""
+    sp = g.spline
+    return TbpCurve(Pchip(sp.X[r], sp.Y[r], sp.D[r], sp.C[r]), float(g.mlo[r]), float(g.mhi[r]), g.fit[r],
+                    g.cwarn[r], float(g.le_pct[r]), float(g.mt[r, 0]), float(g.safe_lo[r]), float(g.safe_hi[r]),
+                    float(g.lumped[r]), g.mv[r].copy(), g.mt[r].copy())
+
+
+def _checked_points(g: Rows) -> Rows:
+    """The points ordered by percent; rows refused when fewer than two, flat, or falling in temperature."""
+    v, t = g.v, g.t
+    if v.shape[1] < 2:
+        return g.fail(np.ones(g.n, dtype=bool),
+                      lambda r: CurveError(f"a distillation curve needs at least 2 points; got {v.shape[1]}"))
+    order = np.argsort(v, axis=1, kind="stable")
+    v, t = np.take_along_axis(v, order, axis=1), np.take_along_axis(t, order, axis=1)
+    flat = (t[:, -1] - t[:, 0] < 1.0) | (v[:, -1] - v[:, 0] <= 0.0)
+    falls = (t[:, 1:] - t[:, :-1]) < 0
+    g.put(mv=v, mt=t)
+
+    def error(r):
+        if flat[r]:
+            return CurveError(f"the curve runs from {pct_text(v[r, 0])} % at {t[r, 0]:.2f} °C to "
+                              f"{pct_text(v[r, -1])} % at {t[r, -1]:.2f} °C; a "
+                              f"distillation curve must rise by at least 1 °C and some percent")
+        k = int(np.argmax(falls[r]))
+        return CurveError(f"temperature falls from {t[r, k]:.2f} °C at {pct_text(v[r, k])} % to {t[r, k + 1]:.2f} °C "
+                          f"at {pct_text(v[r, k + 1])} %; temperatures must rise with percent distilled")
+
+    return g.fail(flat | falls.any(axis=1), error)
+
+
+def _widen_repeats(g: Rows) -> None:
+    """Repeated temperatures at rising percent become vertical steps :data:`STEP_C` wide (with a warning)."""
+    v, t = g.mv, g.mt
+    rep = (t[:, 1:] - t[:, :-1]) == 0
     if not rep.any():
-        return t
-    for k in np.nonzero(rep)[0]:
-        warnings.append(f"the same temperature {t[k]:.2f} °C is given at {pct_text(v[k])} % and "
-                        f"{pct_text(v[k + 1])} %; "
-                        f"treated as a step {STEP_C} °C wide")
-    return t + np.concatenate([[0.0], np.cumsum(rep * STEP_C)])
+        return
+    for r, k in zip(*np.nonzero(rep)):
+        g.cwarn[r].append(f"the same temperature {t[r, k]:.2f} °C is given at {pct_text(v[r, k])} % and "
+                          f"{pct_text(v[r, k + 1])} %; treated as a step {STEP_C} °C wide")
+    g.mt = t + np.concatenate([np.zeros((g.n, 1)), np.cumsum(rep * STEP_C, axis=1)], axis=1)
 
 
-def _place_light_ends(v, t, front_t, front_v, warnings: list[str]):
-    """Light-ends staircase nodes (T, V) placed in front of the first measured point, or (None, None) when
-    there are none or they do not fit there (with a warning).
+def _place_light_ends(g: Rows) -> list[Rows]:
+    """Light-ends staircase nodes placed in front of the first measured point where they fit (``placed``;
+    ``front_v`` scaled to meet the point when they miss it by at most :data:`LIGHT_ENDS_TOL_PCT`), with a
+    warning where they are not placed; the sets of rows placed and not."""
+    v, t = g.mv, g.mt
+    if "front_v" not in g.fields:
+        return [g.put(placed=np.zeros(g.n, dtype=bool))]
+    ft, fv = g.front_t, g.front_v
+    v0, t0, last = v[:, 0], t[:, 0], fv[:, -1]
+    at_zero = v0 == 0.0
+    scale = ~at_zero & (np.abs(last - v0) <= LIGHT_ENDS_TOL_PCT) & (last != v0) & (ft[-1] < t0)
+    off = ~at_zero & ~scale & ((last > v0 + 1e-9) | (ft[-1] >= t0))
+    for r in np.flatnonzero(at_zero):
+        g.cwarn[r].append("the curve starts at 0 %, so the light-ends analysis is not placed on it")
+    for r in np.flatnonzero(scale):
+        if abs(v0[r] / last[r] - 1.0) > 0.01:
+            g.cwarn[r].append(f"the light ends add up to {last[r]:.3f} vol %, the first measured point is "
+                              f"{pct_text(v0[r])} %; the light-ends volumes are scaled by "
+                              f"{(v0[r] / last[r] - 1) * 100:+.2f} % to meet it")
+    for r in np.flatnonzero(off):
+        g.cwarn[r].append(f"the light ends ({last[r]:.2f} vol % up to {ft[-1]:.1f} °C) do not fit before the "
+                          f"first measured point ({pct_text(v0[r])} % at {t0[r]:.1f} °C); not placed on the curve, "
+                          f"and the front of the curve is extrapolated")
+    # scaled to meet the first point exactly (rounding must not leave a node above it)
+    g.front_v = np.where(scale[:, None], np.minimum(fv * (v0 / last)[:, None], v0[:, None]), fv)
+    g.put(placed=~(at_zero | off))
+    return g.split(g.placed)
 
-    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
-    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
-    if front_t is None or len(front_t) == 0:
-        return None, None
-    ft, fv = np.asarray(front_t, float), np.asarray(front_v, float)
-    if v[0] == 0.0:
-        warnings.append("the curve starts at 0 %, so the light-ends analysis is not placed on it")
-        return None, None
-    if abs(fv[-1] - v[0]) <= LIGHT_ENDS_TOL_PCT and fv[-1] != v[0] and ft[-1] < t[0]:
-        if abs(v[0] / fv[-1] - 1.0) > 0.01:
-            warnings.append(f"the light ends add up to {fv[-1]:.3f} vol %, the first measured point is "
-                            f"{pct_text(v[0])} %; the light-ends volumes are scaled by "
-                            f"{(v[0] / fv[-1] - 1) * 100:+.2f} % to meet it")
-        # scaled to meet the first point exactly (rounding must not leave a node above it)
-        return ft, np.minimum(fv * (v[0] / fv[-1]), v[0])
-    if fv[-1] > v[0] + 1e-9 or ft[-1] >= t[0]:
-        warnings.append(f"the light ends ({fv[-1]:.2f} vol % up to {ft[-1]:.1f} °C) do not fit before the "
-                        f"first measured point ({pct_text(v[0])} % at {t[0]:.1f} °C); not placed on the curve, and "
-                        f"the front of the curve is extrapolated")
-        return None, None
-    return ft, fv
+
+def _extend(g: Rows) -> list[Rows]:
+    """The extensions, nodes and spline of a set of rows that all take the same branches (tail, front,
+    light ends placed or not)."""
+    v, t = g.mv, g.mt
+    placed = bool(g.placed[0])
+    need_tail = bool(v[0, -1] < 100.0)
+    need_front = bool(v[0, 0] > 0.0 and not placed)
+    g.put(mlo=np.where(placed | (v[:, 0] == 0.0), 0.0, v[:, 0]), mhi=v[:, -1].copy())
+    if need_tail or need_front:
+        todo = [r for r in range(g.n) if g.fit[r] is None]
+        for r, f in zip(todo, fit_riazi_many([(v[r], t[r]) for r in todo])):
+            g.fit[r] = f
+        g = g.fail([not isinstance(f, RiaziFit) for f in g.fit], lambda r: g.fit[r])
+        if not g.n:
+            return []
+        v, t = g.mv, g.mt
+        for r, f in enumerate(g.fit):
+            if f.rms_c > POOR_FIT_RMS_C:
+                g.cwarn[r].append(f"the distribution fitted for the curve's extension deviates from the measured "
+                                  f"points by {f.rms_c:.1f} °C RMS (above {POOR_FIT_RMS_C:g} °C): extrapolated "
+                                  f"values are uncertain")
+        g.put(**{k: np.array([getattr(f, a) for f in g.fit])[:, None]
+                 for k, a in (("t0_k", "t0_k"), ("fa", "a"), ("fb", "b"))})
+    else:
+        g.fit = [None] * g.n
+    g.put(lumped=np.zeros(g.n))
+    sets = _tail_extension(g) if need_tail else [g.put(tx=np.zeros((g.n, 0)), vx=np.zeros((g.n, 0)))]
+    return each(sets, _join, placed, need_tail, need_front)
 
 
-def _tail_extension(v, t, fit: RiaziFit, warnings: list[str]):
-    """Nodes (T, V) past the last measured point: the fitted distribution shifted to meet it, up to its
-    :data:`END_FRACTION` point, capped at :data:`END_CAP_C` (the residue above is lumped at the cap), and the
-    lumped share [vol %].
-
-    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
-    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
-    x_last = v[-1] / 100.0
-    z = np.linspace(np.log(1 / (1 - x_last)), np.log(1 / (1 - END_FRACTION)), 40)[1:]
+def _tail_extension(g: Rows) -> list[Rows]:
+    """Nodes past the last measured point (``tx``, ``vx``): the fitted distribution shifted to meet it, up to
+    its :data:`END_FRACTION` point, capped at :data:`END_CAP_C` (the residue above lumped at the cap; ``lumped``
+    its share [vol %]); one set per pattern of nodes under the cap."""
+    v, t = g.mv, g.mt
+    x_last = v[:, -1:] / 100.0
+    z = np.linspace(np.log(1 / (1 - x_last[:, 0])), np.log(1 / (1 - END_FRACTION)), 40, axis=1)[:, 1:]
     xs = 1.0 - np.exp(-z)
-    off = t[-1] - fit.temp_c(x_last)
+    off = t[:, -1:] - riazi_temp_c(g.t0_k, g.fa, g.fb, x_last)
     with np.errstate(over="ignore", invalid="ignore"):
-        tx = fit.temp_c(xs) + off
-    vx = 100.0 * xs
-    cap = max(END_CAP_C, t[-1] + END_CAP_STEP_C)
-    under = np.isfinite(tx) & (tx < cap)
-    tx = np.concatenate([tx[under][:-1], [cap if not under.all() else tx[-1]]])
-    vx = np.concatenate([vx[under][:-1], [100.0]])
-    lumped = 0.0
-    if not under.all():
-        lumped = 100.0 - 100.0 * float(xs[~under][0])
-        warnings.append(f"the fitted extension passes {cap:.0f} °C at {100.0 * xs[~under][0]:.1f} vol %; the "
-                        f"material above is lumped up to an end point of {cap:.0f} °C")
-    return tx, vx, lumped
+        tx = riazi_temp_c(g.t0_k, g.fa, g.fb, xs) + off
+    cap = np.maximum(END_CAP_C, t[:, -1] + END_CAP_STEP_C)
+    g.put(xs=xs, tx=tx, cap=cap)
+    out = []
+    for s in g.split(np.isfinite(tx) & (tx < cap[:, None])):
+        under = np.isfinite(s.tx[0]) & (s.tx[0] < s.cap[0])
+        keep = np.flatnonzero(under)[:-1]
+        last = s.cap[:, None] if not under.all() else s.tx[:, -1:]
+        s.put(tx=np.concatenate([s.tx[:, keep], last], axis=1),
+              vx=np.concatenate([100.0 * s.xs[:, keep], np.full((s.n, 1), 100.0)], axis=1))
+        if not under.all():
+            first_over = s.xs[:, int(np.argmin(under))]
+            s.lumped = 100.0 - 100.0 * first_over
+            for r in range(s.n):
+                s.cwarn[r].append(f"the fitted extension passes {s.cap[r]:.0f} °C at {100.0 * first_over[r]:.1f} "
+                                  f"vol %; the material above is lumped up to an end point of {s.cap[r]:.0f} °C")
+        out.append(s)
+    return out
 
 
-def _front_extension(v, t, fit: RiaziFit):
-    """Nodes (T, V) before the first measured point, from 0 %: the fitted distribution shifted to meet it.
-
-    Its row-wise twin for uncertainty draws is in :mod:`assaycut.model.draws`: change both
-    (tests/studies/test_uncertainty_zero.py and tests/model/test_draws.py compare them)."""
-    x_first = v[0] / 100.0
-    xs = np.linspace(0.0, x_first, 12)[:-1]
-    return fit.temp_c(xs) + t[0] - fit.temp_c(x_first), 100.0 * xs
+def _join(g: Rows, placed: bool, need_tail: bool, need_front: bool) -> list[Rows]:
+    """The front extension (before the first point, from 0 %, the fitted distribution shifted to meet it) when
+    needed, the nodes in order and the spline; rows whose front falls below methane's boiling point or whose
+    nodes do not rise are refused."""
+    v, t = g.mv, g.mt
+    tt, vv = [t, g.tx], [v, g.vx]
+    if need_front:
+        x_first = v[:, :1] / 100.0
+        xs = np.linspace(0.0, x_first[:, 0], 12, axis=1)[:, :-1]
+        ftx = riazi_temp_c(g.t0_k, g.fa, g.fb, xs) + t[:, :1] - riazi_temp_c(g.t0_k, g.fa, g.fb, x_first)
+        tt.insert(0, ftx)
+        vv.insert(0, 100.0 * xs)
+        g.put(ftx=ftx)
+    if placed:
+        tt.insert(0, np.broadcast_to(g.front_t, (g.n, g.front_t.size)))
+        vv.insert(0, g.front_v)
+    T, V = np.concatenate(tt, axis=1), np.concatenate(vv, axis=1)
+    g.put(T=T, V=V, le_pct=g.front_v[:, -1].copy() if placed else np.zeros(g.n),
+          safe_lo=v[:, 1].copy() if need_front else g.mlo, safe_hi=v[:, -2].copy() if need_tail else g.mhi)
+    if need_front:
+        g = g.fail(g.ftx[:, 0] < METHANE_NBP_C, lambda r: CurveError(
+            f"the curve starts at {pct_text(g.mv[r, 0])} % and its fitted front reaches {g.ftx[r, 0]:.0f} °C, "
+            f"below the boiling point of methane: give the initial boiling point (0 %) or a light-ends analysis"))
+    g = g.fail(((g.T[:, 1:] - g.T[:, :-1]) <= 0).any(axis=1), lambda r: CurveError(
+        "the curve's extension does not join the measured points monotonically; check the last points of the "
+        "curve"))
+    if g.n:
+        g.put(spline=Pchip(g.T, g.V))
+    return [g]
 
 
 BAND_LAST_POINTS = (4, 5, 6)

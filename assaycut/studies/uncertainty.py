@@ -2,9 +2,9 @@
 
 Monte Carlo over the curve model: each draw perturbs the measured TBP temperatures and percents, the
 densities (whole crude and narrow cuts) and the sulfur contents by independent normal errors, rebuilds the
-crude model (the draws of a chunk as arrays over draws, :func:`~assaycut.model.draws.build_draws`, the
-draws it does not cover by :func:`~assaycut.model.crude.build_models`), and all draws are cut together by the
-library engine (arrays over draws).  Reported: P10, P50 and P90 per cut.
+crude model (the draws of a chunk together, as rows of the one model builder,
+:func:`~assaycut.model.crude.build_draws`), and all draws are cut together by the library engine (arrays over
+draws).  Reported: P10, P50 and P90 per cut.
 
 The default standard deviations are ASSUMPTIONS of ours, not values from the standards: the repeatability
 figures of ASTM D2892 (TBP), D4052 (density) and D4294 / D2622 (sulfur) must be confirmed against the current
@@ -20,12 +20,11 @@ import numpy as np
 from ..cutting.cut_table import CutTable
 from ..cutting.cutset import CutSet
 from ..cutting.ideal import cut_columns
-from ..cutting.library_engine import cut_library
 from ..cutting.model_rows import BatchModel
-from ..errors import AssaycutError, StudyError
+from ..errors import StudyError
 from ..model.assay import Assay
-from ..model.crude import build_models
-from ..model.draws import DrawValues, build_draws
+from ..model.crude import build_draws
+from ..model.draws import DrawValues
 
 
 @dataclass(frozen=True)
@@ -112,25 +111,20 @@ on the seed alone, not on how many processes share the work."""
 def _draw_chunk(args):
     """Model and cut one chunk of draws: (columns of :data:`BAND_QUALITIES` over the draws, failed draws).
 
-    The draws are modelled as arrays over draws (:func:`~assaycut.model.draws.build_draws`) where they can be,
-    the others one by one by the reference builder; each draw's model is the one :func:`build_model` gives it.
+    The draws are modelled together as rows (:func:`~assaycut.model.crude.build_draws`, the one model builder;
+    each draw's model is the one :func:`~assaycut.model.crude.build_model` gives it) and cut together by the
+    library engine.
     """
     assay, cut_set, sig, count, seed, k, method = args
     rng = np.random.default_rng([seed, k])
     vals = draw_values(assay, sig, rng, count)
-    groups, left = build_draws(assay, vals)
-    _, ends = cut_set.reported()
-    parts = []
-    for g in groups:  # the bands read no narrow-cut quality
-        parts.append(cut_columns(BatchModel.from_rows(g), np.repeat(ends[None, :], g.sg.size, axis=0), only=set()))
-    built = build_models([vals.assay(assay, r) for r in left], method, qualities=False)
-    models = [m for m in built if not isinstance(m, AssaycutError)]
-    failed = len(left) - len(models)
-    if models:
-        parts.append(cut_library(models, cut_set, only=set())[1])
-    if not parts:
+    leaves, failed = build_draws(assay, vals, method)
+    if not leaves:
         return {}, failed
-    return {q: np.concatenate([np.asarray(p[q], dtype=float) for p in parts], axis=0) for q in BAND_QUALITIES}, failed
+    _, ends = cut_set.reported()
+    batch = BatchModel.from_rows(leaves)
+    cols = cut_columns(batch, np.repeat(ends[None, :], batch.n, axis=0), only=set())  # the bands read no quality
+    return {q: np.asarray(cols[q], dtype=float) for q in BAND_QUALITIES}, failed
 
 
 def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 200, seed: int = 20261201,

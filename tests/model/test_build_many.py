@@ -18,7 +18,8 @@ from assaycut.io import load_assay
 from assaycut.methods.riazi_distribution import fit_riazi_distribution, fit_riazi_many
 from assaycut.model.assay import Assay, CurveData, LightEnds
 from assaycut.model.crude import build_model, build_models
-from assaycut.model.distributions import MeanMatchNeed, property_spline_steps
+from assaycut.model.distributions import property_spline, property_spline_rows
+from assaycut.model.rows import Rows
 from assaycut.methods.pchip import Pchip, slopes_on
 from assaycut.model.tbp_curve import build_curve
 
@@ -166,23 +167,29 @@ def test_row_slopes_equal_one_spline_slopes():
             assert rows[r].tobytes() == slopes_on(x[r])(y[r]).tobytes(), (n, r)
 
 
-def test_mean_matching_together_equals_alone():
+def test_property_splines_as_rows_equal_each_alone():
+    # 50 problems with the same node count as rows of one set (split where their nodes order differently)
+    # against each alone: node values, slopes and integrals to the last bit.
     rng = np.random.default_rng(9)
-    needs = []
+    probs = []
     for k in range(50):
         edges = np.sort(rng.uniform(0.0, 100.0, 9))
         vals = np.sort(rng.uniform(0.6, 1.0, 8)) if k % 2 else rng.uniform(0.0, 4.0, 8)
-        steps = property_spline_steps(edges[:-1], edges[1:], vals, [(0.5, 0.5)] if k % 3 == 0 else (),
-                                      floor=None if k % 5 == 0 else 0.0)
-        needs.append(next(steps))
-    assert all(isinstance(n, MeanMatchNeed) for n in needs)
-    for one, many in zip([MeanMatchNeed.together([n])[0] for n in needs], MeanMatchNeed.together(needs)):
-        assert [z.tobytes() for z in one] == [z.tobytes() for z in many]  # node values, slopes, integrals
-    # the slopes and integrals handed back are those the interpolant through the node values has
-    for n in needs:
-        y, d, cum = MeanMatchNeed.together([n])[0]
-        ref = Pchip(n.x, y)
-        assert ref.d.tobytes() == d.tobytes() and ref.C[0].tobytes() == cum.tobytes()
+        probs.append((edges[:-1], edges[1:], vals, [(0.5, 0.5)] if k % 3 == 0 else []))
+    for fixed in (True, False):
+        sel = [p for p in probs if bool(p[3]) == fixed]
+        g = Rows(np.arange(len(sel))).put(pl=np.array([p[0] for p in sel]), ph=np.array([p[1] for p in sel]),
+                                          pv=np.array([p[2] for p in sel]),
+                                          pfx=np.array([[q[0] for q in p[3]] for p in sel]).reshape(len(sel), -1),
+                                          pfy=np.array([[q[1] for q in p[3]] for p in sel]).reshape(len(sel), -1))
+        for s in property_spline_rows(g, "prop"):
+            for r in range(s.n):
+                one = property_spline(*sel[int(s.index[r])])
+                for a, b in ((one.X[0], s.prop.X[r]), (one.Y[0], s.prop.Y[r]), (one.D[0], s.prop.D[r]),
+                             (one.C[0], s.prop.C[r])):
+                    assert a.tobytes() == b.tobytes()
+                ref = Pchip(one.x, one.y)  # the slopes and integrals handed back are the interpolant's own
+                assert ref.d.tobytes() == one.d.tobytes() and ref.C[0].tobytes() == one.C[0].tobytes()
 
 
 def test_temp_at_node_is_the_inverse_at_every_node():

@@ -1,11 +1,10 @@
-"""Draws of one assay modelled as arrays over draws (build_draws) against each draw built by the reference
-builder (build_models, itself tested against build_model to the last bit).
+"""Draws of one assay modelled together (build_draws: the draws as rows of the one model builder) against each
+draw's assay built alone (build_model, a batch of one).
 
-The expected values are the reference path's own models: the check is that the fast path gives the same
-splines, safe ranges, whole-crude values, flags and cut results to 1e-9 (it gives them to a few ulp: the
-same arithmetic, but numpy's power of an array exponent against a scalar one), and that every draw it does
-not cover is handed to the reference builder.  The random assays are invented; what is checked is the
-identity of the two paths.
+The expected values are each draw's own model: the check is that a draw's model does not depend on the other
+draws built with it (every spline, safe range, whole-crude value and flag to the last bit, the refused draws
+refused with build_model's error), and that the batch cuts as the models do.  The random assays are invented;
+what is checked is the identity of the two uses of the builder.
 """
 
 from __future__ import annotations
@@ -19,62 +18,57 @@ from assaycut.cutting.model_rows import BatchModel
 from assaycut.errors import AssaycutError
 from assaycut.io import load_assay
 from assaycut.model.assay import Assay, CurveData, LightEnds, NarrowCuts
-from assaycut.model.crude import build_models
-from assaycut.model.draws import build_draws
-from assaycut.studies.uncertainty import BAND_QUALITIES, Sigmas, draw_values, monte_carlo, perturb
+from assaycut.model.crude import build_draws, build_model, crude_model_of
+from assaycut.studies.uncertainty import BAND_QUALITIES, Sigmas, draw_values, perturb
+from tests.model.test_build_many import leaves
 
 TOL = 1e-9
 
 
-def spline_arrays(b):
-    return {"X": b.X, "Y": b.Y, "D": b.D, "lo": b.lo, "hi": b.hi}
+def alone(assay):
+    try:
+        return build_model(assay, qualities=False)
+    except AssaycutError as e:
+        return e
 
 
 def assert_rows_match(assay, vals, method="daubert-1994"):
-    """build_draws' rows against the reference models of the same draws; returns the share built fast."""
+    """build_draws' rows against each draw built alone; returns the share of draws modelled."""
     n = vals.sg.size
-    groups, left = build_draws(assay, vals)
-    fast = np.concatenate([g.index for g in groups]) if groups else np.zeros(0, int)
-    assert sorted(fast.tolist() + list(left)) == list(range(n))  # every draw once
-    ref = build_models([vals.assay(assay, r) for r in range(n)], method, qualities=False)
-    ends = default_cut_set().reported()[1]
-    for g in groups:
-        models = [ref[i] for i in g.index]
-        assert not any(isinstance(m, AssaycutError) for m in models)  # a refused draw is never built fast
-        want, got = BatchModel(models), BatchModel.from_rows(g)
-        for name in ("curve", "sg_dist", "sulfur_dist"):
-            w = spline_arrays(want.curve.spline if name == "curve" else getattr(want, name))
-            o = spline_arrays(got.curve.spline if name == "curve" else getattr(got, name))
-            for k in w:
-                assert o[k].shape == w[k].shape, (name, k)
-                np.testing.assert_allclose(o[k], w[k], rtol=TOL, atol=TOL, err_msg=f"{name}.{k}")
-        for a, b in ((got.curve.safe_lo, want.curve.safe_lo), (got.curve.safe_hi, want.curve.safe_hi),
-                     (got.sg, want.sg), (got.sulfur_wt_pct, want.sulfur_wt_pct)):
-            np.testing.assert_allclose(a, b, rtol=TOL, atol=TOL)
-        assert np.array_equal(got.on_extension, want.on_extension)
-        rep = np.repeat(ends[None, :], g.sg.size, axis=0)
+    sets, failed = build_draws(assay, vals, method)
+    ref = [alone(vals.assay(assay, r)) for r in range(n)]
+    built = np.concatenate([s.index for s in sets]) if sets else np.zeros(0, int)
+    assert sorted(built.tolist()) == [r for r in range(n) if not isinstance(ref[r], AssaycutError)]
+    assert failed == sum(isinstance(m, AssaycutError) for m in ref)
+    for s in sets:
+        for r in range(s.n):
+            got, want = dict(leaves(crude_model_of(s, r))), dict(leaves(ref[int(s.index[r])]))
+            assert got.keys() == want.keys()
+            assert not [p for p in got if got[p] != want[p]], int(s.index[r])
+    if sets:
+        ends = default_cut_set().reported()[1]
+        want, got = BatchModel([ref[i] for i in built]), BatchModel.from_rows(sets)
+        rep = np.repeat(ends[None, :], built.size, axis=0)
         cw, co = cut_columns(want, rep, only=set()), cut_columns(got, rep, only=set())
         for q in BAND_QUALITIES + ["extrapolated"]:
             np.testing.assert_allclose(np.asarray(co[q], float), np.asarray(cw[q], float), rtol=TOL, atol=TOL,
                                        err_msg=q)
-    return fast.size / n
+    return built.size / n
 
 
 @pytest.mark.parametrize("k", range(3))
-def test_demo_crude_draws_equal_the_reference_models(demo_paths, k):
+def test_demo_crude_draws_equal_their_models_alone(demo_paths, k):
     a = load_assay(demo_paths[k])
     vals = draw_values(a, Sigmas(), np.random.default_rng([11, k]), 250)
-    # the demo crudes' draws take the common branches: nearly all are built as arrays
     assert assert_rows_match(a, vals) >= 0.95
 
 
-def test_wide_errors_send_odd_draws_to_the_reference_builder(demo_paths):
-    # Large errors (invented) give repeated temperatures, reordered nodes and refused curves: those draws
-    # leave the fast path and are built by the reference builder, the rest still match.
+def test_wide_errors_refuse_some_draws_as_alone(demo_paths):
+    # Large errors (invented) give repeated temperatures, reordered nodes and refused curves: the rows split
+    # into many sets and the refused draws are refused as alone.
     a = load_assay(demo_paths[0])
     vals = draw_values(a, Sigmas(temp_c=25.0, pct=3.0, sg=0.02, sulfur_rel=0.5), np.random.default_rng(3), 200)
-    share = assert_rows_match(a, vals)
-    assert 0.0 < share < 1.0
+    assert 0.0 < assert_rows_match(a, vals) <= 1.0
 
 
 def random_assay(rng, k: int) -> Assay:
@@ -107,22 +101,11 @@ def random_assay(rng, k: int) -> Assay:
 
 
 @pytest.mark.parametrize("k", range(24))
-def test_random_assays_draws_equal_the_reference_models(k):
+def test_random_assays_draws_equal_their_models_alone(k):
     rng = np.random.default_rng(100 + k)
     a = random_assay(rng, k)
     vals = draw_values(a, Sigmas(temp_c=3.0, pct=0.5), np.random.default_rng(k), 60)
     assert_rows_match(a, vals)
-
-
-def test_random_assays_take_the_fast_path_mostly():
-    # Coverage, not correctness: most invented assays' draws are built as arrays (the others' are exact too,
-    # through the reference builder).
-    shares = []
-    for k in range(24):
-        a = random_assay(np.random.default_rng(100 + k), k)
-        groups, _ = build_draws(a, draw_values(a, Sigmas(), np.random.default_rng(k), 40))
-        shares.append(sum(g.sg.size for g in groups) / 40)
-    assert np.mean(np.array(shares) > 0.5) >= 0.5
 
 
 def test_draw_values_are_sequential_draws_in_measurement_order(demo_paths):
@@ -156,22 +139,3 @@ def test_draw_values_are_sequential_draws_in_measurement_order(demo_paths):
                                   np.maximum(a.narrow_cuts.sulfur_wt_pct * (1.0 + e_ncs), 0.0), equal_nan=True)
         one = perturb(a, sig, np.random.default_rng(9))  # perturb is the block's first draw
         assert np.array_equal(one.curves[0].temp_c, block.temp_c[0][0]) and one.sg == block.sg[0]
-
-
-@pytest.mark.parametrize("k", range(3))
-def test_bands_fast_equal_reference(demo_paths, k, monkeypatch):
-    # The bands with the draws modelled as arrays against the bands with every draw left to the model builder
-    # (build_draws replaced here by one that takes none).
-    import assaycut.studies.uncertainty as unc
-
-    a = load_assay(demo_paths[k])
-    cs = default_cut_set()
-    fast = monte_carlo(a, cs, n=300, seed=4)
-    monkeypatch.setattr(unc, "build_draws", lambda assay, vals: ([], list(range(vals.sg.size))))
-    ref = monte_carlo(a, cs, n=300, seed=4)
-    assert fast.attrs == ref.attrs
-    for rf, rr in zip(fast.rows(), ref.rows()):
-        assert rf.keys() == rr.keys() and rf["name"] == rr["name"]
-        for key in rf:
-            if key != "name":
-                np.testing.assert_allclose(rf[key], rr[key], rtol=TOL, atol=TOL, err_msg=key)
