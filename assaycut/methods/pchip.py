@@ -295,12 +295,23 @@ class Pchip:
     @classmethod
     def stack(cls, splines: list) -> "Pchip":
         """The splines (single ones, sets of rows, or None) as the rows of one, padded to the longest (see the
-        class).  A None is one zero spline, flagged in ``missing``."""
-        real = [s if s is not None else Pchip([0.0, 1.0], [0.0, 0.0]) for s in splines]
-        width = max(s.X.shape[1] for s in real)
-        padded = [pad_nodes(s.X, s.Y, s.D, width) for s in real]
-        X, Y, D = (np.concatenate([p[k] for p in padded]) for k in range(3))
-        last = np.concatenate([(s.X <= s.hi[:, None]).sum(axis=1) - 1 for s in real])
+        class).  A None is one zero spline, flagged in ``missing``.  Splines of one width are padded together."""
+        real = [s if s is not None else _ZERO for s in splines]
+        widths = np.array([s.X.shape[1] for s in real])
+        counts = np.array([s.X.shape[0] for s in real])
+        width = int(widths.max())
+        start = np.concatenate([[0], np.cumsum(counts)])
+        X, Y, D = (np.empty((int(start[-1]), width)) for _ in range(3))
+        last = np.empty(int(start[-1]), dtype=int)
+        for w in np.unique(widths):
+            idx = np.flatnonzero(widths == w)
+            c = counts[idx]  # the rows of these splines in the stack
+            at = np.repeat(start[idx] - np.concatenate([[0], np.cumsum(c)[:-1]]), c) + np.arange(int(c.sum()))
+            x = np.concatenate([real[i].X for i in idx])
+            hi = np.concatenate([real[i].hi for i in idx])
+            X[at], Y[at], D[at] = pad_nodes(x, np.concatenate([real[i].Y for i in idx]),
+                                            np.concatenate([real[i].D for i in idx]), width)
+            last[at] = (x <= hi[:, None]).sum(axis=1) - 1
         out = cls(X, Y, D, last=last)
         out.missing = np.concatenate([np.ones(r.rows, dtype=bool) if s is None else r.missing
                                       for s, r in zip(splines, real)])
@@ -438,6 +449,10 @@ def pad_nodes(x, y, d, width: int):
     step = np.arange(1, extra + 1)[None, :]
     return (np.concatenate([x, x[:, -1:] + step], axis=1), np.concatenate([y, np.repeat(y[:, -1:], extra, axis=1)],
             axis=1), np.concatenate([d, np.zeros((x.shape[0], extra))], axis=1))
+
+
+_ZERO = Pchip([0.0, 1.0], [0.0, 0.0])
+"""The zero spline :meth:`Pchip.stack` puts in place of a missing one."""
 
 
 def inverse_table(y, h, d):

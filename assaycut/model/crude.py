@@ -1,14 +1,19 @@
 """The crude model: TBP curve on both bases plus density and sulfur distributions, built from an Assay.
 
-Building it (:func:`build_model`) takes these steps:
+Building it takes these steps:
 
 1. every curve of the assay is put on the TBP basis (:func:`assaycut.model.input_curves.curve_to_tbp`);
    vacuum curves extend the atmospheric one past its last point;
-2. a weight-basis curve is converted to volume (:func:`_to_volume_basis`);
+2. a weight-basis curve is converted to volume (:func:`_weight_basis`);
 3. light ends are placed at the front at their normal boiling points and the curve model is fitted
-   (:func:`assaycut.model.tbp_curve.build_curve`);
+   (:func:`assaycut.model.tbp_curve.curve_rows`);
 4. density and sulfur distributions are fitted to the narrow cuts and reconciled to the whole crude
    (:mod:`assaycut.model.distributions`).
+
+There is one builder, :func:`build_rows`: each step is a function over rows (:mod:`assaycut.model.rows`), run
+on all the assays of one structure at once (:func:`build_models`; :func:`build_model` is a batch of one) or on
+the draws of one assay (:func:`build_draws`).  The warnings and method texts are made row by row beside the
+arrays.
 
 Weight percent follows from the density distribution: W(V) = ∫0^V SG dv / SG_crude.
 """
@@ -204,7 +209,7 @@ def _structure(a: Assay) -> tuple:
 def _assay_rows(assays: list, index, errors: dict) -> Rows:
     """The measured values of assays of one structure (:func:`_structure`) as the rows of one set."""
     nc = [a.narrow_cuts for a in assays]
-    return _rows(assays[0], list(assays), index, errors, np.array([float(a.sg) for a in assays]),
+    g = _rows(assays[0], list(assays), index, errors, np.array([float(a.sg) for a in assays]),
                  np.array([np.nan if a.sulfur_wt_pct is None else float(a.sulfur_wt_pct) for a in assays]),
                  np.array([a.sulfur_wt_pct is not None for a in assays]),
                  [[np.asarray(a.curves[k].percent, dtype=float) for a in assays] for k in range(len(assays[0].curves))],
@@ -213,6 +218,8 @@ def _assay_rows(assays: list, index, errors: dict) -> Rows:
                                              for f in ("start_c", "end_c", "sg", "sulfur_wt_pct")},
                  [[a.light_ends.amounts[key] for key in assays[0].light_ends.amounts] for a in assays]
                  if assays[0].light_ends is not None and assays[0].light_ends.amounts else None)
+    g.checked = True  # validate_assay has checked every value
+    return g
 
 
 def build_draws(assay: Assay, vals, method: str = "daubert-1994") -> tuple[list[Rows], int]:
@@ -247,6 +254,7 @@ def _rows(base: Assay, assays: list, index, errors: dict, sg, sulfur, s_given, p
     None."""
     g = Rows(index, errors)
     g.base = base
+    g.checked = False
     g.put(assay=assays, sg=np.asarray(sg, dtype=float), sulfur=np.asarray(sulfur, dtype=float),
           s_given=np.asarray(s_given, dtype=bool))
     for k in range(len(base.curves)):
@@ -278,9 +286,9 @@ def build_rows(g: Rows, method: str = "daubert-1994") -> list[Rows]:
     base = g.base
     g.put(warn=[[w for c in a.curves for w in c.warnings] for a in g.assay], meth=[{} for _ in range(g.n)])
     whats = [(c.where or f"curve {k}", not c.where) for k, c in enumerate(base.curves, start=1)]
-    faults = value_faults(g.sg, g.sulfur, g.s_given,
-                          [(getattr(g, f"cpct{k}"), getattr(g, f"ctemp{k}")) for k in range(len(base.curves))],
-                          whats)
+    faults = [None] * g.n if g.checked else value_faults(
+        g.sg, g.sulfur, g.s_given, [(getattr(g, f"cpct{k}"), getattr(g, f"ctemp{k}")) for k in range(len(base.curves))],
+        whats)
     g = g.fail([f is not None for f in faults],
                lambda r: InputError(faults[r][0], file=(g.assay[r].source or None) if faults[r][1] else None))
     sets = _tbp_points(g, method)
