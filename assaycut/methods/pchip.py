@@ -12,7 +12,7 @@ monotone wherever the data are monotone.
 Contents
 --------
 - :class:`Pchip`: monotone cubic Hermite interpolants, one or one per row: value, exact integral, exact inverse
-- :func:`pchip_slopes`, :func:`slopes_on`: the node slopes (the one slope routine)
+- :func:`slopes_on`: the node slopes (the one slope routine)
 - :func:`search_rows`: row-wise ``numpy.searchsorted``, each row's answer its own
 - :func:`interval_mean`: a spline's mean over intervals; :func:`pad_nodes`: rows padded to one width
 - :func:`inverse_table`, :func:`newton_on_segment`, :func:`hermite_solve`: the inverse's bracket, Newton steps
@@ -27,7 +27,7 @@ from __future__ import annotations
 import numpy as np
 
 __all__ = ["hermite_basis", "hermite_integral_basis", "hermite_combine", "segment_integrals",
-           "segment_antiderivative", "pchip_slopes", "slopes_on", "search_rows", "Pchip", "pad_nodes",
+           "segment_antiderivative", "slopes_on", "search_rows", "Pchip", "pad_nodes",
            "inverse_table", "newton_on_segment", "interval_mean", "hermite_solve", "INVERSE_TABLE_STEPS",
            "NEWTON_STEPS"]
 
@@ -113,34 +113,9 @@ def segment_antiderivative(t, h, y0, y1, d0, d1):
     return h * hermite_combine(hermite_integral_basis(t), y0, y1, h * d0, h * d1)
 
 
-def pchip_slopes(x: np.ndarray, y: np.ndarray) -> np.ndarray:
-    """Node slopes of the monotone PCHIP interpolant.
-
-    Parameters
-    ----------
-    x : numpy.ndarray
-        Strictly increasing abscissae, shape (n,) or one spline per row (R, n); n >= 2. [any unit]
-    y : numpy.ndarray
-        Ordinates, the shape of x. [any unit]
-
-    Returns
-    -------
-    numpy.ndarray
-        dy/dx at every node, the shape of x.  [unit of y / unit of x]
-
-    Examples
-    --------
-    A straight line keeps its slope everywhere:
-
-    >>> pchip_slopes(np.array([0.0, 1.0, 3.0]), np.array([0.0, 2.0, 6.0])).tolist()
-    [2.0, 2.0, 2.0]
-    """
-    return slopes_on(x)(np.asarray(y, dtype=float))
-
-
 def slopes_on(x: np.ndarray):
-    """A function ``y -> pchip_slopes(x, y)`` for fixed abscissae, with the parts that depend on x alone
-    computed once: for a spline whose node values are adjusted many times, as
+    """A function y -> the node slopes [unit of y / unit of x] of the monotone PCHIP through (x, y), for fixed
+    abscissae x, with the parts that depend on x alone computed once: for a spline whose node values are adjusted many times, as
     :func:`assaycut.model.distributions.property_spline` does.  The one slope routine: a single spline (x of
     shape (n,)) is a batch of one, and every row's slopes are that row's own arithmetic.
 
@@ -157,6 +132,13 @@ def slopes_on(x: np.ndarray):
     -------
     callable
         y (the shape of x) -> dy/dx at every node (the shape of x).
+
+    Examples
+    --------
+    A straight line keeps its slope everywhere:
+
+    >>> slopes_on(np.array([0.0, 1.0, 3.0]))(np.array([0.0, 2.0, 6.0])).tolist()
+    [2.0, 2.0, 2.0]
     """
     x = np.asarray(x, dtype=float)
     one = x.ndim == 1

@@ -76,18 +76,14 @@ def test_flat_step_stays_flat():
 def test_segment_integrals_match_scipy(tv):
     # Reference library: scipy's PchipInterpolator.integrate over each segment; the one segment-integral helper
     # serves Pchip, the batched splines and the property-spline means.
-    from assaycut.methods.pchip import (
-        pchip_slopes,
-        segment_antiderivative,
-        segment_integrals,
-    )
+    from assaycut.methods.pchip import segment_antiderivative, segment_integrals, slopes_on
 
     t, v = tv
     s = PchipInterpolator(t, v)
     h = np.diff(t)
-    got = segment_integrals(h, v, pchip_slopes(t, v))
+    got = segment_integrals(h, v, slopes_on(t)(v))
     assert_allclose(got, [s.integrate(a, b) for a, b in zip(t[:-1], t[1:])], rtol=1e-10, atol=1e-9)
-    half = segment_antiderivative(0.5, h, v[:-1], v[1:], pchip_slopes(t, v)[:-1], pchip_slopes(t, v)[1:])
+    half = segment_antiderivative(0.5, h, v[:-1], v[1:], slopes_on(t)(v)[:-1], slopes_on(t)(v)[1:])
     assert_allclose(half, [s.integrate(a, a + w / 2) for a, w in zip(t[:-1], h)], rtol=1e-10, atol=1e-9)
 
 
