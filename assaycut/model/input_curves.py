@@ -43,13 +43,15 @@ def curve_to_tbp(curve: CurveData, method: str = "daubert-1994") -> tuple[np.nda
     Returns
     -------
     (percent [%], temperature [°C], warnings, description of the method used)
+        The warnings are about this curve and do not name it (the caller prefixes the curve's ``where``); the
+        errors name it.
     """
     if curve.method == "TBP":
         return curve.percent.copy(), curve.temp_c.copy(), [], "TBP as measured"
     if curve.method == "D1160":
         kw = curve.watson_k
         aet = vacuum_to_aet_maxwell_bonnell(curve.temp_c, curve.pressure_mmhg, watson_k=kw)
-        w = [f"{curve.where}: {m}" for m in vacuum_warnings(curve.pressure_mmhg)]
+        w = vacuum_warnings(curve.pressure_mmhg)
         return curve.percent.copy(), np.atleast_1d(np.asarray(aet, float)), w, (
             f"D1160 at {curve.pressure_mmhg:g} mmHg to AET by Maxwell-Bonnell (API TDB 5A1.19), "
             + (f"Watson K correction with the given Kw {kw:g}" if kw is not None else
@@ -65,9 +67,9 @@ def curve_to_tbp(curve: CurveData, method: str = "daubert-1994") -> tuple[np.nda
         desc = "D2887 to TBP by API TDB 3A3.1"
     else:
         raise CurveError(f"{curve.where}: unknown distillation method {curve.method!r}")
-    warnings = [f"{curve.where}: {m}" for m in w]
+    warnings = list(w)
     _refuse_below_methane(out, curve, desc)
-    warnings += _segment_warnings(pts, out, curve, desc)
+    warnings += _segment_warnings(pts, out, desc)
     if len(out) < 2:
         raise CurveError(f"{curve.where}: the {curve.method} curve covers too few standard points "
                          f"({', '.join(f'{k:g} %' for k in pts)}) to convert to TBP")
@@ -84,14 +86,14 @@ def _refuse_below_methane(out: dict, curve: CurveData, desc: str) -> None:
                          f"the curve as method TBP on the wt basis (common practice)")
 
 
-def _segment_warnings(src: dict, out: dict, curve: CurveData, desc: str) -> list[str]:
+def _segment_warnings(src: dict, out: dict, desc: str) -> list[str]:
     """Warnings where a conversion more than doubles or halves a segment (outside the correlation's range)."""
     ks = sorted(out)
     warnings = []
     for lo, hi in zip(ks, ks[1:]):
         d_in, d_out = src[hi] - src[lo], out[hi] - out[lo]
         if d_in > 0 and not 0.5 <= d_out / d_in <= 2.0:
-            warnings.append(f"{curve.where}: {desc} changes the {lo:g}-{hi:g} % segment from {d_in:.0f} to "
+            warnings.append(f"{desc} changes the {lo:g}-{hi:g} % segment from {d_in:.0f} to "
                             f"{d_out:.0f} °C; the curve is probably outside the correlation's range")
     return warnings
 

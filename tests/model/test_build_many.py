@@ -225,3 +225,25 @@ def test_weight_basis_curves_meet_their_nodes():
         m = build_model(a)
         v = m.curve.measured_pct
         assert np.max(np.abs(m.wt_at_vol(v) - pct)) < 1e-9, k
+
+
+def test_curve_warnings_name_their_own_curve_once_in_any_batch():
+    # A conversion's warning (a D1160 pressure above atmospheric, a D86 segment outside the correlation) names
+    # the curve it is about, once, also when assays of one structure from different files are built together.
+    def assay(tag):
+        return Assay(tag, 0.9, [CurveData("TBP", "vol", np.array([0.0, 10, 30, 50]), np.array([30.0, 120, 250, 350]),
+                                          where=f"{tag}.xlsx, sheet 'tbp'"),
+                                CurveData("D1160", "vol", np.array([60.0, 70, 80]), np.array([300.0, 340, 385]),
+                                          pressure_mmhg=900.0, where=f"{tag}.xlsx, sheet 'vacuum'")],
+                     sulfur_wt_pct=1.0)
+
+    def d86(tag):
+        return Assay(tag, 0.85, [CurveData("D86", "vol", np.array([0.0, 10, 30, 50, 70, 90, 95]),
+                                           np.array([20.0, 25, 120, 160, 210, 280, 320]),
+                                           where=f"{tag}.xlsx, sheet 'd86'")])
+
+    for make, word in ((assay, "vacuum method"), (d86, "outside the correlation")):
+        models = build_models([make("first"), make("second")])
+        for m, tag in zip(models, ("first", "second")):
+            hits = [w for w in m.warnings if word in w]
+            assert len(hits) == 1 and hits[0].count(".xlsx") == 1 and hits[0].startswith(f"{tag}.xlsx"), hits
