@@ -10,6 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..model.crude import CrudeModel
+from ..model.distributions import weight_distilled
 from ..methods.pchip import Pchip, interval_mean
 from ..model.tbp_curve import volume_average_temp
 
@@ -93,11 +94,9 @@ class BatchModel:
         out = cls.__new__(cls)
         cat = lambda name: np.concatenate([getattr(s, name) for s in sets])  # noqa: E731
         curve = BatchCurve(None, Pchip.stack([s.spline for s in sets]), cat("safe_lo"), cat("safe_hi"))
+        # a set without a sulfur distribution: zero splines flagged missing (Pchip.stack of None)
         sulfur = Pchip.stack([s.sulfur_dist if s.sulfur_dist is not None else Pchip.stack([None] * s.n)
                               for s in sets])
-        for s, part in zip(sets, np.split(np.arange(sulfur.rows), np.cumsum([s.n for s in sets])[:-1])):
-            if s.sulfur_dist is None:
-                sulfur.missing[part] = True
         n = sum(s.n for s in sets)
         out._setup(curve, Pchip.stack([s.sg_dist for s in sets]), sulfur, cat("sg"),
                    np.concatenate([np.where(s.s_given | (s.sulfur_dist is not None), s.sulfur, np.nan) for s in sets]),
@@ -119,9 +118,9 @@ class BatchModel:
         return arr.reshape((-1,) + (1,) * (np.ndim(like) - 1))
 
     def wt_at_vol(self, vol_pct):
-        """Cumulative wt % distilled at cumulative ``vol_pct``: W(V) = ∫0^V SG dv / SG_crude. [wt %]"""
-        v = np.asarray(vol_pct, dtype=float)
-        return (self.sg_dist.antiderivative(v) - self._col(self._a0, v)) / self._col(self.sg, v)
+        """Cumulative wt % distilled at cumulative ``vol_pct`` [vol %]
+        (:func:`~assaycut.model.distributions.weight_distilled`). [wt %]"""
+        return weight_distilled(self.sg_dist, self._col(self.sg, vol_pct), vol_pct, self._col(self._a0, vol_pct))
 
     def mean_sg(self, va, vb):
         """Volume-average SG over [va, vb] vol %; the point value for an empty interval. [-]"""

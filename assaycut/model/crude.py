@@ -29,7 +29,7 @@ from ..methods.characterisation import sg_from_watson_k, watson_k
 from ..methods.pchip import Pchip, interval_mean
 from ..units import pct_text
 from .assay import Assay, CurveData, validate_assay, value_faults
-from .distributions import cut_positions, density_rows, sulfur_rows, wt_at_vol_rows
+from .distributions import cut_positions, density_rows, sulfur_rows, weight_distilled
 from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
 from .quality_distributions import estimated_sulfur_rows, quality_distributions
@@ -88,9 +88,9 @@ class CrudeModel:
     warnings: list[str] = field(default_factory=list)
 
     def wt_at_vol(self, vol_pct):
-        """Cumulative wt % distilled at cumulative ``vol_pct`` [vol %]. [wt %]"""
-        v = np.asarray(vol_pct, dtype=float)
-        return (self.sg_dist.antiderivative(v) - self.sg_dist.antiderivative(0.0)) / self.sg
+        """Cumulative wt % distilled at cumulative ``vol_pct`` [vol %]
+        (:func:`~assaycut.model.distributions.weight_distilled`). [wt %]"""
+        return weight_distilled(self.sg_dist, self.sg, vol_pct)
 
     def vol_at_wt(self, wt_pct):
         """Cumulative vol % at cumulative ``wt_pct`` [wt %] (vectorised bisection on W(V)). [vol %]"""
@@ -210,14 +210,14 @@ def _assay_rows(assays: list, index, errors: dict) -> Rows:
     """The measured values of assays of one structure (:func:`_structure`) as the rows of one set."""
     nc = [a.narrow_cuts for a in assays]
     g = _rows(assays[0], list(assays), index, errors, np.array([float(a.sg) for a in assays]),
-                 np.array([np.nan if a.sulfur_wt_pct is None else float(a.sulfur_wt_pct) for a in assays]),
-                 np.array([a.sulfur_wt_pct is not None for a in assays]),
-                 [[np.asarray(a.curves[k].percent, dtype=float) for a in assays] for k in range(len(assays[0].curves))],
-                 [[np.asarray(a.curves[k].temp_c, dtype=float) for a in assays] for k in range(len(assays[0].curves))],
-                 None if nc[0] is None else {f: [getattr(x, f) for x in nc]
-                                             for f in ("start_c", "end_c", "sg", "sulfur_wt_pct")},
-                 [[a.light_ends.amounts[key] for key in assays[0].light_ends.amounts] for a in assays]
-                 if assays[0].light_ends is not None and assays[0].light_ends.amounts else None)
+              np.array([np.nan if a.sulfur_wt_pct is None else float(a.sulfur_wt_pct) for a in assays]),
+              np.array([a.sulfur_wt_pct is not None for a in assays]),
+              [[np.asarray(a.curves[k].percent, dtype=float) for a in assays] for k in range(len(assays[0].curves))],
+              [[np.asarray(a.curves[k].temp_c, dtype=float) for a in assays] for k in range(len(assays[0].curves))],
+              None if nc[0] is None else {f: [getattr(x, f) for x in nc]
+                                          for f in ("start_c", "end_c", "sg", "sulfur_wt_pct")},
+              [[a.light_ends.amounts[key] for key in assays[0].light_ends.amounts] for a in assays]
+              if assays[0].light_ends is not None and assays[0].light_ends.amounts else None)
     g.checked = True  # validate_assay has checked every value
     return g
 
@@ -281,7 +281,7 @@ def build_rows(g: Rows, method: str = "daubert-1994") -> list[Rows]:
     narrow cuts' positions on it, the density and sulfur distributions
     (:func:`~assaycut.model.distributions.density_rows`, :func:`~assaycut.model.distributions.sulfur_rows`,
     :func:`~assaycut.model.quality_distributions.estimated_sulfur_rows`).  Each stage splits the set where rows
-    take different branches; the leaves come back, each with the row fields :func:`_crude_model` reads.
+    take different branches; the leaves come back, each with the row fields :func:`crude_model_of` reads.
     """
     base = g.base
     g.put(warn=[[w for c in a.curves for w in c.warnings] for a in g.assay], meth=[{} for _ in range(g.n)])
@@ -316,36 +316,34 @@ def _tbp_points(g: Rows, method: str) -> list[Rows]:
 
 
 def _curve_on_tbp(g: Rows, k: int, method: str) -> list[Rows]:
-    """Curve ``k`` of every row on the TBP basis (row fields ``cp``, ``ct``); its method described in
-    ``meth['curve']`` (main curve) or returned on the set (``cdesc``)."""
+    """Curve ``k`` of every row on the TBP basis: row fields ``cp``, ``ct`` (the points), ``cw`` (the conversion's
+    warnings, naming the row's own curve) and ``cdesc`` (the method used); sets split by the points converted."""
     c = g.base.curves[k]
     P, T = getattr(g, f"cpct{k}"), getattr(g, f"ctemp{k}")
+    done = False
     if c.method in ("TBP", "D1160"):  # point by point: all rows at once (a refusal: row by row, below)
         try:
             p, t, w, desc = curve_to_tbp(CurveData(c.method, c.basis, P, T, c.pressure_mmhg, c.where, [],
                                                    c.watson_k), method)
+            cp, ct, warns, descs, done = p.reshape(P.shape), t.reshape(P.shape), [w] * g.n, [desc] * g.n, True
         except AssaycutError:
-            p = None
-    if c.method in ("TBP", "D1160") and p is not None:
-        g.put(cp=p.reshape(P.shape), ct=t.reshape(P.shape), cw=[[f"{a.curves[k].where}: {m}" for m in w]
-                                                               for a in g.assay], cdesc=[desc] * g.n)
-        return [g]
-    res: list = []
-    for r in range(g.n):  # at standard points: row by row, rows grouped by the points converted
-        row = g.assay[r].curves[k]
-        try:
-            res.append(curve_to_tbp(CurveData(c.method, c.basis, P[r], T[r], c.pressure_mmhg, row.where, [],
-                                              c.watson_k), method))
-        except AssaycutError as e:
-            res.append(e)
-    g = g.fail([isinstance(x, AssaycutError) for x in res], lambda r: res[r])
-    res = [x for x in res if not isinstance(x, AssaycutError)]
+            pass
+    if not done:  # at standard points: row by row
+        res: list = []
+        for r in range(g.n):
+            try:
+                res.append(curve_to_tbp(CurveData(c.method, c.basis, P[r], T[r], c.pressure_mmhg,
+                                                  g.assay[r].curves[k].where, [], c.watson_k), method))
+            except AssaycutError as e:
+                res.append(e)
+        g = g.fail([isinstance(x, AssaycutError) for x in res], lambda r: res[r])
+        res = [x for x in res if not isinstance(x, AssaycutError)]
+        cp, ct, warns, descs = ([x[j] for x in res] for j in range(4))
     if not g.n:
         return []
-    g.put(cp=[x[0] for x in res], ct=[x[1] for x in res],
-          cw=[[f"{a.curves[k].where}: {m}" for m in x[2]] for a, x in zip(g.assay, res)], cdesc=[x[3] for x in res])
+    g.put(cp=cp, ct=ct, cdesc=descs, cw=[[f"{a.curves[k].where}: {m}" for m in w] for a, w in zip(g.assay, warns)])
     out = []
-    for s in g.split(np.array([x.size for x in g.cp])):
+    for s in g.split(np.array([len(x) for x in g.cp])):  # rows grouped by the points converted
         s.put(cp=np.array(s.cp), ct=np.array(s.ct))
         out.append(s)
     return out
@@ -377,6 +375,8 @@ def _vacuum_behind(g: Rows, k: int, method: str) -> list[Rows]:
                     m["vacuum curve"] = d
             out.append(u)
     return out
+
+
 WT_NODE_TOL = 1e-9
 """How closely a weight-basis curve's own nodes are reproduced by the model's wt % distilled. [wt %]"""
 FREEZE_FIT_WT = 1e-6
@@ -412,7 +412,7 @@ def _weight_basis(g: Rows) -> list[Rows]:
         trial.put(warn=[list(w) for w in pending.warn], meth=[dict(m) for m in pending.meth])
         again = []
         for s in _model_set(trial):
-            miss = s.p - wt_at_vol_rows(s, s.v)
+            miss = s.p - weight_distilled(s.sg_dist, s.sg[:, None], s.v)
             worst = np.max(np.abs(miss), axis=1)
             ok = worst < WT_NODE_TOL
             for r in np.flatnonzero(ok):

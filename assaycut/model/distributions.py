@@ -287,11 +287,17 @@ def _density_at_constant_kw(g: Rows, gas: bool) -> list[Rows]:
     return [g.put(raw=raw, dens_src=src, kw=kw)]
 
 
-def wt_at_vol_rows(g: Rows, vol_pct):
-    """Cumulative wt % distilled at cumulative vol % (R, m) of each row's density distribution ``sg_dist``:
-    W(V) = ∫0^V SG dv / SG_crude. [wt %]"""
-    a0 = g.sg_dist.antiderivative(np.zeros((g.n, 1)))
-    return (g.sg_dist.antiderivative(vol_pct) - a0) / g.sg[:, None]
+def weight_distilled(sg_dist: Pchip, sg, vol_pct, a0=None):
+    """Cumulative wt % distilled at cumulative vol % ``vol_pct``: W(V) = ∫0^V SG dv / SG_crude, the mass distilled
+    over the crude's (the model's definition of the weight basis). [wt %]
+
+    ``sg_dist``: SG [-] against vol % distilled, one spline or rows (a query's first axis then runs over the
+    rows); ``sg``: the crude's SG [-], and ``a0``: the spline's antiderivative at 0 % (found here when not
+    given), each shaped to broadcast against the answer.
+    """
+    if a0 is None:
+        a0 = sg_dist.antiderivative(0.0 if sg_dist.single else np.zeros((sg_dist.rows, 1)))
+    return (sg_dist.antiderivative(np.asarray(vol_pct, dtype=float)) - a0) / sg
 
 
 def sulfur_rows(g: Rows) -> list[Rows]:
@@ -323,7 +329,7 @@ def _sulfur_set(g: Rows) -> list[Rows]:
         return [_no_sulfur(g)]
     k = g.va.shape[1]
     le_x = g.le_mid if bool(g.placed[0]) else np.zeros((g.n, 0))
-    w = wt_at_vol_rows(g, np.concatenate([g.va, g.vb, le_x], axis=1))  # one call
+    w = weight_distilled(g.sg_dist, g.sg[:, None], np.concatenate([g.va, g.vb, le_x], axis=1))  # one call
     g.put(wa=w[:, :k], wb=w[:, k:2 * k], le_w=w[:, 2 * k:])
     out = []
     for s in g.split(np.isfinite(g.nc_s) & (g.wb > g.wa)):

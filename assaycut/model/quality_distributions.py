@@ -27,7 +27,7 @@ from ..methods.fraction_properties import (
 )
 from ..methods.pchip import Pchip, interval_mean
 from .assay import Assay
-from .distributions import narrow_cut_positions, property_spline_rows, wt_at_vol_rows
+from .distributions import narrow_cut_positions, property_spline_rows, weight_distilled
 from .lightends import GAS_RANGE_MAX_C
 from .rows import Rows
 from .tbp_curve import volume_average_temp
@@ -218,7 +218,7 @@ def estimated_sulfur_rows(g: Rows) -> list[Rows]:
         heavy_form = np.maximum(mw, 200.0)  # the M >= 200 form for every slice: see the docstring
         s = np.where(tb < GAS_RANGE_MAX_C, 0.0, sulfur_riazi_1999(heavy_form, sg, ri, m))
     s = np.maximum.accumulate(np.nan_to_num(s, nan=0.0), axis=1)
-    w = wt_at_vol_rows(g, np.concatenate([va, vb], axis=1))
+    w = weight_distilled(g.sg_dist, g.sg[:, None], np.concatenate([va, vb], axis=1))
     g.put(pl=w[:, :SULFUR_SLICES], ph=w[:, SULFUR_SLICES:], pv=s, pfx=np.zeros((g.n, 0)), pfy=np.zeros((g.n, 0)))
     out = property_spline_rows(g, "raw")
     for t in out:

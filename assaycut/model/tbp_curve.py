@@ -297,7 +297,6 @@ def _extend(g: Rows) -> list[Rows]:
         g = g.fail([not isinstance(f, RiaziFit) for f in g.fit], lambda r: g.fit[r])
         if not g.n:
             return []
-        v, t = g.mv, g.mt
         for r, f in enumerate(g.fit):
             if f.rms_c > POOR_FIT_RMS_C:
                 g.cwarn[r].append(f"the distribution fitted for the curve's extension deviates from the measured "
