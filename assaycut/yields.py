@@ -90,7 +90,8 @@ METHOD_NOTES = {
 
 def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
                method: str = "daubert-1994", model: CrudeModel | None = None, uncertainty_draws: int = 0,
-               sigmas=None, rate_bbl_per_day: float | None = None, progress=None, map_fn=map) -> YieldResult:
+               sigmas=None, rate_bbl_per_day: float | None = None, progress=None, map_fn=map,
+               scale_cuts: bool = False) -> YieldResult:
     """Model, cut and check one assay.
 
     Parameters
@@ -113,12 +114,15 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         ``progress(done, total)`` during the uncertainty draws.
     map_fn : callable
         Map-like callable sharing the uncertainty draws out (see :func:`~assaycut.studies.uncertainty.monte_carlo`).
+    scale_cuts : bool
+        Scale the narrow cuts to the whole crude instead of keeping them as measured (``reconcile`` of
+        :func:`~assaycut.model.crude.build_model`), for the model and the uncertainty draws.
 
     Returns
     -------
     YieldResult
     """
-    model = model or build_model(assay, method)
+    model = model or build_model(assay, method, reconcile=scale_cuts)
     products = None
     if cut_set.overlaps:
         from .cutting.real_column import fractionate
@@ -135,6 +139,7 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
         from .studies.uncertainty import Sigmas, monte_carlo
 
         res.bands = monte_carlo(assay, cut_set, sigmas or Sigmas(), uncertainty_draws, method=method,
+                                scale_cuts=scale_cuts,
                                 progress=progress, map_fn=map_fn)
         res.methods["uncertainty"] = (f"Monte Carlo over the curve model, {res.bands.attrs['draws']} draws "
                                       f"({res.bands.attrs['failed']} failed); ideal cuts; "
@@ -241,9 +246,7 @@ def _cut_warnings(cuts: CutTable, model: CrudeModel) -> list[str]:
 def _notes(assay: Assay, model: CrudeModel, clo: dict[str, float]) -> list[str]:
     """The cautions, the reconciliations, the closure residual and the assay's own notes."""
     notes = list(CAUTIONS)
-    notes.append(f"density reconciliation {model.density_reconciliation_pct:+.2f} %"
-                 + (f"; sulfur reconciliation {model.sulfur_reconciliation_pct:+.2f} %"
-                    if model.sulfur_reconciliation_pct is not None else ""))
+    notes += model.balance_notes()
     notes.append(f"closure residual: vol {residual_text(clo['vol_pct'])} %, wt {residual_text(clo['wt_pct'])} %")
     notes += [f"assay note: {n}" for n in assay.notes]
     return notes

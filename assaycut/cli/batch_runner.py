@@ -35,6 +35,7 @@ class YieldJob:
     unit: str = "C"  # display unit of the report's temperatures ('C' or 'F')
     claims: str = ""  # the run's claims folder for report folder names (see claim_folder); "" for one assay
     output: str = "result"  # what comes back of each assay: one of OUTPUTS
+    scale_cuts: bool = False  # narrow cuts scaled to the whole crude instead of kept as measured
 
 
 OUTPUTS = {
@@ -130,7 +131,8 @@ def run_one(path: str, job: YieldJob, progress=None, map_fn=map):
         assay = _load(path, job)
         result = run_yields(assay, job.cut_set, job.limits, method=job.method,
                             uncertainty_draws=job.uncertainty_draws, sigmas=job.sigmas,
-                            rate_bbl_per_day=job.rate_bbl_per_day, progress=progress, map_fn=map_fn)
+                            rate_bbl_per_day=job.rate_bbl_per_day, progress=progress, map_fn=map_fn,
+                            scale_cuts=job.scale_cuts)
         return _deliver(result, job)
     except Exception as exc:  # a batch goes on; the failure is reported with its path
         return None, [], _failure(path, exc)
@@ -215,12 +217,12 @@ def run_chunk(paths: list[str], job: YieldJob) -> list:
         except Exception as exc:
             outcomes[i] = (None, [], _failure(p, exc))
     try:  # the models of the chunk built together (each the model build_model gives)
-        built = build_models([a for _, a in loaded], job.method)
+        built = build_models([a for _, a in loaded], job.method, reconcile=job.scale_cuts)
     except Exception:  # a programming error: build them one by one, so that it names its own file
         built = []
         for i, a in loaded:
             try:
-                built.append(build_model(a, job.method))
+                built.append(build_model(a, job.method, reconcile=job.scale_cuts))
             except Exception as exc:
                 built.append(exc)
     good = []

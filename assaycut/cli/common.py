@@ -212,6 +212,10 @@ PricesOpt = Annotated[Optional[Path], typer.Option("--prices", help="Price file 
                                                     "per_bbl or per_t, optional [crudes] prices.", dir_okay=False)]
 EndOpt = Annotated[Optional[list[str]], typer.Option("--end", help="Override one cut's end: NAME=TEMP_C. "
                                                       "Repeatable.", metavar="NAME=TEMP_C")]
+ScaleOpt = Annotated[bool, typer.Option(
+    "--scale-cuts", help="Scale the narrow cuts' density and sulfur proportionally so that they reproduce the whole "
+                         "crude, instead of keeping them as measured and closing the balance on the part of the crude "
+                         "they do not cover.")]
 ApiOpt = Annotated[Optional[float], typer.Option("--api", help="Whole-crude API gravity [°API], for a curve CSV.")]
 SgOpt = Annotated[Optional[float], typer.Option("--sg", help="Whole-crude SG 60/60 °F, for a curve CSV.")]
 DensOpt = Annotated[Optional[float], typer.Option("--density", help="Whole-crude density at 15 °C [kg/m3], "

@@ -18,6 +18,7 @@ from .common import (
     JsonOpt,
     LimitsOpt,
     RateOpt,
+    ScaleOpt,
     SgOpt,
     SulfurOpt,
     TdMethod,
@@ -84,6 +85,7 @@ def yields(
     sigma_pct: SigPctOpt = 0.3,
     sigma_sg: SigSgOpt = 0.0005,
     sigma_sulfur: SigSOpt = 3.0,
+    scale_cuts: ScaleOpt = False,
 ) -> None:
     """Cut assays at the cut points and report yields and qualities per cut (the main job).
 
@@ -111,7 +113,7 @@ def yields(
                    single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
                    sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
                    unit=unit.value, claims=new_claims() if root is not None and len(paths) > 1 else "",
-                   output=output)
+                   output=output, scale_cuts=scale_cuts)
     try:
         results, written, failures = run_batch(paths, job)
     finally:
@@ -172,6 +174,7 @@ def check(
     sg: SgOpt = None,
     density: DensOpt = None,
     sulfur: SulfurOpt = None,
+    scale_cuts: ScaleOpt = False,
 ) -> None:
     """Check an assay's quality: closure, gravity agreement, curve coverage, narrow cuts, sulfur balance.
 
@@ -183,7 +186,7 @@ def check(
 
     path = resolve_assays([assay] if assay else None)[0]
     a = load(path, api, sg, density, sulfur)
-    findings = check_assay(a, build_model(a))
+    findings = check_assay(a, build_model(a, reconcile=scale_cuts))
     ok = not any(f.severity == "error" for f in findings)
     if json_out:
         from ..report.jsonout import check_json

@@ -193,7 +193,7 @@ class Explorer:
             crudes.append({
                 "name": c.name, "source": c.path, "origin": c.assay.origin,
                 "api": json_safe(c.assay.api), "sg": json_safe(c.assay.sg),
-                "sulfur_wt_pct": json_safe(c.model.sulfur_wt_pct),
+                "sulfur_wt_pct": json_safe(c.model.given_sulfur_wt_pct),
                 "curve": {"vol_pct": grid.tolist(), "temp_c": [round(float(t), 3) for t in curve.temp_at(grid)]},
                 "measured_vol_pct": [json_safe(curve.measured_lo), json_safe(curve.measured_hi)],
             })

@@ -116,7 +116,7 @@ def segment_antiderivative(t, h, y0, y1, d0, d1):
 def slopes_on(x: np.ndarray):
     """A function y -> the node slopes [unit of y / unit of x] of the monotone PCHIP through (x, y), for fixed
     abscissae x, with the parts that depend on x alone computed once: for a spline whose node values are adjusted many times, as
-    :func:`assaycut.model.distributions.property_spline` does.  The one slope routine: a single spline (x of
+    :func:`assaycut.model.property_splines.property_spline` does.  The one slope routine: a single spline (x of
     shape (n,)) is a batch of one, and every row's slopes are that row's own arithmetic.
 
     Fritsch & Carlson (1980) interior slopes in the weighted harmonic-mean form of Fritsch & Butland (1984):

@@ -20,102 +20,24 @@ Weight percent follows from the density distribution: W(V) = ∫0^V SG dv / SG_c
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
-
 import numpy as np
 
 from ..errors import AssaycutError, CurveError, InputError
 from ..methods.characterisation import sg_from_watson_k, watson_k
-from ..methods.pchip import Pchip, interval_mean
+from ..methods.pchip import Pchip
 from ..units import pct_text
 from .assay import Assay, CurveData, validate_assay, value_faults
-from .distributions import cut_positions, density_rows, sulfur_rows, weight_distilled
+from .crude_model import CrudeModel
+from .distributions import closure_text, cut_positions, density_rows, sulfur_rows, weight_distilled
 from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
 from .quality_distributions import estimated_sulfur_rows, quality_distributions
 from .rows import Rows, each
-from .tbp_curve import TbpCurve, curve_rows, staircase, tbp_curve_of
+from .tbp_curve import curve_rows, staircase, tbp_curve_of
 
 
-@dataclass
-class CrudeModel:
-    """Whole-crude model used by cutting and the studies.
-
-    Attributes
-    ----------
-    curve : TbpCurve
-        TBP [°C] vs vol % distilled.
-    sg_dist : Pchip
-        SG 60/60 °F [-] against vol % distilled (reconciled).
-    sulfur_dist : Pchip or None
-        Sulfur [wt %] against wt % distilled (reconciled); None without narrow-cut sulfur.
-    sg : float
-        Whole-crude SG 60/60 °F. [-]
-    sulfur_wt_pct : float or None
-        Whole-crude sulfur. [wt %]
-    density_reconciliation_pct : float
-        Scale applied to the density distribution, (factor - 1) * 100. [%]
-    sulfur_reconciliation_pct : float or None
-        Scale applied to the sulfur distribution, (factor - 1) * 100. [%]
-    density_source : str
-        'narrow cuts' or 'constant Watson K'.
-    watson_k_fit : float or None
-        Watson K fitted to the whole-crude SG when density comes from constant Watson K. [-]
-    sulfur_estimated : bool
-        Cut sulfur is estimated from the whole-crude sulfur (no narrow-cut sulfur).
-    qualities : dict of str to Quality
-        The other narrow-cut qualities (:mod:`assaycut.model.quality_distributions`).
-    all_on_extension : str
-        Why every cut's gravity (and what follows from it: weight yields, Watson K, sulfur, estimates) depends
-        on the curve's fitted extension; empty when it does not (:func:`_properties_on_extension`).
-    methods : dict
-    warnings : list of str
-    """
-
-    curve: TbpCurve
-    sg_dist: Pchip
-    sulfur_dist: Pchip | None
-    sg: float
-    sulfur_wt_pct: float | None
-    density_reconciliation_pct: float
-    sulfur_reconciliation_pct: float | None
-    density_source: str
-    watson_k_fit: float | None = None
-    all_on_extension: str = ""
-    sulfur_estimated: bool = False
-    qualities: dict = field(default_factory=dict)
-    methods: dict[str, str] = field(default_factory=dict)
-    warnings: list[str] = field(default_factory=list)
-
-    def wt_at_vol(self, vol_pct):
-        """Cumulative wt % distilled at cumulative ``vol_pct`` [vol %]
-        (:func:`~assaycut.model.distributions.weight_distilled`). [wt %]"""
-        return weight_distilled(self.sg_dist, self.sg, vol_pct)
-
-    def vol_at_wt(self, wt_pct):
-        """Cumulative vol % at cumulative ``wt_pct`` [wt %] (vectorised bisection on W(V)). [vol %]"""
-        w = np.asarray(wt_pct, dtype=float)
-        lo = np.zeros_like(w)
-        hi = np.full_like(w, 100.0)
-        for _ in range(50):
-            mid = 0.5 * (lo + hi)
-            below = self.wt_at_vol(mid) < w
-            lo = np.where(below, mid, lo)
-            hi = np.where(below, hi, mid)
-        return 0.5 * (lo + hi)
-
-    def mean_sg(self, va, vb):
-        """Volume-average SG over [va, vb] vol %; the point value for an empty interval. [-]"""
-        return interval_mean(self.sg_dist, va, vb)
-
-    def mean_sulfur(self, wa, wb):
-        """Weight-average sulfur over [wa, wb] wt %; NaN without a sulfur distribution. [wt %]"""
-        if self.sulfur_dist is None:
-            return np.full(np.broadcast(np.asarray(wa), np.asarray(wb)).shape, np.nan)
-        return interval_mean(self.sulfur_dist, wa, wb)
-
-
-def build_model(assay: Assay, method: str = "daubert-1994", qualities: bool = True) -> CrudeModel:
+def build_model(assay: Assay, method: str = "daubert-1994", qualities: bool = True,
+                reconcile: bool = False) -> CrudeModel:
     """Build the crude model from an assay (the steps are in the module docstring): :func:`build_models` of one.
 
     Parameters
@@ -126,6 +48,10 @@ def build_model(assay: Assay, method: str = "daubert-1994", qualities: bool = Tr
     qualities : bool
         Build the narrow-cut quality distributions (default); a study that reads only yields, gravity and
         sulfur skips them.
+    reconcile : bool
+        Scale the narrow cuts' density and sulfur proportionally to reproduce the whole-crude values, instead
+        of keeping them as measured and closing the balance on the part of the crude they do not cover
+        (:func:`~assaycut.model.closure.closed_by_difference`, the default).
 
     Returns
     -------
@@ -138,13 +64,13 @@ def build_model(assay: Assay, method: str = "daubert-1994", qualities: bool = Tr
     CurveError
         For a curve that cannot be modelled.
     """
-    out = build_models([assay], method, qualities)[0]
+    out = build_models([assay], method, qualities, reconcile)[0]
     if isinstance(out, AssaycutError):
         raise out
     return out
 
 
-def build_models(assays, method: str = "daubert-1994", qualities: bool = True) -> list:
+def build_models(assays, method: str = "daubert-1994", qualities: bool = True, reconcile: bool = False) -> list:
     """Build many crude models together: the one model builder.
 
     The assays are grouped by structure (the same curves, point counts, light-ends components and narrow-cut
@@ -157,7 +83,7 @@ def build_models(assays, method: str = "daubert-1994", qualities: bool = True) -
     assays : sequence of Assay
     method : str
         As for :func:`build_model`.
-    qualities : bool
+    qualities, reconcile : bool
         As for :func:`build_model`.
 
     Returns
@@ -179,7 +105,7 @@ def build_models(assays, method: str = "daubert-1994", qualities: bool = True) -
     for idx in groups.values():
         for k in range(0, len(idx), BUILD_CHUNK):
             part = idx[k:k + BUILD_CHUNK]
-            for s in build_rows(_assay_rows([assays[i] for i in part], part, errors), method):
+            for s in build_rows(_assay_rows([assays[i] for i in part], part, errors), method, reconcile):
                 for r in range(s.n):
                     out[int(s.index[r])] = crude_model_of(s, r)
     for i, e in errors.items():
@@ -222,7 +148,7 @@ def _assay_rows(assays: list, index, errors: dict) -> Rows:
     return g
 
 
-def build_draws(assay: Assay, vals, method: str = "daubert-1994") -> tuple[list[Rows], int]:
+def build_draws(assay: Assay, vals, method: str = "daubert-1994", reconcile: bool = False) -> tuple[list[Rows], int]:
     """The crude models of R draws of one assay's measured values (:class:`~assaycut.model.draws.DrawValues`),
     built together by :func:`build_rows` as rows (what :meth:`~assaycut.cutting.model_rows.BatchModel.from_rows`
     cuts), and the number of draws that could not be modelled.  Each draw's model is the one
@@ -241,7 +167,7 @@ def build_draws(assay: Assay, vals, method: str = "daubert-1994") -> tuple[list[
               None if nc is None else {"start_c": rep(nc.start_c), "end_c": rep(nc.end_c), "sg": vals.nc_sg,
                                        "sulfur_wt_pct": vals.nc_sulfur_wt_pct},
               rep(list(le.amounts.values())) if le is not None and le.amounts else None)
-    leaves = build_rows(g, method)
+    leaves = build_rows(g, method, reconcile)
     return leaves, len(g.errors)
 
 
@@ -271,7 +197,7 @@ def _rows(base: Assay, assays: list, index, errors: dict, sg, sulfur, s_given, p
     return g
 
 
-def build_rows(g: Rows, method: str = "daubert-1994") -> list[Rows]:
+def build_rows(g: Rows, method: str = "daubert-1994", reconcile: bool = False) -> list[Rows]:
     """The crude models of a set of rows of one structure (:func:`_assay_rows`, or the draws of one assay), built
     row-wise stage by stage; the rows' errors go to the set's error record.
 
@@ -284,6 +210,7 @@ def build_rows(g: Rows, method: str = "daubert-1994") -> list[Rows]:
     take different branches; the leaves come back, each with the row fields :func:`crude_model_of` reads.
     """
     base = g.base
+    g.reconcile = reconcile
     g.put(warn=[[w for c in a.curves for w in c.warnings] for a in g.assay], meth=[{} for _ in range(g.n)])
     whats = [(c.where or f"curve {k}", not c.where) for k, c in enumerate(base.curves, start=1)]
     faults = [None] * g.n if g.checked else value_faults(
@@ -464,8 +391,13 @@ def _model_set(g: Rows) -> list[Rows]:
     out = each(out, density_rows)
     for s in out:
         for r in range(s.n):
-            s.meth[r]["density"] = (f"{s.dens_src[r]}; scaled by {s.dens_rec[r]:+.2f} % to reproduce the whole-crude "
-                                    f"SG {s.sg[r]:.4f}")
+            if np.isfinite(s.sg_gap_pct[r]):  # kept as measured, closed on the gaps
+                s.meth[r]["density"] = (s.dens_src[r].replace("narrow-cut densities", "narrow-cut densities kept as "
+                                                              "measured", 1)
+                                        + closure_text(s.sg_gap_pct[r], "vol %", s.sg_closure[r], "SG", "SG", 4))
+            else:
+                s.meth[r]["density"] = (f"{s.dens_src[r]}; scaled by {s.dens_rec[r]:+.2f} % to reproduce the "
+                                        f"whole-crude SG {s.sg_given[r]:.4f}")
         _properties_on_extension(s)
     out = each(out, sulfur_rows)
     done = []
@@ -556,10 +488,16 @@ def crude_model_of(g: Rows, r: int) -> CrudeModel:
     given = bool(g.s_given[r])
     has_sulfur = g.sulfur_dist is not None
     return CrudeModel(tbp_curve_of(g, r), one(g.sg_dist), one(g.sulfur_dist) if has_sulfur else None,
-                      float(g.sg[r]), float(g.sulfur[r]) if (given or has_sulfur) else None, float(g.dens_rec[r]),
-                      float(g.s_rec[r]) if has_sulfur and not g.estimated else None, g.dens_src[r],
+                      float(g.sg[r]), float(g.sulfur[r]) if (given or has_sulfur) else None, _num(g.dens_rec[r]),
+                      _num(g.s_rec[r]) if has_sulfur and not g.estimated else None, g.dens_src[r],
                       None if np.isnan(g.kw[r]) else float(g.kw[r]), g.on_ext[r], g.estimated,
+                      float(g.sg_closure[r]), float(g.s_closure[r]), float(g.sg_gap_pct[r]), float(g.s_gap_pct[r]),
                       methods=g.meth[r], warnings=g.warn[r])
+
+
+def _num(x) -> float | None:
+    """A float, or None for NaN."""
+    return None if np.isnan(x) else float(x)
 
 
 def _wt_to_vol(g: Rows) -> np.ndarray:

@@ -1,9 +1,10 @@
 """Property distributions of the crude model: density against volume distilled, sulfur against weight
-distilled, each a monotone spline through the narrow-cut measurements that reproduces each cut's mean.
+distilled, each a monotone spline that reproduces every measured narrow cut's mean
+(:mod:`assaycut.model.property_splines`), with the whole-crude balance closed on the part of the crude the cuts
+do not cover (:mod:`assaycut.model.closure`).
 
 Built row-wise for a set of crude models under construction (:class:`~assaycut.model.rows.Rows`, the model
-builder's stages :func:`density_rows` and :func:`sulfur_rows`); one spline alone is a set of one
-(:func:`property_spline`).
+builder's stages :func:`density_rows` and :func:`sulfur_rows`).
 """
 
 from __future__ import annotations
@@ -12,9 +13,11 @@ import numpy as np
 
 from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
-from ..methods.pchip import Pchip, hermite_combine, hermite_integral_basis, search_rows, segment_integrals, slopes_on
+from ..methods.pchip import Pchip
 from .assay import Assay
+from .closure import DENSITY_CLOSURE, GAP_MIN_PCT, SULFUR_CLOSURE, closed_by_difference, closure_text
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
+from .property_splines import property_spline_rows
 from .rows import Rows, each
 
 
@@ -36,141 +39,6 @@ def narrow_cut_positions(assay: Assay, curve):
     return cut_positions(curve.spline, nc.start_c, nc.end_c)
 
 
-def property_spline(lo, hi, values, fixed=(), iterations: int = 30, floor: float | None = 0.0) -> Pchip:
-    """Monotone property curve through narrow-cut values placed at their mid percent, adjusted so that its
-    average over each narrow cut reproduces the measured value (:func:`property_spline_rows` of one row).
-
-    Each measured value sits at the middle of its cut [lo, hi]; the PCHIP through them (held flat beyond the
-    outermost points) is then corrected by fixed-point iteration, y_i <- y_i + (measured_i - mean_i), until
-    the spline's mean over every cut matches its measurement (to 1e-7 of the largest value, or the best found
-    before the correction stops improving).
-
-    Parameters
-    ----------
-    lo, hi : array_like
-        Cut boundaries on the property's basis. [%]
-    values : array_like
-        Measured cut averages (SG [-] or sulfur [wt %]).
-    fixed : sequence of (x [%], value)
-        Extra points held as given (pure light-ends components).
-    floor : float or None
-        Lowest node value allowed during the correction (0 for contents; None for an index that may be
-        negative).
-
-    Returns
-    -------
-    Pchip
-        Property against percent distilled.
-    """
-    row = lambda z: np.asarray(z, dtype=float).reshape(1, -1)  # noqa: E731
-    g = Rows([0]).put(pl=row(lo), ph=row(hi), pv=row(values), pfx=row([q[0] for q in fixed]),
-                      pfy=row([q[1] for q in fixed]))
-    sp = property_spline_rows(g, "prop", iterations, floor)[0].prop
-    return Pchip(sp.X[0], sp.Y[0], sp.D[0], sp.C[0])
-
-
-def property_spline_rows(g: Rows, name: str, iterations: int = 30, floor: float | None = 0.0) -> list[Rows]:
-    """:func:`property_spline` of every row: the cuts ``pl``, ``ph`` (R, k) with their values ``pv`` and the
-    points held ``pfx``, ``pfy`` (R, f) are row fields; the spline is set as the row field ``name`` (a Pchip of
-    rows).  The sets are split where rows order their nodes differently."""
-    out = []
-    for s in g.split(np.argsort(np.concatenate([0.5 * (g.pl + g.ph), g.pfx], axis=1), axis=1, kind="stable")):
-        mids = 0.5 * (s.pl + s.ph)
-        order = np.argsort(np.concatenate([mids[:1], s.pfx[:1]], axis=1), axis=1, kind="stable")[0]
-        x = np.concatenate([mids, s.pfx], axis=1)[:, order]
-        for t in s.split(np.concatenate([np.ones((s.n, 1), dtype=bool), (x[:, 1:] - x[:, :-1]) > 1e-9], axis=1)):
-            out.append(_property_spline_set(t, order, name, iterations, floor))
-    return out
-
-
-def _property_spline_set(t: Rows, order, name, iterations, floor) -> Rows:
-    """The splines of a set of rows whose nodes come in the same ``order`` and merge alike."""
-    vals = t.pv
-    x = np.concatenate([0.5 * (t.pl + t.ph), t.pfx], axis=1)[:, order]
-    keep = np.concatenate([[True], (x[0, 1:] - x[0, :-1]) > 1e-9])
-    is_cut = (order < vals.shape[1])[keep]
-    x = x[:, keep]
-    y0 = np.concatenate([vals, t.pfy], axis=1)[:, order][:, keep]
-    if x.shape[1] == 1:
-        return t.put(**{name: Pchip(np.broadcast_to([0.0, 100.0], (t.n, 2)), np.repeat(y0, 2, axis=1))})
-    cut_idx = order[keep][is_cut]
-    tol = 1e-7 * np.maximum(np.max(np.abs(vals), axis=1), 1e-12)
-    if iterations < 1:  # no iteration at all: the start values
-        return t.put(**{name: Pchip(x, y0)})
-    best, d, cum = mean_match_arrays(x, y0, is_cut, t.pl[:, cut_idx], t.ph[:, cut_idx], vals[:, cut_idx], tol,
-                                     iterations, floor)
-    return t.put(**{name: Pchip(x, best, d, cum)})
-
-
-def mean_match_arrays(x, y, is_cut, a, b, target, tol, iterations: int, floor):
-    """The node correction of :func:`property_spline_rows`, row-wise: nodes x and start values y
-    (R, n), the cut nodes ``is_cut`` (n,) or (R, n) with every row alike, intervals a, b and their ``target``
-    means (R, k), tolerances ``tol`` (R,); the best node values, their slopes and cumulative integrals, (R, n)
-    each, every row as it would be alone."""
-    is_cut = np.asarray(is_cut, dtype=bool)
-    if is_cut.ndim == 2:
-        is_cut = is_cut[0]
-    y = np.array(y, dtype=float)
-    means = _interval_means_rows(x, a, b)
-    best = y.copy()
-    best_d = np.zeros_like(y)
-    best_cum = np.zeros_like(y)
-    best_err = np.full(y.shape[0], np.inf)
-    active = np.ones(y.shape[0], dtype=bool)
-    for _ in range(iterations):
-        m, d, cum = means(y)
-        err = target - m
-        worst = np.max(np.abs(err), axis=1) if err.shape[1] else np.zeros(y.shape[0])
-        active &= ~(worst >= 0.95 * best_err)  # no longer improving: keeps its best
-        keep = active[:, None]
-        np.copyto(best, y, where=keep)
-        np.copyto(best_d, d, where=keep)
-        np.copyto(best_cum, cum, where=keep)
-        best_err = np.where(active, worst, best_err)
-        active &= ~(worst < tol)
-        if not active.any():
-            break
-        moved = y[:, is_cut] + err if floor is None else np.maximum(y[:, is_cut] + err, floor)
-        y[:, is_cut] = np.where(active[:, None], moved, y[:, is_cut])
-    return best, best_d, best_cum
-
-
-def _interval_means_rows(x: np.ndarray, a: np.ndarray, b: np.ndarray):
-    """A function y -> (mean of the PCHIP through (x, y) over each [a, b] (held flat beyond the end nodes), its
-    slopes, its cumulative segment integrals), one spline per row: x (R, n) nodes, a and b (R, k) intervals;
-    y (R, n) -> means (R, k), slopes and cumulative integrals (R, n).
-
-    The exact integral of :meth:`Pchip.integral`, with the interval ends located once, since only the node
-    values change between the iterations of :func:`property_spline`.
-    """
-    h = np.diff(x, axis=1)
-    rows = np.arange(x.shape[0])[:, None]
-    n = x.shape[1]
-    k = a.shape[1]
-    q = np.concatenate([a, b], axis=1)  # both ends of every interval, located once
-    qc = np.clip(q, x[:, :1], x[:, -1:])
-    i = np.clip(search_rows(x, qc, "right") - 1, 0, n - 2)
-    hi = h[rows, i]
-    w = hermite_integral_basis((qc - x[rows, i]) / hi)
-    below, above = np.minimum(q - x[:, :1], 0.0), np.maximum(q - x[:, -1:], 0.0)
-    at = (rows * n + i).ravel()  # flat positions of each end's left node
-    width = b - a
-    slopes = slopes_on(x)
-
-    def means(y):
-        d = slopes(y)
-        cum = np.concatenate([np.zeros((y.shape[0], 1)), np.cumsum(segment_integrals(h, y, d), axis=1)], axis=1)
-        yf, df = y.ravel(), d.ravel()
-        y0, y1 = yf[at].reshape(q.shape), yf[at + 1].reshape(q.shape)
-        d0, d1 = df[at].reshape(q.shape), df[at + 1].reshape(q.shape)
-        anti = (cum.ravel()[at].reshape(q.shape) + hi * hermite_combine(w, y0, y1, hi * d0, hi * d1)
-                + below * y[:, :1] + above * y[:, -1:])
-        return (anti[:, k:] - anti[:, :k]) / width, d, cum
-
-    return means
-
-
-
 _GAS_NOTE = ("; no light-ends analysis: the curve below n-pentane's boiling point (36.1 °C) is given the SG of the "
              "C2-C5 paraffins boiling at the same temperature (assumed)")
 KW_GRID_STEP_PCT = 0.5
@@ -180,19 +48,23 @@ KW_GRID_STEP_PCT = 0.5
 def density_rows(g: Rows) -> list[Rows]:
     """The density distribution of every row: SG against vol % distilled, reconciled to the whole-crude SG.
 
-    From the narrow-cut densities (:func:`property_spline_rows` against mid-volume %, light-ends components held
+    From the narrow-cut densities (:func:`~assaycut.model.property_splines.property_spline_rows` against mid-volume %, light-ends components held
     at their own SG) where at least two cuts have one; else at constant Watson K fitted to the whole-crude
     gravity, SG = (1.8 T_b[K])^(1/3)/Kw along the curve (Watson & Nelson 1933; common practice, no single
     source), light ends at their own SG.  Without a light-ends analysis the part of the curve boiling below
     n-pentane takes the SG of the paraffins of the same boiling point
     (:func:`~assaycut.model.lightends.gas_range_sg`, assumed) where no narrow cut covers it.  Either way the
-    distribution is scaled so that the whole crude integrates to its SG.
+    narrow-cut densities are kept as measured and the whole-crude balance is closed on the part of the crude
+    they do not cover (:func:`~assaycut.model.closure.closed_by_difference`), or scaled proportionally to it
+    (``reconcile``); a constant-Watson-K distribution is scaled to the whole-crude SG.
 
     Row fields read: ``spline`` (the curve V(T)), ``placed``, ``le_mid`` with the shared ``le_sg`` (light ends
     placed: each component's mid vol % and SG), ``le_pct``, ``sg``, ``va``, ``vb`` and ``nc_sg`` (with narrow
     cuts, the shared ``has_nc``), ``warn``.  Row fields set: ``sg_dist`` (Pchip rows), ``dens_rec`` (the scale,
-    (factor - 1) x 100 [%]), ``dens_src`` (the source described), ``kw`` (the fitted Watson K, NaN with
-    narrow-cut densities).  A row whose light ends weigh as much as the crude gravity allows is refused.
+    (factor - 1) x 100 [%]; NaN when closed by difference), ``sg_closure`` and ``sg_gap_pct`` (the closure
+    [-] and the share of the crude in gaps [vol %]; 0 and NaN when scaled), ``sg_given`` (the whole-crude SG
+    as given) and ``sg`` (the model's, what its distribution integrates to), ``dens_src`` (the source
+    described), ``kw`` (the fitted Watson K, NaN with narrow-cut densities).  A row whose light ends weigh as much as the crude gravity allows is refused.
     """
     gas = ~g.placed & (g.spline.lo < GAS_RANGE_MAX_C)  # the IBP is the TBP at 0 %
     key = np.column_stack([gas] + ([np.isfinite(g.nc_sg)] if g.has_nc else []))
@@ -203,9 +75,9 @@ def _density_set(g: Rows) -> list[Rows]:
     gas = not bool(g.placed[0]) and bool(g.spline.lo[0] < GAS_RANGE_MAX_C)
     if gas:
         v_top = g.spline(np.full((g.n, 1), GAS_RANGE_MAX_C))
-        g.put(gas_v=np.linspace(0.0, v_top[:, 0], 9, axis=1)[:, :-1] + v_top / 16.0)
+        g.put(gas_v=np.linspace(0.0, v_top[:, 0], 9, axis=1)[:, :-1] + v_top / 16.0, gas_top=v_top[:, 0])
     if g.has_nc and np.isfinite(g.nc_sg[0]).sum() >= 2:
-        sets = each(g.split(np.isfinite(g.nc_sg) & (g.vb > g.va)), _density_from_cuts, gas)
+        sets = each(g.split(np.isfinite(g.nc_sg) & (g.vb - g.va > GAP_MIN_PCT)), _density_from_cuts, gas)
     else:
         sets = _density_at_constant_kw(g, gas)
     for s in sets:
@@ -214,13 +86,26 @@ def _density_set(g: Rows) -> list[Rows]:
                 s.warn[r].append("no light-ends analysis: the gravity of the crude boiling below 36.1 °C "
                                  "(n-pentane) is assumed from the C2-C5 paraffins boiling at the same temperature; "
                                  "give a light-ends analysis for measured values")
+    out = []
+    for s in sets:
+        if np.isnan(s.kw[0]) and not s.reconcile:  # narrow-cut densities kept, the balance closed on the gaps
+            covered = (s.le_pct if bool(s.placed[0]) else np.minimum(s.gas_top, s.first) if gas
+                       else np.zeros(s.n))  # the light ends, or the gas range's assumed paraffins
+            for t in closed_by_difference(s, covered, s.sg, DENSITY_CLOSURE):
+                t.put(sg_dist=t.raw, dens_rec=np.full(t.n, np.nan), sg_closure=t.closure, sg_gap_pct=t.gap_pct)
+                out.append(t)
+            continue
         factor = 100.0 * s.sg / s.raw.integral(np.zeros((s.n, 1)), np.full((s.n, 1), 100.0))[:, 0]
-        s.put(sg_dist=s.raw.scaled(factor), dens_rec=(factor - 1.0) * 100.0)
-    return sets
+        s.put(sg_dist=s.raw.scaled(factor), dens_rec=(factor - 1.0) * 100.0, sg_closure=np.zeros(s.n),
+              sg_gap_pct=np.full(s.n, np.nan))
+        out.append(s)
+    for s in out:  # the model's own whole-crude SG: what its distribution integrates to
+        s.put(sg_given=s.sg.copy(), sg=s.sg - s.sg_closure)
+    return out
 
 
 def _density_from_cuts(g: Rows, gas: bool) -> list[Rows]:
-    ok = np.isfinite(g.nc_sg[0]) & (g.vb[0] > g.va[0])
+    ok = np.isfinite(g.nc_sg[0]) & (g.vb[0] - g.va[0] > GAP_MIN_PCT)
     first = g.va[:, ok].min(axis=1) if ok.any() else np.zeros(g.n)
     placed = bool(g.placed[0])
     le_x = g.le_mid if placed else np.zeros((g.n, 0))
@@ -303,7 +188,7 @@ def weight_distilled(sg_dist: Pchip, sg, vol_pct, a0=None):
 def sulfur_rows(g: Rows) -> list[Rows]:
     """The sulfur distribution of every row from its narrow cuts: sulfur against wt % distilled.
 
-    A :func:`property_spline_rows` of narrow-cut sulfur against mid-weight % (light ends carry none), scaled to
+    A :func:`~assaycut.model.property_splines.property_spline_rows` of narrow-cut sulfur against mid-weight % (light ends carry none), scaled to
     reproduce the whole-crude sulfur; without it the narrow cuts give the whole-crude figure.  Fewer than two
     narrow-cut sulfur values leave the distribution empty (``sulfur_dist`` None for the set), with a warning.
 
@@ -321,7 +206,7 @@ def _no_sulfur(g: Rows) -> Rows:
         w.append("no narrow-cut sulfur (fewer than 2 values): cut sulfur is left empty")
         m["sulfur"] = "not estimated (no narrow-cut sulfur)"
     g.sulfur_dist = None
-    return g.put(s_rec=np.full(g.n, np.nan))
+    return g.put(s_rec=np.full(g.n, np.nan), s_closure=np.zeros(g.n), s_gap_pct=np.full(g.n, np.nan))
 
 
 def _sulfur_set(g: Rows) -> list[Rows]:
@@ -332,15 +217,35 @@ def _sulfur_set(g: Rows) -> list[Rows]:
     w = weight_distilled(g.sg_dist, g.sg[:, None], np.concatenate([g.va, g.vb, le_x], axis=1))  # one call
     g.put(wa=w[:, :k], wb=w[:, k:2 * k], le_w=w[:, 2 * k:])
     out = []
-    for s in g.split(np.isfinite(g.nc_s) & (g.wb > g.wa)):
-        ok = np.isfinite(s.nc_s[0]) & (s.wb[0] > s.wa[0])
+    for s in g.split(np.isfinite(g.nc_s) & (g.wb - g.wa > GAP_MIN_PCT)):
+        ok = np.isfinite(s.nc_s[0]) & (s.wb[0] - s.wa[0] > GAP_MIN_PCT)
         s.put(first=s.wa[:, ok].min(axis=1))
         for t in s.split(s.le_w < s.first[:, None]):
             fix = t.le_w[0] < t.first[0]
             t.put(pl=t.wa[:, ok], ph=t.wb[:, ok], pv=t.nc_s[:, ok], pfx=t.le_w[:, fix],
                   pfy=np.zeros((t.n, int(fix.sum()))))
-            out += [_sulfur_scaled(u) for u in property_spline_rows(t, "raw")]
+            for u in property_spline_rows(t, "raw"):
+                if u.reconcile:
+                    out.append(_sulfur_scaled(u))
+                    continue
+                le_end = weight_distilled(u.sg_dist, u.sg[:, None], u.le_pct[:, None])[:, 0] if bool(u.placed[0]) else np.zeros(u.n)
+                out += [_sulfur_closed(v) for v in closed_by_difference(
+                    u, le_end, np.where(u.s_given, u.sulfur, np.nan), SULFUR_CLOSURE)]
     return out
+
+
+def _sulfur_closed(g: Rows) -> Rows:
+    """The narrow cuts' sulfur kept as measured, the whole-crude balance closed on the gaps
+    (:func:`~assaycut.model.closure.closed_by_difference`); the model's whole-crude sulfur is what its distribution integrates to."""
+    total = g.raw.integral(np.zeros((g.n, 1)), np.full((g.n, 1), 100.0))[:, 0] / 100.0
+    for r in np.flatnonzero(~g.s_given):
+        g.warn[r].append(f"no whole-crude sulfur given: {total[r]:.3f} wt % is taken from the narrow cuts")
+    g.put(sulfur_given=np.where(g.s_given, g.sulfur, np.nan), sulfur=total, s_rec=np.full(g.n, np.nan),
+          sulfur_dist=g.raw, s_closure=np.where(g.s_given, g.closure, 0.0), s_gap_pct=g.gap_pct)
+    for r, m in enumerate(g.meth):
+        m["sulfur"] = ("narrow-cut sulfur kept as measured (monotone spline against mid-weight %, matching each "
+                       "cut's mean)" + closure_text(g.s_gap_pct[r], "wt %", g.s_closure[r], "wt %", "sulfur", 3))
+    return g
 
 
 def _sulfur_scaled(g: Rows) -> Rows:
@@ -351,8 +256,9 @@ def _sulfur_scaled(g: Rows) -> Rows:
         factor = np.where(g.s_given, np.where(total > 0, g.sulfur / total, 1.0), 1.0)
     for r in np.flatnonzero(~g.s_given):
         g.warn[r].append(f"no whole-crude sulfur given: {total[r]:.3f} wt % is taken from the narrow cuts")
-    g.put(sulfur=np.where(g.s_given, g.sulfur, total), s_rec=(factor - 1.0) * 100.0,
-          sulfur_dist=g.raw.scaled(factor))
+    g.put(sulfur_given=np.where(g.s_given, g.sulfur, np.nan), sulfur=np.where(g.s_given, g.sulfur, total),
+          s_rec=(factor - 1.0) * 100.0, sulfur_dist=g.raw.scaled(factor), s_closure=np.zeros(g.n),
+          s_gap_pct=np.full(g.n, np.nan))
     for r, m in enumerate(g.meth):
         m["sulfur"] = (f"narrow-cut sulfur (monotone spline against mid-weight %, matching each cut's mean); scaled "
                        f"by {g.s_rec[r]:+.2f} % to reproduce the whole-crude sulfur {g.sulfur[r]:.3f} wt %")

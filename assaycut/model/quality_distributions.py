@@ -27,7 +27,8 @@ from ..methods.fraction_properties import (
 )
 from ..methods.pchip import Pchip, interval_mean
 from .assay import Assay
-from .distributions import narrow_cut_positions, property_spline_rows, weight_distilled
+from .distributions import narrow_cut_positions, weight_distilled
+from .property_splines import property_spline_rows
 from .lightends import GAS_RANGE_MAX_C
 from .rows import Rows
 from .tbp_curve import volume_average_temp

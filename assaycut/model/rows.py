@@ -16,7 +16,7 @@ import numpy as np
 from ..errors import AssaycutError
 from ..methods.pchip import Pchip
 
-__all__ = ["Rows"]
+__all__ = ["Rows", "row_sum"]
 
 
 class Rows:
@@ -101,3 +101,10 @@ def each(sets: list[Rows], stage, *args) -> list[Rows]:
         if s.n:
             out += [t for t in stage(s, *args) if t.n]
     return out
+
+
+def row_sum(x: np.ndarray) -> np.ndarray:
+    """Sum over the last axis, added in order, so that a row's sum is the same whatever the other rows: numpy's
+    ``sum`` adds one row pairwise but several rows column by column, which rounds differently."""
+    x = np.asarray(x, dtype=float)
+    return np.cumsum(x, axis=-1)[..., -1] if x.shape[-1] else np.zeros(x.shape[:-1])

@@ -17,7 +17,7 @@ def yield_text(result, unit: str = "C") -> list[str]:
     a = result.assay
     cuts = display_cuts(result.cuts, unit)
     lines = [f"\n{a.name}  ({a.origin or 'origin not given'})  {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
-             + (f"{result.model.sulfur_wt_pct:.3f} wt %" if result.model.sulfur_wt_pct is not None else "n/a"),
+             + (f"{result.model.given_sulfur_wt_pct:.3f} wt %" if result.model.given_sulfur_wt_pct is not None else "n/a"),
              text_table(cuts)]
     q = quality_text_table(cuts)
     if q:

@@ -68,7 +68,9 @@ def yield_json(result) -> dict:
     doc = {
         "assay": {"name": a.name, "source": a.source, "sha256": a.sha256, "api": json_safe(a.api),
                   "sg": json_safe(a.sg), "density_15c_kg_m3": json_safe(sg_to_density15(a.sg)),
-                  "sulfur_wt_pct": json_safe(result.model.sulfur_wt_pct)},
+                  "sulfur_wt_pct": json_safe(result.model.given_sulfur_wt_pct),
+                  "sg_closure": json_safe(result.model.sg_closure),
+                  "sulfur_closure_wt_pct": json_safe(result.model.sulfur_closure_wt_pct)},
         "extension": extension_json(result.model),
         "cuts": cut_records(result.cuts),
         "limits": records(result.limits),

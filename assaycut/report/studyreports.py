@@ -79,7 +79,7 @@ def compare_workbook(results, table, worth, currency: str | None, products=None)
         ws.cell(row=len(rows) + 3, column=1, value=results[0].bands.attrs["sigmas"])
     ws = wb.create_sheet("crudes")
     write_table(ws, ["Crude", "Source", "sha256", "API gravity [°API]", "Sulfur [wt %]", "Measured to [vol %]"],
-                [[r.assay.name, r.assay.source, r.assay.sha256, r.assay.api, r.model.sulfur_wt_pct,
+                [[r.assay.name, r.assay.source, r.assay.sha256, r.assay.api, r.model.given_sulfur_wt_pct,
                   r.model.curve.measured_hi] for r in results], [None, None, None, "0.0", "0.000", "0.0"],
                 widths=[20, 50, 66, 14, 14, 14])
     ws = wb.create_sheet("notes")

@@ -327,7 +327,7 @@ def markdown_summary(result) -> str:
            f"- Source: `{md(a.source).replace('`', '')}` (sha256 `{a.sha256[:16]}...`)",
            f"- Origin: {md(a.origin) if a.origin else '-'}",
            f"- Whole crude: {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
-           + (f"{m.sulfur_wt_pct:.3f} wt %" if m.sulfur_wt_pct is not None else "not given"),
+           + (f"{m.given_sulfur_wt_pct:.3f} wt %" if m.given_sulfur_wt_pct is not None else "not given"),
            f"- Curve measured to {pct_text(m.curve.measured_hi)} vol % "
            f"({float(m.curve.temp_at(m.curve.measured_hi)):.0f} °C TBP); {m.curve.extrapolated_pct:.1f} vol % of "
            f"the crude rests on the fitted extension, {m.curve.lumped_pct:.1f} vol % of it lumped at the "

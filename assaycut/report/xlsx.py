@@ -214,12 +214,14 @@ def _summary_sheet(ws, result) -> None:
     ws["A2"].font = Font(italic=True)
     info = [("Crude", a.name, None), ("Origin", a.origin, None), ("API gravity [°API]", a.api, "0.0"),
             ("SG 60/60 °F [-]", a.sg, "0.0000"), ("Density 15 °C [kg/m3]", sg_to_density15(a.sg), "0.0"),
-            ("Sulfur [wt %]", m.sulfur_wt_pct, "0.000"),
+            ("Sulfur [wt %]", m.given_sulfur_wt_pct, "0.000"),
             ("Curve measured to [vol %]", m.curve.measured_hi, "0.0"),
             ("On the fitted extension [vol %]", m.curve.extrapolated_pct, "0.0"),
             ("Of it lumped at the end point [vol %]", m.curve.lumped_pct, "0.0"),
             ("Density reconciliation [%]", m.density_reconciliation_pct, "0.00"),
             ("Sulfur reconciliation [%]", m.sulfur_reconciliation_pct, "0.00"),
+            ("SG given less the cuts' [-]", m.sg_closure, "0.0000"),
+            ("Sulfur given less the cuts' [wt %]", m.sulfur_closure_wt_pct, "0.0000"),
             ("Closure residual, vol [%]", result.closure["vol_pct"], "0.000000"),
             ("Closure residual, wt [%]", result.closure["wt_pct"], "0.000000"),
             ("Cut set", result.cut_set.label, None)]

@@ -26,6 +26,11 @@ RECON_WARN_PCT = (2.0, 15.0)
 """Density and sulfur reconciliations above these sizes give a warning. [%]"""
 RECON_ERROR_PCT = (5.0, 40.0)
 """... and above these, an error. [%]"""
+BALANCE_WARN = (0.0075, 5.0)
+"""The narrow cuts kept as measured and the whole crude may disagree by this much before a warning: SG [-] and
+sulfur [% of the whole-crude sulfur] (our choice: the seven cuts of each of the 25 open assays of the
+development set add up, by volume, to their crude's gravity within 0.0050 SG, and by weight to its sulfur
+within 0.1 %)."""
 CLOSURE_ERROR_PCT = 0.01
 """Yield closure residual above which the model is in error. [%]"""
 
@@ -142,15 +147,32 @@ def _closure_findings(model: CrudeModel) -> list[Finding]:
 
 
 def _reconciliation_findings(assay: Assay, model: CrudeModel, src: str, crude_where: str) -> list[Finding]:
-    """How much the density and sulfur distributions were scaled to the whole crude."""
+    """How the narrow cuts and the whole crude balance: what the cuts kept as measured leave open (the
+    closure, with the share of the crude the balance was closed on), or how much they were scaled."""
     out: list[Finding] = []
+    where = f"{src}, sheet 'narrow cuts'" if assay.narrow_cuts is not None else crude_where
+    for label, unit, digits, clo, gap, given, rel in (
+            ("SG", "SG", 4, model.sg_closure, model.sg_gap_pct, model.given_sg, False),
+            ("sulfur", "wt %", 3, model.sulfur_closure_wt_pct, model.sulfur_gap_wt_pct, model.given_sulfur_wt_pct,
+             True)):
+        if not np.isfinite(gap) or given is None:
+            continue
+        size = abs(clo) / given * 100.0 if rel and given > 0 else abs(clo)
+        big = size > BALANCE_WARN[1 if rel else 0]
+        out.append(Finding("warning" if big else "info", where,
+                           f"{label} balance: the narrow cuts, kept as measured, add up to "
+                           f"{given - clo:.{digits}f} {unit} against the whole crude's {given:.{digits}f} {unit} "
+                           f"({clo:+.{digits}f} {unit} left open)"
+                           + (f"; the {gap:.2f} % of the crude no cut covers took the rest of the balance"
+                              if gap > 1e-6 else "")
+                           + (f"; above {BALANCE_WARN[1 if rel else 0]:g}{' %' if rel else ' SG'}: check the cuts or "
+                              f"the whole-crude figure" if big else "")))
     for label, size, k in (("density", model.density_reconciliation_pct, 0),
                            ("sulfur", model.sulfur_reconciliation_pct, 1)):
         if size is None:
             continue
         sev = "error" if abs(size) > RECON_ERROR_PCT[k] else "warning" if abs(size) > RECON_WARN_PCT[k] else "info"
-        out.append(Finding(sev, f"{src}, sheet 'narrow cuts'" if assay.narrow_cuts is not None else crude_where,
-                           f"{label} distribution scaled by {size:+.2f} % to reproduce the whole crude"
+        out.append(Finding(sev, where, f"{label} distribution scaled by {size:+.2f} % to reproduce the whole crude"
                            + (" (the cuts and the whole-crude figure disagree)" if sev != "info" else "")))
     return out
 
@@ -194,8 +216,8 @@ def _narrow_cut_findings(assay: Assay, model: CrudeModel, src: str) -> list[Find
                 bal = float((nc.wt_pct[ok] * nc.sulfur_wt_pct[ok]).sum() / wsum)
                 rel = (bal / assay.sulfur_wt_pct - 1.0) * 100.0 if assay.sulfur_wt_pct > 0 else 0.0
                 sev = "warning" if abs(rel) > RECON_WARN_PCT[1] else "info"
-                out.append(Finding(sev, ncw, f"sulfur balance: the narrow cuts give {bal:.3f} wt %, the whole "
-                                             f"crude {assay.sulfur_wt_pct:.3f} wt % ({rel:+.1f} %)"))
+                out.append(Finding(sev, ncw, f"sulfur on the narrow cuts' own wt % yields: {bal:.3f} wt %, the "
+                                             f"whole crude {assay.sulfur_wt_pct:.3f} wt % ({rel:+.1f} %)"))
     elif nc is None:
         out.append(Finding("info", src, "no narrow cuts: densities at constant Watson K, no cut sulfur"))
     return out

@@ -74,8 +74,8 @@ def blend(parents: list[tuple[Assay, CrudeModel, float]], basis: str = "vol", na
     narrow = _narrow_cuts(models, v, sg, t_hi)
     light = _light_ends(parents, w)
     sulfur = None
-    if all(m.sulfur_wt_pct is not None for m in models):
-        sulfur = float(sum(wi * m.sulfur_wt_pct for wi, m in zip(w, models)))
+    if all(m.given_sulfur_wt_pct is not None for m in models):
+        sulfur = float(sum(wi * m.given_sulfur_wt_pct for wi, m in zip(w, models)))
     extras = _extras(parents, w, notes)
     label = name or " + ".join(f"{a.name} {p:g}%" for (a, _, _), p in zip(parents, pct))
     notes.insert(0, f"blend on the {basis} basis: " + "; ".join(

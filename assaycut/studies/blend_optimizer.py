@@ -86,7 +86,7 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
     if n < 2:
         raise StudyError("a blend optimisation needs at least two candidate crudes")
     sg = np.array([r.assay.sg for r in results])
-    s = np.array([np.nan if r.model.sulfur_wt_pct is None else r.model.sulfur_wt_pct for r in results])
+    s = np.array([np.nan if r.model.given_sulfur_wt_pct is None else r.model.given_sulfur_wt_pct for r in results])
     cuts = list(results[0].cuts["name"])
     y = np.array([[r.cuts["vol_pct"][r.cuts.index(c)] for c in cuts] for r in results])  # (crudes, cuts)
     c, label, sign = _objective(results, names, prices, objective)

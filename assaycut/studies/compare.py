@@ -209,8 +209,8 @@ def crude_properties(result) -> dict:
     sulfur_wt_pct and the crude sheet's extras."""
     a = result.assay
     props = {"api": a.api, "sg": a.sg, "density_15c_kg_m3": float(sg_to_density15(a.sg))}
-    if result.model.sulfur_wt_pct is not None:
-        props["sulfur_wt_pct"] = result.model.sulfur_wt_pct
+    if result.model.given_sulfur_wt_pct is not None:
+        props["sulfur_wt_pct"] = result.model.given_sulfur_wt_pct
     props.update({k: v for k, v in a.extras.items() if isinstance(v, (int, float))})
     return props
 

@@ -115,10 +115,10 @@ def _draw_chunk(args):
     each draw's model is the one :func:`~assaycut.model.crude.build_model` gives it) and cut together by the
     library engine.
     """
-    assay, cut_set, sig, count, seed, k, method = args
+    assay, cut_set, sig, count, seed, k, method, scale = args
     rng = np.random.default_rng([seed, k])
     vals = draw_values(assay, sig, rng, count)
-    leaves, failed = build_draws(assay, vals, method)
+    leaves, failed = build_draws(assay, vals, method, scale)
     if not leaves:
         return {}, failed
     _, ends = cut_set.reported()
@@ -128,7 +128,7 @@ def _draw_chunk(args):
 
 
 def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 200, seed: int = 20261201,
-                method: str = "daubert-1994", progress=None, map_fn=map):
+                method: str = "daubert-1994", progress=None, map_fn=map, scale_cuts: bool = False):
     """P10/P50/P90 of each cut's yields and qualities under the assay's measurement uncertainty.
 
     Parameters
@@ -143,6 +143,9 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
         Random seed; the same seed gives the same bands.
     method : str
         TBP <-> D86 method for D86 input curves.
+    scale_cuts : bool
+        Each draw's narrow cuts scaled to its whole crude (``reconcile`` of
+        :func:`~assaycut.model.crude.build_model`) instead of kept as measured.
     progress : callable, optional
         ``progress(done, n)`` as chunks of draws are done.
     map_fn : callable
@@ -158,7 +161,7 @@ def monte_carlo(assay: Assay, cut_set: CutSet, sig: Sigmas = Sigmas(), n: int = 
     if not 20 <= n <= 5000:
         raise StudyError(f"the number of draws must be between 20 and 5000; got {n}")
     names, _ = cut_set.reported()
-    jobs = [(assay, cut_set, sig, min(DRAW_CHUNK, n - k0), seed, k, method)
+    jobs = [(assay, cut_set, sig, min(DRAW_CHUNK, n - k0), seed, k, method, scale_cuts)
             for k, k0 in enumerate(range(0, n, DRAW_CHUNK))]
     parts, failed, done = [], 0, 0
     for (cols, bad), job in zip(map_fn(_draw_chunk, jobs), jobs):

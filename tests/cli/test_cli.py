@@ -23,7 +23,8 @@ def test_yields_json_shape_and_no_files(tmp_path, monkeypatch):
     assert r.exit_code == 0, r.stderr
     d = json.loads(r.stdout)
     assert set(d) >= {"assay", "cuts", "warnings", "notes", "methods", "version"}
-    assert set(d["assay"]) == {"name", "source", "sha256", "api", "sg", "density_15c_kg_m3", "sulfur_wt_pct"}
+    assert set(d["assay"]) == {"name", "source", "sha256", "api", "sg", "density_15c_kg_m3", "sulfur_wt_pct", "sg_closure",
+                              "sulfur_closure_wt_pct"}
     assert d["assay"]["name"] == "Selkie Light"
     assert [c["name"] for c in d["cuts"]][0] == "light ends"
     from assaycut.cutting.cut_qualities import ESTIMATED

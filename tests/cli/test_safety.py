@@ -227,16 +227,16 @@ def test_core_errors_in_a_batch_name_the_file(tmp_path, monkeypatch):
 
     real = y.build_model
 
-    def fail_for_b(assay, method="daubert-1994"):
+    def fail_for_b(assay, method="daubert-1994", reconcile=False):
         if assay.name == "b":
             raise CurveError("the curve cannot be modelled")
-        return real(assay, method)
+        return real(assay, method, reconcile=reconcile)
 
-    def fail_for_b_together(assays, method="daubert-1994"):  # the batch builder: errors in place
+    def fail_for_b_together(assays, method="daubert-1994", reconcile=False):  # the batch builder: errors in place
         out = []
         for a in assays:
             try:
-                out.append(fail_for_b(a, method))
+                out.append(fail_for_b(a, method, reconcile))
             except CurveError as e:
                 out.append(e)
         return out

@@ -23,13 +23,13 @@ PCT = np.array([0.0, 5.0, 15.0, 30.0, 50.0, 70.0, 85.0, 100.0])
 TMP = np.array([10.0, 60.0, 120.0, 200.0, 300.0, 420.0, 520.0, 650.0])
 
 
-def simple_model(narrow=True):
+def simple_model(narrow=True, reconcile=False):
     nc = None
     if narrow:
         nc = NarrowCuts(np.array([np.nan, 120.0, 300.0]), np.array([120.0, 300.0, np.nan]), np.full(3, np.nan),
                         np.full(3, np.nan), np.array([0.72, 0.83, 0.95]), np.array([0.05, 0.6, 2.4]))
     a = Assay("t", 0.86, [CurveData("TBP", "vol", PCT, TMP)], sulfur_wt_pct=1.3, narrow_cuts=nc)
-    return build_model(a)
+    return build_model(a, reconcile=reconcile)
 
 
 def test_yields_at_measured_nodes_equal_measured_differences():
@@ -44,21 +44,31 @@ def test_yields_at_measured_nodes_equal_measured_differences():
 @pytest.mark.parametrize("narrow", [True, False])
 def test_closure_and_crude_gravity(narrow):
     # Identity: volume yields sum to 100; weight yields follow from W(V) and sum to 100; the volume-weighted
-    # cut SG reproduces the crude SG (API MPMS Ch. 11: SG blends by volume).
+    # cut SG reproduces the model's crude SG (API MPMS Ch. 11: SG blends by volume), which is the given 0.86
+    # less what the narrow cuts, kept as measured and covering the whole crude, leave open.
     m = simple_model(narrow)
     df = cut_table(m, default_cut_set()).frame()
     assert df["vol_pct"].sum() == pytest.approx(100.0, abs=1e-9)
     assert df["wt_pct"].sum() == pytest.approx(100.0, abs=1e-9)
-    assert (df["vol_pct"] * df["sg"]).sum() / 100.0 == pytest.approx(0.86, abs=1e-9)
+    assert (df["vol_pct"] * df["sg"]).sum() / 100.0 == pytest.approx(m.sg, abs=1e-9)
+    assert m.given_sg == pytest.approx(0.86, abs=1e-12)
+    if not narrow:
+        assert m.sg == pytest.approx(0.86, abs=1e-9)
     # API MPMS Ch. 11: SG blends by volume: weight yield = volume yield x SG_cut / SG_crude
-    assert_allclose(df["wt_pct"], df["vol_pct"] * df["sg"] / 0.86, atol=1e-9)
+    assert_allclose(df["wt_pct"], df["vol_pct"] * df["sg"] / m.sg, atol=1e-9)
 
 
 def test_sulfur_balance_reproduces_crude():
-    # Mass balance (identity): sulfur blends by weight; the reconciled cuts reproduce the whole-crude sulfur.
-    df = cut_table(simple_model(), default_cut_set()).frame()
-    assert (df["wt_pct"] * df["sulfur_wt_pct"]).sum() / 100.0 == pytest.approx(1.3, abs=1e-9)
-    assert df["sulfur_share_pct"].sum() == pytest.approx(100.0, abs=1e-7)
+    # Mass balance (identity): sulfur blends by weight; the cuts add up to the model's whole-crude sulfur, the
+    # given 1.3 wt % less the closure the measured cuts leave; scaled cuts reproduce 1.3 itself.
+    for scale in (False, True):
+        m = simple_model(reconcile=scale)
+        df = cut_table(m, default_cut_set()).frame()
+        assert (df["wt_pct"] * df["sulfur_wt_pct"]).sum() / 100.0 == pytest.approx(m.sulfur_wt_pct, abs=1e-9)
+        assert m.given_sulfur_wt_pct == pytest.approx(1.3, abs=1e-12)
+        assert df["sulfur_share_pct"].sum() == pytest.approx(100.0, abs=1e-7)
+        if scale:
+            assert m.sulfur_wt_pct == pytest.approx(1.3, abs=1e-12)
 
 
 def test_api_and_watson_k_per_cut():

@@ -18,7 +18,7 @@ from assaycut.io import load_assay
 from assaycut.methods.riazi_distribution import fit_riazi_distribution, fit_riazi_many
 from assaycut.model.assay import Assay, CurveData, LightEnds
 from assaycut.model.crude import build_model, build_models
-from assaycut.model.distributions import property_spline, property_spline_rows
+from assaycut.model.property_splines import property_spline, property_spline_rows
 from assaycut.model.rows import Rows
 from assaycut.methods.pchip import Pchip, slopes_on
 from assaycut.model.tbp_curve import build_curve
