@@ -28,6 +28,7 @@ from ..methods.pchip import Pchip
 from ..units import pct_text
 from .assay import Assay, CurveData, validate_assay, value_faults
 from .crude_model import CrudeModel
+from .cut_yields import cut_yield_points
 from .distributions import closure_text, cut_positions, density_rows, sulfur_rows, weight_distilled
 from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
@@ -141,7 +142,7 @@ def _assay_rows(assays: list, index, errors: dict) -> Rows:
               [[np.asarray(a.curves[k].percent, dtype=float) for a in assays] for k in range(len(assays[0].curves))],
               [[np.asarray(a.curves[k].temp_c, dtype=float) for a in assays] for k in range(len(assays[0].curves))],
               None if nc[0] is None else {f: [getattr(x, f) for x in nc]
-                                          for f in ("start_c", "end_c", "sg", "sulfur_wt_pct")},
+                                          for f in ("start_c", "end_c", "sg", "sulfur_wt_pct", "vol_pct", "wt_pct")},
               [[a.light_ends.amounts[key] for key in assays[0].light_ends.amounts] for a in assays]
               if assays[0].light_ends is not None and assays[0].light_ends.amounts else None)
     g.checked = True  # validate_assay has checked every value
@@ -165,7 +166,8 @@ def build_draws(assay: Assay, vals, method: str = "daubert-1994", reconcile: boo
     g = _rows(assay, [assay] * n, np.arange(n), {}, vals.sg, vals.sulfur_wt_pct if given else np.full(n, np.nan),
               np.full(n, given), vals.percent, vals.temp_c,
               None if nc is None else {"start_c": rep(nc.start_c), "end_c": rep(nc.end_c), "sg": vals.nc_sg,
-                                       "sulfur_wt_pct": vals.nc_sulfur_wt_pct},
+                                       "sulfur_wt_pct": vals.nc_sulfur_wt_pct, "vol_pct": rep(nc.vol_pct),
+                                       "wt_pct": rep(nc.wt_pct)},
               rep(list(le.amounts.values())) if le is not None and le.amounts else None)
     leaves = build_rows(g, method, reconcile)
     return leaves, len(g.errors)
@@ -175,7 +177,7 @@ def _rows(base: Assay, assays: list, index, errors: dict, sg, sulfur, s_given, p
           le_amounts) -> Rows:
     """A set of rows of one structure (that of ``base``) from their values: ``sulfur`` [wt %] and ``s_given``
     (R,), the whole-crude sulfur and whether it is given;
-    ``percent``, ``temp_c`` per curve (R, n); ``nc`` the narrow-cut columns start_c, end_c, sg,
+    ``percent``, ``temp_c`` per curve (R, n); ``nc`` the narrow-cut columns start_c, end_c, sg, vol_pct, wt_pct,
     sulfur_wt_pct (R, k) or None; ``le_amounts`` the light-ends amounts (R, m) in the order of ``base``'s, or
     None."""
     g = Rows(index, errors)
@@ -188,7 +190,8 @@ def _rows(base: Assay, assays: list, index, errors: dict, sg, sulfur, s_given, p
     g.has_nc = nc is not None
     if g.has_nc:
         g.put(nc_start=np.array(nc["start_c"], dtype=float), nc_end=np.array(nc["end_c"], dtype=float),
-              nc_sg=np.array(nc["sg"], dtype=float), nc_s=np.array(nc["sulfur_wt_pct"], dtype=float))
+              nc_sg=np.array(nc["sg"], dtype=float), nc_s=np.array(nc["sulfur_wt_pct"], dtype=float),
+              nc_vol=np.array(nc["vol_pct"], dtype=float), nc_wt=np.array(nc["wt_pct"], dtype=float))
     le = base.light_ends
     g.le_basis = le.basis if le is not None else None
     g.le_keys = list(le.amounts) if le_amounts is not None else []
@@ -218,7 +221,7 @@ def build_rows(g: Rows, method: str = "daubert-1994", reconcile: bool = False) -
         whats)
     g = g.fail([f is not None for f in faults],
                lambda r: InputError(faults[r][0], file=(g.assay[r].source or None) if faults[r][1] else None))
-    sets = _tbp_points(g, method)
+    sets = each(_tbp_points(g, method), cut_yield_points, base.curves[0].basis)
     if base.curves[0].basis == "wt":
         return each(sets, _weight_basis)
     for s in sets:

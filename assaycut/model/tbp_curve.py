@@ -269,7 +269,7 @@ def _place_light_ends(g: Rows) -> list[Rows]:
         g.cwarn[r].append("the curve starts at 0 %, so the light-ends analysis is not placed on it")
     for r in np.flatnonzero(scale):
         if abs(v0[r] / last[r] - 1.0) > 0.01:
-            g.cwarn[r].append(f"the light ends add up to {last[r]:.3f} vol %, the first measured point is "
+            g.cwarn[r].append(f"the light ends add up to {pct_text(last[r])} vol %, the first measured point is "
                               f"{pct_text(v0[r])} %; the light-ends volumes are scaled by "
                               f"{(v0[r] / last[r] - 1) * 100:+.2f} % to meet it")
     for r in np.flatnonzero(off):

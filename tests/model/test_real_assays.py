@@ -49,6 +49,7 @@ def test_given_cuts_come_back_as_measured(errs):
     # sulfur (within 1 % relative).
     assert worst(errs["all"], "sg") <= 0.001
     assert worst(errs["all"], "sulfur_rel") <= 0.01
+    assert worst(errs["all"], "vol_pct") <= 0.1
 
 
 def test_cuts_to_650f_come_back_as_measured(errs):
@@ -56,3 +57,4 @@ def test_cuts_to_650f_come_back_as_measured(errs):
     # however the whole crude closes on the rest.
     assert worst(errs["to650"], "sg") <= 0.002
     assert worst(errs["to650"], "sulfur_rel") <= 0.02
+    assert worst(errs["to650"], "vol_pct") <= 0.1
