@@ -1,10 +1,12 @@
 """Every narrow-cut quality on every cut, and estimates where the narrow cuts do not cover a cut.
 
 A quality measured on the narrow cuts (:mod:`assaycut.model.quality_distributions`) reaches a cut as the inverse of its
-blending index's mean over the cut, on the index's basis, where the narrow cuts that measured it cover at
-least :data:`~assaycut.model.quality_distributions.COVERED_FRACTION` of the cut.  Elsewhere a published correlation
-estimates it from the cut's MeABP, SG and Watson K, inside the correlation's stated range only
-(:mod:`assaycut.methods.fraction_properties`), and the value is flagged *estimated*.  Viscosities measured at
+blending index's mean over the cut, on the index's basis.  The part of a cut the narrow cuts that measured it
+do not cover takes an estimate, blended on the index by the shares (:func:`blend_parts`), so the value moves
+continuously with the cut points; the value is then flagged *estimated*.  The estimate is a published
+correlation from the cut's MeABP, SG and Watson K, inside the correlation's stated range only
+(:mod:`assaycut.methods.fraction_properties`), or, without one, the nearest measured cut's index.  A cut no
+narrow cut covers takes the correlation alone.  Viscosities measured at
 two temperatures also give the 40 and 100 °C values by ASTM D341 (flagged estimated).
 """
 
@@ -29,7 +31,6 @@ from ..methods.fraction_properties import (
     viscosity_api_11a4_2,
     viscosity_d341,
 )
-from ..model.quality_distributions import COVERED_FRACTION
 
 T100F_C, T210F_C = 37.7778, 98.8889
 """100 °F and 210 °F. [°C]"""
@@ -79,14 +80,18 @@ def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas,
     some = (vb - va) > 1e-9
     rows = model.row_qualities
     if len(rows) == 1:  # one crude: every row of the queries is a cut set of that crude
-        values = _measured(_wanted(rows[0], only), va, vb, wa, wb, some)
+        parts = _measured(_wanted(rows[0], only), va, vb, wa, wb, some)
     else:  # row r is crude r, each with its own qualities
-        values = {}
+        parts = {}
         for r, quals in enumerate(rows):
-            for name, v in _measured(_wanted(quals, only), va[r], vb[r], wa[r], wb[r], some[r]).items():
-                values.setdefault(name, np.full(va.shape, np.nan))[r] = v
+            for name, (c, icov, iwhole, rule) in _measured(_wanted(quals, only), va[r], vb[r], wa[r], wb[r],
+                                                          some[r]).items():
+                if name not in parts:
+                    parts[name] = (np.zeros(va.shape), np.full(va.shape, np.nan), np.full(va.shape, np.nan), rule)
+                parts[name][0][r], parts[name][1][r], parts[name][2][r] = c, icov, iwhole
+    values: dict[str, np.ndarray] = {}
     estimated["sulfur_wt_pct"] = some & model.sulfur_rows_estimated.reshape((-1,) + (1,) * (va.ndim - 1))
-    add_estimates(values, estimated, meabp, sg, kw, some & ~gas)
+    add_estimates(values, estimated, meabp, sg, kw, some & ~gas, parts)
     return values, estimated
 
 
@@ -112,31 +117,66 @@ def product_quality_columns(model, slice_bounds, f, dv, mass, meabp, sg, kw, gas
         indices, on the quality's basis.
     """
     va, vb, wa, wb = slice_bounds
-    values: dict[str, np.ndarray] = {}
+    parts = {}
     for name, q in model.qualities.items():
         a, b, w = (wa, wb, mass) if q.rule.basis == "wt" else (va, vb, dv)
         weight = f * w[:, None]
+        share, icov = q.covered_index(a, b)
         idx = q.mean_index(a, b)
-        cover = q.coverage(a, b)
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             total = weight.sum(axis=0)
-            mean = (weight * np.nan_to_num(idx)[:, None]).sum(axis=0) / total
-            covered = (weight * (cover >= COVERED_FRACTION)[:, None]).sum(axis=0) / total
-            values[name] = np.where(covered >= COVERED_FRACTION, q.rule.from_index(mean), np.nan)
+            covered = (weight * share[:, None]).sum(axis=0)
+            parts[name] = (covered / total, (weight * (share * np.nan_to_num(icov))[:, None]).sum(axis=0) / covered,
+                           (weight * np.nan_to_num(idx)[:, None]).sum(axis=0) / total, q.rule)
+    values: dict[str, np.ndarray] = {}
     estimated: dict[str, np.ndarray] = {}
     some = f.sum(axis=0) > 0
     if model.sulfur_estimated:
         estimated["sulfur_wt_pct"] = some.copy()
-    add_estimates(values, estimated, meabp, sg, kw, some & ~gas)
+    add_estimates(values, estimated, meabp, sg, kw, some & ~gas, parts)
     return values, estimated
 
 
-def add_estimates(values: dict, estimated: dict, meabp, sg, kw, ok) -> None:
-    """Fill the estimated qualities (:data:`ESTIMATED`) where not measured, inside each correlation's range and
-    where ``ok``; viscosities measured at two temperatures first give the 40 and 100 °C values by ASTM D341."""
+def add_estimates(values: dict, estimated: dict, meabp, sg, kw, ok, parts=None) -> None:
+    """The narrow-cut qualities of each cut from the part of it the narrow cuts cover, blended with an estimate
+    for the rest (:func:`blend_parts`), then the estimated qualities (:data:`ESTIMATED`) where nothing was
+    measured, inside each correlation's range and where ``ok``; viscosities measured at two temperatures also
+    give the 40 and 100 °C values by ASTM D341.  ``parts``: {quality: (covered share, covered mean index, whole
+    mean index, rule)} (:func:`_measured`)."""
     shape = np.shape(meabp)
-    _d341_from_measured(values, estimated)
     ok = ok & np.isfinite(meabp) & np.isfinite(sg)
+    est = _estimates(meabp, sg, kw, ok)
+    for name, part in (parts or {}).items():
+        values[name], estimated[name] = blend_parts(*part, *est.get(name, (np.full(shape, np.nan), False)))
+    _d341_from_measured(values, estimated)
+    for name, (v, valid) in est.items():
+        have = values.get(name, np.full(shape, np.nan))
+        fill = ~np.isfinite(have) & valid & np.isfinite(v)
+        values[name] = np.where(fill, v, have)
+        estimated[name] = fill | estimated.get(name, np.zeros(shape, bool))
+
+
+def blend_parts(share, covered_index, whole_index, rule, estimate, valid):
+    """A quality of cuts partly covered by the narrow cuts that measured it: the covered part's mean index and
+    an estimate for the rest, blended on the quality's index by their shares, I = c I_covered + (1 - c)
+    I(estimate); without an estimate for the cut, the rest takes the index of the nearest narrow cut (the
+    distribution held flat beyond the measured cuts).  Continuous in the cut's ends: a cut wholly covered is
+    its measured value, and the share moves with the ends.  Returns the values and whether any part is
+    estimated (c < 1); NaN where nothing of the cut is covered."""
+    share = np.asarray(share, dtype=float)
+    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
+        ie = rule.to_index(np.asarray(estimate, dtype=float))
+        use = np.asarray(valid, dtype=bool) & np.isfinite(ie)
+        rest = np.where(use, ie, whole_index)
+        idx = np.where(share >= 1.0, covered_index, np.where(share > 0, share * np.nan_to_num(covered_index)
+                                                             + (1.0 - share) * rest, np.nan))
+        idx = np.where(~use & (share > 0) & (share < 1.0), whole_index, idx)
+        v = rule.from_index(idx)
+    return v, (share < 1.0) & np.isfinite(v)
+
+
+def _estimates(meabp, sg, kw, ok) -> dict:
+    """{quality: (estimate, inside the correlation's range and ``ok``)} for :data:`ESTIMATED`."""
     with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
         nu100f, nu210f = viscosity_api_11a4_2(meabp, kw)
         est = {
@@ -150,11 +190,7 @@ def add_estimates(values: dict, estimated: dict, meabp, sg, kw, ok) -> None:
             "refractive_index_20c": (refractive_index_riazi_daubert_1987(meabp, sg),
                                      ok & refractive_index_in_range(meabp)),
         }
-    for name, (v, valid) in est.items():
-        have = values.get(name, np.full(shape, np.nan))
-        fill = ~np.isfinite(have) & valid & np.isfinite(v)
-        values[name] = np.where(fill, v, have)
-        estimated[name] = fill | estimated.get(name, np.zeros(shape, bool))
+    return est
 
 
 def _wanted(qualities: dict, only) -> dict:
@@ -166,14 +202,14 @@ def _wanted(qualities: dict, only) -> dict:
     return {n: q for n, q in qualities.items() if n in only or (visc and VISCOSITY.match(n))}
 
 
-def _measured(qualities: dict, va, vb, wa, wb, some) -> dict[str, np.ndarray]:
-    """The narrow-cut qualities of one crude over its cuts (NaN where the narrow cuts do not cover a cut)."""
+def _measured(qualities: dict, va, vb, wa, wb, some) -> dict[str, tuple]:
+    """The narrow-cut qualities of one crude over its cuts: {quality: (covered share, the covered part's mean
+    index, the whole cut's mean index, rule)} (share 0 for an empty cut)."""
     out = {}
     for name, q in qualities.items():
         a, b = (wa, wb) if q.rule.basis == "wt" else (va, vb)
-        with np.errstate(invalid="ignore", over="ignore"):
-            v = q.rule.from_index(q.mean_index(a, b))
-        out[name] = np.where((q.coverage(a, b) >= COVERED_FRACTION) & some, v, np.nan)
+        share, icov = q.covered_index(a, b)
+        out[name] = (np.where(some, share, 0.0), icov, q.mean_index(a, b), q.rule)
     return out
 
 

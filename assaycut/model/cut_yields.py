@@ -62,7 +62,7 @@ def _row_points(p, t, start, end, y):
     p, t = np.asarray(p, dtype=float), np.asarray(t, dtype=float)
     order = np.argsort(np.where(np.isnan(start), -np.inf, start), kind="stable")
     lin = lambda x: float(np.interp(x, t, p)) if t[0] <= x <= t[-1] else np.nan  # noqa: E731
-    ends, cum, knots_t, knots_d, gaps, warn = [], [], [], [], [], []
+    ends, knots_t, knots_d, gaps, warn = [], [], [], [], []
     run_t, run_c = None, None
     for i in order:
         a, b, v = start[i], end[i], y[i]

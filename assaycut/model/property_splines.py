@@ -85,10 +85,11 @@ def partition_spline_rows(g: Rows, name: str, iterations: int = 30, floor: float
     ``pl``, ``ph`` (R, K) with their means ``pv`` tile a stretch of the crude (in any order, without overlap),
     and the points ``pfx``, ``pfy`` held before it.
 
-    Nodes: every interval's ends and middle.  An end between two intervals takes the harmonic mean of their
-    values (the arithmetic mean without ``floor``, for a property that may be negative), the outer ends their
-    interval's value; the middles are then solved so that each interval's mean is its value
-    (:func:`mean_match_arrays`).  With the harmonic mean an end is at most twice the smaller neighbour, so the
+    Nodes: every interval's ends and middle.  An end between two intervals takes their values interpolated
+    between their middles, geometrically (linearly without ``floor``, for a property that may be negative), so
+    that a wide neighbour (a long stretch the cuts do not cover) barely moves the end of a narrow measured cut;
+    the outer ends take their interval's value; the middles are then solved so that each interval's mean is its
+    value (:func:`mean_match_arrays`).  With ``floor`` an end is at most twice the smaller neighbour, so the
     middle that meets a small mean beside a large one stays positive: a content spanning orders of magnitude
     (sulfur from 1e-5 to 3 wt %) is matched as closely as a gravity.  Sets as :func:`property_spline_rows`.
     """
@@ -96,9 +97,14 @@ def partition_spline_rows(g: Rows, name: str, iterations: int = 30, floor: float
     for s in g.split(np.argsort(g.pl, axis=1, kind="stable")):
         order = np.argsort(s.pl[0], kind="stable")
         lo, hi, val = s.pl[:, order], s.ph[:, order], s.pv[:, order]
-        with np.errstate(invalid="ignore", divide="ignore"):
-            inner = (np.where((val[:, :-1] > 0) & (val[:, 1:] > 0), 2 * val[:, :-1] * val[:, 1:] / (val[:, :-1] + val[:, 1:]),
-                              0.0) if floor is not None else 0.5 * (val[:, :-1] + val[:, 1:]))
+        mids = 0.5 * (lo + hi)
+        w = (hi[:, :-1] - mids[:, :-1]) / (mids[:, 1:] - mids[:, :-1])  # each inner end between the two middles
+        v0, v1 = val[:, :-1], val[:, 1:]
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            if floor is not None:
+                inner = np.where((v0 > 0) & (v1 > 0), np.minimum(v0 * (v1 / v0) ** w, 2.0 * np.minimum(v0, v1)), 0.0)
+            else:
+                inner = v0 + w * (v1 - v0)
         bounds = np.concatenate([lo[:, :1], hi], axis=1)
         x = np.empty((s.n, 2 * lo.shape[1] + 1))
         x[:, 0::2], x[:, 1::2] = bounds, 0.5 * (lo + hi)

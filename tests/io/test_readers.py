@@ -193,7 +193,7 @@ def test_csv_yields_run(tmp_path):
 
     d = json.loads(r.stdout)
     assert d["assay"]["name"] == "quick"
-    assert any("constant Watson K" in m for m in d["methods"].values())
+    assert any("Watson K" in m and "fitted to the whole-crude gravity" in m for m in d["methods"].values())
     assert any("sulfur" in w for w in d["warnings"])
 
 
