@@ -58,3 +58,18 @@ def test_cuts_to_650f_come_back_as_measured(errs):
     assert worst(errs["to650"], "sg") <= 0.002
     assert worst(errs["to650"], "sulfur_rel") <= 0.02
     assert worst(errs["to650"], "vol_pct") <= 0.1
+
+
+def test_whole_crude_only_gravity_meets_its_goal(errs):
+    # Goal: with whole-crude data only, every cut's SG within 0.015 on average (the light naphtha's Watson K
+    # raised toward paraffins; a constant Watson K gave 0.0161).
+    assert mean(errs["whole"], "sg") <= 0.015
+
+
+def test_whole_crude_only_sulfur_and_held_back_cuts_stay_at_their_present_errors(errs):
+    # The goals are sulfur 50 % (whole crude only), SG 0.008 and sulfur 10 % (a cut held back); not reached yet.
+    # These bounds hold what is reached (whole-crude sulfur 53 %, hold-out SG 0.0121 and sulfur 30 %) so that
+    # no change makes them worse unnoticed; the README's accuracy table gives the figures per cut.
+    assert mean(errs["whole"], "sulfur_rel") <= 0.55
+    assert mean(errs["holdout"], "sg") <= 0.0125
+    assert mean(errs["holdout"], "sulfur_rel") <= 0.31
