@@ -34,7 +34,7 @@ from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
 from .quality_distributions import estimated_sulfur_rows, quality_distributions
 from .rows import Rows, each
-from .tbp_curve import curve_rows, staircase, tbp_curve_of
+from .tbp_curve import curve_rows, flat_tail_rows, staircase, tbp_curve_of
 
 
 def build_model(assay: Assay, method: str = "daubert-1994", qualities: bool = True,
@@ -221,7 +221,7 @@ def build_rows(g: Rows, method: str = "daubert-1994", reconcile: bool = False) -
         whats)
     g = g.fail([f is not None for f in faults],
                lambda r: InputError(faults[r][0], file=(g.assay[r].source or None) if faults[r][1] else None))
-    sets = each(_tbp_points(g, method), cut_yield_points, base.curves[0].basis)
+    sets = each(each(_tbp_points(g, method), cut_yield_points, base.curves[0].basis), flat_tail_rows)
     if base.curves[0].basis == "wt":
         return each(sets, _weight_basis)
     for s in sets:

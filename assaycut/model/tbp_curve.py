@@ -241,6 +241,48 @@ def _checked_points(g: Rows) -> Rows:
     return g.fail(flat | falls.any(axis=1), error)
 
 
+FLAT_TAIL_RATIO = 0.4
+"""A curve's last interval rising by less than this share of the curve's typical slope (°C per %, the median of
+its intervals before the last three) levels off (our choice)."""
+
+
+def flat_tail_rows(g: Rows) -> list[Rows]:
+    """The measured points ``p`` [%], ``t`` [°C] (R, n) of rows whose curve levels off at its end (cracking in the
+    still, or the end of an atmospheric run: 335/341/342 °C at 55/60/65 %) without the flat points: removed one by
+    one from the end while the last interval rises by less than :data:`FLAT_TAIL_RATIO` of the typical slope,
+    keeping at least four points and any point at 100 %.  The extension then continues from the last point that
+    rises as the curve does, and the points left out are named in a warning (``warn``).  The set comes back
+    split where rows keep different numbers of points."""
+    order = np.argsort(g.p, axis=1, kind="stable")
+    v, t = np.take_along_axis(g.p, order, axis=1), np.take_along_axis(g.t, order, axis=1)
+    n = v.shape[1]
+    if n < 6:
+        return [g]
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        slope = (t[:, 1:] - t[:, :-1]) / (v[:, 1:] - v[:, :-1])
+        ref = np.median(slope[:, :-3], axis=1)
+    keep = np.full(g.n, n)
+    for r in range(g.n):
+        if not np.isfinite(ref[r]) or ref[r] <= 0.0:
+            continue
+        while keep[r] > 4 and v[r, keep[r] - 1] < 100.0 and slope[r, keep[r] - 2] < FLAT_TAIL_RATIO * ref[r]:
+            keep[r] -= 1
+        if keep[r] < n:
+            g.warn[r].append(
+                f"the curve levels off at its end: {', '.join(f'{t[r, k]:.0f}' for k in range(keep[r] - 1, n))} °C at "
+                f"{', '.join(pct_text(v[r, k]) for k in range(keep[r] - 1, n))} % (typical rise {ref[r]:.1f} °C per "
+                f"%); cracking in the still or the end of the atmospheric run is likely, so the point(s) above "
+                f"{pct_text(v[r, keep[r] - 1])} % are left out and the extension continues from there; a vacuum "
+                f"distillation or a simulated distillation (ASTM D7169) would measure the heavy end")
+    if (keep == n).all():
+        return [g]
+    out = []
+    for k in np.unique(keep):
+        sel = keep == k
+        out.append(g.take(sel).put(p=v[sel, :k], t=t[sel, :k]))
+    return out
+
+
 def _widen_repeats(g: Rows) -> None:
     """Repeated temperatures at rising percent become vertical steps :data:`STEP_C` wide (with a warning)."""
     v, t = g.mv, g.mt

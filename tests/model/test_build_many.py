@@ -224,7 +224,7 @@ def test_weight_basis_curves_meet_their_nodes():
         a = Assay(f"wt {k}", float(rng.uniform(0.75, 0.98)), [CurveData("TBP", "wt", pct.copy(), temps)])
         m = build_model(a)
         v = m.curve.measured_pct
-        assert np.max(np.abs(m.wt_at_vol(v) - pct)) < 1e-9, k
+        assert np.max(np.abs(m.wt_at_vol(v) - pct[:v.size])) < 1e-9, k  # a levelling-off tail is left out
 
 
 def test_curve_warnings_name_their_own_curve_once_in_any_batch():
