@@ -119,12 +119,30 @@ def table() -> dict[str, dict[str, float]]:
     return out
 
 
+def per_cut(case: str) -> list[dict]:
+    """Per cut position of the records, the mean absolute SG error and mean relative sulfur error in ``case``."""
+    recs = records()
+    errs = [e for r in recs for e in errors(r, case)]
+    out = []
+    for k, c in enumerate(recs[0]["cuts"]):
+        e = [x for x in errs if x["cut"] == k]
+        if e:
+            with np.errstate(invalid="ignore"):
+                out.append({"cut": c["name"], "n": len(e), "sg": float(np.nanmean(np.abs([x["sg"] for x in e]))),
+                            "sulfur_pct": 100 * float(np.nanmean(np.abs([x["sulfur_rel"] for x in e])))})
+    return out
+
+
 def main() -> None:
     print(f"{'case':<9}{'cuts':>5}{'SG mean':>9}{'SG max':>8}{'vol mean':>9}{'vol max':>8}{'S mean %':>9}"
           f"{'S max %':>8}")
     for case, r in table().items():
         print(f"{case:<9}{r['n']:>5}{r['sg_mean']:>9.4f}{r['sg_max']:>8.4f}{r['vol_mean']:>9.2f}{r['vol_max']:>8.2f}"
               f"{r['sulfur_mean_pct']:>9.1f}{r['sulfur_max_pct']:>8.1f}")
+    for case in ("holdout", "whole"):
+        print(f"\n{case}: per cut, mean absolute SG error and mean relative sulfur error")
+        for r in per_cut(case):
+            print(f"  {r['cut']:<34}{r['n']:>4}{r['sg']:>9.4f}{r['sulfur_pct']:>8.0f} %")
 
 
 if __name__ == "__main__":

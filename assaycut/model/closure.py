@@ -67,13 +67,13 @@ DENSITY_CLOSURE = Closure(0.010, 0.030, 0.003, False)
 SG (the 25 open development-set assays' cuts add up to their crude's gravity within 0.0021 SG on average, up to
 0.0050; the estimates' figures are our choice, set on the same records' held-back cuts)."""
 SULFUR_CLOSURE = Closure(0.6, 0.6, 0.01, True)
-"""The sulfur's: a gap's first estimate (:func:`_log_prior`) uncertain by 60 % (its error on the development
+"""The sulfur's: a gap's first estimate (:func:`log_prior`) uncertain by 60 % (its error on the development
 set's held-back cuts averages 45 %), the balance by 1 % of the whole-crude sulfur (our choice: a crude's sulfur
 and its cuts' usually close within a few per cent in a laboratory's assay; the development set's close within
 0.02 %, so there the gaps are closed nearly by difference)."""
 
 
-def closed_by_difference(g: Rows, covered_to, total, rule: Closure) -> list[Rows]:
+def closed_by_difference(g: Rows, covered_to, total, rule: Closure, prior=None) -> list[Rows]:
     """The property splines of a set with the whole-crude balance closed on the gaps (see :class:`Closure`).
 
     Row fields read: ``pl``, ``ph``, ``pv`` (the measured cuts, as :func:`~assaycut.model.property_splines.property_spline_rows` took them),
@@ -81,7 +81,8 @@ def closed_by_difference(g: Rows, covered_to, total, rule: Closure) -> list[Rows
     the light ends cover the crude [%]; ``total`` (R,): the whole-crude value (NaN: none given, the gaps then
     keep their estimate).  Row fields set: ``raw`` (the spline through the cuts and the gaps), ``closure`` (the
     whole-crude value less the spline's, per 100 %; NaN without one) and ``gap_pct`` (the share of the crude
-    in gaps [%]).
+    in gaps [%]).  ``prior(s, a, b)``: the gaps' first estimate, amounts (R, G) over the gaps [a, b]; by default
+    the spline's integral, or :func:`log_prior` for a ``relative`` rule.
     """
     g.put(c0=np.asarray(covered_to, dtype=float), total=np.asarray(total, dtype=float))
     out = []
@@ -91,11 +92,11 @@ def closed_by_difference(g: Rows, covered_to, total, rule: Closure) -> list[Rows
         starts = np.concatenate([s.c0[:, None], np.maximum.accumulate(hi, axis=1)], axis=1)
         ends = np.concatenate([lo, np.full((s.n, 1), 100.0)], axis=1)
         s.put(ga=starts, gb=ends)
-        out += each(s.split(ends - starts > GAP_MIN_PCT), _close_set, rule)
+        out += each(s.split(ends - starts > GAP_MIN_PCT), _close_set, rule, prior)
     return out
 
 
-def _close_set(s: Rows, rule: Closure) -> list[Rows]:
+def _close_set(s: Rows, rule: Closure, prior_fn=None) -> list[Rows]:
     gap = s.gb[0] - s.ga[0] > GAP_MIN_PCT
     a, b = s.ga[:, gap], s.gb[:, gap]
     zero, hundred = np.zeros((s.n, 1)), np.full((s.n, 1), 100.0)
@@ -103,7 +104,8 @@ def _close_set(s: Rows, rule: Closure) -> list[Rows]:
         return [t.put(closure=(100.0 * t.total - t.raw.integral(zero[:t.n], hundred[:t.n])[:, 0]) / 100.0,
                       gap_pct=np.zeros(t.n)) for t in partition_spline_rows(s, "raw")]
     width = b - a
-    prior = _log_prior(s, a, b) if rule.relative else s.raw.integral(a, b)
+    prior = (prior_fn(s, a, b) if prior_fn is not None else log_prior(s, a, b) if rule.relative
+             else s.raw.integral(a, b))
     measured = row_sum(s.pv * (s.ph - s.pl)) + s.raw.integral(zero, s.c0[:, None])[:, 0]
     delta = 100.0 * s.total - measured - row_sum(prior)
     end = (np.flatnonzero(gap) == 0) | (np.flatnonzero(gap) == gap.size - 1)
@@ -129,7 +131,7 @@ PRIOR_SLICES = 8
 """Slices of a gap on which a content's first estimate is averaged."""
 
 
-def _log_prior(s: Rows, a, b):
+def log_prior(s: Rows, a, b):
     """A content's first estimate of each gap [a, b] (R, G): its amount (mean x width), the mean of exp(L) with L
     the monotone spline of the logarithm of the measured cuts' values against their middles (held flat beyond
     them), over :data:`PRIOR_SLICES` slices: contents such as sulfur vary by orders of magnitude over the

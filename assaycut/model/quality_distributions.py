@@ -21,9 +21,8 @@ import numpy as np
 from ..methods.blending_indices import BlendRule, rule_for
 from ..methods.pchip import Pchip
 from .assay import Assay
-from .distributions import narrow_cut_positions, weight_distilled
+from .distributions import narrow_cut_positions, sulfur_shape, weight_distilled
 from .property_splines import property_spline_rows
-from .lightends import GAS_RANGE_MAX_C
 from .rows import Rows
 from .tbp_curve import volume_average_temp
 
@@ -198,34 +197,6 @@ def _reconcile(q: Quality, assay: Assay, warnings: list[str]) -> str:
 
 SULFUR_SLICES = 100
 """Slices of the curve on which the sulfur of a crude without narrow-cut sulfur is estimated."""
-
-
-SULFUR_SHAPE = ((50.0, -4.565, -1.02), (121.0, -2.958, -0.68), (207.0, -1.65, -0.45), (296.0, -0.414, -0.29),
-                (426.0, -0.041, -0.31), (625.0, 0.276, -0.44))
-"""The sulfur of a cut over the crude's by the cut's mid TBP [°C], as (T, a, b): log10(S_cut / S_crude) =
-a + b log10(S_crude [wt %]), fitted on the 25 open assays of the development set (NOAA ADIOS records, CC0;
-their seven cuts at the cuts' mid-volume TBP on the model's curve): b by least squares on the logarithms, then
-a so that the mean relative error of each cut, after the scaling to the crude, is least (the weighted median).
-Low-sulfur crudes carry relatively more of it in their light cuts: the light naphtha holds about the same few
-ppm whatever the crude.  On the logarithm the cuts scatter about the fit by 0.76 (light naphtha) down to 0.17
-(480-650 °F), a factor of 6 to 1.5."""
-
-
-def sulfur_shape(tb_c, crude_sulfur_wt_pct):
-    """Relative sulfur content by TBP [°C] for a crude of the given sulfur [wt %] (:data:`SULFUR_SHAPE`): an
-    empirical shape of our own, a and b interpolated linearly in T between the points, held beyond the last,
-    extended below the first; 0 below n-pentane's boiling point (36.1 °C).  Range: crudes like the development
-    set's (0.003-2.9 wt % S, API 24-50)."""
-    t = np.asarray(tb_c, dtype=float)
-    x = np.array([p[0] for p in SULFUR_SHAPE])
-    log = np.zeros(np.broadcast(t, np.asarray(crude_sulfur_wt_pct)).shape)
-    ls = np.log10(np.maximum(np.asarray(crude_sulfur_wt_pct, dtype=float), 1e-6))
-    for k in (1, 2):
-        y = np.array([p[k] for p in SULFUR_SHAPE])
-        slope = (y[1] - y[0]) / (x[1] - x[0])
-        part = np.where(t < x[0], y[0] + slope * (t - x[0]), np.interp(t, x, y))
-        log = log + (part if k == 1 else part * ls)
-    return np.where(t < GAS_RANGE_MAX_C, 0.0, 10.0 ** log)
 
 
 def estimated_sulfur_rows(g: Rows) -> list[Rows]:

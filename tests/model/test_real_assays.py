@@ -66,10 +66,15 @@ def test_whole_crude_only_gravity_meets_its_goal(errs):
     assert mean(errs["whole"], "sg") <= 0.015
 
 
-def test_whole_crude_only_sulfur_and_held_back_cuts_stay_at_their_present_errors(errs):
-    # The goals are sulfur 50 % (whole crude only), SG 0.008 and sulfur 10 % (a cut held back); not reached yet.
-    # These bounds hold what is reached (whole-crude sulfur 53 %, hold-out SG 0.0121 and sulfur 30 %) so that
-    # no change makes them worse unnoticed; the README's accuracy table gives the figures per cut.
+def test_a_held_back_cut_gravity_meets_its_goal(errs):
+    # Goal: each interior cut held back in turn, its SG predicted within 0.008 on average (the gap takes its
+    # neighbours' Watson K; interpolating their SG gave 0.0121).
+    assert mean(errs["holdout"], "sg") <= 0.008
+
+
+def test_whole_crude_only_and_held_back_sulfur_stay_at_their_present_errors(errs):
+    # The goals are sulfur 50 % (whole crude only) and 10 % (a cut held back); not reached.  These bounds hold
+    # what is reached (53 % and 28 %, the light cuts' ppm-level sulfur the largest part) so that no change makes
+    # them worse unnoticed; the README's accuracy table gives the figures per cut.
     assert mean(errs["whole"], "sulfur_rel") <= 0.55
-    assert mean(errs["holdout"], "sg") <= 0.0125
-    assert mean(errs["holdout"], "sulfur_rel") <= 0.31
+    assert mean(errs["holdout"], "sulfur_rel") <= 0.29
