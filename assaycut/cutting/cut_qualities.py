@@ -32,6 +32,8 @@ from ..methods.fraction_properties import (
     viscosity_d341,
 )
 
+GRAVITY_COLUMNS = ("sg", "api", "density_15c_kg_m3", "watson_k")
+"""The columns estimated with the density where no narrow cut measured it (a Watson K fitted to the crude)."""
 T100F_C, T210F_C = 37.7778, 98.8889
 """100 °F and 210 °F. [°C]"""
 STANDARD_VISCOSITY_C = (40.0, 100.0)
@@ -91,6 +93,8 @@ def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas,
                 parts[name][0][r], parts[name][1][r], parts[name][2][r] = c, icov, iwhole
     values: dict[str, np.ndarray] = {}
     estimated["sulfur_wt_pct"] = some & model.sulfur_rows_estimated.reshape((-1,) + (1,) * (va.ndim - 1))
+    for name in GRAVITY_COLUMNS:  # a density distribution at a fitted Watson K
+        estimated[name] = some & model.sg_rows_estimated.reshape((-1,) + (1,) * (va.ndim - 1))
     add_estimates(values, estimated, meabp, sg, kw, some & ~gas, parts)
     return values, estimated
 
@@ -133,6 +137,9 @@ def product_quality_columns(model, slice_bounds, f, dv, mass, meabp, sg, kw, gas
     some = f.sum(axis=0) > 0
     if model.sulfur_estimated:
         estimated["sulfur_wt_pct"] = some.copy()
+    if model.watson_k_fit is not None:
+        for name in GRAVITY_COLUMNS:
+            estimated[name] = some.copy()
     add_estimates(values, estimated, meabp, sg, kw, some & ~gas, parts)
     return values, estimated
 

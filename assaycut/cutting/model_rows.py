@@ -68,6 +68,8 @@ class BatchModel:
         Each crude's narrow-cut qualities.
     sulfur_rows_estimated : numpy.ndarray
         (R,) True where the sulfur distribution is estimated from the whole crude.
+    sg_rows_estimated : numpy.ndarray
+        (R,) True where the density distribution is estimated (a Watson K fitted to the whole crude).
     """
 
     def __init__(self, models: list[CrudeModel]):
@@ -85,7 +87,7 @@ class BatchModel:
         self._setup(curve, sg_dist, sulfur, [m.sg for m in models],
                     [np.nan if m.sulfur_wt_pct is None else m.sulfur_wt_pct for m in models],
                     [m.all_on_extension != "" for m in models], [m.qualities for m in models],
-                    [m.sulfur_estimated for m in models])
+                    [m.sulfur_estimated for m in models], [m.watson_k_fit is not None for m in models])
 
     @classmethod
     def from_rows(cls, sets) -> "BatchModel":
@@ -101,10 +103,12 @@ class BatchModel:
         out._setup(curve, Pchip.stack([s.sg_dist for s in sets]), sulfur, cat("sg"),
                    np.concatenate([np.where(s.s_given | (s.sulfur_dist is not None), s.sulfur, np.nan) for s in sets]),
                    np.array([t != "" for s in sets for t in s.on_ext]), [{}] * n,
-                   np.concatenate([np.full(s.n, s.estimated) for s in sets]))
+                   np.concatenate([np.full(s.n, s.estimated) for s in sets]),
+                   np.concatenate([~np.isnan(s.kw) for s in sets]))
         return out
 
-    def _setup(self, curve, sg_dist, sulfur_dist, sg, sulfur_wt_pct, on_extension, qualities, estimated):
+    def _setup(self, curve, sg_dist, sulfur_dist, sg, sulfur_wt_pct, on_extension, qualities, estimated,
+               sg_estimated):
         self.curve, self.sg_dist, self.sulfur_dist = curve, sg_dist, sulfur_dist
         self.n = len(sg)
         self.sg = np.asarray(sg, dtype=float).reshape(-1, 1)
@@ -113,6 +117,7 @@ class BatchModel:
         self.on_extension = np.asarray(on_extension, dtype=bool)
         self.row_qualities = qualities
         self.sulfur_rows_estimated = np.asarray(estimated, dtype=bool)
+        self.sg_rows_estimated = np.asarray(sg_estimated, dtype=bool)
 
     def _col(self, arr, like):
         return arr.reshape((-1,) + (1,) * (np.ndim(like) - 1))

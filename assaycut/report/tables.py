@@ -288,11 +288,12 @@ def quality_text_table(cuts) -> str:
 
 
 def text_table(cuts) -> str:
-    """The cut table as aligned plain text for the terminal."""
+    """The cut table as aligned plain text for the terminal; estimated values end in '~'."""
     cols = _shown(TERMINAL_COLUMNS, cuts)
     head = [h for _, h, _ in cols]
-    body = [[_fmt(r[c], nd) if c != "name" else str(r[c]) for c, _, nd in cols]
-            for r in cuts.rows()]
+    body = [[str(r[c]) if c == "name" else _fmt(r[c], nd) + ("~" if c in r.get("estimated", ()) and _fmt(r[c], nd)
+                                                                 != "-" else "")
+             for c, _, nd in cols] for r in cuts.rows()]
     widths = [max(len(x) for x in col) for col in zip(head, *body)]
     lines = ["  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, (h, w) in enumerate(zip(head, widths)))]
     lines.append("  ".join("-" * w for w in widths))
