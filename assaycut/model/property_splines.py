@@ -88,7 +88,8 @@ def partition_spline_rows(g: Rows, name: str, iterations: int = 30, floor: float
     Nodes: every interval's ends and middle.  An end between two intervals takes their values interpolated
     between their middles, geometrically (linearly without ``floor``, for a property that may be negative), so
     that a wide neighbour (a long stretch the cuts do not cover) barely moves the end of a narrow measured cut;
-    the outer ends take their interval's value; the middles are then solved so that each interval's mean is its
+    the outer ends continue the straight line from the inner end through the interval's value (no hump at the
+    crude's ends), floored at ``floor``; the middles are then solved so that each interval's mean is its
     value (:func:`mean_match_arrays`).  With ``floor`` an end is at most twice the smaller neighbour, so the
     middle that meets a small mean beside a large one stays positive: a content spanning orders of magnitude
     (sulfur from 1e-5 to 3 wt %) is matched as closely as a gravity.  Sets as :func:`property_spline_rows`.
@@ -109,7 +110,13 @@ def partition_spline_rows(g: Rows, name: str, iterations: int = 30, floor: float
         x = np.empty((s.n, 2 * lo.shape[1] + 1))
         x[:, 0::2], x[:, 1::2] = bounds, 0.5 * (lo + hi)
         y = np.empty_like(x)
-        y[:, 0::2] = np.concatenate([val[:, :1], inner, val[:, -1:]], axis=1)
+        if inner.shape[1]:  # the outer ends continue the slope into the outer intervals (mean at the middle)
+            first, last = 2.0 * val[:, :1] - inner[:, :1], 2.0 * val[:, -1:] - inner[:, -1:]
+            if floor is not None:
+                first, last = np.maximum(first, floor), np.maximum(last, floor)
+        else:
+            first, last = val[:, :1], val[:, -1:]
+        y[:, 0::2] = np.concatenate([first, inner, last], axis=1)
         y[:, 1::2] = val
         x, y = np.concatenate([s.pfx, x], axis=1), np.concatenate([s.pfy, y], axis=1)
         is_cut = np.zeros(x.shape[1], dtype=bool)

@@ -123,7 +123,8 @@ def plot_properties(result, target) -> None:
     m = result.model
     v = np.linspace(0.0, 100.0, 401)
     fig, (a1, a2) = plt.subplots(1, 2, figsize=(11, 4.5))
-    a1.plot(v, m.sg_dist(v), color="#2e7d32", label="density distribution (reconciled)")
+    a1.plot(v, m.sg_dist(v), color="#2e7d32", label="density distribution (cuts as measured)" if m.density_reconciliation_pct is None else
+            "density distribution (scaled to the crude)")
     nc = result.assay.narrow_cuts
     if nc is not None and m.density_source.startswith("narrow"):
         from ..model.distributions import narrow_cut_positions
@@ -139,8 +140,9 @@ def plot_properties(result, target) -> None:
     w = np.linspace(0.0, 100.0, 401)
     if m.sulfur_dist is not None:
         a2.plot(w, m.sulfur_dist(w), color="#f9a825",
-                label="sulfur distribution (reconciled)" if not m.sulfur_estimated else
-                "ESTIMATED from the whole-crude sulfur (Riazi et al. 1999 shape)")
+                label=("ESTIMATED from the whole-crude sulfur (development-set shape)" if m.sulfur_estimated else
+                       "sulfur distribution (cuts as measured)" if m.sulfur_reconciliation_pct is None else
+                       "sulfur distribution (scaled to the crude)"))
         if nc is not None:
             from ..model.distributions import narrow_cut_positions
 

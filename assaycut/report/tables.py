@@ -282,7 +282,8 @@ def quality_text_table(cuts) -> str:
     lines.append("  ".join("-" * w for w in widths))
     for row in body:
         lines.append("  ".join(x.ljust(w) if i == 0 else x.rjust(w) for i, (x, w) in enumerate(zip(row, widths))))
-    lines.append("~ estimated by a published correlation (no narrow-cut data covers the cut); every quality is in "
+    lines.append("~ estimated in whole or part (a correlation, or the nearest measured cut, where no narrow cut measured "
+                 "it); every quality is in "
                  "the report's qualities sheet")
     return "\n".join(lines)
 

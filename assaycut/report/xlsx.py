@@ -264,7 +264,8 @@ def _qualities_sheet(ws, cuts) -> None:
                 ws.cell(row=i, column=j).font = Font(italic=True)
     r0 = len(rows) + 3
     legend = [("measured", "from the narrow cuts, blended by each property's rule (plain)", None),
-              ("estimated", "by a published correlation inside its range (shaded, italic; see the notes sheet)",
+              ("estimated", "in whole or part: the part no narrow cut measured by a published correlation inside its "
+                            "range, or the nearest measured cut (shaded, italic; see the notes sheet)",
                ESTIMATED_FILL),
               ("extrapolated", "the cut depends on the curve's fitted extension (cut name shaded)", EXTRAPOLATED_FILL),
               ("empty", "no narrow-cut data covers the cut and no correlation applies", None)]

@@ -476,7 +476,7 @@ async function loadCrude(name) {
 function drawFooter(notes) {
   const marks = document.getElementById("legend-marks");
   marks.replaceChildren(
-    el("span", {}, "~ estimated by a published correlation (no narrow-cut data covers the cut)"),
+    el("span", {}, "~ estimated in whole or part (a correlation, or the nearest measured cut, where no narrow cut measured it)"),
     el("span", {}, "ext: the cut depends on the curve's fitted extension"),
     el("span", {}, "* flash points are correlation estimates: measure them (ASTM D93)"),
     el("span", {}, "Δ: change from the starting cut points"));
