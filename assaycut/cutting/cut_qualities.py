@@ -174,10 +174,8 @@ def blend_parts(share, covered_index, whole_index, rule, estimate, valid):
     with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
         ie = rule.to_index(np.asarray(estimate, dtype=float))
         use = np.asarray(valid, dtype=bool) & np.isfinite(ie)
-        rest = np.where(use, ie, whole_index)
-        idx = np.where(share >= 1.0, covered_index, np.where(share > 0, share * np.nan_to_num(covered_index)
-                                                             + (1.0 - share) * rest, np.nan))
-        idx = np.where(~use & (share > 0) & (share < 1.0), whole_index, idx)
+        partly = np.where(use, share * np.nan_to_num(covered_index) + (1.0 - share) * ie, whole_index)
+        idx = np.where(share >= 1.0, covered_index, np.where(share > 0, partly, np.nan))
         v = rule.from_index(idx)
     return v, (share < 1.0) & np.isfinite(v)
 

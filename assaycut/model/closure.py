@@ -18,8 +18,8 @@ def closure_text(gap_pct, basis, closure, unit, what, digits) -> str:
     """The methods note's words on how a property's whole-crude balance was closed."""
     text = ""
     if gap_pct > GAP_MIN_PCT:
-        text = (f"; the {gap_pct:.2f} {basis} of the crude no cut covers estimated from the spline and closed on "
-                f"the whole-crude {what} by least squares")
+        text = (f"; the {gap_pct:.2f} {basis} of the crude no cut covers estimated from the cuts around it and "
+                f"closed on the whole-crude {what} by least squares")
     if np.isfinite(closure) and abs(closure) >= 0.5 * 10.0 ** -digits:
         text += (f"; the cuts and the whole-crude {what} disagree by {closure:+.{digits}f} {unit} (left as "
                  f"measured)")
@@ -35,7 +35,8 @@ this on the curve carries no weight in the distributions. [%]"""
 class Closure:
     """How a property's whole-crude balance is closed on the part of the crude the narrow cuts do not cover.
 
-    The distribution through the measured cuts (:func:`~assaycut.model.property_splines.property_spline_rows`) gives each uncovered stretch (a
+    The distribution through the measured cuts (:func:`~assaycut.model.property_splines.property_spline_rows`)
+    or a prior of the property's own gives each uncovered stretch (a
     *gap*: before the first cut, between two, after the last) a first estimate; the whole-crude value then
     says how much the gaps hold together.  The two are combined by least squares with the stated standard
     deviations: the gaps move by Δ·var_g / (Σ var + var_balance), where Δ = 100·whole-crude value - the first
@@ -76,7 +77,8 @@ and its cuts' usually close within a few per cent in a laboratory's assay; the d
 def closed_by_difference(g: Rows, covered_to, total, rule: Closure, prior=None) -> list[Rows]:
     """The property splines of a set with the whole-crude balance closed on the gaps (see :class:`Closure`).
 
-    Row fields read: ``pl``, ``ph``, ``pv`` (the measured cuts, as :func:`~assaycut.model.property_splines.property_spline_rows` took them),
+    Row fields read: ``pl``, ``ph``, ``pv`` (the measured cuts, as
+    :func:`~assaycut.model.property_splines.property_spline_rows` took them),
     ``pfx``, ``pfy`` (the points held) and ``raw`` (their spline).  ``covered_to`` (R,): the percent up to which
     the light ends cover the crude [%]; ``total`` (R,): the whole-crude value (NaN: none given, the gaps then
     keep their estimate).  Row fields set: ``raw`` (the spline through the cuts and the gaps), ``closure`` (the
@@ -99,14 +101,22 @@ def closed_by_difference(g: Rows, covered_to, total, rule: Closure, prior=None) 
 def _close_set(s: Rows, rule: Closure, prior_fn=None) -> list[Rows]:
     gap = s.gb[0] - s.ga[0] > GAP_MIN_PCT
     a, b = s.ga[:, gap], s.gb[:, gap]
-    zero, hundred = np.zeros((s.n, 1)), np.full((s.n, 1), 100.0)
-    if not gap.any():
-        return [t.put(closure=(100.0 * t.total - t.raw.integral(zero[:t.n], hundred[:t.n])[:, 0]) / 100.0,
-                      gap_pct=np.zeros(t.n)) for t in partition_spline_rows(s, "raw")]
+    if gap.any():
+        _close_gaps(s, a, b, rule, prior_fn)
+    out = partition_spline_rows(s, "raw")
+    for t in out:
+        t.put(closure=(100.0 * t.total - t.raw.integral(np.zeros((t.n, 1)), np.full((t.n, 1), 100.0))[:, 0]) / 100.0,
+              gap_pct=row_sum((t.gb - t.ga)[:, gap]))
+    return out
+
+
+def _close_gaps(s: Rows, a, b, rule: Closure, prior_fn) -> None:
+    """The gaps [a, b] (R, G) added to the set's intervals with their means closed on the whole crude."""
+    gap = s.gb[0] - s.ga[0] > GAP_MIN_PCT
     width = b - a
     prior = (prior_fn(s, a, b) if prior_fn is not None else log_prior(s, a, b) if rule.relative
              else s.raw.integral(a, b))
-    measured = row_sum(s.pv * (s.ph - s.pl)) + s.raw.integral(zero, s.c0[:, None])[:, 0]
+    measured = row_sum(s.pv * (s.ph - s.pl)) + s.raw.integral(np.zeros((s.n, 1)), s.c0[:, None])[:, 0]
     delta = 100.0 * s.total - measured - row_sum(prior)
     end = (np.flatnonzero(gap) == 0) | (np.flatnonzero(gap) == gap.size - 1)
     sd = np.where(end, rule.end_sd, rule.interior_sd)[None, :]
@@ -120,15 +130,16 @@ def _close_set(s: Rows, rule: Closure, prior_fn=None) -> list[Rows]:
         target = np.maximum(target, 0.0)
     s.put(pl=np.concatenate([s.pl, a], axis=1), ph=np.concatenate([s.ph, b], axis=1),
           pv=np.concatenate([s.pv, target], axis=1))
-    out = partition_spline_rows(s, "raw")
-    for t in out:
-        t.put(closure=(100.0 * t.total - t.raw.integral(np.zeros((t.n, 1)), np.full((t.n, 1), 100.0))[:, 0]) / 100.0,
-              gap_pct=row_sum((t.gb - t.ga)[:, gap]))
-    return out
 
 
 PRIOR_SLICES = 8
-"""Slices of a gap on which a content's first estimate is averaged."""
+"""Slices of a gap on which a first estimate is averaged."""
+
+
+def gap_slices(a, b) -> np.ndarray:
+    """The middles of :data:`PRIOR_SLICES` equal slices of each interval [a, b] (R, G): (R, G, PRIOR_SLICES)."""
+    frac = (np.arange(PRIOR_SLICES) + 0.5) / PRIOR_SLICES
+    return a[:, :, None] + (b - a)[:, :, None] * frac
 
 
 def log_prior(s: Rows, a, b):
@@ -142,7 +153,6 @@ def log_prior(s: Rows, a, b):
     x = mids[:, order]
     keep = np.concatenate([[True], (x[0, 1:] - x[0, :-1]) > 1e-9])
     logs = Pchip(x[:, keep], np.log(np.maximum(s.pv[:, order][:, keep], 1e-12)))
-    frac = (np.arange(PRIOR_SLICES) + 0.5) / PRIOR_SLICES
-    q = a[:, :, None] + (b - a)[:, :, None] * frac
+    q = gap_slices(a, b)
     vals = np.exp(logs(q.reshape(s.n, -1))).reshape(q.shape)
     return row_sum(vals) / PRIOR_SLICES * (b - a)

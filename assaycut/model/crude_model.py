@@ -22,9 +22,10 @@ class CrudeModel:
     curve : TbpCurve
         TBP [°C] vs vol % distilled.
     sg_dist : Pchip
-        SG 60/60 °F [-] against vol % distilled (reconciled).
+        SG 60/60 °F [-] against vol % distilled (narrow cuts as measured, or scaled to the crude).
     sulfur_dist : Pchip or None
-        Sulfur [wt %] against wt % distilled (reconciled); None without narrow-cut sulfur.
+        Sulfur [wt %] against wt % distilled (narrow cuts as measured, or scaled to the crude); None without
+        narrow-cut or whole-crude sulfur.
     sg : float
         Whole-crude SG 60/60 °F of the model: what its density distribution integrates to, the given SG less
         :attr:`sg_closure`. [-]

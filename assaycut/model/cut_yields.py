@@ -36,18 +36,16 @@ def cut_yield_points(g: Rows, basis: str) -> list[Rows]:
     module docstring); rows split where their point counts differ.
 
     Row fields read: ``p``, ``t``, ``nc_start``, ``nc_end`` [°C] and ``nc_vol``, ``nc_wt`` [%] (with the
-    shared ``has_nc``), ``warn``, ``meth``.  Row fields set: ``p``, ``t``, ``yield_gap`` (the largest
-    difference, cut yield less the curve points' [%]; NaN when no cut yield is honoured).
+    shared ``has_nc``), ``warn``, ``meth``.  Row fields set: ``p``, ``t``.
     """
     if not g.has_nc:
-        return [g.put(yield_gap=np.full(g.n, np.nan))]
+        return [g]
     ys = g.nc_vol if basis == "vol" else g.nc_wt
     new = [_row_points(g.p[r], g.t[r], g.nc_start[r], g.nc_end[r], ys[r]) for r in range(g.n)]
-    for r, (_, _, gap, text, warn) in enumerate(new):
+    for r, (_, _, text, warn) in enumerate(new):
         if text:
             g.meth[r]["cut yields"] = text
         g.warn[r] += warn
-    g.put(yield_gap=np.array([x[2] for x in new]))
     sizes = np.array([x[0].size for x in new])
     out = []
     for n in np.unique(sizes):
@@ -58,7 +56,7 @@ def cut_yield_points(g: Rows, basis: str) -> list[Rows]:
 
 
 def _row_points(p, t, start, end, y):
-    """One row's points with its cut yields honoured: (p, t, largest gap, method text, warnings)."""
+    """One row's points with its cut yields honoured: (p, t, method text, warnings)."""
     p, t = np.asarray(p, dtype=float), np.asarray(t, dtype=float)
     order = np.argsort(np.where(np.isnan(start), -np.inf, start), kind="stable")
     lin = lambda x: float(np.interp(x, t, p)) if t[0] <= x <= t[-1] else np.nan  # noqa: E731
@@ -86,17 +84,18 @@ def _row_points(p, t, start, end, y):
         if np.isnan(b):  # the residue closes the run
             run_t = None
             continue
-        own = lin(b) - (0.0 if np.isnan(a) else lin(a)) if np.isfinite(lin(b)) else np.nan
+        at_b = lin(b)
+        own = at_b - (0.0 if np.isnan(a) else lin(a))
         if np.isfinite(own):
             gaps.append((v - own, v, own, a, b))
-        d = c1 - lin(b)
+        d = c1 - at_b
         if np.isfinite(d):
             knots_t.append(b)
             knots_d.append(d)
         ends.append((b, c1))
         run_t, run_c = b, c1
     if not ends:
-        return p, t, np.nan, "", warn
+        return p, t, "", warn
     kt, kd = np.array(knots_t), np.array(knots_d)
     srt = np.argsort(kt, kind="stable")
     kt, kd = kt[srt], kd[srt]
@@ -133,7 +132,7 @@ def _row_points(p, t, start, end, y):
         if abs(dv) > YIELD_WARN[0] and abs(dv) > YIELD_WARN[1] * max(v, 1e-12):
             warn.append(f"the narrow cut {_span(a, b)} measures {v:.2f} % of the crude where the curve's own points "
                         f"give {own:.2f} % ({dv / v * 100.0:+.0f} %); the curve is moved to the measured yield")
-    return npct[srt], nt[srt], worst[0] if worst is not None else 0.0, text, warn
+    return npct[srt], nt[srt], text, warn
 
 
 def _span(a, b) -> str:

@@ -15,10 +15,11 @@ from ..errors import CurveError
 from ..methods.characterisation import sg_from_watson_k, watson_k_numerator
 from ..methods.pchip import Pchip
 from .assay import Assay
-from .closure import DENSITY_CLOSURE, GAP_MIN_PCT, PRIOR_SLICES, SULFUR_CLOSURE, log_prior, closed_by_difference, closure_text
+from .closure import (DENSITY_CLOSURE, GAP_MIN_PCT, PRIOR_SLICES, SULFUR_CLOSURE, closed_by_difference, closure_text,
+                      gap_slices, log_prior)
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
 from .property_splines import property_spline_rows
-from .rows import Rows, each, row_sum
+from .rows import Rows, each, interp_rows, row_sum
 
 
 def cut_positions(spline: Pchip, start_c, end_c):
@@ -46,9 +47,10 @@ KW_GRID_STEP_PCT = 0.5
 
 
 def density_rows(g: Rows) -> list[Rows]:
-    """The density distribution of every row: SG against vol % distilled, reconciled to the whole-crude SG.
+    """The density distribution of every row: SG against vol % distilled, balanced on the whole-crude SG.
 
-    From the narrow-cut densities (:func:`~assaycut.model.property_splines.property_spline_rows` against mid-volume %, light-ends components held
+    From the narrow-cut densities (:func:`~assaycut.model.property_splines.property_spline_rows` against
+    mid-volume %, light-ends components held
     at their own SG) where at least two cuts have one; else at constant Watson K fitted to the whole-crude
     gravity, SG = (1.8 T_b[K])^(1/3)/Kw along the curve (Watson & Nelson 1933; common practice, no single
     source), light ends at their own SG.  Without a light-ends analysis the part of the curve boiling below
@@ -64,7 +66,8 @@ def density_rows(g: Rows) -> list[Rows]:
     (factor - 1) x 100 [%]; NaN when closed by difference), ``sg_closure`` and ``sg_gap_pct`` (the closure
     [-] and the share of the crude in gaps [vol %]; 0 and NaN when scaled), ``sg_given`` (the whole-crude SG
     as given) and ``sg`` (the model's, what its distribution integrates to), ``dens_src`` (the source
-    described), ``kw`` (the fitted Watson K, NaN with narrow-cut densities).  A row whose light ends weigh as much as the crude gravity allows is refused.
+    described), ``kw`` (the fitted Watson K, NaN with narrow-cut densities).  A row whose light ends weigh as
+    much as the crude gravity allows is refused.
     """
     gas = ~g.placed & (g.spline.lo < GAS_RANGE_MAX_C)  # the IBP is the TBP at 0 %
     key = np.column_stack([gas] + ([np.isfinite(g.nc_sg)] if g.has_nc else []))
@@ -150,26 +153,19 @@ def _kw_prior(s: Rows, a, b):
     integral.  Crude oils hold a nearly constant Watson K across their cuts above the light naphtha (on the
     development set within 0.11 of the crude's on average), so a gap takes its neighbours' K rather than an
     interpolation of their SG."""
-    frac = (np.arange(PRIOR_SLICES) + 0.5) / PRIOR_SLICES
-
     def slices(lo, hi):
-        q = lo[:, :, None] + (hi - lo)[:, :, None] * frac
+        q = gap_slices(lo, hi)
         t = s.spline.inverse(q.reshape(s.n, -1)).reshape(q.shape)
-        return watson_k_numerator(t), light_kw_offset(t), t
+        return watson_k_numerator(t), light_kw_offset(t), t, q
 
-    cb, off, t = slices(s.pl, s.ph)
+    cb, off, t, _ = slices(s.pl, s.ph)
     with np.errstate(invalid="ignore", divide="ignore"):
         k = row_sum(cb) / PRIOR_SLICES / s.pv - row_sum(off) / PRIOR_SLICES
-    use = np.median(t, axis=2) >= GAS_RANGE_MAX_C
-    if not use[0].any():
+    use = np.median(t[:1], axis=2)[0] >= GAS_RANGE_MAX_C
+    if not use.any():
         return s.raw.integral(a, b)
-    mids = 0.5 * (s.pl + s.ph)
-    cbg, offg, _ = slices(a, b)
-    gq = a[:, :, None] + (b - a)[:, :, None] * frac
-    kg = np.empty(gq.shape)
-    for r in range(s.n):
-        o = np.argsort(mids[r, use[0]], kind="stable")
-        kg[r] = np.interp(gq[r], mids[r, use[0]][o], k[r, use[0]][o])
+    cbg, offg, _, q = slices(a, b)
+    kg = interp_rows(q, 0.5 * (s.pl + s.ph)[:, use], k[:, use])
     return row_sum(cbg / (kg + offg)) / PRIOR_SLICES * (b - a)
 
 
@@ -282,33 +278,26 @@ def _shape_prior(s: Rows, a, b):
     there) are left out; a gap without such a cut on both sides takes
     :func:`~assaycut.model.closure.log_prior` (the geometric interpolation of its neighbours), which the
     development set's held-back light naphtha prefers."""
-    frac = (np.arange(PRIOR_SLICES) + 0.5) / PRIOR_SLICES
-    level = np.where(np.isfinite(s.total), s.total, 0.0)
+    if not (np.isfinite(s.total) & (s.total > 0)).all():  # no level to set the shape by
+        return log_prior(s, a, b)
     wpts = np.concatenate([np.zeros((s.n, 1)), s.wa, s.wb, np.full((s.n, 1), 100.0)], axis=1)
     vpts = np.concatenate([np.zeros((s.n, 1)), s.va, s.vb, np.full((s.n, 1), 100.0)], axis=1)
 
     def shape(lo, hi):
-        q = lo[:, :, None] + (hi - lo)[:, :, None] * frac
-        v = np.empty(q.shape)
-        for r in range(s.n):
-            o = np.argsort(wpts[r], kind="stable")
-            v[r] = np.interp(q[r], wpts[r][o], vpts[r][o])
-        t = s.spline.inverse(v.reshape(s.n, -1)).reshape(q.shape)
-        return sulfur_shape(t, np.where(level > 0, level, np.nan)[:, None, None]), q
+        q = gap_slices(lo, hi)
+        t = s.spline.inverse(interp_rows(q, wpts, vpts).reshape(s.n, -1)).reshape(q.shape)
+        return sulfur_shape(t, s.total[:, None, None]), q
 
     f_cut, _ = shape(s.pl, s.ph)
     base = row_sum(f_cut) / PRIOR_SLICES
     use = (base[0] > 0) & (s.pv[0] > 0)
-    if not np.isfinite(level).all() or not (level > 0).all() or not use.any():
+    if not use.any():
         return log_prior(s, a, b)
     mids = 0.5 * (s.pl + s.ph)
     with np.errstate(divide="ignore", invalid="ignore"):
         lr = np.log(s.pv / base)
     f_gap, q = shape(a, b)
-    lg = np.empty(q.shape)
-    for r in range(s.n):
-        o = np.argsort(mids[r, use], kind="stable")
-        lg[r] = np.interp(q[r], mids[r, use][o], lr[r, use][o])
+    lg = interp_rows(q, mids[:, use], lr[:, use])
     inner = ((mids[:, use][:, None, :] < a[:, :, None]).any(axis=2)
              & (mids[:, use][:, None, :] > b[:, :, None]).any(axis=2))  # measured cuts on both sides
     return np.where(inner, row_sum(f_gap * np.exp(lg)) / PRIOR_SLICES * (b - a), log_prior(s, a, b))
@@ -317,13 +306,17 @@ def _shape_prior(s: Rows, a, b):
 def sulfur_rows(g: Rows) -> list[Rows]:
     """The sulfur distribution of every row from its narrow cuts: sulfur against wt % distilled.
 
-    A :func:`~assaycut.model.property_splines.property_spline_rows` of narrow-cut sulfur against mid-weight % (light ends carry none), scaled to
-    reproduce the whole-crude sulfur; without it the narrow cuts give the whole-crude figure.  Fewer than two
+    A :func:`~assaycut.model.property_splines.property_spline_rows` of narrow-cut sulfur against mid-weight %
+    (light ends carry none), kept as measured with the whole-crude balance closed on the part no cut covers
+    (:func:`~assaycut.model.closure.closed_by_difference`, the gaps first estimated by :func:`_shape_prior`),
+    or scaled to reproduce the whole-crude sulfur (``reconcile``); without a whole-crude sulfur the narrow
+    cuts give the figure.  Fewer than two
     narrow-cut sulfur values leave the distribution empty (``sulfur_dist`` None for the set), with a warning.
 
     Row fields read: those of :func:`density_rows`' result, ``nc_s`` (narrow-cut sulfur), ``sulfur`` and
-    ``s_given`` (whole-crude sulfur [wt %], given or not).  Row fields set: ``sulfur_dist``, ``sulfur``,
-    ``s_rec`` (the scale, (factor - 1) x 100 [%]; NaN when not reconciled).
+    ``s_given`` (whole-crude sulfur [wt %], given or not).  Row fields set: ``sulfur_dist``, ``sulfur`` (the
+    model's), ``sulfur_given``, ``s_rec`` (the scale, (factor - 1) x 100 [%]; NaN when not scaled),
+    ``s_closure`` and ``s_gap_pct`` (as :func:`density_rows`' ``sg_closure``, ``sg_gap_pct``).
     """
     if not g.has_nc:
         return [_no_sulfur(g)]
@@ -357,7 +350,8 @@ def _sulfur_set(g: Rows) -> list[Rows]:
                 if u.reconcile:
                     out.append(_sulfur_scaled(u))
                     continue
-                le_end = weight_distilled(u.sg_dist, u.sg[:, None], u.le_pct[:, None])[:, 0] if bool(u.placed[0]) else np.zeros(u.n)
+                le_end = (weight_distilled(u.sg_dist, u.sg[:, None], u.le_pct[:, None])[:, 0] if bool(u.placed[0])
+                          else np.zeros(u.n))
                 out += [_sulfur_closed(v) for v in closed_by_difference(
                     u, le_end, np.where(u.s_given, u.sulfur, np.nan), SULFUR_CLOSURE, _shape_prior)]
     return out
@@ -365,7 +359,8 @@ def _sulfur_set(g: Rows) -> list[Rows]:
 
 def _sulfur_closed(g: Rows) -> Rows:
     """The narrow cuts' sulfur kept as measured, the whole-crude balance closed on the gaps
-    (:func:`~assaycut.model.closure.closed_by_difference`); the model's whole-crude sulfur is what its distribution integrates to."""
+    (:func:`~assaycut.model.closure.closed_by_difference`); the model's whole-crude sulfur is what its
+    distribution integrates to."""
     total = g.raw.integral(np.zeros((g.n, 1)), np.full((g.n, 1), 100.0))[:, 0] / 100.0
     for r in np.flatnonzero(~g.s_given):
         g.warn[r].append(f"no whole-crude sulfur given: {total[r]:.3f} wt % is taken from the narrow cuts")

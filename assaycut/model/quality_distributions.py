@@ -63,8 +63,8 @@ class Quality:
             return np.where(w > 1e-12, (self.cum(b) - self.cum(a)) / np.where(w > 1e-12, w, 1.0), np.nan)
 
     def covered_index(self, a, b):
-        """The share of [a, b] (basis %) inside the covered intervals [-] and the mean blending index over that
-        covered part (NaN where none is covered); an empty interval inside one counts as covered."""
+        """The share of [a, b] (basis %) inside the covered intervals [-] (:meth:`coverage`) and the mean blending
+        index over that covered part (NaN where none is covered)."""
         a, b = np.asarray(a, dtype=float)[..., None], np.asarray(b, dtype=float)[..., None]
         lo, hi = np.maximum(a, self.covered[:, 0]), np.minimum(b, self.covered[:, 1])
         over = np.clip(hi - lo, 0.0, None)
@@ -73,16 +73,20 @@ class Quality:
         width_over = over.sum(axis=-1)
         with np.errstate(invalid="ignore", divide="ignore"):
             idx = np.where(width_over > 1e-12, amount / np.where(width_over > 1e-12, width_over, 1.0), np.nan)
-        return self.coverage(a[..., 0], b[..., 0]), idx
+        return self._share(a[..., 0], b[..., 0], width_over), idx
 
     def coverage(self, a, b):
         """Fraction of [a, b] (basis %) inside the covered intervals; 1 for an empty interval inside one, or one
         covered but for rounding (:data:`FULL_SHARE_TOL`)."""
         a, b = np.asarray(a, dtype=float), np.asarray(b, dtype=float)
-        lo, hi = self.covered[:, 0], self.covered[:, 1]
-        over = np.clip(np.minimum(b[..., None], hi) - np.maximum(a[..., None], lo), 0.0, None).sum(axis=-1)
+        over = np.clip(np.minimum(b[..., None], self.covered[:, 1]) - np.maximum(a[..., None], self.covered[:, 0]),
+                       0.0, None).sum(axis=-1)
+        return self._share(a, b, over)
+
+    def _share(self, a, b, over):
+        """The share of [a, b] that ``over`` (the covered width in it) makes, as :meth:`coverage` states it."""
         width = b - a
-        inside = ((a[..., None] >= lo) & (a[..., None] <= hi)).any(axis=-1)
+        inside = ((a[..., None] >= self.covered[:, 0]) & (a[..., None] <= self.covered[:, 1])).any(axis=-1)
         with np.errstate(invalid="ignore", divide="ignore"):
             share = np.where(width > 1e-12, np.minimum(over / np.where(width > 1e-12, width, 1.0), 1.0),
                              inside.astype(float))

@@ -16,7 +16,7 @@ import numpy as np
 from ..errors import AssaycutError
 from ..methods.pchip import Pchip
 
-__all__ = ["Rows", "row_sum"]
+__all__ = ["Rows", "interp_rows", "row_sum"]
 
 
 class Rows:
@@ -108,3 +108,13 @@ def row_sum(x: np.ndarray) -> np.ndarray:
     ``sum`` adds one row pairwise but several rows column by column, which rounds differently."""
     x = np.asarray(x, dtype=float)
     return np.cumsum(x, axis=-1)[..., -1] if x.shape[-1] else np.zeros(x.shape[:-1])
+
+
+def interp_rows(q: np.ndarray, xp: np.ndarray, fp: np.ndarray) -> np.ndarray:
+    """``numpy.interp`` row by row: row r of ``q`` (R, ...) read linearly on the points ``xp[r]``, ``fp[r]`` (R, k),
+    taken in ascending ``xp`` (held beyond the outermost)."""
+    out = np.empty(np.shape(q))
+    for r in range(out.shape[0]):
+        o = np.argsort(xp[r], kind="stable")
+        out[r] = np.interp(q[r], xp[r][o], fp[r][o])
+    return out
