@@ -166,7 +166,7 @@ def run_yields_many(assays: list[Assay], models: list[CrudeModel], cut_set: CutS
     -------
     list of YieldResult
     """
-    from .cutting.ideal import columns_table, first_row, with_table_d86
+    from .cutting.ideal import columns_table, first_row, take_rows, with_table_d86
     from .cutting.library_engine import cut_library
 
     if cut_set.overlaps:
@@ -177,7 +177,7 @@ def run_yields_many(assays: list[Assay], models: list[CrudeModel], cut_set: CutS
     cols = with_table_d86(cols)
     out = []
     for r, (assay, model) in enumerate(zip(assays, models)):
-        row = {k: (v[r:r + 1] if k != "estimated" else {n: f[r:r + 1] for n, f in v.items()}) for k, v in cols.items()}
+        row = take_rows(cols, slice(r, r + 1))
         cuts = columns_table(names, first_row(row))
         lim = limit_table(limit_rows(names, row, limits or []))
         out.append(_assemble(assay, model, cut_set, limits, cuts, lim, names, None))
@@ -212,7 +212,7 @@ def _assemble(assay: Assay, model: CrudeModel, cut_set: CutSet, limits, cuts, li
 
 def _cut_warnings(cuts: CutTable, model: CrudeModel) -> list[str]:
     """Warnings about the cuts: reaching into the extension, D86 estimates above 400 °C, empty cuts, estimates
-    left empty outside their method's range."""
+    outside their method's scope."""
     warnings = []
     column = cuts.column
     names = column("name")
@@ -236,10 +236,10 @@ def _cut_warnings(cuts: CutTable, model: CrudeModel) -> list[str]:
         warnings.append(f"cut(s) {', '.join(empty)} have no yield: their qualities are left empty")
     ranges = describe_ranges()
     for col, what in (("cetane_index_d4737", "cetane index"), ("flash_c_est", "flash estimate")):
-        out = [n for n, d, v in zip(names, d86, column(col)) if d is not None and v != v]
+        out = [n for n, flags in zip(names, column("out_of_scope")) if col in flags]
         if out:
-            warnings.append(f"{what} left empty for {', '.join(out)}: the cut's D86 or density lies outside "
-                            f"the method's range ({ranges[col]})")
+            warnings.append(f"{what} of {', '.join(out)} is outside the method's scope ({ranges[col]}): given "
+                            f"and flagged out_of_scope, indicative only")
     return warnings
 
 

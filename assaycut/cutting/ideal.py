@@ -18,9 +18,10 @@ Per-cut results (one row per cut of a :class:`~assaycut.cutting.cut_table.CutTab
   Riazi-Daubert 1987 at (MeABP, SG) within its range;
 * ``sg`` = (1/ΔV) ∫ SG dv; ``api``; ``density_15c_kg_m3``;
 * ``sulfur_wt_pct`` = (1/ΔW) ∫ S dw; ``sulfur_share_pct`` = S_cut · wt_pct / S_crude;
-* ``cetane_index_d4737`` where the cut's own D86 and density lie inside the method's stated scope
-  (:data:`~assaycut.methods.product_properties.CCI_RANGE`), else empty (the report names those cuts);
-* ``flash_c_est`` by API TDB 2B7.1 where the cut's D86 10 % lies inside its range, else empty (named);
+* ``cetane_index_d4737`` from the cut's own D86 and density, and ``flash_c_est`` by API TDB 2B7.1 from its
+  D86 10 %, for every cut with a D86 estimate; where the inputs lie outside the method's stated scope
+  (:data:`~assaycut.methods.product_properties.CCI_RANGE`, ``FLASH_T10_RANGE_C``) the value is still given and
+  flagged ``out_of_scope`` (the report names those cuts, and limits on it say so);
 * ``extrapolated`` where the cut depends on the curve's extension.
 """
 
@@ -35,12 +36,7 @@ from ..methods.characterisation import (
     watson_k,
 )
 from ..methods.d86 import D86_STD, tbp_to_d86_daubert_1994_array
-from ..methods.product_properties import (
-    cci_in_range,
-    cetane_index_d4737,
-    flash_in_range,
-    flash_point_api_2b7_1,
-)
+from ..methods.product_properties import cci_in_range, cetane_index_d4737, flash_in_range, flash_point_api_2b7_1
 from ..model.crude import CrudeModel
 from .model_rows import BatchModel
 from ..units import sg_to_api, sg_to_density15
@@ -54,6 +50,11 @@ gases). [°C]"""
 GAUSS_NODES = 16
 """Gauss-Legendre nodes per cut for the pseudo-component MeABP (exact for polynomials of degree 31)."""
 _GL_X, _GL_W = np.polynomial.legendre.leggauss(GAUSS_NODES)
+
+FLAG_SETS = ("estimated", "out_of_scope")
+"""Per-cut flag sets: {column name: bool array} in the column arrays, each cut's list of flagged columns in the
+cut table. ``estimated``: the value rests in whole or part on a correlation where no narrow cut measured it;
+``out_of_scope``: a correlation used outside its published scope (the value is indicative only)."""
 
 CUT_COLUMNS = ["name", "start_c", "end_c", "vol_pct", "wt_pct", "cum_vol_pct", "cum_wt_pct", "tbp_5_c",
                "mid_vol_c", "tbp_95_c", "overlap_c", "vabp_c", "vabp_d86_c", "meabp_c", "sg", "api",
@@ -79,22 +80,27 @@ def cut_table(model: CrudeModel, cut_set: CutSet) -> CutTable:
 
 
 def first_row(cols: dict) -> dict:
-    """Row 0 of :func:`cut_columns` output (the ``estimated`` flags included)."""
-    return {k: ({n: f[0] for n, f in v.items()} if k == "estimated" else v[0]) for k, v in cols.items()}
+    """Row 0 of :func:`cut_columns` output (the :data:`FLAG_SETS` included)."""
+    return take_rows(cols, 0)
+
+
+def take_rows(cols: dict, index) -> dict:
+    """:func:`cut_columns` output indexed on its first axis (an int or a slice), flag sets included."""
+    return {k: ({n: f[index] for n, f in v.items()} if k in FLAG_SETS else v[index]) for k, v in cols.items()}
 
 
 def columns_table(names: list[str], cols: dict[str, np.ndarray]) -> CutTable:
     """The cut table from one row of :func:`cut_columns`-style arrays: ``name``, :data:`CUT_COLUMNS` (``d86_c``
     as a dict per cut, None where any point is missing), the quality columns some cut has a value of (sorted),
-    and ``estimated`` (each cut's list of values that come from a correlation)."""
-    est = cols.get("estimated", {})
-    arrays = {k: np.asarray(v) for k, v in cols.items() if k not in ("d86", "estimated")}
+    and the :data:`FLAG_SETS` (each cut's list of flagged columns)."""
+    arrays = {k: np.asarray(v) for k, v in cols.items() if k != "d86" and k not in FLAG_SETS}
     extra = sorted(c for c, v in arrays.items() if c not in CUT_COLUMNS and np.isfinite(v.astype(float)).any())
     out: dict = {"name": list(names)}
     for k in CUT_COLUMNS[1:] + extra:
         out[k] = _d86_dicts(cols["d86"]) if k == "d86_c" else arrays[k]
-    flags = sorted(est)
-    out["estimated"] = [[k for k in flags if bool(est[k][i])] for i in range(len(names))]
+    for key in FLAG_SETS:
+        flags = cols.get(key, {})
+        out[key] = [[k for k in sorted(flags) if bool(flags[k][i])] for i in range(len(names))]
     return CutTable(out)
 
 
@@ -208,7 +214,8 @@ def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, me
     -------
     dict of str to numpy.ndarray
         vabp_c, vabp_d86_c, meabp_c, sg, api, density_15c_kg_m3, watson_k, sulfur_wt_pct, sulfur_share_pct,
-        mw, d86, cetane_index_d4737, flash_c_est (empty cuts give NaN, a zero sulfur share).
+        mw, d86, cetane_index_d4737, flash_c_est (empty cuts give NaN, a zero sulfur share), and
+        ``out_of_scope`` {column: bool array} for the last two.
     """
     shape = vol.shape
     has_d86 = np.isfinite(t_end) & ~(t_end <= LIGHT_ENDS_MAX_C) & (vol > 1e-9)
@@ -221,10 +228,11 @@ def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, me
         kw = watson_k(meabp, sg)
         mw = np.where(mw_in_range(meabp, sg), mw_riazi_daubert_1987(meabp, sg), np.nan)
     dens15 = sg_to_density15(sg)
-    cci_ok = has_d86 & cci_in_range(d86[..., 1], d86[..., 3], d86[..., 5], dens15)
-    cci = np.where(cci_ok, cetane_index_d4737(d86[..., 1], d86[..., 3], d86[..., 5], dens15 / 1000.0), np.nan)
-    flash_ok = has_d86 & flash_in_range(d86[..., 1])
-    flash = np.where(flash_ok, flash_point_api_2b7_1(d86[..., 1]), np.nan)
+    with np.errstate(invalid="ignore", over="ignore"):
+        cci = np.where(has_d86, cetane_index_d4737(d86[..., 1], d86[..., 3], d86[..., 5], dens15 / 1000.0), np.nan)
+        flash = np.where(has_d86, flash_point_api_2b7_1(d86[..., 1]), np.nan)
+    scope = {"cetane_index_d4737": np.isfinite(cci) & ~cci_in_range(d86[..., 1], d86[..., 3], d86[..., 5], dens15),
+             "flash_c_est": np.isfinite(flash) & ~flash_in_range(d86[..., 1])}
     with np.errstate(invalid="ignore", divide="ignore"):
         share = sulfur * wt / s_crude
     some = vol > 1e-9
@@ -234,7 +242,7 @@ def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, me
         "api": np.where(some, sg_to_api(sg), np.nan), "density_15c_kg_m3": np.where(some, dens15, np.nan),
         "watson_k": np.where(some, kw, np.nan), "sulfur_wt_pct": np.where(some, sulfur, np.nan),
         "sulfur_share_pct": np.where(some, share, 0.0), "mw": np.where(some, mw, np.nan), "d86": d86,
-        "cetane_index_d4737": cci, "flash_c_est": flash,
+        "cetane_index_d4737": cci, "flash_c_est": flash, "out_of_scope": scope,
     }
 
 

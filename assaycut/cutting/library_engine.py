@@ -13,7 +13,7 @@ import numpy as np
 
 from ..model.crude import CrudeModel
 from .cutset import CutSet
-from .ideal import cut_columns
+from .ideal import FLAG_SETS, cut_columns
 from .model_rows import BatchModel
 
 CHUNK = 1024
@@ -43,9 +43,9 @@ def cut_library(models: list[CrudeModel], cut_set: CutSet, only=None) -> tuple[l
         parts.append(cut_columns(BatchModel(chunk), np.repeat(ends[None, :], len(chunk), axis=0), only=only))
     if len(parts) == 1:
         return names, parts[0]
-    out = {k: np.concatenate([p[k] for p in parts], axis=0) for k in parts[0] if k != "estimated"}
-    out["estimated"] = {n: np.concatenate([p["estimated"][n] for p in parts], axis=0)
-                        for n in parts[0]["estimated"]}
+    out = {k: np.concatenate([p[k] for p in parts], axis=0) for k in parts[0] if k not in FLAG_SETS}
+    for key in FLAG_SETS:
+        out[key] = {n: np.concatenate([p[key][n] for p in parts], axis=0) for n in parts[0][key]}
     return names, out
 
 

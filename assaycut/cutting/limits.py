@@ -193,7 +193,15 @@ def table_columns(cuts: CutTable) -> dict[str, np.ndarray]:
     cols = {c: np.asarray(cuts[c], dtype=float)[None, :] for c in names}
     nan7 = [math.nan] * len(D86_STD)
     cols["d86"] = np.array([[[float(d[str(p)]) for p in D86_STD] if d else nan7 for d in cuts["d86_c"]]])
+    if "out_of_scope" in cuts:
+        flagged = {c for f in cuts["out_of_scope"] for c in f}
+        cols["out_of_scope"] = {c: np.array([[c in f for f in cuts["out_of_scope"]]]) for c in flagged}
     return cols
+
+
+OUT_OF_SCOPE_NOTE = ("evaluated on a value whose correlation is used outside its published scope (flagged "
+                     "out_of_scope): indicative only, confirm by a measurement")
+"""Note of a limit checked on an out-of-scope estimate."""
 
 
 LOWER_BOUND_NOTE = "at least 95 %: the D86 estimate ends at 95 %, so the value is a lower bound"
@@ -274,10 +282,14 @@ def limit_rows(names: list[str], cols: dict, limits: list[Limit]) -> list[dict]:
     (:func:`table_columns`, or the library engine's columns)."""
     out = []
     for lim in applicable(limits, names):
-        value = float(limit_values(cols, names.index(lim.cut), lim.property)[0])
+        j = names.index(lim.cut)
+        value = float(limit_values(cols, j, lim.property)[0])
         missing = math.isnan(value)
         status = "n/a" if missing else ("pass" if meets(lim, value) else "fail")
         note = _why_missing(lim.property) if missing else ""
+        scope = cols.get("out_of_scope", {}).get(lim.property)
+        if not missing and scope is not None and bool(np.asarray(scope)[0, j]):
+            note = OUT_OF_SCOPE_NOTE
         if is_lower_bound(lim.property, value):
             note = LOWER_BOUND_NOTE
         out.append({"cut": lim.cut, "property": lim.property, "label": lim.label, "limit": lim.bounds_text(),

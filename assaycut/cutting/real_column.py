@@ -33,6 +33,7 @@ from ..methods.d86 import D86_STD
 from ..model.crude import CrudeModel
 from .cutset import CutSet
 from .ideal import (
+    FLAG_SETS,
     LIGHT_ENDS_MAX_C,
     columns_table,
     cut_columns,
@@ -298,7 +299,7 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     cols["extrapolated"] = (np.any(reach & out_of_range, axis=0) | bool(model.all_on_extension)) & (vol > 1e-9)
     untouched = ~(lower_split | upper_split)
     for k in list(cols):  # a product touching no split is the ideal cut, exactly
-        if k == "estimated":
+        if k in FLAG_SETS:
             for q, flags in cols[k].items():
                 flags[untouched] = np.asarray(ideal[k][q])[untouched]
         elif k in ideal:

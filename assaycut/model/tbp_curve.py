@@ -17,7 +17,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import CurveError
-from ..methods.pchip import Pchip
+from ..methods.pchip import Pchip, slopes_on
 from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution, fit_riazi_many, riazi_temp_c
 from ..units import pct_text
 from .rows import Rows, each
@@ -66,9 +66,9 @@ class TbpCurve:
     """Temperature of the first measured point, light ends not counted. [°C]"""
     safe_lo: float = 0.0
     safe_hi: float = 100.0
-    """The vol % range where the curve does not depend on its extensions: the PCHIP's slope at the last
-    (first) measured node comes from the extension, so the last (first) measured interval depends on it as
-    well as the extension itself. [vol %]"""
+    """The vol % range where the curve does not depend on its extensions: the measured range, less its last
+    (first) interval only where the monotone slope bound made that interval's end slope depend on the extension
+    (:func:`_measured_end_slopes`). [vol %]"""
     lumped_pct: float = 0.0
     """Share of the crude lumped up to the capped end point (:data:`END_CAP_C`). [vol %]"""
     measured_pct: np.ndarray = field(default_factory=lambda: np.zeros(0))
@@ -400,8 +400,10 @@ def _join(g: Rows, placed: bool, need_tail: bool, need_front: bool) -> list[Rows
         tt.insert(0, np.broadcast_to(g.front_t, (g.n, g.front_t.size)))
         vv.insert(0, g.front_v)
     T, V = np.concatenate(tt, axis=1), np.concatenate(vv, axis=1)
-    g.put(T=T, V=V, le_pct=g.front_v[:, -1].copy() if placed else np.zeros(g.n),
-          safe_lo=v[:, 1].copy() if need_front else g.mlo, safe_hi=v[:, -2].copy() if need_tail else g.mhi)
+    d, front_free, tail_free = _measured_end_slopes(T, V, v, t, g.tx.shape[1], need_front, need_tail)
+    g.put(T=T, V=V, D=d, le_pct=g.front_v[:, -1].copy() if placed else np.zeros(g.n),
+          safe_lo=np.where(front_free, g.mlo, v[:, 1]) if need_front else g.mlo,
+          safe_hi=np.where(tail_free, g.mhi, v[:, -2]) if need_tail else g.mhi)
     if need_front:
         g = g.fail(g.ftx[:, 0] < METHANE_NBP_C, lambda r: CurveError(
             f"the curve starts at {pct_text(g.mv[r, 0])} % and its fitted front reaches {g.ftx[r, 0]:.0f} °C, "
@@ -410,8 +412,49 @@ def _join(g: Rows, placed: bool, need_tail: bool, need_front: bool) -> list[Rows
         "the curve's extension does not join the measured points monotonically; check the last points of the "
         "curve"))
     if g.n:
-        g.put(spline=Pchip(g.T, g.V))
+        g.put(spline=Pchip(g.T, g.V, g.D))
     return [g]
+
+
+def _measured_end_slopes(T, V, v, t, n_tail: int, need_front: bool, need_tail: bool):
+    """The curve's node slopes dV/dT [vol %/°C] with the slope at the first and last measured nodes, where an
+    extension joins them, taken from the measured points alone (the end slope of the measured points' own
+    PCHIP, :func:`~assaycut.methods.pchip.slopes_on`): the measured intervals then do not depend on the
+    extension.  The slope is kept within 3x the secant of the extension's joining segment (the Fritsch &
+    Carlson 1980 monotonicity bound); where that bound binds, the end interval does depend on the extension,
+    and the returned flag for that end is False.
+
+    Parameters
+    ----------
+    T, V : numpy.ndarray
+        The curve's nodes, measured and extension, rows of equal length. [°C], [vol %]
+    v, t : numpy.ndarray
+        The measured points among them. [vol %], [°C]
+    n_tail : int
+        Number of extension nodes after the last measured point.
+    need_front, need_tail : bool
+        Whether an extension joins the first (last) measured point.
+
+    Returns
+    -------
+    (numpy.ndarray, numpy.ndarray, numpy.ndarray)
+        Slopes (shape of T); per row, whether the first and the last measured interval are free of the
+        extension.
+    """
+    d = slopes_on(T)(V)
+    own = slopes_on(t)(v)
+    n = T.shape[0]
+    free = [np.ones(n, bool), np.ones(n, bool)]
+    last = T.shape[1] - n_tail - 1
+    first = last - v.shape[1] + 1
+    for k, j, nb, on in ((first, 0, first - 1, need_front), (last, -1, last + 1, need_tail)):
+        if not on:
+            continue
+        secant = (V[:, nb] - V[:, k]) / (T[:, nb] - T[:, k])
+        bound = 3.0 * secant
+        free[0 if j == 0 else 1] = own[:, j] <= bound
+        d[:, k] = np.minimum(own[:, j], bound)
+    return d, free[0], free[1]
 
 
 BAND_LAST_POINTS = (4, 5, 6)

@@ -7,6 +7,7 @@ import math
 import numpy as np
 
 from ..cutting.cut_table import CutTable
+from ..cutting.ideal import FLAG_SETS
 from ..cutting.limits import is_lower_bound
 from ..files import safe_text
 from ..methods.blending_indices import VISCOSITY
@@ -39,6 +40,7 @@ LABELS = {
     "extrapolated": "Extrapolated",
     "vabp_d86_c": "VABP of D86 [°C]",
     "estimated": "Estimated values",
+    "out_of_scope": "Outside the method's scope",
     "crude": "Crude",
     "bbl_per_day": "Rate [bbl/d]",
     "m3_per_day": "Rate [m³/d]",
@@ -131,7 +133,7 @@ def long_rows(cuts, crude: str, escaped: bool = False) -> list[list]:
         if escaped:
             rec["name"] = safe_text(rec["name"])
         for col, v in rec.items():
-            if col in ("name", "estimated", "extrapolated"):
+            if col in ("name", "extrapolated") + FLAG_SETS:
                 continue
             if col in ("d86_c", "d86_f"):
                 for p, t in (v or {}).items():
@@ -157,7 +159,7 @@ def _f_name(col: str) -> str:
 
 def in_fahrenheit(cuts):
     """A cut table for display in °F: every temperature column converted and renamed (start_c -> start_f,
-    flash_c_est -> flash_f_est, d86_c -> d86_f with its points converted; the ``estimated`` lists follow).
+    flash_c_est -> flash_f_est, d86_c -> d86_f with its points converted; the flag lists follow).
     Temperatures inside a name (viscosity_40c_cst) stay as they are.  JSON output stays in °C."""
     from ..units import c_to_f
 
@@ -169,7 +171,7 @@ def in_fahrenheit(cuts):
             out[ren[c]] = v * 1.8 if c in DIFFERENCES else c_to_f(v)
         elif c == "d86_c":
             out["d86_f"] = [None if d is None else {k: float(c_to_f(x)) for k, x in d.items()} for d in v]
-        elif c == "estimated":
+        elif c in FLAG_SETS:
             names = {**ren, "d86_c": "d86_f"}
             out[c] = [[names.get(x, x) for x in e] for e in v]
         else:
@@ -187,8 +189,8 @@ def quality_names(cuts) -> list[str]:
     from ..cutting.ideal import CUT_COLUMNS
 
     standard = set(CUT_COLUMNS) | {_f_name(c) for c in CUT_COLUMNS if _is_temperature(c)} | {"d86_f"}
-    return [c for c in cuts.keys if c not in standard and c not in ("estimated", "bbl_per_day", "m3_per_day",
-                                                                          "t_per_day")]
+    return [c for c in cuts.keys if c not in standard and c not in FLAG_SETS + ("bbl_per_day", "m3_per_day",
+                                                                                 "t_per_day")]
 
 
 def flat_cut_rows(cuts) -> tuple[list[str], list[list]]:
@@ -275,8 +277,7 @@ def quality_text_table(cuts) -> str:
     if not cols:
         return ""
     head = ["Cut"] + [h for _, h, _ in cols]
-    body = [[str(r["name"])] + [_fmt(r[c], nd) + ("~" if c in r["estimated"] and _fmt(r[c], nd) != "-" else "")
-                                for c, _, nd in cols] for r in cuts.rows()]
+    body = [[str(r["name"])] + [_marked(r, c, nd) for c, _, nd in cols] for r in cuts.rows()]
     widths = [max(len(x) for x in col) for col in zip(head, *body)]
     lines = ["  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, (h, w) in enumerate(zip(head, widths)))]
     lines.append("  ".join("-" * w for w in widths))
@@ -292,15 +293,30 @@ def text_table(cuts) -> str:
     """The cut table as aligned plain text for the terminal; estimated values end in '~'."""
     cols = _shown(TERMINAL_COLUMNS, cuts)
     head = [h for _, h, _ in cols]
-    body = [[str(r[c]) if c == "name" else _fmt(r[c], nd) + ("~" if c in r.get("estimated", ()) and _fmt(r[c], nd)
-                                                                 != "-" else "")
-             for c, _, nd in cols] for r in cuts.rows()]
+    rows = cuts.rows()
+    body = [[str(r[c]) if c == "name" else _marked(r, c, nd) for c, _, nd in cols] for r in rows]
     widths = [max(len(x) for x in col) for col in zip(head, *body)]
     lines = ["  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, (h, w) in enumerate(zip(head, widths)))]
     lines.append("  ".join("-" * w for w in widths))
     for row in body:
         lines.append("  ".join(x.ljust(w) if i == 0 else x.rjust(w) for i, (x, w) in enumerate(zip(row, widths))))
+    if any(r.get("out_of_scope") for r in rows):
+        lines.append(OUT_OF_SCOPE_MARK + " " + OUT_OF_SCOPE_LEGEND)
     return "\n".join(lines)
+
+
+OUT_OF_SCOPE_MARK = "?"
+"""Printed after a value whose correlation is used outside its published scope."""
+OUT_OF_SCOPE_LEGEND = "outside the correlation's published scope: indicative only"
+
+
+def _marked(rec: dict, col: str, nd: int) -> str:
+    """A printed value with its flags: '~' estimated, '?' out of the correlation's scope; '-' when missing."""
+    text = _fmt(rec[col], nd)
+    if text == "-":
+        return text
+    return (text + ("~" if col in rec.get("estimated", ()) else "")
+            + (OUT_OF_SCOPE_MARK if col in rec.get("out_of_scope", ()) else ""))
 
 
 def md(text) -> str:

@@ -11,7 +11,7 @@ import numpy as np
 
 from ..cutting.cut_table import CutTable
 from ..cutting.cutset import CutSet
-from ..cutting.ideal import cut_columns
+from ..cutting.ideal import FLAG_SETS, columns_table, cut_columns, take_rows
 from ..cutting.model_rows import BatchModel
 from ..errors import StudyError
 from ..methods.d86 import D86_STD
@@ -166,7 +166,6 @@ def cut_point_vectors(model: CrudeModel, cut_set: CutSet, step_c: float = VECTOR
     StudyError
         When two cut points lie within 2h of each other (the step would cross them).
     """
-    from ..cutting.ideal import columns_table, first_row
 
     names, ends = cut_set.reported()
     gaps = np.diff(ends)
@@ -178,11 +177,9 @@ def cut_point_vectors(model: CrudeModel, cut_set: CutSet, step_c: float = VECTOR
     grid[1:k + 1][np.arange(k), np.arange(k)] += step_c
     grid[k + 1:][np.arange(k), np.arange(k)] -= step_c
     cols = cut_columns(BatchModel([model]), grid)
-    tables = [columns_table(names, first_row({key: (({n: f[i:i + 1] for n, f in v.items()} if key == "estimated"
-                                                      else v[i:i + 1])) for key, v in cols.items()}))
-              for i in range(2 * k + 1)]
+    tables = [columns_table(names, take_rows(cols, i)) for i in range(2 * k + 1)]
     base = tables[0]
-    numeric = [c for c in base.keys if c not in ("name", "d86_c", "estimated", "extrapolated")]
+    numeric = [c for c in base.keys if c not in ("name", "d86_c", "extrapolated") + FLAG_SETS]
     deltas = {}
     for j in range(k):
         plus, minus = tables[1 + j], tables[1 + k + j]

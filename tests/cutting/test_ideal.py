@@ -213,16 +213,41 @@ def test_estimates_do_not_switch_on_a_tbp_start():
         assert abs(rows[0][col] - rows[1][col]) < 0.2
 
 
-def test_estimates_outside_their_range_are_empty_and_named():
+def test_estimates_outside_their_scope_are_given_flagged_and_named():
     # ISO 4264 scope (recalled from memory): a naphtha's D86 10 % of about 100 °C is outside 171-259 °C, so the
-    # cetane index is left empty and the warning names the cut.
+    # cetane index is given by the ASTM D4737 equation, flagged out_of_scope, and the warning names the cut.
+    from assaycut.methods.product_properties import cetane_index_d4737
     from assaycut.yields import run_yields
 
     a = Assay("t", 0.86, [CurveData("TBP", "vol", PCT, TMP)], sulfur_wt_pct=1.3)
     res = run_yields(a, CutSet([Cut("naphtha", 150.0), Cut("gas oil", 330.0), Cut("rest", None)]))
-    cuts = res.cuts.frame().set_index("name")
-    assert np.isnan(cuts.loc["naphtha", "cetane_index_d4737"])
-    assert any(w.startswith("cetane index left empty for naphtha") for w in res.warnings)
+    rows = {r["name"]: r for r in res.cuts.rows()}
+    n = rows["naphtha"]
+    d = n["d86_c"]
+    assert n["cetane_index_d4737"] == pytest.approx(
+        cetane_index_d4737(d["10"], d["50"], d["90"], n["density_15c_kg_m3"] / 1000.0), rel=1e-12)
+    assert "cetane_index_d4737" in n["out_of_scope"]
+    assert any(w.startswith("cetane index of naphtha") and "out_of_scope" in w for w in res.warnings)
+    # a value inside the scope is not flagged
+    g = rows["gas oil"]["d86_c"]
+    inside = 171 <= g["10"] <= 259 and 212 <= g["50"] <= 308 and 251 <= g["90"] <= 363
+    assert ("cetane_index_d4737" in rows["gas oil"]["out_of_scope"]) == (not inside)
+
+
+def test_a_limit_on_an_out_of_scope_value_is_evaluated_and_says_so():
+    # A 250-360 °C diesel (D86 90 % above the ISO 4264 scope, recalled from memory) gets a cetane index and the
+    # EN 590-style minimum is checked on it, with the note naming the scope.
+    from assaycut.cutting.limits import Limit
+    from assaycut.yields import run_yields
+
+    a = Assay("t", 0.86, [CurveData("TBP", "vol", PCT, TMP)], sulfur_wt_pct=1.3)
+    lim = Limit("diesel", "cetane_index_d4737", min=46.0)
+    res = run_yields(a, CutSet([Cut("kero", 250.0), Cut("diesel", 360.0), Cut("rest", None)]), limits=[lim])
+    row = res.limits.rows()[0]
+    diesel = {r["name"]: r for r in res.cuts.rows()}["diesel"]
+    assert "cetane_index_d4737" in diesel["out_of_scope"]
+    assert row["status"] in ("pass", "fail") and row["value"] == pytest.approx(diesel["cetane_index_d4737"])
+    assert "outside its published scope" in row["note"]
 
 
 def test_vabp_d86_is_the_mean_of_the_reported_d86():
@@ -285,9 +310,9 @@ def test_point_added_past_the_end_changes_nothing_unflagged(narrow):
             abs(a.loc[n, "d86_c"][k] - b.loc[n, "d86_c"][k]) < 1e-9 for k in a.loc[n, "d86_c"])
 
 
-def test_flag_covers_the_last_measured_interval():
-    # The PCHIP's slope at the last measured node comes from the extension: a cut ending inside the last
-    # measured interval (70-75 % here, 420-445 °C) depends on it and is flagged; one ending at 420 °C is not.
+def test_flag_starts_at_the_last_measured_point():
+    # The slope at the last measured node comes from the measured points (not the extension): a cut ending
+    # inside the last measured interval (70-75 %, 420-445 °C) is not flagged; one ending past 445 °C is.
     a = build_model(_tail_pair(True)[0])
     cut = lambda t: cut_table(a, CutSet([Cut("x", t), Cut("rest", None)])).frame().loc[0, "extrapolated"]  # noqa: E731
-    assert not cut(420.0) and cut(430.0)
+    assert not cut(420.0) and not cut(440.0) and cut(450.0)

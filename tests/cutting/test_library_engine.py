@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 from assaycut.cutting.cutset import Cut, CutSet, default_cut_set
-from assaycut.cutting.ideal import cut_columns
+from assaycut.cutting.ideal import FLAG_SETS, cut_columns
 from assaycut.cutting.library_engine import cut_library, library_summary
 from assaycut.cutting.model_rows import BatchModel
 from assaycut.io import load_assay
@@ -34,10 +34,11 @@ def test_batch_equals_single(models, cs):
     _, ends = cs.reported()
     for r, m in enumerate(models):
         single = cut_columns(BatchModel([m]), ends[None, :])
-        est = single.pop("estimated")
-        for key in set(est) | set(cols["estimated"]):
-            one = est[key][0] if key in est else np.zeros(len(names), bool)
-            assert np.array_equal(cols["estimated"][key][r], one), (key, r)
+        for flag_set in FLAG_SETS:
+            est = single.pop(flag_set)
+            for key in set(est) | set(cols[flag_set]):
+                one = est[key][0] if key in est else np.zeros(len(names), bool)
+                assert np.array_equal(cols[flag_set][key][r], one), (flag_set, key, r)
         for key, val in single.items():
             np.testing.assert_allclose(np.asarray(cols[key][r], float), np.asarray(val[0], float),
                                        rtol=1e-12, atol=1e-9, equal_nan=True, err_msg=f"{key} of crude {r}")

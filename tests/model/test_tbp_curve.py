@@ -15,10 +15,10 @@ def test_curve_stopping_early_is_extended_and_marked():
     c = build_curve([5, 15, 30, 45], [60, 120, 210, 300])
     assert c.measured_hi == 45 and c.fit is not None
     assert c.fbp_c > 300
-    # depends on the extension: beyond the measured range, and the first and last measured intervals (the
-    # PCHIP's end slopes there come from the extensions); not between the inner measured points
-    assert bool(c.is_extrapolated(40.0, 60.0)) and not bool(c.is_extrapolated(15.0, 30.0))
-    assert bool(c.is_extrapolated(10.0, 20.0)) and bool(c.is_extrapolated(20.0, 35.0))
+    # depends on the extension beyond the measured range only: the slopes at the first and last measured
+    # points come from the measured points
+    assert bool(c.is_extrapolated(40.0, 60.0)) and bool(c.is_extrapolated(2.0, 10.0))
+    assert not bool(c.is_extrapolated(5.0, 45.0))
     assert_allclose(c.pct_at([60, 120, 210, 300]), [5, 15, 30, 45], atol=1e-9)  # exact at measured points
 
 
@@ -77,3 +77,23 @@ def test_extrapolated_and_lumped_shares():
     assert heavy.extrapolated_pct == pytest.approx(57.0, abs=1e-12)
     assert 3.0 < heavy.lumped_pct < 57.0
     assert any(f"passes 850 °C at {100 - heavy.lumped_pct:.1f} vol %" in w for w in heavy.warnings)
+
+
+def test_the_measured_range_does_not_depend_on_the_extension(monkeypatch):
+    # Independence (the property the extrapolated flag claims): with the extension's fitted distribution
+    # changed (B, the shape, 20 % larger), the curve between the first and last measured points is unchanged
+    # to rounding, while the extension itself moves.
+    import dataclasses
+
+    from assaycut.model import tbp_curve
+
+    pts = ([5, 15, 30, 45, 60], [60, 120, 210, 300, 380])
+    inside = np.linspace(5.0, 60.0, 56)
+    outside = np.array([70.0, 90.0])
+    base = build_curve(*pts)
+    real = tbp_curve.fit_riazi_many
+    monkeypatch.setattr(tbp_curve, "fit_riazi_many",
+                        lambda data: [dataclasses.replace(f, b=f.b * 1.2) for f in real(data)])
+    moved = build_curve(*pts)
+    assert_allclose(moved.temp_at(inside), base.temp_at(inside), rtol=0, atol=1e-9)
+    assert np.abs(moved.temp_at(outside) - base.temp_at(outside)).max() > 1.0

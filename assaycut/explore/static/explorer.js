@@ -348,10 +348,12 @@ function drawPanel(name) {
     const range = `${cut.start_c === null ? "IBP" : num(cut.start_c, 1)}–${cut.end_c === null ? "EP" : num(cut.end_c, 1)}`;
     tr.append(el("td", {}, cut.name), el("td", {}, range));
     const est = new Set(cut.estimated || []);
+    const scope = new Set(cut.out_of_scope || []);
     const was = base ? base.cuts[i] : null;
     for (const [key, , nd, d] of CUT_COLUMNS) {
       let text = num(cellValue(cut, key), nd);
       if (est.has(key) && text !== "–") text += "~";
+      if (scope.has(key) && text !== "–") text += "?";
       tr.append(el("td", { "data-col": key }, text));
       if (d) tr.append(el("td", { class: "delta", "data-col": key + "_delta" },
                           was ? signed(cut[key] - was[key], 2) : ""));
@@ -477,6 +479,7 @@ function drawFooter(notes) {
   const marks = document.getElementById("legend-marks");
   marks.replaceChildren(
     el("span", {}, "~ estimated in whole or part (a correlation, or the nearest measured cut, where no narrow cut measured it)"),
+    el("span", {}, "? outside the correlation's published scope: indicative only"),
     el("span", {}, "ext: the cut depends on the curve's fitted extension"),
     el("span", {}, "* flash points are correlation estimates: measure them (ASTM D93)"),
     el("span", {}, "Δ: change from the starting cut points"));
