@@ -11,6 +11,7 @@ Contents
 - :func:`fill_standard_points`: Fill the standard points that lie between the given ones and are missing, by...
 - :func:`check_monotone`: Warnings for a converted curve whose temperature falls as percent rises
 - :func:`range_warnings`: Warnings for input points outside the temperature range of the data behind...
+- :func:`below_start_warnings`: Warnings for a simulated distillation converted to a TBP that starts below...
 - :func:`vacuum_warnings`: Warnings for a D1160 pressure: above 760 mmHg the method (a vacuum...
 - :func:`filled_inputs`: The input points :func:`convert` fills for a (``frm``, ``to``) conversion,...
 - :func:`convert`: Convert a curve between methods by name
@@ -35,7 +36,8 @@ from .d1160 import vacuum_to_aet_maxwell_bonnell
 from .d2887 import SD_D86_POINTS, SD_STD, d2887_to_d86_api_3a3_2, d2887_to_tbp_api_3a3_1
 from .segments import normalise_points
 
-__all__ = ["Conversion", "fill_standard_points", "check_monotone", "range_warnings", "vacuum_warnings",
+__all__ = ["Conversion", "fill_standard_points", "check_monotone", "range_warnings", "below_start_warnings",
+           "vacuum_warnings",
            "filled_inputs", "convert", "METHODS", "CONVERSIONS", "STANDARD_POINTS"]
 
 METHODS = ("daubert-1994", "riazi-daubert-1986")
@@ -145,6 +147,45 @@ def range_warnings(points: Mapping[float, float], frm: str, conversion: Conversi
             f"{conversion.label}: the result is an extrapolation of the correlation"]
 
 
+def below_start_warnings(points: Mapping[float, float], out: Mapping[float, float], frm: str,
+                         to: str) -> list[str]:
+    """Warnings for a simulated distillation converted to a TBP that starts below the sample's own start.
+
+    A D2887 simulated distillation is wider than the TBP of the same sample (gas chromatography separates
+    better than a 15-plate column; common practice, no source), so its TBP cannot boil below the D2887's first
+    given point.  A converted TBP point below it means the segment differences lie beyond the data behind
+    API TDB 3A3.1 (a wide-boiling sample, such as a whole crude): the front of the curve is not reliable.
+
+    Parameters
+    ----------
+    points, out : mapping
+        The input points and the converted points, {percent: temperature [°C]}.
+    frm, to : str
+        The methods (the check applies to D2887 -> TBP only).
+
+    Returns
+    -------
+    list of str
+        One warning naming the points below the start; empty when there are none.
+
+    Examples
+    --------
+    >>> below_start_warnings({5: 108.0, 10: 150.0}, {5: -94.0, 10: 80.0}, "D2887", "TBP")[0][:60]
+    'D2887 -> TBP: TBP -94.0 °C at 5 % lies below the sample's own'
+    """
+    if (frm, to) != ("D2887", "TBP") or not points:
+        return []
+    p0 = min(points)
+    start = points[p0]
+    low = {p: t for p, t in out.items() if t < start}
+    if not low:
+        return []
+    pts = ", ".join(f"TBP {t:.1f} °C at {p:g} %" for p, t in sorted(low.items()))
+    return [f"{frm} -> {to}: {pts} {'lies' if len(low) == 1 else 'lie'} below the sample's own first D2887 point ({start:.1f} °C at {p0:g} %): "
+            f"the D2887 differences are beyond the data behind API TDB 3A3.1 (a wide-boiling sample), so the "
+            f"front of the converted curve is not reliable; give the TBP or a light-ends analysis"]
+
+
 def vacuum_warnings(pressure_mmhg: float) -> list[str]:
     """Warnings for a D1160 pressure: above 760 mmHg the method (a vacuum distillation) does not apply."""
     if pressure_mmhg > 760.0:
@@ -232,6 +273,7 @@ def convert(points: Mapping[float, float], frm: str, to: str, method: str = "dau
     out = conv.func(pts)
     used = method if key[2] else conv.label
     warnings += check_monotone(out, f"{frm} -> {to}")
+    warnings += below_start_warnings(pts, out, frm, to)
     dropped = sorted(set(pts) - set(out))
     if dropped:
         warnings.append(f"{frm} -> {to}: point(s) {', '.join(f'{p:g} %' for p in dropped)} could not be "

@@ -503,9 +503,9 @@ def _num(x) -> float | None:
     return None if np.isnan(x) else float(x)
 
 
-def _wt_to_vol(g: Rows) -> np.ndarray:
+def _wt_to_vol(g: Rows) -> tuple[np.ndarray, np.ndarray]:
     """First estimate of the vol % of each row's cumulative wt % points (``p``, ``t``): dV = dW * SG_crude /
-    SG(interval).
+    SG(interval), and per row whether a measured narrow-cut SG entered it.
 
     SG of each interval is the narrow-cut SG covering its mid temperature, else constant Watson K from the
     crude's own 50 % point.  The starting point of :func:`_weight_basis`, which makes it exact.
@@ -514,28 +514,39 @@ def _wt_to_vol(g: Rows) -> np.ndarray:
     t_mid = np.concatenate([t[:, :1], 0.5 * (t[:, 1:] + t[:, :-1])], axis=1)
     kw = watson_k(np.array([np.interp(50.0, w[r], t[r]) for r in range(g.n)]), g.sg)
     sg = sg_from_watson_k(t_mid, kw[:, None])
+    measured = np.zeros(g.n, bool)
     if g.has_nc:
         for j in range(g.nc_sg.shape[1]):
             s, e, x = g.nc_start[:, j:j + 1], g.nc_end[:, j:j + 1], g.nc_sg[:, j:j + 1]
             lo = np.where(np.isnan(s), -np.inf, s)
             hi = np.where(np.isnan(e), np.inf, e)
-            sg = np.where(np.isfinite(x) & (t_mid > lo) & (t_mid <= hi), x, sg)
+            inside = np.isfinite(x) & (t_mid > lo) & (t_mid <= hi)
+            sg = np.where(inside, x, sg)
+            measured |= inside.any(axis=1)
     dw = np.diff(np.concatenate([np.zeros((g.n, 1)), w], axis=1), axis=1)
-    return np.cumsum(dw * g.sg[:, None] / sg, axis=1)
+    return np.cumsum(dw * g.sg[:, None] / sg, axis=1), measured
 
 
 def _to_volume_basis(g: Rows) -> Rows:
     """Volume percents ``v0`` of weight-basis curves, closed at 100 % where the weight curve is; rows whose curve
     converts to more than 100 % are refused."""
     w_last = g.p[:, -1]
-    p = _wt_to_vol(g)
+    p, measured = _wt_to_vol(g)
     closes = (np.abs(w_last - 100.0) < 1e-9) & (np.abs(p[:, -1] - 100.0) > 1e-9)
     factor = np.where(closes, 100.0 / p[:, -1], 1.0)
     for r in np.flatnonzero(closes & (np.abs(factor - 1.0) > 0.02)):
-        g.warn[r].append(f"the weight-basis curve converts to {p[r, -1]:.1f} vol % at 100 wt %: the cut "
-                         f"densities and the crude gravity disagree by {abs(factor[r] - 1) * 100:.1f} %; the "
-                         f"volume percents are scaled to close at 100 %")
+        g.warn[r].append(f"the weight-basis curve converts to {p[r, -1]:.1f} vol % at 100 wt %: "
+                         f"{_disagree(measured[r])}, by {abs(factor[r] - 1) * 100:.1f} %; the volume percents are "
+                         f"scaled to close at 100 %")
     g.put(v0=np.where(closes[:, None], p * factor[:, None], p))
     return g.fail(~closes & (p[:, -1] > 100.0 + 1e-6), lambda r: CurveError(
         f"the weight-basis curve converts to {p[r, -1]:.1f} vol % at {pct_text(w_last[r])} wt %, above 100 %: "
-        f"the crude gravity and the cut densities disagree"))
+        f"{_disagree(measured[r])}; check the curve's basis and temperatures and the crude gravity"))
+
+
+def _disagree(measured: bool) -> str:
+    """What disagrees in a weight-to-volume conversion that does not close, for its messages."""
+    if measured:
+        return "the narrow cuts' densities and the crude gravity disagree"
+    return ("the curve and the crude gravity disagree (no narrow-cut densities: each interval's density is "
+            "estimated at constant Watson K from the crude gravity and the curve's 50 % point)")

@@ -177,6 +177,22 @@ def test_d2887_to_tbp_printed_example():
         assert abs(c_to_f(out[p]) - f) <= 0.05 + 1e-9, p
 
 
+def test_d2887_to_tbp_below_the_sample_start_is_warned():
+    # A simulated distillation is wider than the TBP of the same sample (common practice, no source): the API
+    # TDB 3A3.1 worked example's TBP (quoted second-hand) starts above its own D2887 5 % point and gets no such
+    # warning; a wide-boiling whole-crude D2887 (5 % at 108 °C, 95 % at 600 °C) converts to a TBP front far
+    # below 108 °C, and the warning names the points and the sample's start.
+    from assaycut.methods.distillation import convert
+
+    sd = {p: (f - 32) / 1.8 for p, f in zip((5, 10, 30, 50, 70, 90, 95), (293, 305, 324, 336, 344, 359, 369))}
+    assert not any("below the sample" in w for w in convert(sd, "D2887", "TBP")[2])
+    wide = {5: 108.0, 10: 150.0, 30: 260.0, 50: 350.0, 70: 440.0, 90: 530.0, 95: 539.0}
+    out, _, warnings = convert(wide, "D2887", "TBP")
+    assert out[5] < 108.0
+    hits = [w for w in warnings if "below the sample's own first D2887 point (108.0 °C at 5 %)" in w]
+    assert len(hits) == 1 and f"TBP {out[5]:.1f} °C at 5 %" in hits[0]
+
+
 def test_missing_point_named():
     with pytest.raises(ConversionError, match=r"needs the 50 % point\(s\); the curve has 10, 30"):
         d86_to_tbp_daubert_1994({10: 150.0, 30: 180.0})

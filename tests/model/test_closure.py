@@ -9,9 +9,12 @@ from __future__ import annotations
 import dataclasses
 
 import numpy as np
+import pytest
 
 from assaycut.cutting.cutset import default_cut_set
 from assaycut.io import load_assay
+from assaycut.model.assay import Assay, CurveData
+from assaycut.model.crude import build_model
 from assaycut.yields import run_yields
 
 
@@ -55,3 +58,16 @@ def test_a_hundredth_of_a_degree_moves_no_quality_by_more_than_half_a_unit(demo_
         for k, v in x.items():
             if isinstance(v, (float, np.floating)) and np.isfinite(v):
                 assert np.isfinite(y[k]) and abs(y[k] - v) <= 0.5, (name, k, v, y[k])
+
+
+def test_a_weight_curve_that_does_not_close_names_what_disagrees():
+    # Messages say what is true of the input: a weight-basis curve with no narrow-cut densities that converts
+    # past 100 vol % is refused without speaking of cut densities it does not have (the case of a wide-boiling
+    # D2887 whose converted front falls far below its own start; see the D2887 warning's test).
+    from assaycut.errors import CurveError
+
+    a = Assay("w", 0.86, [CurveData("D2887", "wt", np.array([5, 10, 30, 50, 70, 90, 95.0]),
+                                    np.array([108, 150, 260, 350, 440, 530, 539.0]))], sulfur_wt_pct=1.0)
+    with pytest.raises(CurveError) as err:
+        build_model(a)
+    assert "the cut densities disagree" not in str(err.value) and "no narrow-cut densities" in str(err.value)
