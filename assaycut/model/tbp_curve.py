@@ -400,10 +400,7 @@ def _join(g: Rows, placed: bool, need_tail: bool, need_front: bool) -> list[Rows
         tt.insert(0, np.broadcast_to(g.front_t, (g.n, g.front_t.size)))
         vv.insert(0, g.front_v)
     T, V = np.concatenate(tt, axis=1), np.concatenate(vv, axis=1)
-    d, front_free, tail_free = _measured_end_slopes(T, V, v, t, g.tx.shape[1], need_front, need_tail)
-    g.put(T=T, V=V, D=d, le_pct=g.front_v[:, -1].copy() if placed else np.zeros(g.n),
-          safe_lo=np.where(front_free, g.mlo, v[:, 1]) if need_front else g.mlo,
-          safe_hi=np.where(tail_free, g.mhi, v[:, -2]) if need_tail else g.mhi)
+    g.put(T=T, V=V, le_pct=g.front_v[:, -1].copy() if placed else np.zeros(g.n))
     if need_front:
         g = g.fail(g.ftx[:, 0] < METHANE_NBP_C, lambda r: CurveError(
             f"the curve starts at {pct_text(g.mv[r, 0])} % and its fitted front reaches {g.ftx[r, 0]:.0f} °C, "
@@ -412,11 +409,14 @@ def _join(g: Rows, placed: bool, need_tail: bool, need_front: bool) -> list[Rows
         "the curve's extension does not join the measured points monotonically; check the last points of the "
         "curve"))
     if g.n:
-        g.put(spline=Pchip(g.T, g.V, g.D))
+        v = g.mv
+        d, front_free, tail_free = _measured_end_slopes(g.T, g.V, v.shape[1], g.tx.shape[1], need_front, need_tail)
+        g.put(spline=Pchip(g.T, g.V, d), safe_lo=np.where(front_free, g.mlo, v[:, 1]) if need_front else g.mlo,
+              safe_hi=np.where(tail_free, g.mhi, v[:, -2]) if need_tail else g.mhi)
     return [g]
 
 
-def _measured_end_slopes(T, V, v, t, n_tail: int, need_front: bool, need_tail: bool):
+def _measured_end_slopes(T, V, n_measured: int, n_tail: int, need_front: bool, need_tail: bool):
     """The curve's node slopes dV/dT [vol %/°C] with the slope at the first and last measured nodes, where an
     extension joins them, taken from the measured points alone (the end slope of the measured points' own
     PCHIP, :func:`~assaycut.methods.pchip.slopes_on`): the measured intervals then do not depend on the
@@ -428,10 +428,8 @@ def _measured_end_slopes(T, V, v, t, n_tail: int, need_front: bool, need_tail: b
     ----------
     T, V : numpy.ndarray
         The curve's nodes, measured and extension, rows of equal length. [°C], [vol %]
-    v, t : numpy.ndarray
-        The measured points among them. [vol %], [°C]
-    n_tail : int
-        Number of extension nodes after the last measured point.
+    n_measured, n_tail : int
+        Number of measured nodes, and of extension nodes after the last of them.
     need_front, need_tail : bool
         Whether an extension joins the first (last) measured point.
 
@@ -442,11 +440,11 @@ def _measured_end_slopes(T, V, v, t, n_tail: int, need_front: bool, need_tail: b
         extension.
     """
     d = slopes_on(T)(V)
-    own = slopes_on(t)(v)
+    last = T.shape[1] - n_tail - 1
+    first = last - n_measured + 1
+    own = slopes_on(T[:, first:last + 1])(V[:, first:last + 1])
     n = T.shape[0]
     free = [np.ones(n, bool), np.ones(n, bool)]
-    last = T.shape[1] - n_tail - 1
-    first = last - v.shape[1] + 1
     for k, j, nb, on in ((first, 0, first - 1, need_front), (last, -1, last + 1, need_tail)):
         if not on:
             continue
