@@ -199,6 +199,36 @@ def density15_to_sg(rho15):
 
 
 
+BBL_M3 = 0.158987294928
+"""One US oil barrel (42 US gallons, exact), the volume of a barrel at 60 °F. [m³]"""
+
+
+def barrel_mass_t(sg):
+    """Mass of one barrel at 60 °F of a liquid of specific gravity ``sg`` (60/60 °F): the trade's barrel is a
+    volume at 60 °F, so its mass is SG x 999.016 kg/m³ (water at 60 °F, API MPMS Ch. 11.1) x 0.158987 m³.
+
+    .. math:: m = SG \\cdot 999.016 \\cdot 0.158987294928 / 1000 \\quad [t/bbl]
+
+    Parameters
+    ----------
+    sg : float or array_like
+        Specific gravity 60/60 °F. [-]
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Mass per barrel. [t/bbl]
+
+    Examples
+    --------
+    Water (SG 1) weighs 158.83 kg per barrel at 60 °F, the 6.2898 barrels per m³ at 999.016 kg/m³:
+
+    >>> round(barrel_mass_t(1.0) * 1000, 2)
+    158.83
+    """
+    return as_scalar(np.asarray(sg, dtype=float) * WATER_60F_KG_M3 * BBL_M3 / 1000.0)
+
+
 def pct_text(x) -> str:
     """A percentage as message text: at most 2 decimals, no trailing zeros (73.4347 -> '73.43', 88.5 -> '88.5')."""
     v = round(float(x), 2)

@@ -17,7 +17,7 @@ from .cutting.cut_qualities import ESTIMATED, NOT_ESTIMATED
 from .methods.product_properties import describe_ranges
 from .model.assay import Assay
 from .model.crude import CrudeModel, build_model, build_models  # noqa: F401 (build_models: for batches)
-from .units import pct_text, residual_text, sg_to_density15
+from .units import pct_text, residual_text
 
 CAUTIONS = [
     "Estimates for screening and planning, not measured properties: confirm against laboratory data before "
@@ -80,10 +80,13 @@ METHOD_NOTES = {
     "watson_k": "Watson K = MeABP[°R]^(1/3) / SG for every cut; the residue's rests on the fitted extension and "
                 "its lumped end point (flagged extrapolated)",
     "mw": "molecular weight by Riazi-Daubert 1987 (API TDB 2B2.1) at (MeABP, SG), only inside its range",
-    "cetane_index_d4737": "ASTM D4737 Procedure A, where the cut's D86 and density lie in the method's scope ("
-                          + describe_ranges()["cetane_index_d4737"] + "); empty outside it",
-    "flash_c_est": "closed-cup flash estimate from D86 10 % by API TDB 2B7.1, where D86 10 % lies in its range ("
-                   + describe_ranges()["flash_c_est"] + "); empty outside it",
+    "cetane_index_d4737": "ASTM D4737 Procedure A from the cut's D86 and density; outside the method's scope ("
+                          + describe_ranges()["cetane_index_d4737"] + ") given and flagged out_of_scope",
+    "flash_c_est": "closed-cup flash estimate from D86 10 % by API TDB 2B7.1; outside its range ("
+                   + describe_ranges()["flash_c_est"] + ") given and flagged out_of_scope",
+    "hydrocarbon types": "paraffins, naphthenes and aromatics of a cut, each blended by volume, are scaled together "
+                         "to add up to what their narrow cuts add up to (a cut of whole narrow cuts keeps its "
+                         "measured values)",
     "density_15c": "SG 60/60 °F to 15 °C by the API MPMS 11.1 crude-oil form (K0 from memory)",
 }
 
@@ -131,7 +134,7 @@ def run_yields(assay: Assay, cut_set: CutSet, limits: list[Limit] | None = None,
     else:
         cuts = cut_table(model, cut_set)
     if rate_bbl_per_day is not None:
-        cuts = add_rates(cuts, rate_bbl_per_day, float(sg_to_density15(assay.sg)))
+        cuts = add_rates(cuts, rate_bbl_per_day, float(assay.sg))
     lim = check_limits(cuts, limits or [])
     names = cuts["name"]
     res = _assemble(assay, model, cut_set, limits, cuts, lim, names, products)

@@ -96,7 +96,58 @@ def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas,
     for name in GRAVITY_COLUMNS:  # a density distribution at a fitted Watson K
         estimated[name] = some & model.sg_rows_estimated.reshape((-1,) + (1,) * (va.ndim - 1))
     add_estimates(values, estimated, meabp, sg, kw, some & ~gas, parts)
+    if len(rows) == 1:
+        close_pna(values, pna_target(rows[0], va, vb))
+    else:
+        for r, quals in enumerate(rows):
+            close_pna(values, pna_target(quals, va[r], vb[r]), r)
     return values, estimated
+
+
+PNA = ("paraffins_vol_pct", "naphthenes_vol_pct", "aromatics_vol_pct")
+"""The hydrocarbon-type shares that add up to the whole of a cut. [vol %]"""
+
+
+def pna_target(qualities: dict, va, vb):
+    """What the paraffins, naphthenes and aromatics of each interval add up to by the narrow cuts: the mean
+    over [va, vb] of the narrow cuts' own sums, the cumulative shares taken linearly between their splines'
+    nodes (exact over whole narrow cuts). [vol %]; None when the crude lacks one of the three."""
+    if not all(n in qualities for n in PNA):
+        return None
+    with np.errstate(invalid="ignore", divide="ignore"):
+        width = np.where(vb - va > 1e-12, vb - va, np.nan)
+        return sum(np.interp(vb, qualities[n].cum.x, qualities[n].cum.y)
+                   - np.interp(va, qualities[n].cum.x, qualities[n].cum.y) for n in PNA) / width
+
+
+def close_pna(values: dict, target, row=None) -> None:
+    """Paraffins, naphthenes and aromatics of each cut scaled together so that they add up to what the narrow
+    cuts add up to (in place).
+
+    Each share is blended on its own (volume-additive, :mod:`assaycut.methods.blending_indices`), and the three
+    monotone partition splines do not add up to the spline of the sum where a cut ends inside a narrow cut
+    (their sum drifted 95-110 vol % on the development set's crudes).  The target (:func:`pna_target`) is the
+    narrow cuts' own sum over the cut: a cut made of whole narrow cuts keeps its measured values (scale 1),
+    and a partly covered cut adds up to its narrow cuts' sum (100 vol % where the laboratory's shares do).
+    Each share is scaled by target / sum.
+
+    Parameters
+    ----------
+    values : dict of str to numpy.ndarray
+        The cut values; updated where all three shares and the target are present.
+    target : numpy.ndarray or None
+        Each cut's target sum [vol %] (None: nothing to do).
+    row : int, optional
+        The row of ``values`` to update (a batch of crudes), else all of it.
+    """
+    if target is None or not all(n in values for n in PNA):
+        return
+    sl = slice(None) if row is None else row
+    with np.errstate(invalid="ignore", divide="ignore"):
+        total = sum(values[n][sl] for n in PNA)
+        scale = np.where(np.isfinite(target) & (total > 0), target / total, 1.0)
+    for n in PNA:
+        values[n][sl] = values[n][sl] * scale
 
 
 def product_quality_columns(model, slice_bounds, f, dv, mass, meabp, sg, kw, gas):
@@ -141,6 +192,11 @@ def product_quality_columns(model, slice_bounds, f, dv, mass, meabp, sg, kw, gas
         for name in GRAVITY_COLUMNS:
             estimated[name] = some.copy()
     add_estimates(values, estimated, meabp, sg, kw, some & ~gas, parts)
+    target = pna_target(model.qualities, va, vb)
+    if target is not None:  # each product's target: its slices' targets, weighted by volume
+        with np.errstate(invalid="ignore", divide="ignore"):
+            weight = f * dv[:, None]
+            close_pna(values, (weight * np.nan_to_num(target)[:, None]).sum(axis=0) / weight.sum(axis=0))
     return values, estimated
 
 

@@ -39,7 +39,7 @@ from ..methods.d86 import D86_STD, tbp_to_d86_daubert_1994_array
 from ..methods.product_properties import cci_in_range, cetane_index_d4737, flash_in_range, flash_point_api_2b7_1
 from ..model.crude import CrudeModel
 from .model_rows import BatchModel
-from ..units import sg_to_api, sg_to_density15
+from ..units import BBL_M3, barrel_mass_t, sg_to_api, sg_to_density15
 from .cut_table import CutTable
 from .cutset import CutSet
 from .cut_qualities import quality_columns
@@ -246,15 +246,12 @@ def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, me
     }
 
 
-BBL_M3 = 0.158987294928
-"""One US oil barrel (42 US gallons, exact). [m³]"""
+def add_rates(cuts: CutTable, rate_bbl_per_day: float, crude_sg: float) -> CutTable:
+    """The cut table with daily rates for a crude run of ``rate_bbl_per_day`` (barrels at 60 °F).
 
-
-def add_rates(cuts: CutTable, rate_bbl_per_day: float, crude_density_kg_m3: float) -> CutTable:
-    """The cut table with daily rates for a crude run of ``rate_bbl_per_day``.
-
-    bbl_per_day = rate x vol % / 100; m3_per_day = bbl_per_day x 0.158987 m³/bbl; t_per_day = rate x 0.158987
-    x crude density [kg/m³] / 1000 x wt % / 100 (a mass balance on the crude's own density).
+    bbl_per_day = rate x vol % / 100; m3_per_day = bbl_per_day x 0.158987 m³/bbl (at 60 °F); t_per_day = rate
+    x the crude's 60 °F barrel mass (:func:`~assaycut.units.barrel_mass_t`) x wt % / 100 (a mass balance on the
+    crude's own gravity).
 
     Parameters
     ----------
@@ -262,15 +259,15 @@ def add_rates(cuts: CutTable, rate_bbl_per_day: float, crude_density_kg_m3: floa
         A cut table (vol_pct, wt_pct).
     rate_bbl_per_day : float
         Crude run. [bbl/d]
-    crude_density_kg_m3 : float
-        Whole-crude density at 15 °C. [kg/m³]
+    crude_sg : float
+        Whole-crude specific gravity 60/60 °F. [-]
 
     Returns
     -------
     CutTable
         A copy with ``bbl_per_day``, ``m3_per_day`` and ``t_per_day`` after ``cum_wt_pct``.
     """
-    crude_t = rate_bbl_per_day * BBL_M3 * crude_density_kg_m3 / 1000.0
+    crude_t = rate_bbl_per_day * barrel_mass_t(crude_sg)
     return cuts.with_columns("cum_wt_pct", {"bbl_per_day": rate_bbl_per_day * cuts["vol_pct"] / 100.0,
                                             "m3_per_day": rate_bbl_per_day * BBL_M3 * cuts["vol_pct"] / 100.0,
                                             "t_per_day": crude_t * cuts["wt_pct"] / 100.0})

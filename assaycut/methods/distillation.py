@@ -170,8 +170,8 @@ def below_start_warnings(points: Mapping[float, float], out: Mapping[float, floa
 
     Examples
     --------
-    >>> below_start_warnings({5: 108.0, 10: 150.0}, {5: -94.0, 10: 80.0}, "D2887", "TBP")[0][:60]
-    'D2887 -> TBP: TBP -94.0 °C at 5 % lies below the sample's own'
+    >>> below_start_warnings({5: 108.0, 10: 150.0}, {5: -94.0, 10: 120.0}, "D2887", "TBP")[0][:61]
+    "D2887 -> TBP: TBP -94.0 °C at 5 % lies below the sample's own"
     """
     if (frm, to) != ("D2887", "TBP") or not points:
         return []

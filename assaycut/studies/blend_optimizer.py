@@ -19,7 +19,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import StudyError
-from ..units import api_to_sg, sg_to_api, sg_to_density15
+from ..units import api_to_sg, sg_to_api
 from .compare import PriceSet, crude_properties, worth_table
 
 
@@ -159,7 +159,7 @@ def _objective(results, names, prices: PriceSet | None, objective: str):
     if objective == "cost":
         if prices is None or any(nm not in prices.crudes for nm in names):
             raise StudyError("--objective cost needs a crude price for every candidate in the price file")
-        c = np.array([float(prices.crudes[nm].per_bbl(sg_to_density15(r.assay.sg),
+        c = np.array([float(prices.crudes[nm].per_bbl(r.assay.sg,
                                                      prices.crudes[nm].adjusted(crude_properties(r))[0]))
                       for nm, r in zip(names, results)])
         label = f"crude cost [{prices.currency}/bbl]"

@@ -3,9 +3,9 @@
 Pure computation returning DataFrames.
 
 Worth (gross product worth, GPW): worth per barrel of crude = Σ_cuts (vol % / 100) x price per barrel of the
-cut; per tonne = Σ_cuts (wt % / 100) x price per tonne.  A price given per tonne converts to per barrel with
-the cut's own density at 15 °C: price/bbl = price/t x rho[kg/m3] x 0.158987 m3/bbl / 1000 (common practice, no
-source).  Worth ignores operating costs, unit capacities and product-quality give-away.
+cut; per tonne = Σ_cuts (wt % / 100) x price per tonne.  A price given per tonne converts to per barrel by
+the mass of the cut's barrel at 60 °F: price/bbl = price/t x SG x 999.016 kg/m³ x 0.158987 m³/bbl / 1000
+(:func:`~assaycut.units.barrel_mass_t`; the barrel is a volume at 60 °F, API MPMS Ch. 11.1).  Worth ignores operating costs, unit capacities and product-quality give-away.
 """
 
 from __future__ import annotations
@@ -15,9 +15,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..cutting.ideal import BBL_M3
 from ..errors import StudyError
-from ..units import sg_to_density15
+from ..units import barrel_mass_t, sg_to_density15
 
 WORTH_CAVEAT = ("Gross product worth only: operating costs, unit capacities, product-quality give-away, "
                 "freight and blending are ignored.")
@@ -86,16 +85,18 @@ class Price:
             val = np.minimum(val, self.max)
         return val, val - self.value
 
-    def per_tonne(self, density_kg_m3, value=None):
-        """Price per metric tonne at the given density at 15 °C; ``value`` an adjusted price in the own unit
-        (default the unadjusted one). [currency/t]"""
+    def per_tonne(self, sg, value=None):
+        """Price per metric tonne of a product of specific gravity ``sg`` (60/60 °F), by its 60 °F barrel's
+        mass (:func:`~assaycut.units.barrel_mass_t`); ``value`` an adjusted price in the own unit (default the
+        unadjusted one). [currency/t]"""
         v = self.value if value is None else value
-        return v if self.unit == "t" else v / (density_kg_m3 * BBL_M3 / 1000.0)
+        return v if self.unit == "t" else v / barrel_mass_t(sg)
 
-    def per_bbl(self, density_kg_m3, value=None):
-        """Price per barrel at the given density at 15 °C; ``value`` as in :meth:`per_tonne`. [currency/bbl]"""
+    def per_bbl(self, sg, value=None):
+        """Price per barrel (at 60 °F) of a product of specific gravity ``sg``; ``value`` as in
+        :meth:`per_tonne`. [currency/bbl]"""
         v = self.value if value is None else value
-        return v if self.unit == "bbl" else v * density_kg_m3 * BBL_M3 / 1000.0
+        return v if self.unit == "bbl" else v * barrel_mass_t(sg)
 
 
 @dataclass
@@ -182,11 +183,10 @@ def worth_table(results, prices: PriceSet):
     for r in results:
         detail = worth_by_product(r, prices)
         wb, wt = float(detail["worth_per_bbl"].sum()), float(detail["worth_per_t"].sum())
-        rho_crude = sg_to_density15(r.assay.sg)
         cp = prices.crudes.get(r.assay.name)
         if cp:
             value, _ = cp.adjusted(crude_properties(r))
-            cpb, cpt = float(cp.per_bbl(rho_crude, value)), float(cp.per_tonne(rho_crude, value))
+            cpb, cpt = float(cp.per_bbl(r.assay.sg, value)), float(cp.per_tonne(r.assay.sg, value))
         else:
             cpb = cpt = math.nan
         rows.append({"crude": r.assay.name, "worth_per_bbl": wb, "worth_per_t": wt, "crude_price_per_bbl": cpb,
@@ -241,9 +241,8 @@ def worth_by_product(result, prices: PriceSet):
         p = prices.products[c["name"]]
         empty = not c["vol_pct"] > 0
         value, adj = (np.float64(p.value), np.float64(0.0)) if empty else p.adjusted(c)
-        rho = c["density_15c_kg_m3"]
-        pb = float(p.per_bbl(rho, value)) if not empty else math.nan
-        pt = float(p.per_tonne(rho, value)) if not empty else math.nan
+        pb = float(p.per_bbl(c["sg"], value)) if not empty else math.nan
+        pt = float(p.per_tonne(c["sg"], value)) if not empty else math.nan
         rows.append({"crude": result.assay.name, "cut": c["name"], "unit": p.unit, "base_price": p.value,
                      "adjustment": float(adj), "price": float(value), "price_per_bbl": pb, "price_per_t": pt,
                      "vol_pct": c["vol_pct"], "wt_pct": c["wt_pct"],

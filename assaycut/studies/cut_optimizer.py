@@ -162,9 +162,9 @@ def objective_values(cols: dict, names: list[str], maximize: str | None, prices:
         p = prices.products.get(n)
         if p is None:
             raise StudyError(f"{prices.label}: no price for cut {n!r}")
-        rho = np.nan_to_num(cols["density_15c_kg_m3"][:, j], nan=1000.0)  # empty cuts weigh nothing anyway
+        sg = np.nan_to_num(cols["sg"][:, j], nan=1.0)  # empty cuts weigh nothing anyway
         value, _ = p.adjusted({k: v[:, j] for k, v in cols.items() if k in needed(p)}, strict=False)
-        total = total + cols["vol_pct"][:, j] / 100.0 * np.nan_to_num(p.per_bbl(rho, value), nan=-1e12)
+        total = total + cols["vol_pct"][:, j] / 100.0 * np.nan_to_num(p.per_bbl(sg, value), nan=-1e12)
     return total
 
 

@@ -317,11 +317,12 @@ def test_long_csv_matches_the_json(tmp_path, demo_paths):
 
 def test_rate_arithmetic(demo_paths):
     # Definitions: 1 US barrel = 42 US gallons x 3.785411784 L (exact); bbl/d and m3/d follow the volume yields,
-    # t/d the weight yields on the crude's mass (rate x bbl x density at 15 °C); each sums to the crude run.
+    # t/d the weight yields on the crude's mass (rate x the 60 °F barrel's mass, SG x 999.016 kg/m³, water at
+    # 60 °F by API MPMS Ch. 11.1); each sums to the crude run.
     r = runner.invoke(app, ["yields", demo_paths[0], "--rate", "120000", "--json"])
     d = json.loads(r.stdout)
     bbl = 42 * 3.785411784e-3
-    crude_t = 120000 * bbl * d["assay"]["density_15c_kg_m3"] / 1000.0
+    crude_t = 120000 * bbl * d["assay"]["sg"] * 999.016 / 1000.0
     for c in d["cuts"]:
         assert c["bbl_per_day"] == pytest.approx(120000 * c["vol_pct"] / 100.0, rel=1e-12)
         assert c["m3_per_day"] == pytest.approx(c["bbl_per_day"] * bbl, rel=1e-12)

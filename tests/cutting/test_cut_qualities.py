@@ -113,3 +113,32 @@ def test_real_column_products_carry_the_qualities_and_balance():
     assert (prods["wt_pct"] * prods["nitrogen_wt_ppm"]).sum() / 100.0 == pytest.approx(800.0, rel=1e-6)
     ideal = cut_table(m, default_cut_set()).frame()
     assert set(ideal.columns) <= set(prods.columns)
+
+
+def test_pna_of_every_cut_adds_up_to_what_the_narrow_cuts_add_up_to():
+    # Source: the development set (NOAA ADIOS records, CC0; tests/open_assays.py): the laboratory's paraffins,
+    # naphthenes and aromatics per cut add up to 99.609-100.001 vol % in the records used (each share given to
+    # 0.001: the cuts within 0.002 of that range).  Given as narrow cuts, every cut at the
+    # default cut points (ideal, and real-column products with a 20 °C overlap) adds up to within that range,
+    # and the record's own cuts come back as measured.
+    from assaycut.cutting.cutset import CutSet, default_cut_set
+    from tests import open_assays as oa
+
+    keys = ("paraffins_vol_pct", "naphthenes_vol_pct", "aromatics_vol_pct")
+    lab = []
+    for rec in oa.records()[:8]:
+        a = oa.assay_of(rec)
+        meas = {k: np.array([np.nan if c.get(k) is None else c[k] for c in rec["cuts"]], float) for k in keys}
+        a.narrow_cuts.extras.update(meas)
+        lab += [s for s in sum(meas.values()) if np.isfinite(s)]
+        overlap = default_cut_set()
+        overlap = CutSet(overlap.cuts, overlap.label, overlaps={overlap.cuts[3].name: 20.0})
+        for cs in (default_cut_set(), overlap):
+            for r in oa.run_yields(a, cs).cuts.rows():
+                if all(np.isfinite(r.get(k, np.nan)) for k in keys):
+                    assert 99.609 - 0.002 <= sum(r[k] for k in keys) <= 100.001 + 0.002, (rec["name"], r["name"])
+        own = oa.run_yields(a, oa.own_cut_set(rec)).cuts.rows()
+        for k in keys:
+            got = np.array([r.get(k, np.nan) for r in own])
+            np.testing.assert_allclose(got, meas[k], rtol=0, atol=1e-9, equal_nan=True)
+    assert min(lab) == pytest.approx(99.609, abs=1e-6) and max(lab) == pytest.approx(100.001, abs=1e-6)

@@ -55,3 +55,30 @@ def test_flash_api_2b7_1_jet_fact():
     # Fact of the trade (common practice, no source): a jet-range kerosene with D86 10 % near 175-180 °C has a
     # closed-cup flash near 40-55 °C, above the 38 °C jet minimum.
     assert 40.0 <= flash_point_api_2b7_1(177.0) <= 55.0
+
+
+FLASH_COMPOUNDS = ["n-heptane", "n-octane", "n-nonane", "n-decane", "n-undecane", "n-dodecane", "n-tridecane",
+                   "n-tetradecane", "n-hexadecane", "toluene", "ethylbenzene", "o-xylene", "cyclohexane",
+                   "methylcyclohexane", "decalin", "naphthalene", "1-methylnaphthalene", "tetralin"]
+
+
+def _flash_riazi_daubert_1987_c(t10_c):
+    """Riazi & Daubert 1987 flash point form, 1/TF = -0.024209 + 2.84947/T10 + 3.4254e-3 ln T10 (K; from
+    memory of Riazi, ASTM MNL50 2005, §3.6): the alternative to the linear API TDB 2B7.1 form."""
+    t = np.asarray(t10_c, float) + 273.15
+    return 1.0 / (-0.024209 + 2.84947 / t + 3.4254e-3 * np.log(t)) - 273.15
+
+
+def test_flash_form_kept_is_the_closer_on_measured_flash_points():
+    # Source: `chemicals` (T_flash, Tb: pure-compound data).  A pure compound distils at its normal boiling
+    # point, so its D86 10 % is its Tb.  Over 18 hydrocarbons of the kerosene-to-diesel range the linear
+    # API TDB 2B7.1 form (kept) errs 2.6 °C on average and the Riazi-Daubert 1987 form 4.2 °C; bounds at 3.0 and
+    # 3.5 (the forms were fitted on fractions, not pure compounds; about 3 °C is their stated accuracy, from
+    # memory of MNL50).
+    from chemicals import CAS_from_any, T_flash, Tb
+
+    tb = np.array([Tb(CAS_from_any(n)) for n in FLASH_COMPOUNDS]) - 273.15
+    tf = np.array([T_flash(CAS_from_any(n)) for n in FLASH_COMPOUNDS]) - 273.15
+    lin = np.abs(flash_point_api_2b7_1(tb) - tf).mean()
+    rd = np.abs(_flash_riazi_daubert_1987_c(tb) - tf).mean()
+    assert lin <= 3.0 and rd > 3.5 and lin < rd

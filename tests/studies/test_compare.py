@@ -27,9 +27,15 @@ def test_worth_by_hand(demos):
     w = worth_table([res], ps).iloc[0]
     assert w["worth_per_bbl"] == pytest.approx(50.0, rel=1e-12)
     assert w["margin_per_bbl"] == pytest.approx(10.0, rel=1e-12)
-    by_hand = sum(c["wt_pct"] / 100 * 50.0 / (c["density_15c_kg_m3"] * 0.158987294928 / 1000)
+    # per tonne: each cut's barrel is a volume at 60 °F, weighing SG x 999.016 kg/m³ (water at 60 °F, API MPMS
+    # Ch. 11.1) x 0.158987294928 m³ (42 US gallons, exact)
+    by_hand = sum(c["wt_pct"] / 100 * 50.0 / (c["sg"] * 999.016 * 0.158987294928 / 1000)
                   for c in res.cuts.frame().to_dict("records"))
     assert w["worth_per_t"] == pytest.approx(by_hand, rel=1e-12)
+    # mass balance: one price per barrel for every cut is that price per the 60 °F barrel mass of the crude the
+    # cuts add up to (Σ wt % / SG_cut = 100 / SG, SG = Σ vol % x SG_cut / 100); to the closure of wt % (1e-9)
+    sg = sum(c["vol_pct"] * c["sg"] for c in res.cuts.rows()) / 100.0
+    assert w["worth_per_t"] == pytest.approx(50.0 / (sg * 999.016 * 0.158987294928 / 1000), rel=1e-9)
     ps2 = PriceSet({names[0]: Price(50.0, "bbl")}, {}, "USD", "short.toml")
     with pytest.raises(StudyError, match=r"short.toml: no price for cut 'light naphtha'"):
         worth_table([res], ps2)
