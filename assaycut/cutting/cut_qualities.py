@@ -38,10 +38,19 @@ T100F_C, T210F_C = 37.7778, 98.8889
 """100 °F and 210 °F. [°C]"""
 STANDARD_VISCOSITY_C = (40.0, 100.0)
 """Temperatures at which a viscosity is always reported (estimated where not measured). [°C]"""
+RESIDUE_START_C = (650.0 - 32.0) / 1.8
+"""A residue: the open last cut starting at or above 650 °F (atmospheric residue and heavier; common practice,
+no source). [°C]"""
+RESIDUE_VISCOSITY_C = 135.0
+"""The residue's second viscosity temperature, with 100 °C (the trade quotes residues and bitumens at 100 and
+135 °C; common practice, no source). [°C]"""
 
 ESTIMATED = {
     "viscosity_40c_cst": "API TDB 11A4.2 (ν at 100/210 °F from MeABP and Kw), moved to 40 °C by ASTM D341",
     "viscosity_100c_cst": "API TDB 11A4.2, moved to 100 °C by ASTM D341",
+    "viscosity_135c_cst": "residues only (the open last cut from 650 °F): ASTM D341 through the cut's 100 °C value "
+                          "and the nearest other temperature's; a residue's estimated values below 100 °C are left "
+                          "empty",
     "pour_point_c": "API TDB 2B8.1 (SG 0.8-1.0, Tb 800-1500 °R, ν100°F 2-960 cSt)",
     "cloud_point_c": "API TDB 2B12.1 (SG 0.77-0.93, Tb 800-1225 °R)",
     "freeze_point_c": "API TDB 2B11.1 (SG 0.74-0.90, Tb 725-1130 °R)",
@@ -289,3 +298,43 @@ def _d341_from_measured(values: dict[str, np.ndarray], estimated: dict[str, np.n
             v = viscosity_d341(values[n1], t1, values[n2], t2, target)
         values[name] = v
         estimated[name] = np.isfinite(v)
+
+
+def residue_viscosities(values: dict[str, np.ndarray], estimated: dict[str, np.ndarray], residue) -> None:
+    """Viscosities of residues at the trade's temperatures, 100 and 135 °C (in place).
+
+    For each residue cut (``residue``: the open last cut starting at or above :data:`RESIDUE_START_C`), ν at
+    135 °C by ASTM D341 (Walther) from its ν at 100 °C and its value at the nearest other temperature,
+    flagged estimated unless a narrow cut measured it; its *estimated* viscosities below 100 °C are left
+    empty (a residue is not handled, nor its viscosity measured, that cold: a correlation's value there
+    reads as a fact).  Measured values are kept.
+
+    Parameters
+    ----------
+    values, estimated : dict of str to numpy.ndarray
+        The cut values and their estimated flags (updated).
+    residue : numpy.ndarray of bool
+        The residue cuts, shaped like the values.
+    """
+    residue = np.asarray(residue, dtype=bool)
+    v100 = values.get("viscosity_100c_cst")
+    if v100 is None or not residue.any():
+        return
+    name = f"viscosity_{RESIDUE_VISCOSITY_C:g}c_cst"
+    temps = sorted((abs(float(VISCOSITY.match(n).group(1)) - RESIDUE_VISCOSITY_C), float(VISCOSITY.match(n).group(1)),
+                    n) for n in values if VISCOSITY.match(n) and n not in (name, "viscosity_100c_cst"))
+    other, t_other = np.full(residue.shape, np.nan), np.full(residue.shape, np.nan)
+    for _, t, n in temps:
+        take = np.isnan(other) & np.isfinite(values[n])
+        other, t_other = np.where(take, values[n], other), np.where(take, t, t_other)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        est = np.where(residue, viscosity_d341(v100, 100.0, other, t_other, RESIDUE_VISCOSITY_C), np.nan)
+    have = values.get(name, np.full(residue.shape, np.nan))
+    fill = ~np.isfinite(have) & np.isfinite(est)
+    values[name] = np.where(fill, est, have)
+    estimated[name] = fill | estimated.get(name, np.zeros(residue.shape, bool))
+    for _, t, n in temps:
+        if t < 100.0 and n in estimated:
+            cold = residue & estimated[n]
+            values[n] = np.where(cold, np.nan, values[n])
+            estimated[n] = estimated[n] & ~cold

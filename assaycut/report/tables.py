@@ -255,6 +255,7 @@ TERMINAL_COLUMNS = [("name", "Cut", 0), ("start_c", "Start °C", 0), ("end_c", "
 TERMINAL_QUALITIES = [("freeze_point_c", "Freeze °C", 0), ("smoke_point_mm", "Smoke mm", 1),
                       ("cloud_point_c", "Cloud °C", 0), ("pour_point_c", "Pour °C", 0),
                       ("viscosity_40c_cst", "ν40 cSt", 2), ("viscosity_100c_cst", "ν100 cSt", 1),
+                      ("viscosity_135c_cst", "ν135 cSt", 1),
                       ("nitrogen_wt_ppm", "N ppm", 0), ("ccr_wt_pct", "CCR wt %", 1),
                       ("nickel_wt_ppm", "Ni ppm", 1), ("vanadium_wt_ppm", "V ppm", 1)]
 """The qualities the terminal shows, when present (all of them are in the report files and JSON)."""

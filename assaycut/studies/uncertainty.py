@@ -4,7 +4,9 @@ Monte Carlo over the curve model: each draw perturbs the measured TBP temperatur
 densities (whole crude and narrow cuts) and the sulfur contents by independent normal errors, rebuilds the
 crude model (the draws of a chunk together, as rows of the one model builder,
 :func:`~assaycut.model.crude.build_draws`), and all draws are cut together by the library engine (arrays over
-draws).  Reported: P10, P50 and P90 per cut.
+draws).  Reported: P10, P50 and P90 per cut.  The extension is refitted in each draw, so the bands carry its
+response to the measurement noise, but not the spread between alternative extension fits
+(:func:`~assaycut.model.tbp_curve.extension_band`): :data:`EXTENSION_NOTE` says so with every band.
 
 The default standard deviations are ASSUMPTIONS of ours, not values from the standards: the repeatability
 figures of ASTM D2892 (TBP), D4052 (density) and D4294 / D2622 (sulfur) must be confirmed against the current
@@ -43,7 +45,13 @@ class Sigmas:
     def describe(self) -> str:
         return (f"1-sigma assumptions (to confirm against the standards' repeatability and your laboratory): "
                 f"temperature {self.temp_c:g} °C, percent {self.pct:g} %, SG {self.sg:g}, "
-                f"sulfur {self.sulfur_rel * 100:g} % relative")
+                f"sulfur {self.sulfur_rel * 100:g} % relative. " + EXTENSION_NOTE)
+
+
+EXTENSION_NOTE = ("The bands do not include the spread of the curve's extension: each draw refits it on its "
+                  "perturbed points, but the spread between alternative fits (the TBP plot's band) is not "
+                  "drawn, so cuts flagged extrapolated are less certain than their bands show.")
+"""What the bands leave out, said wherever they are shown."""
 
 
 BAND_QUALITIES = ["vol_pct", "wt_pct", "sg", "api", "sulfur_wt_pct", "watson_k", "cetane_index_d4737",

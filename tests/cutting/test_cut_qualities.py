@@ -142,3 +142,28 @@ def test_pna_of_every_cut_adds_up_to_what_the_narrow_cuts_add_up_to():
             got = np.array([r.get(k, np.nan) for r in own])
             np.testing.assert_allclose(got, meas[k], rtol=0, atol=1e-9, equal_nan=True)
     assert min(lab) == pytest.approx(99.609, abs=1e-6) and max(lab) == pytest.approx(100.001, abs=1e-6)
+
+
+def test_residue_viscosities_at_100_and_135_c():
+    # ASTM D341 (Walther): log10 log10(ν + 0.7) is linear in log10 T[K].  The residue (open last cut from 566 °C)
+    # reports ν at 100 and 135 °C; its 135 °C value is the D341 line through its 100 °C value and the nearest
+    # other temperature's, and no estimated value below 100 °C is reported for it (common practice, no source:
+    # residues are quoted at 100/135 °C).  Lighter cuts get no 135 °C value.
+    from assaycut.io import load_assay
+    from assaycut.cutting.cut_qualities import residue_viscosities
+
+    a = load_assay("assaycut/data/tarn_heavy.xlsx")
+    rows = run_yields(a, default_cut_set()).cuts.rows()
+    res = rows[-1]
+    assert np.isnan(res["viscosity_40c_cst"]) and "viscosity_135c_cst" in res["estimated"]
+    assert all(np.isnan(r.get("viscosity_135c_cst", np.nan)) for r in rows[:-1])
+    # the line through (100 °C, ν100) and (40 °C, ν40 before it was dropped), by hand
+    nu40 = 119558.0
+    vals = {"viscosity_40c_cst": np.array([nu40]), "viscosity_100c_cst": np.array([res["viscosity_100c_cst"]])}
+    est = {"viscosity_40c_cst": np.array([True])}
+    residue_viscosities(vals, est, np.array([True]))
+    w = lambda nu: np.log10(np.log10(nu + 0.7))  # noqa: E731
+    t = np.log10(np.array([313.15, 373.15, 408.15]))
+    line = w(res["viscosity_100c_cst"]) + (w(nu40) - w(res["viscosity_100c_cst"])) / (t[0] - t[1]) * (t[2] - t[1])
+    assert vals["viscosity_135c_cst"][0] == pytest.approx(10 ** 10 ** line - 0.7, rel=1e-9)
+    assert np.isnan(vals["viscosity_40c_cst"][0])

@@ -101,3 +101,21 @@ def test_every_draw_keeps_the_light_ends_on_the_curve(k):
     assert not any("do not fit before the first measured point" in w for m in models for w in m.warnings)
 
 
+
+
+def test_bands_say_they_leave_out_the_extension_spread():
+    # What the note states is true: with every sigma zero, the residue's band of the Tarn Heavy demo (half of it
+    # on the fitted extension) has no width, while refits of the extension on its last points move the TBP
+    # inside the residue (at 80 vol %) by more than 5 °C; the bands' text says they do not include that spread.
+    from assaycut.model.tbp_curve import extension_band
+
+    tarn = load_assay(demo_assay_paths()[2])
+    assert tarn.name == "Tarn Heavy"
+    cs = default_cut_set()
+    bands = monte_carlo(tarn, cs, Sigmas(0.0, 0.0, 0.0, 0.0), n=20)
+    assert float(bands["vol_pct_p90"][-1] - bands["vol_pct_p10"][-1]) == pytest.approx(0.0, abs=1e-6)
+    m = build_model(tarn)
+    assert float(m.curve.pct_at(cs.reported()[1][-1])) < 80.0
+    lo, hi, _ = extension_band(m.curve, [80.0])
+    assert float(hi[0] - lo[0]) > 5.0
+    assert "do not include the spread of the curve's extension" in bands.attrs["sigmas"]
