@@ -67,6 +67,7 @@ def check_assay(assay: Assay, model: CrudeModel) -> list[Finding]:
     crude_where = f"{src}, sheet 'crude'"
     curve_where = assay.curves[0].where or src
     return (_gravity_findings(assay, crude_where) + _curve_findings(model, curve_where, src)
+            + _residue_findings(assay, model, curve_where)
             + _closure_findings(model) + _reconciliation_findings(assay, model, src, crude_where)
             + _narrow_cut_findings(assay, model, src))
 
@@ -132,6 +133,62 @@ def _where_and_message(warning: str, default_where: str) -> tuple[str, str]:
     if sep and ", sheet " in head:
         return head, rest
     return default_where, warning
+
+
+RESIDUE_SG_MAX = 1.10
+"""The heaviest residue a crude's gravity balance may ask for: vacuum residues and asphalts lie below about
+1.10 SG (common practice, no source). [-]"""
+WATSON_K_RANGE = (10.5, 13.0)
+"""Watson K of whole crudes (common practice, no source): a constant Watson K fitted outside it says the curve
+and the gravity do not belong together. [-]"""
+
+
+def _residue_findings(assay: Assay, model: CrudeModel, curve_where: str) -> list[Finding]:
+    """The residue's yield against what the whole-crude gravity allows.
+
+    The heavy part of the crude that no narrow-cut density covers (above the last narrow cut with one) takes
+    the gravity the rest leaves, closed by difference.  Denser than :data:`RESIDUE_SG_MAX`, that part is too
+    small for the gravity (the curve ends too high: its last points may level off from cracking, or the
+    gravity or the cut densities are off); lighter than the measured cut below it, too large.  Without
+    narrow-cut densities, a Watson K fitted to the gravity outside :data:`WATSON_K_RANGE` says the same.
+    """
+    out: list[Finding] = []
+    if model.watson_k_fit is not None:
+        lo, hi = WATSON_K_RANGE
+        kw = model.watson_k_fit
+        if not lo <= kw <= hi:
+            out.append(Finding("warning", curve_where,
+                               f"the curve and the crude gravity need a Watson K of {kw:.2f}, outside crude oils' "
+                               f"{lo:g}-{hi:g}: the residue looks too {'small' if kw < lo else 'large'} for the "
+                               f"gravity (or the curve's basis, its last points or the gravity are off)"))
+        return out
+    nc = assay.narrow_cuts
+    if nc is None or not np.isfinite(nc.sg).any():
+        return out
+    va, vb = (np.asarray(x, float) for x in narrow_cut_positions(assay, model.curve))
+    has = np.isfinite(nc.sg)
+    top = float(vb[has].max())
+    if top >= 100.0 - 1e-6:
+        return out
+    heavy = float(model.mean_sg(top, 100.0))
+    last = int(np.flatnonzero(has)[np.argmax(vb[has])])
+    below = float(nc.sg[last])
+    t_top = float(model.curve.temp_at(top))
+    share = (f"the {pct_text(100.0 - top)} vol % above the narrow cuts (from {t_top:.0f} °C TBP, no density "
+             f"measured)")
+    if heavy > RESIDUE_SG_MAX:
+        out.append(Finding("warning", curve_where,
+                           f"{share} would need SG {heavy:.3f} to meet the crude gravity, above any residue "
+                           f"({RESIDUE_SG_MAX:g}): the residue yield looks too small for the gravity (the curve's "
+                           f"last points may level off from cracking, or the gravity or cut densities are off)"))
+    elif heavy < below - 0.005:
+        out.append(Finding("warning", curve_where,
+                           f"{share} gets SG {heavy:.3f} from the crude gravity, lighter than the narrow cut "
+                           f"below it ({below:.3f}): the residue yield looks too large for the gravity"))
+    else:
+        out.append(Finding("info", curve_where, f"{share} gets SG {heavy:.3f} from the crude gravity, between the "
+                                                f"narrow cut below it ({below:.3f}) and {RESIDUE_SG_MAX:g}"))
+    return out
 
 
 def _closure_findings(model: CrudeModel) -> list[Finding]:
