@@ -95,11 +95,12 @@ def quality_columns(model, va, vb, wa, wb, meabp, sg, kw, gas,
     else:  # row r is crude r, each with its own qualities
         parts = {}
         for r, quals in enumerate(rows):
-            for name, (c, icov, iwhole, rule) in _measured(_wanted(quals, only), va[r], vb[r], wa[r], wb[r],
-                                                          some[r]).items():
+            for name, (c, icov, iwhole, rule, closed) in _measured(_wanted(quals, only), va[r], vb[r], wa[r], wb[r],
+                                                                  some[r]).items():
                 if name not in parts:
-                    parts[name] = (np.zeros(va.shape), np.full(va.shape, np.nan), np.full(va.shape, np.nan), rule)
-                parts[name][0][r], parts[name][1][r], parts[name][2][r] = c, icov, iwhole
+                    parts[name] = (np.zeros(va.shape), np.full(va.shape, np.nan), np.full(va.shape, np.nan), rule,
+                                   np.zeros(va.shape, bool))
+                parts[name][0][r], parts[name][1][r], parts[name][2][r], parts[name][4][r] = c, icov, iwhole, closed
     values: dict[str, np.ndarray] = {}
     estimated["sulfur_wt_pct"] = some & model.sulfur_rows_estimated.reshape((-1,) + (1,) * (va.ndim - 1))
     for name in GRAVITY_COLUMNS:  # a density distribution at a fitted Watson K
@@ -191,7 +192,7 @@ def product_quality_columns(model, slice_bounds, f, dv, mass, meabp, sg, kw, gas
             total = weight.sum(axis=0)
             covered = (weight * share[:, None]).sum(axis=0)
             parts[name] = (covered / total, (weight * (share * np.nan_to_num(icov))[:, None]).sum(axis=0) / covered,
-                           (weight * np.nan_to_num(idx)[:, None]).sum(axis=0) / total, q.rule)
+                           (weight * np.nan_to_num(idx)[:, None]).sum(axis=0) / total, q.rule, q.gaps_closed)
     values: dict[str, np.ndarray] = {}
     estimated: dict[str, np.ndarray] = {}
     some = f.sum(axis=0) > 0
@@ -214,11 +215,12 @@ def add_estimates(values: dict, estimated: dict, meabp, sg, kw, ok, parts=None) 
     for the rest (:func:`blend_parts`), then the estimated qualities (:data:`ESTIMATED`) where nothing was
     measured, inside each correlation's range and where ``ok``; viscosities measured at two temperatures also
     give the 40 and 100 °C values by ASTM D341.  ``parts``: {quality: (covered share, covered mean index, whole
-    mean index, rule)} (:func:`_measured`)."""
+    mean index, rule, closed)} (:func:`_measured`; a closed distribution is used only where ``ok``)."""
     shape = np.shape(meabp)
     ok = ok & np.isfinite(meabp) & np.isfinite(sg)
     est = _estimates(meabp, sg, kw, ok)
-    for name, part in (parts or {}).items():
+    for name, part in (parts or {}).items():  # no closed values on gases either
+        part = (*part[:4], np.asarray(part[4], dtype=bool) & ok)
         values[name], estimated[name] = blend_parts(*part, *est.get(name, (np.full(shape, np.nan), False)))
     _d341_from_measured(values, estimated)
     for name, (v, valid) in est.items():
@@ -228,19 +230,22 @@ def add_estimates(values: dict, estimated: dict, meabp, sg, kw, ok, parts=None) 
         estimated[name] = fill | estimated.get(name, np.zeros(shape, bool))
 
 
-def blend_parts(share, covered_index, whole_index, rule, estimate, valid):
+def blend_parts(share, covered_index, whole_index, rule, closed, estimate, valid):
     """A quality of cuts partly covered by the narrow cuts that measured it: the covered part's mean index and
     an estimate for the rest, blended on the quality's index by their shares, I = c I_covered + (1 - c)
     I(estimate); without an estimate for the cut, the rest takes the index of the nearest narrow cut (the
-    distribution held flat beyond the measured cuts).  Continuous in the cut's ends: a cut wholly covered is
-    its measured value, and the share moves with the ends.  Returns the values and whether any part is
-    estimated (c < 1); NaN where nothing of the cut is covered."""
+    distribution held flat beyond the measured cuts).  Where the quality's whole-crude balance was closed by
+    difference on the uncovered part (``closed``), the rest takes that closed distribution instead, and a cut
+    no narrow cut covers takes it too.  Continuous in the cut's ends: a cut wholly covered is its measured
+    value, and the share moves with the ends.  Returns the values and whether any part is estimated (c < 1);
+    NaN where nothing of the cut is covered and nothing was closed."""
     share = np.asarray(share, dtype=float)
+    closed = np.asarray(closed, dtype=bool)
     with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
         ie = rule.to_index(np.asarray(estimate, dtype=float))
-        use = np.asarray(valid, dtype=bool) & np.isfinite(ie)
+        use = np.asarray(valid, dtype=bool) & np.isfinite(ie) & ~closed
         partly = np.where(use, share * np.nan_to_num(covered_index) + (1.0 - share) * ie, whole_index)
-        idx = np.where(share >= 1.0, covered_index, np.where(share > 0, partly, np.nan))
+        idx = np.where(share >= 1.0, covered_index, np.where((share > 0) | closed, partly, np.nan))
         v = rule.from_index(idx)
     return v, (share < 1.0) & np.isfinite(v)
 
@@ -274,12 +279,13 @@ def _wanted(qualities: dict, only) -> dict:
 
 def _measured(qualities: dict, va, vb, wa, wb, some) -> dict[str, tuple]:
     """The narrow-cut qualities of one crude over its cuts: {quality: (covered share, the covered part's mean
-    index, the whole cut's mean index, rule)} (share 0 for an empty cut)."""
+    index, the whole cut's mean index, rule, whether its balance was closed on the uncovered part)} (share 0 for
+    an empty cut)."""
     out = {}
     for name, q in qualities.items():
         a, b = (wa, wb) if q.rule.basis == "wt" else (va, vb)
         share, icov = q.covered_index(a, b)
-        out[name] = (np.where(some, share, 0.0), icov, q.mean_index(a, b), q.rule)
+        out[name] = (np.where(some, share, 0.0), icov, q.mean_index(a, b), q.rule, np.full(share.shape, q.gaps_closed))
     return out
 
 

@@ -115,7 +115,7 @@ def build_models(assays, method: str = "daubert-1994", qualities: bool = True, r
         for i, m in enumerate(out):
             if isinstance(m, CrudeModel):
                 try:
-                    m.qualities = quality_distributions(assays[i], m, m.warnings, m.methods)
+                    m.qualities = quality_distributions(assays[i], m, m.warnings, m.methods, reconcile)
                 except AssaycutError as e:
                     out[i] = e
     return out

@@ -22,6 +22,7 @@ from ..methods.blending_indices import BlendRule, rule_for
 from ..methods.pchip import Pchip
 from .assay import Assay
 from .distributions import narrow_cut_positions, sulfur_shape, weight_distilled
+from .closure import GAP_MIN_PCT
 from .property_splines import property_spline_rows
 from .rows import Rows
 from .tbp_curve import volume_average_temp
@@ -47,6 +48,12 @@ class Quality:
         (k, 2) intervals on that basis covered by narrow cuts that measured the quality. [%]
     reconciliation_pct : float or None
         Scale applied to reproduce the whole-crude value, (factor - 1) x 100; None when not reconciled. [%]
+    closure : float or None
+        The crude as its distribution adds up minus the crude sheet's value, after closing by difference
+        (None without a whole-crude value, or when reconciled). [the quality's unit]
+    gaps_closed : bool
+        True when the part no narrow cut covers was closed on the whole-crude value: cuts there take the
+        distribution rather than a correlation.
     """
 
     name: str
@@ -54,6 +61,8 @@ class Quality:
     cum: Pchip
     covered: np.ndarray
     reconciliation_pct: float | None = None
+    closure: float | None = None
+    gaps_closed: bool = False
 
     def mean_index(self, a, b):
         """Mean blending index over [a, b] (basis %); NaN for an empty interval."""
@@ -93,7 +102,8 @@ class Quality:
         return np.where(share > 1.0 - FULL_SHARE_TOL, 1.0, share)
 
 
-def quality_distributions(assay: Assay, model, warnings: list[str], methods: dict[str, str]) -> dict[str, Quality]:
+def quality_distributions(assay: Assay, model, warnings: list[str], methods: dict[str, str],
+                          reconcile: bool = False) -> dict[str, Quality]:
     """The distribution of every extra narrow-cut column (see the module docstring).
 
     Parameters
@@ -103,6 +113,9 @@ def quality_distributions(assay: Assay, model, warnings: list[str], methods: dic
         Its curve and density distribution place the narrow cuts on the volume and weight bases.
     warnings, methods : list, dict
         Appended to: columns without a blending rule of their own are named in one warning.
+    reconcile : bool
+        Scale each quality's narrow cuts proportionally to reproduce a whole-crude value of the same name
+        (instead of closing the balance by difference on the part they do not cover; :func:`_close`).
 
     Returns
     -------
@@ -125,7 +138,7 @@ def quality_distributions(assay: Assay, model, warnings: list[str], methods: dic
         if not rule.known:
             unknown.append(name)
         q = Quality(name, rule, cumulative_index(lo[ok], hi[ok], idx[ok]), np.column_stack([lo[ok], hi[ok]]))
-        note = _reconcile(q, assay, warnings)
+        note = _reconcile(q, assay, warnings) if reconcile else _close(q, assay, warnings)
         out[name] = q
         methods[f"quality {name}"] = (f"{rule.label}; distribution of the index against "
                                       f"{'weight' if rule.basis == 'wt' else 'volume'} % distilled matching each "
@@ -176,6 +189,67 @@ def cumulative_index(lo, hi, idx) -> Pchip:
     e = np.array(edges)
     cum = np.concatenate([[0.0], np.cumsum(np.diff(e) * np.array(values))])
     return Pchip(e, cum)
+
+
+QUALITY_GAP_SD = 0.6
+"""Relative standard deviation of a gap's first estimate (the nearest narrow cut's index) in the closure of a
+quality's whole-crude balance (as sulfur's, :data:`~assaycut.model.closure.SULFUR_CLOSURE`). [-]"""
+QUALITY_BALANCE_SD = 0.01
+"""Relative standard deviation of a quality's whole-crude balance (the whole-crude figure and the laboratory's
+own closure; our choice, as sulfur's). [-]"""
+
+
+def _close(q: Quality, assay: Assay, warnings: list[str]) -> str:
+    """Close the quality's whole-crude balance by difference on the part of the crude the narrow cuts do not
+    cover (in place), the narrow cuts kept as measured; returns the methods note.
+
+    Each gap (before the first cut, between two, after the last) starts at the nearest cut's index
+    (:func:`cumulative_index`); Δ = 100 x the crude sheet's index - the integral of that first estimate over
+    the crude is shared between the gaps and the balance by least squares with relative standard deviations
+    :data:`QUALITY_GAP_SD` (each gap's estimate) and :data:`QUALITY_BALANCE_SD` (the balance): gap g moves
+    by Δ var_g / (Σ var + var_balance), var_g = (sd |I_g| w_g)², the method of the density and sulfur
+    closures (:class:`~assaycut.model.closure.Closure`).  What the gaps cannot take is the closure, reported;
+    a gap index the rule cannot turn back into a value (a negative concentration) leaves the first estimate.
+    """
+    crude = assay.extras.get(q.name)
+    if not isinstance(crude, (int, float)) or not np.isfinite(crude):
+        return ""
+    target = float(q.rule.to_index(crude))
+    if not np.isfinite(target):
+        return f"the crude sheet's {crude:g} has no blending index: not used"
+    e, cum = q.cum.x, q.cum.y
+    width = np.diff(e)
+    idx = np.diff(cum) / width
+    mid = 0.5 * (e[1:] + e[:-1])
+    covered = ((mid[:, None] > q.covered[:, 0]) & (mid[:, None] < q.covered[:, 1])).any(axis=1)
+    gap = ~covered & (width > GAP_MIN_PCT)
+    delta = 100.0 * target - float(cum[-1])
+    var = np.where(gap, (QUALITY_GAP_SD * np.abs(idx) * width) ** 2, 0.0)
+    var_bal = (100.0 * QUALITY_BALANCE_SD * abs(target)) ** 2
+    new = idx + np.where(gap, delta * var / (var.sum() + var_bal) / width, 0.0)
+    positive = bool(np.all(idx[covered] > 0)) if covered.any() else True
+    with np.errstate(invalid="ignore", over="ignore"):
+        ok = np.all(np.isfinite(q.rule.from_index(new[gap]))) and (not positive or np.all(new[gap] > 0))
+    if gap.any() and ok:
+        q.cum = Pchip(e, np.concatenate([[0.0], np.cumsum(new * width)]))
+        q.gaps_closed = True
+    left = float(q.rule.from_index(q.cum.y[-1] / 100.0)) - float(crude)
+    q.closure = left
+    text = ""
+    if gap.any():
+        text = (f"the {float(width[gap].sum()):.2f} % of the crude no narrow cut covers closed on the crude sheet's "
+                f"{crude:g} by least squares" if ok else
+                f"the uncovered part keeps the nearest cut's value: closing on the crude sheet's {crude:g} would "
+                f"need a value the blending rule cannot give")
+    if abs(left) > 1e-9 * max(abs(float(crude)), 1.0):
+        text += ("; " if text else "") + (f"the cuts, kept as measured, and the crude sheet's {crude:g} disagree by "
+                                          f"{left:+.4g}")
+        rel = abs(q.cum.y[-1] / 100.0 - target) / abs(target) * 100.0 if target else np.inf
+        if ok and rel > RECONCILE_WARN_PCT:  # a real disagreement, not a rule that could not close the gaps
+            warnings.append(f"{q.name}: the narrow cuts, kept as measured, add up to {crude + left:.4g} against the "
+                            f"crude sheet's {crude:g} (blending indices {rel:.0f} % apart); check the cuts or the "
+                            f"whole-crude figure")
+    return text
 
 
 def _reconcile(q: Quality, assay: Assay, warnings: list[str]) -> str:

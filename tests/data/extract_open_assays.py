@@ -4,7 +4,7 @@
 
 Source: NOAA ADIOS oil database, records EX00004-EX00058 (works of the United States Government, CC0), each
 compiled from a producer's published crude assay.  Kept per record: the whole crude's density (g/cm3 at
-15.6 °C), sulfur and TBP curve (cumulative vol % against °C, with the end point); per cut its boiling range
+15.6 °C), sulfur, nitrogen and TBP curve (cumulative vol % against °C, with the end point); per cut its boiling range
 (°F, as published), volume percent of crude, density, sulfur and the other measured qualities, in the
 record's own units.  Nothing is computed here: values are copied as published (one cut boundary given in °C,
 537.78 °C, is written as the 1000 °F it stands for).
@@ -30,6 +30,7 @@ def record(d: dict) -> dict:
     out = {"id": d["oil_id"], "name": d["metadata"]["name"],
            "density_g_cm3_15_6c": whole["physical_properties"]["densities"][0]["density"]["value"],
            "sulfur_wt_pct": _m(whole.get("bulk_composition"), "Sulfur Mass Fraction"),
+           "nitrogen_wt_ppm": _m(whole.get("bulk_composition"), "Nitrogen Mass Fraction"),
            "tbp": [[c["fraction"]["value"], c["vapor_temp"]["value"]] for c in dist["cuts"]],
            "end_point_c": dist.get("end_point", {}).get("value"), "cuts": []}
     for c in d["sub_samples"][1:]:

@@ -97,3 +97,25 @@ def test_cuts_inside_the_measured_curve_are_not_flagged_extrapolated(recs):
                     flagged.append(rec["id"])
                     assert r["cum_vol_pct"] - r["vol_pct"] < lo - 1e-9, (rec["name"], r["name"])
     assert len(flagged) <= 2, flagged
+
+
+def test_a_held_back_residue_nitrogen_closes_on_the_whole_crude(recs):
+    # Source: the development set's whole-crude and per-cut nitrogen (NOAA ADIOS, CC0).  With the residue's
+    # nitrogen held back and the whole crude's given, the residue takes what the whole crude leaves, by weight:
+    # mean error 1.6 % on the 22 records with residue nitrogen above 50 ppm; bound 3 % mean, 10 % each (the
+    # least-squares share left to the balance, 1 % of it, and the residue's weight on the curve).
+    import dataclasses
+
+    errs = []
+    for rec in recs:
+        n = np.array([np.nan if c["nitrogen_wt_ppm"] is None else c["nitrogen_wt_ppm"] for c in rec["cuts"]])
+        if not (n[-1] > 0 and (rec["nitrogen_wt_ppm"] or 0) >= 50):
+            continue
+        a = oa.assay_of(rec)
+        a.narrow_cuts.extras["nitrogen_wt_ppm"] = np.append(n[:-1], np.nan)
+        a = dataclasses.replace(a, extras={"nitrogen_wt_ppm": rec["nitrogen_wt_ppm"]})
+        row = oa.run_yields(a, oa.own_cut_set(rec)).cuts.rows()[-1]
+        assert "nitrogen_wt_ppm" in row["estimated"]
+        errs.append((row["nitrogen_wt_ppm"] - n[-1]) / n[-1])
+    assert len(errs) == 22
+    assert float(np.mean(np.abs(errs))) <= 0.03 and float(np.max(np.abs(errs))) <= 0.10
