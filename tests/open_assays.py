@@ -133,6 +133,50 @@ def per_cut(case: str) -> list[dict]:
     return out
 
 
+QUALITIES = {  # record field -> (tool column, conversion to the tool's unit, relative error?)
+    "cetane_index_d4737": ("cetane_index_d4737", float, False),
+    "viscosity_40": ("viscosity_40c_cst", float, True),
+    "pour_point_c": ("pour_point_c", float, False),
+    "cloud_point_f": ("cloud_point_c", f_to_c, False),
+    "freeze_point_f": ("freeze_point_c", f_to_c, False),
+    "smoke_point_mm": ("smoke_point_mm", float, False),
+    "aniline_point_f": ("aniline_point_c", f_to_c, False),
+}
+"""The records' other measured qualities compared with the tool's estimates."""
+
+
+def quality_errors() -> dict[str, list[dict]]:
+    """Per quality, the tool's estimate against the record's measurement for every cut that has one: the
+    seven cuts given with their SG and sulfur only (the quality itself not given), at the record's own cut
+    points; model - measured, relative for viscosity [-], else in the quality's unit (°C, mm, index)."""
+    out: dict[str, list[dict]] = {k: [] for k in QUALITIES}
+    for rec in records():
+        rows = run_yields(assay_of(rec), own_cut_set(rec)).cuts.rows()
+        for k, (cut, row) in enumerate(zip(rec["cuts"], rows)):
+            for field, (col, conv, rel) in QUALITIES.items():
+                meas = cut["viscosity_cst"].get("40.0") if field == "viscosity_40" else cut[field]
+                got = row.get(col)
+                if meas is None or got is None or not np.isfinite(got):
+                    continue
+                m = conv(meas)
+                out[field].append({"cut": k, "err": (got - m) / m if rel else got - m,
+                                   "out_of_scope": col in row.get("out_of_scope", [])})
+    return out
+
+
+def quality_table() -> list[dict]:
+    """Per quality and cut position, the number compared, the mean absolute error and the mean error."""
+    names = [c["name"] for c in records()[0]["cuts"]]
+    table = []
+    for field, errs in quality_errors().items():
+        for k in sorted({e["cut"] for e in errs}):
+            e = np.array([x["err"] for x in errs if x["cut"] == k])
+            table.append({"quality": field, "cut": names[k], "n": int(e.size), "mae": float(np.mean(np.abs(e))),
+                          "bias": float(np.mean(e)), "relative": QUALITIES[field][2],
+                          "out_of_scope": sum(x["out_of_scope"] for x in errs if x["cut"] == k)})
+    return table
+
+
 def main() -> None:
     print(f"{'case':<9}{'cuts':>5}{'SG mean':>9}{'SG max':>8}{'vol mean':>9}{'vol max':>8}{'S mean %':>9}"
           f"{'S max %':>8}")
@@ -143,6 +187,12 @@ def main() -> None:
         print(f"\n{case}: per cut, mean absolute SG error and mean relative sulfur error")
         for r in per_cut(case):
             print(f"  {r['cut']:<34}{r['n']:>4}{r['sg']:>9.4f}{r['sulfur_pct']:>8.0f} %")
+    print("\nother qualities, estimated (cuts given with SG and sulfur only): mean abs. error, mean error "
+          "(viscosity relative)")
+    for r in quality_table():
+        f = (lambda x: f"{100 * x:+.0f} %") if r["relative"] else (lambda x: f"{x:+.1f}")
+        print(f"  {r['quality']:<20}{r['cut']:<34}{r['n']:>4}{f(r['mae'])[1:]:>9}{f(r['bias']):>9}"
+              + (f"  ({r['out_of_scope']} out of scope)" if r["out_of_scope"] else ""))
 
 
 if __name__ == "__main__":
