@@ -29,7 +29,8 @@ from ..units import pct_text
 from .assay import Assay, CurveData, validate_assay, value_faults
 from .crude_model import CrudeModel
 from .cut_yields import cut_yield_points
-from .distributions import closure_text, cut_positions, density_rows, sulfur_rows, weight_distilled
+from .distributions import (KW_EXTENSION_TOL_SG, closure_text, cut_positions, density_rows, kw_extension_sg_spread,
+                            sulfur_rows, weight_distilled)
 from .input_curves import curve_to_tbp
 from .lightends import convert_basis, find_component
 from .quality_distributions import estimated_sulfur_rows, quality_distributions
@@ -461,7 +462,8 @@ def _properties_on_extension(g: Rows) -> None:
     (row field ``on_ext``: the text, '' when they do not).
 
     They do when the curve is extended and either the density comes from one Watson K fitted to the whole-crude
-    gravity over the whole curve, or a narrow cut's boundary lies where the curve depends on the extension and
+    gravity over the whole curve and the extension's alternative fits move the cuts' SG by
+    :data:`~assaycut.model.distributions.KW_EXTENSION_TOL_SG` or more (:func:`kw_extension_sg_spread`), or a narrow cut's boundary lies where the curve depends on the extension and
     not on a measured point (its position on the curve, hence the distributions through their whole-crude
     reconciliation, then moves with the extension).
     """
@@ -479,8 +481,11 @@ def _properties_on_extension(g: Rows) -> None:
                             f"lie where the curve depends on its fitted extension, so the density and sulfur "
                             f"distributions move with it")
         elif np.isfinite(g.kw[0]):
-            texts = ["without narrow-cut densities, every cut's gravity comes from one Watson K fitted to the "
-                     "whole-crude gravity over the whole curve, its fitted extension included"] * g.n
+            spread = kw_extension_sg_spread(g)
+            for r in np.flatnonzero(spread >= KW_EXTENSION_TOL_SG):
+                texts[r] = (f"without narrow-cut densities, every cut's gravity comes from one Watson K fitted to the "
+                            f"whole-crude gravity over the whole curve, its fitted extension included (the "
+                            f"extension's alternative fits move the cuts' SG by up to {spread[r]:.4f})")
     g.put(on_ext=texts)
 
 

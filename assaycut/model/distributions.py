@@ -228,6 +228,46 @@ def _density_at_constant_kw(g: Rows, gas: bool) -> list[Rows]:
     return [g.put(raw=raw, dens_src=src, kw=kw)]
 
 
+KW_EXTENSION_TOL_SG = 0.001
+"""A Watson K fitted over a curve's extension moves the cuts' gravity by less than this between the extension's
+alternative fits: the cuts are not flagged for it (our choice: the third decimal of a reported SG). [-]"""
+
+
+def kw_extension_sg_spread(g: Rows) -> np.ndarray:
+    """How far the cuts' SG moves with the curve's extension when the density rests on one Watson K fitted to
+    the whole-crude gravity over the whole curve (:func:`_density_at_constant_kw`).
+
+    The fit solves Σ dv C(T)/(Kw + ΔKw_light) = 100 SG - light ends, C = (1.8 T[K])^(1/3); replacing the
+    extension's TBP by each alternative fit (:func:`~assaycut.model.tbp_curve.extension_refits`) changes the
+    sum over the extension by ΔΣ, so Kw by ΔKw/Kw ≈ ΔΣ/Σ (first order) and every cut's SG = C/Kw by the same
+    share.  Returned: the largest |ΔΣ/Σ| over the alternatives times the heaviest SG of the distribution.
+
+    Row fields read: ``kw``, ``spline``, ``mv``, ``mt``, ``mhi``, ``raw`` (the SG distribution).
+
+    Returns
+    -------
+    numpy.ndarray
+        (R,) SG change [-]; 0 for a curve that is not extended.
+    """
+    from .tbp_curve import extension_refits
+
+    mids = np.arange(KW_GRID_STEP_PCT / 2, 100.0, KW_GRID_STEP_PCT)
+    pct = np.broadcast_to(mids, (g.n, mids.size))
+    t = g.spline.inverse(pct)
+    k = g.kw[:, None] + light_kw_offset(t)
+    total = row_sum(watson_k_numerator(t) * KW_GRID_STEP_PCT / k)
+    ext = pct > g.mhi[:, None]
+    out = np.zeros(g.n)
+    for alt in extension_refits(list(g.mv), list(g.mt), pct):
+        if alt is None:
+            continue
+        with np.errstate(invalid="ignore"):
+            d = np.where(ext, watson_k_numerator(np.where(ext, alt, t)) - watson_k_numerator(t), 0.0)
+        out = np.fmax(out, np.abs(row_sum(np.nan_to_num(d) * KW_GRID_STEP_PCT / k)) / total)
+    heaviest = g.raw.y.max(axis=1) if g.raw.y.ndim == 2 else np.full(g.n, float(g.raw.y.max()))
+    return out * heaviest
+
+
 def weight_distilled(sg_dist: Pchip, sg, vol_pct, a0=None):
     """Cumulative wt % distilled at cumulative vol % ``vol_pct``: W(V) = ∫0^V SG dv / SG_crude, the mass distilled
     over the crude's (the model's definition of the weight basis). [wt %]

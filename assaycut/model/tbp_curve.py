@@ -18,7 +18,7 @@ import numpy as np
 
 from ..errors import CurveError
 from ..methods.pchip import Pchip, slopes_on
-from ..methods.riazi_distribution import RiaziFit, fit_riazi_distribution, fit_riazi_many, riazi_temp_c
+from ..methods.riazi_distribution import RiaziFit, fit_riazi_many, riazi_temp_c
 from ..units import pct_text
 from .rows import Rows, each
 
@@ -476,26 +476,47 @@ def extension_band(curve: TbpCurve, pct) -> tuple[np.ndarray, np.ndarray, list[n
         Lower and upper edge of the band [°C], and each refit's TBP [°C] at ``pct``.  Empty refits (and a band
         equal to the curve) when the curve is not extended.
     """
-    x = np.clip(np.asarray(pct, dtype=float) / 100.0, 0.0, END_FRACTION)
-    own = np.asarray(curve.temp_at(np.asarray(pct, dtype=float)), float)
+    pct = np.asarray(pct, dtype=float)
+    own = np.asarray(curve.temp_at(pct), float)
     v, t = curve.measured_pct, curve.measured_temp_c
     if curve.fit is None or v.size < 3 or v[-1] >= 100.0:
         return own, own, []
-    cap = max(END_CAP_C, float(t[-1]) + END_CAP_STEP_C)
-    refits = []
-    inside = (v > 0.0) & (v < 100.0)
-    for n in (None,) + BAND_LAST_POINTS:
-        vv, tt = v[inside], t[inside]
-        if n is not None:
-            if n >= vv.size:
-                continue
-            vv, tt = vv[-n:], tt[-n:]
-        try:
-            fit = fit_riazi_distribution(vv, tt)
-        except CurveError:
-            continue
-        with np.errstate(over="ignore", invalid="ignore"):
-            tx = fit.temp_c(x) + (t[-1] - fit.temp_c(v[-1] / 100.0))
-        refits.append(np.minimum(np.nan_to_num(tx, nan=cap, posinf=cap), cap))
+    refits = [r[0] for r in extension_refits([v], [t], pct[None, :]) if r is not None]
     allt = np.vstack(refits + [own])
     return allt.min(axis=0), allt.max(axis=0), refits
+
+
+def extension_refits(vs, ts, pct) -> list:
+    """The back extension of many curves refitted on all their measured points and on the last
+    :data:`BAND_LAST_POINTS` of them (the fits batched, :func:`~assaycut.methods.riazi_distribution.
+    fit_riazi_many`), each joined to its curve's last measured point and capped at the end point.
+
+    Parameters
+    ----------
+    vs, ts : sequence of numpy.ndarray
+        Each curve's measured points (percent [vol %], TBP [°C]), ending below 100 %.
+    pct : numpy.ndarray
+        (R, m) percents at which to evaluate each curve (above its measured end). [vol %]
+
+    Returns
+    -------
+    list of numpy.ndarray or None
+        One entry per refit choice: (R, m) TBP [°C] (NaN for a curve that choice cannot refit), or None when
+        no curve could be refitted that way.
+    """
+    x = np.clip(np.asarray(pct, dtype=float) / 100.0, 0.0, END_FRACTION)
+    inside = [(v[(v > 0.0) & (v < 100.0)], t[(v > 0.0) & (v < 100.0)]) for v, t in zip(vs, ts)]
+    out = []
+    for n in (None,) + BAND_LAST_POINTS:
+        rows = [k for k, (vv, _) in enumerate(inside) if n is None or n < vv.size]
+        fits = fit_riazi_many([inside[k] if n is None else (inside[k][0][-n:], inside[k][1][-n:]) for k in rows])
+        temps = np.full(x.shape, np.nan)
+        for k, fit in zip(rows, fits):
+            if isinstance(fit, RiaziFit):
+                v, t = vs[k], ts[k]
+                cap = max(END_CAP_C, float(t[-1]) + END_CAP_STEP_C)
+                with np.errstate(over="ignore", invalid="ignore"):
+                    tx = fit.temp_c(x[k]) + (t[-1] - fit.temp_c(v[-1] / 100.0))
+                temps[k] = np.minimum(np.nan_to_num(tx, nan=cap, posinf=cap), cap)
+        out.append(temps if np.isfinite(temps).any() else None)
+    return out
