@@ -20,6 +20,7 @@ from .closure import (DENSITY_CLOSURE, GAP_MIN_PCT, PRIOR_SLICES, SULFUR_CLOSURE
 from .lightends import GAS_RANGE_MAX_C, gas_range_sg
 from .property_splines import property_spline_rows
 from .rows import Rows, each, interp_rows, row_sum
+from .tbp_curve import BAND_LAST_POINTS, extension_refits
 
 
 def cut_positions(spline: Pchip, start_c, end_c):
@@ -239,7 +240,8 @@ def kw_extension_sg_spread(g: Rows) -> np.ndarray:
 
     The fit solves Σ dv C(T)/(Kw + ΔKw_light) = 100 SG - light ends, C = (1.8 T[K])^(1/3); replacing the
     extension's TBP by each alternative fit (:func:`~assaycut.model.tbp_curve.extension_refits`) changes the
-    sum over the extension by ΔΣ, so Kw by ΔKw/Kw ≈ ΔΣ/Σ (first order) and every cut's SG = C/Kw by the same
+    sum over the extension by ΔΣ (the refit on all the points is the model's own extension, not redone), so
+    Kw by ΔKw/Kw ≈ ΔΣ/Σ (first order) and every cut's SG = C/Kw by the same
     share.  Returned: the largest |ΔΣ/Σ| over the alternatives times the heaviest SG of the distribution.
 
     Row fields read: ``kw``, ``spline``, ``mv``, ``mt``, ``mhi``, ``raw`` (the SG distribution).
@@ -249,8 +251,6 @@ def kw_extension_sg_spread(g: Rows) -> np.ndarray:
     numpy.ndarray
         (R,) SG change [-]; 0 for a curve that is not extended.
     """
-    from .tbp_curve import extension_refits
-
     mids = np.arange(KW_GRID_STEP_PCT / 2, 100.0, KW_GRID_STEP_PCT)
     pct = np.broadcast_to(mids, (g.n, mids.size))
     t = g.spline.inverse(pct)
@@ -258,7 +258,7 @@ def kw_extension_sg_spread(g: Rows) -> np.ndarray:
     total = row_sum(watson_k_numerator(t) * KW_GRID_STEP_PCT / k)
     ext = pct > g.mhi[:, None]
     out = np.zeros(g.n)
-    for alt in extension_refits(list(g.mv), list(g.mt), pct):
+    for alt in extension_refits(list(g.mv), list(g.mt), pct, BAND_LAST_POINTS):  # all points: the model's own
         if alt is None:
             continue
         with np.errstate(invalid="ignore"):

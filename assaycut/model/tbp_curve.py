@@ -486,7 +486,7 @@ def extension_band(curve: TbpCurve, pct) -> tuple[np.ndarray, np.ndarray, list[n
     return allt.min(axis=0), allt.max(axis=0), refits
 
 
-def extension_refits(vs, ts, pct) -> list:
+def extension_refits(vs, ts, pct, choices=(None,) + BAND_LAST_POINTS) -> list:
     """The back extension of many curves refitted on all their measured points and on the last
     :data:`BAND_LAST_POINTS` of them (the fits batched, :func:`~assaycut.methods.riazi_distribution.
     fit_riazi_many`), each joined to its curve's last measured point and capped at the end point.
@@ -497,6 +497,8 @@ def extension_refits(vs, ts, pct) -> list:
         Each curve's measured points (percent [vol %], TBP [°C]), ending below 100 %.
     pct : numpy.ndarray
         (R, m) percents at which to evaluate each curve (above its measured end). [vol %]
+    choices : tuple
+        The refits: None for all the points, n for the last n.
 
     Returns
     -------
@@ -507,7 +509,7 @@ def extension_refits(vs, ts, pct) -> list:
     x = np.clip(np.asarray(pct, dtype=float) / 100.0, 0.0, END_FRACTION)
     inside = [(v[(v > 0.0) & (v < 100.0)], t[(v > 0.0) & (v < 100.0)]) for v, t in zip(vs, ts)]
     out = []
-    for n in (None,) + BAND_LAST_POINTS:
+    for n in choices:
         rows = [k for k, (vv, _) in enumerate(inside) if n is None or n < vv.size]
         fits = fit_riazi_many([inside[k] if n is None else (inside[k][0][-n:], inside[k][1][-n:]) for k in rows])
         temps = np.full(x.shape, np.nan)
