@@ -197,8 +197,6 @@ def density15_to_sg(rho15):
     return as_scalar(out)
 
 
-
-
 BBL_M3 = 0.158987294928
 """One US oil barrel (42 US gallons, exact), the volume of a barrel at 60 °F. [m³]"""
 

@@ -285,7 +285,8 @@ def _measured(qualities: dict, va, vb, wa, wb, some) -> dict[str, tuple]:
     for name, q in qualities.items():
         a, b = (wa, wb) if q.rule.basis == "wt" else (va, vb)
         share, icov = q.covered_index(a, b)
-        out[name] = (np.where(some, share, 0.0), icov, q.mean_index(a, b), q.rule, np.full(share.shape, q.gaps_closed))
+        out[name] = (np.where(some, share, 0.0), icov, q.mean_index(a, b), q.rule,
+                     np.full(share.shape, q.gaps_closed))
     return out
 
 
@@ -306,10 +307,10 @@ def _d341_from_measured(values: dict[str, np.ndarray], estimated: dict[str, np.n
         estimated[name] = np.isfinite(v)
 
 
-def residue_viscosities(values: dict[str, np.ndarray], estimated: dict[str, np.ndarray], residue) -> None:
+def residue_viscosities(values: dict[str, np.ndarray], estimated: dict[str, np.ndarray], t_start, t_end) -> None:
     """Viscosities of residues at the trade's temperatures, 100 and 135 °C (in place).
 
-    For each residue cut (``residue``: the open last cut starting at or above :data:`RESIDUE_START_C`), ν at
+    For each residue cut (the open last cut, ``t_end`` NaN, starting at or above :data:`RESIDUE_START_C`), ν at
     135 °C by ASTM D341 (Walther) from its ν at 100 °C and its value at the nearest other temperature,
     flagged estimated unless a narrow cut measured it; its *estimated* viscosities below 100 °C are left
     empty (a residue is not handled, nor its viscosity measured, that cold: a correlation's value there
@@ -319,18 +320,19 @@ def residue_viscosities(values: dict[str, np.ndarray], estimated: dict[str, np.n
     ----------
     values, estimated : dict of str to numpy.ndarray
         The cut values and their estimated flags (updated).
-    residue : numpy.ndarray of bool
-        The residue cuts, shaped like the values.
+    t_start, t_end : numpy.ndarray
+        Each cut's TBP cut points, shaped like the values (NaN at the IBP and the end of the curve). [°C]
     """
-    residue = np.asarray(residue, dtype=bool)
+    residue = np.isnan(t_end) & (np.asarray(t_start, dtype=float) >= RESIDUE_START_C)
     v100 = values.get("viscosity_100c_cst")
     if v100 is None or not residue.any():
         return
     name = f"viscosity_{RESIDUE_VISCOSITY_C:g}c_cst"
-    temps = sorted((abs(float(VISCOSITY.match(n).group(1)) - RESIDUE_VISCOSITY_C), float(VISCOSITY.match(n).group(1)),
-                    n) for n in values if VISCOSITY.match(n) and n not in (name, "viscosity_100c_cst"))
+    temps = sorted(((float(VISCOSITY.match(n).group(1)), n) for n in values
+                    if VISCOSITY.match(n) and n not in (name, "viscosity_100c_cst")),
+                   key=lambda tn: abs(tn[0] - RESIDUE_VISCOSITY_C))
     other, t_other = np.full(residue.shape, np.nan), np.full(residue.shape, np.nan)
-    for _, t, n in temps:
+    for t, n in temps:
         take = np.isnan(other) & np.isfinite(values[n])
         other, t_other = np.where(take, values[n], other), np.where(take, t, t_other)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
@@ -339,7 +341,7 @@ def residue_viscosities(values: dict[str, np.ndarray], estimated: dict[str, np.n
     fill = ~np.isfinite(have) & np.isfinite(est)
     values[name] = np.where(fill, est, have)
     estimated[name] = fill | estimated.get(name, np.zeros(residue.shape, bool))
-    for _, t, n in temps:
+    for t, n in temps:
         if t < 100.0 and n in estimated:
             cold = residue & estimated[n]
             values[n] = np.where(cold, np.nan, values[n])

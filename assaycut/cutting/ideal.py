@@ -42,7 +42,7 @@ from .model_rows import BatchModel
 from ..units import BBL_M3, barrel_mass_t, sg_to_api, sg_to_density15
 from .cut_table import CutTable
 from .cutset import CutSet
-from .cut_qualities import RESIDUE_START_C, quality_columns, residue_viscosities
+from .cut_qualities import quality_columns, residue_viscosities
 
 LIGHT_ENDS_MAX_C = 40.0
 """Cuts ending at or below this TBP are light ends: no D86 is estimated for them (D86 does not apply to
@@ -170,7 +170,7 @@ def cut_columns(model: BatchModel, ends: np.ndarray, only=None) -> dict[str, np.
     gas = ~(np.isfinite(t_end) & ~(t_end <= LIGHT_ENDS_MAX_C)) & ~np.isnan(t_end)
     vals, est = quality_columns(model, va, vb, wa, wb, out["meabp_c"], out["sg"], out["watson_k"],
                                 gas | (vol <= 1e-9), only)
-    residue_viscosities(vals, est, np.isnan(t_end) & (t_start >= RESIDUE_START_C))
+    residue_viscosities(vals, est, t_start, t_end)
     out.update(vals)
     out["estimated"] = est
     out["extrapolated"] = (curve.is_extrapolated(va, vb) | _all_flag(model, vol)) & (vol > 1e-9)

@@ -40,7 +40,7 @@ from .ideal import (
     derive_qualities,
     first_row,
 )
-from .cut_qualities import RESIDUE_START_C, product_quality_columns, residue_viscosities
+from .cut_qualities import product_quality_columns, residue_viscosities
 from .model_rows import BatchModel
 
 Z95 = 1.6448536269514722
@@ -292,7 +292,7 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     gas = (np.isfinite(t_end) & (t_end <= LIGHT_ENDS_MAX_C)) | (vol <= 1e-9)
     vals, est = product_quality_columns(model, (va, vb, wa, wb), f, dv, mass, cols["meabp_c"], cols["sg"],
                                         cols["watson_k"], gas)
-    residue_viscosities(vals, est, np.isnan(t_end) & (t_start >= RESIDUE_START_C))
+    residue_viscosities(vals, est, t_start, t_end)
     cols.update(vals)
     cols["estimated"] = est
     reach = (f * dv[:, None] > 1e-9 * dv.sum())

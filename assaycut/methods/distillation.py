@@ -181,7 +181,8 @@ def below_start_warnings(points: Mapping[float, float], out: Mapping[float, floa
     if not low:
         return []
     pts = ", ".join(f"TBP {t:.1f} °C at {p:g} %" for p, t in sorted(low.items()))
-    return [f"{frm} -> {to}: {pts} {'lies' if len(low) == 1 else 'lie'} below the sample's own first D2887 point ({start:.1f} °C at {p0:g} %): "
+    verb = "lies" if len(low) == 1 else "lie"
+    return [f"{frm} -> {to}: {pts} {verb} below the sample's own first D2887 point ({start:.1f} °C at {p0:g} %): "
             f"the D2887 differences are beyond the data behind API TDB 3A3.1 (a wide-boiling sample), so the "
             f"front of the converted curve is not reliable; give the TBP or a light-ends analysis"]
 

@@ -119,17 +119,41 @@ def _close_gaps(s: Rows, a, b, rule: Closure, prior_fn) -> None:
     measured = row_sum(s.pv * (s.ph - s.pl)) + s.raw.integral(np.zeros((s.n, 1)), s.c0[:, None])[:, 0]
     delta = 100.0 * s.total - measured - row_sum(prior)
     end = (np.flatnonzero(gap) == 0) | (np.flatnonzero(gap) == gap.size - 1)
-    sd = np.where(end, rule.end_sd, rule.interior_sd)[None, :]
-    var = (sd * (np.abs(prior) if rule.relative else width)) ** 2
-    bal = ((100.0 * rule.balance_sd * (np.abs(s.total) if rule.relative else np.ones(s.n))) ** 2)[:, None]
-    with np.errstate(invalid="ignore", divide="ignore"):
-        move = np.where(np.isfinite(delta)[:, None], delta[:, None] * var / (row_sum(var)[:, None] + bal),
-                        0.0)
-    target = (prior + move) / width
+    target = (prior + gap_moves(delta, prior, width, end, s.total, rule)) / width
     if rule.relative:  # a content is never negative
         target = np.maximum(target, 0.0)
     s.put(pl=np.concatenate([s.pl, a], axis=1), ph=np.concatenate([s.ph, b], axis=1),
           pv=np.concatenate([s.pv, target], axis=1))
+
+
+def gap_moves(delta, prior, width, end, total, rule: Closure) -> np.ndarray:
+    """How much of a whole-crude balance each gap takes, by least squares (:class:`Closure`): gap g moves by
+    Δ var_g / (Σ var + var_balance), var_g = (sd_g · |prior_g|)² for a ``relative`` rule, else (sd_g · width_g)²,
+    var_balance = (100 · balance_sd · |total|)² (relative) or (100 · balance_sd)².
+
+    Parameters
+    ----------
+    delta : numpy.ndarray
+        (R,) 100 x the whole-crude value less the first estimate's integral over the crude (NaN: no value, no
+        move). [value x %]
+    prior, width : numpy.ndarray
+        (R, G) each gap's first estimate (an amount, value x %) and width [%].
+    end : numpy.ndarray
+        (G,) True for a gap at an end of the crude (:attr:`Closure.end_sd`), else between two cuts.
+    total : numpy.ndarray
+        (R,) the whole-crude value.
+    rule : Closure
+
+    Returns
+    -------
+    numpy.ndarray
+        (R, G) the amount each gap moves by. [value x %]
+    """
+    sd = np.where(end, rule.end_sd, rule.interior_sd)[None, :]
+    var = (sd * (np.abs(prior) if rule.relative else width)) ** 2
+    bal = ((100.0 * rule.balance_sd * (np.abs(total) if rule.relative else np.ones(np.shape(total)))) ** 2)[:, None]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(np.isfinite(delta)[:, None], delta[:, None] * var / (row_sum(var)[:, None] + bal), 0.0)
 
 
 PRIOR_SLICES = 8

@@ -463,9 +463,10 @@ def _properties_on_extension(g: Rows) -> None:
 
     They do when the curve is extended and either the density comes from one Watson K fitted to the whole-crude
     gravity over the whole curve and the extension's alternative fits move the cuts' SG by
-    :data:`~assaycut.model.distributions.KW_EXTENSION_TOL_SG` or more (:func:`kw_extension_sg_spread`), or a narrow cut's boundary lies where the curve depends on the extension and
-    not on a measured point (its position on the curve, hence the distributions through their whole-crude
-    reconciliation, then moves with the extension).
+    :data:`~assaycut.model.distributions.KW_EXTENSION_TOL_SG` or more (:func:`kw_extension_sg_spread`), or a
+    narrow cut's boundary lies where the curve depends on the extension and not on a measured point (its
+    position on the curve, hence the distributions through their whole-crude reconciliation, then moves with
+    the extension).
     """
     texts = [""] * g.n
     if g.fit[0] is not None:  # extended (every row of a set alike)

@@ -22,7 +22,7 @@ from ..methods.blending_indices import BlendRule, rule_for
 from ..methods.pchip import Pchip
 from .assay import Assay
 from .distributions import narrow_cut_positions, sulfur_shape, weight_distilled
-from .closure import GAP_MIN_PCT
+from .closure import GAP_MIN_PCT, Closure, gap_moves
 from .property_splines import property_spline_rows
 from .rows import Rows
 from .tbp_curve import volume_average_temp
@@ -191,12 +191,9 @@ def cumulative_index(lo, hi, idx) -> Pchip:
     return Pchip(e, cum)
 
 
-QUALITY_GAP_SD = 0.6
-"""Relative standard deviation of a gap's first estimate (the nearest narrow cut's index) in the closure of a
-quality's whole-crude balance (as sulfur's, :data:`~assaycut.model.closure.SULFUR_CLOSURE`). [-]"""
-QUALITY_BALANCE_SD = 0.01
-"""Relative standard deviation of a quality's whole-crude balance (the whole-crude figure and the laboratory's
-own closure; our choice, as sulfur's). [-]"""
+QUALITY_CLOSURE = Closure(0.6, 0.6, 0.01, True)
+"""How a quality's whole-crude balance is closed: as sulfur's (:data:`~assaycut.model.closure.SULFUR_CLOSURE`),
+a gap's first estimate (the nearest narrow cut's index) uncertain by 60 %, the balance by 1 % (our choice)."""
 
 
 def _close(q: Quality, assay: Assay, warnings: list[str]) -> str:
@@ -205,11 +202,10 @@ def _close(q: Quality, assay: Assay, warnings: list[str]) -> str:
 
     Each gap (before the first cut, between two, after the last) starts at the nearest cut's index
     (:func:`cumulative_index`); Δ = 100 x the crude sheet's index - the integral of that first estimate over
-    the crude is shared between the gaps and the balance by least squares with relative standard deviations
-    :data:`QUALITY_GAP_SD` (each gap's estimate) and :data:`QUALITY_BALANCE_SD` (the balance): gap g moves
-    by Δ var_g / (Σ var + var_balance), var_g = (sd |I_g| w_g)², the method of the density and sulfur
-    closures (:class:`~assaycut.model.closure.Closure`).  What the gaps cannot take is the closure, reported;
-    a gap index the rule cannot turn back into a value (a negative concentration) leaves the first estimate.
+    the crude is shared between the gaps and the balance by least squares (:data:`QUALITY_CLOSURE`,
+    :func:`~assaycut.model.closure.gap_moves`, as the density and sulfur closures).  What the gaps cannot
+    take is the closure, reported; a gap index the rule cannot turn back into a value (a negative
+    concentration) leaves the first estimate.
     """
     crude = assay.extras.get(q.name)
     if not isinstance(crude, (int, float)) or not np.isfinite(crude):
@@ -223,10 +219,10 @@ def _close(q: Quality, assay: Assay, warnings: list[str]) -> str:
     mid = 0.5 * (e[1:] + e[:-1])
     covered = ((mid[:, None] > q.covered[:, 0]) & (mid[:, None] < q.covered[:, 1])).any(axis=1)
     gap = ~covered & (width > GAP_MIN_PCT)
-    delta = 100.0 * target - float(cum[-1])
-    var = np.where(gap, (QUALITY_GAP_SD * np.abs(idx) * width) ** 2, 0.0)
-    var_bal = (100.0 * QUALITY_BALANCE_SD * abs(target)) ** 2
-    new = idx + np.where(gap, delta * var / (var.sum() + var_bal) / width, 0.0)
+    move = gap_moves(np.array([100.0 * target - float(cum[-1])]), (idx * width)[None, gap], width[None, gap],
+                     np.zeros(int(gap.sum()), bool), np.array([target]), QUALITY_CLOSURE)[0]
+    new = idx.copy()
+    new[gap] += move / width[gap]
     positive = bool(np.all(idx[covered] > 0)) if covered.any() else True
     with np.errstate(invalid="ignore", over="ignore"):
         ok = np.all(np.isfinite(q.rule.from_index(new[gap]))) and (not positive or np.all(new[gap] > 0))

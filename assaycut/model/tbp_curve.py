@@ -443,16 +443,13 @@ def _measured_end_slopes(T, V, n_measured: int, n_tail: int, need_front: bool, n
     last = T.shape[1] - n_tail - 1
     first = last - n_measured + 1
     own = slopes_on(T[:, first:last + 1])(V[:, first:last + 1])
-    n = T.shape[0]
-    free = [np.ones(n, bool), np.ones(n, bool)]
+    free = {}
     for k, j, nb, on in ((first, 0, first - 1, need_front), (last, -1, last + 1, need_tail)):
-        if not on:
-            continue
-        secant = (V[:, nb] - V[:, k]) / (T[:, nb] - T[:, k])
-        bound = 3.0 * secant
-        free[0 if j == 0 else 1] = own[:, j] <= bound
-        d[:, k] = np.minimum(own[:, j], bound)
-    return d, free[0], free[1]
+        bound = 3.0 * (V[:, nb] - V[:, k]) / (T[:, nb] - T[:, k]) if on else np.inf
+        free[j] = own[:, j] <= bound
+        if on:
+            d[:, k] = np.minimum(own[:, j], bound)
+    return d, free[0], free[-1]
 
 
 BAND_LAST_POINTS = (4, 5, 6)

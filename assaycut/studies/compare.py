@@ -5,7 +5,8 @@ Pure computation returning DataFrames.
 Worth (gross product worth, GPW): worth per barrel of crude = Σ_cuts (vol % / 100) x price per barrel of the
 cut; per tonne = Σ_cuts (wt % / 100) x price per tonne.  A price given per tonne converts to per barrel by
 the mass of the cut's barrel at 60 °F: price/bbl = price/t x SG x 999.016 kg/m³ x 0.158987 m³/bbl / 1000
-(:func:`~assaycut.units.barrel_mass_t`; the barrel is a volume at 60 °F, API MPMS Ch. 11.1).  Worth ignores operating costs, unit capacities and product-quality give-away.
+(:func:`~assaycut.units.barrel_mass_t`; the barrel is a volume at 60 °F, API MPMS Ch. 11.1).  Worth ignores
+operating costs, unit capacities and product-quality give-away.
 """
 
 from __future__ import annotations

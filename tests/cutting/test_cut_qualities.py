@@ -184,7 +184,7 @@ def test_residue_viscosities_at_100_and_135_c():
     nu40 = 119558.0
     vals = {"viscosity_40c_cst": np.array([nu40]), "viscosity_100c_cst": np.array([res["viscosity_100c_cst"]])}
     est = {"viscosity_40c_cst": np.array([True])}
-    residue_viscosities(vals, est, np.array([True]))
+    residue_viscosities(vals, est, np.array([566.0]), np.array([np.nan]))
     w = lambda nu: np.log10(np.log10(nu + 0.7))  # noqa: E731
     t = np.log10(np.array([313.15, 373.15, 408.15]))
     line = w(res["viscosity_100c_cst"]) + (w(nu40) - w(res["viscosity_100c_cst"])) / (t[0] - t[1]) * (t[2] - t[1])
