@@ -1,14 +1,17 @@
-"""File helpers shared by the readers and the report writers: files written whole or not at all (a
-temporary file in the same folder, then renamed), and text escaped against spreadsheet formula injection."""
+"""File helpers shared by the readers and the report writers: report sets written whole or not at all (staged
+in a folder beside the targets, then renamed into place with a roll-forward record), and text escaped against
+spreadsheet formula injection."""
 
 from __future__ import annotations
 
 import contextlib
 import functools
 import glob
+import json
 import os
 import re
 import secrets
+import shutil
 from pathlib import Path
 
 from .errors import InputError
@@ -40,62 +43,134 @@ def safe_text(value):
 
 
 _PENDING: set[str] = set()
-"""Temporary files being written now; removed by :func:`cleanup_pending` on interruption."""
+"""Staging folders of report sets being written now; settled by :func:`cleanup_pending` on interruption."""
+
+STAGE_PREFIX = ".assaycut-stage-"
+"""Start of a staging folder's name: ``.assaycut-stage-<pid>-<random>`` in the report folder, where ``pid`` is
+the process writing it."""
+_RECORD = "placing.json"
+"""The roll-forward record of a staging folder: written (atomically) once every file of the set is staged;
+it lists the files to move into place and the files of an earlier set to remove."""
 
 
-def cleanup_pending() -> None:
-    """Remove temporary files of writes that did not finish (called on Ctrl-C or SIGTERM)."""
-    for p in list(_PENDING):
-        with contextlib.suppress(OSError):
-            os.unlink(p)
-        _PENDING.discard(p)
-
-
-def atomic_write(path: str | os.PathLike, write, *, inputs: tuple[str, ...] = ()) -> Path:
-    """Call ``write(tmp_path)`` and rename the result onto ``path``.
-
-    Parameters
-    ----------
-    path : path-like
-        Final file.
-    write : callable
-        Writes the whole file to the temporary path it is given.
-    inputs : tuple of str
-        Input files of the run; writing onto one of them is refused.
+def cleanup_pending() -> list[str]:
+    """Settle the report sets of this process that were being written when it was stopped (Ctrl-C, SIGTERM):
+    a set whose files were all staged is completed, any other is removed and the folder keeps its earlier
+    report.
 
     Returns
     -------
-    pathlib.Path
-        The final path.
+    list of str
+        The folders where a report set was completed.
     """
-    target = Path(path)
-    clash = input_clash(target, inputs)
-    if clash is not None:
-        raise InputError(f"refusing to write the report over the input file {clash}", file=str(target))
-    prepare_folder(target.parent)
-    mode = _mode_for(target)
-    # the temporary name is registered before the file exists, so that an interruption at any point leaves
-    # nothing behind (cleanup_pending removes registered names that exist)
-    tmp = str(target.parent / f".{target.name}.{secrets.token_hex(6)}{TEMP_SUFFIX}")
-    _PENDING.add(tmp)
+    done = []
+    for stage in list(_PENDING):
+        if settle_stage(Path(stage)):
+            done.append(str(Path(stage).parent))
+        _PENDING.discard(stage)
+    return done
+
+
+def settle_stage(stage: Path) -> bool:
+    """Finish or undo one staging folder (idempotent): with its roll-forward record, move its remaining files
+    into place and remove the earlier set's extra files (True); without, remove it (False)."""
+    folder = stage.parent
+    completed = False
+    with contextlib.suppress(OSError, ValueError, KeyError, TypeError):
+        record = json.loads((stage / _RECORD).read_text("utf-8"))
+        for name in record["place"]:
+            with contextlib.suppress(FileNotFoundError):  # moved already (by the writer, or an earlier settle)
+                os.replace(stage / name, folder / name)
+        for name in record["drop"]:
+            with contextlib.suppress(FileNotFoundError):
+                os.unlink(folder / name)
+        completed = True
+    shutil.rmtree(stage, ignore_errors=True)
+    return completed
+
+
+def pid_alive(pid: int) -> bool:
+    """Whether a process ``pid`` exists (one of another user counts)."""
     try:
-        fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o600)
-    except OSError as exc:
-        _PENDING.discard(tmp)
-        raise InputError(f"cannot write into this folder ({exc.strerror})", file=str(target.parent)) from None
-    os.close(fd)
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except (PermissionError, OverflowError):
+        return True
+    return True
+
+
+def settle_stale_stages(folder: Path, dead: frozenset[int] = frozenset()) -> None:
+    """Settle the staging folders in ``folder`` left by writers that no longer run (a killed run, or the pids
+    in ``dead``: worker processes just killed); those of a live writer are left alone."""
+    with contextlib.suppress(OSError):
+        for stage in Path(folder).glob(f"{glob.escape(STAGE_PREFIX)}*"):
+            m = re.fullmatch(re.escape(STAGE_PREFIX) + r"(\d+)-[0-9a-f]+", stage.name)
+            if m and stage.is_dir() and (int(m.group(1)) in dead or not pid_alive(int(m.group(1)))):
+                settle_stage(stage)
+
+
+def place_set(folder: Path, files: dict[str, bytes], inputs: tuple[str, ...] = (),
+              family: tuple[str, ...] = ()) -> list[Path]:
+    """Write a report set into ``folder`` whole or not at all.
+
+    Every file is first written into a staging folder beside the targets (``.assaycut-stage-<pid>-<random>``);
+    a full disk or any other failure there removes it and leaves the folder's earlier report as it was.  Once
+    all files are staged, a roll-forward record is written and the files are renamed into place, and the files
+    of ``family`` that the new set does not have (an earlier run's optional plot) are removed.  A stop in that
+    last step is completed by :func:`cleanup_pending` (Ctrl-C, SIGTERM) or, after SIGKILL, by the next run
+    that writes into the folder (:func:`settle_stale_stages`), so a reader is never left with a mix of sets.
+
+    Parameters
+    ----------
+    folder : pathlib.Path
+        Report folder (created if missing).
+    files : dict of str to bytes
+        File name -> content of the whole set.
+    inputs : tuple of str
+        Input files of the run; writing onto one of them is refused.
+    family : tuple of str
+        Names that belong to this kind of report and go when the new set lacks them.
+
+    Returns
+    -------
+    list of pathlib.Path
+        The written files, in the order of ``files``.
+    """
+    folder = Path(folder)
+    check_targets(folder, list(files), inputs)
+    stage = folder / f"{STAGE_PREFIX}{os.getpid()}-{secrets.token_hex(6)}"
+    _PENDING.add(str(stage))  # registered before it exists: an interruption at any point leaves nothing behind
     try:
-        write(tmp)
-        os.chmod(tmp, mode)
-        os.replace(tmp, target)
+        os.mkdir(stage, 0o700)
+        for name, data in files.items():
+            _write_new(stage / name, data, _mode_for(folder / name))
+        record = json.dumps({"place": list(files), "drop": [n for n in family if n not in files]})
+        _write_new(stage / (_RECORD + TEMP_SUFFIX), record.encode("utf-8"), 0o600)
+        os.replace(stage / (_RECORD + TEMP_SUFFIX), stage / _RECORD)
     except OSError as exc:
-        raise InputError(f"cannot write the report file ({exc.strerror or exc})", file=str(target)) from None
+        _PENDING.discard(str(stage))
+        shutil.rmtree(stage, ignore_errors=True)
+        raise InputError(f"cannot write the report ({exc.strerror or exc}); the folder's earlier report is "
+                         f"unchanged", file=str(folder)) from None
+    # an interruption from here on leaves the stage registered: cleanup_pending completes it
+    placed = settle_stage(stage)
+    _PENDING.discard(str(stage))
+    if not placed:
+        raise InputError("the staged report could not be moved into place", file=str(folder))
+    return [folder / name for name in files]
+
+
+def _write_new(path: Path, data: bytes, mode: int) -> None:
+    """Write ``data`` into a new file ``path`` with permission bits ``mode`` (OSError on a full disk)."""
+    fd = os.open(path, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o600)
+    try:
+        view = memoryview(data)
+        while view:
+            view = view[os.write(fd, view):]
+        os.fchmod(fd, mode)
     finally:
-        _PENDING.discard(tmp)
-        with contextlib.suppress(OSError):
-            if os.path.exists(tmp):
-                os.unlink(tmp)
-    return target
+        os.close(fd)
 
 
 def input_clash(target: Path, inputs: tuple[str, ...]) -> str | None:
@@ -128,7 +203,8 @@ def _input_identities(inputs: tuple[str, ...]) -> tuple[dict, dict]:
 
 
 TEMP_SUFFIX = ".part"
-"""Suffix of the temporary file of a write in progress (``.<name>.<random>.part`` beside the target)."""
+"""Suffix of a temporary file (the roll-forward record being written; ``.<name>.<random>.part`` beside a
+target was an earlier version's temporary report file, still removed when found)."""
 
 
 def _mode_for(target: Path) -> int:
@@ -155,8 +231,10 @@ def prepare_folder(folder: Path) -> None:
 
 def check_targets(folder: Path, names, inputs: tuple[str, ...] = ()) -> None:
     """Before a set of report files is written: the folder can be written, and no target name is taken
-    by a folder or an input file; stale temporary files of these names from a killed run are removed."""
+    by a folder or an input file.  What a killed run left there is settled first: its staging folders
+    (:func:`settle_stale_stages`) and stale temporary files of these names."""
     prepare_folder(folder)
+    settle_stale_stages(folder)
     if not os.access(folder, os.W_OK | os.X_OK):
         raise InputError("the report folder is read-only; give another --out", file=str(folder))
     for name in names:

@@ -93,17 +93,39 @@ def claim_folder(root: Path, base: str, claims: str) -> Path:
     raise AssaycutError(f"{root}: too many assays named like {base!r}")
 
 
-CLAIMS: list[str] = []
-"""Claims folders of running batches (removed at the end, and by the SIGTERM handler)."""
+CLAIMS: dict[str, Path] = {}
+"""Claims folders of running batches -> their report root (settled and removed at the end, and on a stop)."""
+CLAIMS_PREFIX = "assaycut-claims-"
+"""Start of a claims folder's name: ``assaycut-claims-<pid>-<random>`` in the temporary folder."""
 
 
-def new_claims() -> str:
-    """A fresh claims folder for one batch run."""
+def new_claims(root: Path) -> str:
+    """A fresh claims folder for one batch run writing under ``root``; those left by killed runs are removed
+    first (:func:`drop_stale_claims`)."""
     import tempfile
 
-    d = tempfile.mkdtemp(prefix="assaycut-claims-")
-    CLAIMS.append(d)
+    drop_stale_claims()
+    d = tempfile.mkdtemp(prefix=f"{CLAIMS_PREFIX}{os.getpid()}-")
+    CLAIMS[d] = Path(root)
     return d
+
+
+def drop_stale_claims() -> None:
+    """Remove the claims folders of this user left in the temporary folder by runs that no longer run (a
+    SIGKILL gives a run no chance to remove its own)."""
+    import re
+    import shutil
+    import tempfile
+
+    from ..files import pid_alive
+
+    tmp = tempfile.gettempdir()
+    with contextlib.suppress(OSError):
+        for name in os.listdir(tmp):
+            m = re.fullmatch(re.escape(CLAIMS_PREFIX) + r"(\d+)-\w+", name)
+            path = os.path.join(tmp, name)
+            if m and not pid_alive(int(m.group(1))) and os.lstat(path).st_uid == os.getuid():
+                shutil.rmtree(path, ignore_errors=True)
 
 
 def release_claims(claims: str = "") -> None:
@@ -113,8 +135,20 @@ def release_claims(claims: str = "") -> None:
     for d in [claims] if claims else list(CLAIMS):
         if d:
             shutil.rmtree(d, ignore_errors=True)
-            if d in CLAIMS:
-                CLAIMS.remove(d)
+            CLAIMS.pop(d, None)
+
+
+def settle_claimed() -> None:
+    """On a stop, after the workers are killed: settle the report sets they were writing in the folders this
+    run claimed (:func:`~assaycut.files.settle_stale_stages`: completed if wholly staged, else removed)."""
+    from ..files import settle_stale_stages
+
+    dead = frozenset(KILLED)
+    for d, root in list(CLAIMS.items()):
+        settle_stale_stages(root, dead)
+        with contextlib.suppress(OSError):
+            for name in os.listdir(d):
+                settle_stale_stages(root / name, dead)
 
 
 def run_one(path: str, job: YieldJob, progress=None, map_fn=map):
@@ -326,17 +360,42 @@ def draw_pool(job: YieldJob):
         yield pool.map
 
 
-def kill_pools() -> None:
-    """Kill the worker processes of every running pool at once (Ctrl-C, SIGTERM)."""
-    import contextlib
+KILLED: set[int] = set()
+"""Worker processes killed by :func:`kill_pools`."""
 
+
+def kill_pools() -> None:
+    """Kill the worker processes of every running pool at once (Ctrl-C, SIGTERM), and wait (up to a second)
+    until they are gone, so that nothing of theirs is written after the stop."""
+    import time
+
+    procs = []
     for pool in list(ACTIVE_POOLS):
         for proc in list(getattr(pool, "_processes", {}).values()):
             with contextlib.suppress(Exception):
                 proc.kill()
+                KILLED.add(proc.pid)
+                procs.append(proc.pid)
+    t_end = time.monotonic() + 1.0
+    while procs and time.monotonic() < t_end:
+        procs = [p for p in procs if _running(p)]
+        time.sleep(0.01)
 
 
-AT_STOP.extend([kill_pools, release_claims])  # Ctrl-C and SIGTERM: kill the workers, then drop the claims
+def _running(pid: int) -> bool:
+    """Whether a process runs (a zombie does not; without /proc, whether it exists)."""
+    try:
+        with open(f"/proc/{pid}/stat", "rb") as fh:
+            return fh.read().rsplit(b")", 1)[1].split()[0] not in (b"Z", b"X")
+    except (OSError, IndexError):
+        if os.path.exists("/proc/self"):
+            return False  # gone
+        from ..files import pid_alive
+
+        return pid_alive(pid)
+
+
+AT_STOP.extend([kill_pools, settle_claimed, release_claims])  # Ctrl-C, SIGTERM: kill the workers, settle, drop
 
 
 def run_batch(paths: list[str], job: YieldJob, *, parallel: bool | None = None, progress: bool | None = None):

@@ -129,22 +129,35 @@ kill and its claims-folder removal here: this module cannot import it)."""
 
 
 def stop_now(message: str, code: int) -> None:  # pragma: no cover - exercised by subprocess tests
-    """Stop at once (Ctrl-C, SIGTERM): kill worker pools, remove temporary report files and batch claims, say
-    so in one line, flush the output and leave the process with ``os._exit``.
+    """Stop at once (Ctrl-C, SIGTERM): kill worker pools, settle the report sets being written and remove batch
+    claims, say so in one line, flush the output and leave the process with ``os._exit``.
+
+    A report set being written is removed, unless all its files were staged already: then it is completed
+    (:func:`~assaycut.files.cleanup_pending`), and the line says where.  A further Ctrl-C or SIGTERM during
+    this is ignored, so the stop itself is never cut short.
 
     ``os._exit`` and not ``sys.exit``: an interrupt can arrive while the main thread holds a lock of a worker
     pool (a future's condition inside ``as_completed``, say); the normal interpreter exit then joins the pool's
     manager thread, which waits for that lock for ever.  Everything the run still owns is cleaned up here first.
     """
+    import signal
+
     from ..files import cleanup_pending
 
+    with contextlib.suppress(Exception):
+        signal.signal(signal.SIGINT, signal.SIG_IGN)
+        signal.signal(signal.SIGTERM, signal.SIG_IGN)
     for undo in AT_STOP:  # kill the worker pools first: nothing more gets written
         with contextlib.suppress(Exception):
             undo()
-    cleanup_pending()
+    completed = cleanup_pending()
     with contextlib.suppress(Exception):  # a signal that arrives inside a write cannot write again: exit anyway
         sys.stdout.flush()
-        error_line(f"{message}; no partial report was left")
+        if completed:
+            error_line(f"{message} after the report in {', '.join(completed)} was complete; it was written whole, "
+                       f"and no partial report was left")
+        else:
+            error_line(f"{message}; no partial report was left")
         sys.stderr.flush()
     os._exit(code)
 

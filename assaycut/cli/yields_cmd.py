@@ -112,7 +112,7 @@ def yields(
     job = YieldJob(cs, [] if summary else lim, method.value, (api, sg, density, sulfur), root,
                    single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
                    sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
-                   unit=unit.value, claims=new_claims() if root is not None and len(paths) > 1 else "",
+                   unit=unit.value, claims=new_claims(root) if root is not None and len(paths) > 1 else "",
                    output=output, scale_cuts=scale_cuts)
     try:
         results, written, failures = run_batch(paths, job)

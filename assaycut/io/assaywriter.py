@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import math
 
-from ..files import atomic_write, safe_text
+from ..files import place_set, safe_text
 from ..model.assay import Assay
 from .layout import (
     INSTRUCTIONS,
@@ -103,5 +103,10 @@ def write_assay_workbook(assay: Assay | None, path: str, *, inputs: tuple[str, .
     inputs : tuple of str
         Input files of the run; writing over one is refused.
     """
-    wb = _build(assay)
-    atomic_write(path, wb.save, inputs=inputs)
+    import io
+    from pathlib import Path
+
+    buf = io.BytesIO()
+    _build(assay).save(buf)
+    target = Path(path)
+    place_set(target.parent, {target.name: buf.getvalue()}, inputs)

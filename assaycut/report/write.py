@@ -8,7 +8,7 @@ import io
 import re
 from pathlib import Path
 
-from ..files import atomic_write, check_targets, safe_text
+from ..files import place_set, safe_text
 from .tables import (
     LONG_COLUMNS,
     display_cuts,
@@ -24,13 +24,6 @@ def slug(name: str) -> str:
     """A file-name-safe version of a crude name."""
     s = re.sub(r"[^A-Za-z0-9._-]+", "_", name.strip()).strip("._")
     return s[:60] or "assay"
-
-
-def _bytes_writer(data: bytes):
-    def write(tmp):
-        with open(tmp, "wb") as fh:
-            fh.write(data)
-    return write
 
 
 def csv_text(headers: list[str], rows: list[list], escaped: bool = False) -> str:
@@ -63,11 +56,11 @@ def csv_body(rows: list[list], escaped: bool = False) -> str:
     return buf.getvalue()
 
 
-def place_files(outdir: Path, files: dict[str, bytes], inputs: tuple[str, ...]) -> list[Path]:
-    """Write rendered files into ``outdir``, each atomically, after checking every target first
-    (:func:`~assaycut.files.check_targets`): a set is not left half-written by a name that is in the way."""
-    check_targets(Path(outdir), list(files), inputs)
-    return [atomic_write(outdir / name, _bytes_writer(data), inputs=inputs) for name, data in files.items()]
+def place_files(outdir: Path, files: dict[str, bytes], inputs: tuple[str, ...],
+                family: tuple[str, ...] = ()) -> list[Path]:
+    """Write a set of rendered files into ``outdir`` whole or not at all (:func:`~assaycut.files.place_set`;
+    ``family``: the names of this kind of report that go when the new set lacks them)."""
+    return place_set(Path(outdir), files, inputs, family)
 
 
 def png_bytes(plot, first, *rest, **kwargs) -> bytes:
@@ -112,7 +105,7 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (),
         files[f"{base}_qualities.png"] = png_bytes(plots.plot_qualities, result)
     if result.products is not None:
         files[f"{base}_products.png"] = png_bytes(plots.plot_products, result)
-    return place_files(outdir, files, inputs)
+    return place_files(outdir, files, inputs, (f"{base}_qualities.png", f"{base}_products.png"))
 
 
 def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:

@@ -42,8 +42,12 @@ def test_interrupted_run_leaves_no_partial_files(tmp_path, demo_paths, sig, code
     assert leftovers == []
     import openpyxl
 
-    for x in out.rglob("*.xlsx"):  # every report present is whole
+    for x in out.rglob("*.xlsx"):  # every report file present is whole
         openpyxl.load_workbook(x).close()
+    core = ("_yields.xlsx", "_cuts.csv", "_long.csv", "_summary.md", "_tbp.png", "_yields.png", "_properties.png")
+    for folder in (d for d in out.iterdir() if d.is_dir()):  # and so is every report set (README promise)
+        names = [p.name for p in folder.iterdir()]
+        assert not names or all(any(n.endswith(c) for n in names) for c in core), (folder, sorted(names))
 
 
 def test_formula_injection_escaped_in_reports(tmp_path, book):
@@ -255,9 +259,11 @@ from assaycut import files
 from assaycut.cli import _unraisable
 
 sys.unraisablehook = _unraisable(sys.unraisablehook)
-tmp = sys.argv[1]
-files._PENDING.add(tmp)
-open(tmp, "w").write("half a report")
+import os
+stage = sys.argv[1]
+files._PENDING.add(stage)
+os.mkdir(stage)
+open(os.path.join(stage, "report.xlsx"), "w").write("half a report")
 
 
 class Plot:
@@ -279,7 +285,7 @@ def test_ctrl_c_inside_a_weakref_callback_still_stops_the_run(tmp_path):
     # Python cannot raise KeyboardInterrupt out of a weak-reference callback (it prints "Exception ignored in"
     # with a traceback and goes on; CPython documentation, sys.unraisablehook); matplotlib runs such callbacks
     # while drawing, so a Ctrl-C there was lost and a batch went on writing reports.  The hook stops it.
-    part = tmp_path / ".report.xlsx.abc.part"
+    part = tmp_path / ".assaycut-stage-1-abc"
     r = subprocess.run([sys.executable, "-c", LOST_INTERRUPT, str(part)], capture_output=True, text=True,
                        timeout=60)
     assert r.returncode == 130, r.stderr
@@ -323,3 +329,61 @@ def test_ctrl_c_while_a_pool_lock_is_held_still_exits(tmp_path):
     assert r.returncode == 130, r.stderr
     assert "went on" not in r.stdout
     assert r.stderr.strip() == "assaycut: error: interrupted; no partial report was left"
+
+
+STOP_AT_RENAME = r'''
+import os, signal, sys
+from assaycut import cli
+
+at, count, real = int(sys.argv[1]), [0], os.replace
+
+
+def replace(src, dst):  # Ctrl-C as the at-th report file is moved into place
+    if str(dst).endswith((".xlsx", ".csv", ".md", ".png")):
+        count[0] += 1
+        if count[0] == at:
+            os.kill(os.getpid(), signal.SIGINT)
+    real(src, dst)
+
+
+os.replace = replace
+sys.argv = ["assaycut", "yields", sys.argv[2], "--out", sys.argv[3]]
+cli.main()
+'''
+
+
+@pytest.fixture(scope="module")
+def earlier_report(tmp_path_factory):
+    """A report made with diesel ending at 300 °C (the default set ends it at 343 °C)."""
+    from assaycut.io.tomlfiles import demo_assay_paths
+
+    demo_paths = demo_assay_paths()
+    out = tmp_path_factory.mktemp("earlier")
+    r = subprocess.run([sys.executable, "-m", "assaycut", "yields", str(demo_paths[0]), "--end", "diesel=300",
+                        "--out", str(out)], capture_output=True, text=True, timeout=120)
+    assert r.returncode == 0, r.stderr
+    return out
+
+
+@pytest.mark.parametrize("at", [1, 4, 8])
+def test_ctrl_c_while_a_set_is_placed_never_leaves_a_mix(tmp_path, earlier_report, demo_paths, at):
+    # Over an earlier report, a default run is interrupted as its at-th file is moved into place: the folder
+    # holds the earlier set or the new one, whole (by modification time: the new files are written after the
+    # run starts), and the last line says which (before: 3 of 8 files new, and "no partial report was left").
+    out = tmp_path / "r"
+    shutil.copytree(earlier_report, out, copy_function=shutil.copy2)
+    before = {p.name: p.stat().st_mtime_ns for p in out.iterdir()}
+    time.sleep(0.01)
+    t0 = time.time_ns()
+    r = subprocess.run([sys.executable, "-c", STOP_AT_RENAME, str(at), str(demo_paths[0]), str(out)],
+                       capture_output=True, text=True, timeout=120, preexec_fn=ctrl_c_as_at_a_terminal)
+    assert r.returncode == 130, r.stderr
+    after = {p.name: p.stat().st_mtime_ns for p in out.iterdir()}
+    new = {n for n, t in after.items() if t >= t0}
+    assert not any(n.startswith(".") for n in after)
+    assert new == set() or new == set(after), f"a mix: new {sorted(new)}, earlier {sorted(set(after) - new)}"
+    if new:
+        assert "was complete; it was written whole" in r.stderr
+        assert set(after) >= set(before) - {n for n in before if n.endswith("_products.png")}
+    else:
+        assert after == before and "no partial report was left" in r.stderr
