@@ -481,9 +481,27 @@ def _(d):
 
 
 # -- numbers out of range, odd outputs --------------------------------------------------------------------
-_toml_case("cuts_nested_too_deeply", "x = " + "[" * 5000 + "]" * 5000 + "\n", r"TOML nested too deeply")
+_toml_case("cuts_nested_too_deeply", "x = " + "[" * 5000 + "]" * 5000 + "\n", r"TOML nested more than 32 deep")
 _price_case("prices_huge", "[products]\n" + _ALL + '"vacuum residue" = { per_t = 1e308 }\n',
-            r"the price 1e\+308 is out of range")
+            r"products.vacuum residue.per_t: 1e\+308 is out of range; numbers here lie within ±1e\+15")
+_price_case("prices_out_of_range", "[products]\n" + _ALL + '"vacuum residue" = { per_t = 2e9 }\n',
+            r"the price 2e\+09 is out of range; a price file's numbers lie within ±1e\+09")
+# Python's TOML reader takes time and memory growing with the square of a dotted key's parts (a 56 KB file of
+# one key: 20 s and 3 GB); such a key is refused before parsing (measured; common practice, no source)
+_toml_case("cuts_dotted_key_of_28000_parts", "a" + ".a" * 28_000 + " = 1\n", r"a dotted key of more than 16 parts")
+_toml_case("cuts_quoted_dotted_key", '"a b".' * 40 + '"c" = 1\n', r"a dotted key of more than 16 parts")
+_toml_case("cuts_file_over_1_mb", "# padding\n" * 110_000, r"assaycut reads cut, limit and price files up to 1 MB")
+_toml_case("cuts_integer_of_400_digits", '[[cut]]\nname="a"\nend_c=1' + "0" * 399 + '\n[[cut]]\nname="b"\n',
+           r"cut\[1\].end_c: a number of 400 digits is out of range")
+_toml_case("cuts_integer_of_5000_digits", '[[cut]]\nname="a"\nend_c=' + "9" * 5000 + '\n[[cut]]\nname="b"\n',
+           r"a number of more than 4,300 digits")
+_toml_case("limits_integer_of_400_digits", '[[limit]]\ncut="diesel"\nproperty="sg"\nmax=-1' + "0" * 399 + "\n",
+           r"limit\[1\].max: a number of 400 digits is out of range", "--limits")
+_toml_case("limits_1001", "".join(f'[[limit]]\ncut="diesel"\nproperty="sg"\nmax={0.8 + i * 1e-4}\n'
+                                  for i in range(1001)), r"1001 limits; a limits file holds at most 1000", "--limits")
+_price_case("prices_1001_crudes", "[products]\n" + _ALL + '"vacuum residue" = { per_t = 300 }\n[crudes]\n'
+            + "".join(f'"c{i}" = {{ per_bbl = 80 }}\n' for i in range(1001)),
+            r"1001 prices in \[crudes\]; a price file holds at most 1000 per table")
 
 
 @case("convert_nan", r"'50=nan': expected PERCENT=TEMP with finite numbers")

@@ -66,8 +66,9 @@ def cell_text(v) -> str:
     return "" if v is None else str(v).strip()
 
 
-def read_bytes(path: str) -> bytes:
-    """The whole file, refused clearly if missing, a folder, empty or too large."""
+def read_bytes(path: str, max_bytes: int = MAX_BYTES, kind: str = "") -> bytes:
+    """The whole file, refused clearly if missing, a folder, empty or larger than ``max_bytes`` (a ``kind`` of
+    file, e.g. "cut, limit and price files", is named in that message)."""
     import os
 
     if not os.path.exists(path):
@@ -77,8 +78,9 @@ def read_bytes(path: str) -> bytes:
     size = os.path.getsize(path)
     if size == 0:
         raise InputError("the file is empty", file=path)
-    if size > MAX_BYTES:
-        raise InputError(f"the file is {size / 1e6:.1f} MB; assaycut reads files up to {MAX_BYTES / 1e6:.0f} MB",
+    if size > max_bytes:
+        what = kind or "files"
+        raise InputError(f"the file is {size / 1e6:.1f} MB; assaycut reads {what} up to {max_bytes / 1e6:g} MB",
                          file=path)
     with open(path, "rb") as fh:
         return fh.read()

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import re
 import tomllib
 from importlib import resources
 from pathlib import Path
@@ -15,19 +16,113 @@ from ..units import f_to_c
 from .cells import read_bytes
 
 
+TOML_MAX_BYTES = 1_000_000
+"""Largest cut, limit or price file [bytes]: such files are a few kB by nature."""
+TOML_MAX_KEY_PARTS = 16
+"""Most parts of one dotted key (``a.b.c`` has 3).  Python's TOML reader takes time and memory growing with
+the square of a key's parts (8,000 parts: 0.5 s; measured), so a long one is refused before parsing."""
+TOML_MAX_DEPTH = 32
+"""Deepest nesting of arrays and inline tables."""
+TOML_MAX_NUMBER = 1e15
+"""Largest magnitude of any number in these files (each key has its own narrower range checked after)."""
+TOML_MAX_ENTRIES = 1000
+"""Most [[limit]] tables in a limits file, and most prices in each table of a price file."""
+
+_SPECIAL = re.compile(r"[\"'#]")
+_BASIC_REST = re.compile(r'(?:[^"\\\n]|\\.)*+"')
+"""The rest of a one-line basic string after its opening quote (possessive: never backtracks)."""
+_DOTTED = re.compile(r"[\w-]+(?:[ \t]*\.[ \t]*[\w-]+)*")
+"""A run of dot-joined parts (strings already replaced by one letter); greedy and never failing, so a scan
+with it is linear."""
+
+
+def _bare(text: str) -> str:
+    """The TOML text with each string replaced by the letter s and comments dropped, in one linear pass.  The
+    scan stops at an unterminated string: the reader refuses the text there, before anything after it."""
+    out, pos, n = [], 0, len(text)
+    while pos < n:
+        m = _SPECIAL.search(text, pos)
+        if m is None:
+            out.append(text[pos:])
+            break
+        out.append(text[pos:m.start()])
+        i, ch = m.start(), m.group(0)
+        if ch == "#":
+            end = text.find("\n", i)
+        elif text.startswith(ch * 3, i):
+            end = text.find(ch * 3, i + 3)
+            end = -1 if end < 0 else end + 3
+            if end > 0 and text.startswith(ch, end):  # up to two quotes may end a multi-line string's content
+                end += 2 if text.startswith(ch, end + 1) else 1
+        elif ch == '"':
+            rest = _BASIC_REST.match(text, i + 1)
+            end = rest.end() if rest else -1
+        else:
+            close = text.find("'", i + 1)
+            end = close + 1 if close >= 0 and "\n" not in text[i + 1:close] else -1
+        if end < 0:
+            break
+        if ch != "#":
+            out.append("s")
+        pos = end
+    return "".join(out)
+
+
+def _bounded(text: str, path: str) -> None:
+    """Refuse, before parsing, a TOML text with a dotted key of more than :data:`TOML_MAX_KEY_PARTS` parts or
+    nesting deeper than :data:`TOML_MAX_DEPTH`; linear in the text.  Strings are replaced by one letter first
+    (:func:`_bare`), so that a quoted key part counts and a dot or bracket inside a string does not."""
+    bare = _bare(text)
+    if any(m.group(0).count(".") >= TOML_MAX_KEY_PARTS for m in _DOTTED.finditer(bare)):
+        raise InputError(f"a dotted key of more than {TOML_MAX_KEY_PARTS} parts; a cut, limits or price file has "
+                         f"short keys", file=path)
+    depth = deepest = 0
+    for ch in re.findall(r"[\[\]{}]", bare):
+        depth += 1 if ch in "[{" else -1
+        deepest = max(deepest, depth)
+        if deepest > TOML_MAX_DEPTH:
+            raise InputError(f"TOML nested more than {TOML_MAX_DEPTH} deep; a cut, limits or price file is flat "
+                             f"tables of numbers and texts", file=path)
+
+
+def _numbers_in_range(value, where: str, path: str) -> None:
+    """Refuse any number of magnitude above :data:`TOML_MAX_NUMBER` in a parsed document (``where``: the key
+    path, named in the message)."""
+    if isinstance(value, dict):
+        for k, v in value.items():
+            _numbers_in_range(v, f"{where}.{k}" if where else str(k), path)
+    elif isinstance(value, list):
+        for i, v in enumerate(value, start=1):
+            _numbers_in_range(v, f"{where}[{i}]", path)
+    elif isinstance(value, int) and not isinstance(value, bool) and abs(value) > TOML_MAX_NUMBER:
+        raise InputError(f"{where}: a number of {len(str(abs(value)))} digits is out of range; numbers here lie "
+                         f"within ±{TOML_MAX_NUMBER:g}", file=path)
+    elif isinstance(value, float) and math.isfinite(value) and abs(value) > TOML_MAX_NUMBER:
+        raise InputError(f"{where}: {value:g} is out of range; numbers here lie within ±{TOML_MAX_NUMBER:g}",
+                         file=path)
+
+
 def _load(path: str) -> dict:
-    data = read_bytes(path)
+    """Parse a cut, limit or price file: UTF-8 TOML of at most :data:`TOML_MAX_BYTES`, keys and nesting
+    bounded before parsing (:func:`_bounded`), every number range-checked after (:func:`_numbers_in_range`)."""
+    data = read_bytes(path, TOML_MAX_BYTES, "cut, limit and price files")
     try:
         text = data.decode("utf-8-sig")
     except UnicodeDecodeError:
         raise InputError("not a UTF-8 text file; expected TOML", file=path) from None
+    _bounded(text, path)
     try:
-        return tomllib.loads(text)
+        doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError(f"not valid TOML: {exc}", file=path) from None
     except RecursionError:
         raise InputError("TOML nested too deeply; a cut, limits or price file is flat tables of numbers and "
                          "texts", file=path) from None
+    except ValueError:  # an integer of more digits than Python converts (4,300)
+        raise InputError(f"a number of more than 4,300 digits; numbers here lie within ±{TOML_MAX_NUMBER:g}",
+                         file=path) from None
+    _numbers_in_range(doc, "", path)
+    return doc
 
 
 def _temp(v, key: str, i: int, path: str) -> float:
@@ -128,7 +223,10 @@ def read_cut_set(path: str) -> CutSet:
 
 
 def limits_from_dicts(items: list[dict], where: str) -> list[Limit]:
-    """Limits from parsed TOML tables, each checked; errors name the file and the limit's index."""
+    """Limits from parsed TOML tables (at most :data:`TOML_MAX_ENTRIES`), each checked; errors name the file
+    and the limit's index."""
+    if len(items) > TOML_MAX_ENTRIES:
+        raise InputError(f"{len(items)} limits; a limits file holds at most {TOML_MAX_ENTRIES}", file=where)
     out = []
     for i, it in enumerate(items, start=1):
         if not isinstance(it, dict):
@@ -264,6 +362,9 @@ def read_prices(path: str):
             raise InputError(f"[{key}] must be a table", file=path)
         if required and not t:
             raise InputError(f"no [{key}] prices; give one per cut, e.g. \"diesel\" = {{ per_bbl = 95.0 }}", file=path)
+        if len(t) > TOML_MAX_ENTRIES:
+            raise InputError(f"{len(t)} prices in [{key}]; a price file holds at most {TOML_MAX_ENTRIES} per table",
+                             file=path)
         out = {}
         for name, spec in t.items():
             line = f"[{key}] {name!r}"
