@@ -432,6 +432,64 @@ def _(d):
     return ["yields", str(p)], [p]
 
 
+# Python's XML reader (expat, through defusedxml and openpyxl) takes time growing with the square of one token's
+# length (a 50 MB comment: 85 s, measured); such tokens are refused before parsing (common practice, no source)
+_xml_case("xml_comment_of_2_mb", "distillation", _sub(b"<sheetData>", b"<!--" + b"c" * 2_000_000 + b"--><sheetData>"),
+          r"part 'xl/worksheets/sheet2.xml' holds an XML token of more than 1 MB")
+_xml_case("xml_attribute_of_2_mb", "distillation", _sub(b"<sheetData>", b'<sheetData x="' + b"a" * 2_000_000 + b'">'),
+          r"part 'xl/worksheets/sheet2.xml' holds an XML token of more than 1 MB")
+_xml_case("xml_1001_comments", "distillation", _sub(b"<sheetData>", b"<!--c-->" * 1001 + b"<sheetData>"),
+          r"more than 1000 XML comments or processing instructions")
+
+
+@case("shared_strings_200000", r"more than 100,000 shared strings")
+def _(d):  # small strings, a 2.6 MB part: under the part bound, refused by the count before parsing
+    n = 200_000
+    sst = (b'<?xml version="1.0" encoding="UTF-8"?><sst xmlns="http://schemas.openxmlformats.org/spreadsheetml/'
+           b'2006/main" count="%d" uniqueCount="%d">' % (n, n) + b"<si><t>a</t></si>" * n + b"</sst>")
+    p = rezip(_book(d, "sst.xlsx"), {"xl/sharedStrings.xml": lambda _: sst})
+    return ["yields", str(p)], [p]
+
+
+@case("zip_duplicate_member", r"the zip archive holds two parts named 'xl/worksheets/sheet3.xml'")
+def _(d):  # a second copy of the narrow cuts whose sulfur differs: which one is read must not be a guess
+    import warnings
+
+    p = _book(d, "twice.xlsx")
+    with zipfile.ZipFile(p) as z:
+        part = z.read("xl/worksheets/sheet3.xml")
+    assert b"<v>0.9</v>" in part
+    with warnings.catch_warnings(), zipfile.ZipFile(p, "a") as z:
+        warnings.simplefilter("ignore")  # zipfile warns of the duplicate name it is asked to write
+        z.writestr("xl/worksheets/sheet3.xml", part.replace(b"<v>0.9</v>", b"<v>0.1</v>"))
+    return ["yields", str(p)], [p]
+
+
+@case("zip_listed_sheet_missing", r"sheet 'narrow cuts' is listed in the workbook but its part "
+                                  r"'xl/worksheets/sheet3.xml' is missing")
+def _(d):  # before, the narrow cuts vanished silently and the cut sulfurs changed
+    p = _book(d, "holed.xlsx")
+    with zipfile.ZipFile(p) as z:
+        items = {i.filename: z.read(i.filename) for i in z.infolist() if i.filename != "xl/worksheets/sheet3.xml"}
+    with zipfile.ZipFile(p, "w", zipfile.ZIP_DEFLATED) as z:
+        for k, v in items.items():
+            z.writestr(k, v)
+    return ["yields", str(p)], [p]
+
+
+@case("array_formula_in_number_cell", r"row 8, column 'temp_c': found the array formula '=SUM\(A1:A2\)'; expected a "
+                                      r"number \(formulas are not evaluated")
+def _(d):
+    import openpyxl
+    from openpyxl.worksheet.formula import ArrayFormula
+
+    p = _book(d, "array.xlsx")
+    wb = openpyxl.load_workbook(p)
+    wb["distillation"]["B8"] = ArrayFormula("B8", "=SUM(A1:A2)")
+    wb.save(p)
+    return ["yields", str(p)], [p]
+
+
 @case("hidden_sheet_with_near_name", r"sheets 'crude' and 'crude ' have the same name")
 def _(d):
     import openpyxl

@@ -25,6 +25,31 @@ class SourceLocation:
         return InputError(msg, file=self.file, sheet=self.sheet, row=row, column=column)
 
 
+class FormulaText(str):
+    """A formula cell's text (``=...``) that knows what kind of formula it was (``kind``: "formula", "array
+    formula", "data-table formula"), so that a message says what the cell holds."""
+
+    kind = "formula"
+
+
+def plain_value(v):
+    """A cell value as the reader handles it: numbers, texts, dates and None as they are; an openpyxl array or
+    data-table formula object as its formula text (:class:`FormulaText`); anything else as a text naming its
+    type, never a Python repr with a memory address."""
+    if v is None or isinstance(v, (str, int, float, _dt.datetime, _dt.date, _dt.time, _dt.timedelta)):
+        return v
+    kind = type(v).__name__
+    if kind == "ArrayFormula":
+        t = FormulaText(str(getattr(v, "text", None) or "="))
+        t.kind = "array formula"
+        return t
+    if kind == "DataTableFormula":
+        t = FormulaText("=TABLE()")
+        t.kind = "data-table formula"
+        return t
+    return f"(a cell of type {kind})"
+
+
 def describe(v) -> str:
     """A cell value as a message shows it: text quoted and shortened, dates named."""
     if isinstance(v, str):
@@ -46,8 +71,8 @@ def to_number(v, loc: SourceLocation, row: int, column: str, *, allow_empty: boo
     if isinstance(v, (int, float, np.integer, np.floating)):
         x = float(v)
     elif isinstance(v, str) and v.strip().startswith("="):
-        raise loc.err(f"found the formula {v.strip()[:40]!r}; expected a number (formulas are not evaluated: "
-                      f"paste values)", row, column)
+        raise loc.err(f"found the {getattr(v, 'kind', 'formula')} {str(v).strip()[:40]!r}; expected a number "
+                      f"(formulas are not evaluated: paste values)", row, column)
     elif isinstance(v, str):
         s = v.strip().replace("\u2212", "-")
         if re.fullmatch(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?", s):

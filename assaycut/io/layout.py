@@ -45,6 +45,13 @@ MAX_MEMBER_BYTES = 50_000_000
 hold well under 1 MB. [bytes]"""
 MAX_UNPACKED_BYTES = 200_000_000
 """Largest uncompressed size of a whole .xlsx. [bytes]"""
+MAX_XML_TOKEN = 1_000_000
+"""Longest single XML token (a tag with its attributes, a text, a comment) in any part of an .xlsx: the XML
+reader's time grows with the square of a token's length (a 50 MB comment: 85 s, measured). [bytes]"""
+MAX_XML_SPECIALS = 1000
+"""Most comments, processing instructions and CDATA sections in one part (a real part holds one or two)."""
+MAX_SHARED_STRINGS = 100_000
+"""Most shared strings in a workbook, counted before parsing (real assay workbooks hold a few hundred)."""
 MAX_CELLS = 1_000_000
 """Largest number of cells read from one workbook (real assay workbooks hold a few thousand)."""
 MAX_COLUMNS = 256

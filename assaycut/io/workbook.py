@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import io
 import math
+import re
 import zipfile
 
 import numpy as np
@@ -20,6 +21,7 @@ from .cells import (
     describe,
     gravity_from_inputs,
     parse_curve_rows,
+    plain_value,
     read_bytes,
     to_number,
 )
@@ -29,7 +31,10 @@ from .layout import (
     MAX_MEMBER_BYTES,
     MAX_NAME_CHARS,
     MAX_ROWS,
+    MAX_SHARED_STRINGS,
     MAX_UNPACKED_BYTES,
+    MAX_XML_SPECIALS,
+    MAX_XML_TOKEN,
     METHODS,
     PCT_COLUMNS,
     SHEET_CRUDE,
@@ -43,8 +48,9 @@ from .layout import (
 
 
 def _check_archive(data: bytes, path: str) -> None:
-    """The checks on the zip archive before any of its XML is read: a zip with xl/workbook.xml, no part
-    above :data:`MAX_MEMBER_BYTES` unpacked and all of them within :data:`MAX_UNPACKED_BYTES`."""
+    """The checks on the zip archive before openpyxl reads any of its XML: a zip with xl/workbook.xml, no two
+    parts of one name, no part above :data:`MAX_MEMBER_BYTES` unpacked and all of them within
+    :data:`MAX_UNPACKED_BYTES`, and each XML part within the token and shared-string bounds (:func:`_check_xml`)."""
     from openpyxl.xml import DEFUSEDXML
 
     if not DEFUSEDXML:
@@ -58,30 +64,85 @@ def _check_archive(data: bytes, path: str) -> None:
     except zipfile.BadZipFile as exc:
         raise InputError(f"a damaged zip archive ({exc}); expected an .xlsx workbook", file=path) from None
     try:
-        names = set(z.namelist())
+        infos = z.infolist()
+        names: set[str] = set()
+        for info in infos:
+            if info.filename in names:
+                raise InputError(f"the zip archive holds two parts named {info.filename!r} (only one would be "
+                                 f"read); the file is damaged or was altered: save it again from a spreadsheet "
+                                 f"program", file=path)
+            names.add(info.filename)
         if "xl/workbook.xml" not in names:
             raise InputError("a zip archive but not an .xlsx workbook (no xl/workbook.xml)", file=path)
-        for info in z.infolist():
+        for info in infos:
             if info.file_size > MAX_MEMBER_BYTES:
                 raise InputError(f"part {info.filename!r} of the workbook unpacks to {info.file_size / 1e6:.0f} "
                                  f"MB; assaycut reads parts up to {MAX_MEMBER_BYTES / 1e6:.0f} MB (real assay "
                                  f"workbooks hold well under 1 MB)", file=path)
-        total = sum(i.file_size for i in z.infolist())
+        total = sum(i.file_size for i in infos)
         if total > MAX_UNPACKED_BYTES:
             raise InputError(f"the workbook unpacks to {total / 1e6:.0f} MB; assaycut reads workbooks up to "
                              f"{MAX_UNPACKED_BYTES / 1e6:.0f} MB unpacked", file=path)
+        strings = 0
+        for info in infos:
+            if info.filename.lower().endswith((".xml", ".rels", ".vml")):
+                try:
+                    part = z.read(info)
+                except (zipfile.BadZipFile, OSError, EOFError, ValueError) as exc:
+                    raise InputError(f"part {info.filename!r} cannot be unpacked ({exc}); the file is damaged",
+                                     file=path) from None
+                strings = _check_xml(part, info.filename, path, strings)
     finally:
         z.close()
+
+
+_LONG_RUN = re.compile(rb"(?:\A|<)[^<]{%d}" % MAX_XML_TOKEN)
+"""A run of MAX_XML_TOKEN bytes without '<' (a tag, its attribute values or a text: none may hold '<' in XML
+1.0); tried only at '<', where each try ends at the next '<', so the search is linear."""
+_SPECIAL_START = re.compile(rb"<!--|<!\[CDATA\[|<\?")
+_SPECIAL_ENDS = {b"<!--": b"-->", b"<![CDATA[": b"]]>", b"<?": b"?>"}
+_SHARED_STRING = re.compile(rb"<(?:[A-Za-z_][\w.-]*:)?si[\s/>]")
+
+
+def _check_xml(part: bytes, name: str, path: str, strings: int) -> int:
+    """Refuse, before parsing, an XML part with a token longer than :data:`MAX_XML_TOKEN` (tags and texts by
+    the longest run without '<'; comments, processing instructions and CDATA, at most
+    :data:`MAX_XML_SPECIALS` of them, one by one), or a workbook with more than :data:`MAX_SHARED_STRINGS`
+    shared strings (``strings``: counted in the parts before; the new count is returned)."""
+    too_long = f"part {name!r} holds an XML token of more than {MAX_XML_TOKEN / 1e6:g} MB; real assay " \
+               f"workbooks hold none (the file is damaged or made to stall a reader)"
+    if _LONG_RUN.search(part):
+        raise InputError(too_long, file=path)
+    if part.count(b"<!") + part.count(b"<?") > MAX_XML_SPECIALS:
+        raise InputError(f"part {name!r} holds more than {MAX_XML_SPECIALS} XML comments or processing "
+                         f"instructions; real assay workbooks hold one or two", file=path)
+    pos = 0
+    while (m := _SPECIAL_START.search(part, pos)) is not None:
+        end = part.find(_SPECIAL_ENDS[m.group(0)], m.end())
+        if end < 0:
+            break  # unterminated: the XML reader refuses the part there
+        if end - m.start() > MAX_XML_TOKEN:
+            raise InputError(too_long, file=path)
+        pos = end
+    for _ in _SHARED_STRING.finditer(part):
+        strings += 1
+        if strings > MAX_SHARED_STRINGS:
+            raise InputError(f"more than {MAX_SHARED_STRINGS:,} shared strings; real assay workbooks hold a few "
+                             f"hundred", file=path)
+    return strings
 
 
 def _open_workbook(data: bytes, path: str):
     """The workbook by openpyxl's public reader (``openpyxl.load_workbook``, read-only, formulas kept as
     formulas, no external links), after :func:`_check_archive`; its sheets are parsed row by row by
     :func:`_rows`."""
-    from openpyxl import load_workbook
+    from openpyxl.reader.excel import ExcelReader
 
     try:
-        wb = load_workbook(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
+        reader = ExcelReader(io.BytesIO(data), read_only=True, data_only=False, keep_links=False)
+        reader.read()  # what openpyxl.load_workbook does, keeping the reader to check the sheet list
+        wb = reader.wb
+        missing = [(s.name, r.target) for s, r in reader.parser.find_sheets() if r.target not in reader.valid_files]
     except InputError:
         raise
     except Exception as exc:  # openpyxl and defusedxml raise many types; all mean "unreadable"
@@ -94,11 +155,16 @@ def _open_workbook(data: bytes, path: str):
                              "not expand XML entities", file=path) from None
         raise InputError(f"not a readable .xlsx workbook ({chain[-1]}); save it again from a spreadsheet program "
                          f"as .xlsx", file=path) from None
+    if missing:
+        wb.close()
+        raise InputError(f"sheet {missing[0][0]!r} is listed in the workbook but its part {missing[0][1]!r} is "
+                         f"missing; the file is damaged: save it again from a spreadsheet program", file=path)
     wb.assaycut_budget = _Budget()
     return wb
 
 
 OPENPYXL_PARSER_NAMES = ("openpyxl.worksheet._reader.WorkSheetParser", "ReadOnlyWorksheet._get_source",
+                         "ExcelReader.parser.find_sheets", "ExcelReader.valid_files",
                          "ReadOnlyWorksheet._shared_strings", "Workbook._date_formats",
                          "Workbook._timedelta_formats")
 """The private openpyxl names :func:`_rows` needs (openpyxl is pinned below 3.2 for them; a test fails if one
@@ -162,7 +228,7 @@ def _gather(parsed, loc: SourceLocation, budget: _Budget, last: list[int]) -> li
         row = [None] * width
         for c in cells:
             if c["column"] <= width:
-                row[c["column"] - 1] = c["value"]
+                row[c["column"] - 1] = plain_value(c["value"])
         out.extend([] for _ in range(idx - prev - 1))
         out.append(row)
         last[0] = idx

@@ -331,17 +331,22 @@ def test_openpyxl_private_parser_names_still_there():
     import importlib
     from pathlib import Path
 
-    from openpyxl import load_workbook
+    from openpyxl.reader.excel import ExcelReader
     from assaycut.io.workbook import OPENPYXL_PARSER_NAMES
 
     parser_cls = getattr(importlib.import_module("openpyxl.worksheet._reader"), "WorkSheetParser")
     demo = Path(__file__).parents[2] / "assays_demo" / "selkie_light.xlsx"
-    wb = load_workbook(demo, read_only=True, data_only=False, keep_links=False)
+    reader = ExcelReader(demo, read_only=True, data_only=False, keep_links=False)
+    reader.read()
+    wb = reader.wb
     try:
         ws = wb["distillation"]
         for name in OPENPYXL_PARSER_NAMES[1:]:
-            owner, attr = name.split(".")
-            assert hasattr(ws if owner == "ReadOnlyWorksheet" else wb, attr), name
+            owner, *attrs = name.split(".")
+            obj = {"ReadOnlyWorksheet": ws, "Workbook": wb, "ExcelReader": reader}[owner]
+            for attr in attrs:
+                assert hasattr(obj, attr), name
+                obj = getattr(obj, attr)
         with ws._get_source() as src:
             rows = list(parser_cls(src, ws._shared_strings, data_only=False, epoch=wb.epoch,
                                    date_formats=wb._date_formats, timedelta_formats=wb._timedelta_formats).parse())
