@@ -207,6 +207,27 @@ def _(d):
     return ["yields", str(p), "--api", "30"], [p]
 
 
+@case("csv_line_of_commas", r"row 2: more than 256 columns; a curve CSV has two")
+def _(d):  # before: 20 million fields built (507 MB for 19.9 MB), then "the curve has 2 point(s)"
+    p = d / "commas.csv"
+    p.write_text("vol_pct,temp_c\n" + "," * 5_000_000 + "\n3,30\n20,150\n50,320\n")
+    return ["yields", str(p), "--api", "30"], [p]
+
+
+@case("csv_quoted_wide_line", r"row 2: more than 256 columns")
+def _(d):  # quotes make the delimiter count inexact: the reader's row is bounded after it is built
+    p = d / "quoted.csv"
+    p.write_text('vol_pct,temp_c\n"a",' + ",".join(["1"] * 300) + "\n3,30\n20,150\n50,320\n")
+    return ["yields", str(p), "--api", "30"], [p]
+
+
+@case("csv_1200000_values", r"more than 1,000,000 values; a curve CSV holds two columns")
+def _(d):  # 100,000 rows of 12 fields: under the row and column bounds, over the cell bound
+    p = d / "cells.csv"
+    p.write_text("vol_pct,temp_c" + ",x" * 10 + "\n" + ("1,2" + ",0" * 10 + "\n") * 99_999)
+    return ["yields", str(p), "--api", "30"], [p]
+
+
 @case("csv_gravity_twice", r"give one of --api, --sg or --density")
 def _(d):
     p = d / "c.csv"

@@ -16,10 +16,21 @@ import re
 from ..errors import InputError
 from ..model.assay import Assay
 from .cells import SourceLocation, gravity_from_inputs, parse_curve_rows, read_bytes
-from .layout import MAX_NAME_CHARS, MAX_ROWS
+from .layout import MAX_CELLS, MAX_COLUMNS, MAX_NAME_CHARS, MAX_ROWS
 
 MAX_FIELD_CHARS = 1000
 """Longest CSV field read (a number or a header needs a few characters)."""
+_too_wide = f"more than {MAX_COLUMNS} columns; a curve CSV has two (vol_pct or wt_pct, and temp_c, temp_f or temp_k)"
+
+
+def _columns_bounded(lines: list[str], delim: str, path: str) -> None:
+    """Refuse a line of more than :data:`~assaycut.io.layout.MAX_COLUMNS` fields before the CSV reader builds
+    it (a 20 MB line of commas would be 20 million fields): exactly for a line without quotes, by its length
+    (at most MAX_COLUMNS fields of MAX_FIELD_CHARS) for one with quotes."""
+    longest = MAX_COLUMNS * (MAX_FIELD_CHARS + 3)
+    for i, line in enumerate(lines, start=1):
+        if len(line) > longest or (line.count(delim) >= MAX_COLUMNS and '"' not in line):
+            raise InputError(_too_wide, file=path, row=i)
 
 
 def read_curve_csv(path: str, *, api: float | None = None, sg: float | None = None,
@@ -65,10 +76,19 @@ def read_curve_csv(path: str, *, api: float | None = None, sg: float | None = No
         raise InputError(f"more than {MAX_ROWS} rows; assaycut reads at most {MAX_ROWS} curve points", file=path)
     first = next(line for line in lines if line.strip())
     delim = ";" if first.count(";") > first.count(",") else ","
+    _columns_bounded(lines, delim, path)
+    del lines
     rows = []
+    cells = 0
     reader = csv.reader(io.StringIO(text), delimiter=delim)
     try:
         for raw in reader:
+            if len(raw) > MAX_COLUMNS:
+                raise InputError(_too_wide, file=path, row=reader.line_num)
+            cells += len(raw)
+            if cells > MAX_CELLS:
+                raise InputError(f"more than {MAX_CELLS:,} values; a curve CSV holds two columns", file=path,
+                                 row=reader.line_num)
             if any(len(c) > MAX_FIELD_CHARS for c in raw):
                 raise InputError(f"a field longer than {MAX_FIELD_CHARS} characters; expected numbers",
                                  file=path, row=reader.line_num)
