@@ -531,6 +531,17 @@ def _(d):  # the crude name of a curve CSV is its file name: control characters 
     return ["yields", str(p), "--api", "30", "--out", str(d / "out")], [p]
 
 
+# Bidi controls and zero-width characters let one crude display as another (Unicode UAX #9, section 2)
+_wb_case("crude_name_with_bidi_override", set_cell("crude", 2, 1, "Tarn\u202eyvaeH"),
+         r"the crude name holds a control character or an invisible one \('Tarn\\\\u202eyvaeH'")
+_wb_case("crude_name_with_line_separator", set_cell("crude", 2, 1, "Selkie\u2028Light"),
+         r"the crude name holds a control character or an invisible one")
+_wb_case("crude_origin_with_isolate", set_cell("crude", 3, 1, "North\u2066 field"),
+         r"the crude origin holds a control character or an invisible one")
+_toml_case("cuts_zero_width_space_in_name", '[[cut]]\nname = "die\u200bsel"\nend_c = 200\n[[cut]]\nname = "rest"\n',
+           r"cut 1's name holds a control character or an invisible one \('die\\\\u200bsel'")
+
+
 @case("crude_name_too_long", r"the crude name is 30000 characters long; at most 200")
 def _(d):
     p = _book(d, "long.xlsx", set_cell("crude", 2, 1, "N" * 30_000))
@@ -552,7 +563,7 @@ def _(d):
     return ["yields", "--cuts", str(p)], [p]
 
 
-@case("cuts_control_character_in_name", r"name holds a control character")
+@case("cuts_control_character_in_name", r"name holds a control character or an invisible one")
 def _(d):
     p = d / "cuts.toml"
     p.write_text('[[cut]]\nname = "naph\\u001b]0;x\\u0007"\nend_c = 200\n[[cut]]\nname = "rest"\n')

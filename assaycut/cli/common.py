@@ -13,7 +13,6 @@ import functools
 import json
 import math
 import os
-import re
 import sys
 import warnings
 from pathlib import Path
@@ -22,6 +21,7 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import AssaycutError
+from ..text import escape_hidden
 
 EXIT_OK = 0
 """Exit code of success."""
@@ -33,19 +33,20 @@ EXIT_INTERNAL = 3
 """Exit code of an unexpected internal error."""
 
 
-_CONTROL = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
-
-
 def printable(text: str) -> str:
     """Text safe for a terminal: control characters (escape sequences, bells, carriage returns; not newline
-    or tab) shown as \\xNN, so that a file or crude name cannot drive the terminal.
+    or tab) and invisible Unicode format characters (bidi controls, zero-width spaces) shown escaped
+    (:func:`~assaycut.text.escape_hidden`), so that a file or crude name can neither drive the terminal nor
+    display as another.
 
     Examples
     --------
     >>> printable("crude\\x1b]0;owned\\x07.xlsx")
     'crude\\\\x1b]0;owned\\\\x07.xlsx'
+    >>> printable("Tarn\\u202eyvaeH.csv")
+    'Tarn\\\\u202eyvaeH.csv'
     """
-    return _CONTROL.sub(lambda m: f"\\x{ord(m.group(0)):02x}", text)
+    return escape_hidden(text)
 
 
 def say(text: str, err: bool = False) -> None:

@@ -7,6 +7,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import CutSetError
+from ..text import escape_hidden, has_hidden_characters
 
 
 @dataclass(frozen=True)
@@ -102,17 +103,6 @@ def normal_name(name: str) -> str:
     return unicodedata.normalize("NFKC", name).strip()
 
 
-def has_control_characters(text: str) -> bool:
-    """True when ``text`` holds a C0 or C1 control character (a line break, an escape, a bell...).
-
-    Examples
-    --------
-    >>> has_control_characters("naphtha"), has_control_characters("naph\\x1btha")
-    (False, True)
-    """
-    return any(ord(ch) < 32 or 127 <= ord(ch) < 160 for ch in text)
-
-
 def validate_cut_set(cuts: list[Cut], label: str) -> None:
     """Refuse empty or oversized sets, long or duplicate names, missing ends and cut points that do not
     increase."""
@@ -127,8 +117,10 @@ def validate_cut_set(cuts: list[Cut], label: str) -> None:
         if len(c.name) > MAX_NAME_CHARS:
             raise CutSetError(f"{label}: cut {i + 1}'s name is {len(c.name)} characters long; at most "
                               f"{MAX_NAME_CHARS} are accepted")
-        if has_control_characters(c.name):
-            raise CutSetError(f"{label}: cut {i + 1}'s name holds a control character; use plain text")
+        if has_hidden_characters(c.name):
+            raise CutSetError(f"{label}: cut {i + 1}'s name holds a control character or an invisible one ("
+                              f"{escape_hidden(c.name)[:60]!r}: line break, escape, bidi control, zero-width "
+                              f"space...); use plain text")
         if c.end_c is not None and (isinstance(c.end_c, bool) or not isinstance(c.end_c, (int, float, np.floating))
                                     or not np.isfinite(c.end_c)):
             raise CutSetError(f"{label}: cut {c.name!r} ends at {c.end_c!r}; expected a finite TBP in °C")

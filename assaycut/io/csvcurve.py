@@ -11,10 +11,10 @@ import csv
 import hashlib
 import io
 import os
-import re
 
 from ..errors import InputError
 from ..model.assay import Assay
+from ..text import replace_hidden
 from .cells import SourceLocation, gravity_from_inputs, parse_curve_rows, read_bytes
 from .layout import MAX_CELLS, MAX_COLUMNS, MAX_NAME_CHARS, MAX_ROWS
 
@@ -116,6 +116,6 @@ def read_curve_csv(path: str, *, api: float | None = None, sg: float | None = No
     if sulfur is not None and not 0.0 <= sulfur <= 15.0:
         raise InputError(f"--sulfur {sulfur:g} is outside 0-15 wt %", file=path)
     stem = os.path.splitext(os.path.basename(path))[0]
-    stem = re.sub(r"[\x00-\x1f\x7f-\x9f]", "_", stem)[:MAX_NAME_CHARS] or "curve"  # a file name is not a name
+    stem = replace_hidden(stem)[:MAX_NAME_CHARS] or "curve"  # a file name is not a name: hidden characters go
     return Assay(name=name or stem, sg=sgv, sulfur_wt_pct=sulfur, curves=[curve], source=path,
                  sha256=hashlib.sha256(data).hexdigest(), gravity_inputs=grav)

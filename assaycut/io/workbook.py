@@ -9,11 +9,11 @@ import zipfile
 
 import numpy as np
 
-from ..cutting.cutset import has_control_characters
 from ..errors import InputError
 from ..methods.blending_indices import RULES
 from ..model.assay import Assay, CurveData, LightEnds, NarrowCuts
 from ..model.lightends import find_component, known_labels
+from ..text import escape_hidden, has_hidden_characters
 from ..units import api_to_sg, density15_to_sg, to_celsius
 from .cells import (
     SourceLocation,
@@ -367,8 +367,10 @@ def _read_crude(ws, loc: SourceLocation):
     if not name:
         raise loc.err("no crude name: add a row 'name | <crude name>'")
     for key, text in (("name", name), ("origin", origin)):
-        if has_control_characters(text):
-            raise loc.err(f"the crude {key} holds a control character (e.g. a line break); use plain text")
+        if has_hidden_characters(text):
+            raise loc.err(f"the crude {key} holds a control character or an invisible one "
+                          f"({escape_hidden(text)[:60]!r}: line break, escape, bidi control, zero-width space...); "
+                          f"use plain text")
     if len(name) > MAX_NAME_CHARS or len(origin) > MAX_NAME_CHARS:
         raise loc.err(f"the crude {'name' if len(name) > MAX_NAME_CHARS else 'origin'} is "
                       f"{max(len(name), len(origin))} characters long; at most {MAX_NAME_CHARS} are accepted")

@@ -12,6 +12,7 @@ from ..cutting.limits import is_lower_bound
 from ..files import safe_text
 from ..methods.blending_indices import VISCOSITY
 from ..methods.d86 import D86_STD
+from ..text import replace_hidden
 from ..units import pct_text, residual_text
 
 LABELS = {
@@ -332,7 +333,7 @@ def md(text) -> str:
     import html
     import re
 
-    t = re.sub(r"[\x00-\x1f\x7f-\x9f]", " ", str(text))
+    t = replace_hidden(str(text), " ")
     t = html.escape(t, quote=False).replace("|", "/")
     return re.sub(r"([\\`*_\[\]#!~])", r"\\\1", t)
 

@@ -4,6 +4,7 @@ injection; formulas in inputs are never evaluated."""
 from __future__ import annotations
 
 import csv
+import json
 import os
 import shutil
 import signal
@@ -188,6 +189,19 @@ def test_markdown_summary_escapes_names(tmp_path, book):
     q = book(set_cell("crude", 2, 1, "Evil\n# injected"), name="nl.xlsx")
     r = runner.invoke(app, ["yields", str(q), "--out", str(tmp_path / "q")])
     assert r.exit_code == 2 and "control character" in r.stderr
+
+
+def test_a_curve_file_name_with_hidden_characters_gives_a_plain_crude_name(tmp_path):
+    # U+2066 (left-to-right isolate) and U+200B (zero-width space) in a file name: the crude name made from it
+    # has "_" in their place (JSON and reports), and the file name is printed escaped, never raw.
+    p = tmp_path / "Selkie\u2066Light\u200b.csv"
+    p.write_text("vol_pct,temp_c\n2,20\n10,90\n30,180\n50,270\n70,380\n90,520\n")  # invented curve
+    r = runner.invoke(app, ["yields", str(p), "--api", "33", "--json"])
+    assert r.exit_code == 0, r.stderr
+    assert json.loads(r.stdout)["assay"]["name"] == "Selkie_Light_"
+    r = runner.invoke(app, ["yields", str(p)])  # no --api: the error line names the file
+    assert r.exit_code == 2
+    assert "Selkie\\u2066Light\\u200b.csv" in r.stderr and "\u2066" not in r.stderr and "\u200b" not in r.stderr
 
 
 def test_library_warnings_never_reach_stderr(capsys):
