@@ -18,6 +18,7 @@ no referrer and no caching.  Bodies are JSON, at most :data:`MAX_BODY_BYTES`; a 
 
 from __future__ import annotations
 
+import asyncio
 import hmac
 import json
 from importlib import resources
@@ -27,6 +28,15 @@ from .session import Explorer, RequestError, parse_cut_request
 
 MAX_BODY_BYTES = 16_384
 """Largest request body accepted (a cut request of 100 cuts with long names is about 10 kB). [bytes]"""
+HEADER_TIMEOUT_S = 5.0
+"""Time a connection has to send a request's headers, from its first byte (or from connecting) [s]; a slower one
+is closed, so that unfinished requests cannot hold the server's connections."""
+BODY_TIMEOUT_S = 5.0
+"""Time a request has to send its body [s]; a slower one gets 408."""
+SHUTDOWN_TIMEOUT_S = 2.0
+"""Longest wait for requests in progress when the explorer is stopped [s]."""
+MAX_CONNECTIONS = 64
+"""Connections served at once; more get 503 (common practice for a one-user local server, no source)."""
 ALLOWED_HOSTS = ("127.0.0.1", "localhost")
 """Host names the server answers to (it listens on 127.0.0.1 only)."""
 STATIC_FILES = {"explorer.js": "text/javascript; charset=utf-8", "explorer.css": "text/css; charset=utf-8",
@@ -93,23 +103,33 @@ class _Guard:
 
 
 async def _json_body(request):
-    """The request's JSON body, refusing a wrong content type (415), a body over MAX_BODY_BYTES (413) and
-    text that is not JSON (400)."""
+    """The request's JSON body, refusing a wrong content type (415), a body over MAX_BODY_BYTES (413), one
+    slower than BODY_TIMEOUT_S (408) and text that is not JSON or nested past Python's recursion limit (400)."""
     ctype = request.headers.get("content-type", "").split(";")[0].strip().lower()
     if ctype != "application/json":
         raise RequestError("the body must be JSON (Content-Type: application/json)", status=415)
     declared = request.headers.get("content-length")
-    if declared is not None and (not declared.isdigit() or int(declared) > MAX_BODY_BYTES):
+    if declared is not None and (not declared.isdigit() or len(declared) > 9 or int(declared) > MAX_BODY_BYTES):
         raise RequestError(f"the body is larger than {MAX_BODY_BYTES} bytes", status=413)
     body = bytearray()
-    async for chunk in request.stream():
-        body += chunk
-        if len(body) > MAX_BODY_BYTES:
-            raise RequestError(f"the body is larger than {MAX_BODY_BYTES} bytes", status=413)
+
+    async def read():
+        async for chunk in request.stream():
+            body.extend(chunk)
+            if len(body) > MAX_BODY_BYTES:
+                raise RequestError(f"the body is larger than {MAX_BODY_BYTES} bytes", status=413)
+
+    try:
+        await asyncio.wait_for(read(), BODY_TIMEOUT_S)
+    except TimeoutError:
+        raise RequestError(f"the body did not arrive within {BODY_TIMEOUT_S:g} s", status=408) from None
     try:
         return json.loads(body.decode("utf-8"))
     except (UnicodeDecodeError, ValueError) as exc:
         raise RequestError(f"the body is not valid JSON ({str(exc)[:80]})") from None
+    except RecursionError:  # nested deeper than Python's recursion limit
+        raise RequestError("the body's JSON is nested too deeply; a request is "
+                           '{"assay": NAME, "ends": {CUT: TEMP_C}}') from None
 
 
 def make_app(explorer: Explorer, token: str):
@@ -216,9 +236,75 @@ def listening_socket(port: int = 0):
 
 
 def serve(app, sock) -> None:
-    """Serve ``app`` on the bound socket until Ctrl-C or SIGTERM (uvicorn, quiet: no access log)."""
+    """Serve ``app`` on the bound socket until Ctrl-C or SIGTERM (uvicorn, silent: no access or warning log).
+
+    Bounded so that it always stops and never stalls: headers within :data:`HEADER_TIMEOUT_S` (:func:`_timed_http`),
+    bodies within :data:`BODY_TIMEOUT_S`, at most :data:`MAX_CONNECTIONS`; a stop waits at most
+    :data:`SHUTDOWN_TIMEOUT_S` for requests in progress, and a second Ctrl-C or SIGTERM during that wait ends the
+    process at once (exit 130 or 143) with the explorer's last line and no traceback."""
+    import os
+    import signal
+    import sys
+
     import uvicorn
 
-    config = uvicorn.Config(app, log_level="warning", access_log=False, lifespan="off",
-                            limit_concurrency=32, timeout_keep_alive=5, server_header=False)
-    uvicorn.Server(config).run(sockets=[sock])
+    class Server(uvicorn.Server):
+        def handle_exit(self, sig, frame):
+            if self.should_exit:  # the second signal: leave now, quietly
+                sys.stderr.write("assaycut explorer stopped\n")
+                sys.stderr.flush()
+                os._exit(130 if sig == signal.SIGINT else 143)
+            super().handle_exit(sig, frame)
+
+    config = uvicorn.Config(app, http=_timed_http(), log_level="critical", access_log=False, lifespan="off",
+                            limit_concurrency=MAX_CONNECTIONS, timeout_keep_alive=5, server_header=False,
+                            timeout_graceful_shutdown=SHUTDOWN_TIMEOUT_S)
+    Server(config).run(sockets=[sock])
+
+
+def _timed_http():
+    """uvicorn's h11 protocol with a header deadline: a connection that has not sent a whole request head
+    :data:`HEADER_TIMEOUT_S` after connecting (or after the first byte of its next request) is closed.
+    uvicorn itself times out only idle keep-alive connections."""
+    from uvicorn.protocols.http.h11_impl import H11Protocol
+
+    class TimedH11(H11Protocol):
+        _deadline = None
+
+        def _awaiting_head(self) -> bool:
+            return self.cycle is None or self.cycle.response_complete
+
+        def _arm(self) -> None:
+            if self._deadline is None:
+                self._deadline = self.loop.call_later(HEADER_TIMEOUT_S, self._expire)
+
+        def _disarm(self) -> None:
+            if self._deadline is not None:
+                self._deadline.cancel()
+                self._deadline = None
+
+        def _expire(self) -> None:
+            self._deadline = None
+            if self._awaiting_head() and not self.transport.is_closing():
+                self.transport.close()
+
+        def connection_made(self, transport):
+            super().connection_made(transport)
+            self._arm()
+
+        def data_received(self, data: bytes) -> None:
+            super().data_received(data)
+            if self._awaiting_head():
+                self._arm()
+            else:
+                self._disarm()
+
+        def on_response_complete(self) -> None:
+            self._disarm()  # idle from here: uvicorn's keep-alive timeout applies
+            super().on_response_complete()
+
+        def connection_lost(self, exc) -> None:
+            self._disarm()
+            super().connection_lost(exc)
+
+    return TimedH11

@@ -41,6 +41,11 @@ class LoadedCrude:
     model: object
 
 
+MAX_REQUEST_TEMP_C = 1e6
+"""Largest cut point a request may carry [°C] (the cut set's own range check follows); a huge integer is
+refused here, before any conversion to float could overflow."""
+
+
 def parse_cut_request(doc, names: list[str], need_assay: bool = True) -> tuple[str | None, dict[str, float]]:
     """The crude name and the cut points of a request body ``{"assay": NAME, "ends": {CUT: TEMP_C, ...}}``.
 
@@ -82,8 +87,10 @@ def parse_cut_request(doc, names: list[str], need_assay: bool = True) -> tuple[s
         raise RequestError("'ends' must be an object {CUT: TEMP_C}")
     out: dict[str, float] = {}
     for cut, t in ends.items():
-        if isinstance(t, bool) or not isinstance(t, (int, float)) or not math.isfinite(t):
-            raise RequestError(f"ends[{cut[:80]!r}] must be a finite TBP in °C; found {str(t)[:40]!r}")
+        if isinstance(t, bool) or not isinstance(t, (int, float)) or abs(t) > MAX_REQUEST_TEMP_C \
+                or not math.isfinite(t):
+            shown = str(t)[:40] if not isinstance(t, int) or abs(t) < 10 ** 40 else f"a number of {len(str(t))} digits"
+            raise RequestError(f"ends[{cut[:80]!r}] must be a finite TBP in °C; found {shown!r}")
         out[cut] = float(t)
     return name, out
 

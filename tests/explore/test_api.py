@@ -181,6 +181,9 @@ def test_report_workbook_holds_the_cut_points_asked_for(client):
     (b'{"assay": 3, "ends": {}}', 400, "name of a loaded crude"),
     (b'{"ends": {}}', 400, "name of a loaded crude"),
     ("{\"assay\": \"Selkie Light\", \"ends\": {\"kerosene\": 240}}".encode("utf-16"), 400, "not valid JSON"),
+    (b'{"assay": "Selkie Light", "ends": ' + b"[" * 5000 + b"]" * 5000 + b"}", 400, "nested too deeply"),
+    (b'{"assay": "Selkie Light", "ends": {"kerosene": 1' + b"0" * 399 + b"}}", 400, "a number of 400 digits"),
+    (b'{"assay": "Selkie Light", "ends": {"kerosene": 1' + b"0" * 5000 + b"}}", 400, "not valid JSON"),
 ])
 def test_bad_bodies_get_a_one_line_4xx(client, body, status, words):
     r = client.post("/api/cut", headers={**auth(), "Content-Type": "application/json"}, content=body)

@@ -73,3 +73,72 @@ def test_a_port_in_use_is_one_line_and_exit_2():
                            text=True, timeout=60)
     assert r.returncode == 2 and r.stdout == ""
     assert r.stderr.count("\n") == 1 and f"--port {busy}" in r.stderr and "Traceback" not in r.stderr
+
+
+# -- an explorer that always stops and never stalls (common practice for servers, no source) -----------------
+def _stalled_post(port: int, token: str) -> socket.socket:
+    """A POST that promises 1000 bytes of body and sends 10."""
+    s = socket.create_connection(("127.0.0.1", port), timeout=15)
+    s.sendall(f"POST /api/cut HTTP/1.1\r\nHost: 127.0.0.1\r\nAuthorization: Bearer {token}\r\n"
+              f"Content-Type: application/json\r\nContent-Length: 1000\r\n\r\n{{\"assay\":".encode())
+    return s
+
+
+def test_a_stalled_body_gets_408_and_never_keeps_the_explorer_from_stopping():
+    from assaycut.explore.server import BODY_TIMEOUT_S, SHUTDOWN_TIMEOUT_S
+
+    with running_explorer() as (_, port, token, proc):
+        s = _stalled_post(port, token)
+        t0 = time.monotonic()
+        answer = s.recv(4096).decode("latin-1")
+        assert answer.startswith("HTTP/1.1 408"), answer
+        assert BODY_TIMEOUT_S - 0.5 < time.monotonic() - t0 < BODY_TIMEOUT_S + 3
+        s.close()
+        held = _stalled_post(port, token)  # before: still running 40 s after SIGINT
+        time.sleep(0.3)
+        proc.send_signal(signal.SIGINT)
+        t0 = time.monotonic()
+        code = proc.wait(15)
+        assert time.monotonic() - t0 < SHUTDOWN_TIMEOUT_S + 2
+        held.close()
+        err = proc.stderr.read()
+        assert code == 0 and "Traceback" not in err and err.strip().endswith("assaycut explorer stopped"), err
+
+
+def test_a_second_ctrl_c_stops_at_once_and_quietly():
+    with running_explorer() as (_, port, token, proc):
+        held = _stalled_post(port, token)  # keeps the first stop waiting
+        time.sleep(0.3)
+        proc.send_signal(signal.SIGINT)
+        time.sleep(0.3)
+        proc.send_signal(signal.SIGINT)
+        t0 = time.monotonic()
+        code = proc.wait(15)
+        assert time.monotonic() - t0 < 1.0
+        held.close()
+        err = proc.stderr.read()
+        assert code == 130 and "Traceback" not in err and "Error" not in err, err
+        assert err.strip().splitlines()[-1] == "assaycut explorer stopped"
+
+
+def test_unfinished_headers_cannot_lock_the_explorer_out():
+    # 70 connections that never finish their headers, and no token: more than the server takes at once.  They
+    # are closed after the header deadline, a legitimate request is then served, and nothing is logged.
+    from assaycut.explore.server import HEADER_TIMEOUT_S, MAX_CONNECTIONS
+
+    with running_explorer() as (_, port, token, proc):
+        idle = []
+        for _ in range(MAX_CONNECTIONS + 6):
+            c = socket.create_connection(("127.0.0.1", port), timeout=15)
+            c.sendall(b"GET /api/assays HTTP/1.1\r\nHost: 127.0.0.1\r\nX-Slow: ")
+            idle.append(c)
+        time.sleep(HEADER_TIMEOUT_S + 1.0)
+        assert all(c.recv(100) == b"" for c in idle)  # the server closed every one of them
+        status, _ = get(f"http://127.0.0.1:{port}/api/assays", token)
+        assert status == 200
+        for c in idle:
+            c.close()
+        proc.send_signal(signal.SIGINT)
+        proc.wait(15)
+        err = proc.stderr.read()
+        assert "WARNING" not in err and "Exceeded" not in err and "Traceback" not in err, err
