@@ -441,6 +441,10 @@ _xml_case("bad_boolean_cell", "distillation", _sub(b'<c r="B8" t="n"><v>150</v><
           r"sheet 'distillation'")
 _xml_case("bad_style_index", "distillation", _sub(b'<c r="B8" t="n"><v>150</v></c>', b'<c r="B8" s="999"><v>150</v></c>'),
           None)  # a style that does not exist changes no value: the number is read as it is
+_xml_case("integer_of_400_digits", "distillation", _sub(b"<v>70</v>", b"<v>1" + b"0" * 399 + b"</v>"),
+          r"sheet 'distillation', row 7, column 'temp_c': found a number of 400 digits; expected a number")
+_xml_case("integer_of_5000_digits", "distillation", _sub(b"<v>70</v>", b"<v>1" + b"0" * 4999 + b"</v>"),
+          r"sheet 'distillation'.*damaged sheet XML")
 _xml_case("truncated_sheet", "distillation", lambda x: x[: len(x) // 2], r"sheet 'distillation'.*damaged sheet XML")
 
 

@@ -68,6 +68,8 @@ def to_number(v, loc: SourceLocation, row: int, column: str, *, allow_empty: boo
         raise loc.err("empty cell; expected a number", row, column)
     if isinstance(v, bool):
         raise loc.err(f"found {v!r}; expected a number", row, column)
+    if isinstance(v, int) and abs(v) > 10 ** 300:  # beyond any float's reach: float() would overflow
+        raise loc.err(f"found a number of {len(str(abs(v)))} digits; expected a number", row, column)
     if isinstance(v, (int, float, np.integer, np.floating)):
         x = float(v)
     elif isinstance(v, str) and v.strip().startswith("="):
