@@ -221,7 +221,7 @@ LimitsOpt = Annotated[Optional[Path], typer.Option("--limits", help="Product-lim
                                                     "fuel specs). Shipped values are from memory.",
                                                     dir_okay=False)]
 RateOpt = Annotated[Optional[float], typer.Option("--rate", help="Crude run [bbl/d]: adds each cut's bbl_per_day, "
-                                                 "m3_per_day and t_per_day.", min=1e-9, metavar="BBL_PER_DAY")]
+                                                 "m3_per_day and t_per_day.", min=1e-9, max=1e8, metavar="BBL_PER_DAY")]
 PricesOpt = Annotated[Optional[Path], typer.Option("--prices", help="Price file (TOML): [products] price per cut "
                                                     "per_bbl or per_t, optional [crudes] prices.", dir_okay=False)]
 EndOpt = Annotated[Optional[list[str]], typer.Option("--end", help="Override one cut's end: NAME=TEMP_C. "
@@ -246,15 +246,16 @@ def parse_ends(items: list[str] | None, option: str = "--end", what: str = "a te
     """{cut name: number} from NAME=VALUE texts (``--end diesel=350``, ``--overlap diesel=25``)."""
     out: dict[str, float] = {}
     for it in items or []:
+        shown = it if len(it) <= 60 else it[:57] + "..."
         if "=" not in it:
-            raise AssaycutError(f"{option} {it!r}: expected NAME=VALUE, e.g. {option} diesel=350")
+            raise AssaycutError(f"{option} {shown!r}: expected NAME=VALUE, e.g. {option} diesel=350")
         name, _, val = it.rpartition("=")
         try:
             t = float(val)
         except ValueError:
-            raise AssaycutError(f"{option} {it!r}: {val!r} is not {what}") from None
+            t = math.nan
         if not math.isfinite(t):
-            raise AssaycutError(f"{option} {it!r}: {val!r} is not {what}")
+            raise AssaycutError(f"{option} {shown!r}: the value is not {what}")
         if not name.strip():
             raise AssaycutError(f"{option} {it!r}: the cut name is empty")
         out[name.strip()] = t

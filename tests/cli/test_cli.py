@@ -95,7 +95,7 @@ def test_end_override_moves_only_neighbours():
 
 def test_end_override_errors():
     cli_error(["yields", "--end", "dieselx=360"], r"no cut named 'dieselx'")
-    cli_error(["yields", "--end", "diesel=abc"], r"--end 'diesel=abc': 'abc' is not a temperature")
+    cli_error(["yields", "--end", "diesel=abc"], r"--end 'diesel=abc': the value is not a temperature")
     cli_error(["yields", "--end", "diesel=200"], r"cut points must increase")
 
 
