@@ -598,12 +598,12 @@ _price_case("prices_1001_crudes", "[products]\n" + _ALL + '"vacuum residue" = { 
             r"1001 prices in \[crudes\]; a price file holds at most 1000 per table")
 
 
-@case("rate_of_400_digits", r"Invalid value for '--rate': Input should be less than or equal to 100000000")
+@case("usage_rate_of_400_digits", r"Invalid value for '--rate': Input should be less than or equal to 100000000")
 def _(d):  # before: accepted as an infinite crude run (exit 0)
     return ["yields", "--rate", "1" + "0" * 400, "--json"], []
 
 
-@case("end_of_400_digits", r"--end 'diesel=10{49}\.\.\.': the value is not a temperature")
+@case("usage_end_of_400_digits", r"--end 'diesel=10{49}\.\.\.': the value is not a temperature")
 def _(d):  # the message quotes the option shortened, not 400 digits
     return ["yields", "--end", "diesel=1" + "0" * 400], []
 
