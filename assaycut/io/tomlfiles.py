@@ -31,9 +31,9 @@ TOML_MAX_ENTRIES = 1000
 _SPECIAL = re.compile(r"[\"'#]")
 _BASIC_REST = re.compile(r'(?:[^"\\\n]|\\.)*+"')
 """The rest of a one-line basic string after its opening quote (possessive: never backtracks)."""
-_DOTTED = re.compile(r"[\w-]+(?:[ \t]*\.[ \t]*[\w-]+)*")
-"""A run of dot-joined parts (strings already replaced by one letter); greedy and never failing, so a scan
-with it is linear."""
+_DOTTED = re.compile(r"(?<![\w-])(?:[\w-]++[ \t]*+\.[ \t]*+){%d}[\w-]" % TOML_MAX_KEY_PARTS)
+"""More than TOML_MAX_KEY_PARTS dot-joined parts (strings already replaced by one letter).  Tried only at the
+start of a part, possessive and bounded, so a search is linear in the text and needs no large stack."""
 
 
 def _bare(text: str) -> str:
@@ -73,7 +73,7 @@ def _bounded(text: str, path: str) -> None:
     nesting deeper than :data:`TOML_MAX_DEPTH`; linear in the text.  Strings are replaced by one letter first
     (:func:`_bare`), so that a quoted key part counts and a dot or bracket inside a string does not."""
     bare = _bare(text)
-    if any(m.group(0).count(".") >= TOML_MAX_KEY_PARTS for m in _DOTTED.finditer(bare)):
+    if _DOTTED.search(bare):
         raise InputError(f"a dotted key of more than {TOML_MAX_KEY_PARTS} parts; a cut, limits or price file has "
                          f"short keys", file=path)
     depth = deepest = 0
