@@ -39,11 +39,14 @@ def explore(
     """
     import secrets
 
-    try:
+    try:  # checked before anything is printed: the page's address must not appear for a server that cannot run
+        import starlette  # noqa: F401
+        import uvicorn  # noqa: F401
+
         from ..explore.server import listening_socket, make_app, serve
     except ImportError as exc:
-        raise AssaycutError(f"the explorer needs its web server ({exc.name} is not installed): "
-                            "pip install 'assaycut[explore]'") from None
+        raise AssaycutError(f"the explorer needs its web server ({exc.name} is not installed): reinstall assaycut "
+                            "(pip install .), which installs starlette and uvicorn") from None
     from ..explore.session import Explorer
     from ..io.tomlfiles import demo_assay_paths
 

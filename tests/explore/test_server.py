@@ -142,3 +142,34 @@ def test_unfinished_headers_cannot_lock_the_explorer_out():
         proc.wait(15)
         err = proc.stderr.read()
         assert "WARNING" not in err and "Exceeded" not in err and "Traceback" not in err, err
+
+
+NO_STARLETTE = r'''
+import sys
+sys.modules["starlette"] = None  # as on a machine where it is missing: importing it raises ImportError
+from assaycut import cli
+sys.argv = ["assaycut", "explore"]
+cli.main()
+'''
+
+
+def test_a_missing_web_server_is_said_before_any_address():
+    # Before: the page's address was printed, then the run died with exit 3 "unexpected ModuleNotFoundError".
+    r = subprocess.run([sys.executable, "-c", NO_STARLETTE], capture_output=True, text=True, timeout=60)
+    assert r.returncode == 2 and r.stdout == ""
+    assert r.stderr.strip().splitlines() == [
+        "assaycut: error: the explorer needs its web server (starlette is not installed): reinstall assaycut "
+        "(pip install .), which installs starlette and uvicorn"]
+
+
+def test_the_base_install_carries_the_web_server():
+    # `pip install .` (the README's first command) must give a working explorer: the server packages are base
+    # dependencies, each with one version floor in the whole file.
+    import tomllib
+    from pathlib import Path
+
+    meta = tomllib.loads((Path(__file__).parents[2] / "pyproject.toml").read_text())["project"]
+    base = {d.split(">")[0].split("=")[0].strip().lower(): d for d in meta["dependencies"]}
+    assert "starlette" in base and "uvicorn" in base
+    extras = [d for group in meta.get("optional-dependencies", {}).values() for d in group]
+    assert not [d for d in extras if d.lower().startswith(("starlette", "uvicorn"))]
