@@ -45,6 +45,7 @@ app = typer.Typer(
          "distillation conversions and reports. Results are estimates for screening and planning, not "
          "measured properties. With no command, runs the yield report on the demo assay.",
     add_completion=False,
+    context_settings={"help_option_names": ["-h", "--help"]},  # inherited by every command
     no_args_is_help=False,
     pretty_exceptions_enable=False,
     rich_markup_mode=None,
@@ -53,8 +54,18 @@ for _family in (yields_cmd, convert_cmd, compare_cmd, blend_cmd, cutpoints_cmd, 
     app.add_typer(_family.app)
 
 
+def _show_version(value: bool) -> None:
+    if value:
+        from .. import __version__
+
+        typer.echo(f"assaycut {__version__}")
+        raise typer.Exit()
+
+
 @app.callback(invoke_without_command=True)
-def _root(ctx: typer.Context) -> None:
+def _root(ctx: typer.Context,
+          version: bool = typer.Option(False, "--version", help="Print the version and exit.",
+                                       callback=_show_version, is_eager=True)) -> None:
     """Bare `assaycut` runs the yield report on the demo assay."""
     if ctx.invoked_subcommand is None:
         ctx.invoke(yields_cmd.yields, assays=None, cuts=None, limits=None, out=None, json_out=False, end=None,

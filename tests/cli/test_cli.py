@@ -361,3 +361,15 @@ def test_exit_codes_are_consistent(args, code, tmp_path):
     # The README's exit codes: 0 ok, 1 no feasible answer or a failed check, 2 bad input.
     r = CliRunner().invoke(cli_app(), args + ["--out", str(tmp_path)])
     assert r.exit_code == code, (r.stdout, r.stderr)
+
+
+def test_version_and_short_help():
+    # `--version` prints the installed distribution's version (package metadata, built from pyproject.toml),
+    # and `-h` is `--help` on the root and on every command (common practice for command-line tools, no source)
+    from importlib.metadata import version
+
+    r = runner.invoke(app, ["--version"])
+    assert r.exit_code == 0 and r.stdout == f"assaycut {version('assaycut')}\n"
+    for cmd in ([], ["yields"], ["compare"], ["convert"], ["explore"], ["sweep"]):
+        short, long = runner.invoke(app, [*cmd, "-h"]), runner.invoke(app, [*cmd, "--help"])
+        assert short.exit_code == 0 and short.stdout == long.stdout and "Usage:" in short.stdout
