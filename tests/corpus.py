@@ -608,6 +608,12 @@ def _(d):  # the message quotes the option shortened, not 400 digits
     return ["yields", "--end", "diesel=1" + "0" * 400], []
 
 
+@case("limits_unknown_name", r"nonsense: file not found; give a limits file, or a shipped set: 'blendstock', "
+                             r"'finished'$")
+def _(d):
+    return ["yields", "--limits", "nonsense", "--json"], []
+
+
 @case("convert_nan", r"'50=nan': expected PERCENT=TEMP with finite numbers")
 def _(d):
     return ["convert", "10=100", "50=nan", "90=300", "--json"], []

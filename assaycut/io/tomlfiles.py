@@ -267,6 +267,9 @@ def read_limits(path: str | None = None) -> list[Limit]:
         name = SHIPPED_LIMITS.get(path or "blendstock")
         ref = resources.files("assaycut.data").joinpath(name)
         return limits_from_dicts(tomllib.loads(ref.read_text(encoding="utf-8")).get("limit", []), name)
+    if not Path(path).exists():
+        raise InputError(f"file not found; give a limits file, or a shipped set: "
+                         f"{', '.join(repr(k) for k in SHIPPED_LIMITS)}", file=path)
     doc = _load(path)
     unknown = set(doc) - {"limit"}
     if unknown:
