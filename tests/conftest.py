@@ -22,6 +22,19 @@ settings.register_profile("explore", database=None)
 settings.load_profile("explore" if os.environ.get("ASSAYCUT_HYPOTHESIS") == "explore" else "fixed")
 
 
+ROOT = Path(__file__).resolve().parent.parent
+"""The checkout (tests name its files by absolute paths: each test runs in a folder of its own)."""
+
+
+@pytest.fixture(autouse=True)
+def _run_in_a_folder_of_its_own(tmp_path_factory, monkeypatch):
+    """Every test runs with a fresh temporary folder as its working folder, so that a command run without
+    --out writes its report there (``reports/``), never into the checkout.  Subprocesses started by a test
+    find the ``tests`` package through PYTHONPATH."""
+    monkeypatch.chdir(tmp_path_factory.mktemp("cwd"))
+    monkeypatch.setenv("PYTHONPATH", os.pathsep.join(filter(None, [str(ROOT), os.environ.get("PYTHONPATH")])))
+
+
 @pytest.fixture
 def good_book(tmp_path) -> Path:
     return write_book(tmp_path / "good.xlsx", base_sheets())

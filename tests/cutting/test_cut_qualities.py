@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import numpy as np
 import pytest
 
@@ -175,7 +177,7 @@ def test_residue_viscosities_at_100_and_135_c():
     from assaycut.io import load_assay
     from assaycut.cutting.cut_qualities import residue_viscosities
 
-    a = load_assay("assaycut/data/tarn_heavy.xlsx")
+    a = load_assay(str(Path(__file__).parents[2] / "assaycut" / "data" / "tarn_heavy.xlsx"))
     rows = run_yields(a, default_cut_set()).cuts.rows()
     res = rows[-1]
     assert np.isnan(res["viscosity_40c_cst"]) and "viscosity_135c_cst" in res["estimated"]

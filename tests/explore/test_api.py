@@ -8,6 +8,8 @@ The reference for every answer is outside the server: the CLI's ``yields --end .
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import io
 import json
 
@@ -23,7 +25,7 @@ from assaycut.io import load_assay
 from assaycut.io.tomlfiles import demo_assay_paths, read_cut_set, read_limits, read_prices
 
 TOKEN = "test-token-0123456789abcdef"
-PRICES = "assays_demo/prices_demo.toml"
+PRICES = str(Path(__file__).parents[2] / "assays_demo" / "prices_demo.toml")
 
 
 @pytest.fixture(scope="module")

@@ -7,6 +7,8 @@ installing Chromium in .ci/run), when a missing browser fails it.
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import json
 import os
 import shutil
@@ -36,7 +38,7 @@ def test_drag_a_handle_and_the_yields_follow(tmp_path):
     assert CHROMIUM, "ASSAYCUT_REQUIRE_BROWSER=1 but no chromium is installed"
     from playwright.sync_api import sync_playwright
 
-    with running_explorer("--prices", "assays_demo/prices_demo.toml") as (url, port, token, _), sync_playwright() as p:
+    with running_explorer("--prices", str(Path(__file__).parents[2] / "assays_demo" / "prices_demo.toml")) as (url, port, token, _), sync_playwright() as p:
         browser = p.chromium.launch(executable_path=CHROMIUM, args=FLAGS)
         try:
             page = browser.new_page(viewport={"width": 1500, "height": 1000}, accept_downloads=True)
