@@ -53,14 +53,38 @@ def assay_from_toml(path: Path) -> Assay:
                  light_ends=LightEnds(le, basis), extras=extras, notes=[crude["notes"]])
 
 
-def main() -> None:
-    pkg = HERE.parent / "assaycut" / "data"
+FIXED_TIME = "2026-01-01T00:00:00Z"
+"""The creation and modification time written into every demo workbook, so that a build is byte for byte
+the same on every run and machine (and the demo's sha256 with it)."""
+
+
+def deterministic(path: Path) -> None:
+    """Rewrite a workbook with fixed document times and zip entry times (1980-01-01, the zip format's
+    earliest), keeping its parts and their order."""
+    import re
+    import zipfile
+
+    with zipfile.ZipFile(path) as z:
+        parts = [(i.filename, z.read(i.filename)) for i in z.infolist()]
+    stamp = re.compile(rb"(<dcterms:(created|modified)[^>]*>)[^<]*(</dcterms:\2>)")
+    with zipfile.ZipFile(path, "w", zipfile.ZIP_DEFLATED) as z:
+        for name, data in parts:
+            if name == "docProps/core.xml":
+                data = stamp.sub(lambda m: m.group(1) + FIXED_TIME.encode() + m.group(3), data)
+            z.writestr(zipfile.ZipInfo(name, date_time=(1980, 1, 1, 0, 0, 0)), data,
+                       compress_type=zipfile.ZIP_DEFLATED)
+
+
+def main(out: Path = HERE, package: Path | None = HERE.parent / "assaycut" / "data") -> None:
+    """Build the demo workbooks into ``out`` (and copy them into ``package``, unless None)."""
     for stem in ORDER:
         assay = assay_from_toml(HERE / f"{stem}.toml")
-        out = HERE / f"{stem}.xlsx"
-        write_assay_workbook(assay, str(out))
-        shutil.copyfile(out, pkg / out.name)
-        print(f"wrote {out.relative_to(HERE.parent)} and assaycut/data/{out.name}")
+        book = Path(out) / f"{stem}.xlsx"
+        write_assay_workbook(assay, str(book))
+        deterministic(book)
+        if package is not None:
+            shutil.copyfile(book, package / book.name)
+        print(f"wrote {book}" + (f" and {package / book.name}" if package is not None else ""))
 
 
 if __name__ == "__main__":
