@@ -90,7 +90,14 @@ def settle_stage(stage: Path) -> bool:
 
 
 def pid_alive(pid: int) -> bool:
-    """Whether a process ``pid`` exists (one of another user counts)."""
+    """Whether process ``pid`` runs.  On Linux from /proc: a zombie (killed, not yet reaped) does not run;
+    elsewhere, whether the process exists (one of another user counts)."""
+    if os.path.isdir("/proc/self"):
+        try:
+            with open(f"/proc/{pid}/stat", "rb") as fh:
+                return fh.read().rsplit(b")", 1)[1].split()[0] not in (b"Z", b"X")
+        except (OSError, IndexError):
+            return False
     try:
         os.kill(pid, 0)
     except ProcessLookupError:
@@ -100,13 +107,19 @@ def pid_alive(pid: int) -> bool:
     return True
 
 
+def owner_gone(name: str, prefix: str, dead: frozenset[int] = frozenset()) -> bool:
+    """Whether ``name`` is ``<prefix><pid>-<random>`` of a process that no longer runs (or is in ``dead``:
+    processes just killed): the temporary folders of assaycut runs carry their writer's pid so."""
+    m = re.fullmatch(re.escape(prefix) + r"(\d+)-\w+", name)
+    return m is not None and (int(m.group(1)) in dead or not pid_alive(int(m.group(1))))
+
+
 def settle_stale_stages(folder: Path, dead: frozenset[int] = frozenset()) -> None:
     """Settle the staging folders in ``folder`` left by writers that no longer run (a killed run, or the pids
     in ``dead``: worker processes just killed); those of a live writer are left alone."""
     with contextlib.suppress(OSError):
         for stage in Path(folder).glob(f"{glob.escape(STAGE_PREFIX)}*"):
-            m = re.fullmatch(re.escape(STAGE_PREFIX) + r"(\d+)-[0-9a-f]+", stage.name)
-            if m and stage.is_dir() and (int(m.group(1)) in dead or not pid_alive(int(m.group(1)))):
+            if stage.is_dir() and owner_gone(stage.name, STAGE_PREFIX, dead):
                 settle_stage(stage)
 
 

@@ -113,18 +113,16 @@ def new_claims(root: Path) -> str:
 def drop_stale_claims() -> None:
     """Remove the claims folders of this user left in the temporary folder by runs that no longer run (a
     SIGKILL gives a run no chance to remove its own)."""
-    import re
     import shutil
     import tempfile
 
-    from ..files import pid_alive
+    from ..files import owner_gone
 
     tmp = tempfile.gettempdir()
     with contextlib.suppress(OSError):
         for name in os.listdir(tmp):
-            m = re.fullmatch(re.escape(CLAIMS_PREFIX) + r"(\d+)-\w+", name)
             path = os.path.join(tmp, name)
-            if m and not pid_alive(int(m.group(1))) and os.lstat(path).st_uid == os.getuid():
+            if owner_gone(name, CLAIMS_PREFIX) and os.lstat(path).st_uid == os.getuid():
                 shutil.rmtree(path, ignore_errors=True)
 
 
@@ -376,23 +374,12 @@ def kill_pools() -> None:
                 proc.kill()
                 KILLED.add(proc.pid)
                 procs.append(proc.pid)
+    from ..files import pid_alive
+
     t_end = time.monotonic() + 1.0
     while procs and time.monotonic() < t_end:
-        procs = [p for p in procs if _running(p)]
+        procs = [p for p in procs if pid_alive(p)]
         time.sleep(0.01)
-
-
-def _running(pid: int) -> bool:
-    """Whether a process runs (a zombie does not; without /proc, whether it exists)."""
-    try:
-        with open(f"/proc/{pid}/stat", "rb") as fh:
-            return fh.read().rsplit(b")", 1)[1].split()[0] not in (b"Z", b"X")
-    except (OSError, IndexError):
-        if os.path.exists("/proc/self"):
-            return False  # gone
-        from ..files import pid_alive
-
-        return pid_alive(pid)
 
 
 AT_STOP.extend([kill_pools, settle_claimed, release_claims])  # Ctrl-C, SIGTERM: kill the workers, settle, drop

@@ -132,7 +132,8 @@ def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min
     from ..report.console import blend_plan_text
     from ..report.jsonout import blend_plan_json
     from ..report.studyreports import blend_plan_workbook, plot_blend_plan
-    from ..report.write import place_files, png_bytes
+    from ..files import place_set
+    from ..report.write import png_bytes
     from ..studies.blend_optimizer import BlendTargets, optimize_blend
     from ..yields import run_yields
 
@@ -159,6 +160,6 @@ def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min
     blend_plan_workbook(plan).save(buf)
     files = {"blend_plan.png": png_bytes(plot_blend_plan, plan), "blend_plan.xlsx": buf.getvalue(),
              "blend_plan.json": (json.dumps(blend_plan_json(plan), indent=2, ensure_ascii=False) + "\n").encode()}
-    written = place_files(folder, files, tuple(p for p, _, _ in parents))
+    written = place_set(folder, files, tuple(p for p, _, _ in parents))
     lines = blend_plan_text(plan) + [f"  Plan written to {written[0].parent} (blend_plan.json, .xlsx, .png)"]
     return plan, parents, lines

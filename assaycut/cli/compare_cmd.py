@@ -71,13 +71,14 @@ def compare(
     inside = _inside_bands(results) if uncertainty else []
     if out is not None or not json_out:
         from ..report.studyreports import compare_workbook, plot_compare
-        from ..report.write import place_files, png_bytes
+        from ..files import place_set
+        from ..report.write import png_bytes
 
         buf = io.BytesIO()
         compare_workbook(results, table, worth, ps.currency if ps else None, products).save(buf)
         files = {"comparison.xlsx": buf.getvalue(), "comparison_yields.png": png_bytes(plot_compare, table)}
         inputs = tuple(paths) + tuple(str(x) for x in (cuts, limits, prices) if x)
-        written = place_files(out or Path("reports") / "compare", files, inputs)
+        written = place_set(out or Path("reports") / "compare", files, inputs)
     if json_out:
         from ..report.jsonout import compare_json
 

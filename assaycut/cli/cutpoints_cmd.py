@@ -71,10 +71,11 @@ def vectors(
         entries.append((a.name, base, deltas))
         if out is not None or not json_out:
             from ..report.studyreports import vectors_files
-            from ..report.write import place_files, slug
+            from ..files import place_set
+            from ..report.write import slug
 
             folder = out if out is not None and len(paths) == 1 else (out or Path("reports")) / slug(a.name)
-            written += place_files(folder, vectors_files(a.name, base, deltas, VECTOR_STEP_C), (p,))
+            written += place_set(folder, vectors_files(a.name, base, deltas, VECTOR_STEP_C), (p,))
     if json_out:
         from ..report.jsonout import vectors_json
 
@@ -124,11 +125,12 @@ def shift(
         return
     from ..report.console import shift_text, written_text
     from ..report.studyreports import shift_csv
-    from ..report.write import place_files, slug
+    from ..files import place_set
+    from ..report.write import slug
 
     say(f"{a.name}: cut-point change " + ", ".join(f"{k} -> {v:g} °C" for k, v in parse_ends(end).items()))
     say(shift_text(delta))
-    written = place_files(out or Path("reports") / slug(a.name), {f"{slug(a.name)}_shift.csv": shift_csv(delta)},
+    written = place_set(out or Path("reports") / slug(a.name), {f"{slug(a.name)}_shift.csv": shift_csv(delta)},
                           (path,))
     say(written_text(written))
 
@@ -161,13 +163,14 @@ def sweep(
     df = do_sweep(build_model(a), cs, end, t_from, t_to, step)
     if out is not None or not json_out:
         from ..report.studyreports import plot_sweep, sweep_headers
-        from ..report.write import csv_text, place_files, png_bytes, slug
+        from ..files import place_set
+        from ..report.write import csv_text, png_bytes, slug
 
         rel = [x for x in lim if x.cut in (df.attrs["lower"], df.attrs["upper"])]
         base = f"{slug(a.name)}_sweep_{slug(end)}"
         files = {f"{base}.csv": csv_text(sweep_headers(df), df.values.tolist()).encode("utf-8"),
                  f"{base}.png": png_bytes(plot_sweep, df, a.name, rel)}
-        written = place_files(out or Path("reports") / slug(a.name), files, (path,))
+        written = place_set(out or Path("reports") / slug(a.name), files, (path,))
     if json_out:
         from ..report.jsonout import sweep_json
 
@@ -242,13 +245,14 @@ def optimize(
     what = f"{maximize} yield" if maximize else "gross product worth"
     if tables:
         from ..report.studyreports import plot_optimum
-        from ..report.write import place_files, png_bytes, slug
+        from ..files import place_set
+        from ..report.write import png_bytes, slug
 
         title = f"{a.name}: maximise {what} inside the product limits (estimates)"
         files = {f"{slug(a.name)}_optimum.png": png_bytes(plot_optimum, res, res.variables, title=title,
                                                            objective_label=f"{what} [{unit}]",
                                                            before=before.cuts, after=after.cuts)}
-        written = place_files(out or Path("reports") / slug(a.name), files, (path,))
+        written = place_set(out or Path("reports") / slug(a.name), files, (path,))
     if json_out:
         from ..report.jsonout import optimum_json
 

@@ -56,13 +56,6 @@ def csv_body(rows: list[list], escaped: bool = False) -> str:
     return buf.getvalue()
 
 
-def place_files(outdir: Path, files: dict[str, bytes], inputs: tuple[str, ...],
-                family: tuple[str, ...] = ()) -> list[Path]:
-    """Write a set of rendered files into ``outdir`` whole or not at all (:func:`~assaycut.files.place_set`;
-    ``family``: the names of this kind of report that go when the new set lacks them)."""
-    return place_set(Path(outdir), files, inputs, family)
-
-
 def png_bytes(plot, first, *rest, **kwargs) -> bytes:
     """PNG bytes of ``plot(first, target, *rest, **kwargs)``, a plot function that draws into ``target``."""
     buf = io.BytesIO()
@@ -105,7 +98,7 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (),
         files[f"{base}_qualities.png"] = png_bytes(plots.plot_qualities, result)
     if result.products is not None:
         files[f"{base}_products.png"] = png_bytes(plots.plot_products, result)
-    return place_files(outdir, files, inputs, (f"{base}_qualities.png", f"{base}_products.png"))
+    return place_set(outdir, files, inputs, (f"{base}_qualities.png", f"{base}_products.png"))
 
 
 def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
@@ -133,4 +126,4 @@ def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
     files = {"library_summary.xlsx": book,
              "library_summary.csv": csv_text(heads, rows).encode("utf-8"),
              "library_long.csv": (csv_text(LONG_COLUMNS, []) + long_text).encode("utf-8")}
-    return place_files(folder, files, tuple(inputs))
+    return place_set(folder, files, tuple(inputs))
