@@ -10,7 +10,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import AssaycutError
-from .common import AT_STOP, ProgressBar, progress_bar
+from .common import AT_STOP, ProgressBar, load, progress_bar
 
 PARALLEL_MIN = 50
 """Batches of at least this many assays use worker processes (when the machine has more than one core)."""
@@ -171,10 +171,7 @@ def run_one(path: str, job: YieldJob, progress=None, map_fn=map):
 
 
 def _load(path: str, job: YieldJob):
-    from ..io import load_assay
-
-    api, sg, density, sulfur = job.gravity
-    return load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
+    return load(path, *job.gravity)
 
 
 def _failure(path: str, exc: Exception) -> str:

@@ -13,8 +13,13 @@ import typer
 from ..errors import AssaycutError
 from .common import (
     EXIT_NO_ANSWER,
+    ApiOpt,
     CutsOpt,
+    DensOpt,
     PricesOpt,
+    SgOpt,
+    SulfurOpt,
+    check_whole_crude,
     echo_lines,
     guarded,
     load,
@@ -76,6 +81,10 @@ def blend(
                                                            help="Target: a cut's yield at least PCT vol %. "
                                                                 "Repeatable.")] = None,
     cuts: CutsOpt = None,
+    api: ApiOpt = None,
+    sg: SgOpt = None,
+    density: DensOpt = None,
+    sulfur: SulfurOpt = None,
 ) -> None:
     """Blend crudes into a new assay workbook that every command can read, or (--optimize) find the blend.
 
@@ -98,7 +107,7 @@ def blend(
         raise AssaycutError(f"{out}: the blend is written as an assay workbook; give a path ending in .xlsx")
     if optimize_:  # every file is written before anything is printed (a closed pipe must not lose them)
         plan, parents, lines = _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield,
-                                               cuts, out.parent if out is not None else Path("reports") / "blend")
+                                               cuts, (api, sg, density, sulfur), out.parent if out is not None else Path("reports") / "blend")
         if plan.feasible and out is not None:
             chosen = [(a, m, plan.shares_pct[a.name]) for _, a, m in parents if plan.shares_pct[a.name] > 1e-6]
             total = sum(x for _, _, x in chosen)
@@ -114,9 +123,10 @@ def blend(
     if out is None:
         raise AssaycutError("give --out NEW.xlsx for the blended assay")
     items = _parse_shares(shares)
+    check_whole_crude([p for p, _ in items], api, sg, density, sulfur)
     parents = []
     for path, pct in items:
-        a = load(path)
+        a = load(path, api, sg, density, sulfur)
         parents.append((a, build_model(a), pct))
     new = do_blend(parents, basis=basis.value, name=name, shrinkage=shrinkage)
     write_assay_workbook(new, str(out), inputs=tuple(p for p, _ in items))
@@ -126,7 +136,8 @@ def blend(
     say(f"Assay workbook written to {out}")
 
 
-def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield, cuts, folder: Path):
+def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield, cuts, whole: tuple,
+                    folder: Path):
     """Run the blend optimiser for the CLI and print (and plot) its plan."""
     from ..model.crude import build_model
     from ..report.console import blend_plan_text
@@ -139,10 +150,11 @@ def _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min
 
     cs = load_cut_set(cuts, None)
     ps = load_prices(prices)
+    check_whole_crude([it.rpartition("=")[0] if "=" in it else it for it in shares], *whole)
     parents, bounds = [], {}
     for it in shares:
         path, sep, rng = it.rpartition("=") if "=" in it else (it, "", "")
-        a = load(path)
+        a = load(path, *whole)
         m = build_model(a)
         parents.append((path, a, m))
         if sep:

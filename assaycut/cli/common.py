@@ -230,11 +230,14 @@ ScaleOpt = Annotated[bool, typer.Option(
     "--scale-cuts", help="Scale the narrow cuts' density and sulfur proportionally so that they reproduce the whole "
                          "crude, instead of keeping them as measured and closing the balance on the part of the crude "
                          "they do not cover.")]
-ApiOpt = Annotated[Optional[float], typer.Option("--api", help="Whole-crude API gravity [°API], for a curve CSV.")]
-SgOpt = Annotated[Optional[float], typer.Option("--sg", help="Whole-crude SG 60/60 °F, for a curve CSV.")]
+ApiOpt = Annotated[Optional[float], typer.Option("--api", help="Whole-crude API gravity [°API], for each curve "
+                                                 "CSV given (a workbook carries its own).", metavar="API")]
+SgOpt = Annotated[Optional[float], typer.Option("--sg", help="Whole-crude SG 60/60 °F, for each curve CSV given.",
+                                                metavar="SG")]
 DensOpt = Annotated[Optional[float], typer.Option("--density", help="Whole-crude density at 15 °C [kg/m3], "
-                                                   "for a curve CSV.")]
-SulfurOpt = Annotated[Optional[float], typer.Option("--sulfur", help="Whole-crude sulfur [wt %], for a curve CSV.")]
+                                                   "for each curve CSV given.", metavar="KG_M3")]
+SulfurOpt = Annotated[Optional[float], typer.Option("--sulfur", help="Whole-crude sulfur [wt %], for each curve "
+                                                    "CSV given.", metavar="WT_PCT")]
 JsonOpt = Annotated[bool, typer.Option("--json", help="Print JSON on stdout.")]
 UncertOpt = Annotated[int, typer.Option("--uncertainty", metavar="DRAWS", min=0, max=5000,
                                         help="Monte Carlo draws for P10/P50/P90 bands under the assay's measurement "
@@ -316,14 +319,34 @@ def resolve_assays(paths: list[str] | None) -> list[str]:
 
 
 def load(path: str, api=None, sg=None, density=None, sulfur=None):
-    """The assay in ``path``; whole-crude figures for a curve CSV."""
+    """The assay in ``path``; whole-crude figures (``--api``, ``--sg``, ``--density``, ``--sulfur``) for a
+    curve CSV.  A workbook carries its own: given with one, they are refused (one line naming the file)."""
     from ..io import load_assay
 
+    if not is_curve_csv(path):  # the figures serve the curve CSVs of a mixed list (checked by check_whole_crude)
+        api = sg = density = sulfur = None
     return load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
 
 
-def load_one(assay: str | None):
-    """(path, assay) of the one assay a study command takes (the demo when none is given)."""
+def is_curve_csv(path: str) -> bool:
+    """True for a quick-curve CSV path (.csv or .txt), which takes its whole-crude data from the options."""
+    return str(path).lower().endswith((".csv", ".txt"))
+
+
+def check_whole_crude(paths: list[str], api=None, sg=None, density=None, sulfur=None) -> None:
+    """Refuse ``--api/--sg/--density/--sulfur`` when no curve CSV is among ``paths`` (a workbook carries its
+    own whole-crude data): one line naming the first workbook."""
+    given = [o for o, v in (("--api", api), ("--sg", sg), ("--density", density), ("--sulfur", sulfur))
+             if v is not None]
+    if given and paths and not any(is_curve_csv(p) for p in paths):
+        raise AssaycutError(f"{paths[0]}: {'/'.join(given)} appl{'y' if len(given) > 1 else 'ies'} to a curve CSV; a workbook carries its own "
+                            f"whole-crude data")
+
+
+def load_one(assay: str | None, api=None, sg=None, density=None, sulfur=None):
+    """(path, assay) of the one assay a study command takes (the demo when none is given), with the
+    whole-crude figures of a curve CSV (:func:`load`)."""
     path = resolve_assays([assay] if assay else None)[0]
-    return path, load(path)
+    check_whole_crude([path], api, sg, density, sulfur)
+    return path, load(path, api, sg, density, sulfur)
 

@@ -9,6 +9,11 @@ from typing import Annotated, Optional
 import typer
 
 from .common import (
+    ApiOpt,
+    DensOpt,
+    SgOpt,
+    SulfurOpt,
+    check_whole_crude,
     CutsOpt,
     EndOpt,
     JsonOpt,
@@ -45,6 +50,10 @@ def compare(
     end: EndOpt = None,
     uncertainty: UncertOpt = 0,
     rate: RateOpt = None,
+    api: ApiOpt = None,
+    sg: SgOpt = None,
+    density: DensOpt = None,
+    sulfur: SulfurOpt = None,
 ) -> None:
     """Compare crudes for crude selection: every assay cut with the same cut set, side by side.
 
@@ -61,10 +70,11 @@ def compare(
     from ..yields import run_yields
 
     paths = resolve_assays(assays)
+    check_whole_crude(paths, api, sg, density, sulfur)
     cs = load_cut_set(cuts, end)
     lim = load_limits(limits)
     ps = load_prices(prices)
-    results = [run_yields(load(p), cs, lim, uncertainty_draws=uncertainty, rate_bbl_per_day=rate) for p in paths]
+    results = [run_yields(load(p, api, sg, density, sulfur), cs, lim, uncertainty_draws=uncertainty, rate_bbl_per_day=rate) for p in paths]
     table = comparison_table(results)
     worth = worth_table(results, ps) if ps else None
     products = pd_concat([worth_by_product(r, ps) for r in results]) if ps else None

@@ -10,12 +10,17 @@ import typer
 from ..errors import AssaycutError
 from .common import (
     EXIT_NO_ANSWER,
+    ApiOpt,
     AssayArg,
     CutsOpt,
+    DensOpt,
     EndOpt,
     JsonOpt,
     LimitsOpt,
     PricesOpt,
+    SgOpt,
+    SulfurOpt,
+    check_whole_crude,
     echo_json,
     echo_lines,
     guarded,
@@ -45,6 +50,10 @@ def vectors(
     out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/. With "
                                                 "--json and no --out, no files are written.", file_okay=False)]
     = None,
+    api: ApiOpt = None,
+    sg: SgOpt = None,
+    density: DensOpt = None,
+    sulfur: SulfurOpt = None,
 ) -> None:
     """Base and delta vectors for planning models: each crude's base cut table, and for each cut point the
     change per °C of every cut's yields and qualities.
@@ -59,9 +68,10 @@ def vectors(
     cs = load_cut_set(cuts, None)
     lim = load_limits(limits)
     paths = resolve_assays(assays)
+    check_whole_crude(paths, api, sg, density, sulfur)
     entries, written = [], []
     for p in paths:
-        a = load(p)
+        a = load(p, api, sg, density, sulfur)
         base, deltas = cut_point_vectors(build_model(a), cs)
         if lim:
             from ..cutting.limits import check_limits
@@ -97,6 +107,10 @@ def shift(
     limits: LimitsOpt = None,
     json_out: JsonOpt = False,
     out: OutOpt = None,
+    api: ApiOpt = None,
+    sg: SgOpt = None,
+    density: DensOpt = None,
+    sulfur: SulfurOpt = None,
 ) -> None:
     """Show what a change of cut point moves: per-cut deltas in yield, SG, sulfur, D86, CCI, flash and limits.
 
@@ -113,7 +127,7 @@ def shift(
     base_cs = load_cut_set(cuts, None)
     new_cs = load_cut_set(cuts, end)
     lim = load_limits(limits)
-    path, a = load_one(assay)
+    path, a = load_one(assay, api, sg, density, sulfur)
     model = build_model(a)
     base = run_yields(a, base_cs, lim, model=model)
     new = run_yields(a, new_cs, lim, model=model)
@@ -147,6 +161,10 @@ def sweep(
     limits: LimitsOpt = None,
     out: OutOpt = None,
     json_out: JsonOpt = False,
+    api: ApiOpt = None,
+    sg: SgOpt = None,
+    density: DensOpt = None,
+    sulfur: SulfurOpt = None,
 ) -> None:
     """Sweep one cut point and show the yield and key qualities of the two neighbouring cuts.
 
@@ -159,7 +177,7 @@ def sweep(
 
     cs = load_cut_set(cuts, None)
     lim = load_limits(limits)
-    path, a = load_one(assay)
+    path, a = load_one(assay, api, sg, density, sulfur)
     df = do_sweep(build_model(a), cs, end, t_from, t_to, step)
     if out is not None or not json_out:
         from ..report.studyreports import plot_sweep, sweep_headers
@@ -204,6 +222,10 @@ def optimize(
              "ends.")] = None,
     out: OutOpt = None,
     json_out: JsonOpt = False,
+    api: ApiOpt = None,
+    sg: SgOpt = None,
+    density: DensOpt = None,
+    sulfur: SulfurOpt = None,
 ) -> None:
     """Find the cut points that maximise a product's yield (--maximize NAME) or the crude's worth
     (--prices FILE) while every product limit is met.
@@ -232,7 +254,7 @@ def optimize(
     lim = load_limits(limits)
     ps = load_prices(prices)
     mins = parse_ends(min_yield, option="--min-yield", what="a yield in vol %")
-    path, a = load_one(assay)
+    path, a = load_one(assay, api, sg, density, sulfur)
     model = build_model(a)
     with progress_bar("searching cut points") as bar:
         res = optimize_cut_points(model, cs, lim, maximize=maximize, prices=ps, span_c=span, min_yields=mins,

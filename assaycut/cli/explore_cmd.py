@@ -7,8 +7,8 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import AssaycutError
-from .common import CutsOpt, LimitsOpt, PricesOpt, TdMethod, guarded, load, load_cut_set, load_limits, load_prices, \
-    resolve_assays, say
+from .common import ApiOpt, CutsOpt, DensOpt, LimitsOpt, PricesOpt, SgOpt, SulfurOpt, TdMethod, check_whole_crude, \
+    guarded, load, load_cut_set, load_limits, load_prices, resolve_assays, say
 
 app = typer.Typer()
 
@@ -29,6 +29,10 @@ def explore(
     open_browser: Annotated[bool, typer.Option("--open", help="Open the page in the default browser.")] = False,
     method: Annotated[TdMethod, typer.Option("--method", help="TBP <-> D86 correlation for D86 input curves.")]
     = TdMethod.daubert_1994,
+    api: ApiOpt = None,
+    sg: SgOpt = None,
+    density: DensOpt = None,
+    sulfur: SulfurOpt = None,
 ) -> None:
     """Explore cut points in the browser: drag a cut point on the TBP curves and see yields on both bases,
     the cuts' qualities, the limits that flip and (with --prices) worth and margin move, for several crudes
@@ -51,11 +55,12 @@ def explore(
     from ..io.tomlfiles import demo_assay_paths
 
     paths = resolve_assays(assays) if assays else demo_assay_paths()
+    check_whole_crude(paths, api, sg, density, sulfur)
     if len(paths) > MAX_CRUDES:
         raise AssaycutError(f"{len(paths)} assays given; the explorer serves at most {MAX_CRUDES} (choose the "
                             f"candidates, or run `assaycut compare` or `yields --summary-only` over the library)")
     cs = load_cut_set(cuts, None)
-    explorer = Explorer([(p, load(p)) for p in paths], cs, load_limits(limits), load_prices(prices), method.value)
+    explorer = Explorer([(p, load(p, api, sg, density, sulfur)) for p in paths], cs, load_limits(limits), load_prices(prices), method.value)
     sock = listening_socket(port or 0)
     token = secrets.token_urlsafe(24)
     url = f"http://127.0.0.1:{sock.getsockname()[1]}/?token={token}"

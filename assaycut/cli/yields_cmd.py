@@ -29,7 +29,8 @@ from .common import (
     json_text,
     error_line,
     guarded,
-    load,
+    check_whole_crude,
+    load_one,
     load_cut_set,
     load_limits,
     resolve_assays,
@@ -103,6 +104,7 @@ def yields(
     cs = load_cut_set(cuts, end, overlap)
     lim = load_limits(limits)
     paths = resolve_assays(assays)
+    check_whole_crude(paths, api, sg, density, sulfur)
     inputs = tuple(paths) + tuple(str(x) for x in (cuts, limits) if x)
     write = out is not None or not json_out
     root = (out or Path("reports")) if write and not summary_only else None
@@ -184,8 +186,7 @@ def check(
     from ..model.crude import build_model
     from ..studies.assay_checks import check_assay
 
-    path = resolve_assays([assay] if assay else None)[0]
-    a = load(path, api, sg, density, sulfur)
+    path, a = load_one(assay, api, sg, density, sulfur)
     findings = check_assay(a, build_model(a, reconcile=scale_cuts))
     ok = not any(f.severity == "error" for f in findings)
     if json_out:
