@@ -94,9 +94,13 @@ def compare(
 
         echo_json(compare_json(results, worth, inside, WORTH_CAVEAT, products))
         return
-    from ..report.console import compare_text, written_text
+    from ..report.console import compare_text, warning_lines, written_text
+    from ..report.studyreports import whole_crude_rows
 
-    echo_lines(compare_text(table, worth, ps.currency if ps else None, WORTH_CAVEAT, inside, bool(uncertainty)))
+    echo_lines(compare_text(table, worth, ps.currency if ps else None, WORTH_CAVEAT, inside, bool(uncertainty),
+                            whole_crude_rows(results), rate))
+    for line in warning_lines(results):
+        say(line, err=True)
     say(written_text(written))
 
 

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import sys
 from pathlib import Path
 from typing import Annotated, Optional
 
@@ -116,6 +117,8 @@ def yields(
                    sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
                    unit=unit.value, claims=new_claims(root) if root is not None and len(paths) > 1 else "",
                    output=output, scale_cuts=scale_cuts)
+    if root is not None and len(paths) <= BRIEF_OVER and sys.stderr.isatty():  # a batch shows a progress bar
+        say("cutting and writing the report…", err=True)
     try:
         results, written, failures = run_batch(paths, job)
     finally:
@@ -153,16 +156,21 @@ def yields(
 
 def _print_report(results, written, n_cuts: int, unit: str = "C") -> None:
     """The cut tables (or a one-line summary for a large batch), warnings, the flash caution, the files."""
-    from ..report.console import FLASH_FOOTNOTE, written_text, yield_text
+    from ..report.console import FLASH_FOOTNOTE, warning_lines, written_text, yield_text
 
     if len(results) > BRIEF_OVER:
         say(f"{len(results)} assays cut with {n_cuts} cuts; see the library summary.")
     else:
         for r in results:
             echo_lines(yield_text(r, unit))
-            for w in r.warnings:
-                say(f"warning: {w}", err=True)
-    say(FLASH_FOOTNOTE)
+    from ..report.textgrid import wrap
+
+    say("")
+    echo_lines(wrap(FLASH_FOOTNOTE, indent="  "))
+    sys.stdout.flush()
+    for line in warning_lines(results, unit):  # before the last line, so that "written" ends the run
+        say(line, err=True)
+    sys.stderr.flush()
     if written:
         say(written_text(written))
 

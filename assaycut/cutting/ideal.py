@@ -266,12 +266,15 @@ def add_rates(cuts: CutTable, rate_bbl_per_day: float, crude_sg: float) -> CutTa
     Returns
     -------
     CutTable
-        A copy with ``bbl_per_day``, ``m3_per_day`` and ``t_per_day`` after ``cum_wt_pct``.
+        A copy with ``bbl_per_day``, ``m3_per_day`` and ``t_per_day`` after ``cum_wt_pct``, and the crude
+        run in ``attrs["rate_bbl_per_day"]``.
     """
     crude_t = rate_bbl_per_day * barrel_mass_t(crude_sg)
-    return cuts.with_columns("cum_wt_pct", {"bbl_per_day": rate_bbl_per_day * cuts["vol_pct"] / 100.0,
+    out = cuts.with_columns("cum_wt_pct", {"bbl_per_day": rate_bbl_per_day * cuts["vol_pct"] / 100.0,
                                             "m3_per_day": rate_bbl_per_day * BBL_M3 * cuts["vol_pct"] / 100.0,
                                             "t_per_day": crude_t * cuts["wt_pct"] / 100.0})
+    out.attrs["rate_bbl_per_day"] = float(rate_bbl_per_day)
+    return out
 
 
 def closure(cuts: CutTable) -> dict[str, float]:

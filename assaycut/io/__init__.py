@@ -42,9 +42,30 @@ def load_assay(path: str | os.PathLike, *, api: float | None = None, sg: float |
         raise InputError(f"unknown assay file type {'.' + ext if ext else '(no extension)'}; expected .xlsx "
                          f"(assay workbook) or .csv (quick curve)", file=path)
     data = read_bytes(path)
+    path = shown_path(path)  # what the messages and the reports call the file
     if ext in ("xlsx", "xlsm"):
         if any(v is not None for v in (api, sg, density, sulfur)):
             raise InputError("--api/--sg/--density/--sulfur apply to a curve CSV; a workbook carries its own "
                              "whole-crude data", file=path)
         return read_workbook(path, data)
     return read_curve_csv(path, api=api, sg=sg, density=density, sulfur=sulfur, data=data)
+
+
+def shown_path(path: str) -> str:
+    """The name a file goes by in messages and reports: a shipped demo assay by its file name alone (where
+    the package is installed is nobody's business), any other file as the user gave it.
+
+    Examples
+    --------
+    >>> from assaycut.io.tomlfiles import demo_assay_paths
+    >>> shown_path(demo_assay_paths()[0]), shown_path("assays/selkie_light.xlsx")
+    ('selkie_light.xlsx', 'assays/selkie_light.xlsx')
+    """
+    from importlib import resources
+
+    try:
+        here = os.path.realpath(os.path.dirname(path))
+        data = os.path.realpath(str(resources.files("assaycut.data")))
+    except (OSError, ValueError, TypeError):
+        return path
+    return os.path.basename(path) if here == data else path

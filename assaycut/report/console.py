@@ -3,12 +3,15 @@
 from __future__ import annotations
 
 import math
+import re
 
 from ..cutting.limits import is_lower_bound, limit_title
 from .studyreports import compare_wide
-from .tables import display_cuts, num, quality_text_table, text_table, unit_of
+from .precision import fixed, limit_decimals, limit_shown, shown
+from .tables import display_cuts, limits_in_unit, quality_text_table, text_table, unit_of
+from .textgrid import grid, wrap
 
-FLASH_FOOTNOTE = ("\n* Flash points are correlation estimates: measure them (ASTM D93). All results are screening "
+FLASH_FOOTNOTE = ("* Flash points are correlation estimates: measure them (ASTM D93). All results are screening "
                   "estimates; see the notes sheet of the report for methods and cautions.")
 
 
@@ -16,20 +19,24 @@ def yield_text(result, unit: str = "C") -> list[str]:
     """One assay's heading, cut table (temperatures in ``unit``, 'C' or 'F') and failed limits."""
     a = result.assay
     cuts = display_cuts(result.cuts, unit)
-    lines = [f"\n{a.name}  ({a.origin or 'origin not given'})  {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
-             + (f"{result.model.given_sulfur_wt_pct:.3f} wt %" if result.model.given_sulfur_wt_pct is not None else "n/a"),
+    s = result.model.given_sulfur_wt_pct
+    rate = result.cuts.attrs.get("rate_bbl_per_day")
+    lines = [f"\n{a.name}  ({a.origin or 'origin not given'})", f"{shown('api', a.api)} °API, SG {shown('sg', a.sg)}, "
+             f"sulfur {shown('sulfur_wt_pct', s) + ' wt %' if s is not None else 'not given'}"
+             + (f"; crude run {shown('bbl_per_day', rate)} bbl/d" if rate else ""),
              text_table(cuts)]
     q = quality_text_table(cuts)
     if q:
         lines += ["", q]
     if result.bands is not None:
         lines += ["", *bands_text(result.bands)]
-    fails = [x for x in result.limits.rows() if x["status"] == "fail"]
+    fails = [x for x in limits_in_unit(result.limits.rows(), unit) if x["status"] == "fail"]
     if fails:
-        lines.append("Limits failed: " + "; ".join(f"{limit_title(x['cut'], x['label'] or x['property'])} "
-                                                   f"({_limit_value(x)}, "
-                                                   f"needs {x['limit']})"
-                                                   for x in fails))
+        lines.append("Limits failed:")
+        for x in fails:
+            u = "" if x["unit"] == "-" else " " + x["unit"]
+            lines += wrap(f"  {limit_title(x['cut'], x['label'] or x['property'])}: {_limit_value(x)}{u}, needs "
+                          f"{x['limit']}{u}", indent="    ")
     return lines
 
 
@@ -37,20 +44,77 @@ def bands_text(bands) -> list[str]:
     """P10/P50/P90 of each cut's volume and weight yield under the measurement uncertainty, and the
     assumptions behind them."""
     head = ["Cut", "vol % P10", "P50", "P90", "wt % P10", "P50", "P90"]
-    body = [[r["name"]] + [num(r[f"{q}_p{p}"], 2) for q in ("vol_pct", "wt_pct") for p in (10, 50, 90)]
+    body = [[r["name"]] + [shown(q, r[f"{q}_p{p}"]) for q in ("vol_pct", "wt_pct") for p in (10, 50, 90)]
             for r in bands.rows()]
-    widths = [max(len(str(x)) for x in col) for col in zip(head, *body)]
-    fmt = [str.ljust] + [str.rjust] * 6
     lines = [f"Yield bands under the measurement uncertainty ({bands.attrs['draws']} draws, "
              f"{bands.attrs['failed']} failed):"]
-    lines += ["  ".join(f(str(x), w) for f, x, w in zip(fmt, row, widths)).rstrip() for row in [head] + body]
+    lines += grid(head, body, rule=False)
     lines.append(f"  {bands.attrs['sigmas']}")
     return lines
 
 
 def _limit_value(x: dict) -> str:
-    """A checked limit's value as printed: '≥ 95' for a recovery past the D86 estimate, else 2 decimals."""
-    return "≥ 95" if is_lower_bound(x["property"], x["value"]) else num(x["value"], 2)
+    """A checked limit's value as printed: '≥ 95' for a recovery past the D86 estimate, else one decimal more
+    than the limit (:func:`~.precision.limit_shown`)."""
+    return "≥ 95" if is_lower_bound(x["property"], x["value"]) else limit_shown(x["value"], x["limit"])
+
+
+WARNING_WIDTH = 150
+"""Longest printed warning [characters]; the full text is in the report's notes sheet and the JSON."""
+
+
+def short_warning(text: str, width: int = WARNING_WIDTH) -> str:
+    """A warning as the terminal prints it: parenthesised detail removed, then cut at a word boundary to
+    ``width`` characters with '…' (the full text stays in the notes sheet and the JSON).
+
+    Examples
+    --------
+    >>> short_warning("cut(s) vacuum residue depend on the fitted extension (they reach above 78 vol %)")
+    'cut(s) vacuum residue depend on the fitted extension'
+    """
+    out, depth = [], 0
+    for k, ch in enumerate(text):
+        if ch == "(" and (depth or k == 0 or not text[k - 1].isalnum()):  # "cut(s)" keeps its "(s)"
+            depth += 1
+        elif ch == ")" and depth:
+            depth -= 1
+        elif not depth:
+            out.append(ch)
+    t = " ".join("".join(out).split()).replace(" ,", ",").replace(" :", ":").replace(" ;", ";").rstrip(" ,;:")
+    if not t:
+        t = " ".join(text.split())
+    if len(t) > width:
+        t = t[:width - 1].rsplit(" ", 1)[0].rstrip(" ,;:") + "…"
+    return t
+
+
+def warning_lines(results, unit: str = "C") -> list[str]:
+    """Each distinct warning of a run once, shortened (:func:`short_warning`), its temperatures in ``unit``
+    ('C' or 'F'), naming the crudes it concerns ("all 3 crudes" when every crude of a run of several has
+    it), wrapped to the terminal; a last line says where the full texts are when any was shortened."""
+    groups: dict[str, list[str]] = {}
+    cut = False
+    for r in results:
+        name = r.assay.name if hasattr(r, "assay") else r.name
+        for w in r.warnings:
+            s = short_warning(w)
+            if unit == "F":
+                s = _TEMP_C.sub(lambda m: f"{float(m.group(1)) * 1.8 + 32.0:.{len(m.group(2) or '.')-1}f} °F", s)
+            cut = cut or s != " ".join(w.split())
+            crudes = groups.setdefault(s, [])
+            if name not in crudes:
+                crudes.append(name)
+    n = len(results)
+    lines = []
+    for text, crudes in groups.items():
+        who = f"all {n} crudes" if n > 1 and len(crudes) == n else ", ".join(crudes)
+        lines += wrap(f"warning: {who}: {text}", indent="  ")
+    if cut:
+        lines += wrap("(warnings shortened: the full texts are in each report's notes sheet and in --json)")
+    return lines
+
+
+_TEMP_C = re.compile(r"(-?\d+(\.\d+)?) ?°C")
 
 
 def written_text(written, what: str = "Report") -> str:
@@ -60,10 +124,29 @@ def written_text(written, what: str = "Report") -> str:
     return f"{what} written to {shown} ({len(written)} file{'' if len(written) == 1 else 's'})."
 
 
+SEVERITY_ORDER = ("error", "warning", "info")
+"""The order findings are printed in."""
+
+
 def check_text(name: str, findings, ok: bool) -> list[str]:
-    """The assay check: a verdict line, then one line per finding."""
-    return [f"{name}: {'OK' if ok else 'ERRORS FOUND'}"] + [f"  {f.severity.upper():8s} {f.where}: {f.message}"
-                                                           for f in findings]
+    """The assay check: a headline counting errors and warnings, then the findings, errors first, each once,
+    wrapped to the terminal."""
+    seen, rows = set(), []
+    for f in sorted(findings, key=lambda f: SEVERITY_ORDER.index(f.severity)):
+        if (f.severity, f.where, f.message) not in seen:
+            seen.add((f.severity, f.where, f.message))
+            rows.append(f)
+    count = {s: sum(f.severity == s for f in rows) for s in SEVERITY_ORDER}
+
+    def n(k, word):
+        return f"{k} {word}{'' if k == 1 else 's'}"
+
+    head = (f"{name}: {'no errors' if ok else n(count['error'], 'ERROR')}, {n(count['warning'], 'warning')}, "
+            f"{n(count['info'], 'note')}")
+    lines = [head]
+    for f in rows:
+        lines += wrap(f"  {f.severity.upper():8s} {f.where}: {f.message}", indent=" " * 11)
+    return lines
 
 
 def convert_text(frm: str, to: str, used: str, src: dict, out: dict, unit: str, c_to_unit,
@@ -84,25 +167,36 @@ def convert_text(frm: str, to: str, used: str, src: dict, out: dict, unit: str, 
     return lines
 
 
-def compare_text(table, worth, currency: str | None, caveat: str, inside, uncertainty: bool) -> list[str]:
-    """Crudes side by side, the worth ranking, and the yield differences inside the uncertainty bands."""
-    crudes, rows = compare_wide(table)
-    w = max(len(c) for c in crudes) + 2
-    lines = [f"{'Cut':<16}{'Quality':<22}" + "".join(f"{c:>{w}}" for c in crudes)]
-    for r in rows:
-        vals = "".join(f"{(num(v, 3) if isinstance(v, float) else (v or '-')):>{w}}" for v in r[2:])
-        lines.append(f"{r[0]:<16}{r[1]:<22}{vals}")
+def compare_text(table, worth, currency: str | None, caveat: str, inside, uncertainty: bool, whole=None,
+                 rate: float | None = None) -> list[str]:
+    """Crudes side by side (one column per crude, fitted to the terminal), the worth ranking (per day with a
+    crude run ``rate`` [bbl/d]), and the yield differences inside the uncertainty bands.  ``whole``: the
+    whole-crude rows (:func:`~.studyreports.whole_crude_rows`)."""
+    crudes, rows = compare_wide(table, whole)
+    body = [[r[0], r[1]] + [shown(r[2], v) if isinstance(v, float) else (v or "-") for v in r[3:]] for r in rows]
+    lines = grid(["Cut", "Quality"] + crudes, body, keep=2)
+    if any(r[2] == "extrapolated" and "yes" in r[3:] for r in rows):
+        lines += wrap("Extrapolated yes: the cut rests partly on the curve's fitted extension")
     if worth is not None:
         basis = worth.attrs.get("ranked_by", "worth_per_bbl")
         why = ("ranked by margin per bbl: every crude has a price" if basis == "margin_per_bbl" else
                "ranked by worth per bbl: not every crude has a price, so margins cannot all be compared")
-        lines.append(f"\nGross product worth and margin [{currency}], {why} -- {caveat}")
+        lines += ["", f"Gross product worth and margin [{currency}], {why}"]
+        day = rate is not None and "worth_per_day" in worth
+        head = ["#", "Crude", "worth/bbl", "worth/t", "margin/bbl", "margin/t"] + (["worth/d", "margin/d"] if day
+                                                                                 else [])
+        body = []
         for r in worth.to_dict("records"):
-            m = r["margin_per_bbl"]
-            lines.append(f"  {r['rank']}. {r['crude']:<24} worth {num(r['worth_per_bbl'], 2):>8}/bbl "
-                         f"{num(r['worth_per_t'], 2):>8}/t"
-                         + (f"   margin {num(m, 2, signed=True):>7}/bbl {num(r['margin_per_t'], 2, signed=True):>7}/t"
-                            if m == m else "   margin -  (no crude price)"))
+            row = [str(r["rank"]), r["crude"], fixed(r["worth_per_bbl"], 2), fixed(r["worth_per_t"], 2),
+                   fixed(r["margin_per_bbl"], 2, signed=True), fixed(r["margin_per_t"], 2, signed=True)]
+            body.append(row + ([fixed(r["worth_per_day"], 0), fixed(r["margin_per_day"], 0, signed=True)] if day
+                               else []))
+        lines += grid(head, body, align="rl" + "r" * (len(head) - 2), keep=2)
+        if day:
+            lines.append(f"per day at a crude run of {shown('bbl_per_day', rate)} bbl/d")
+        if worth["margin_per_bbl"].isna().any():
+            lines.append("margin '-': no crude price given")
+        lines += wrap(caveat)
     if uncertainty:
         lines.append("\nYield differences inside the P10-P90 bands (not significant under the assumed measurement "
                      "uncertainty):")
@@ -121,34 +215,41 @@ def blend_plan_text(plan) -> list[str]:
         lines.append("  binding targets: " + "; ".join(plan.binding))
     for t in plan.targets:
         marg = "" if t["marginal_per_unit"] is None else \
-            f", marginal value {num(t['marginal_per_unit'], 4, signed=True)} per {t['unit']}"
-        lines.append(f"  {t['target']}: achieved {num(t['achieved'], 3)}, slack {num(t['slack'], 3)} {t['unit']}{marg}")
+            f", marginal value {fixed(t['marginal_per_unit'], 2, signed=True)} per {t['unit']}"
+        lines.append(f"  {t['target']}: achieved {fixed(t['achieved'], 2)}, slack {fixed(t['slack'], 2)} {t['unit']}"
+                     f"{marg}")
     for lab, amount in plan.shortfalls.items():
         unit = "°API" if "API" in lab else ("wt %" if "sulfur" in lab else "vol %")
         how = "exceeded by" if "<=" in lab else "short by"
-        lines.append(f"  target not met: {lab}, {how} {num(amount, 3)} {unit}")
+        lines.append(f"  target not met: {lab}, {how} {fixed(amount, 2)} {unit}")
     lines.append("  Linear blending rules (no shrinkage); worth ignores operating costs and unit limits.")
     return lines
 
 
 def blend_text(new) -> list[str]:
     """A blend written as a new assay: its gravity and sulfur, and its notes."""
-    return ([f"Blend {new.name}: {new.api:.1f} °API, SG {new.sg:.4f}, sulfur "
-             + (f"{new.sulfur_wt_pct:.3f} wt %" if new.sulfur_wt_pct is not None else "n/a")]
+    s = new.sulfur_wt_pct
+    return ([f"Blend {new.name}: {shown('api', new.api)} °API, SG {shown('sg', new.sg)}, sulfur "
+             + (f"{shown('sulfur_wt_pct', s)} wt %" if s is not None else "not given")]
             + [f"  {n}" for n in new.notes])
 
 
+SWEEP_COLUMNS = [("vol_pct", "vol %"), ("wt_pct", "wt %"), ("sg", "SG"), ("sulfur_wt_pct", "S wt %"),
+                 ("d86_10_c", "D86 10 °C"), ("d86_95_c", "D86 95 °C"), ("cetane_index_d4737", "CCI"),
+                 ("flash_c_est", "Flash °C*")]
+"""The qualities a printed sweep shows for each of the two cuts."""
+
+
 def sweep_text(crude: str, df) -> list[str]:
-    """A cut-point sweep as a table: yields, SG, D86 at the boundary and the flash estimate per step."""
-    lines = [f"{crude}: cut point between {df.attrs['lower']!r} and {df.attrs['upper']!r}",
-             f"{'cut °C':>7} {'lower vol%':>10} {'upper vol%':>10} {'lower SG':>9} {'upper SG':>9} "
-             f"{'lower D86 95':>12} {'upper D86 10':>12} {'upper flash*':>12}"]
-    for r in df.to_dict("records"):
-        lines.append(f"{num(r['cut_point_c']):>7} {num(r['lower_vol_pct'], 2):>10} {num(r['upper_vol_pct'], 2):>10} "
-                     f"{num(r['lower_sg'], 4):>9} {num(r['upper_sg'], 4):>9} {num(r['lower_d86_95_c']):>12} "
-                     f"{num(r['upper_d86_10_c']):>12} {num(r['upper_flash_c_est']):>12}")
-    lines.append("* flash estimates must be measured (ASTM D93).")
-    return lines
+    """A cut-point sweep as a table fitted to the terminal: for the cut below and the cut above the moving
+    point, yields on both bases, SG, sulfur, D86 10 % and 95 %, cetane index and the flash estimate."""
+    lo, up = df.attrs["lower"], df.attrs["upper"]
+    cols = [(side, q, h) for side in ("lower", "upper") for q, h in SWEEP_COLUMNS if f"{side}_{q}" in df]
+    head = ["Cut °C"] + [f"{'lo' if side == 'lower' else 'up'} {h}" for side, _, h in cols]
+    body = [[shown("cut_point_c", r["cut_point_c"])] + [shown(q, r[f"{side}_{q}"]) for side, q, _ in cols]
+            for r in df.to_dict("records")]
+    return ([f"{crude}: cut point between {lo!r} (lo) and {up!r} (up)"] + grid(head, body)
+            + ["* flash estimates must be measured (ASTM D93)."])
 
 
 def optimum_text(crude: str, what: str, unit: str, res, cut_set, before=None, after=None) -> list[str]:
@@ -157,68 +258,76 @@ def optimum_text(crude: str, what: str, unit: str, res, cut_set, before=None, af
     lines = [f"{crude}: maximise {what}"]
     moved = set(res.var_index)
     yields = before is not None and after is not None
-    head = f"{'cut':<18}{'start end point °C':>20}"
-    head += f"{'optimum end point °C':>22}" if res.feasible else ""
-    head += (f"{'start vol %':>13}" + (f"{'optimum vol %':>15}" if res.feasible else "")) if yields else ""
-    lines.append(head)
+    head = ["Cut", "start end °C"] + (["optimum end °C"] if res.feasible else [])
+    head += (["start vol %"] + (["optimum vol %"] if res.feasible else [])) if yields else []
+    head.append("")
+    body = []
     for k, c in enumerate(cut_set.cuts):
         ends = k < len(res.ends_c)
-        row = f"{c.name:<18}" + (f"{res.start_ends_c[k]:20.1f}" if ends else f"{'end of curve':>20}")
+        row = [c.name, shown("end_c", res.start_ends_c[k]) if ends else "end"]
         if res.feasible:
-            row += f"{res.ends_c[k]:22.1f}" if ends else f"{'end of curve':>22}"
+            row.append(shown("end_c", res.ends_c[k]) if ends else "end")
         if yields:
-            row += f"{num(before['vol_pct'][k], 2):>13}"
-            row += f"{num(after['vol_pct'][k], 2):>15}" if res.feasible else ""
-        if ends and k not in moved:
-            row += "  (held)"
-        elif ends and res.feasible and abs(res.ends_c[k] - res.start_ends_c[k]) > 1e-9:
-            row += "  *"
-        lines.append(row)
+            row.append(shown("vol_pct", before["vol_pct"][k]))
+            if res.feasible:
+                row.append(shown("vol_pct", after["vol_pct"][k]))
+        moved_here = ends and res.feasible and abs(res.ends_c[k] - res.start_ends_c[k]) > 1e-9
+        row.append("held" if ends and k not in moved else ("*" if moved_here else ""))
+        body.append(row)
+    lines += grid(head, body, align="l" + "r" * (len(head) - 2) + "l")
+    lines.append("* moved by the optimiser; held: not a moving cut point")
+    prose = []
     state = "converged" if res.converged else ("NOT converged: the answer is the best found, not a proven optimum")
-    lines.append(f"Search: {res.method}; {len(res.var_index)} moving cut point(s), {res.generations} generations, "
+    prose.append(f"Search: {res.method}; {len(res.var_index)} moving cut point(s), {res.generations} generations, "
                  f"{res.evaluations} candidates; {state}.")
     if res.feasible:
-        lines.append(f"{what}: {num(res.start_objective, 2)} at the start -> {num(res.objective, 2)} {unit} at the "
-                     f"optimum" + (f" (brute-force grid best {num(res.grid_best, 2)})"
+        prose.append(f"{what}: {fixed(res.start_objective, 2)} at the start -> {fixed(res.objective, 2)} {unit} at "
+                     f"the optimum" + (f" (brute-force grid best {fixed(res.grid_best, 2)})"
                                    if res.grid_best == res.grid_best else ""))
         if res.active:
-            lines.append("Active limits: " + "; ".join(res.active))
+            prose.append("Active limits: " + "; ".join(res.active))
+        prose += [f"Note: {n}" for n in res.bound_notes]
     else:
-        lines.append("NO FEASIBLE ANSWER: no cut points within the span meet every limit. What cannot be met, at "
+        prose.append("NO FEASIBLE ANSWER: no cut points within the span meet every limit. What cannot be met, at "
                      "the least-violating cut points found:")
         for f in res.shortfalls:
             u = "" if unit_of(f["property"]) == "-" else " " + unit_of(f["property"])
             alone = "" if f["alone_possible"] else " (cannot be met on its own within the span)"
-            lines.append(f"  {f['limit']}: {num(f['value'], 3)}{u}, short by {num(f['short_by'], 3)}{u}{alone}")
+            nd = limit_decimals(f["limit"])
+            prose.append(f"  {f['limit']}: {fixed(f['value'], nd)}{u}, short by {fixed(f['short_by'], nd)}{u}{alone}")
     if res.violated_at_start:
-        lines.append("Limits broken at the start: " + "; ".join(res.violated_at_start))
+        prose.append("Limits broken at the start: " + "; ".join(res.violated_at_start))
     if res.not_evaluated:
-        lines.append("Not evaluated (n/a, not constraining): " + "; ".join(res.not_evaluated))
+        prose.append("Not evaluated (n/a, not constraining): " + "; ".join(res.not_evaluated))
     guard = [f"{n} {v:g}" for n, v in res.min_yields.items() if v > 0]
     if guard:
-        lines.append("Minimum yields kept [vol %] (--min-yield): " + ", ".join(guard))
-    lines.append("Qualities are estimates; flash points must be measured (ASTM D93).")
+        prose.append("Minimum yields kept [vol %] (--min-yield): " + ", ".join(guard))
+    prose.append("Qualities are estimates; flash points must be measured (ASTM D93).")
+    for p in prose:
+        lines += wrap(p, indent="  ")
     return lines
 
 
-def shift_text(delta) -> str:
-    """The shift as aligned text: each quality's new value and its change beside it, changed cuts marked '*'."""
-    head = ["", "Cut", "End °C", "-> End °C", "vol %", "Δ vol %", "wt %", "Δ wt %", "SG", "Δ SG", "S wt %",
-            "Δ S wt %", "D86 95 °C", "Δ", "CCI", "Δ", "Flash °C", "Δ", "Limit flips"]
+SHIFT_COLUMNS = [("vol_pct", "vol %"), ("wt_pct", "wt %"), ("sg", "SG"), ("sulfur_wt_pct", "S wt %"),
+                 ("d86_95_c", "D86 95 °C"), ("cetane_index_d4737", "CCI"), ("flash_c_est", "Flash °C")]
+"""The qualities a printed shift shows, each as its new value and its change."""
 
-    def f(v, nd):
-        return num(v, nd, signed=True)
+
+def shift_text(delta, width: int | None = None) -> str:
+    """The shift as a table fitted to the terminal: each quality's new value and its change (Δ) beside it,
+    numbers right-aligned, changed cuts marked '*', the limits that flip listed under the table."""
 
     def e(v):
-        return "end" if v is None or (isinstance(v, float) and math.isnan(v)) else f"{v:g}"
+        return "end" if v is None or (isinstance(v, float) and math.isnan(v)) else shown("end_c", v)
 
-    body = [["*" if r["changed"] else "", r["name"], e(r["end_c_base"]), e(r["end_c_new"]),
-             num(r["new_vol_pct"], 2), f(r["vol_pct"], 2), num(r["new_wt_pct"], 2), f(r["wt_pct"], 2),
-             num(r["new_sg"], 4), f(r["sg"], 4), num(r["new_sulfur_wt_pct"], 3), f(r["sulfur_wt_pct"], 3),
-             num(r["new_d86_95_c"], 1), f(r["d86_95_c"], 1), num(r["new_cetane_index_d4737"], 1),
-             f(r["cetane_index_d4737"], 1), num(r["new_flash_c_est"], 1), f(r["flash_c_est"], 1), r["limit_flips"]]
-            for r in delta.rows()]
-    widths = [max(len(str(x)) for x in col) for col in zip(head, *body)]
-    lines = ["  ".join(str(h).ljust(w) for h, w in zip(head, widths)).rstrip()]
-    lines += ["  ".join(str(x).ljust(w) for x, w in zip(row, widths)).rstrip() for row in body]
+    head = ["Cut", "End °C", "new End °C"] + [x for _, h in SHIFT_COLUMNS for x in (h, "Δ " + h)]
+    body, flips = [], []
+    for r in delta.rows():
+        body.append([("* " if r["changed"] else "  ") + r["name"], e(r["end_c_base"]), e(r["end_c_new"])]
+                    + [x for q, _ in SHIFT_COLUMNS for x in (shown(q, r[f"new_{q}"]), shown(q, r[q], signed=True))])
+        if r["limit_flips"]:
+            flips.append(f"  {r['name']}: {r['limit_flips']}")
+    lines = grid(head, body, width=width)
+    lines.append("* the cut's yield changed; Δ = new less base")
+    lines += (["Limits that flip:"] + flips) if flips else ["No limit flips."]
     return "\n".join(lines)

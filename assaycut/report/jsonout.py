@@ -172,6 +172,6 @@ def optimum_json(crude: str, what: str, unit: str, res, names: list[str], after)
         "evaluations": res.evaluations, "moving_cut_points": [names[i] for i in res.var_index],
         "min_yields_vol_pct": res.min_yields,
         "shortfalls": [json_safe(f) for f in res.shortfalls],
-        "grid_best": json_safe(res.grid_best), "active_limits": res.active,
+        "grid_best": json_safe(res.grid_best), "active_limits": res.active, "bound_notes": res.bound_notes,
         "limits_broken_at_start": res.violated_at_start, "limits_not_evaluated": res.not_evaluated,
         "cuts": cut_records(after.cuts)}

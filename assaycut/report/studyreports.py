@@ -8,24 +8,44 @@ from ..cutting.limits import limit_title
 from ..studies.compare import WORTH_CAVEAT
 from ..units import sg_to_density15
 from .plots import pyplot
+from .precision import excel_format
 from .xlsx import finish_workbook, write_table
 
-COMPARE_LABELS = {"vol_pct": "Yield [vol %]", "wt_pct": "Yield [wt %]", "api": "API gravity [°API]",
-                  "sg": "SG 60/60 °F [-]", "sulfur_wt_pct": "Sulfur [wt %]", "watson_k": "Watson K [-]",
-                  "limits": "Limits"}
-COMPARE_FORMATS = {"vol_pct": "0.00", "wt_pct": "0.00", "api": "0.0", "sg": "0.0000", "sulfur_wt_pct": "0.000",
-                   "watson_k": "0.00", "limits": None}
+COMPARE_LABELS = {"vol_pct": "Yield [vol %]", "wt_pct": "Yield [wt %]", "bbl_per_day": "Rate [bbl/d]",
+                  "t_per_day": "Rate [t/d]", "api": "API gravity [°API]", "sg": "SG 60/60 °F [-]",
+                  "sulfur_wt_pct": "Sulfur [wt %]", "watson_k": "Watson K [-]", "limits": "Limits",
+                  "extrapolated": "Extrapolated"}
+"""The qualities of each cut in a comparison (those present), with their labels."""
+WHOLE_CRUDE = "whole crude"
+"""Cut name of the comparison's whole-crude rows."""
 
 
-def compare_wide(table):
-    """Comparison as rows (cut, quality) with one column per crude."""
+def whole_crude_rows(results) -> list[list]:
+    """The comparison's whole-crude rows: [WHOLE_CRUDE, label, key, one value per crude] for API gravity,
+    SG, sulfur (None where not given), the measured end of the curve and the count of warnings."""
+    rows = [("API gravity [°API]", "api", [r.assay.api for r in results]),
+            ("SG 60/60 °F [-]", "sg", [r.assay.sg for r in results]),
+            ("Sulfur [wt %]", "sulfur_wt_pct", [r.model.given_sulfur_wt_pct for r in results]),
+            ("Curve measured to [vol %]", "vol_pct", [float(r.model.curve.measured_hi) for r in results]),
+            ("Warnings [count]", "count", [str(len(r.warnings)) for r in results])]
+    return [[WHOLE_CRUDE, lab, key, *vals] for lab, key, vals in rows]
+
+
+def compare_wide(table, whole: list[list] | None = None):
+    """Comparison as rows [cut, label, key, one value per crude]: the ``whole`` crude rows first, then each
+    cut's qualities of :data:`COMPARE_LABELS` present in ``table``; extrapolated as 'yes' or ''."""
     crudes = list(dict.fromkeys(table["crude"]))
     cuts = list(dict.fromkeys(table["cut"]))
     idx = table.set_index(["cut", "crude"])
-    rows = []
+    rows = [list(r) for r in whole or []]
     for cut in cuts:
         for q, label in COMPARE_LABELS.items():
-            rows.append([cut, label] + [idx.loc[(cut, c), q] for c in crudes])
+            if q not in table:
+                continue
+            vals = [idx.loc[(cut, c), q] for c in crudes]
+            if q == "extrapolated":
+                vals = ["yes" if v else "" for v in vals]
+            rows.append([cut, label, q] + [None if isinstance(v, float) and v != v else v for v in vals])
     return crudes, rows
 
 
@@ -39,21 +59,24 @@ def compare_workbook(results, table, worth, currency: str | None, products=None)
     wb = openpyxl.Workbook()
     ws = wb.active
     ws.title = "comparison"
-    crudes, rows = compare_wide(table)
-    fmts = [None, None] + [None] * len(crudes)
-    write_table(ws, ["Cut", "Quality"] + crudes, rows, fmts, widths=[20, 22] + [18] * len(crudes))
-    labels = {v: COMPARE_FORMATS[k] for k, v in COMPARE_LABELS.items()}
+    crudes, rows = compare_wide(table, whole_crude_rows(results))
+    write_table(ws, ["Cut", "Quality"] + crudes, [[r[0], r[1], *r[3:]] for r in rows],
+                widths=[20, 26] + [max(14, len(c) + 2) for c in crudes], freeze="C2")
     for i, r in enumerate(rows, start=2):
-        for j in range(3, 3 + len(crudes)):
-            c = ws.cell(row=i, column=j)
-            if isinstance(c.value, (int, float)) and labels.get(r[1]):
-                c.number_format = labels[r[1]]
+        for j, v in enumerate(r[3:], start=3):
+            if isinstance(v, (int, float)) and not isinstance(v, bool):
+                ws.cell(row=i, column=j).number_format = excel_format(r[2], v)
     if worth is not None:
         ws = wb.create_sheet("worth")
         cur = currency or ""
         heads = ["Rank", "Crude", f"Worth [{cur}/bbl]", f"Worth [{cur}/t]", f"Crude price [{cur}/bbl]",
                  f"Crude price [{cur}/t]", f"Margin [{cur}/bbl]", f"Margin [{cur}/t]"]
-        write_table(ws, heads, worth.values.tolist(), [None, None] + ["0.00"] * 6, widths=[6, 22] + [16] * 6)
+        keys = [None, None, "worth_per_bbl", "worth_per_t", "price_per_bbl", "price_per_t", "margin_per_bbl",
+                "margin_per_t"]
+        if "worth_per_day" in worth:
+            heads += [f"Worth [{cur}/d]", f"Margin [{cur}/d]"]
+            keys += ["bbl_per_day", "bbl_per_day"]
+        write_table(ws, heads, worth.values.tolist(), keys=keys, widths=[6, 22] + [16] * (len(heads) - 2))
         ws.cell(row=len(worth) + 3, column=1, value=WORTH_CAVEAT)
         basis = worth.attrs.get("ranked_by", "worth_per_bbl")
         ws.cell(row=len(worth) + 4, column=1, value="Ranked by margin per bbl (every crude has a price)"
@@ -80,8 +103,8 @@ def compare_workbook(results, table, worth, currency: str | None, products=None)
     ws = wb.create_sheet("crudes")
     write_table(ws, ["Crude", "Source", "sha256", "API gravity [°API]", "Sulfur [wt %]", "Measured to [vol %]"],
                 [[r.assay.name, r.assay.source, r.assay.sha256, r.assay.api, r.model.given_sulfur_wt_pct,
-                  r.model.curve.measured_hi] for r in results], [None, None, None, "0.0", "0.000", "0.0"],
-                widths=[20, 50, 66, 14, 14, 14])
+                  r.model.curve.measured_hi] for r in results],
+                keys=[None, None, None, "api", "sulfur_wt_pct", "vol_pct"], widths=[20, 50, 66, 14, 14, 14])
     ws = wb.create_sheet("notes")
     notes = [("Caution", c) for c in CAUTIONS] + [("Note", WORTH_CAVEAT)]
     notes += [(f"Warning ({r.assay.name})", w) for r in results for w in r.warnings]
@@ -122,18 +145,18 @@ def vectors_files(name: str, base, deltas: dict, step_c: float) -> dict[str, byt
 
     from .tables import basis_of, flat_cut_rows, label_for, long_rows, unit_of
     from .write import csv_text, slug
-    from .xlsx import finish_workbook, fmt_for
+    from .xlsx import finish_workbook
 
     wb = openpyxl.Workbook()
     ws = wb.active
     ws.title = "base"
     names, rows = flat_cut_rows(base)
-    write_table(ws, [label_for(n) for n in names], rows, [fmt_for(n) for n in names])
+    write_table(ws, [label_for(n) for n in names], rows, keys=names)
     ws = wb.create_sheet("per degree C")
     cols = [c for c in next(iter(deltas.values())).keys if c != "name"] if deltas else []
     write_table(ws, ["Cut point (end of)", "Cut"] + [f"{label_for(c)} per °C" for c in cols],
                 [[cp, r["name"], *[r[c] for c in cols]] for cp, d in deltas.items() for r in d.rows()],
-                [None, None] + ["0.0000"] * len(cols))
+                [None, None] + ["0.0000"] * len(cols), freeze="C2")
     ws.cell(row=ws.max_row + 2, column=1, value=f"Central difference of the exact model: each cut point ± {step_c:g} "
                                                 f"°C, the others held; estimates for screening.")
     finish_workbook(wb, f"{name} base and delta vectors")

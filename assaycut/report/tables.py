@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import re
 
 import numpy as np
 
@@ -14,6 +15,7 @@ from ..methods.blending_indices import VISCOSITY
 from ..methods.d86 import D86_STD
 from ..text import replace_hidden
 from ..units import pct_text, residual_text
+from .precision import limit_shown, shown
 
 LABELS = {
     "name": "Cut",
@@ -96,14 +98,6 @@ def label_for(col: str) -> str:
             return f"{col[:-len(suffix) - 1].replace('_', ' ').capitalize()} [{_UNITS[suffix]}]"
     return col
 
-FORMATS = {"vol_pct": "0.00", "wt_pct": "0.00", "cum_vol_pct": "0.00", "cum_wt_pct": "0.00", "sg": "0.0000",
-           "api": "0.0", "density_15c_kg_m3": "0.0", "watson_k": "0.00", "sulfur_wt_pct": "0.000",
-           "sulfur_share_pct": "0.0", "mw": "0", "cetane_index_d4737": "0.0", "refractive_index_20c": "0.0000",
-           "acid_number_mg_koh_g": "0.00", "nitrogen_wt_ppm": "0", "smoke_point_mm": "0.0", "flash_c_est": "0",
-           "mid_vol_c": "0.0", "vabp_c": "0.0", "meabp_c": "0.0"}
-"""Spreadsheet number formats by column; temperatures default to 0.0."""
-
-
 LONG_COLUMNS = ["crude", "cut", "property", "unit", "value", "basis"]
 """Columns of the long table (one row per value)."""
 _BASIS = {"vol_pct": "vol", "cum_vol_pct": "vol", "wt_pct": "wt", "cum_wt_pct": "wt", "bbl_per_day": "vol",
@@ -180,6 +174,40 @@ def in_fahrenheit(cuts):
     return CutTable(out, cuts.attrs)
 
 
+_LIMIT_NUMBER = re.compile(r"[-+]?\d+(?:\.\d+)?")
+
+
+def limits_in_unit(rows: list[dict], unit: str = "C") -> list[dict]:
+    """Checked limits (:func:`~assaycut.cutting.limits.check_limits` rows) for display, each with its ``unit``
+    ('°C', 'wt %', 'kg/m³'...); with ``unit`` 'F', a temperature limit's value and bounds in °F (a bound
+    keeps its decimals; the label keeps its own wording).
+
+    Examples
+    --------
+    >>> limits_in_unit([{"property": "flash_c_est", "limit": ">= 55", "value": 60.0}], "F")[0]
+    {'property': 'flash_c_est', 'limit': '>= 131', 'value': 140.0, 'unit': '°F'}
+    """
+    from ..units import c_to_f
+
+    out = []
+    for r in rows:
+        r = dict(r)
+        prop = r["property"]
+        temp = _is_temperature(prop) and not prop.startswith("recovered_at_")
+        r["unit"] = unit_of(prop)
+        if temp and unit == "F":
+            def conv(m):
+                txt = m.group(0)
+                nd = len(txt.partition(".")[2])
+                return f"{c_to_f(float(txt)):.{nd}f}"
+
+            r["limit"] = _LIMIT_NUMBER.sub(conv, r["limit"])
+            r["value"] = None if r["value"] is None else float(c_to_f(float(r["value"])))
+            r["unit"] = "°F"
+        out.append(r)
+    return out
+
+
 def display_cuts(cuts, unit: str = "C"):
     """The cut table in the display unit ('C' as is, 'F' by :func:`in_fahrenheit`)."""
     return in_fahrenheit(cuts) if unit == "F" else cuts
@@ -246,64 +274,71 @@ def _fmt(v, nd=1):
     return str(v)
 
 
-TERMINAL_COLUMNS = [("name", "Cut", 0), ("start_c", "Start °C", 0), ("end_c", "End °C", 0),
-                    ("vol_pct", "vol %", 2), ("wt_pct", "wt %", 2), ("api", "API", 1), ("sg", "SG", 4),
-                    ("sulfur_wt_pct", "S wt %", 3), ("watson_k", "Kw", 2), ("tbp_5_c", "T5 °C", 0),
-                    ("mid_vol_c", "T50 °C", 0), ("tbp_95_c", "T95 °C", 0), ("overlap_c", "Overlap °C", 1),
-                    ("cetane_index_d4737", "CCI", 1), ("flash_c_est", "Flash °C*", 0), ("extrapolated", "Extrap.", 0)]
+TERMINAL_COLUMNS = [("name", "Cut"), ("start_c", "Start °C"), ("end_c", "End °C"), ("vol_pct", "vol %"),
+                    ("wt_pct", "wt %"), ("bbl_per_day", "bbl/d"), ("t_per_day", "t/d"), ("api", "API"),
+                    ("sg", "SG"), ("sulfur_wt_pct", "S wt %"), ("watson_k", "Kw"), ("tbp_5_c", "T5 °C"),
+                    ("mid_vol_c", "T50 °C"), ("tbp_95_c", "T95 °C"), ("overlap_c", "Overlap °C"),
+                    ("cetane_index_d4737", "CCI"), ("flash_c_est", "Flash °C*"), ("extrapolated", "Ext.")]
+"""The cut-table columns the terminal shows (key, header), when present; digits by :mod:`.precision`."""
 
 
-TERMINAL_QUALITIES = [("freeze_point_c", "Freeze °C", 0), ("smoke_point_mm", "Smoke mm", 1),
-                      ("cloud_point_c", "Cloud °C", 0), ("pour_point_c", "Pour °C", 0),
-                      ("viscosity_40c_cst", "ν40 cSt", 2), ("viscosity_100c_cst", "ν100 cSt", 1),
-                      ("viscosity_135c_cst", "ν135 cSt", 1),
-                      ("nitrogen_wt_ppm", "N ppm", 0), ("ccr_wt_pct", "CCR wt %", 1),
-                      ("nickel_wt_ppm", "Ni ppm", 1), ("vanadium_wt_ppm", "V ppm", 1)]
+TERMINAL_QUALITIES = [("freeze_point_c", "Freeze °C"), ("smoke_point_mm", "Smoke mm"),
+                      ("cloud_point_c", "Cloud °C"), ("pour_point_c", "Pour °C"),
+                      ("viscosity_40c_cst", "ν40 cSt"), ("viscosity_100c_cst", "ν100 cSt"),
+                      ("viscosity_135c_cst", "ν135 cSt"), ("nitrogen_wt_ppm", "N ppm"), ("ccr_wt_pct", "CCR wt %"),
+                      ("nickel_wt_ppm", "Ni ppm"), ("vanadium_wt_ppm", "V ppm")]
 """The qualities the terminal shows, when present (all of them are in the report files and JSON)."""
+
+TERMINAL_LEGEND = {
+    "overlap_c": "Overlap: T95 of the cut less T5 of the next; negative: a gap (ideal cut)",
+    "extrapolated": "Ext.: the cut rests partly on the curve's fitted extension",
+}
+"""Legend lines under the terminal cut table, for the columns whose header needs one."""
 
 
 def _shown(spec, cuts):
     """Terminal columns present in ``cuts``, a °C column taken in °F where the table is in °F."""
     out = []
-    for c, h, nd in spec:
+    for c, h in spec:
         if c in cuts:
-            out.append((c, h, nd))
+            out.append((c, h))
         elif _is_temperature(c) and _f_name(c) in cuts:
-            out.append((_f_name(c), h.replace("°C", "°F"), nd))
+            out.append((_f_name(c), h.replace("°C", "°F")))
     return out
 
 
-def quality_text_table(cuts) -> str:
-    """The key qualities per cut as aligned text; estimated values end in '~'; '' when there are none."""
+def quality_text_table(cuts, width: int | None = None) -> str:
+    """The key qualities per cut as aligned text fitted to ``width`` (:func:`~.textgrid.grid`); estimated
+    values end in '~'; '' when there are none."""
+    from .textgrid import grid, wrap
+
     cols = _shown(TERMINAL_QUALITIES, cuts)
     if not cols:
         return ""
-    head = ["Cut"] + [h for _, h, _ in cols]
-    body = [[str(r["name"])] + [_marked(r, c, nd) for c, _, nd in cols] for r in cuts.rows()]
-    widths = [max(len(x) for x in col) for col in zip(head, *body)]
-    lines = ["  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, (h, w) in enumerate(zip(head, widths)))]
-    lines.append("  ".join("-" * w for w in widths))
-    for row in body:
-        lines.append("  ".join(x.ljust(w) if i == 0 else x.rjust(w) for i, (x, w) in enumerate(zip(row, widths))))
-    lines.append("~ estimated in whole or part (a correlation, or the nearest measured cut, where no narrow cut measured "
-                 "it); every quality is in "
-                 "the report's qualities sheet")
+    head = ["Cut"] + [h for _, h in cols]
+    body = [[str(r["name"])] + [_marked(r, c) for c, _ in cols] for r in cuts.rows()]
+    lines = grid(head, body, width=width)
+    lines += wrap("~ estimated in whole or part (a correlation, or the nearest measured cut where no narrow cut "
+                  "measured it)", width, "  ")
     return "\n".join(lines)
 
 
-def text_table(cuts) -> str:
-    """The cut table as aligned plain text for the terminal; estimated values end in '~'."""
+def text_table(cuts, width: int | None = None) -> str:
+    """The cut table as aligned plain text for the terminal, fitted to ``width`` (column groups repeating the
+    cut name); digits by :mod:`.precision`; estimated values end in '~', out-of-scope ones in '?'."""
+    from .textgrid import grid, wrap
+
     cols = _shown(TERMINAL_COLUMNS, cuts)
-    head = [h for _, h, _ in cols]
     rows = cuts.rows()
-    body = [[str(r[c]) if c == "name" else _marked(r, c, nd) for c, _, nd in cols] for r in rows]
-    widths = [max(len(x) for x in col) for col in zip(head, *body)]
-    lines = ["  ".join(h.ljust(w) if i == 0 else h.rjust(w) for i, (h, w) in enumerate(zip(head, widths)))]
-    lines.append("  ".join("-" * w for w in widths))
-    for row in body:
-        lines.append("  ".join(x.ljust(w) if i == 0 else x.rjust(w) for i, (x, w) in enumerate(zip(row, widths))))
+    if not any(r.get("extrapolated") for r in rows):
+        cols = [(c, h) for c, h in cols if c != "extrapolated"]
+    body = [[str(r[c]) if c == "name" else _marked(r, c) for c, _ in cols] for r in rows]
+    lines = grid([h for _, h in cols], body, width=width)
+    for c, _ in cols:
+        if c in TERMINAL_LEGEND:
+            lines += wrap(TERMINAL_LEGEND[c], width, "  ")
     if any(r.get("out_of_scope") for r in rows):
-        lines.append(OUT_OF_SCOPE_MARK + " " + OUT_OF_SCOPE_LEGEND)
+        lines += wrap(OUT_OF_SCOPE_MARK + " " + OUT_OF_SCOPE_LEGEND, width, "  ")
     return "\n".join(lines)
 
 
@@ -312,9 +347,13 @@ OUT_OF_SCOPE_MARK = "?"
 OUT_OF_SCOPE_LEGEND = "outside the correlation's published scope: indicative only"
 
 
-def _marked(rec: dict, col: str, nd: int) -> str:
-    """A printed value with its flags: '~' estimated, '?' out of the correlation's scope; '-' when missing."""
-    text = _fmt(rec[col], nd)
+def _marked(rec: dict, col: str) -> str:
+    """A printed value with its flags: '~' estimated, '?' out of the correlation's scope; '-' when missing;
+    'yes' for a true flag."""
+    v = rec[col]
+    if isinstance(v, bool):
+        return "yes" if v else ""
+    text = shown(col, v)
     if text == "-":
         return text
     return (text + ("~" if col in rec.get("estimated", ()) else "")
@@ -338,37 +377,55 @@ def md(text) -> str:
     return re.sub(r"([\\`*_\[\]#!~])", r"\\\1", t)
 
 
-def markdown_summary(result) -> str:
-    """A short Markdown summary of one yield result (names and texts escaped by :func:`md`)."""
+def markdown_summary(result, unit: str = "C") -> str:
+    """A short Markdown summary of one yield result (names and texts escaped by :func:`md`), temperatures in
+    ``unit`` ('C' or 'F'), digits by :mod:`.precision`, daily rates when the run has a crude rate."""
+    from ..units import c_to_f
+
     a = result.assay
     m = result.model
+    u = "°F" if unit == "F" else "°C"
+
+    def t(x):
+        return float(c_to_f(x)) if unit == "F" else x
+
+    s = m.given_sulfur_wt_pct
+    rate = result.cuts.attrs.get("rate_bbl_per_day")
     out = [f"# Yield report: {md(a.name)}", "",
            "*Estimates for screening and planning, not measured properties.*", "",
            f"- Source: `{md(a.source).replace('`', '')}` (sha256 `{a.sha256[:16]}...`)",
            f"- Origin: {md(a.origin) if a.origin else '-'}",
-           f"- Whole crude: {a.api:.1f} °API, SG {a.sg:.4f}, sulfur "
-           + (f"{m.given_sulfur_wt_pct:.3f} wt %" if m.given_sulfur_wt_pct is not None else "not given"),
+           f"- Whole crude: {shown('api', a.api)} °API, SG {shown('sg', a.sg)}, sulfur "
+           + (f"{shown('sulfur_wt_pct', s)} wt %" if s is not None else "not given"),
+           *([f"- Crude run: {shown('bbl_per_day', rate)} bbl/d"] if rate else []),
            f"- Curve measured to {pct_text(m.curve.measured_hi)} vol % "
-           f"({float(m.curve.temp_at(m.curve.measured_hi)):.0f} °C TBP); {m.curve.extrapolated_pct:.1f} vol % of "
-           f"the crude rests on the fitted extension, {m.curve.lumped_pct:.1f} vol % of it lumped at the "
-           f"{m.curve.fbp_c:.0f} °C end point",
-           *[f"- Whole crude: {label_for(k)} {v}" for k, v in a.extras.items()],
+           f"({shown('end_c', t(float(m.curve.temp_at(m.curve.measured_hi))))} {u} TBP); "
+           f"{shown('vol_pct', m.curve.extrapolated_pct)} vol % of the crude rests on the fitted extension, "
+           f"{shown('vol_pct', m.curve.lumped_pct)} vol % of it lumped at the {shown('end_c', t(m.curve.fbp_c))} {u} "
+           f"end point",
+           *[f"- Whole crude: {label_for(k)} {shown(k, v) if isinstance(v, float) else v}" for k, v in a.extras.items()],
            f"- Closure: vol {residual_text(result.closure['vol_pct'])} %, wt "
-           f"{residual_text(result.closure['wt_pct'])} %", "",
-           "| Cut | TBP range °C | vol % | wt % | API | S wt % | Watson K | CCI | Flash est. °C |",
-           "|---|---|---:|---:|---:|---:|---:|---:|---:|"]
+           f"{residual_text(result.closure['wt_pct'])} %", ""]
+    day = rate is not None
+    out += [f"| Cut | TBP range {u} | vol % | wt % | " + ("bbl/d | t/d | " if day else "")
+            + f"API | S wt % | Watson K | CCI | Flash est. {u} |",
+            "|---|---|---:|---:|" + ("---:|---:|" if day else "") + "---:|---:|---:|---:|---:|"]
     for r in result.cuts.rows():
-        rng = f"{_fmt(r['start_c'], 0) if r['start_c'] == r['start_c'] else 'IBP'}-" \
-              f"{_fmt(r['end_c'], 0) if r['end_c'] == r['end_c'] else 'end'}"
+        rng = f"{shown('end_c', t(r['start_c'])) if r['start_c'] == r['start_c'] else 'IBP'}-" \
+              f"{shown('end_c', t(r['end_c'])) if r['end_c'] == r['end_c'] else 'end'}"
         name = md(safe_text(r["name"])) + (" (extrap.)" if r["extrapolated"] else "")
-        out.append(f"| {name} | {rng} | {_fmt(r['vol_pct'], 2)} | {_fmt(r['wt_pct'], 2)} | {_fmt(r['api'], 1)} | "
-                   f"{_fmt(r['sulfur_wt_pct'], 3)} | {_fmt(r['watson_k'], 2)} | "
-                   f"{_fmt(r['cetane_index_d4737'], 1)} | {_fmt(r['flash_c_est'], 0)} |")
+        rates = f"{shown('bbl_per_day', r['bbl_per_day'])} | {shown('t_per_day', r['t_per_day'])} | " if day else ""
+        flash = r["flash_c_est"]
+        out.append(f"| {name} | {rng} | {shown('vol_pct', r['vol_pct'])} | {shown('wt_pct', r['wt_pct'])} | {rates}"
+                   f"{shown('api', r['api'])} | {shown('sulfur_wt_pct', r['sulfur_wt_pct'])} | "
+                   f"{shown('watson_k', r['watson_k'])} | {shown('cetane_index_d4737', r['cetane_index_d4737'])} | "
+                   f"{shown('flash_c_est', None if flash is None or flash != flash else t(flash))} |")
     if len(result.limits):
-        out += ["", "## Product limits", "", "| Cut | Limit | Required | Value | Status |", "|---|---|---|---:|---|"]
-        for r in result.limits.rows():
-            shown = "≥ 95" if is_lower_bound(r["property"], r["value"]) else _fmt(r["value"], 1)
-            out.append(f"| {md(r['cut'])} | {md(r['label'] or r['property'])} | {r['limit']} | {shown} | "
+        out += ["", "## Product limits", "", "| Cut | Limit | Required | Value | Unit | Status |",
+                "|---|---|---|---:|---|---|"]
+        for r in limits_in_unit(result.limits.rows(), unit):
+            val = "≥ 95" if is_lower_bound(r["property"], r["value"]) else limit_shown(r["value"], r["limit"])
+            out.append(f"| {md(r['cut'])} | {md(r['label'] or r['property'])} | {r['limit']} | {val} | {r['unit']} | "
                        f"{r['status'].upper()} |")
     if result.warnings:
         out += ["", "## Warnings", ""] + [f"- {md(w)}" for w in result.warnings]

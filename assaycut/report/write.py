@@ -9,6 +9,7 @@ import re
 from pathlib import Path
 
 from ..files import place_set, safe_text
+from .precision import rounded
 from .tables import (
     LONG_COLUMNS,
     display_cuts,
@@ -88,9 +89,10 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (),
     files[f"{base}_yields.xlsx"] = buf.getvalue()
     cuts = display_cuts(result.cuts, unit)
     names, rows = flat_cut_rows(cuts)
+    rows = [[rounded(n, v) for n, v in zip(names, r)] for r in rows]  # as shown; the long CSV keeps every digit
     files[f"{base}_cuts.csv"] = csv_text([label_for(n) for n in names], rows).encode("utf-8")
     files[f"{base}_long.csv"] = csv_text(LONG_COLUMNS, long_rows(cuts, result.assay.name)).encode("utf-8")
-    files[f"{base}_summary.md"] = markdown_summary(result).encode("utf-8")
+    files[f"{base}_summary.md"] = markdown_summary(result, unit).encode("utf-8")
     files[f"{base}_tbp.png"] = png_bytes(plots.plot_tbp, result)
     files[f"{base}_yields.png"] = png_bytes(plots.plot_yields, result)
     files[f"{base}_properties.png"] = png_bytes(plots.plot_properties, result)
@@ -117,11 +119,14 @@ def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:
     heads = [{"crude": "Crude", "source": "Source file", "sha256": "sha256", "api": "API gravity [°API]",
               "sulfur_wt_pct": "Sulfur [wt %]", "extrapolated_cuts": "Cuts using the extension"}.get(c, c)
              for c in columns]
-    fmts = [None, None, None, "0.0", "0.000"] + ["0.00"] * (len(columns) - 6) + [None]
+    from ..cutting.library_engine import SUMMARY_QUALITIES
+
+    keys = [None, None, None, "api", "sulfur_wt_pct"] + [k for _ in cs.reported()[0] for k, _ in SUMMARY_QUALITIES] \
+        + [None]
     from ..yields import CAUTIONS
 
     notes = [["Caution", c] for c in CAUTIONS] + [["Cut set", cs.label], ["Assays", str(len(rows))]]
-    book = fast_table_workbook([("library", heads, rows, fmts, [22, 40, 20] + [12] * (len(columns) - 3)),
+    book = fast_table_workbook([("library", heads, rows, keys, [22, 40, 20] + [12] * (len(columns) - 4) + [30]),
                                 ("notes", ["Topic", "Text"], notes, None, [20, 120])], "Library summary")
     files = {"library_summary.xlsx": book,
              "library_summary.csv": csv_text(heads, rows).encode("utf-8"),

@@ -11,12 +11,12 @@ import math
 import numpy as np
 
 from ..files import safe_text
+from .precision import excel_format, limit_decimals
 from .tables import (
-    FORMATS,
-    LABELS,
     display_cuts,
     flat_cut_rows,
     label_for,
+    limits_in_unit,
     quality_names,
 )
 
@@ -36,8 +36,26 @@ def _cell(v):
 
 
 def write_table(ws, headers: list[str], rows: list[list], formats: list[str | None] | None = None,
-                start_row: int = 1, widths: list[int] | None = None) -> None:
-    """Write a header row and data rows; bold shaded header, frozen below it, number formats per column."""
+                start_row: int = 1, widths: list[int] | None = None, keys: list[str | None] | None = None,
+                freeze: str | None = None, autofilter: bool = True) -> None:
+    """Write a header row and data rows: bold shaded header, panes frozen at the first data cell, an
+    autofilter over the table, a width on every column, and a number format on every number.
+
+    Parameters
+    ----------
+    formats : list of str or None, optional
+        A fixed number format per column (None: none).
+    keys : list of str or None, optional
+        A column key per column (``sg``, ``sulfur_wt_pct``...): each number gets the format that shows it by
+        :func:`~.precision.excel_format` (significant digits for a small sulfur), over ``formats``.
+    widths : list of int, optional
+        Column widths [characters]. Default: fitted to the header and the cells (8 to 40).
+    freeze : str, optional
+        The first data cell ("C2" keeps the crude and cut columns in view). Default: below the header and right
+        of the first column.
+    autofilter : bool
+        An autofilter on the header row.
+    """
     from openpyxl.styles import Alignment, Font, PatternFill
     from openpyxl.utils import get_column_letter
 
@@ -49,22 +67,36 @@ def write_table(ws, headers: list[str], rows: list[list], formats: list[str | No
     for i, row in enumerate(rows, start=start_row + 1):
         for j, v in enumerate(row, start=1):
             c = ws.cell(row=i, column=j, value=_cell(v))
-            if formats and formats[j - 1] and isinstance(c.value, (int, float)):
+            if not isinstance(c.value, (int, float)):
+                continue
+            if keys and keys[j - 1]:
+                c.number_format = excel_format(keys[j - 1], c.value)
+            elif formats and formats[j - 1]:
                 c.number_format = formats[j - 1]
-    ws.freeze_panes = ws.cell(row=start_row + 1, column=2 if len(headers) > 1 else 1)
+    ws.freeze_panes = freeze or ws.cell(row=start_row + 1, column=2 if len(headers) > 1 else 1).coordinate
+    if autofilter and rows:
+        ws.auto_filter.ref = f"A{start_row}:{get_column_letter(len(headers))}{start_row + len(rows)}"
     for j, h in enumerate(headers, start=1):
-        w = widths[j - 1] if widths else max(10, min(28, len(str(h)) + 2))
+        if widths:
+            w = widths[j - 1]
+        else:
+            cells = [len(_shown_text(r[j - 1])) for r in rows[:200] if j - 1 < len(r)]
+            w = max(8, min(40, max([min(len(str(h)), 24) + 2] + [x + 2 for x in cells])))
         ws.column_dimensions[get_column_letter(j)].width = w
 
 
+def _shown_text(v) -> str:
+    """A cell's text as its width needs it (a number as shown by its rule, at most 12 characters)."""
+    if v is None:
+        return ""
+    if isinstance(v, (float, np.floating)):
+        return f"{float(v):.4g}"
+    return str(v)
+
+
 def fmt_for(col: str) -> str:
-    """The number format of a column: :data:`FORMATS`, else 0.0 for temperatures, else 0.00 (every numeric
-    column has one)."""
-    if col in FORMATS:
-        return FORMATS[col]
-    if col.endswith(("_c", "_c_est", "_f", "_f_est")):
-        return "0.0"
-    return "0.00"
+    """The spreadsheet number format of a column key (:func:`~.precision.excel_format`)."""
+    return excel_format(col)
 
 
 def finish_workbook(wb, title: str) -> None:
@@ -96,8 +128,9 @@ def fast_table_workbook(sheets: list[tuple[str, list[str], list[list], list[str 
 
     Parameters
     ----------
-    sheets : list of (name, headers, rows, formats, widths)
-        One tuple per sheet; ``formats`` the number format of each column (None: none), or None.
+    sheets : list of (name, headers, rows, keys, widths)
+        One tuple per sheet; ``keys`` the column key of each column (None: text), whose number format each
+        number gets by :func:`~.precision.excel_format` (significant digits for a small sulfur), or None.
     title : str
         The report's name for the page header.
 
@@ -115,14 +148,11 @@ def fast_table_workbook(sheets: list[tuple[str, list[str], list[list], list[str 
                                    "strings_to_numbers": False})
     head = wb.add_format({"bold": True, "bg_color": "#" + HEADER_FILL, "text_wrap": True, "valign": "top"})
     number_formats: dict[str, object] = {}
-    for name, headers, rows, formats, widths in sheets:
+    for name, headers, rows, keys, widths in sheets:
         ws = wb.add_worksheet(name)
         for j, h in enumerate(headers):
             ws.write_string(0, j, safe_text(h), head)
-        cell_formats = [None] * len(headers)
-        for j, f in enumerate(formats or []):
-            if f:
-                cell_formats[j] = number_formats.setdefault(f, wb.add_format({"num_format": f}))
+        keys = keys or [None] * len(headers)
         for i, row in enumerate(rows, start=1):
             for j, v in enumerate(row):
                 v = _cell(v)
@@ -130,11 +160,14 @@ def fast_table_workbook(sheets: list[tuple[str, list[str], list[list], list[str 
                     continue
                 if isinstance(v, str):
                     ws.write_string(i, j, v)
-                elif cell_formats[j] is not None:
-                    ws.write_number(i, j, v, cell_formats[j])
+                elif keys[j]:
+                    f = excel_format(keys[j], v)
+                    ws.write_number(i, j, v, number_formats.setdefault(f, wb.add_format({"num_format": f})))
                 else:
                     ws.write_number(i, j, v)
         ws.freeze_panes(1, 1 if len(headers) > 1 else 0)
+        if rows:
+            ws.autofilter(0, 0, len(rows), len(headers) - 1)
         for j, w in enumerate(widths):
             ws.set_column(j, j, w)
         ws.fit_to_pages(1, 0)
@@ -181,18 +214,18 @@ def yield_workbook(result, unit: str = "C"):
     names, rows = flat_cut_rows(cuts)
     ws = wb.create_sheet("cuts")
     names, rows = ["crude"] + names, [[result.assay.name] + r for r in rows]
-    write_table(ws, [label_for(n) for n in names], rows, [fmt_for(n) for n in names])
-    ws.column_dimensions["A"].width = 20
+    write_table(ws, [label_for(n) for n in names], rows, keys=names, freeze="C2")
     if quality_names(cuts):
         _qualities_sheet(wb.create_sheet("qualities"), cuts)
     ws = wb.create_sheet("curve")
     write_table(ws, ["Distilled [vol %]", "TBP [°C]", "Distilled [wt %]", "Local SG 60/60 °F [-]",
                      "Local sulfur [wt %]", "Extrapolated"], curve_rows(result),
-                ["0.0", "0.0", "0.00", "0.0000", "0.000", None], widths=[16, 12, 16, 20, 18, 13])
+                keys=["vol_pct", "temp_c", "wt_pct", "sg", "sulfur_wt_pct", None], widths=[16, 12, 16, 20, 18, 13],
+                freeze="A2")
     ws = wb.create_sheet("curve wt basis")
     write_table(ws, ["Distilled [wt %]", "TBP [°C]", "Distilled [vol %]"], wt_curve_rows(result),
-                ["0.0", "0.0", "0.00"], widths=[16, 12, 16])
-    _limits_sheet(wb.create_sheet("limits"), result.limits)
+                keys=["wt_pct", "temp_c", "vol_pct"], widths=[16, 12, 16], freeze="A2")
+    _limits_sheet(wb.create_sheet("limits"), result.limits, unit)
     if result.bands is not None:
         _bands_sheet(wb.create_sheet("uncertainty"), result.bands)
     _notes_sheet(wb.create_sheet("notes"), result)
@@ -212,32 +245,36 @@ def _summary_sheet(ws, result) -> None:
     ws["A1"].font = Font(bold=True, size=14)
     ws["A2"] = "Estimates for screening and planning, not measured properties. See the notes sheet."
     ws["A2"].font = Font(italic=True)
-    info = [("Crude", a.name, None), ("Origin", a.origin, None), ("API gravity [°API]", a.api, "0.0"),
-            ("SG 60/60 °F [-]", a.sg, "0.0000"), ("Density 15 °C [kg/m3]", sg_to_density15(a.sg), "0.0"),
-            ("Sulfur [wt %]", m.given_sulfur_wt_pct, "0.000"),
-            ("Curve measured to [vol %]", m.curve.measured_hi, "0.0"),
-            ("On the fitted extension [vol %]", m.curve.extrapolated_pct, "0.0"),
-            ("Of it lumped at the end point [vol %]", m.curve.lumped_pct, "0.0"),
-            ("Density reconciliation [%]", m.density_reconciliation_pct, "0.00"),
-            ("Sulfur reconciliation [%]", m.sulfur_reconciliation_pct, "0.00"),
-            ("SG given less the cuts' [-]", m.sg_closure, "0.0000"),
-            ("Sulfur given less the cuts' [wt %]", m.sulfur_closure_wt_pct, "0.0000"),
-            ("Closure residual, vol [%]", result.closure["vol_pct"], "0.000000"),
-            ("Closure residual, wt [%]", result.closure["wt_pct"], "0.000000"),
+    rate = result.cuts.attrs.get("rate_bbl_per_day")
+    info = [("Crude", a.name, None), ("Origin", a.origin, None), ("API gravity [°API]", a.api, "api"),
+            ("SG 60/60 °F [-]", a.sg, "sg"), ("Density 15 °C [kg/m3]", sg_to_density15(a.sg), "density_15c_kg_m3"),
+            ("Sulfur [wt %]", m.given_sulfur_wt_pct, "sulfur_wt_pct"),
+            ("Curve measured to [vol %]", m.curve.measured_hi, "vol_pct"),
+            ("On the fitted extension [vol %]", m.curve.extrapolated_pct, "vol_pct"),
+            ("Of it lumped at the end point [vol %]", m.curve.lumped_pct, "vol_pct"),
+            ("Density reconciliation [%]", m.density_reconciliation_pct, "vol_pct"),
+            ("Sulfur reconciliation [%]", m.sulfur_reconciliation_pct, "vol_pct"),
+            ("SG given less the cuts' [-]", m.sg_closure, "sg"),
+            ("Sulfur given less the cuts' [wt %]", m.sulfur_closure_wt_pct, "sulfur_wt_pct"),
+            ("Closure residual, vol [%]", result.closure["vol_pct"], "vol_pct"),
+            ("Closure residual, wt [%]", result.closure["wt_pct"], "wt_pct"),
             ("Cut set", result.cut_set.label, None)]
+    if rate:
+        info.insert(6, ("Crude run [bbl/d]", rate, "bbl_per_day"))
     for k, v in a.extras.items():
-        info.append((f"Whole crude: {label_for(k)}", v, "0.00"))
-    write_table(ws, ["Item", "Value"], [[k, v] for k, v, _ in info], [None, None], start_row=4, widths=[30, 44])
-    for i, (_, _, f) in enumerate(info, start=5):
-        if f and isinstance(ws.cell(row=i, column=2).value, (int, float)):
-            ws.cell(row=i, column=2).number_format = f
+        info.append((f"Whole crude: {label_for(k)}", v, k))
+    write_table(ws, ["Item", "Value"], [[k, v] for k, v, _ in info], start_row=4, widths=[34, 44], autofilter=False,
+                freeze="A5")
+    for i, (_, v, key) in enumerate(info, start=5):
+        if key and isinstance(ws.cell(row=i, column=2).value, (int, float)):
+            ws.cell(row=i, column=2).number_format = excel_format(key, v)
     r0 = 6 + len(info)
     ws.cell(row=r0, column=1, value="Yields").font = Font(bold=True)
-    yrows = [[rec["name"], rec["vol_pct"], rec["wt_pct"], rec["api"], rec["sulfur_wt_pct"]]
-             for rec in result.cuts.rows()]
-    write_table(ws, ["Cut", LABELS["vol_pct"], LABELS["wt_pct"], LABELS["api"], LABELS["sulfur_wt_pct"]], yrows,
-                [None, "0.00", "0.00", "0.0", "0.000"], start_row=r0 + 1, widths=[30, 44, 14, 14, 14])
-    ws.freeze_panes = "A4"
+    ykeys = ["name", "vol_pct", "wt_pct"] + [k for k in ("bbl_per_day", "t_per_day") if k in result.cuts] \
+        + ["api", "sulfur_wt_pct"]
+    yrows = [[rec[k] for k in ykeys] for rec in result.cuts.rows()]
+    write_table(ws, ["Cut"] + [label_for(k) for k in ykeys[1:]], yrows, keys=[None] + ykeys[1:], start_row=r0 + 1,
+                widths=[34, 44] + [14] * (len(ykeys) - 2), autofilter=False, freeze="A5")
 
 
 ESTIMATED_FILL = "FFF2CC"
@@ -252,7 +289,7 @@ def _qualities_sheet(ws, cuts) -> None:
 
     names = quality_names(cuts)
     rows = [[r["name"], *[r[n] for n in names]] for r in cuts.rows()]
-    write_table(ws, ["Cut", *[label_for(n) for n in names]], rows, [None, *[fmt_for(n) or "0.00" for n in names]],
+    write_table(ws, ["Cut", *[label_for(n) for n in names]], rows, keys=[None, *names],
                 widths=[20] + [14] * len(names))
     est = list(cuts["estimated"])
     for i, r in enumerate(cuts.rows(), start=2):
@@ -276,19 +313,24 @@ def _qualities_sheet(ws, cuts) -> None:
         ws.cell(row=r0 + k, column=2, value=text)
 
 
-def _limits_sheet(ws, lim) -> None:
-    """Pass / fail / n/a per product limit, coloured."""
+def _limits_sheet(ws, lim, unit: str = "C") -> None:
+    """Pass / fail / n/a per product limit, coloured, with the unit of each limit; temperature limits in
+    ``unit`` ('C' or 'F'); each value with one decimal more than its limit (:func:`~.precision.limit_decimals`)."""
     from openpyxl.styles import PatternFill
 
-    write_table(ws, ["Cut", "Property", "Limit", "Required", "Value", "Status", "Note", "Source"],
-                [[r["cut"], r["property"], r["label"], r["limit"], r["value"], r["status"].upper(), r["note"],
-                  r["source"]] for r in lim.rows()],
-                [None, None, None, None, "0.0", None, None, None], widths=[16, 24, 40, 14, 10, 8, 40, 50])
+    rows = limits_in_unit(lim.rows(), unit)
+    write_table(ws, ["Cut", "Property", "Limit", "Required", "Value", "Unit", "Status", "Note", "Source"],
+                [[r["cut"], r["property"], r["label"], r["limit"], r["value"], r["unit"], r["status"].upper(),
+                  r["note"], r["source"]] for r in rows], widths=[16, 24, 40, 18, 10, 9, 8, 40, 50])
     colors = {"PASS": "C6EFCE", "FAIL": "FFC7CE", "N/A": "EDEDED"}
-    for i in range(2, len(lim) + 2):
-        c = ws.cell(row=i, column=6)
+    for i, r in enumerate(rows, start=2):
+        c = ws.cell(row=i, column=7)
         if c.value in colors:
             c.fill = PatternFill("solid", fgColor=colors[c.value])
+        v = ws.cell(row=i, column=5)
+        if isinstance(v.value, (int, float)):
+            nd = limit_decimals(r["limit"])
+            v.number_format = "0." + "0" * nd if nd else "0"
 
 
 def _bands_sheet(ws, bands) -> None:
@@ -298,11 +340,10 @@ def _bands_sheet(ws, bands) -> None:
     heads, keys, fmts = ["Cut"], ["name"], [None]
     for q in BAND_QUALITIES:
         for pct in (10, 50, 90):
-            heads.append(f"{LABELS[q]} P{pct}")
+            heads.append(f"{label_for(q)} P{pct}")
             keys.append(f"{q}_p{pct}")
-            fmts.append(fmt_for(q) or "0.00")
-    write_table(ws, heads, [[r[k] for k in keys] for r in bands.rows()], fmts)
-    ws.column_dimensions["A"].width = 20
+            fmts.append(q)
+    write_table(ws, heads, [[r[k] for k in keys] for r in bands.rows()], keys=fmts)
     ws.cell(row=len(bands) + 3, column=1, value=safe_text(f"{bands.attrs['draws']} Monte Carlo draws; "
                                                           f"{bands.attrs['sigmas']}"))
 

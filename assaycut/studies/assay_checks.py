@@ -122,6 +122,8 @@ def _curve_findings(model: CrudeModel, curve_where: str, src: str) -> list[Findi
                                + (f" (more than {LUMPED_WARN_PCT:g} vol %): the residue's boiling range, MeABP "
                                   f"and Watson K depend on that cap" if lumped else "")))
     for w in model.warnings:
+        if c.lumped_pct > 0 and "lumped up to" in w:  # said once, by the lumped finding above
+            continue
         out.append(Finding("warning", *_where_and_message(w, curve_where)))
     return out
 
@@ -276,5 +278,7 @@ def _narrow_cut_findings(assay: Assay, model: CrudeModel, src: str) -> list[Find
                 out.append(Finding(sev, ncw, f"sulfur on the narrow cuts' own wt % yields: {bal:.3f} wt %, the "
                                              f"whole crude {assay.sulfur_wt_pct:.3f} wt % ({rel:+.1f} %)"))
     elif nc is None:
-        out.append(Finding("info", src, "no narrow cuts: densities at constant Watson K, no cut sulfur"))
+        sulfur = ("cut sulfur estimated from the whole crude's" if model.sulfur_dist is not None
+                  else "no cut sulfur")
+        out.append(Finding("info", src, f"no narrow cuts: densities at constant Watson K, {sulfur}"))
     return out

@@ -139,8 +139,9 @@ def comparison_table(results):
     Returns
     -------
     pandas.DataFrame
-        One row per (cut, crude): vol_pct, wt_pct, sg, api, sulfur_wt_pct, watson_k, limits ('pass', 'fail',
-        'n/a' or '' when the cut has no limits; 'fail' if any limit fails).
+        One row per (cut, crude): vol_pct, wt_pct, bbl_per_day and t_per_day (with a crude run), sg, api,
+        sulfur_wt_pct, watson_k, limits ('pass', 'fail', 'n/a' or '' when the cut has no limits; 'fail' if any
+        limit fails), extrapolated (the cut rests partly on the fitted extension).
     """
     import pandas as pd
 
@@ -158,8 +159,10 @@ def comparison_table(results):
                   for cut in dict.fromkeys(x["cut"] for x in lim)}
         for c in r.cuts.rows():
             rows.append({"cut": c["name"], "crude": r.assay.name, "vol_pct": c["vol_pct"], "wt_pct": c["wt_pct"],
+                         **{k: c[k] for k in ("bbl_per_day", "t_per_day") if k in c},
                          "sg": c["sg"], "api": c["api"], "sulfur_wt_pct": c["sulfur_wt_pct"],
-                         "watson_k": c["watson_k"], "limits": status.get(c["name"], "")})
+                         "watson_k": c["watson_k"], "limits": status.get(c["name"], ""),
+                         "extrapolated": bool(c["extrapolated"])})
     return pd.DataFrame(rows)
 
 
@@ -175,8 +178,9 @@ def worth_table(results, prices: PriceSet):
     -------
     pandas.DataFrame
         One row per crude: rank, crude, worth_per_bbl, worth_per_t, crude_price_per_bbl, crude_price_per_t,
-        margin_per_bbl, margin_per_t [currency/bbl or /t of crude].  Ranked by margin per barrel when every
-        crude has a price, else by worth per barrel.
+        margin_per_bbl, margin_per_t [currency/bbl or /t of crude]; with a crude run (``--rate``, in the cut
+        tables) also worth_per_day and margin_per_day [currency/d] = per-bbl figure x run.  Ranked by margin
+        per barrel when every crude has a price, else by worth per barrel.
     """
     import pandas as pd
 
@@ -192,6 +196,9 @@ def worth_table(results, prices: PriceSet):
             cpb = cpt = math.nan
         rows.append({"crude": r.assay.name, "worth_per_bbl": wb, "worth_per_t": wt, "crude_price_per_bbl": cpb,
                      "crude_price_per_t": cpt, "margin_per_bbl": wb - cpb, "margin_per_t": wt - cpt})
+        run = r.cuts.attrs.get("rate_bbl_per_day")
+        if run:
+            rows[-1].update({"worth_per_day": wb * run, "margin_per_day": (wb - cpb) * run})
     df = pd.DataFrame(rows)
     key = ranked_by(df)
     df = df.sort_values(key, ascending=False, kind="stable").reset_index(drop=True)

@@ -129,6 +129,9 @@ class OptimResult:
     var_index: list[int] = field(default_factory=list)
     evaluations: int = 0
     generations: int = 0
+    bound_notes: list[str] = field(default_factory=list)
+    """Optimum cut points that sit on their search bound (the span, or a neighbour) or beyond the measured
+    curve, on the fitted extension: the answer there rests on the bound or on the extrapolation."""
 
 
 def needed(price) -> set[str]:
@@ -260,7 +263,27 @@ def optimize_cut_points(model: CrudeModel, cut_set: CutSet, limits: list[Limit],
     ends = problem.full(x_opt[None, :])[0]
     active = [labels[i] for i in use if marg_o[0, i] <= max(TOL, ACTIVE_REL * abs(problem.bounds[i]))]
     return OptimResult(ends, ends0, float(obj_o[0]), float(obj0[0]), True, converged=converged,
-                       active=active, **common)
+                       active=active, bound_notes=_bound_notes(model, names, var, ends, bounds, span_c), **common)
+
+
+BOUND_TOL_C = 0.05
+"""An optimum cut point this close to its search bound is said to sit on it. [°C]"""
+
+
+def _bound_notes(model, names, var, ends, bounds, span_c) -> list[str]:
+    """What :attr:`OptimResult.bound_notes` says of the optimum ``ends``."""
+    out = []
+    t_meas = float(model.curve.temp_at(model.curve.measured_hi))
+    for k, i in enumerate(var):
+        e, lo, hi = float(ends[i]), float(bounds[0][k]), float(bounds[1][k])
+        if min(e - lo, hi - e) <= BOUND_TOL_C:
+            side = "lower" if e - lo <= hi - e else "upper"
+            out.append(f"end of {names[i]} at {e:.1f} °C sits on its {side} search bound (--span {span_c:g} °C, or "
+                       f"a neighbouring cut point): the optimum may lie beyond it")
+        if e > t_meas + BOUND_TOL_C:
+            out.append(f"end of {names[i]} at {e:.1f} °C lies on the fitted extension (the curve is measured to "
+                       f"{t_meas:.1f} °C): the answer there rests on extrapolation")
+    return out
 
 
 def _min_yields(names, start_vol, given) -> dict[str, float]:

@@ -75,7 +75,7 @@ def test_xlsx_report_has_numeric_cells_and_sheets(tmp_path):
     ws = wb["cuts"]
     headers = [c.value for c in ws[1]]
     assert "Yield [vol %]" in headers and "Yield [wt %]" in headers and "D86 50 % [°C]" in headers
-    assert ws.freeze_panes == "B2"
+    assert ws.freeze_panes == "C2"  # crude and cut name stay in view (A is the same crude on every row)
     col = headers.index("Yield [vol %]") + 1
     vals = [ws.cell(row=i, column=col).value for i in range(2, ws.max_row + 1)]
     assert all(isinstance(v, float) for v in vals)  # real numbers, never numbers as text

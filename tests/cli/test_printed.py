@@ -48,7 +48,7 @@ def test_recovery_at_the_end_of_the_estimate_prints_as_a_lower_bound(demo_paths,
     p.write_text('[[limit]]\ncut = "diesel"\nproperty = "recovered_at_350c_pct"\nmin = 99.0\n'
                  'label = "diesel recovered at 350 °C"\n')
     r = runner.invoke(app, ["yields", demo_paths[0], "--limits", str(p)])
-    assert "(≥ 95, needs >= 99)" in r.stdout
+    assert "diesel recovered at 350 °C: ≥ 95 %, needs >= 99 %" in r.stdout
     d = json.loads(runner.invoke(app, ["yields", demo_paths[0], "--limits", str(p), "--json"]).stdout)
     assert "lower bound" in d["limits"][0]["note"]
 
