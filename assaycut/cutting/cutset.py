@@ -146,11 +146,12 @@ def validate_cut_set(cuts: list[Cut], label: str) -> None:
                               f"{ca.name!r} at {a:g} °C")
 
 
-DEFAULT_CUTS = [Cut("light ends", 15.0), Cut("light naphtha", 85.0), Cut("heavy naphtha", 177.0),
-                Cut("kerosene", 232.0), Cut("diesel", 343.0), Cut("vacuum gas oil", 566.0),
-                Cut("vacuum residue", None)]
-"""The shipped default cut set: TBP cut points from the usual °F round numbers (15 °C for C4-minus, 185 °F,
-350 °F, 450 °F, 650 °F, 1050 °F; common practice, no source)."""
+DEFAULT_CUTS = [Cut("light ends", 15.0)] + [Cut(n, (f - 32.0) / 1.8) for n, f in (
+    ("light naphtha", 185.0), ("heavy naphtha", 350.0), ("kerosene", 450.0), ("diesel", 650.0),
+    ("vacuum gas oil", 1050.0))] + [Cut("vacuum residue", None)]
+"""The shipped default cut set: TBP cut points at the usual °F round numbers, kept exact in °C so that a report
+in °F shows them as they are named (15 °C for C4-minus, 185 °F, 350 °F, 450 °F, 650 °F, 1050 °F; common
+practice, no source)."""
 
 
 def default_cut_set() -> CutSet:

@@ -114,7 +114,7 @@ def sweep(model: CrudeModel, cut_set: CutSet, name: str, t_from: float, t_to: fl
     hi = ends[k + 1] if k + 1 < len(ends) else math.inf
     if t_from <= lo or t_to >= hi:
         raise StudyError(f"the sweep {t_from:g}-{t_to:g} °C must stay strictly between the neighbouring cut points "
-                         f"({lo:g} and {hi:g} °C)")
+                         f"({lo:.1f} and {hi:.1f} °C)")
     pts = t_from + step * np.arange(n_steps)
     # only the two neighbours change: cut with the cut points around them (prev end, moving point, next end)
     sub = [ends[k - 1]] if k > 0 else []

@@ -149,14 +149,15 @@ def test_unit_f_puts_the_limits_sheet_markdown_and_warnings_in_fahrenheit(demo_p
 
 
 def test_the_optimiser_says_when_an_end_sits_on_its_bound_or_on_the_extension(demo_paths):
-    # Selkie Light with the demo prices pushes the VGO end up to its span: 566 + 60 = 626 °C (arithmetic),
+    # Selkie Light with the demo prices pushes the VGO end up to its span: 1050 °F (565.6 °C) + 60 °C (arithmetic),
     # beyond the end of the measured curve (565 °C, the assay's distillation sheet).
     d = json.loads(_run(["optimize", demo_paths[0], "--prices", PRICES, "--json"]).stdout)
     assert d["feasible"]
     vgo = d["optimum"]["cut_points_c"]["vacuum gas oil"]
-    assert vgo == pytest.approx(626.0, abs=0.05)
+    bound = (1050.0 - 32.0) / 1.8 + 60.0
+    assert vgo == pytest.approx(bound, abs=0.05)
     notes = " ".join(d["bound_notes"])
-    assert "end of vacuum gas oil at 626.0 °C sits on its upper search bound" in notes
+    assert f"end of vacuum gas oil at {bound:.1f} °C sits on its upper search bound" in notes
     assert "lies on the fitted extension" in notes
     r = _run(["optimize", demo_paths[0], "--prices", PRICES, "--out", "o"])
     assert "sits on its upper search bound" in r.stdout

@@ -64,7 +64,7 @@ def test_sweep_endpoints_equal_single_runs(demos):
 
 def test_sweep_errors(demos):
     a, m = demos[0]
-    with pytest.raises(StudyError, match=r"must stay strictly between the neighbouring cut points \(177 and 343 °C\)"):
+    with pytest.raises(StudyError, match=r"must stay strictly between the neighbouring cut points \(176.7 and 343.3 °C\)"):
         sweep(m, default_cut_set(), "kerosene", 150.0, 250.0, 5.0)
     with pytest.raises(StudyError, match="no cut named 'jet'"):
         sweep(m, default_cut_set(), "jet", 200.0, 250.0, 5.0)
