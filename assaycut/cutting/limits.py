@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import math
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -223,16 +223,29 @@ def meets(lim: Limit, value: float) -> bool:
     return ok
 
 
+SWING_HALVES = (" (light half)", " (heavy half)")
+"""Suffixes of the two halves a swing cut is reported as (see :meth:`~.cutset.CutSet.reported`)."""
+
+
 def applicable(limits: list[Limit], names: list[str]) -> list[Limit]:
     """The limits whose cut is among ``names`` (a limit on a cut the cut set lacks does not apply; see
-    :func:`unmatched_cuts`)."""
-    return [lim for lim in limits if lim.cut in names]
+    :func:`unmatched_cuts`).  A limit on a swing cut applies to each of its halves: either half may go to the
+    product, so each must meet the product's limits (common practice, no source)."""
+    out = []
+    for lim in limits:
+        if lim.cut in names:
+            out.append(lim)
+        elif all(lim.cut + h in names for h in SWING_HALVES):
+            out += [replace(lim, cut=lim.cut + h) for h in SWING_HALVES]
+    return out
 
 
 def unmatched_cuts(limits: list[Limit], names: list[str]) -> list[str]:
     """Cut names that limits refer to but the cut set does not have (e.g. 'kerosene' after a renaming to
-    'kero'), in the limits' order: those limits are not checked, and reports say so."""
-    return list(dict.fromkeys(lim.cut for lim in limits if lim.cut not in names))
+    'kero'), in the limits' order: those limits are not checked, and reports say so.  A swing cut's name is
+    matched by its halves (:func:`applicable`)."""
+    return list(dict.fromkeys(lim.cut for lim in limits if lim.cut not in names
+                              and not all(lim.cut + h in names for h in SWING_HALVES)))
 
 
 def nearest_cut(name: str, names: list[str]) -> str | None:
