@@ -38,6 +38,24 @@ class _OneLineErrors(TyperGroup):
         sys.exit(rv if isinstance(rv, int) else 0)
 
 
+def _plain_arguments() -> None:
+    """Arguments with a metavar of their own (ASSAY, FILE) are shown by it alone in --help, without typer's
+    type tag ("ASSAY <str>"); a typer without this help renderer is left as it is."""
+    import typer.core as tc
+
+    arg = getattr(tc, "TyperArgument", None)
+    shown = getattr(arg, "display_type_rich", None)
+    if shown is None:
+        return
+
+    def plain(self, ctx):
+        return "" if self.metavar else shown(self, ctx)
+
+    arg.display_type_rich = plain
+
+
+_plain_arguments()
+
 app = typer.Typer(
     cls=_OneLineErrors,
     name="assaycut",

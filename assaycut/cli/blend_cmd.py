@@ -61,21 +61,21 @@ def blend(
     shares: Annotated[list[str], typer.Argument(help="ASSAY=PERCENT for each crude (the percents add up to 100); "
                                                 "with --optimize, ASSAY or ASSAY=MIN:MAX share bounds in %.",
                                                 metavar="ASSAY=PCT")],
-    out: Annotated[Optional[Path], typer.Option("--out", help="New assay workbook to write (.xlsx).",
+    out: Annotated[Optional[Path], typer.Option("--out", metavar="NEW.xlsx", help="New assay workbook to write (.xlsx).",
                                                 dir_okay=False)] = None,
-    basis: Annotated[Basis, typer.Option("--basis", help="Basis of the shares and of the blended curve.")] = Basis.vol,
-    name: Annotated[Optional[str], typer.Option("--name", help="Name of the blend.")] = None,
+    basis: Annotated[Basis, typer.Option("--basis", metavar="vol|wt", help="Basis of the shares and of the blended curve.")] = Basis.vol,
+    name: Annotated[Optional[str], typer.Option("--name", metavar="NAME", help="Name of the blend.")] = None,
     shrinkage: Annotated[bool, typer.Option("--shrinkage", help="Apply API MPMS 12.3 light-ends shrinkage "
                                             "(off by default).")] = False,
     optimize_: Annotated[bool, typer.Option("--optimize", help="Find the shares that meet the targets at the "
                                             "best worth (or lowest crude cost) instead of taking them.")] = False,
     prices: PricesOpt = None,
-    objective: Annotated[BlendObjective, typer.Option("--objective", help="With --optimize: 'worth' (margin "
+    objective: Annotated[BlendObjective, typer.Option("--objective", metavar="worth|cost", help="With --optimize: 'worth' (margin "
                                                       "when crude prices are given) or 'cost' (cheapest crude "
                                                       "slate).")] = BlendObjective.worth,
-    api_min: Annotated[Optional[float], typer.Option("--api-min", help="Target: blend API at least [°API].")] = None,
-    api_max: Annotated[Optional[float], typer.Option("--api-max", help="Target: blend API at most [°API].")] = None,
-    sulfur_max: Annotated[Optional[float], typer.Option("--sulfur-max", help="Target: blend sulfur at most "
+    api_min: Annotated[Optional[float], typer.Option("--api-min", metavar="API", help="Target: blend API at least [°API].")] = None,
+    api_max: Annotated[Optional[float], typer.Option("--api-max", metavar="API", help="Target: blend API at most [°API].")] = None,
+    sulfur_max: Annotated[Optional[float], typer.Option("--sulfur-max", metavar="WT_PCT", help="Target: blend sulfur at most "
                                                         "[wt %].")] = None,
     min_yield: Annotated[Optional[list[str]], typer.Option("--min-yield", metavar="CUT=PCT",
                                                            help="Target: a cut's yield at least PCT vol %. "

@@ -212,20 +212,28 @@ class TUnit(str, enum.Enum):
     F = "F"
 
 
-CutsOpt = Annotated[Optional[Path], typer.Option("--cuts", help="Cut-set TOML file ([[cut]] name, end_c). "
+CutsOpt = Annotated[Optional[Path], typer.Option("--cuts", metavar="FILE", help="Cut-set TOML file ([[cut]] name, end_c). "
                                                   "Default: the shipped cut set (see cuts_default.toml).",
                                                   dir_okay=False)]
-LimitsOpt = Annotated[Optional[Path], typer.Option("--limits", help="Product-limits TOML file ([[limit]]), or a "
+LimitsOpt = Annotated[Optional[Path], typer.Option("--limits", metavar="FILE|SET", help="Product-limits TOML file ([[limit]]), or a "
                                                     "shipped set: 'blendstock' (default: straight-run targets a "
                                                     "planner cuts to) or 'finished' (EN 590 / ASTM D1655 finished-"
                                                     "fuel specs). Shipped values are from memory.",
                                                     dir_okay=False)]
 RateOpt = Annotated[Optional[float], typer.Option("--rate", help="Crude run [bbl/d]: adds each cut's bbl_per_day, "
                                                  "m3_per_day and t_per_day.", min=1e-9, max=1e8, metavar="BBL_PER_DAY")]
-PricesOpt = Annotated[Optional[Path], typer.Option("--prices", help="Price file (TOML): [products] price per cut "
+PricesOpt = Annotated[Optional[Path], typer.Option("--prices", metavar="FILE", help="Price file (TOML): [products] price per cut "
                                                     "per_bbl or per_t, optional [crudes] prices.", dir_okay=False)]
-EndOpt = Annotated[Optional[list[str]], typer.Option("--end", help="Override one cut's end: NAME=TEMP_C. "
-                                                      "Repeatable.", metavar="NAME=TEMP_C")]
+def _end_help() -> str:
+    """The --end help: the form, quoting, and the cut names of the shipped set."""
+    from ..cutting.cutset import DEFAULT_CUTS
+
+    names = ", ".join(c.name for c in DEFAULT_CUTS[:-1])
+    return (f"Move one cut's end to TEMP_C [°C TBP], e.g. --end kerosene=240, or --end 'heavy naphtha=160' (quote a "
+            f"name with spaces). Repeatable. The shipped set's cuts with an end: {names}; with --cuts, that file's.")
+
+
+EndOpt = Annotated[Optional[list[str]], typer.Option("--end", help=_end_help(), metavar="NAME=TEMP_C")]
 ScaleOpt = Annotated[bool, typer.Option(
     "--scale-cuts", help="Scale the narrow cuts' density and sulfur proportionally so that they reproduce the whole "
                          "crude, instead of keeping them as measured and closing the balance on the part of the crude "
@@ -242,7 +250,7 @@ JsonOpt = Annotated[bool, typer.Option("--json", help="Print JSON on stdout.")]
 UncertOpt = Annotated[int, typer.Option("--uncertainty", metavar="DRAWS", min=0, max=5000,
                                         help="Monte Carlo draws for P10/P50/P90 bands under the assay's measurement "
                                              "uncertainty (0: off; 200 is a good start).")]
-AssayArg = Annotated[Optional[str], typer.Argument(help="Assay. Default: the demo.")]
+AssayArg = Annotated[Optional[str], typer.Argument(help="Assay. Default: the demo.", metavar="ASSAY")]
 
 
 def parse_ends(items: list[str] | None, option: str = "--end", what: str = "a temperature in °C") -> dict[str, float]:

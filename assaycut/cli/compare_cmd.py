@@ -40,12 +40,12 @@ app = typer.Typer()
 @app.command()
 @guarded
 def compare(
-    assays: Annotated[list[str], typer.Argument(help="Assays (files, folders or globs); one alone can be priced.")],
+    assays: Annotated[list[str], typer.Argument(metavar="ASSAY...", help="Assays (files, folders or globs); one alone can be priced.")],
     cuts: CutsOpt = None,
     limits: LimitsOpt = None,
     prices: PricesOpt = None,
     json_out: JsonOpt = False,
-    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/compare/.",
+    out: Annotated[Optional[Path], typer.Option("--out", metavar="DIR", help="Report folder. Default: reports/compare/.",
                                                 file_okay=False)] = None,
     end: EndOpt = None,
     uncertainty: UncertOpt = 0,

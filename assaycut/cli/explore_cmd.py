@@ -19,15 +19,15 @@ MAX_CRUDES = 40
 @app.command()
 @guarded
 def explore(
-    assays: Annotated[Optional[list[str]], typer.Argument(help="Assay workbooks (.xlsx), folders or globs. "
+    assays: Annotated[Optional[list[str]], typer.Argument(metavar="ASSAY...", help="Assay workbooks (.xlsx), folders or globs. "
                                                           "Default: the demo assays.")] = None,
     cuts: CutsOpt = None,
     limits: LimitsOpt = None,
     prices: PricesOpt = None,
-    port: Annotated[Optional[int], typer.Option("--port", min=1, max=65535, help="Port on 127.0.0.1. Default: a "
+    port: Annotated[Optional[int], typer.Option("--port", metavar="PORT", min=1, max=65535, help="Port on 127.0.0.1. Default: a "
                                                 "free port.")] = None,
     open_browser: Annotated[bool, typer.Option("--open", help="Open the page in the default browser.")] = False,
-    method: Annotated[TdMethod, typer.Option("--method", help="TBP <-> D86 correlation for D86 input curves.")]
+    method: Annotated[TdMethod, typer.Option("--method", metavar="daubert-1994|riazi-daubert-1986", help="TBP <-> D86 correlation for D86 input curves.")]
     = TdMethod.daubert_1994,
     api: ApiOpt = None,
     sg: SgOpt = None,

@@ -6,6 +6,8 @@ from __future__ import annotations
 import json
 import re
 
+import pytest
+
 from typer.testing import CliRunner
 
 from assaycut.cli import app
@@ -94,3 +96,19 @@ def test_every_sheet_prints_to_the_page_width_with_a_header_and_numbers_formatte
             for c in row:
                 if isinstance(c.value, float):
                     assert c.number_format != "General", (ws.title, c.coordinate)
+
+
+@pytest.mark.parametrize("command", ["yields", "check", "template", "convert", "compare", "blend", "vectors", "shift",
+                                     "sweep", "optimize", "explore"])
+def test_help_shows_plain_metavars_and_the_cut_names(command):
+    # A user reads "--cuts FILE", not "--cuts <file>" or "assays... <list[str]>" (common practice, no source).
+    r = runner.invoke(app, [command, "--help"], env={"COLUMNS": "100"})
+    assert r.exit_code == 0
+    tags = re.findall(r"<(?:str|float|int|file|dir|path|list\[[^\]]*\]|[a-z]+ range|[A-Za-z0-9-]+\|[^>]*)>", r.stdout)
+    assert tags == [], tags
+    if "--end NAME=TEMP_C" in r.stdout:
+        from assaycut.cutting.cutset import default_cut_set
+
+        text = " ".join(r.stdout.split())
+        assert "quote a name with spaces" in text
+        assert all(n in text for n in default_cut_set().names[:-1])
