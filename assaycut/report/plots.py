@@ -25,14 +25,29 @@ def pyplot():
     return plt
 
 
-def _save(fig, target) -> None:
-    """Render ``fig`` as PNG to ``target`` (a binary file object; the report writer places it atomically)."""
-    fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
+PNG_DPI = 150
+"""Resolution of every PNG of the reports [dots per inch]."""
+
+
+def _save(fig, target, tight: bool = True) -> None:
+    """Render ``fig`` as PNG to ``target`` (a binary file object; the report writer places it atomically), at
+    :data:`PNG_DPI`; ``tight=False`` for a figure laid out with fixed margins (much faster to render)."""
+    fig.savefig(target, dpi=PNG_DPI, bbox_inches="tight" if tight else None, format="png")
 
 
 def plot_tbp(result, target) -> None:
+    """The :func:`tbp_figure` of ``result`` as PNG into ``target``."""
+    plt = pyplot()
+    fig = tbp_figure(result)
+    _save(fig, target)
+    plt.close(fig)
+
+
+def tbp_figure(result):
     """TBP curve with the cuts shaded and named; measured part solid, extrapolated part dashed, with the
-    spread of the extension (:func:`~assaycut.model.tbp_curve.extension_band`) as a band."""
+    spread of the extension (:func:`~assaycut.model.tbp_curve.extension_band`) as a band.  Each wide cut is
+    named inside its band on the side the curve leaves free; narrow cuts on leaders, stacked under the curve.
+    Returns the matplotlib Figure (the caller closes it)."""
     plt = pyplot()
     m = result.model
     c = m.curve
@@ -61,18 +76,22 @@ def plot_tbp(result, target) -> None:
     tmin, tmax = float(t.min()), float(t.max())
     span = tmax - tmin
     n_out = 0
-    for i, r in enumerate(result.cuts.rows()):
+    rows = result.cuts.rows()
+    right = max([min(r["cum_vol_pct"], PLOT_TOP_PCT) for r in rows if r["vol_pct"] < LABEL_MIN_PCT] or [0.0])
+    for i, r in enumerate(rows):
         lo, hi = r["cum_vol_pct"] - r["vol_pct"], min(r["cum_vol_pct"], PLOT_TOP_PCT)
         if hi <= lo:
             continue
         ax.axvspan(lo, hi, color=CUT_COLOURS[i % len(CUT_COLOURS)], alpha=0.7, lw=0)
         text = f"{r['name']} {r['vol_pct']:.1f}%"
-        if hi - lo >= LABEL_MIN_PCT:
-            ax.text((lo + hi) / 2, tmin + 0.03 * span, text.replace(" ", "\n", 1) if len(text) > 14 else text,
-                    rotation=90, ha="center", va="bottom", fontsize=8)
-        else:  # a narrow cut: its label on a leader line, stacked to the right so labels never overlap
-            ax.annotate(text, xy=((lo + hi) / 2, tmin + 0.02 * span),
-                        xytext=(hi + 4.0 + 2.0 * n_out, tmin + (0.30 + 0.08 * n_out) * span), fontsize=8,
+        if hi - lo >= LABEL_MIN_PCT:  # the label on the side of the band the curve leaves free
+            low_curve = float(c.temp_at((lo + hi) / 2)) < tmin + 0.5 * span
+            ax.text((lo + hi) / 2, tmax - 0.03 * span if low_curve else tmin + 0.03 * span,
+                    text.replace(" ", "\n", 1) if len(text) > 14 else text, rotation=90, ha="center",
+                    va="top" if low_curve else "bottom", fontsize=8)
+        else:  # a narrow cut: its label on a leader line, stacked under the curve to the right of the narrow cuts
+            ax.annotate(text, xy=((lo + hi) / 2, tmin + 0.01 * span),
+                        xytext=(right + 3.0, tmin + (0.04 + 0.075 * n_out) * span), fontsize=8, va="center",
                         arrowprops={"arrowstyle": "-", "lw": 0.7, "color": "#424242"},
                         bbox={"boxstyle": "round,pad=0.2", "fc": "white", "ec": "#9e9e9e", "lw": 0.5})
             n_out += 1
@@ -83,9 +102,8 @@ def plot_tbp(result, target) -> None:
     ax.set_ylabel("TBP [°C]")
     ax.set_title(f"{result.assay.name}: TBP curve and cuts (estimates for screening)")
     ax.grid(alpha=0.3)
-    ax.legend(loc="upper left", fontsize=8)
-    _save(fig, target)
-    plt.close(fig)
+    ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.11), ncol=2, fontsize=8, frameon=False)
+    return fig
 
 
 def plot_yields(result, target) -> None:
@@ -217,46 +235,66 @@ CUT_COLOURS_DARK = ["#546e7a", "#0277bd", "#00838f", "#f9a825", "#ef6c00", "#6d4
 """Line colours of the products, in order (our own palette)."""
 
 
+def quality_order(cuts, names: list[str]) -> list[str]:
+    """Quality columns in boiling order: by the volume-weighted middle of the cuts that carry a value (RVP and
+    octane of the naphthas first, the residue's CCR and metals last), then by name."""
+    mids = np.asarray(cuts["cum_vol_pct"], dtype=float) - 0.5 * np.asarray(cuts["vol_pct"], dtype=float)
+    vol = np.asarray(cuts["vol_pct"], dtype=float)
+
+    def where(n):
+        v = np.array([x is not None and np.isfinite(x) for x in cuts[n]], dtype=bool)
+        return float(np.sum(mids[v] * vol[v]) / np.sum(vol[v])) if v.any() and np.sum(vol[v]) > 0 else 101.0
+
+    return sorted(names, key=lambda n: (where(n), n))
+
+
 def plot_qualities(result, target) -> None:
-    """One panel per quality: the narrow cuts' measured values as steps over their range, and each cut's
-    value as a bar across the cut (solid: from the narrow cuts; hatched: estimated by a correlation)."""
-    from ..methods.blending_indices import rule_for
+    """One panel per quality, in boiling order (:func:`quality_order`), all against distilled vol %: the
+    narrow cuts' measured values as steps over their range, and each cut's value as a bar across the cut
+    (solid: from the narrow cuts; hatched: estimated by a correlation), named under the axis.  Laid out with
+    fixed margins (tight layout over twenty panels took most of a report's time)."""
     from ..model.distributions import narrow_cut_positions
     from .tables import label_for, quality_names
 
     plt = pyplot()
     cuts = result.cuts
-    names = quality_names(cuts)
+    names = quality_order(cuts, quality_names(cuts))
     ncol = 4
     nrow = -(-len(names) // ncol)
-    fig, axes = plt.subplots(nrow, ncol, figsize=(4.2 * ncol, 3.0 * nrow), squeeze=False)
+    fig, axes = plt.subplots(nrow, ncol, figsize=(4.4 * ncol, 3.1 * nrow + 0.9), squeeze=False)
+    top, bottom = 1.0 - 0.75 / (3.1 * nrow + 0.9), 0.75 / (3.1 * nrow + 0.9)
+    fig.subplots_adjust(left=0.05, right=0.99, top=top, bottom=bottom, wspace=0.28, hspace=0.75)
     m = result.model
     nc = result.assay.narrow_cuts
     pos = narrow_cut_positions(result.assay, m.curve) if nc is not None else None
     recs = cuts.rows()
     for ax, name in zip(axes.flat, names):
-        wt = rule_for(name).basis == "wt"
+        ticks, labels = [], []
         for r in recs:
             val = r[name]
             if val is None or not np.isfinite(val):
                 continue
-            lo = (r["cum_wt_pct"] - r["wt_pct"]) if wt else (r["cum_vol_pct"] - r["vol_pct"])
-            hi = r["cum_wt_pct"] if wt else r["cum_vol_pct"]
+            lo, hi = r["cum_vol_pct"] - r["vol_pct"], r["cum_vol_pct"]
             est = name in r["estimated"]
             ax.bar((lo + hi) / 2, val, width=hi - lo, color="#9fa8da" if not est else "#ffe082",
                    edgecolor="#283593" if not est else "#ff8f00", hatch="//" if est else None,
                    lw=1.4 if r["extrapolated"] else 0.6, ls="--" if r["extrapolated"] else "-", alpha=0.8)
+            ticks.append((lo + hi) / 2)
+            labels.append(r["name"])
         if pos is not None and name in nc.extras:
             va, vb = pos
-            a, b = (m.wt_at_vol(va), m.wt_at_vol(vb)) if wt else (va, vb)
             y = nc.extras[name]
             ok = np.isfinite(y)
-            ax.hlines(y[ok], a[ok], b[ok], color="#b71c1c", lw=2, label="narrow cuts (measured)")
-        ax.set_title(label_for(name), fontsize=9)
-        ax.set_xlabel(f"Distilled [{'wt' if wt else 'vol'} %]", fontsize=8)
-        ax.set_xlim(0, 100)
-        ax.tick_params(labelsize=7)
-        ax.grid(alpha=0.3)
+            ax.hlines(y[ok], va[ok], vb[ok], color="#b71c1c", lw=2, label="narrow cuts (measured)")
+        ax.set_title(label_for(name), fontsize=9, y=1.0, pad=4)  # a fixed place: no title-position search
+        spans = [(r["cum_vol_pct"] - r["vol_pct"], r["cum_vol_pct"]) for r in recs
+                 if r[name] is not None and np.isfinite(r[name])]
+        lo_x = min([a for a, _ in spans], default=0.0)
+        hi_x = max([b for _, b in spans], default=100.0)
+        ax.set_xlim(lo_x, hi_x if hi_x > lo_x else lo_x + 1.0)  # the cuts that carry the quality, spread out
+        ax.set_xticks(ticks, labels, rotation=30, ha="right", fontsize=6.5)
+        ax.tick_params(axis="y", labelsize=7)
+        ax.grid(alpha=0.3, axis="y")
         if name.startswith("viscosity") and np.nanmax(np.asarray(cuts[name], dtype=float)) > 50:
             ax.set_yscale("log")
     for ax in list(axes.flat)[len(names):]:
@@ -269,7 +307,7 @@ def plot_qualities(result, target) -> None:
                               label="cut flagged extrapolated (dashed edge)"),
                         plt.Line2D([], [], color="#b71c1c", lw=2, label="narrow cut, measured")],
                loc="lower center", ncol=4, fontsize=9, frameon=False)
-    fig.suptitle(f"{result.assay.name}: qualities per cut (estimates for screening)")
-    fig.tight_layout(rect=(0, 0.04, 1, 0.97))
-    _save(fig, target)
+    fig.suptitle(f"{result.assay.name}: qualities per cut, each bar across its cut's share of the crude "
+                 f"[vol %] (estimates for screening)")
+    _save(fig, target, tight=False)
     plt.close(fig)
