@@ -95,6 +95,12 @@ def parse_cut_request(doc, names: list[str], need_assay: bool = True) -> tuple[s
     return name, out
 
 
+PAGE_COLUMNS = ("vol_pct", "wt_pct", "api", "sg", "sulfur_wt_pct", "watson_k", "end_c", "d86_10_c", "d86_90_c",
+                "flash_c_est", "cetane_index_d4737", "freeze_point_c", "smoke_point_mm", "cloud_point_c",
+                "viscosity_40c_cst", "worth_per_bbl", "bbl_per_day")
+"""The columns the explorer page shows (their digits come from :func:`~assaycut.report.precision.rule`)."""
+
+
 class Explorer:
     """The crudes, cut set, limits and prices of one explorer run.
 
@@ -189,8 +195,11 @@ class Explorer:
 
     def assays_json(self) -> dict:
         """``GET /api/assays``: the loaded crudes (name, file, gravity, sulfur, the TBP curve to draw and where it
-        is measured), the starting cut set, whether prices are loaded, and the cautions."""
+        is measured), the starting cut set, whether prices are loaded, the cautions, and ``precision``: the
+        shown-digits rule (:func:`~assaycut.report.precision.rule`, ``[kind, n]``) of each column the page
+        shows, so that the page shows every number as the reports do."""
         from ..report.jsonout import json_safe
+        from ..report.precision import rule
         from ..yields import CAUTIONS
 
         grid = np.arange(0.0, 100.0 + CURVE_STEP_PCT / 2, CURVE_STEP_PCT)
@@ -198,7 +207,7 @@ class Explorer:
         for c in self.crudes.values():
             curve = c.model.curve
             crudes.append({
-                "name": c.name, "source": c.path, "origin": c.assay.origin,
+                "name": c.name, "source": c.assay.source, "origin": c.assay.origin,
                 "api": json_safe(c.assay.api), "sg": json_safe(c.assay.sg),
                 "sulfur_wt_pct": json_safe(c.model.given_sulfur_wt_pct),
                 "curve": {"vol_pct": grid.tolist(), "temp_c": [round(float(t), 3) for t in curve.temp_at(grid)]},
@@ -209,7 +218,8 @@ class Explorer:
                             "cuts": [{"name": k.name, "end_c": k.end_c, "swing": k.swing} for k in self.cut_set.cuts]},
                 "limits": len(self.limits), "prices": self.prices is not None,
                 "currency": self.prices.currency if self.prices is not None else None,
-                "method": self.method, "notes": list(CAUTIONS)}
+                "method": self.method, "notes": list(CAUTIONS),
+                "precision": {k: list(rule(k)) for k in PAGE_COLUMNS}}
 
     def cut_set_toml(self, ends: dict[str, float]) -> str:
         """The cut set at the page's cut points as a cut-set TOML file (``--cuts`` reads it back)."""

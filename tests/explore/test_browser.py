@@ -77,7 +77,7 @@ def test_drag_a_handle_and_the_yields_follow(tmp_path):
             diesel_end = round((650.0 - 32.0) / 1.8 - 11.0, 1)  # 650 °F, less 11 °C
             assert float(page.locator('input[data-cut-point="diesel"]').input_value()) == diesel_end
             diesel_range = 'article[data-crude="Selkie Light"] tr[data-cut="diesel"] td:nth-child(2)'
-            page.wait_for_function("(sel) => document.querySelector(sel).textContent.endsWith('–332.3')",
+            page.wait_for_function("(sel) => document.querySelector(sel).textContent.endsWith('– 332.3')",
                                    arg=diesel_range, timeout=10_000)  # the table follows: diesel ends at 332.3
             # the cut-set download carries the dragged cut point
             with page.expect_download() as dl:
@@ -91,5 +91,49 @@ def test_drag_a_handle_and_the_yields_follow(tmp_path):
             assert dict(zip(cs.names, cs.ends_c))["diesel"] == pytest.approx((650.0 - 32.0) / 1.8 - 11.0, abs=1e-9)
             page.screenshot(path=str(tmp_path / "explorer.png"), full_page=True)
             assert errors == []
+        finally:
+            browser.close()
+
+
+def test_at_laptop_size_the_chart_and_the_results_are_in_view_together_and_fields_say_what_is_wrong():
+    # 1100 x 800 px, a laptop browser window (common practice, no source). What is checked is what the user sees:
+    # the chart and the first cut table both inside the window; no "±0.00" change before anything moved;
+    # every handle's full cut name; the handles' slider range for assistive technology; a refused value said
+    # beside its field, with the field back at the cut point in use.
+    assert CHROMIUM, "ASSAYCUT_REQUIRE_BROWSER=1 but no chromium is installed"
+    from playwright.sync_api import sync_playwright
+
+    with running_explorer() as (url, port, token, _), sync_playwright() as p:
+        browser = p.chromium.launch(executable_path=CHROMIUM, args=FLAGS)
+        try:
+            page = browser.new_page(viewport={"width": 1100, "height": 800})
+            page.goto(url)
+            page.wait_for_selector("body[data-ready=yes]", timeout=20_000)
+            page.wait_for_selector('article[data-crude="Selkie Light"] table.cuts')
+            chart = page.locator("#tbp-chart").bounding_box()
+            table = page.locator('article[data-crude="Selkie Light"] table.cuts').bounding_box()
+            for box in (chart, table):
+                assert box["x"] >= 0 and box["y"] >= 0 and box["y"] + min(box["height"], 200) <= 800
+            assert chart["x"] + chart["width"] <= table["x"]  # side by side
+            body = page.inner_text("body")
+            assert "±0.00" not in body and "+0.00" not in body
+            names = page.eval_on_selector_all("g.handle", "hs => hs.map(h => h.textContent)")
+            assert any(t.endswith("vacuum gas oil") for t in names) and not any("…" in t for t in names)
+            kero = page.locator('g[data-handle="kerosene"]')
+            lo, hi = float(kero.get_attribute("aria-valuemin")), float(kero.get_attribute("aria-valuemax"))
+            assert lo < float(kero.get_attribute("aria-valuenow")) < hi
+            field = page.locator('input[data-cut-point="kerosene"]')
+            before = field.input_value()
+            field.fill("9999")
+            field.press("Enter")
+            err = page.locator('[data-field-error="kerosene"]')
+            assert "9999 refused" in err.inner_text()
+            assert field.input_value() == before  # back at the cut point the page still uses
+            ebox, fbox = err.bounding_box(), field.bounding_box()
+            assert abs(ebox["y"] - (fbox["y"] + fbox["height"])) < 60  # beside the field, not a far toast
+            light = page.locator('input[data-cut-point="light ends"]')
+            light.fill("-50")
+            light.press("Enter")
+            assert "refused" in page.locator('[data-field-error="light ends"]').inner_text()
         finally:
             browser.close()

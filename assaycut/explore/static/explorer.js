@@ -5,13 +5,20 @@
 
 const TOKEN = new URLSearchParams(window.location.search).get("token") || "";
 const SVG_NS = "http://www.w3.org/2000/svg";
-const PALETTE = ["#0f6e7c", "#b4532a", "#5d7f1e", "#6d4aa0", "#b68a00", "#8a3b5c", "#2d5d9f", "#6b5a3a"];
+// Crude colours of our own, chosen to stay apart for red-green colour-blind readers (blue / orange / sky /
+// brown / rose / green differ in lightness as well as hue), each with its own dash pattern and a name label
+// at the end of its curve; handles use HANDLE_COLOUR, which no crude uses.
+const PALETTE = ["#1f4e9c", "#e08a1e", "#6fb7e8", "#7a4f00", "#c94f8a", "#3f8f5f", "#444c9e", "#b0a23a"];
+const DASHES = ["none", "9 3", "3 3", "12 3 3 3", "6 6", "2 5", "14 4", "5 2 1 2"];
+const HANDLE_COLOUR = "#3b3b3b";
+const HANDLE_MOVED = "#6a3d9a";
+const LOWEST_CUT_C = -40;       // the first cut point stays above this (propane boils at -42 °C) [°C]
 const SHOWN_AT_START = 3;       // crudes shown side by side when the page opens
 const STEP_C = 0.5;             // handle positions snap to this [°C]
 const MIN_GAP_C = 1.0;          // a cut point stays this far from its neighbours [°C]
 const KEY_STEP_C = 1.0;         // an arrow key moves a focused handle this far [°C]; with Shift, KEY_BIG_STEP_C
 const KEY_BIG_STEP_C = 10.0;
-const CHART = { w: 660, h: 430, left: 56, right: 128, top: 14, bottom: 40 };
+const CHART = { w: 660, h: 400, left: 56, right: 172, top: 14, bottom: 40 };
 const CHART_FLOOR_C = 50;       // the chart starts this far below the lowest cut point (light ends below it clip)
 
 const state = {
@@ -28,6 +35,7 @@ const state = {
   worthStart: {},      // name -> worth JSON (start)
   pending: {},         // name -> {busy, again}
   scale: null,
+  precision: {},       // column -> [kind, n], the reports' digits rule (from /api/assays)
 };
 
 // ---------- server calls ----------
@@ -74,15 +82,41 @@ function num(v, nd) {
   const s = Number(v).toFixed(nd);
   return /^-0(\.0*)?$/.test(s) ? s.slice(1) : s;
 }
-function signed(v, nd) {
+// The digits of a column by the reports' rule (server: assaycut.report.precision, sent as state.precision):
+// ["dp", n] decimals, or ["sig", n] significant digits (never an exponent).
+function decimalsFor(key, v) {
+  const [kind, n] = state.precision[key] || ["sig", 3];
+  if (kind === "dp") return n;
+  const x = Math.abs(Number(v));
+  if (!(x > 0) || !Number.isFinite(x)) return Math.max(n - 1, 0);
+  return Math.max(n - 1 - Math.floor(Math.log10(x)), 0);
+}
+function show(key, v) {
+  if (v === null || v === undefined || Number.isNaN(v)) return "–";
+  const [kind, n] = state.precision[key] || ["sig", 3];
+  let x = Number(v);
+  if (kind === "sig" && x !== 0) { const f = Math.pow(10, n - 1 - Math.floor(Math.log10(Math.abs(x)))); x = Math.round(x * f) / f; }
+  return num(x, decimalsFor(key, x));
+}
+// A change: empty when it shows as zero (no "±0.00" before anything moved).
+function signed(key, v) {
   if (v === null || v === undefined || Number.isNaN(v)) return "";
-  const s = num(v, nd);
-  if (Number(s) === 0) return "±" + num(0, nd);
+  const s = show(key, v);
+  if (Number(s) === 0) return "";
   return (v > 0 ? "+" : "") + s;
+}
+// A value beside its limit: one decimal more than the limit's own numbers.
+function limitShown(v, limitText) {
+  const nds = (String(limitText).match(/\d+(?:\.(\d+))?/g) || []).map(m => (m.split(".")[1] || "").length);
+  return num(v, (nds.length ? Math.max(...nds) : 1) + 1);
 }
 function colourOf(name) {
   const i = state.crudes.findIndex(c => c.name === name);
   return PALETTE[i % PALETTE.length];
+}
+function dashOf(name) {
+  const i = state.crudes.findIndex(c => c.name === name);
+  return DASHES[i % DASHES.length];
 }
 function cutPoints() { return state.cuts.slice(0, -1).map(c => c.name); }
 
@@ -140,6 +174,7 @@ function drawChart() {
   g.append(svg("rect", { x: s.x0, y: s.y1, width: s.x1 - s.x0, height: s.y0 - s.y1, fill: "none", stroke: "#b9b2a2" }));
   root.append(g);
 
+  const labels = [];
   for (const c of state.crudes) {
     if (!state.shown.has(c.name)) continue;
     const [mlo, mhi] = c.measured_vol_pct;
@@ -150,15 +185,31 @@ function drawChart() {
       if (v <= mlo + 1e-9 || v >= mhi - 1e-9) parts.extension.push([v, p]);
     });
     const colour = colourOf(c.name);
-    // extension drawn as dashed pieces before and after the measured range
+    // extension drawn thin and faded before and after the measured range; the measured part in the crude's dash
     const before = parts.extension.filter(([v]) => v <= mlo + 1e-9).map(([, p]) => p);
     const after = parts.extension.filter(([v]) => v >= mhi - 1e-9).map(([, p]) => p);
     for (const pts of [before, after]) {
       if (pts.length > 1) root.append(svg("polyline", { points: pts.join(" "), fill: "none", stroke: colour,
-                                                         "stroke-width": 2, "stroke-dasharray": "5 4" }));
+                                                         "stroke-width": 1.4, "stroke-dasharray": "2 3",
+                                                         opacity: 0.8 }));
     }
     root.append(svg("polyline", { points: parts.measured.join(" "), fill: "none", stroke: colour,
-                                  "stroke-width": 2.4, "data-crude": c.name }));
+                                  "stroke-width": 2.6, "stroke-dasharray": dashOf(c.name), "data-crude": c.name }));
+    // the crude's name at the end of its measured curve (placed below, after the loop, clear of the others)
+    const last = parts.measured[parts.measured.length - 1];
+    if (last) labels.push({ name: c.name, colour, xy: last.split(",").map(Number) });
+  }
+  labels.sort((a, b) => a.xy[1] - b.xy[1]);
+  const placed = [];
+  for (const l of labels) {
+    let y = l.xy[1] - 6;
+    for (const p of placed) if (Math.abs(p - y) < 13) y = p + 13;
+    placed.push(y);
+    const lab = svg("text", { x: l.xy[0] - 6, y, "text-anchor": "end", fill: l.colour, "font-size": 12,
+                              "font-weight": 600, "data-curve-label": l.name, stroke: "#fff",
+                              "stroke-width": 3, "paint-order": "stroke" });
+    lab.textContent = l.name;
+    root.append(lab);
   }
   const handles = svg("g", { id: "handles" });
   root.append(handles);
@@ -175,17 +226,19 @@ function drawHandles() {
     const y = s.y(t);
     const h = svg("g", { class: "handle", "data-handle": name, cursor: "ns-resize", tabindex: 0, role: "slider",
                          "aria-label": `${name} end, °C (arrow keys: 1 °C, with Shift: 10 °C)`,
-                         "aria-valuenow": num(t, 1) });
-    h.append(svg("line", { x1: s.x0, x2: s.x1, y1: y, y2: y, stroke: "#1e2a2f", "stroke-width": 1,
+                         "aria-valuenow": num(t, 1), "aria-valuemin": num(bounds(name)[0], 1),
+                         "aria-valuemax": num(bounds(name)[1], 1), "aria-valuetext": `${num(t, 1)} °C` });
+    h.append(svg("line", { x1: s.x0, x2: s.x1, y1: y, y2: y, stroke: HANDLE_COLOUR, "stroke-width": 1,
                            "stroke-dasharray": t === state.start[name] ? "none" : "3 2", opacity: 0.7 }));
     for (const c of state.crudes) {
       if (!state.shown.has(c.name)) continue;
-      h.append(svg("circle", { cx: s.x(volAt(c.curve, t)), cy: y, r: 3.2, fill: colourOf(c.name) }));
+      h.append(svg("circle", { cx: s.x(volAt(c.curve, t)), cy: y, r: 3.2, fill: colourOf(c.name), stroke: "#fff",
+                               "stroke-width": 1 }));
     }
     const knob = svg("rect", { x: s.x1 + 4, y: y - 9, width: CHART.right - 8, height: 18, rx: 4,
-                               fill: t === state.start[name] ? "#0f6e7c" : "#b4532a", class: "knob" });
-    const label = svg("text", { x: s.x1 + 9, y: y + 4, fill: "#fff", "font-size": 11, "pointer-events": "none" });
-    label.textContent = `${num(t, 1)} ${name.length > 13 ? name.slice(0, 12) + "…" : name}`;
+                               fill: t === state.start[name] ? HANDLE_COLOUR : HANDLE_MOVED, class: "knob" });
+    const label = svg("text", { x: s.x1 + 9, y: y + 4, fill: "#fff", "font-size": 10.5, "pointer-events": "none" });
+    label.textContent = `${num(t, 1)} ${name}`;
     const grab = svg("rect", { x: s.x0, y: y - 5, width: s.x1 - s.x0, height: 10, fill: "transparent" });
     h.append(grab, knob, label);
     g.append(h);
@@ -223,7 +276,7 @@ function startDrag(ev, name, handle) {
 function bounds(name) {
   const names = cutPoints();
   const i = names.indexOf(name);
-  const lo = i > 0 ? state.ends[names[i - 1]] + MIN_GAP_C : state.scale.lo;
+  const lo = i > 0 ? state.ends[names[i - 1]] + MIN_GAP_C : Math.max(state.scale.lo, LOWEST_CUT_C);
   const hi = i < names.length - 1 ? state.ends[names[i + 1]] - MIN_GAP_C : state.scale.hi;
   return [lo, hi];
 }
@@ -244,25 +297,29 @@ function drawFields() {
   const box = document.getElementById("cut-fields");
   box.replaceChildren();
   for (const name of cutPoints()) {
-    const lab = el("label", {}, `${name} ends at`);
+    const lab = el("label", {}, name);
     const inp = el("input", { type: "number", step: "any", "data-cut-point": name, "aria-label": `${name} end, °C` });
     inp.value = num(state.ends[name], 1);
     const unit = el("span", { class: "quiet" }, "°C");
     const wrap = el("span");
+    const err = el("span", { class: "field-error", role: "alert", "data-field-error": name });
     wrap.append(inp, unit);
     lab.append(wrap);
     inp.addEventListener("change", () => {
       const t = Number(inp.value);
       const [lo, hi] = bounds(name);
       if (inp.value.trim() === "" || !Number.isFinite(t) || t < lo || t > hi) {
+        // said beside the field; the field goes back to the cut point the page still uses
+        err.textContent = `${inp.value.trim() || "(empty)"} refused: give ${num(lo, 1)} to ${num(hi, 1)} °C`;
+        inp.value = num(state.ends[name], 1);
         inp.classList.add("bad");
-        say(`${name}: give a TBP between ${num(lo, 1)} and ${num(hi, 1)} °C (between its neighbours)`, true);
         return;
       }
+      err.textContent = "";
       inp.classList.remove("bad");
       setEnd(name, t);
     });
-    box.append(lab);
+    box.append(lab, err);
   }
 }
 
@@ -291,16 +348,20 @@ function refresh(name) {
 // ---------- panels ----------
 const CUT_COLUMNS = [
   // [key, header, decimals, delta?]
-  ["vol_pct", "vol %", 2, true],
-  ["wt_pct", "wt %", 2, true],
-  ["api", "API", 1, false],
-  ["sg", "SG", 4, false],
-  ["sulfur_wt_pct", "S wt %", 3, false],
-  ["watson_k", "Kw", 2, false],
-  ["d86_10", "D86 10 °C", 0, false],
-  ["d86_90", "D86 90 °C", 0, false],
-  ["flash_c_est", "Flash °C*", 0, false],
-  ["cetane_index_d4737", "CCI", 1, false],
+  ["vol_pct", "vol %", "vol_pct", true],
+  ["wt_pct", "wt %", "wt_pct", true],
+  ["api", "API", "api", false],
+  ["sg", "SG", "sg", false],
+  ["sulfur_wt_pct", "S wt %", "sulfur_wt_pct", false],
+  ["watson_k", "Kw", "watson_k", false],
+  ["d86_10", "D86 10 °C", "d86_10_c", false],
+  ["d86_90", "D86 90 °C", "d86_90_c", false],
+  ["flash_c_est", "Flash °C*", "flash_c_est", false],
+  ["cetane_index_d4737", "CCI", "cetane_index_d4737", false],
+  ["freeze_point_c", "Freeze °C", "freeze_point_c", false],
+  ["smoke_point_mm", "Smoke mm", "smoke_point_mm", false],
+  ["cloud_point_c", "Cloud °C", "cloud_point_c", false],
+  ["viscosity_40c_cst", "ν40 cSt", "viscosity_40c_cst", false],
 ];
 
 function cellValue(cut, key) {
@@ -329,8 +390,8 @@ function drawPanel(name) {
   const crude = state.crudes.find(c => c.name === name);
   panel.replaceChildren();
   panel.append(el("h2", {}, name));
-  panel.append(el("p", { class: "meta" }, `${crude.origin ? crude.origin + " · " : ""}${num(crude.api, 1)} °API, SG ${num(crude.sg, 4)}, `
-    + `sulfur ${num(crude.sulfur_wt_pct, 3)} wt % · ${crude.source}`));
+  panel.append(el("p", { class: "meta" }, `${crude.origin ? crude.origin + " · " : ""}${show("api", crude.api)} °API, `
+    + `SG ${show("sg", crude.sg)}, sulfur ${show("sulfur_wt_pct", crude.sulfur_wt_pct)} wt % · ${crude.source}`));
   if (state.prices && state.worth[name]) panel.append(worthLine(name));
 
   const table = el("table", { class: "cuts" });
@@ -345,18 +406,18 @@ function drawPanel(name) {
   doc.cuts.forEach((cut, i) => {
     const tr = el("tr", { "data-cut": cut.name });
     if (cut.extrapolated) tr.classList.add("on-extension");
-    const range = `${cut.start_c === null ? "IBP" : num(cut.start_c, 1)}–${cut.end_c === null ? "EP" : num(cut.end_c, 1)}`;
+    const range = `${cut.start_c === null ? "IBP" : num(cut.start_c, 1)} – ${cut.end_c === null ? "EP" : num(cut.end_c, 1)}`;
     tr.append(el("td", {}, cut.name), el("td", {}, range));
     const est = new Set(cut.estimated || []);
     const scope = new Set(cut.out_of_scope || []);
     const was = base ? base.cuts[i] : null;
-    for (const [key, , nd, d] of CUT_COLUMNS) {
-      let text = num(cellValue(cut, key), nd);
+    for (const [key, , rule, d] of CUT_COLUMNS) {
+      let text = show(rule, cellValue(cut, key));
       if (est.has(key) && text !== "–") text += "~";
       if (scope.has(key) && text !== "–") text += "?";
       tr.append(el("td", { "data-col": key }, text));
       if (d) tr.append(el("td", { class: "delta", "data-col": key + "_delta" },
-                          was ? signed(cut[key] - was[key], 2) : ""));
+                          was ? signed(rule, cut[key] - was[key]) : ""));
     }
     const flags = el("td");
     if (cut.extrapolated) flags.append(el("span", { class: "badge", title: "depends on the curve's fitted extension" }, "ext"));
@@ -388,7 +449,9 @@ function worthLine(name) {
   const cur = state.currency;
   const dw = w0 ? w.worth_per_bbl - w0.worth_per_bbl : null;
   p.append(document.createTextNode("Worth "), el("b", {}, `${num(w.worth_per_bbl, 2)} ${cur}/bbl`));
-  if (dw !== null) p.append(el("span", { class: dw > 0.005 ? "up" : dw < -0.005 ? "down" : "" }, ` (${signed(dw, 2)} vs start)`));
+  if (dw !== null && signed("worth_per_bbl", dw)) {
+    p.append(el("span", { class: dw > 0 ? "up" : "down" }, ` (${signed("worth_per_bbl", dw)} vs start)`));
+  }
   if (w.margin_per_bbl !== null) {
     p.append(document.createTextNode(" · margin "), el("b", {}, `${num(w.margin_per_bbl, 2)} ${cur}/bbl`));
   } else {
@@ -418,7 +481,7 @@ function limitsTable(doc, base) {
       if (was(i) && was(i) !== l.status) tr.classList.add("flipped");
       const cls = "verdict status-" + (l.status === "n/a" ? "na" : l.status);
       tr.append(el("td", {}, l.cut), el("td", { class: "text" }, l.label), el("td", { class: "text" }, l.limit),
-                el("td", {}, typeof l.value === "number" ? num(l.value, Math.abs(l.value) >= 100 ? 1 : 3) : "–"),
+                el("td", {}, typeof l.value === "number" ? limitShown(l.value, l.limit) : "–"),
                 el("td", { class: cls, title: l.note || l.source }, l.status), el("td", { class: "text" }, was(i)));
       t.append(tr);
     });
@@ -494,6 +557,7 @@ async function main() {
     state.cuts = doc.cut_set.cuts;
     state.prices = doc.prices;
     state.currency = doc.currency || "";
+    state.precision = doc.precision || {};
     for (const c of cutPoints()) {
       const end = state.cuts.find(k => k.name === c).end_c;
       state.start[c] = end;
