@@ -61,22 +61,25 @@ def blend(
     shares: Annotated[list[str], typer.Argument(help="ASSAY=PERCENT for each crude (the percents add up to 100); "
                                                 "with --optimize, ASSAY or ASSAY=MIN:MAX share bounds in %.",
                                                 metavar="ASSAY=PCT")],
-    out: Annotated[Optional[Path], typer.Option("--out", metavar="NEW.xlsx", help="New assay workbook to write (.xlsx).",
-                                                dir_okay=False)] = None,
-    basis: Annotated[Basis, typer.Option("--basis", metavar="vol|wt", help="Basis of the shares and of the blended curve.")] = Basis.vol,
+    out: Annotated[Optional[Path], typer.Option("--out", help="New assay workbook to write (.xlsx).",
+                                                dir_okay=False, metavar="NEW.xlsx")] = None,
+    basis: Annotated[Basis, typer.Option("--basis", help="Basis of the shares and of the blended curve.",
+                                         metavar="vol|wt")] = Basis.vol,
     name: Annotated[Optional[str], typer.Option("--name", metavar="NAME", help="Name of the blend.")] = None,
     shrinkage: Annotated[bool, typer.Option("--shrinkage", help="Apply API MPMS 12.3 light-ends shrinkage "
                                             "(off by default).")] = False,
     optimize_: Annotated[bool, typer.Option("--optimize", help="Find the shares that meet the targets at the "
                                             "best worth (or lowest crude cost) instead of taking them.")] = False,
     prices: PricesOpt = None,
-    objective: Annotated[BlendObjective, typer.Option("--objective", metavar="worth|cost", help="With --optimize: 'worth' (margin "
+    objective: Annotated[BlendObjective, typer.Option("--objective", help="With --optimize: 'worth' (margin "
                                                       "when crude prices are given) or 'cost' (cheapest crude "
-                                                      "slate).")] = BlendObjective.worth,
-    api_min: Annotated[Optional[float], typer.Option("--api-min", metavar="API", help="Target: blend API at least [°API].")] = None,
-    api_max: Annotated[Optional[float], typer.Option("--api-max", metavar="API", help="Target: blend API at most [°API].")] = None,
-    sulfur_max: Annotated[Optional[float], typer.Option("--sulfur-max", metavar="WT_PCT", help="Target: blend sulfur at most "
-                                                        "[wt %].")] = None,
+                                                      "slate).", metavar="worth|cost")] = BlendObjective.worth,
+    api_min: Annotated[Optional[float], typer.Option("--api-min", help="Target: blend API at least [°API].",
+                                                     metavar="API")] = None,
+    api_max: Annotated[Optional[float], typer.Option("--api-max", help="Target: blend API at most [°API].",
+                                                     metavar="API")] = None,
+    sulfur_max: Annotated[Optional[float], typer.Option("--sulfur-max", help="Target: blend sulfur at most "
+                                                        "[wt %].", metavar="WT_PCT")] = None,
     min_yield: Annotated[Optional[list[str]], typer.Option("--min-yield", metavar="CUT=PCT",
                                                            help="Target: a cut's yield at least PCT vol %. "
                                                                 "Repeatable.")] = None,
@@ -107,7 +110,8 @@ def blend(
         raise AssaycutError(f"{out}: the blend is written as an assay workbook; give a path ending in .xlsx")
     if optimize_:  # every file is written before anything is printed (a closed pipe must not lose them)
         plan, parents, lines = _optimize_blend(shares, prices, objective, api_min, api_max, sulfur_max, min_yield,
-                                               cuts, (api, sg, density, sulfur), out.parent if out is not None else Path("reports") / "blend")
+                                               cuts, (api, sg, density, sulfur),
+                                               out.parent if out is not None else Path("reports") / "blend")
         if plan.feasible and out is not None:
             chosen = [(a, m, plan.shares_pct[a.name]) for _, a, m in parents if plan.shares_pct[a.name] > 1e-6]
             total = sum(x for _, _, x in chosen)

@@ -205,6 +205,10 @@ class TdMethod(str, enum.Enum):
     riazi_daubert_1986 = "riazi-daubert-1986"
 
 
+MethodOpt = Annotated[TdMethod, typer.Option("--method", help="TBP <-> D86 correlation for D86 input curves.",
+                                             metavar="daubert-1994|riazi-daubert-1986")]
+
+
 class TUnit(str, enum.Enum):
     """A temperature unit of printed output (--unit): °C or °F."""
 
@@ -212,18 +216,19 @@ class TUnit(str, enum.Enum):
     F = "F"
 
 
-CutsOpt = Annotated[Optional[Path], typer.Option("--cuts", metavar="FILE", help="Cut-set TOML file ([[cut]] name, end_c). "
+CutsOpt = Annotated[Optional[Path], typer.Option("--cuts", help="Cut-set TOML file ([[cut]] name, end_c). "
                                                   "Default: the shipped cut set (see cuts_default.toml).",
-                                                  dir_okay=False)]
-LimitsOpt = Annotated[Optional[Path], typer.Option("--limits", metavar="FILE|SET", help="Product-limits TOML file ([[limit]]), or a "
+                                                  dir_okay=False, metavar="FILE")]
+LimitsOpt = Annotated[Optional[Path], typer.Option("--limits", help="Product-limits TOML file ([[limit]]), or a "
                                                     "shipped set: 'blendstock' (default: straight-run targets a "
                                                     "planner cuts to) or 'finished' (EN 590 / ASTM D1655 finished-"
                                                     "fuel specs). Shipped values are from memory.",
-                                                    dir_okay=False)]
+                                                    dir_okay=False, metavar="FILE|SET")]
 RateOpt = Annotated[Optional[float], typer.Option("--rate", help="Crude run [bbl/d]: adds each cut's bbl_per_day, "
                                                  "m3_per_day and t_per_day.", min=1e-9, max=1e8, metavar="BBL_PER_DAY")]
-PricesOpt = Annotated[Optional[Path], typer.Option("--prices", metavar="FILE", help="Price file (TOML): [products] price per cut "
-                                                    "per_bbl or per_t, optional [crudes] prices.", dir_okay=False)]
+PricesOpt = Annotated[Optional[Path], typer.Option("--prices", help="Price file (TOML): [products] price per cut "
+                                                    "per_bbl or per_t, optional [crudes] prices.", dir_okay=False,
+                                                    metavar="FILE")]
 def _end_help() -> str:
     """The --end help: the form, quoting, and the cut names of the shipped set."""
     from ..cutting.cutset import DEFAULT_CUTS
@@ -329,25 +334,23 @@ def resolve_assays(paths: list[str] | None) -> list[str]:
 def load(path: str, api=None, sg=None, density=None, sulfur=None):
     """The assay in ``path``; whole-crude figures (``--api``, ``--sg``, ``--density``, ``--sulfur``) for a
     curve CSV.  A workbook carries its own: given with one, they are refused (one line naming the file)."""
-    from ..io import load_assay
+    from ..io import is_curve_csv, load_assay
 
     if not is_curve_csv(path):  # the figures serve the curve CSVs of a mixed list (checked by check_whole_crude)
         api = sg = density = sulfur = None
     return load_assay(path, api=api, sg=sg, density=density, sulfur=sulfur)
 
 
-def is_curve_csv(path: str) -> bool:
-    """True for a quick-curve CSV path (.csv or .txt), which takes its whole-crude data from the options."""
-    return str(path).lower().endswith((".csv", ".txt"))
-
-
 def check_whole_crude(paths: list[str], api=None, sg=None, density=None, sulfur=None) -> None:
     """Refuse ``--api/--sg/--density/--sulfur`` when no curve CSV is among ``paths`` (a workbook carries its
     own whole-crude data): one line naming the first workbook."""
+    from ..io import is_curve_csv
+
     given = [o for o, v in (("--api", api), ("--sg", sg), ("--density", density), ("--sulfur", sulfur))
              if v is not None]
     if given and paths and not any(is_curve_csv(p) for p in paths):
-        raise AssaycutError(f"{paths[0]}: {'/'.join(given)} appl{'y' if len(given) > 1 else 'ies'} to a curve CSV; a workbook carries its own "
+        verb = "apply" if len(given) > 1 else "applies"
+        raise AssaycutError(f"{paths[0]}: {'/'.join(given)} {verb} to a curve CSV; a workbook carries its own "
                             f"whole-crude data")
 
 

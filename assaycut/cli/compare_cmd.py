@@ -40,13 +40,14 @@ app = typer.Typer()
 @app.command()
 @guarded
 def compare(
-    assays: Annotated[list[str], typer.Argument(metavar="ASSAY...", help="Assays (files, folders or globs); one alone can be priced.")],
+    assays: Annotated[list[str], typer.Argument(help="Assays (files, folders or globs); one alone can be priced.",
+                                                metavar="ASSAY...")],
     cuts: CutsOpt = None,
     limits: LimitsOpt = None,
     prices: PricesOpt = None,
     json_out: JsonOpt = False,
-    out: Annotated[Optional[Path], typer.Option("--out", metavar="DIR", help="Report folder. Default: reports/compare/.",
-                                                file_okay=False)] = None,
+    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/compare/.",
+                                                file_okay=False, metavar="DIR")] = None,
     end: EndOpt = None,
     uncertainty: UncertOpt = 0,
     rate: RateOpt = None,
@@ -74,7 +75,8 @@ def compare(
     cs = load_cut_set(cuts, end)
     lim = load_limits(limits)
     ps = load_prices(prices)
-    results = [run_yields(load(p, api, sg, density, sulfur), cs, lim, uncertainty_draws=uncertainty, rate_bbl_per_day=rate) for p in paths]
+    results = [run_yields(load(p, api, sg, density, sulfur), cs, lim, uncertainty_draws=uncertainty,
+                          rate_bbl_per_day=rate) for p in paths]
     table = comparison_table(results)
     worth = worth_table(results, ps) if ps else None
     products = pd_concat([worth_by_product(r, ps) for r in results]) if ps else None

@@ -34,19 +34,22 @@ def convert(
     points: Annotated[Optional[list[str]], typer.Argument(help="PERCENT=TEMP pairs, e.g. 10=176.7 30=193.3 "
                                                                "50=206.7 70=222.8 90=242.8",
                                                           metavar="PERCENT=TEMP")] = None,
-    frm: Annotated[FromMethod, typer.Option("--from", metavar="TBP|D86|D2887|D1160", help="Method of the input curve.")] = FromMethod.D86,
-    to: Annotated[ToMethod, typer.Option("--to", metavar="TBP|D86|AET", help="Method to convert to (AET for D1160 data).")] = ToMethod.TBP,
-    method: Annotated[TdMethod, typer.Option("--method", metavar="daubert-1994|riazi-daubert-1986", help="Correlation for TBP <-> D86.")] =
-    TdMethod.daubert_1994,
-    pressure_mmhg: Annotated[Optional[float], typer.Option("--pressure-mmhg", metavar="MMHG", help="Pressure of D1160 data "
-                                                           "[mmHg], 0.01-1520.")] = None,
-    watson_k: Annotated[Optional[float], typer.Option("--watson-k", metavar="KW", help="Watson K of D1160 material for the "
+    frm: Annotated[FromMethod, typer.Option("--from", help="Method of the input curve.",
+                                            metavar="TBP|D86|D2887|D1160")] = FromMethod.D86,
+    to: Annotated[ToMethod, typer.Option("--to", help="Method to convert to (AET for D1160 data).",
+                                         metavar="TBP|D86|AET")] = ToMethod.TBP,
+    method: Annotated[TdMethod, typer.Option("--method", help="Correlation for TBP <-> D86.",
+                                             metavar="daubert-1994|riazi-daubert-1986")] = TdMethod.daubert_1994,
+    pressure_mmhg: Annotated[Optional[float], typer.Option("--pressure-mmhg", help="Pressure of D1160 data "
+                                                           "[mmHg], 0.01-1520.", metavar="MMHG")] = None,
+    watson_k: Annotated[Optional[float], typer.Option("--watson-k", help="Watson K of D1160 material for the "
                                                       "Maxwell-Bonnell correction (default 12: none).",
-                                                      min=8.0, max=14.0)] = None,
+                                                      min=8.0, max=14.0, metavar="KW")] = None,
     unit: Annotated[TUnit, typer.Option("--unit", metavar="C|F", help="Temperature unit of input and printed output "
                                         "(JSON temp_c is always °C).")] = TUnit.C,
-    file: Annotated[Optional[Path], typer.Option("--file", metavar="FILE", help="CSV with vol_pct/wt_pct and temp_c/temp_f/temp_k "
-                                                 "columns instead of PERCENT=TEMP pairs.", dir_okay=False)] = None,
+    file: Annotated[Optional[Path], typer.Option("--file", help="CSV with vol_pct/wt_pct and temp_c/temp_f/temp_k "
+                                                 "columns instead of PERCENT=TEMP pairs.", dir_okay=False,
+                                                 metavar="FILE")] = None,
     json_out: JsonOpt = False,
 ) -> None:
     """Convert a distillation curve between methods by published correlations.

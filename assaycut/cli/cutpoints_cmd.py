@@ -35,20 +35,21 @@ from .common import (
 
 app = typer.Typer()
 
-OutOpt = Annotated[Optional[Path], typer.Option("--out", metavar="DIR", help="Report folder. Default: reports/<crude>/.",
-                                                file_okay=False)]
+OutOpt = Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/.",
+                                                file_okay=False, metavar="DIR")]
 
 
 @app.command()
 @guarded
 def vectors(
-    assays: Annotated[Optional[list[str]], typer.Argument(metavar="ASSAY...", help="Assays (files, folders or globs). Default: the "
-                                                          "demo assay.")] = None,
+    assays: Annotated[Optional[list[str]], typer.Argument(help="Assays (files, folders or globs). Default: the "
+                                                          "demo assay.", metavar="ASSAY...")] = None,
     cuts: CutsOpt = None,
     limits: LimitsOpt = None,
     json_out: JsonOpt = False,
-    out: Annotated[Optional[Path], typer.Option("--out", metavar="DIR", help="Report folder. Default: reports/<crude>/. With "
-                                                "--json and no --out, no files are written.", file_okay=False)]
+    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/. With "
+                                                "--json and no --out, no files are written.", file_okay=False,
+                                                metavar="DIR")]
     = None,
     api: ApiOpt = None,
     sg: SgOpt = None,
@@ -153,7 +154,8 @@ def shift(
 @guarded
 def sweep(
     assay: AssayArg = None,
-    end: Annotated[str, typer.Option("--end", metavar="CUT", help="Name of the cut whose end point moves.")] = "kerosene",
+    end: Annotated[str, typer.Option("--end", help="Name of the cut whose end point moves.",
+                                     metavar="CUT")] = "kerosene",
     t_from: Annotated[float, typer.Option("--from", metavar="TEMP_C", help="First cut point [°C TBP].")] = 200.0,
     t_to: Annotated[float, typer.Option("--to", metavar="TEMP_C", help="Last cut point [°C TBP].")] = 260.0,
     step: Annotated[float, typer.Option("--step", metavar="DEG_C", help="Step [°C].", min=1e-3)] = 5.0,
@@ -204,13 +206,14 @@ def sweep(
 @guarded
 def optimize(
     assay: AssayArg = None,
-    maximize: Annotated[Optional[str], typer.Option("--maximize", metavar="CUT", help="Product (cut name) whose volume yield "
-                                                    "is maximised by moving its two cut points.")] = None,
+    maximize: Annotated[Optional[str], typer.Option("--maximize", help="Product (cut name) whose volume yield "
+                                                    "is maximised by moving its two cut points.",
+                                                    metavar="CUT")] = None,
     prices: PricesOpt = None,
     cuts: CutsOpt = None,
     limits: LimitsOpt = None,
-    span: Annotated[float, typer.Option("--span", metavar="DEG_C", help="How far each cut point may move from its starting "
-                                        "value [°C].", min=1.0, max=400.0)] = 60.0,
+    span: Annotated[float, typer.Option("--span", help="How far each cut point may move from its starting "
+                                        "value [°C].", min=1.0, max=400.0, metavar="DEG_C")] = 60.0,
     min_yield: Annotated[Optional[list[str]], typer.Option(
         "--min-yield", metavar="CUT=PCT",
         help="Keep product CUT at least PCT vol % of the crude. Repeatable; 'all=PCT' sets every product. "

@@ -7,8 +7,25 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import AssaycutError
-from .common import ApiOpt, CutsOpt, DensOpt, LimitsOpt, PricesOpt, SgOpt, SulfurOpt, TdMethod, check_whole_crude, \
-    guarded, load, load_cut_set, load_limits, load_prices, resolve_assays, say
+from .common import (
+    ApiOpt,
+    CutsOpt,
+    DensOpt,
+    LimitsOpt,
+    MethodOpt,
+    PricesOpt,
+    SgOpt,
+    SulfurOpt,
+    TdMethod,
+    check_whole_crude,
+    guarded,
+    load,
+    load_cut_set,
+    load_limits,
+    load_prices,
+    resolve_assays,
+    say,
+)
 
 app = typer.Typer()
 
@@ -19,16 +36,15 @@ MAX_CRUDES = 40
 @app.command()
 @guarded
 def explore(
-    assays: Annotated[Optional[list[str]], typer.Argument(metavar="ASSAY...", help="Assay workbooks (.xlsx), folders or globs. "
-                                                          "Default: the demo assays.")] = None,
+    assays: Annotated[Optional[list[str]], typer.Argument(help="Assay workbooks (.xlsx), folders or globs. "
+                                                          "Default: the demo assays.", metavar="ASSAY...")] = None,
     cuts: CutsOpt = None,
     limits: LimitsOpt = None,
     prices: PricesOpt = None,
-    port: Annotated[Optional[int], typer.Option("--port", metavar="PORT", min=1, max=65535, help="Port on 127.0.0.1. Default: a "
-                                                "free port.")] = None,
+    port: Annotated[Optional[int], typer.Option("--port", min=1, max=65535, help="Port on 127.0.0.1. Default: a "
+                                                "free port.", metavar="PORT")] = None,
     open_browser: Annotated[bool, typer.Option("--open", help="Open the page in the default browser.")] = False,
-    method: Annotated[TdMethod, typer.Option("--method", metavar="daubert-1994|riazi-daubert-1986", help="TBP <-> D86 correlation for D86 input curves.")]
-    = TdMethod.daubert_1994,
+    method: MethodOpt = TdMethod.daubert_1994,
     api: ApiOpt = None,
     sg: SgOpt = None,
     density: DensOpt = None,
@@ -60,7 +76,8 @@ def explore(
         raise AssaycutError(f"{len(paths)} assays given; the explorer serves at most {MAX_CRUDES} (choose the "
                             f"candidates, or run `assaycut compare` or `yields --summary-only` over the library)")
     cs = load_cut_set(cuts, None)
-    explorer = Explorer([(p, load(p, api, sg, density, sulfur)) for p in paths], cs, load_limits(limits), load_prices(prices), method.value)
+    explorer = Explorer([(p, load(p, api, sg, density, sulfur)) for p in paths], cs, load_limits(limits),
+                        load_prices(prices), method.value)
     sock = listening_socket(port or 0)
     token = secrets.token_urlsafe(24)
     url = f"http://127.0.0.1:{sock.getsockname()[1]}/?token={token}"

@@ -22,6 +22,7 @@ from .common import (
     ScaleOpt,
     SgOpt,
     SulfurOpt,
+    MethodOpt,
     TdMethod,
     TUnit,
     UncertOpt,
@@ -44,34 +45,34 @@ app = typer.Typer()
 BRIEF_OVER = 10
 """Batches larger than this print a one-line summary instead of every cut table."""
 
-SigTempOpt = Annotated[float, typer.Option("--sigma-temp", metavar="DEG_C", min=0.0, max=50.0, help="1-sigma of each curve "
-                                           "temperature [°C]; default an assumption to confirm.")]
-SigPctOpt = Annotated[float, typer.Option("--sigma-pct", metavar="PCT", min=0.0, max=10.0, help="1-sigma of each percent "
-                                          "distilled [%]; default an assumption to confirm.")]
-SigSgOpt = Annotated[float, typer.Option("--sigma-sg", metavar="SG", min=0.0, max=0.05, help="1-sigma of specific gravity; "
-                                         "default an assumption to confirm.")]
-SigSOpt = Annotated[float, typer.Option("--sigma-sulfur", metavar="PCT", min=0.0, max=50.0, help="1-sigma of sulfur, in % "
-                                        "of the value; default an assumption to confirm.")]
+SigTempOpt = Annotated[float, typer.Option("--sigma-temp", min=0.0, max=50.0, help="1-sigma of each curve "
+                                           "temperature [°C]; default an assumption to confirm.", metavar="DEG_C")]
+SigPctOpt = Annotated[float, typer.Option("--sigma-pct", min=0.0, max=10.0, help="1-sigma of each percent "
+                                          "distilled [%]; default an assumption to confirm.", metavar="PCT")]
+SigSgOpt = Annotated[float, typer.Option("--sigma-sg", min=0.0, max=0.05, help="1-sigma of specific gravity; "
+                                         "default an assumption to confirm.", metavar="SG")]
+SigSOpt = Annotated[float, typer.Option("--sigma-sulfur", min=0.0, max=50.0, help="1-sigma of sulfur, in % "
+                                        "of the value; default an assumption to confirm.", metavar="PCT")]
 
 
 @app.command()
 @guarded
 def yields(
-    assays: Annotated[Optional[list[str]], typer.Argument(metavar="ASSAY...", help="Assay workbooks (.xlsx) or curve CSVs, "
-                                                          "folders or globs. Default: the demo assay.")] = None,
+    assays: Annotated[Optional[list[str]], typer.Argument(help="Assay workbooks (.xlsx) or curve CSVs, "
+                                                          "folders or globs. Default: the demo assay.",
+                                                          metavar="ASSAY...")] = None,
     cuts: CutsOpt = None,
     limits: LimitsOpt = None,
-    out: Annotated[Optional[Path], typer.Option("--out", metavar="DIR", help="Report folder. Default: reports/<crude>/. "
+    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/. "
                                                 "With --json and no --out, no files are written.",
-                                                file_okay=False)] = None,
+                                                file_okay=False, metavar="DIR")] = None,
     json_out: JsonOpt = False,
     end: EndOpt = None,
     api: ApiOpt = None,
     sg: SgOpt = None,
     density: DensOpt = None,
     sulfur: SulfurOpt = None,
-    method: Annotated[TdMethod, typer.Option("--method", metavar="daubert-1994|riazi-daubert-1986", help="TBP <-> D86 correlation for D86 input curves.")]
-    = TdMethod.daubert_1994,
+    method: MethodOpt = TdMethod.daubert_1994,
     summary_only: Annotated[bool, typer.Option("--summary-only", help="With several assays, write only the "
                                                "library summary (xlsx and CSV), not each assay's report.")] = False,
     overlap: Annotated[Optional[list[str]], typer.Option(
@@ -80,8 +81,8 @@ def yields(
              "heavy tail of one product then reaches into the next; yields, D86, flash and limit checks use "
              "the products' own curves. Repeatable; also `overlap_c` in the cut file.")] = None,
     rate: RateOpt = None,
-    unit: Annotated[TUnit, typer.Option("--unit", metavar="C|F", help="Temperature unit of the printed tables and the report "
-                                           "sheets and CSVs (JSON stays in °C).")] = TUnit.C,
+    unit: Annotated[TUnit, typer.Option("--unit", help="Temperature unit of the printed tables and the report "
+                                           "sheets and CSVs (JSON stays in °C).", metavar="C|F")] = TUnit.C,
     uncertainty: UncertOpt = 0,
     sigma_temp: SigTempOpt = 2.0,
     sigma_pct: SigPctOpt = 0.3,
@@ -178,7 +179,8 @@ def _print_report(results, written, n_cuts: int, unit: str = "C") -> None:
 @app.command()
 @guarded
 def check(
-    assay: Annotated[Optional[str], typer.Argument(metavar="ASSAY", help="Assay workbook or curve CSV. Default: the demo.")] = None,
+    assay: Annotated[Optional[str], typer.Argument(help="Assay workbook or curve CSV. Default: the demo.",
+                                                   metavar="ASSAY")] = None,
     json_out: JsonOpt = False,
     api: ApiOpt = None,
     sg: SgOpt = None,

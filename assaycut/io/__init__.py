@@ -38,17 +38,34 @@ def load_assay(path: str | os.PathLike, *, api: float | None = None, sg: float |
         if v is not None and (isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v)):
             raise InputError(f"{what} must be a finite number; got {v!r}", file=path)
     ext = path.lower().rsplit(".", 1)[-1] if "." in path else ""
-    if ext not in ("xlsx", "xlsm", "csv", "txt"):
+    if ext not in WORKBOOK_EXTENSIONS + CURVE_EXTENSIONS:
         raise InputError(f"unknown assay file type {'.' + ext if ext else '(no extension)'}; expected .xlsx "
                          f"(assay workbook) or .csv (quick curve)", file=path)
     data = read_bytes(path)
     path = shown_path(path)  # what the messages and the reports call the file
-    if ext in ("xlsx", "xlsm"):
+    if ext in WORKBOOK_EXTENSIONS:
         if any(v is not None for v in (api, sg, density, sulfur)):
             raise InputError("--api/--sg/--density/--sulfur apply to a curve CSV; a workbook carries its own "
                              "whole-crude data", file=path)
         return read_workbook(path, data)
     return read_curve_csv(path, api=api, sg=sg, density=density, sulfur=sulfur, data=data)
+
+
+WORKBOOK_EXTENSIONS = ("xlsx", "xlsm")
+"""File extensions read as an assay workbook."""
+CURVE_EXTENSIONS = ("csv", "txt")
+"""File extensions read as a quick-curve CSV (whole-crude data from the caller)."""
+
+
+def is_curve_csv(path) -> bool:
+    """True for a path :func:`load_assay` reads as a quick-curve CSV (by its extension).
+
+    Examples
+    --------
+    >>> is_curve_csv("balder.CSV"), is_curve_csv("selkie_light.xlsx")
+    (True, False)
+    """
+    return str(path).lower().rsplit(".", 1)[-1] in CURVE_EXTENSIONS
 
 
 def shown_path(path: str) -> str:

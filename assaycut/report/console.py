@@ -6,6 +6,7 @@ import math
 import re
 
 from ..cutting.limits import is_lower_bound, limit_title
+from ..units import c_to_f
 from .studyreports import compare_wide
 from .precision import fixed, limit_decimals, limit_shown, shown
 from .tables import display_cuts, limits_in_unit, quality_text_table, text_table, unit_of
@@ -99,7 +100,7 @@ def warning_lines(results, unit: str = "C") -> list[str]:
         for w in r.warnings:
             s = short_warning(w)
             if unit == "F":
-                s = _TEMP_C.sub(lambda m: f"{float(m.group(1)) * 1.8 + 32.0:.{len(m.group(2) or '.')-1}f} °F", s)
+                s = _TEMP_C.sub(lambda m: f"{c_to_f(float(m.group(1))):.{len(m.group(2) or '.') - 1}f} °F", s)
             cut = cut or s != " ".join(w.split())
             crudes = groups.setdefault(s, [])
             if name not in crudes:
@@ -187,10 +188,9 @@ def compare_text(table, worth, currency: str | None, caveat: str, inside, uncert
                                                                                  else [])
         body = []
         for r in worth.to_dict("records"):
-            row = [str(r["rank"]), r["crude"], fixed(r["worth_per_bbl"], 2), fixed(r["worth_per_t"], 2),
-                   fixed(r["margin_per_bbl"], 2, signed=True), fixed(r["margin_per_t"], 2, signed=True)]
-            body.append(row + ([fixed(r["worth_per_day"], 0), fixed(r["margin_per_day"], 0, signed=True)] if day
-                               else []))
+            keys = ["worth_per_bbl", "worth_per_t", "margin_per_bbl", "margin_per_t"]
+            keys += ["worth_per_day", "margin_per_day"] if day else []
+            body.append([str(r["rank"]), r["crude"]] + [shown(k, r[k], signed=k.startswith("margin")) for k in keys])
         lines += grid(head, body, align="rl" + "r" * (len(head) - 2), keep=2)
         if day:
             lines.append(f"per day at a crude run of {shown('bbl_per_day', rate)} bbl/d")

@@ -163,7 +163,8 @@ def rounded(col: str, value):
     return round(x, decimals(col, x)) + 0.0
 
 
-_NUMBER = re.compile(r"[-+]?\d+(?:\.(\d+))?")
+NUMBER = re.compile(r"[-+]?\d+(?:\.(\d+))?")
+"""A number in a limit's text (its decimals in group 1)."""
 
 
 def limit_decimals(limit_text: str) -> int:
@@ -175,7 +176,7 @@ def limit_decimals(limit_text: str) -> int:
     >>> limit_decimals("<= 0.3"), limit_decimals(">= 820 and <= 845"), limit_decimals("<= 0.0010")
     (2, 1, 5)
     """
-    nds = [len(m.group(1) or "") for m in _NUMBER.finditer(str(limit_text))]
+    nds = [len(m.group(1) or "") for m in NUMBER.finditer(str(limit_text))]
     return (max(nds) if nds else 1) + 1
 
 

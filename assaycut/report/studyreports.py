@@ -8,7 +8,6 @@ from ..cutting.limits import limit_title
 from ..studies.compare import WORTH_CAVEAT
 from ..units import sg_to_density15
 from .plots import pyplot
-from .precision import excel_format
 from .xlsx import finish_workbook, write_table
 
 COMPARE_LABELS = {"vol_pct": "Yield [vol %]", "wt_pct": "Yield [wt %]", "bbl_per_day": "Rate [bbl/d]",
@@ -61,11 +60,7 @@ def compare_workbook(results, table, worth, currency: str | None, products=None)
     ws.title = "comparison"
     crudes, rows = compare_wide(table, whole_crude_rows(results))
     write_table(ws, ["Cut", "Quality"] + crudes, [[r[0], r[1], *r[3:]] for r in rows],
-                widths=[20, 26] + [max(14, len(c) + 2) for c in crudes], freeze="C2")
-    for i, r in enumerate(rows, start=2):
-        for j, v in enumerate(r[3:], start=3):
-            if isinstance(v, (int, float)) and not isinstance(v, bool):
-                ws.cell(row=i, column=j).number_format = excel_format(r[2], v)
+                widths=[20, 26] + [max(14, len(c) + 2) for c in crudes], freeze="C2", row_keys=[r[2] for r in rows])
     if worth is not None:
         ws = wb.create_sheet("worth")
         cur = currency or ""
@@ -75,7 +70,7 @@ def compare_workbook(results, table, worth, currency: str | None, products=None)
                 "margin_per_t"]
         if "worth_per_day" in worth:
             heads += [f"Worth [{cur}/d]", f"Margin [{cur}/d]"]
-            keys += ["bbl_per_day", "bbl_per_day"]
+            keys += ["worth_per_day", "margin_per_day"]
         write_table(ws, heads, worth.values.tolist(), keys=keys, widths=[6, 22] + [16] * (len(heads) - 2))
         ws.cell(row=len(worth) + 3, column=1, value=WORTH_CAVEAT)
         basis = worth.attrs.get("ranked_by", "worth_per_bbl")

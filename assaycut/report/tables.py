@@ -15,7 +15,8 @@ from ..methods.blending_indices import VISCOSITY
 from ..methods.d86 import D86_STD
 from ..text import replace_hidden
 from ..units import pct_text, residual_text
-from .precision import limit_shown, shown
+from .precision import NUMBER, limit_shown, shown
+from .textgrid import grid, wrap
 
 LABELS = {
     "name": "Cut",
@@ -174,9 +175,6 @@ def in_fahrenheit(cuts):
     return CutTable(out, cuts.attrs)
 
 
-_LIMIT_NUMBER = re.compile(r"[-+]?\d+(?:\.\d+)?")
-
-
 def limits_in_unit(rows: list[dict], unit: str = "C") -> list[dict]:
     """Checked limits (:func:`~assaycut.cutting.limits.check_limits` rows) for display, each with its ``unit``
     ('°C', 'wt %', 'kg/m³'...); with ``unit`` 'F', a temperature limit's value and bounds in °F (a bound
@@ -196,12 +194,7 @@ def limits_in_unit(rows: list[dict], unit: str = "C") -> list[dict]:
         temp = _is_temperature(prop) and not prop.startswith("recovered_at_")
         r["unit"] = unit_of(prop)
         if temp and unit == "F":
-            def conv(m):
-                txt = m.group(0)
-                nd = len(txt.partition(".")[2])
-                return f"{c_to_f(float(txt)):.{nd}f}"
-
-            r["limit"] = _LIMIT_NUMBER.sub(conv, r["limit"])
+            r["limit"] = NUMBER.sub(lambda m: f"{c_to_f(float(m.group(0))):.{len(m.group(1) or '')}f}", r["limit"])
             r["value"] = None if r["value"] is None else float(c_to_f(float(r["value"])))
             r["unit"] = "°F"
         out.append(r)
@@ -244,36 +237,6 @@ def flat_cut_rows(cuts) -> tuple[list[str], list[list]]:
     return names, rows
 
 
-def num(v, nd: int = 1, signed: bool = False, missing: str = "-") -> str:
-    """A number as printed text: ``nd`` decimals, ``missing`` for None/NaN, never a negative zero ("-0.0"
-    for -0.04 becomes "0.0"), a sign when ``signed`` (zero as "+0.0").
-
-    Examples
-    --------
-    >>> num(-0.04), num(float("nan")), num(-0.04, 1, signed=True), num(2.345, 2, signed=True)
-    ('0.0', '-', '+0.0', '+2.35')
-    """
-    if v is None or (isinstance(v, float) and math.isnan(v)):
-        return missing
-    x = float(v)
-    if not math.isfinite(x):
-        return missing
-    txt = f"{x:+.{nd}f}" if signed else f"{x:.{nd}f}"
-    if float(txt) == 0.0:
-        txt = ("+" if signed else "") + f"{0.0:.{nd}f}"
-    return txt
-
-
-def _fmt(v, nd=1):
-    if v is None or (isinstance(v, float) and math.isnan(v)):
-        return "-"
-    if isinstance(v, bool):
-        return "yes" if v else ""
-    if isinstance(v, float):
-        return num(v, nd)
-    return str(v)
-
-
 TERMINAL_COLUMNS = [("name", "Cut"), ("start_c", "Start °C"), ("end_c", "End °C"), ("vol_pct", "vol %"),
                     ("wt_pct", "wt %"), ("bbl_per_day", "bbl/d"), ("t_per_day", "t/d"), ("api", "API"),
                     ("sg", "SG"), ("sulfur_wt_pct", "S wt %"), ("watson_k", "Kw"), ("tbp_5_c", "T5 °C"),
@@ -310,8 +273,6 @@ def _shown(spec, cuts):
 def quality_text_table(cuts, width: int | None = None) -> str:
     """The key qualities per cut as aligned text fitted to ``width`` (:func:`~.textgrid.grid`); estimated
     values end in '~'; '' when there are none."""
-    from .textgrid import grid, wrap
-
     cols = _shown(TERMINAL_QUALITIES, cuts)
     if not cols:
         return ""
@@ -326,8 +287,6 @@ def quality_text_table(cuts, width: int | None = None) -> str:
 def text_table(cuts, width: int | None = None) -> str:
     """The cut table as aligned plain text for the terminal, fitted to ``width`` (column groups repeating the
     cut name); digits by :mod:`.precision`; estimated values end in '~', out-of-scope ones in '?'."""
-    from .textgrid import grid, wrap
-
     cols = _shown(TERMINAL_COLUMNS, cuts)
     rows = cuts.rows()
     if not any(r.get("extrapolated") for r in rows):
@@ -370,7 +329,6 @@ def md(text) -> str:
     'Crude &lt;b&gt;A&lt;/b&gt; \\\\# owned / \\\\*x\\\\*'
     """
     import html
-    import re
 
     t = replace_hidden(str(text), " ")
     t = html.escape(t, quote=False).replace("|", "/")
@@ -403,7 +361,8 @@ def markdown_summary(result, unit: str = "C") -> str:
            f"{shown('vol_pct', m.curve.extrapolated_pct)} vol % of the crude rests on the fitted extension, "
            f"{shown('vol_pct', m.curve.lumped_pct)} vol % of it lumped at the {shown('end_c', t(m.curve.fbp_c))} {u} "
            f"end point",
-           *[f"- Whole crude: {label_for(k)} {shown(k, v) if isinstance(v, float) else v}" for k, v in a.extras.items()],
+           *[f"- Whole crude: {label_for(k)} {shown(k, v) if isinstance(v, float) else v}"
+             for k, v in a.extras.items()],
            f"- Closure: vol {residual_text(result.closure['vol_pct'])} %, wt "
            f"{residual_text(result.closure['wt_pct'])} %", ""]
     day = rate is not None

@@ -37,7 +37,8 @@ def _cell(v):
 
 def write_table(ws, headers: list[str], rows: list[list], formats: list[str | None] | None = None,
                 start_row: int = 1, widths: list[int] | None = None, keys: list[str | None] | None = None,
-                freeze: str | None = None, autofilter: bool = True) -> None:
+                freeze: str | None = None, autofilter: bool = True,
+                row_keys: list[str | None] | None = None) -> None:
     """Write a header row and data rows: bold shaded header, panes frozen at the first data cell, an
     autofilter over the table, a width on every column, and a number format on every number.
 
@@ -48,6 +49,9 @@ def write_table(ws, headers: list[str], rows: list[list], formats: list[str | No
     keys : list of str or None, optional
         A column key per column (``sg``, ``sulfur_wt_pct``...): each number gets the format that shows it by
         :func:`~.precision.excel_format` (significant digits for a small sulfur), over ``formats``.
+    row_keys : list of str or None, optional
+        The same, one key per row, for a table whose rows are quantities (the summary's items, a comparison's
+        qualities); over ``keys``.
     widths : list of int, optional
         Column widths [characters]. Default: fitted to the header and the cells (8 to 40).
     freeze : str, optional
@@ -69,7 +73,9 @@ def write_table(ws, headers: list[str], rows: list[list], formats: list[str | No
             c = ws.cell(row=i, column=j, value=_cell(v))
             if not isinstance(c.value, (int, float)):
                 continue
-            if keys and keys[j - 1]:
+            if row_keys and row_keys[i - start_row - 1]:
+                c.number_format = excel_format(row_keys[i - start_row - 1], c.value)
+            elif keys and keys[j - 1]:
                 c.number_format = excel_format(keys[j - 1], c.value)
             elif formats and formats[j - 1]:
                 c.number_format = formats[j - 1]
@@ -86,17 +92,13 @@ def write_table(ws, headers: list[str], rows: list[list], formats: list[str | No
 
 
 def _shown_text(v) -> str:
-    """A cell's text as its width needs it (a number as shown by its rule, at most 12 characters)."""
+    """A cell's text as its column width needs it (a number to 4 significant digits: the width, not the shown
+    digits, which the number format gives)."""
     if v is None:
         return ""
     if isinstance(v, (float, np.floating)):
         return f"{float(v):.4g}"
     return str(v)
-
-
-def fmt_for(col: str) -> str:
-    """The spreadsheet number format of a column key (:func:`~.precision.excel_format`)."""
-    return excel_format(col)
 
 
 def finish_workbook(wb, title: str) -> None:
@@ -264,10 +266,7 @@ def _summary_sheet(ws, result) -> None:
     for k, v in a.extras.items():
         info.append((f"Whole crude: {label_for(k)}", v, k))
     write_table(ws, ["Item", "Value"], [[k, v] for k, v, _ in info], start_row=4, widths=[34, 44], autofilter=False,
-                freeze="A5")
-    for i, (_, v, key) in enumerate(info, start=5):
-        if key and isinstance(ws.cell(row=i, column=2).value, (int, float)):
-            ws.cell(row=i, column=2).number_format = excel_format(key, v)
+                freeze="A5", row_keys=[key for _, _, key in info])
     r0 = 6 + len(info)
     ws.cell(row=r0, column=1, value="Yields").font = Font(bold=True)
     ykeys = ["name", "vol_pct", "wt_pct"] + [k for k in ("bbl_per_day", "t_per_day") if k in result.cuts] \
