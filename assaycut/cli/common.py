@@ -231,9 +231,9 @@ PricesOpt = Annotated[Optional[Path], typer.Option("--prices", help="Price file 
                                                     metavar="FILE")]
 def _end_help() -> str:
     """The --end help: the form, quoting, and the cut names of the shipped set."""
-    from ..cutting.cutset import DEFAULT_CUTS
+    from ..cutting import SHIPPED_CUT_ENDS  # plain data: the help loads no numpy
 
-    names = ", ".join(c.name for c in DEFAULT_CUTS[:-1])
+    names = ", ".join(name for name, end in SHIPPED_CUT_ENDS if end is not None)
     return (f"Move one cut's end to TEMP_C [°C TBP], e.g. --end kerosene=240, or --end 'heavy naphtha=160' (quote a "
             f"name with spaces). Repeatable. The shipped set's cuts with an end: {names}; with --cuts, that file's.")
 

@@ -7,6 +7,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import CutSetError
+from . import SHIPPED_CUT_ENDS
 from ..text import escape_hidden, has_hidden_characters
 
 
@@ -146,12 +147,8 @@ def validate_cut_set(cuts: list[Cut], label: str) -> None:
                               f"{ca.name!r} at {a:g} °C")
 
 
-DEFAULT_CUTS = [Cut("light ends", 15.0)] + [Cut(n, (f - 32.0) / 1.8) for n, f in (
-    ("light naphtha", 185.0), ("heavy naphtha", 350.0), ("kerosene", 450.0), ("diesel", 650.0),
-    ("vacuum gas oil", 1050.0))] + [Cut("vacuum residue", None)]
-"""The shipped default cut set: TBP cut points at the usual °F round numbers, kept exact in °C so that a report
-in °F shows them as they are named (15 °C for C4-minus, 185 °F, 350 °F, 450 °F, 650 °F, 1050 °F; common
-practice, no source)."""
+DEFAULT_CUTS = [Cut(name, end) for name, end in SHIPPED_CUT_ENDS]
+"""The shipped default cut set (:data:`~assaycut.cutting.SHIPPED_CUT_ENDS`)."""
 
 
 def default_cut_set() -> CutSet:

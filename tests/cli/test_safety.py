@@ -113,6 +113,13 @@ def test_help_and_convert_do_not_import_heavy_libraries():
                              env={**os.environ, "PYTHONWARNINGS": "ignore"})
         assert out.returncode == 0, out.stderr
         assert out.stdout.strip() == "[]", (args, out.stdout)
+    # --help loads not even numpy (its --end text names the shipped cuts from plain data)
+    code = ("import sys; from assaycut.cli import app; from typer.testing import CliRunner; "
+            "r = CliRunner().invoke(app, ['yields', '--help']); assert r.exit_code == 0, r.output; "
+            "print('numpy' in sys.modules)")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         env={**os.environ, "PYTHONWARNINGS": "ignore"})
+    assert out.returncode == 0 and out.stdout.strip() == "False", (out.stdout, out.stderr)
 
 
 def test_report_file_modes_follow_the_umask_and_keep_an_existing_mode(tmp_path):
