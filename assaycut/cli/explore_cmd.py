@@ -17,6 +17,7 @@ from .common import (
     SgOpt,
     SulfurOpt,
     TdMethod,
+    TUnit,
     check_whole_crude,
     guarded,
     load,
@@ -49,6 +50,8 @@ def explore(
     sg: SgOpt = None,
     density: DensOpt = None,
     sulfur: SulfurOpt = None,
+    unit: Annotated[TUnit, typer.Option("--unit", metavar="C|F", help="Temperature unit the page starts in (the "
+                                        "page has a switch; its API stays in °C).")] = TUnit.C,
 ) -> None:
     """Explore cut points in the browser: drag a cut point on the TBP curves and see yields on both bases,
     the cuts' qualities, the limits that flip and (with --prices) worth and margin move, for several crudes
@@ -77,7 +80,7 @@ def explore(
                             f"candidates, or run `assaycut compare` or `yields --summary-only` over the library)")
     cs = load_cut_set(cuts, None)
     explorer = Explorer([(p, load(p, api, sg, density, sulfur)) for p in paths], cs, load_limits(limits),
-                        load_prices(prices), method.value)
+                        load_prices(prices), method.value, unit=unit.value)
     sock = listening_socket(port or 0)
     token = secrets.token_urlsafe(24)
     url = f"http://127.0.0.1:{sock.getsockname()[1]}/?token={token}"

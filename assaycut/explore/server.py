@@ -6,9 +6,11 @@ without it the answer is 403):
 - ``GET /``: the page; ``GET /static/<file>``: its own script and style sheet (fixed names, no path from the
   client reaches the file system);
 - ``GET /api/assays``: the loaded crudes and the starting cut set;
-- ``POST /api/cut`` ``{"assay": NAME, "ends": {CUT: TEMP_C}}``: the ``yields --json`` object;
+- ``POST /api/cut`` ``{"assay": NAME, "ends": {CUT: TEMP_C}, "rate_bbl_per_day": RATE}`` (the rate optional):
+  the ``yields --json`` object;
 - ``POST /api/worth`` (same body): worth and margin, with ``--prices``;
 - ``POST /api/cutset`` ``{"ends": {...}}``: the cut set as a TOML file;
+- ``POST /api/cutset/read`` ``{"file": NAME, "toml": TEXT}``: the cut points of a cut-set file the user loads;
 - ``POST /api/report`` (same body as /api/cut): the yield-report workbook (.xlsx).
 
 Every answer carries a Content-Security-Policy that allows only the page's own script and style, no framing,
@@ -39,8 +41,11 @@ MAX_CONNECTIONS = 64
 """Connections served at once; more get 503 (common practice for a one-user local server, no source)."""
 ALLOWED_HOSTS = ("127.0.0.1", "localhost")
 """Host names the server answers to (it listens on 127.0.0.1 only)."""
-STATIC_FILES = {"explorer.js": "text/javascript; charset=utf-8", "explorer.css": "text/css; charset=utf-8",
-                "icon.svg": "image/svg+xml"}
+SCRIPTS = ("explorer.js", "chart.js", "panels.js", "views.js")
+"""The page's scripts, loaded in this order (plain scripts sharing one scope; explorer.js starts the page once
+the document is read)."""
+STATIC_FILES = {**{name: "text/javascript; charset=utf-8" for name in SCRIPTS},
+                "explorer.css": "text/css; charset=utf-8", "icon.svg": "image/svg+xml"}
 """The page's own files, by the only names served."""
 CSP = ("default-src 'none'; script-src 'self'; style-src 'self'; img-src 'self'; connect-src 'self'; "
        "base-uri 'none'; form-action 'none'; frame-ancestors 'none'")
@@ -179,25 +184,28 @@ def make_app(explorer: Explorer, token: str):
         return JSONResponse(explorer.assays_json())
 
     async def cut(request):
-        name, ends = parse_cut_request(await _json_body(request), explorer.names)
-        return _json(explorer.cut_json(name, ends))
+        req = parse_cut_request(await _json_body(request), explorer.names)
+        return _json(explorer.cut_json(req.assay, req.ends, req.rate_bbl_per_day))
 
     async def worth(request):
-        name, ends = parse_cut_request(await _json_body(request), explorer.names)
-        return _json(explorer.worth_json(name, ends))
+        req = parse_cut_request(await _json_body(request), explorer.names)
+        return _json(explorer.worth_json(req.assay, req.ends, req.rate_bbl_per_day))
 
     async def cutset(request):
-        _, ends = parse_cut_request(await _json_body(request), explorer.names, need_assay=False)
-        return Response(explorer.cut_set_toml(ends), media_type="application/toml; charset=utf-8",
+        req = parse_cut_request(await _json_body(request), explorer.names, need_assay=False)
+        return Response(explorer.cut_set_toml(req.ends), media_type="application/toml; charset=utf-8",
                         headers={"content-disposition": 'attachment; filename="cuts_explored.toml"'})
 
+    async def read_cutset(request):
+        return _json(explorer.read_cut_set(await _json_body(request)))
+
     async def report(request):
-        name, ends = parse_cut_request(await _json_body(request), explorer.names)
+        req = parse_cut_request(await _json_body(request), explorer.names)
         from ..report.write import slug
 
-        return Response(explorer.workbook_bytes(name, ends),
+        return Response(explorer.workbook_bytes(req.assay, req.ends, req.rate_bbl_per_day),
                         media_type="application/vnd.openxmlformats-officedocument.spreadsheetml.sheet",
-                        headers={"content-disposition": f'attachment; filename="{slug(name)}_yields.xlsx"'})
+                        headers={"content-disposition": f'attachment; filename="{slug(req.assay)}_yields.xlsx"'})
 
     def _json(doc):
         return Response(json.dumps(doc, allow_nan=False, ensure_ascii=False), media_type="application/json")
@@ -208,6 +216,7 @@ def make_app(explorer: Explorer, token: str):
               Route("/api/cut", answers(cut), methods=["POST"]),
               Route("/api/worth", answers(worth), methods=["POST"]),
               Route("/api/cutset", answers(cutset), methods=["POST"]),
+              Route("/api/cutset/read", answers(read_cutset), methods=["POST"]),
               Route("/api/report", answers(report), methods=["POST"])]
 
     async def not_found(request, exc):

@@ -110,6 +110,14 @@ def _load(path: str) -> dict:
         text = data.decode("utf-8-sig")
     except UnicodeDecodeError:
         raise InputError("not a UTF-8 text file; expected TOML", file=path) from None
+    return _parse(text, path)
+
+
+def _parse(text: str, path: str) -> dict:
+    """Parse the text of a cut, limit or price file (``path`` names it in errors): keys and nesting bounded
+    before parsing, every number range-checked after."""
+    if len(text.encode("utf-8")) > TOML_MAX_BYTES:
+        raise InputError(f"larger than {TOML_MAX_BYTES} bytes; a cut, limits or price file is a few kB", file=path)
     _bounded(text, path)
     try:
         doc = tomllib.loads(text)
@@ -220,6 +228,12 @@ def read_cut_set(path: str) -> CutSet:
     CutSet
     """
     return cut_set_from_dict(_load(path), path)
+
+
+def cut_set_from_text(text: str, where: str) -> CutSet:
+    """A cut set from the text of a cut-set TOML file (the explorer's upload), checked as :func:`read_cut_set`
+    checks a file; ``where`` names it in errors."""
+    return cut_set_from_dict(_parse(text.removeprefix("\ufeff"), where), where)
 
 
 def limits_from_dicts(items: list[dict], where: str) -> list[Limit]:

@@ -63,7 +63,10 @@ def cut_records(table) -> list[dict]:
 
 
 def yield_json(result) -> dict:
-    """The JSON object of one assay's yields (``assaycut yields --json``)."""
+    """The JSON object of one assay's yields (``assaycut yields --json``); each limit row carries the ``unit``
+    of its property ('°C', 'wt %'...)."""
+    from .tables import unit_of
+
     a = result.assay
     doc = {
         "assay": {"name": a.name, "source": a.source, "sha256": a.sha256, "api": json_safe(a.api),
@@ -73,7 +76,7 @@ def yield_json(result) -> dict:
                   "sulfur_closure_wt_pct": json_safe(result.model.sulfur_closure_wt_pct)},
         "extension": extension_json(result.model),
         "cuts": cut_records(result.cuts),
-        "limits": records(result.limits),
+        "limits": [{**row, "unit": unit_of(row["property"])} for row in records(result.limits)],
         "closure": {k: json_safe(v) for k, v in result.closure.items()},
         "warnings": list(result.warnings),
         "notes": list(result.notes),

@@ -19,7 +19,7 @@ from typer.testing import CliRunner
 
 from assaycut.cli import app as cli_app
 from assaycut.cutting.cutset import default_cut_set
-from assaycut.explore.server import CSP, MAX_BODY_BYTES, make_app
+from assaycut.explore.server import CSP, MAX_BODY_BYTES, SCRIPTS, make_app
 from assaycut.explore.session import Explorer
 from assaycut.io import load_assay
 from assaycut.io.tomlfiles import demo_assay_paths, read_cut_set, read_limits, read_prices
@@ -86,9 +86,10 @@ def test_the_page_loads_only_its_own_scripts(client):
     import re
 
     srcs = re.findall(r'<script[^>]*src="([^"]+)"', page)
-    assert srcs == [f"/static/explorer.js?token={TOKEN}"]
+    assert srcs == [f"/static/{name}?token={TOKEN}" for name in SCRIPTS]
     assert "<script>" not in page and "onclick" not in page and "style=" not in page  # nothing inline under the CSP
-    assert client.get(srcs[0]).headers["content-type"].startswith("text/javascript")
+    for src in srcs:
+        assert client.get(src).headers["content-type"].startswith("text/javascript")
 
 
 # -- the answers --------------------------------------------------------------------------------------------
@@ -186,6 +187,9 @@ def test_report_workbook_holds_the_cut_points_asked_for(client):
     (b'{"assay": "Selkie Light", "ends": ' + b"[" * 5000 + b"]" * 5000 + b"}", 400, "nested too deeply"),
     (b'{"assay": "Selkie Light", "ends": {"kerosene": 1' + b"0" * 399 + b"}}", 400, "a number of 400 digits"),
     (b'{"assay": "Selkie Light", "ends": {"kerosene": 1' + b"0" * 5000 + b"}}", 400, "not valid JSON"),
+    (b'{"assay": "Selkie Light", "ends": {}, "rate_bbl_per_day": 0}', 400, "crude run above 0"),
+    (b'{"assay": "Selkie Light", "ends": {}, "rate_bbl_per_day": "100000"}', 400, "crude run above 0"),
+    (b'{"assay": "Selkie Light", "ends": {}, "rate_bbl_per_day": 1e12}', 400, "at most 10,000,000 bbl/d"),
 ])
 def test_bad_bodies_get_a_one_line_4xx(client, body, status, words):
     r = client.post("/api/cut", headers={**auth(), "Content-Type": "application/json"}, content=body)
@@ -223,3 +227,68 @@ def test_the_same_crude_twice_is_refused(demo_paths, tmp_path):
     shutil.copy(demo_paths[0], twin)
     with pytest.raises(AssaycutError, match="also in"):
         Explorer([(p, load_assay(p)) for p in (demo_paths[0], str(twin))], default_cut_set(), [])
+
+
+# -- the crude run, units, a cut set the user loads -----------------------------------------------------------
+def test_a_crude_run_gives_the_command_lines_rates_and_worth_per_day(client, demo_paths):
+    # /api/cut with a run is `yields --end ... --rate R --json`; worth per day is worth per bbl x run (definition).
+    expected = cli_json(["yields", demo_paths[1], "--json", "--rate", "85000", "--end", "kerosene=240"])
+    body = {"assay": "Brannock Blend", "ends": {"kerosene": 240}, "rate_bbl_per_day": 85000}
+    got = client.post("/api/cut", headers=auth(), json=body).json()
+    assert got == expected and got["cuts"][3]["bbl_per_day"] == pytest.approx(85000 * got["cuts"][3]["vol_pct"] / 100)
+    w = client.post("/api/worth", headers=auth(), json=body).json()
+    assert w["worth_per_day"] == pytest.approx(85000 * w["worth_per_bbl"], rel=1e-12)
+    assert w["margin_per_day"] == pytest.approx(85000 * w["margin_per_bbl"], rel=1e-12)
+    assert "worth_per_day" not in client.post("/api/worth", headers=auth(), json={"assay": "Brannock Blend"}).json()
+
+
+def test_limits_and_page_columns_name_their_units(client):
+    # The page shows temperatures in °F by these units: every *_c limit and column is °C (the project's naming
+    # rule, common practice, no source), yields are vol % / wt %.
+    doc = client.post("/api/cut", headers=auth(), json={"assay": "Selkie Light", "ends": {}}).json()
+    for lim in doc["limits"]:
+        assert (lim["unit"] == "°C") == (lim["property"].endswith(("_c", "_c_est"))), lim
+    d = client.get("/api/assays", headers=auth()).json()
+    assert d["units"]["d86_90_c"] == "°C" and d["units"]["flash_c_est"] == "°C" and d["units"]["vol_pct"] == "vol %"
+    assert d["unit"] == "C"
+
+
+def read_cuts(client, text: str, name: str = "plant.toml"):
+    return client.post("/api/cutset/read", headers=auth(), json={"file": name, "toml": text})
+
+
+def test_a_loaded_cut_set_gives_its_cut_points_in_celsius(client):
+    # A cut set in °F: 450 °F = 232.22 °C and 680 °F = 360 °C (°C = (°F - 32) / 1.8, the definition).
+    names = default_cut_set().names
+    text = "".join(f'[[cut]]\nname = "{n}"\n' + ({"kerosene": "end_f = 450\n", "diesel": "end_f = 680\n"}.get(n) or
+                   (f"end_c = {float(e)!r}\n" if e is not None else ""))
+                   for n, e in zip(names, [*default_cut_set().ends_c, None]))
+    r = read_cuts(client, text)
+    assert r.status_code == 200, r.text
+    doc = r.json()
+    assert doc["ends"]["kerosene"] == pytest.approx(232.2222222, abs=1e-6)
+    assert doc["ends"]["diesel"] == pytest.approx(360.0, abs=1e-9)
+    assert doc["label"] == "plant.toml" and doc["notes"] == []
+    # the same file with an overlap: the page cuts ideally and says so
+    r = read_cuts(client, text.replace("end_f = 680\n", "end_f = 680\noverlap_c = 20\n"))
+    assert any("overlap_c" in n and "diesel" in n for n in r.json()["notes"])
+
+
+@pytest.mark.parametrize("text,words", [
+    ('[[cut]]\nname = "naphtha"\nend_c = 180\n[[cut]]\nname = "residue"\n', "not this page's products"),
+    ('[[cut]]\nname = "naphtha"\nend_c = "hot"\n', "'end_c' must be a number"),
+    ("[[cut]\n", "not valid TOML"),
+    ("x" * 13_000, "at most 12,000"),
+])
+def test_a_cut_set_the_page_cannot_use_is_one_line_naming_the_file(client, text, words):
+    r = read_cuts(client, text, "mine.toml")
+    assert r.status_code == 400 and words in r.json()["error"] and "mine.toml" in r.json()["error"]
+    assert "\n" not in r.json()["error"]
+    r = client.post("/api/cutset/read", headers=auth(), json={"toml": "[[cut]]"})
+    assert r.status_code == 400 and '{"file": NAME, "toml": TEXT}' in r.json()["error"]
+
+
+def test_explore_unit_option_starts_the_page_in_fahrenheit(demo_paths):
+    ex = Explorer([(demo_paths[0], load_assay(demo_paths[0]))], default_cut_set(), [], unit="F")
+    c = TestClient(make_app(ex, TOKEN), base_url="http://127.0.0.1")
+    assert c.get("/api/assays", headers=auth()).json()["unit"] == "F"
