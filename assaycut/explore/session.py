@@ -132,6 +132,10 @@ PAGE_COLUMNS = ("vol_pct", "wt_pct", "api", "sg", "sulfur_wt_pct", "watson_k", "
                 "bbl_per_day")
 """The columns the explorer page shows (their digits come from :func:`~assaycut.report.precision.rule`, their
 units from :func:`~assaycut.report.tables.unit_of`)."""
+WORTH_KEYS = ("worth_per_bbl", "worth_per_t", "crude_price_per_bbl", "crude_price_per_t", "margin_per_bbl",
+              "margin_per_t", "worth_per_day", "margin_per_day")
+"""The figures of ``POST /api/worth``, as :func:`~assaycut.studies.compare.worth_table` gives them (the per-day
+ones only for a crude run)."""
 MAX_CUT_FILE_CHARS = 12_000
 """Largest cut-set text the page may upload [characters] (within the server's body limit; a cut set of 100
 cuts with long names is about 8 kB)."""
@@ -232,9 +236,7 @@ class Explorer:
             raise RequestError("no price file was given: start the explorer with --prices FILE", status=404)
         res = self.result(name, ends, rate_bbl_per_day)
         row = worth_table([res], self.prices).iloc[0]
-        keys = ("worth_per_bbl", "worth_per_t", "crude_price_per_bbl", "crude_price_per_t", "margin_per_bbl",
-                "margin_per_t") + (("worth_per_day", "margin_per_day") if rate_bbl_per_day else ())
-        doc = {k: json_safe(float(row[k])) for k in keys}
+        doc = {k: json_safe(float(row[k])) for k in WORTH_KEYS if k in row.index}  # per day: with a run only
         return {"assay": name, "currency": self.prices.currency, **doc,
                 "products": frame_records(worth_by_product(res, self.prices)), "notes": [WORTH_CAVEAT]}
 
@@ -243,7 +245,7 @@ class Explorer:
         is measured), the starting cut set, whether prices are loaded, the cautions, ``precision``: the
         shown-digits rule (:func:`~assaycut.report.precision.rule`, ``[kind, n]``) of each column the page
         shows, so that the page shows every number as the reports do, and ``units``: each column's unit ('°C'
-        marks the temperatures the page gives in °F on request)."""
+        marks the temperatures the page gives in °F on request), and the largest crude run a request may carry."""
         from ..report.jsonout import json_safe
         from ..report.precision import rule
         from ..report.tables import unit_of
@@ -266,6 +268,7 @@ class Explorer:
                 "limits": len(self.limits), "prices": self.prices is not None,
                 "currency": self.prices.currency if self.prices is not None else None,
                 "method": self.method, "notes": list(CAUTIONS), "unit": self.unit,
+                "max_rate_bbl_per_day": MAX_RATE_BBL_PER_DAY,
                 "precision": {k: list(rule(k)) for k in PAGE_COLUMNS},
                 "units": {k: unit_of(k) for k in PAGE_COLUMNS}}
 

@@ -115,9 +115,8 @@ def _load(path: str) -> dict:
 
 def _parse(text: str, path: str) -> dict:
     """Parse the text of a cut, limit or price file (``path`` names it in errors): keys and nesting bounded
-    before parsing, every number range-checked after."""
-    if len(text.encode("utf-8")) > TOML_MAX_BYTES:
-        raise InputError(f"larger than {TOML_MAX_BYTES} bytes; a cut, limits or price file is a few kB", file=path)
+    before parsing, every number range-checked after.  The text's size is bounded by the caller (a file by
+    :func:`read_bytes`, the explorer's upload by its own limit)."""
     _bounded(text, path)
     try:
         doc = tomllib.loads(text)

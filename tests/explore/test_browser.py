@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import contextlib
 import json
 import os
 import shutil
@@ -34,19 +35,30 @@ def api_cut(port: int, token: str, assay: str, ends: dict, rate: float | None = 
         return json.loads(r.read())
 
 
+@contextlib.contextmanager
+def explorer_page(p, url: str, width: int, height: int):
+    """A page of the explorer at ``url`` in a fresh headless Chromium, ready (its first cut tables drawn), and the
+    list that collects its script errors and console errors."""
+    browser = p.chromium.launch(executable_path=CHROMIUM, args=FLAGS)
+    try:
+        page = browser.new_page(viewport={"width": width, "height": height}, accept_downloads=True)
+        errors = []
+        page.on("pageerror", lambda e: errors.append(str(e)))
+        page.on("console", lambda m: errors.append(m.text) if m.type == "error" else None)
+        page.goto(url)
+        page.wait_for_selector("body[data-ready=yes]", timeout=20_000)
+        yield page, errors
+    finally:
+        browser.close()
+
+
 def test_drag_a_handle_and_the_yields_follow(tmp_path):
     assert CHROMIUM, "ASSAYCUT_REQUIRE_BROWSER=1 but no chromium is installed"
     from playwright.sync_api import sync_playwright
 
-    with running_explorer("--prices", str(Path(__file__).parents[2] / "assays_demo" / "prices_demo.toml")) as (url, port, token, _), sync_playwright() as p:
-        browser = p.chromium.launch(executable_path=CHROMIUM, args=FLAGS)
-        try:
-            page = browser.new_page(viewport={"width": 1500, "height": 1000}, accept_downloads=True)
-            errors = []
-            page.on("pageerror", lambda e: errors.append(str(e)))
-            page.on("console", lambda m: errors.append(m.text) if m.type == "error" else None)
-            page.goto(url)
-            page.wait_for_selector("body[data-ready=yes]", timeout=20_000)
+    prices = str(Path(__file__).parents[2] / "assays_demo" / "prices_demo.toml")
+    with running_explorer("--prices", prices) as (url, port, token, _), sync_playwright() as p:
+        with explorer_page(p, url, 1500, 1000) as (page, errors):
             cell = page.locator('article[data-crude="Selkie Light"] tr[data-cut="kerosene"] td[data-col="vol_pct"]')
             field = page.locator('input[data-cut-point="kerosene"]')
             before, t_before = cell.inner_text(), float(field.input_value())
@@ -91,8 +103,6 @@ def test_drag_a_handle_and_the_yields_follow(tmp_path):
             assert dict(zip(cs.names, cs.ends_c))["diesel"] == pytest.approx((650.0 - 32.0) / 1.8 - 11.0, abs=1e-9)
             page.screenshot(path=str(tmp_path / "explorer.png"), full_page=True)
             assert errors == []
-        finally:
-            browser.close()
 
 
 def test_at_laptop_size_the_chart_and_the_results_are_in_view_together_and_fields_say_what_is_wrong():
@@ -104,11 +114,7 @@ def test_at_laptop_size_the_chart_and_the_results_are_in_view_together_and_field
     from playwright.sync_api import sync_playwright
 
     with running_explorer() as (url, port, token, _), sync_playwright() as p:
-        browser = p.chromium.launch(executable_path=CHROMIUM, args=FLAGS)
-        try:
-            page = browser.new_page(viewport={"width": 1100, "height": 800})
-            page.goto(url)
-            page.wait_for_selector("body[data-ready=yes]", timeout=20_000)
+        with explorer_page(p, url, 1100, 800) as (page, _errors):
             page.wait_for_selector('article[data-crude="Selkie Light"] table.cuts')
             chart = page.locator("#tbp-chart").bounding_box()
             table = page.locator('article[data-crude="Selkie Light"] table.cuts').bounding_box()
@@ -135,8 +141,6 @@ def test_at_laptop_size_the_chart_and_the_results_are_in_view_together_and_field
             light.fill("-50")
             light.press("Enter")
             assert "refused" in page.locator('[data-field-error="light ends"]').inner_text()
-        finally:
-            browser.close()
 
 
 def test_fahrenheit_a_crude_run_crudes_side_by_side_a_yield_chart_scenarios_and_a_loaded_cut_set(tmp_path):
@@ -148,14 +152,7 @@ def test_fahrenheit_a_crude_run_crudes_side_by_side_a_yield_chart_scenarios_and_
 
     prices = str(Path(__file__).parents[2] / "assays_demo" / "prices_demo.toml")
     with running_explorer("--prices", prices, "--unit", "F") as (url, port, token, _), sync_playwright() as p:
-        browser = p.chromium.launch(executable_path=CHROMIUM, args=FLAGS)
-        try:
-            page = browser.new_page(viewport={"width": 1300, "height": 900}, accept_downloads=True)
-            errors = []
-            page.on("pageerror", lambda e: errors.append(str(e)))
-            page.on("console", lambda m: errors.append(m.text) if m.type == "error" else None)
-            page.goto(url)
-            page.wait_for_selector("body[data-ready=yes]", timeout=20_000)
+        with explorer_page(p, url, 1300, 900) as (page, errors):
             # --unit F: the shipped kerosene end is the trade's 450 °F (common practice, no source)
             assert page.locator('input[data-cut-point="kerosene"]').input_value() == "450.0"
             kero_row = 'article[data-crude="Selkie Light"] tr[data-cut="kerosene"]'
@@ -235,5 +232,3 @@ def test_fahrenheit_a_crude_run_crudes_side_by_side_a_yield_chart_scenarios_and_
             assert page.locator('input[data-cut-point="kerosene"]').input_value() == "482.0"  # unchanged
             page.screenshot(path=str(tmp_path / "scenarios.png"), full_page=True)
             assert [e for e in errors if "status of 400" not in e] == []  # the refusal is the browser's one 400
-        finally:
-            browser.close()

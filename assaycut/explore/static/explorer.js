@@ -25,6 +25,7 @@ const state = {
   currency: "",
   unit: "C",           // temperatures shown in "C" or "F" (the server always speaks °C)
   rate: null,          // crude run [bbl/d] or null
+  maxRate: 0,          // the largest crude run the server accepts [bbl/d] (from /api/assays)
   results: {},         // name -> yields JSON at the current cut points
   baseline: {},        // name -> yields JSON at the starting cut points
   worth: {},           // name -> worth JSON (current)
@@ -236,8 +237,9 @@ function setUpRunAndUnit() {
   rate.addEventListener("change", () => {
     const text = rate.value.trim();
     const v = Number(text);
-    if (text !== "" && !(Number.isFinite(v) && v > 0 && v <= 1e7)) {
-      err.textContent = `${text} refused: give a crude run above 0 and at most 10,000,000 bbl/d, or leave it empty`;
+    if (text !== "" && !(Number.isFinite(v) && v > 0 && v <= state.maxRate)) {
+      err.textContent = `${text} refused: give a crude run above 0 and at most ${state.maxRate.toLocaleString("en")} `
+        + "bbl/d, or leave it empty";
       rate.value = state.rate === null ? "" : String(state.rate);
       rate.classList.add("bad");
       return;
@@ -349,6 +351,7 @@ async function main() {
     state.precision = doc.precision || {};
     state.units = doc.units || {};
     state.unit = doc.unit === "F" ? "F" : "C";
+    state.maxRate = doc.max_rate_bbl_per_day;
     for (const c of cutPoints()) {
       const end = state.cuts.find(k => k.name === c).end_c;
       state.start[c] = end;

@@ -51,6 +51,13 @@ function drawViews() {
   else if (views.active === "scenarios") drawScenarios();
 }
 
+// A table's section heading: one row, one cell across the table's columns.
+function sectionRow(table, text, span, attrs) {
+  const tr = el("tr", { class: "section", ...attrs });
+  tr.append(el("th", { class: "text", colspan: span }, text));
+  table.append(tr);
+}
+
 // ---------- crudes side by side ----------
 function drawRowPicker() {
   const box = document.getElementById("compare-rows");
@@ -98,11 +105,7 @@ function drawCompare() {
     });
     table.append(tr);
   };
-  const section = (text, attrs) => {
-    const tr = el("tr", { class: "section", ...attrs });
-    tr.append(el("th", { class: "text", colspan: names.length + 1 }, text));
-    table.append(tr);
-  };
+  const section = (text, attrs) => sectionRow(table, text, names.length + 1, attrs);
   section("Whole crude", { "data-section": "crude" });
   const crude = n => state.crudes.find(c => c.name === n);
   row("API", "api", names.map(n => ({ v: crude(n).api })), { "data-row": "crude_api" });
@@ -264,11 +267,7 @@ async function drawScenarios() {
   top.append(el("th", { class: "text" }, ""));
   columns.forEach(sc => top.append(el("th", { "data-scenario": sc.name }, sc.current ? "now" : sc.name)));
   table.append(top);
-  const section = text => {
-    const tr = el("tr", { class: "section" });
-    tr.append(el("th", { class: "text", colspan: columns.length + 1 }, text));
-    table.append(tr);
-  };
+  const section = text => sectionRow(table, text, columns.length + 1);
   const row = (label, cells, attrs) => {
     const tr = el("tr", attrs);
     tr.append(el("td", { class: "text" }, label));
