@@ -216,6 +216,11 @@ class TUnit(str, enum.Enum):
     F = "F"
 
 
+UnitOpt = Annotated[TUnit, typer.Option("--unit", metavar="C|F", help="Temperature unit of the printed table and "
+                                        "the report files (options such as --end stay in °C TBP; JSON stays in "
+                                        "°C).")]
+
+
 CutsOpt = Annotated[Optional[Path], typer.Option("--cuts", help="Cut-set TOML file ([[cut]] name, end_c). "
                                                   "Default: the shipped cut set (see cuts_default.toml).",
                                                   dir_okay=False, metavar="FILE")]

@@ -13,6 +13,8 @@ from .common import (
     DensOpt,
     SgOpt,
     SulfurOpt,
+    TUnit,
+    UnitOpt,
     check_whole_crude,
     CutsOpt,
     EndOpt,
@@ -55,6 +57,7 @@ def compare(
     sg: SgOpt = None,
     density: DensOpt = None,
     sulfur: SulfurOpt = None,
+    unit: UnitOpt = TUnit.C,
 ) -> None:
     """Compare crudes for crude selection: every assay cut with the same cut set, side by side.
 
@@ -87,7 +90,7 @@ def compare(
         from ..report.write import png_bytes
 
         buf = io.BytesIO()
-        compare_workbook(results, table, worth, ps.currency if ps else None, products).save(buf)
+        compare_workbook(results, table, worth, ps.currency if ps else None, products, unit.value).save(buf)
         files = {"comparison.xlsx": buf.getvalue(), "comparison_yields.png": png_bytes(plot_compare, table)}
         inputs = tuple(paths) + tuple(str(x) for x in (cuts, limits, prices) if x)
         written = place_set(out or Path("reports") / "compare", files, inputs)
@@ -100,8 +103,8 @@ def compare(
     from ..report.studyreports import whole_crude_rows
 
     echo_lines(compare_text(table, worth, ps.currency if ps else None, WORTH_CAVEAT, inside, bool(uncertainty),
-                            whole_crude_rows(results), rate))
-    for line in warning_lines(results):
+                            whole_crude_rows(results), rate, unit.value))
+    for line in warning_lines(results, unit.value):
         say(line, err=True)
     say(written_text(written))
 

@@ -20,6 +20,8 @@ from .common import (
     PricesOpt,
     SgOpt,
     SulfurOpt,
+    TUnit,
+    UnitOpt,
     check_whole_crude,
     echo_json,
     echo_lines,
@@ -112,6 +114,7 @@ def shift(
     sg: SgOpt = None,
     density: DensOpt = None,
     sulfur: SulfurOpt = None,
+    unit: UnitOpt = TUnit.C,
 ) -> None:
     """Show what a change of cut point moves: per-cut deltas in yield, SG, sulfur, D86, CCI, flash and limits.
 
@@ -143,10 +146,14 @@ def shift(
     from ..files import place_set
     from ..report.write import slug
 
-    say(f"{a.name}: cut-point change " + ", ".join(f"{k} -> {v:g} °C" for k, v in parse_ends(end).items()))
-    say(shift_text(delta))
-    written = place_set(out or Path("reports") / slug(a.name), {f"{slug(a.name)}_shift.csv": shift_csv(delta)},
-                          (path,))
+    from ..report.tables import text_in_unit
+
+    u = unit.value
+    say(f"{a.name}: cut-point change " + ", ".join(text_in_unit(f"{k} -> {v:g} °C", u)
+                                                    for k, v in parse_ends(end).items()))
+    say(shift_text(delta, unit=u))
+    written = place_set(out or Path("reports") / slug(a.name),
+                        {f"{slug(a.name)}_shift.csv": shift_csv(delta, u)}, (path,))
     say(written_text(written))
 
 
@@ -167,6 +174,7 @@ def sweep(
     sg: SgOpt = None,
     density: DensOpt = None,
     sulfur: SulfurOpt = None,
+    unit: UnitOpt = TUnit.C,
 ) -> None:
     """Sweep one cut point and show the yield and key qualities of the two neighbouring cuts.
 
@@ -183,13 +191,15 @@ def sweep(
     df = do_sweep(build_model(a), cs, end, t_from, t_to, step)
     if out is not None or not json_out:
         from ..report.studyreports import plot_sweep, sweep_headers
+        from ..report.tables import frame_in_unit
         from ..files import place_set
         from ..report.write import csv_text, png_bytes, slug
 
+        shown_df = frame_in_unit(df, unit.value)
         rel = [x for x in lim if x.cut in (df.attrs["lower"], df.attrs["upper"])]
         base = f"{slug(a.name)}_sweep_{slug(end)}"
-        files = {f"{base}.csv": csv_text(sweep_headers(df), df.values.tolist()).encode("utf-8"),
-                 f"{base}.png": png_bytes(plot_sweep, df, a.name, rel)}
+        files = {f"{base}.csv": csv_text(sweep_headers(shown_df), shown_df.values.tolist()).encode("utf-8"),
+                 f"{base}.png": png_bytes(plot_sweep, shown_df, a.name, rel, unit.value)}
         written = place_set(out or Path("reports") / slug(a.name), files, (path,))
     if json_out:
         from ..report.jsonout import sweep_json
@@ -198,7 +208,7 @@ def sweep(
         return
     from ..report.console import sweep_text, written_text
 
-    echo_lines(sweep_text(a.name, df))
+    echo_lines(sweep_text(a.name, shown_df, unit.value))
     say(written_text(written, "Sweep"))
 
 
@@ -229,6 +239,7 @@ def optimize(
     sg: SgOpt = None,
     density: DensOpt = None,
     sulfur: SulfurOpt = None,
+    temp_unit: UnitOpt = TUnit.C,
 ) -> None:
     """Find the cut points that maximise a product's yield (--maximize NAME) or the crude's worth
     (--prices FILE) while every product limit is met.
@@ -276,7 +287,8 @@ def optimize(
         title = f"{a.name}: maximise {what} inside the product limits (estimates)"
         files = {f"{slug(a.name)}_optimum.png": png_bytes(plot_optimum, res, res.variables, title=title,
                                                            objective_label=f"{what} [{unit}]",
-                                                           before=before.cuts, after=after.cuts)}
+                                                           before=before.cuts, after=after.cuts,
+                                                           temp_unit=temp_unit.value)}
         written = place_set(out or Path("reports") / slug(a.name), files, (path,))
     if json_out:
         from ..report.jsonout import optimum_json
@@ -285,7 +297,7 @@ def optimize(
     else:
         from ..report.console import optimum_text
 
-        echo_lines(optimum_text(a.name, what, unit, res, cs, before.cuts, after.cuts))
+        echo_lines(optimum_text(a.name, what, unit, res, cs, before.cuts, after.cuts, temp_unit.value, lim))
         say(f"Plot written to {written[0]}")
     if not res.feasible:
         raise typer.Exit(EXIT_NO_ANSWER)

@@ -3,13 +3,12 @@
 from __future__ import annotations
 
 import math
-import re
 
 from ..cutting.limits import is_lower_bound, limit_title
-from ..units import c_to_f
 from .studyreports import compare_wide
 from .precision import fixed, limit_decimals, limit_shown, shown
-from .tables import display_cuts, limits_in_unit, quality_text_table, text_table, unit_of
+from .tables import (deg, display_cuts, is_temperature, limit_line_in_unit, limits_in_unit, quality_text_table,
+                     temp_in_unit, text_in_unit, text_table, unit_key, unit_of)
 from .textgrid import grid, wrap
 
 FLASH_FOOTNOTE = ("* Flash points are correlation estimates: measure them (ASTM D93). All results are screening "
@@ -100,7 +99,7 @@ def warning_lines(results, unit: str = "C") -> list[str]:
         for w in r.warnings:
             s = short_warning(w)
             if unit == "F":
-                s = _TEMP_C.sub(lambda m: f"{c_to_f(float(m.group(1))):.{len(m.group(2) or '.') - 1}f} °F", s)
+                s = text_in_unit(s, unit)
             cut = cut or s != " ".join(w.split())
             crudes = groups.setdefault(s, [])
             if name not in crudes:
@@ -113,9 +112,6 @@ def warning_lines(results, unit: str = "C") -> list[str]:
     if cut:
         lines += wrap("(warnings shortened: the full texts are in each report's notes sheet and in --json)")
     return lines
-
-
-_TEMP_C = re.compile(r"(-?\d+(\.\d+)?) ?°C")
 
 
 def written_text(written, what: str = "Report") -> str:
@@ -169,11 +165,11 @@ def convert_text(frm: str, to: str, used: str, src: dict, out: dict, unit: str, 
 
 
 def compare_text(table, worth, currency: str | None, caveat: str, inside, uncertainty: bool, whole=None,
-                 rate: float | None = None) -> list[str]:
+                 rate: float | None = None, unit: str = "C") -> list[str]:
     """Crudes side by side (one column per crude, fitted to the terminal), the worth ranking (per day with a
     crude run ``rate`` [bbl/d]), and the yield differences inside the uncertainty bands.  ``whole``: the
-    whole-crude rows (:func:`~.studyreports.whole_crude_rows`)."""
-    crudes, rows = compare_wide(table, whole)
+    whole-crude rows (:func:`~.studyreports.whole_crude_rows`); ``unit``: 'C' or 'F' for the cuts' TBP ranges."""
+    crudes, rows = compare_wide(table, whole, unit)
     body = [[r[0], r[1]] + [shown(r[2], v) if isinstance(v, float) else (v or "-") for v in r[3:]] for r in rows]
     lines = grid(["Cut", "Quality"] + crudes, body, keep=2)
     if any(r[2] == "extrapolated" and "yes" in r[3:] for r in rows):
@@ -205,24 +201,39 @@ def compare_text(table, worth, currency: str | None, caveat: str, inside, uncert
 
 
 def blend_plan_text(plan) -> list[str]:
-    """The blend optimiser's plan: shares, blend qualities, binding targets and shortfalls."""
+    """The blend optimiser's plan, fitted to the terminal: shares (with the bounds a share sits on), blend
+    qualities and yields, each target's slack and marginal value, and the shortfalls."""
     head = "Optimal blend" if plan.feasible else "The targets cannot all be met; the closest blend"
-    lines = [f"{head} ({plan.objective} {plan.value:.2f}):"]
-    lines += [f"  {nm:<28}{x:7.2f} %" for nm, x in plan.shares_pct.items()]
-    lines.append(f"  blend API {plan.api:.2f} °API, sulfur {plan.sulfur_wt_pct:.3f} wt %; yields "
-                 + ", ".join(f"{k} {v:.1f}" for k, v in plan.yields.items()) + " vol %")
+    lines = [f"{head} ({plan.objective} {fixed(plan.value, 2)}):"]
+    body = []
+    for b in plan.share_bounds or [{"crude": k, "share_pct": x, "min_pct": 0.0, "max_pct": 100.0, "at": None,
+                                     "marginal_per_pct": None} for k, x in plan.shares_pct.items()]:
+        on = ""
+        if b["at"]:
+            on = f"at its {'minimum' if b['at'] == 'min' else 'maximum'}"
+            if b["marginal_per_pct"] is not None:
+                on += f", {fixed(b['marginal_per_pct'], 3, signed=True)} per vol %"
+        body.append([b["crude"], shown("share_pct", b["share_pct"]),
+                     f"{b['min_pct']:g}-{b['max_pct']:g}", on])
+    lines += grid(["Crude", "share vol %", "bounds %", ""], body, align="lrrl")
+    s = plan.sulfur_wt_pct
+    lines += wrap(f"Blend API {shown('api', plan.api)} °API, sulfur "
+                  + (f"{shown('sulfur_wt_pct', s)} wt %" if s == s else "not given") + "; yields "
+                  + ", ".join(f"{k} {shown('vol_pct', v)}" for k, v in plan.yields.items()) + " vol %", indent="  ")
     if plan.binding:
-        lines.append("  binding targets: " + "; ".join(plan.binding))
+        lines += wrap("Binding targets: " + "; ".join(plan.binding), indent="  ")
     for t in plan.targets:
         marg = "" if t["marginal_per_unit"] is None else \
-            f", marginal value {fixed(t['marginal_per_unit'], 2, signed=True)} per {t['unit']}"
-        lines.append(f"  {t['target']}: achieved {fixed(t['achieved'], 2)}, slack {fixed(t['slack'], 2)} {t['unit']}"
-                     f"{marg}")
+            f", marginal value {fixed(t['marginal_per_unit'], 3, signed=True)} per {t['unit']}"
+        lines += wrap(f"{t['target']}: achieved {fixed(t['achieved'], 2)}, slack {fixed(t['slack'], 2)} "
+                      f"{t['unit']}{marg}", indent="  ")
     for lab, amount in plan.shortfalls.items():
         unit = "°API" if "API" in lab else ("wt %" if "sulfur" in lab else "vol %")
         how = "exceeded by" if "<=" in lab else "short by"
-        lines.append(f"  target not met: {lab}, {how} {fixed(amount, 2)} {unit}")
-    lines.append("  Linear blending rules (no shrinkage); worth ignores operating costs and unit limits.")
+        lines += wrap(f"target not met: {lab}, {how} {fixed(amount, 2)} {unit}", indent="  ")
+    lines += wrap("Marginal values: change of the objective per unit of a target or per vol % of a share bound "
+                  "(linear programme duals). Linear blending rules (no shrinkage); worth ignores operating costs "
+                  "and unit limits.")
     return lines
 
 
@@ -236,37 +247,56 @@ def blend_text(new) -> list[str]:
 
 SWEEP_COLUMNS = [("vol_pct", "vol %"), ("wt_pct", "wt %"), ("sg", "SG"), ("sulfur_wt_pct", "S wt %"),
                  ("d86_10_c", "D86 10 °C"), ("d86_95_c", "D86 95 °C"), ("cetane_index_d4737", "CCI"),
-                 ("flash_c_est", "Flash °C*")]
-"""The qualities a printed sweep shows for each of the two cuts."""
+                 ("flash_c_est", "Flash °C*"), ("freeze_point_c", "Freeze °C"), ("smoke_point_mm", "Smoke mm"),
+                 ("cloud_point_c", "Cloud °C"), ("pour_point_c", "Pour °C")]
+"""The qualities a printed sweep shows for each of the two cuts (those the sweep has)."""
 
 
-def sweep_text(crude: str, df) -> list[str]:
+def sweep_text(crude: str, df, unit: str = "C") -> list[str]:
     """A cut-point sweep as a table fitted to the terminal: for the cut below and the cut above the moving
-    point, yields on both bases, SG, sulfur, D86 10 % and 95 %, cetane index and the flash estimate."""
+    point, yields on both bases, SG, sulfur, D86 10 % and 95 %, cetane index, the flash estimate, and the
+    freeze, smoke, cloud and pour points where the crude has them.  ``df`` as
+    :func:`~assaycut.report.tables.frame_in_unit` shows it in ``unit`` ('C' or 'F'); a quality estimated by
+    a correlation rather than measured carries '~' in its header."""
     lo, up = df.attrs["lower"], df.attrs["upper"]
-    cols = [(side, q, h) for side in ("lower", "upper") for q, h in SWEEP_COLUMNS if f"{side}_{q}" in df]
-    head = ["Cut °C"] + [f"{'lo' if side == 'lower' else 'up'} {h}" for side, _, h in cols]
-    body = [[shown("cut_point_c", r["cut_point_c"])] + [shown(q, r[f"{side}_{q}"]) for side, q, _ in cols]
-            for r in df.to_dict("records")]
-    return ([f"{crude}: cut point between {lo!r} (lo) and {up!r} (up)"] + grid(head, body)
-            + ["* flash estimates must be measured (ASTM D93)."])
+    u = deg(unit)
+    est = set(df.attrs.get("estimated", ()))
+    cols = [(side, q, h) for side in ("lower", "upper") for q, h in SWEEP_COLUMNS
+            if f"{side}_{unit_key(q, unit)}" in df]
+    head = [f"Cut {u}"] + [f"{'lo' if side == 'lower' else 'up'} {h.replace('°C', u)}"
+                           + ("~" if f"{side}_{q}" in est else "") for side, q, h in cols]
+    body = [[shown("cut_point_c", r[unit_key("cut_point_c", unit)])]
+            + [shown(q, r[f"{side}_{unit_key(q, unit)}"]) for side, q, _ in cols] for r in df.to_dict("records")]
+    notes = ["* flash estimates must be measured (ASTM D93)."]
+    if est:
+        notes += wrap("~ estimated by a correlation over some or all of the sweep, not measured on narrow cuts")
+    return [f"{crude}: cut point between {lo!r} (lo) and {up!r} (up)"] + grid(head, body) + notes
 
 
-def optimum_text(crude: str, what: str, unit: str, res, cut_set, before=None, after=None) -> list[str]:
+def optimum_text(crude: str, what: str, unit: str, res, cut_set, before=None, after=None,
+                 temp_unit: str = "C", limits=()) -> list[str]:
     """The optimiser's answer: each cut's start and optimum end point (and yields), the objective, how the
-    search went, the active limits; when infeasible, what cannot be met and by how much."""
+    search went, the active limits; when infeasible, what cannot be met and by how much.  ``unit``: the
+    objective's unit; ``temp_unit``: 'C' or 'F' for the temperatures (``limits``: the limits the search used,
+    whose temperature bounds are then shown in °F)."""
+    props = {lim.describe(): lim.property for lim in limits}
+
+    def lim_line(text):
+        return limit_line_in_unit(text, props.get(text, ""), temp_unit)
+
     lines = [f"{crude}: maximise {what}"]
     moved = set(res.var_index)
     yields = before is not None and after is not None
-    head = ["Cut", "start end °C"] + (["optimum end °C"] if res.feasible else [])
+    u = deg(temp_unit)
+    head = ["Cut", f"start end {u}"] + ([f"optimum end {u}"] if res.feasible else [])
     head += (["start vol %"] + (["optimum vol %"] if res.feasible else [])) if yields else []
     head.append("")
     body = []
     for k, c in enumerate(cut_set.cuts):
         ends = k < len(res.ends_c)
-        row = [c.name, shown("end_c", res.start_ends_c[k]) if ends else "end"]
+        row = [c.name, shown("end_c", temp_in_unit(res.start_ends_c[k], temp_unit)) if ends else "end"]
         if res.feasible:
-            row.append(shown("end_c", res.ends_c[k]) if ends else "end")
+            row.append(shown("end_c", temp_in_unit(res.ends_c[k], temp_unit)) if ends else "end")
         if yields:
             row.append(shown("vol_pct", before["vol_pct"][k]))
             if res.feasible:
@@ -285,16 +315,21 @@ def optimum_text(crude: str, what: str, unit: str, res, cut_set, before=None, af
                      f"the optimum" + (f" (brute-force grid best {fixed(res.grid_best, 2)})"
                                    if res.grid_best == res.grid_best else ""))
         if res.active:
-            prose.append("Active limits: " + "; ".join(res.active))
-        prose += [f"Note: {n}" for n in res.bound_notes]
+            prose.append("Active limits: " + "; ".join(lim_line(x) for x in res.active))
+        prose += [f"Note: {text_in_unit(n, temp_unit)}" for n in res.bound_notes]
     else:
         prose.append("NO FEASIBLE ANSWER: no cut points within the span meet every limit. What cannot be met, at "
                      "the least-violating cut points found:")
         for f in res.shortfalls:
-            u = "" if unit_of(f["property"]) == "-" else " " + unit_of(f["property"])
+            temp = temp_unit == "F" and is_temperature(f["property"])
+            u = "°F" if temp else unit_of(f["property"])
+            u = "" if u == "-" else " " + u
             alone = "" if f["alone_possible"] else " (cannot be met on its own within the span)"
             nd = limit_decimals(f["limit"])
-            prose.append(f"  {f['limit']}: {fixed(f['value'], nd)}{u}, short by {fixed(f['short_by'], nd)}{u}{alone}")
+            value = temp_in_unit(f["value"], temp_unit) if temp else f["value"]
+            short = temp_in_unit(f["short_by"], temp_unit, difference=True) if temp else f["short_by"]
+            prose.append(f"  {limit_line_in_unit(f['limit'], f['property'], temp_unit)}: {fixed(value, nd)}{u}, "
+                         f"short by {fixed(short, nd)}{u}{alone}")
     if res.violated_at_start:
         prose.append("Limits broken at the start: " + "; ".join(res.violated_at_start))
     if res.not_evaluated:
@@ -313,20 +348,29 @@ SHIFT_COLUMNS = [("vol_pct", "vol %"), ("wt_pct", "wt %"), ("sg", "SG"), ("sulfu
 """The qualities a printed shift shows, each as its new value and its change."""
 
 
-def shift_text(delta, width: int | None = None) -> str:
+def shift_text(delta, width: int | None = None, unit: str = "C") -> str:
     """The shift as a table fitted to the terminal: each quality's new value and its change (Δ) beside it,
-    numbers right-aligned, changed cuts marked '*', the limits that flip listed under the table."""
+    numbers right-aligned, changed cuts marked '*', the limits that flip listed under the table; temperatures
+    in ``unit`` ('C' or 'F'; a change of temperature as a difference)."""
 
     def e(v):
-        return "end" if v is None or (isinstance(v, float) and math.isnan(v)) else shown("end_c", v)
+        return "end" if v is None or (isinstance(v, float) and math.isnan(v)) else shown("end_c", temp_in_unit(v, unit))
 
-    head = ["Cut", "End °C", "new End °C"] + [x for _, h in SHIFT_COLUMNS for x in (h, "Δ " + h)]
+    def q_new(q, v):
+        return shown(q, temp_in_unit(v, unit) if is_temperature(q) else v)
+
+    def q_delta(q, v):
+        return shown(q, temp_in_unit(v, unit, difference=True) if is_temperature(q) else v, signed=True)
+
+    u = deg(unit)
+    head = ["Cut", f"End {u}", f"new End {u}"] + [x for _, h in SHIFT_COLUMNS for x in (h.replace("°C", u),
+                                                                                        "Δ " + h.replace("°C", u))]
     body, flips = [], []
     for r in delta.rows():
         body.append([("* " if r["changed"] else "  ") + r["name"], e(r["end_c_base"]), e(r["end_c_new"])]
-                    + [x for q, _ in SHIFT_COLUMNS for x in (shown(q, r[f"new_{q}"]), shown(q, r[q], signed=True))])
+                    + [x for q, _ in SHIFT_COLUMNS for x in (q_new(q, r[f"new_{q}"]), q_delta(q, r[q]))])
         if r["limit_flips"]:
-            flips.append(f"  {r['name']}: {r['limit_flips']}")
+            flips.append(f"  {r['name']}: {text_in_unit(r['limit_flips'], unit)}")
     lines = grid(head, body, width=width)
     lines.append("* the cut's yield changed; Δ = new less base")
     lines += (["Limits that flip:"] + flips) if flips else ["No limit flips."]

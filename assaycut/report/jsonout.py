@@ -145,10 +145,12 @@ def vectors_json(entries, step_c: float) -> dict:
 
 def blend_plan_json(plan) -> dict:
     """The blend optimiser's plan: feasible, objective and its value, shares [%], blend API and sulfur,
-    yields [vol %], each target with its slack and marginal value, the binding targets and any shortfalls."""
+    yields [vol %], each target with its slack and marginal value, the binding targets, each crude's share
+    against its bounds (with the bound's marginal value where the share sits on it) and any shortfalls."""
     return json_safe({"feasible": plan.feasible, "objective": plan.objective, "value": plan.value,
                       "shares_pct": plan.shares_pct, "api": plan.api, "sulfur_wt_pct": plan.sulfur_wt_pct,
                       "yields_vol_pct": plan.yields, "targets": plan.targets, "binding": plan.binding,
+                      "share_bounds": plan.share_bounds,
                       "shortfalls": plan.shortfalls,
                       "notes": ["linear blending rules, no shrinkage; worth ignores operating costs and unit "
                                 "limits; marginal_per_unit is the change of the objective's value per unit of "

@@ -6,10 +6,13 @@ import numpy as np
 
 from ..model.tbp_curve import BAND_LAST_POINTS as BAND_LAST
 
-CUT_COLOURS = ["#ede4cf", "#7fa7c9", "#f4d58d", "#5e9e8c", "#e9b3a6", "#8f86b8", "#c9c2b6", "#6f8f5a",
-               "#f1cfe0", "#9c7b5b"]
-"""Fill colours of the cuts, in order: our own palette.  Neighbouring products alternate between light and
-dark tints as well as hue, so that they stay apart for colour-blind readers and in greyscale print."""
+CUT_COLOURS = ["#f1cfe0", "#6f8f5a", "#ede4cf", "#d9a441", "#7fa7c9", "#9c7b5b", "#f4d58d", "#4f7fb0", "#e9b3a6",
+               "#8f86b8"]
+"""Fill colours of the cuts, in order (cycled), drawn at :data:`FILL_ALPHA`: our own palette.  Neighbouring
+products differ by at least 20 CAM02-UCS ΔE in normal colour vision and under simulated deuteranopia, protanopia and tritanopia (tested), so that
+touching bands stay apart for colour-blind readers."""
+FILL_ALPHA = 0.85
+"""Opacity of the cut bands over the white plot."""
 LABEL_MIN_PCT = 6.0
 """A cut narrower than this [vol %] gets its label outside, on a leader line, instead of inside its band."""
 PLOT_TOP_PCT = 99.0
@@ -29,7 +32,7 @@ PNG_DPI = 150
 """Resolution of every PNG of the reports [dots per inch]."""
 
 
-def _save(fig, target, tight: bool = True) -> None:
+def save_png(fig, target, tight: bool = True) -> None:
     """Render ``fig`` as PNG to ``target`` (a binary file object; the report writer places it atomically), at
     :data:`PNG_DPI`; ``tight=False`` for a figure laid out with fixed margins (much faster to render)."""
     fig.savefig(target, dpi=PNG_DPI, bbox_inches="tight" if tight else None, format="png")
@@ -39,7 +42,7 @@ def plot_tbp(result, target) -> None:
     """The :func:`tbp_figure` of ``result`` as PNG into ``target``."""
     plt = pyplot()
     fig = tbp_figure(result)
-    _save(fig, target)
+    save_png(fig, target)
     plt.close(fig)
 
 
@@ -82,7 +85,7 @@ def tbp_figure(result):
         lo, hi = r["cum_vol_pct"] - r["vol_pct"], min(r["cum_vol_pct"], PLOT_TOP_PCT)
         if hi <= lo:
             continue
-        ax.axvspan(lo, hi, color=CUT_COLOURS[i % len(CUT_COLOURS)], alpha=0.7, lw=0)
+        ax.axvspan(lo, hi, color=CUT_COLOURS[i % len(CUT_COLOURS)], alpha=FILL_ALPHA, lw=0)
         text = f"{r['name']} {r['vol_pct']:.1f}%"
         if hi - lo >= LABEL_MIN_PCT:  # the label on the side of the band the curve leaves free
             low_curve = float(c.temp_at((lo + hi) / 2)) < tmin + 0.5 * span
@@ -131,7 +134,7 @@ def plot_yields(result, target) -> None:
                     if result.bands is not None else ""), fontsize=10)
     ax.legend()
     ax.grid(axis="y", alpha=0.3)
-    _save(fig, target)
+    save_png(fig, target)
     plt.close(fig)
 
 
@@ -177,7 +180,7 @@ def plot_properties(result, target) -> None:
     a2.set_title("Sulfur")
     a2.grid(alpha=0.3)
     fig.suptitle(f"{result.assay.name}: property distributions (estimates)")
-    _save(fig, target)
+    save_png(fig, target)
     plt.close(fig)
 
 
@@ -198,7 +201,8 @@ def plot_products(result, target) -> None:
     names = list(result.cuts["name"])
     for j, n in enumerate(names):
         h, _ = np.histogram(t, bins=bins, weights=pc["fractions"][:, j] * dv)
-        a1.step(mids, h / BIN_C, where="mid", color=CUT_COLOURS_DARK[j % len(CUT_COLOURS_DARK)], lw=1.3, label=n)
+        a1.step(mids, h / BIN_C, where="mid", color=CUT_COLOURS_DARK[j % len(CUT_COLOURS_DARK)], lw=1.4,
+                ls=CUT_DASHES[j % len(CUT_DASHES)], label=n)
     a1.set_xlabel("TBP [°C]")
     a1.set_ylabel(f"Distribution [vol % of crude per °C, {BIN_C:g} °C bins]")
     a1.set_title("Where each product's material boils")
@@ -224,15 +228,19 @@ def plot_products(result, target) -> None:
     a2.legend(fontsize=6, loc="upper left")
     fig.suptitle(f"{result.assay.name}: real-column products, TBP 5-95 overlaps "
                  + ", ".join(f"{n} {w:g} °C" for n, w in result.cut_set.overlaps.items()))
-    _save(fig, target)
+    save_png(fig, target)
     plt.close(fig)
 
 
 BIN_C = 5.0
 """Temperature bin of the product distribution plot. [°C]"""
-CUT_COLOURS_DARK = ["#546e7a", "#0277bd", "#00838f", "#f9a825", "#ef6c00", "#6d4c41", "#3e2723", "#2e7d32",
-                    "#6a1b9a", "#c62828"]
-"""Line colours of the products, in order (our own palette)."""
+CUT_COLOURS_DARK = ["#5b3f8f", "#d1495b", "#6fb7e8", "#b0a23a", "#2b2b2b", "#2a9d8f", "#7a4f00", "#8d8d8d",
+                    "#1f4e9c", "#e08a1e"]
+"""Line colours of the products, in order (cycled; our own palette).  Neighbouring products, whose tails overlap,
+differ by at least 25 CAM02-UCS ΔE in normal colour vision and under simulated deuteranopia, protanopia and
+tritanopia (tested); :data:`CUT_DASHES` tells apart the products further apart."""
+CUT_DASHES = ["-", "--", "-.", (0, (1, 1.5))]
+"""Line styles of the products' distribution lines, in order (cycled)."""
 
 
 def quality_order(cuts, names: list[str]) -> list[str]:
@@ -309,5 +317,5 @@ def plot_qualities(result, target) -> None:
                loc="lower center", ncol=4, fontsize=9, frameon=False)
     fig.suptitle(f"{result.assay.name}: qualities per cut, each bar across its cut's share of the crude "
                  f"[vol %] (estimates for screening)")
-    _save(fig, target, tight=False)
+    save_png(fig, target, tight=False)
     plt.close(fig)

@@ -7,7 +7,7 @@ import numpy as np
 from ..cutting.limits import limit_title
 from ..studies.compare import WORTH_CAVEAT
 from ..units import sg_to_density15
-from .plots import pyplot
+from .plots import pyplot, save_png
 from .xlsx import finish_workbook, write_table
 
 COMPARE_LABELS = {"vol_pct": "Yield [vol %]", "wt_pct": "Yield [wt %]", "bbl_per_day": "Rate [bbl/d]",
@@ -15,6 +15,8 @@ COMPARE_LABELS = {"vol_pct": "Yield [vol %]", "wt_pct": "Yield [wt %]", "bbl_per
                   "sulfur_wt_pct": "Sulfur [wt %]", "watson_k": "Watson K [-]", "limits": "Limits",
                   "extrapolated": "Extrapolated"}
 """The qualities of each cut in a comparison (those present), with their labels."""
+SIDE_COLOURS = ("#283593", "#ef6c00")
+"""Line colours of a sweep's lower and upper cut: a dark blue and an orange, apart for every colour vision."""
 WHOLE_CRUDE = "whole crude"
 """Cut name of the comparison's whole-crude rows."""
 
@@ -30,14 +32,25 @@ def whole_crude_rows(results) -> list[list]:
     return [[WHOLE_CRUDE, lab, key, *vals] for lab, key, vals in rows]
 
 
-def compare_wide(table, whole: list[list] | None = None):
+def compare_wide(table, whole: list[list] | None = None, unit: str = "C"):
     """Comparison as rows [cut, label, key, one value per crude]: the ``whole`` crude rows first, then each
-    cut's qualities of :data:`COMPARE_LABELS` present in ``table``; extrapolated as 'yes' or ''."""
+    cut's TBP range (text, in ``unit`` 'C' or 'F') and its qualities of :data:`COMPARE_LABELS` present in
+    ``table``; extrapolated as 'yes' or ''."""
+    from .precision import shown
+    from .tables import deg, temp_in_unit
+
+    def tbp(a, b):
+        return "–".join("IBP" if k == 0 and v != v else "end" if v != v else shown("end_c", temp_in_unit(v, unit))
+                        for k, v in enumerate((a, b)))
+
     crudes = list(dict.fromkeys(table["crude"]))
     cuts = list(dict.fromkeys(table["cut"]))
     idx = table.set_index(["cut", "crude"])
     rows = [list(r) for r in whole or []]
     for cut in cuts:
+        if "start_c" in table:
+            rows.append([cut, f"TBP cut [{deg(unit)}]", "tbp_range"]
+                        + [tbp(idx.loc[(cut, c), "start_c"], idx.loc[(cut, c), "end_c"]) for c in crudes])
         for q, label in COMPARE_LABELS.items():
             if q not in table:
                 continue
@@ -48,9 +61,9 @@ def compare_wide(table, whole: list[list] | None = None):
     return crudes, rows
 
 
-def compare_workbook(results, table, worth, currency: str | None, products=None):
-    """openpyxl Workbook: sheets 'comparison', 'worth' and 'worth by product' (when priced), 'crudes',
-    'notes'."""
+def compare_workbook(results, table, worth, currency: str | None, products=None, unit: str = "C"):
+    """openpyxl Workbook: sheets 'comparison' (temperatures in ``unit``, 'C' or 'F'), 'worth' and 'worth by
+    product' (when priced), 'crudes', 'notes'."""
     import openpyxl
 
     from ..yields import CAUTIONS
@@ -58,7 +71,7 @@ def compare_workbook(results, table, worth, currency: str | None, products=None)
     wb = openpyxl.Workbook()
     ws = wb.active
     ws.title = "comparison"
-    crudes, rows = compare_wide(table, whole_crude_rows(results))
+    crudes, rows = compare_wide(table, whole_crude_rows(results), unit)
     write_table(ws, ["Cut", "Quality"] + crudes, [[r[0], r[1], *r[3:]] for r in rows],
                 widths=[20, 26] + [max(14, len(c) + 2) for c in crudes], freeze="C2", row_keys=[r[2] for r in rows])
     if worth is not None:
@@ -126,7 +139,7 @@ def plot_compare(table, target) -> None:
     ax.set_title("Crude comparison: yields by cut (estimates for screening)")
     ax.grid(axis="y", alpha=0.3)
     ax.legend()
-    fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
+    save_png(fig, target)
     plt.close(fig)
 
 
@@ -169,64 +182,81 @@ def vectors_files(name: str, base, deltas: dict, step_c: float) -> dict[str, byt
                                                        "basis"], long).encode("utf-8")}
 
 
-def shift_csv(delta) -> bytes:
-    """The shift table as CSV: each cut's new end, and per quality the new value and the change, labelled."""
-    from .tables import label_for
+def shift_csv(delta, unit: str = "C") -> bytes:
+    """The shift table as CSV: each cut's new end, and per quality the new value and the change, labelled;
+    temperatures in ``unit`` ('C' or 'F'; a change of temperature as a difference)."""
+    from .tables import deg, is_temperature, label_for, temp_in_unit
     from .write import csv_text
 
+    u = deg(unit)
     cols = delta.keys
-    heads = []
+    heads, conv = [], []
     for c in cols:
         if c.startswith("new_"):
-            heads.append(f"New {label_for(c[4:])}")
+            heads.append(f"New {label_for(c[4:])}".replace("°C", u))
+            conv.append("t" if is_temperature(c) else "")
         elif c in ("name", "changed", "limit_flips", "end_c_base", "end_c_new"):
             heads.append({"name": "Cut", "changed": "Changed", "limit_flips": "Limits that flip",
-                          "end_c_base": "End TBP before [°C]", "end_c_new": "End TBP after [°C]"}[c])
+                          "end_c_base": f"End TBP before [{u}]", "end_c_new": f"End TBP after [{u}]"}[c])
+            conv.append("t" if c.startswith("end_c") else "")
         else:
-            heads.append(f"Change in {label_for(c)}")
-    return csv_text(heads, [[r[c] for c in cols] for r in delta.rows()]).encode("utf-8")
+            heads.append(f"Change in {label_for(c)}".replace("°C", u))
+            conv.append("d" if is_temperature(c) else "")
+    rows = [[temp_in_unit(r[c], unit, difference=k == "d") if k else r[c] for c, k in zip(cols, conv)]
+            for r in delta.rows()]
+    return csv_text(heads, rows).encode("utf-8")
 
 
 def sweep_headers(df) -> list[str]:
     """The sweep table's headers in the cut CSV's style: the cut's name, then the labelled quality with its
-    unit ('kerosene Yield [vol %]'); the cut point as 'Cut point [°C TBP]'."""
+    unit ('kerosene Yield [vol %]'); the cut point as 'Cut point [°C TBP]' (or °F for a frame in °F)."""
     from .tables import label_for
 
     names = {"lower": df.attrs.get("lower", "lower cut"), "upper": df.attrs.get("upper", "upper cut")}
     out = []
     for c in df.columns:
         side, _, q = c.partition("_")
-        out.append("Cut point [°C TBP]" if c == "cut_point_c" else f"{names.get(side, side)} {label_for(q)}")
+        if c in ("cut_point_c", "cut_point_f"):
+            out.append(f"Cut point [°{c[-1].upper()} TBP]")
+        else:
+            out.append(f"{names.get(side, side)} {label_for(q)}")
     return out
 
 
-def plot_sweep(df, target, crude: str, limits: list | None = None) -> None:
-    """Yields and key qualities of the two neighbouring cuts against the moving cut point."""
+def plot_sweep(df, target, crude: str, limits: list | None = None, unit: str = "C") -> None:
+    """Yields and key qualities of the two neighbouring cuts against the moving cut point; ``df`` as
+    :func:`~.tables.frame_in_unit` shows it in ``unit`` ('C' or 'F'), the temperature limits drawn in it."""
+    from .tables import deg, is_temperature, temp_in_unit, unit_key
+
+    def k(side, q):
+        return f"{side}_{unit_key(q, unit)}"
+
+    u = deg(unit)
     plt = pyplot()
     lo, hi = df.attrs.get("lower", "lower cut"), df.attrs.get("upper", "upper cut")
-    t = df["cut_point_c"]
+    t = df[unit_key("cut_point_c", unit)]
     fig, axs = plt.subplots(2, 2, figsize=(11, 7.5), sharex=True)
     (a1, a2), (a3, a4) = axs
-    a1.plot(t, df["lower_vol_pct"], color="#283593", label=f"{lo} vol %")
-    a1.plot(t, df["upper_vol_pct"], color="#ef6c00", label=f"{hi} vol %")
-    a1.plot(t, df["lower_wt_pct"], color="#283593", ls="--", label=f"{lo} wt %")
-    a1.plot(t, df["upper_wt_pct"], color="#ef6c00", ls="--", label=f"{hi} wt %")
+    a1.plot(t, df["lower_vol_pct"], color=SIDE_COLOURS[0], label=f"{lo} vol %")
+    a1.plot(t, df["upper_vol_pct"], color=SIDE_COLOURS[1], label=f"{hi} vol %")
+    a1.plot(t, df["lower_wt_pct"], color=SIDE_COLOURS[0], ls="--", label=f"{lo} wt %")
+    a1.plot(t, df["upper_wt_pct"], color=SIDE_COLOURS[1], ls="--", label=f"{hi} wt %")
     a1.set_ylabel("Yield [% of crude]")
     a1.set_title("Yields")
-    a2.plot(t, sg_to_density15(df["lower_sg"].to_numpy()), color="#283593", label=lo)
-    a2.plot(t, sg_to_density15(df["upper_sg"].to_numpy()), color="#ef6c00", label=hi)
+    a2.plot(t, sg_to_density15(df["lower_sg"].to_numpy()), color=SIDE_COLOURS[0], label=lo)
+    a2.plot(t, sg_to_density15(df["upper_sg"].to_numpy()), color=SIDE_COLOURS[1], label=hi)
     a2.set_ylabel("Density at 15 °C [kg/m3]")
     a2.set_title("Density")
-    a3.plot(t, df["lower_d86_95_c"], color="#283593", label=f"{lo} D86 95 %")
-    a3.plot(t, df["upper_d86_10_c"], color="#ef6c00", label=f"{hi} D86 10 %")
-    a3.set_ylabel("D86 estimate [°C]")
+    a3.plot(t, df[k("lower", "d86_95_c")], color=SIDE_COLOURS[0], label=f"{lo} D86 95 %")
+    a3.plot(t, df[k("upper", "d86_10_c")], color=SIDE_COLOURS[1], label=f"{hi} D86 10 %")
+    a3.set_ylabel(f"D86 estimate [{u}]")
     a3.set_title("Distillation at the boundary")
-    a4.plot(t, df["lower_flash_c_est"], color="#283593", label=f"{lo} flash est.")
-    a4.plot(t, df["upper_flash_c_est"], color="#ef6c00", label=f"{hi} flash est.")
-    a4.set_ylabel("Flash point estimate [°C]")
+    a4.plot(t, df[k("lower", "flash_c_est")], color=SIDE_COLOURS[0], label=f"{lo} flash est.")
+    a4.plot(t, df[k("upper", "flash_c_est")], color=SIDE_COLOURS[1], label=f"{hi} flash est.")
+    a4.set_ylabel(f"Flash point estimate [{u}]")
     a4.set_title("Flash estimate (measure by ASTM D93) and cetane index")
     a5 = a4.twinx()  # the cetane index on its own axis: it is not a temperature
-    for side, name, colour in (("lower", lo, "#283593"), ("upper", hi, "#ef6c00")):
+    for side, name, colour in (("lower", lo, SIDE_COLOURS[0]), ("upper", hi, SIDE_COLOURS[1])):
         if np.isfinite(df[f"{side}_cetane_index_d4737"]).any():
             a5.plot(t, df[f"{side}_cetane_index_d4737"], color=colour, ls=":", label=f"{name} CCI (right axis)")
     if a5.lines:
@@ -240,6 +270,7 @@ def plot_sweep(df, target, crude: str, limits: list | None = None) -> None:
         if ax is not None:
             for v in (lim.min, lim.max):
                 if v is not None:
+                    v = temp_in_unit(v, unit) if is_temperature(lim.property) else v
                     ax.axhline(v, color="#c62828", lw=0.8, ls="-.")
                     right = ax is a5  # the right axis's limits are labelled at the right, the left's at the left
                     ax.text(t.iloc[-1] if right else t.iloc[0], v,
@@ -249,37 +280,62 @@ def plot_sweep(df, target, crude: str, limits: list | None = None) -> None:
         ax.grid(alpha=0.3)
         ax.legend(fontsize=7)
     for ax in (a3, a4):
-        ax.set_xlabel(f"Cut point {lo} / {hi} [°C TBP]")
+        ax.set_xlabel(f"Cut point {lo} / {hi} [{u} TBP]")
     fig.suptitle(f"{crude}: cut-point sweep (estimates for screening)")
-    fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
+    save_png(fig, target)
     plt.close(fig)
 
 
+def round_levels(lo: float, hi: float, n: int = 20) -> np.ndarray:
+    """Contour levels at round numbers (steps of 1, 2, 2.5 or 5 times a power of ten) covering ``lo`` to
+    ``hi`` in at most ``n`` bands, so that the colour bar's ticks read as round values.
+
+    Examples
+    --------
+    >>> round_levels(11.73, 12.41, 10).tolist()[:3]
+    [11.7, 11.8, 11.9]
+    """
+    from matplotlib.ticker import MaxNLocator
+
+    if not hi > lo:  # a flat objective: one band around it
+        lo, hi = lo - 0.5, hi + 0.5
+    lev = MaxNLocator(nbins=n, steps=[1, 2, 2.5, 5, 10]).tick_values(lo, hi)
+    lev = lev[(lev >= lev[lev <= lo].max()) & (lev <= lev[lev >= hi].min())]
+    step = float(lev[1] - lev[0])
+    return np.round(lev, max(0, 2 - int(np.floor(np.log10(step)))))  # no float noise in the tick labels
+
+
 def plot_optimum(res, target, names_moved: list[str], title: str, objective_label: str, before=None,
-                 after=None) -> None:
+                 after=None, temp_unit: str = "C") -> None:
     """The optimiser's answer: for two moving cut points, the objective over the brute-force grid with the
-    region breaking a limit greyed out, the start and the optimum marked; otherwise yields before and after."""
+    region breaking a limit greyed out, the start and the optimum marked, cut points in ``temp_unit`` ('C' or
+    'F'); otherwise yields before and after."""
+    from .tables import deg, temp_in_unit
+
     plt = pyplot()
-    g = res.grid
+    g = dict(res.grid)
     if "x" in g:
+        g["x"], g["y"] = (np.array([temp_in_unit(v, temp_unit) for v in g[k]]) for k in ("x", "y"))
+        start = [temp_in_unit(v, temp_unit) for v in res.start_ends_c[res.var_index]]
+        best = [temp_in_unit(v, temp_unit) for v in res.ends_c[res.var_index]]
         fig, ax = plt.subplots(figsize=(8, 6))
         obj = g["objective"].reshape(g["shape"])
         ok = g["feasible"].reshape(g["shape"])
         # the colour bar spans the feasible values; infeasible cells are clipped into it and hatched over
         finite = obj[np.isfinite(obj) & ok] if (ok & np.isfinite(obj)).any() else obj[np.isfinite(obj)]
         lo_v, hi_v = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 1.0)
-        levels = np.linspace(lo_v, hi_v + (1e-9 if hi_v == lo_v else 0.0), 21)
-        shown = np.clip(np.where(np.isfinite(obj), obj, lo_v), lo_v, levels[-1])
+        levels = round_levels(lo_v, hi_v)
+        shown = np.clip(np.where(np.isfinite(obj), obj, levels[0]), levels[0], levels[-1])
         cs = ax.contourf(g["x"], g["y"], shown.T, levels=levels, cmap="viridis")
         fig.colorbar(cs, ax=ax, label=objective_label)
         if (~ok).any():
             ax.contourf(g["x"], g["y"], (~ok).T.astype(float), levels=[0.5, 1.5], colors=["#616161"], alpha=0.55,
                         hatches=["///"])
             ax.contour(g["x"], g["y"], (~ok).T.astype(float), levels=[0.5], colors=["#212121"], linewidths=1.2)
-        ax.plot(*res.start_ends_c[res.var_index], "o", color="#c62828", ms=9, label="start")
-        ax.plot(*res.ends_c[res.var_index], "*", color="#ffeb3b", mec="black", ms=16, label="optimum")
-        ax.set_xlabel(f"{names_moved[0]} [°C TBP]")
-        ax.set_ylabel(f"{names_moved[1]} [°C TBP]")
+        ax.plot(*start, "o", color="#c62828", ms=9, label="start")
+        ax.plot(*best, "*", color="#ffeb3b", mec="black", ms=16, label="optimum")
+        ax.set_xlabel(f"{names_moved[0]} [{deg(temp_unit)} TBP]")
+        ax.set_ylabel(f"{names_moved[1]} [{deg(temp_unit)} TBP]")
         ax.legend(loc="lower right", fontsize=8)
         ax.text(0.01, 0.99, "hatched grey: breaks a product limit (infeasible)", transform=ax.transAxes, va="top",
                 fontsize=8, bbox={"fc": "white", "ec": "none", "alpha": 0.8})
@@ -293,7 +349,7 @@ def plot_optimum(res, target, names_moved: list[str], title: str, objective_labe
         ax.legend()
         ax.grid(axis="y", alpha=0.3)
     ax.set_title(title)
-    fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
+    save_png(fig, target)
     plt.close(fig)
 
 
@@ -304,8 +360,15 @@ def blend_plan_workbook(plan):
     wb = openpyxl.Workbook()
     ws = wb.active
     ws.title = "shares"
-    write_table(ws, ["Crude", "Share [vol %]"], [[k, v] for k, v in plan.shares_pct.items()], [None, "0.00"],
-                widths=[28, 14])
+    bounds = {b["crude"]: b for b in plan.share_bounds}
+    rows = []
+    for k, v in plan.shares_pct.items():
+        b = bounds.get(k, {})
+        at = {"min": "at its minimum", "max": "at its maximum"}.get(b.get("at"), "")
+        rows.append([k, v, b.get("min_pct"), b.get("max_pct"), at, b.get("marginal_per_pct")])
+    write_table(ws, ["Crude", "Share [vol %]", "Minimum [vol %]", "Maximum [vol %]", "On a bound",
+                     "Marginal value per vol % of the bound"], rows, [None, "0.00", "0.00", "0.00", None, "0.000"],
+                widths=[28, 14, 16, 16, 16, 34])
     r = len(plan.shares_pct) + 3
     for k, (lab, val, fmt) in enumerate([("Objective", plan.objective, None), ("Value", plan.value, "0.00"),
                                           ("Blend API [°API]", plan.api, "0.00"),
@@ -328,23 +391,81 @@ def blend_plan_workbook(plan):
 
 
 def plot_blend_plan(plan, target) -> None:
-    """The blend optimiser's shares, and each target against what the blend achieves."""
+    """The :func:`blend_plan_figure` of ``plan`` as PNG into ``target``."""
+    fig = blend_plan_figure(plan)
+    save_png(fig, target)
+    pyplot().close(fig)
+
+
+def blend_plan_figure(plan):
+    """The blend optimiser's plan as a matplotlib figure: each crude's share inside its allowed range (a bound
+    the share sits on marked and named), the blend's yields, and a table of the targets and the binding share
+    bounds with what the blend achieves, the slack and the marginal value."""
+    from .precision import fixed, shown
+
     plt = pyplot()
-    fig, (a1, a2) = plt.subplots(1, 2, figsize=(11, 4.5), gridspec_kw={"width_ratios": [1, 1.3]})
-    names = list(plan.shares_pct)
-    a1.barh(names, [plan.shares_pct[n] for n in names], color="#00838f")
-    a1.set_xlabel("Share of the blend [vol %]")
-    a1.set_xlim(0, 100)
+    fig, (a1, a2, a3) = plt.subplots(1, 3, figsize=(14, 4.8), gridspec_kw={"width_ratios": [1.1, 1.0, 1.5]})
+    bounds = plan.share_bounds or [{"crude": k, "share_pct": x, "min_pct": 0.0, "max_pct": 100.0, "at": None,
+                                    "marginal_per_pct": None} for k, x in plan.shares_pct.items()]
+    y = np.arange(len(bounds))[::-1]
+    for yk, b in zip(y, bounds):
+        a1.barh(yk, b["max_pct"] - b["min_pct"], left=b["min_pct"], height=0.7, color="#e0e0e0", zorder=1)
+        a1.barh(yk, b["share_pct"], height=0.45, color="#00838f", zorder=2)
+        label = f" {shown('share_pct', b['share_pct'])} %"
+        if b["at"]:
+            edge = b["min_pct"] if b["at"] == "min" else b["max_pct"]
+            a1.plot([edge, edge], [yk - 0.4, yk + 0.4], color="#b71c1c", lw=2.5, zorder=3)
+            label += f" (at its {'minimum' if b['at'] == 'min' else 'maximum'})"
+        a1.text(b["share_pct"], yk, label, va="center", fontsize=8, zorder=4,
+                color="#b71c1c" if b["at"] else "black")
+    a1.set_yticks(y, [b["crude"] for b in bounds])
+    a1.set_xlabel("Share of the blend [vol %]; grey: allowed range")
+    a1.set_xlim(0, 118)
+    a1.set_xticks([0, 20, 40, 60, 80, 100])
     a1.set_title("Shares")
     a1.grid(axis="x", alpha=0.3)
-    lines = [f"blend API {plan.api:.2f} °API", f"blend sulfur {plan.sulfur_wt_pct:.3f} wt %"]
-    lines += [f"{k} {v:.1f} vol %" for k, v in plan.yields.items()]
-    lines += [""] + ([f"binding: {b}" for b in plan.binding] or ["no target binding"])
-    lines += [f"NOT MET: {k} (short by {v:.3f})" for k, v in plan.shortfalls.items()]
-    a2.axis("off")
-    a2.text(0.0, 1.0, "\n".join(lines), va="top", family="monospace", fontsize=8,
-            color="#b71c1c" if plan.shortfalls else "black")
-    a2.set_title(f"{plan.objective}: {plan.value:.2f}")
+    cuts = list(plan.yields)
+    yc = np.arange(len(cuts))[::-1]
+    a2.barh(yc, [plan.yields[c] for c in cuts], color="#7fa7c9")
+    for yk, c in zip(yc, cuts):
+        a2.text(plan.yields[c], yk, f" {shown('vol_pct', plan.yields[c])}", va="center", fontsize=8)
+    a2.set_yticks(yc, cuts)
+    a2.set_xlim(0, max(plan.yields.values(), default=1.0) * 1.25)
+    a2.set_xlabel("Yield of the blend [vol %]")
+    a2.set_title(f"Blend: {shown('api', plan.api)} °API, sulfur "
+                 + (f"{shown('sulfur_wt_pct', plan.sulfur_wt_pct)} wt %" if plan.sulfur_wt_pct == plan.sulfur_wt_pct
+                    else "not given"), fontsize=10)
+    a2.grid(axis="x", alpha=0.3)
+    rows = [[t["target"], fixed(t["achieved"], 2), fixed(t["slack"], 2),
+             "yes" if t["binding"] else "", "-" if t["marginal_per_unit"] is None
+             else fixed(t["marginal_per_unit"], 3, signed=True)] for t in plan.targets]
+    rows += [[f"{b['crude']} share {'>=' if b['at'] == 'min' else '<='} "
+              f"{b['min_pct' if b['at'] == 'min' else 'max_pct']:g} %", shown("share_pct", b["share_pct"]), "0.00",
+              "yes", "-" if b["marginal_per_pct"] is None else fixed(b["marginal_per_pct"], 3, signed=True)]
+             for b in bounds if b["at"]]
+    a3.axis("off")
+    if rows:
+        from matplotlib.table import Table
+
+        height = min(0.1 * (len(rows) + 1), 0.75)
+        tab = Table(a3, bbox=[0.0, 0.95 - height, 1.0, height])
+        widths = [0.5, 0.14, 0.11, 0.1, 0.15]
+        for r, cells in enumerate([["Target or bound", "Achieved", "Slack", "Binds", "Marginal"]] + rows):
+            for col, text in enumerate(cells):
+                cell = tab.add_cell(r, col, widths[col], 1.0 / (len(rows) + 1), text=text,
+                                    loc="left" if col == 0 else "right",
+                                    facecolor="#fdecea" if r > 0 and rows[r - 1][3] == "yes" else "white")
+                cell.set_fontsize(8)
+        tab.auto_set_font_size(False)
+        a3.add_table(tab)
+    else:
+        a3.text(0.5, 0.9, "no targets and no share bound binding", ha="center", fontsize=9)
+    notes = [f"NOT MET: {k} (short by {fixed(v, 2)})" for k, v in plan.shortfalls.items()]
+    notes += ["Marginal: change of the objective per unit of a target", "or per vol % of a share bound "
+              "(linear programme duals)"]
+    a3.text(0.0, 0.02, "\n".join(notes), fontsize=7, va="bottom", wrap=True,
+            color="#b71c1c" if plan.shortfalls else "#424242")
+    a3.set_title(f"{plan.objective}: {fixed(plan.value, 2)}")
     fig.suptitle("Blend optimiser (linear blending rules; estimates for screening)")
-    fig.savefig(target, dpi=110, bbox_inches="tight", format="png")
-    plt.close(fig)
+    fig.tight_layout()
+    return fig

@@ -14,7 +14,7 @@ from ..files import safe_text
 from ..methods.blending_indices import VISCOSITY
 from ..methods.d86 import D86_STD
 from ..text import replace_hidden
-from ..units import pct_text, residual_text
+from ..units import c_to_f, pct_text, residual_text
 from .precision import NUMBER, limit_shown, shown
 from .textgrid import grid, wrap
 
@@ -145,7 +145,8 @@ DIFFERENCES = {"overlap_c"}
 """Temperature columns that are differences (°F = 1.8 × °C, no offset)."""
 
 
-def _is_temperature(col: str) -> bool:
+def is_temperature(col: str) -> bool:
+    """Whether a column key holds a temperature in °C (its name ends in '_c' or '_c_est')."""
     return col.endswith("_c") or col.endswith("_c_est")
 
 
@@ -157,9 +158,7 @@ def in_fahrenheit(cuts):
     """A cut table for display in °F: every temperature column converted and renamed (start_c -> start_f,
     flash_c_est -> flash_f_est, d86_c -> d86_f with its points converted; the flag lists follow).
     Temperatures inside a name (viscosity_40c_cst) stay as they are.  JSON output stays in °C."""
-    from ..units import c_to_f
-
-    ren = {c: _f_name(c) for c in cuts.keys if _is_temperature(c) and c != "d86_c"}
+    ren = {c: _f_name(c) for c in cuts.keys if is_temperature(c) and c != "d86_c"}
     out = {}
     for c, v in cuts.columns.items():
         if c in ren:
@@ -185,19 +184,94 @@ def limits_in_unit(rows: list[dict], unit: str = "C") -> list[dict]:
     >>> limits_in_unit([{"property": "flash_c_est", "limit": ">= 55", "value": 60.0}], "F")[0]
     {'property': 'flash_c_est', 'limit': '>= 131', 'value': 140.0, 'unit': '°F'}
     """
-    from ..units import c_to_f
-
     out = []
     for r in rows:
         r = dict(r)
         prop = r["property"]
-        temp = _is_temperature(prop) and not prop.startswith("recovered_at_")
+        temp = is_temperature(prop) and not prop.startswith("recovered_at_")
         r["unit"] = unit_of(prop)
         if temp and unit == "F":
             r["limit"] = NUMBER.sub(lambda m: f"{c_to_f(float(m.group(0))):.{len(m.group(1) or '')}f}", r["limit"])
             r["value"] = None if r["value"] is None else float(c_to_f(float(r["value"])))
             r["unit"] = "°F"
         out.append(r)
+    return out
+
+
+def deg(unit: str = "C") -> str:
+    """The symbol of a display unit: '°C' or '°F'."""
+    return "°F" if unit == "F" else "°C"
+
+
+def temp_in_unit(v, unit: str = "C", difference: bool = False):
+    """A temperature [°C] (or a temperature ``difference`` [°C]) in the display unit: °F = 1.8 °C + 32, a
+    difference 1.8 × its °C value; None and NaN pass through."""
+    if unit != "F" or v is None:
+        return v
+    return float(v) * 1.8 if difference else float(c_to_f(float(v)))
+
+
+_TEMP_IN_TEXT = re.compile(r"(±|\+|--span |by )?(-?\d+(\.\d+)?) ?°C")
+
+
+def text_in_unit(text: str, unit: str = "C") -> str:
+    """A sentence's temperatures in the display unit: each "<number> °C" becomes °F with the same decimals;
+    one written as a difference ("±2 °C", "+60 °C", "--span 60 °C", "by 5 °C") takes the factor 1.8 only.
+
+    Examples
+    --------
+    >>> text_in_unit("end at 343.3 °C, within --span 60 °C, ±2 °C", "F")
+    'end at 649.9 °F, within --span 108 °F, ±3.6 °F'
+    """
+    if unit != "F":
+        return text
+
+    def f(m):
+        diff = m.group(1) is not None and m.group(1) != ""
+        nd = len(m.group(3) or ".") - 1
+        v = float(m.group(2))
+        v = v * 1.8 if diff else float(c_to_f(v))
+        nd = max(nd, 1) if diff and v != round(v, nd) else nd
+        return f"{m.group(1) or ''}{v:.{nd}f} °F"
+
+    return _TEMP_IN_TEXT.sub(f, text)
+
+
+_BOUNDS_AT_END = re.compile(r"[<>]=? ?[-+]?\d+(?:\.\d+)?(?: and [<>]=? ?[-+]?\d+(?:\.\d+)?)?$")
+
+
+def limit_line_in_unit(text: str, prop: str, unit: str = "C") -> str:
+    """A limit as one line ('kerosene: jet fuel freezing point <= -47') in the display unit: in 'F', the bounds
+    at the end of a temperature limit converted with their decimals and ' °F' added; other text unchanged.
+
+    Examples
+    --------
+    >>> limit_line_in_unit("kerosene: freezing point <= -47", "freeze_point_c", "F")
+    'kerosene: freezing point <= -53 °F'
+    """
+    if unit != "F" or not is_temperature(prop) or prop.startswith("recovered_at_"):
+        return text
+    return _BOUNDS_AT_END.sub(lambda m: NUMBER.sub(
+        lambda n: f"{c_to_f(float(n.group(0))):.{len(n.group(1) or '')}f}", m.group(0)) + " °F", text)
+
+
+def unit_key(col: str, unit: str = "C") -> str:
+    """The key of a column in a table shown in ``unit``: a temperature column's °F name in 'F' (end_c ->
+    end_f, flash_c_est -> flash_f_est), else the key itself."""
+    return _f_name(col) if unit == "F" and is_temperature(col) else col
+
+
+def frame_in_unit(df, unit: str = "C"):
+    """A DataFrame of a study (sweep) for display: in °F, every temperature column converted and renamed as
+    :func:`in_fahrenheit` names it (cut_point_c -> cut_point_f, lower_flash_c_est -> lower_flash_f_est); the
+    frame's attrs kept.  In °C the frame itself."""
+    if unit != "F":
+        return df
+    ren = {c: _f_name(c) for c in df.columns if is_temperature(c)}
+    out = df.rename(columns=ren)
+    for c in ren.values():
+        out[c] = c_to_f(out[c].to_numpy(dtype=float))
+    out.attrs = dict(df.attrs)
     return out
 
 
@@ -210,7 +284,7 @@ def quality_names(cuts) -> list[str]:
     """The quality columns of a cut table beyond the standard ones (narrow-cut qualities and estimates)."""
     from ..cutting.ideal import CUT_COLUMNS
 
-    standard = set(CUT_COLUMNS) | {_f_name(c) for c in CUT_COLUMNS if _is_temperature(c)} | {"d86_f"}
+    standard = set(CUT_COLUMNS) | {_f_name(c) for c in CUT_COLUMNS if is_temperature(c)} | {"d86_f"}
     return [c for c in cuts.keys if c not in standard and c not in FLAG_SETS + ("bbl_per_day", "m3_per_day",
                                                                                  "t_per_day")]
 
@@ -265,7 +339,7 @@ def _shown(spec, cuts):
     for c, h in spec:
         if c in cuts:
             out.append((c, h))
-        elif _is_temperature(c) and _f_name(c) in cuts:
+        elif is_temperature(c) and _f_name(c) in cuts:
             out.append((_f_name(c), h.replace("°C", "°F")))
     return out
 
@@ -338,8 +412,6 @@ def md(text) -> str:
 def markdown_summary(result, unit: str = "C") -> str:
     """A short Markdown summary of one yield result (names and texts escaped by :func:`md`), temperatures in
     ``unit`` ('C' or 'F'), digits by :mod:`.precision`, daily rates when the run has a crude rate."""
-    from ..units import c_to_f
-
     a = result.assay
     m = result.model
     u = "°F" if unit == "F" else "°C"

@@ -50,6 +50,11 @@ class BlendPlan:
     """Each target: ``target`` (label), ``achieved``, ``limit``, ``unit``, ``slack`` (in the target's unit,
     >= 0 when met), ``binding``, and ``marginal_per_unit``: the change of the objective's value when the target
     moves by one unit (from the linear programme's duals; None when infeasible)."""
+    share_bounds: list[dict] = field(default_factory=list)
+    """Each crude's share bounds: ``crude``, ``min_pct``, ``max_pct``, ``share_pct``, ``at`` ('min', 'max' or
+    None: where the share sits on a bound the user set, a minimum above 0 or a maximum below 100 %), and
+    ``marginal_per_pct``: the change of the objective's value per vol % the bound moves (the linear
+    programme's bound duals; None when infeasible)."""
 
 
 def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: BlendTargets,
@@ -102,6 +107,7 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
         plan = _plan(True, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, {}, binding)
         duals = res.ineqlin.marginals if rows else np.array([])
         plan.targets = _target_report(targets, plan, v, sg, labels, binding, duals, sign)
+        plan.share_bounds = _bound_report(names, v, lo, hi, res.lower.marginals, res.upper.marginals, sign)
         return plan
     # elastic problem: minimise the scaled violations
     m = len(rows)
@@ -119,7 +125,32 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
             short[lab] = _in_target_units(lab, amount, row, v, sg)
     plan = _plan(False, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, short, [])
     plan.targets = _target_report(targets, plan, v, sg, labels, [], None, sign)
+    plan.share_bounds = _bound_report(names, v, lo, hi, None, None, sign)
     return plan
+
+
+BOUND_TOL = 1e-7
+"""A share this close to its bound (as a fraction of the blend) sits on it."""
+
+
+def _bound_report(names, v, lo, hi, lower_duals, upper_duals, sign) -> list[dict]:
+    """Each crude's share against its bounds (see :attr:`BlendPlan.share_bounds`).  A bound's dual from linprog
+    (HiGHS) is d(objective)/d(bound) per unit fraction of the blend: divided by 100 per vol %, multiplied by
+    ``sign`` to read in the objective's own sense."""
+    out = []
+    for k, nm in enumerate(names):
+        at = None
+        if lo[k] > 0 and v[k] <= lo[k] + BOUND_TOL:
+            at = "min"
+        elif hi[k] < 1 and v[k] >= hi[k] - BOUND_TOL:
+            at = "max"
+        marg = None
+        if lower_duals is not None and at is not None:
+            d = lower_duals[k] if at == "min" else upper_duals[k]
+            marg = float(sign * d / 100.0) + 0.0  # + 0.0: no negative zero
+        out.append({"crude": nm, "min_pct": float(lo[k] * 100), "max_pct": float(hi[k] * 100),
+                    "share_pct": float(v[k] * 100), "at": at, "marginal_per_pct": marg})
+    return out
 
 
 def _target_report(targets: BlendTargets, plan: BlendPlan, v, sg, labels, binding, duals, sign) -> list[dict]:

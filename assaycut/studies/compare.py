@@ -139,7 +139,8 @@ def comparison_table(results):
     Returns
     -------
     pandas.DataFrame
-        One row per (cut, crude): vol_pct, wt_pct, bbl_per_day and t_per_day (with a crude run), sg, api,
+        One row per (cut, crude): start_c and end_c (the cut's TBP range, NaN for an open end) [°C], vol_pct,
+        wt_pct, bbl_per_day and t_per_day (with a crude run), sg, api,
         sulfur_wt_pct, watson_k, limits ('pass', 'fail', 'n/a' or '' when the cut has no limits; 'fail' if any
         limit fails), extrapolated (the cut rests partly on the fitted extension).
     """
@@ -158,7 +159,8 @@ def comparison_table(results):
         status = {cut: limit_summary([x["status"] for x in lim if x["cut"] == cut])
                   for cut in dict.fromkeys(x["cut"] for x in lim)}
         for c in r.cuts.rows():
-            rows.append({"cut": c["name"], "crude": r.assay.name, "vol_pct": c["vol_pct"], "wt_pct": c["wt_pct"],
+            rows.append({"cut": c["name"], "crude": r.assay.name, "start_c": c["start_c"], "end_c": c["end_c"],
+                         "vol_pct": c["vol_pct"], "wt_pct": c["wt_pct"],
                          **{k: c[k] for k in ("bbl_per_day", "t_per_day") if k in c},
                          "sg": c["sg"], "api": c["api"], "sulfur_wt_pct": c["sulfur_wt_pct"],
                          "watson_k": c["watson_k"], "limits": status.get(c["name"], ""),

@@ -67,7 +67,11 @@ def _d(a, b) -> float:
 
 
 SWEEP_QUALITIES = ["vol_pct", "wt_pct", "sg", "api", "sulfur_wt_pct", "d86_10_c", "d86_95_c", "cetane_index_d4737",
-                   "flash_c_est"]
+                   "flash_c_est", "freeze_point_c", "smoke_point_mm", "cloud_point_c", "pour_point_c"]
+"""The qualities a sweep gives for each of its two cuts: yields, gravity and sulfur, the D86 points at the
+boundary, and the cold-flow, smoke and flash qualities that limit a kerosene or diesel end point (the last four
+where measured on narrow cuts or estimated within a correlation's range; see
+:mod:`assaycut.cutting.cut_qualities`)."""
 
 
 def sweep(model: CrudeModel, cut_set: CutSet, name: str, t_from: float, t_to: float, step: float = 5.0):
@@ -90,7 +94,8 @@ def sweep(model: CrudeModel, cut_set: CutSet, name: str, t_from: float, t_to: fl
     -------
     pandas.DataFrame
         Column ``cut_point_c`` and, for ``lower`` and ``upper`` cut, ``<side>_<quality>`` for the qualities of
-        :data:`SWEEP_QUALITIES`.
+        :data:`SWEEP_QUALITIES` (those the crude has); ``attrs``: ``lower`` and ``upper`` (the two cut names)
+        and ``estimated`` (the columns estimated by a correlation at some step, rather than measured).
     """
     import pandas as pd
 
@@ -124,16 +129,20 @@ def sweep(model: CrudeModel, cut_set: CutSet, name: str, t_from: float, t_to: fl
     grid[:, j_lo] = pts
     cols = cut_columns(BatchModel([model]), grid)
     out = {"cut_point_c": pts}
+    estimated = []
     for side, j in (("lower", j_lo), ("upper", j_lo + 1)):
         for q in SWEEP_QUALITIES:
             if q == "d86_10_c":
                 out[f"{side}_{q}"] = cols["d86"][:, j, 1]
             elif q == "d86_95_c":
                 out[f"{side}_{q}"] = cols["d86"][:, j, 6]
-            else:
+            elif q in cols:
                 out[f"{side}_{q}"] = cols[q][:, j]
+                if q in cols["estimated"] and np.any(cols["estimated"][q][:, j]):
+                    estimated.append(f"{side}_{q}")
     df = pd.DataFrame(out)
     df.attrs["lower"], df.attrs["upper"] = names[k], names[k + 1]
+    df.attrs["estimated"] = estimated
     return df
 
 

@@ -116,3 +116,70 @@ def test_plan_marginal_values_match_a_re_solve(demos):
         moved = optimize_blend(results, bounds, dataclasses.replace(targets, **{field_: getattr(targets, field_) + step}),
                                prices)
         assert (moved.value - plan.value) / step == pytest.approx(t["marginal_per_unit"], rel=1e-4)
+
+
+def test_a_share_on_its_bound_is_reported_with_the_bounds_marginal_value(demos):
+    # A crude held at the maximum share the user set is a binding bound; its marginal value is the LP's bound
+    # dual, checked by solving again with the bound moved by a small step (linear programming sensitivity,
+    # exact while the basis holds).  Crudes on the natural bounds 0 and 100 % are not "at" a bound.
+    from assaycut.io.tomlfiles import read_prices
+    from tests.helpers import DEMO_PRICES
+
+    results = [run_yields(a, default_cut_set(), model=m) for a, m in demos]
+    prices = read_prices(str(DEMO_PRICES))
+    plan = optimize_blend(results, {"Selkie Light": (0.0, 80.0)}, BlendTargets(sulfur_max=1.2), prices)
+    sb = {b["crude"]: b for b in plan.share_bounds}
+    assert sb["Selkie Light"]["at"] == "max" and sb["Selkie Light"]["share_pct"] == pytest.approx(80.0)
+    assert sb["Selkie Light"]["max_pct"] == 80.0 and sb["Selkie Light"]["min_pct"] == 0.0
+    assert all(b["at"] is None for n, b in sb.items() if n != "Selkie Light")
+    step = 0.01  # vol %
+    moved = optimize_blend(results, {"Selkie Light": (0.0, 80.0 + step)}, BlendTargets(sulfur_max=1.2), prices)
+    assert (moved.value - plan.value) / step == pytest.approx(sb["Selkie Light"]["marginal_per_pct"], rel=1e-4)
+    low = optimize_blend(results, {"Tarn Heavy": (30.0, 100.0)}, BlendTargets(), prices)
+    tarn = next(b for b in low.share_bounds if b["crude"] == "Tarn Heavy")
+    assert tarn["at"] == "min" and tarn["share_pct"] == pytest.approx(30.0)
+    moved = optimize_blend(results, {"Tarn Heavy": (30.0 + step, 100.0)}, BlendTargets(), prices)
+    assert (moved.value - low.value) / step == pytest.approx(tarn["marginal_per_pct"], rel=1e-4)
+
+
+def test_blend_plan_prints_its_bounds_within_80_columns(tmp_path):
+    from assaycut.cli import app
+
+    paths = demo_assay_paths()
+    r = runner.invoke(app, ["blend", "--optimize", f"{paths[0]}=0:80", paths[1], paths[2], "--prices",
+                            str(DEMO_PRICES), "--sulfur-max", "1.2", "--out", str(tmp_path / "b.xlsx")],
+                      env={"COLUMNS": "80"})
+    assert r.exit_code == 0, r.output
+    line = next(x for x in r.stdout.splitlines() if x.startswith("Selkie Light"))
+    assert line.split()[2:6] == ["80.00", "0-80", "at", "its"] and "maximum" in line
+    for x in r.stdout.splitlines():
+        if not x.lstrip().startswith(("Plan written", "Optimal blend written")):  # paths cannot be split
+            assert len(x) <= 80 and x == x.rstrip(), x
+    import openpyxl
+
+    ws = openpyxl.load_workbook(tmp_path / "blend_plan.xlsx")["shares"]
+    head = [c.value for c in ws[1]]
+    selkie = next([c.value for c in row] for row in ws.iter_rows(min_row=2) if row[0].value == "Selkie Light")
+    assert selkie[head.index("Maximum [vol %]")] == 80 and selkie[head.index("On a bound")] == "at its maximum"
+
+
+def test_the_plan_figure_names_the_bound_a_share_sits_on(demos):
+    # the picture says what the numbers say: a crude on its maximum share is marked, and the bound is a row of
+    # the table with its marginal value (no longer "no target binding" beside a crude held at its bound)
+    from assaycut.io.tomlfiles import read_prices
+    from assaycut.report.plots import pyplot
+    from assaycut.report.studyreports import blend_plan_figure
+    from tests.helpers import DEMO_PRICES
+
+    results = [run_yields(a, default_cut_set(), model=m) for a, m in demos]
+    plan = optimize_blend(results, {"Selkie Light": (0.0, 80.0)}, BlendTargets(sulfur_max=1.2),
+                          read_prices(str(DEMO_PRICES)))
+    fig = blend_plan_figure(plan)
+    texts = [t.get_text() for ax in fig.axes for t in ax.texts]
+    cells = {(r, c): cell.get_text().get_text() for ax in fig.axes for tab in ax.tables
+             for (r, c), cell in tab.get_celld().items()}
+    pyplot().close(fig)
+    assert any("(at its maximum)" in t for t in texts)
+    row = next(r for (r, c), v in cells.items() if c == 0 and v == "Selkie Light share <= 80 %")
+    assert cells[(row, 3)] == "yes" and cells[(row, 4)].startswith(("+", "-"))
+    assert not any("no target binding" in t for t in texts)
