@@ -143,7 +143,7 @@ def test_a_full_disk_leaves_the_earlier_set(tmp_path, monkeypatch):
 TINY_DISK = r'''
 set -e
 mkdir -p "$1"
-mount -t tmpfs -o size=800k tmpfs "$1"
+mount -t tmpfs -o size=500k tmpfs "$1"
 cd "$2"
 "$3" -m assaycut yields assaycut/data/selkie_light.xlsx --out "$1/r" > /dev/null 2>&1
 sha256sum "$1"/r/* > "$1/../before.txt"
@@ -165,7 +165,7 @@ def _private_tmpfs() -> bool:
 
 @pytest.mark.skipif(not _private_tmpfs(), reason="no private tmpfs (unshare -rm) on this machine")
 def test_a_tiny_filesystem_keeps_the_earlier_report(tmp_path):
-    # A real full disk: an 800 KB tmpfs holds one yield report of the demo crude (about 540 KB) but not a
+    # A real full disk: a 500 KB tmpfs holds one yield report of the demo crude (about 330 KB) but not a
     # second staged beside it.  The second run fails with a one-line error and the first report stays.
     root = Path(__file__).resolve().parent.parent
     mnt = tmp_path / "mnt"

@@ -33,6 +33,7 @@ class YieldJob:
     sigmas: object = None
     rate_bbl_per_day: float | None = None
     unit: str = "C"  # display unit of the report's temperatures ('C' or 'F')
+    plots: str = "main"  # the report's plots (a key of report.write.PLOT_SETS)
     claims: str = ""  # the run's claims folder for report folder names (see claim_folder); "" for one assay
     output: str = "result"  # what comes back of each assay: one of OUTPUTS
     scale_cuts: bool = False  # narrow cuts scaled to the whole crude instead of kept as measured
@@ -210,7 +211,7 @@ def _deliver(result, job: YieldJob):
             if folder.name != slug(assay.name):
                 result.warnings.append(f"{FOLDER_NOTE}{folder.name!r}: {slug(assay.name)!r} is taken by "
                                        f"another assay of this run with a similar name")
-        written = write_yield_report(result, folder, job.inputs, job.unit)
+        written = write_yield_report(result, folder, job.inputs, job.unit, job.plots)
     if job.output in ("json", "json-line"):
         from ..report.jsonout import yield_json
 

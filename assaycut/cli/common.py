@@ -209,6 +209,20 @@ MethodOpt = Annotated[TdMethod, typer.Option("--method", help="TBP <-> D86 corre
                                              metavar="daubert-1994|riazi-daubert-1986")]
 
 
+class PlotSet(str, enum.Enum):
+    """Which plots a yield report draws (--plots); see ``assaycut.report.write.PLOT_SETS``."""
+
+    main = "main"
+    all = "all"
+    none = "none"
+
+
+PlotsOpt = Annotated[PlotSet, typer.Option("--plots", metavar="main|all|none", help="Plots of the report: 'main' "
+                                           "(TBP curve, yields, properties, and real-column products), 'all' (adds "
+                                           "the per-cut qualities figure, about as long to draw as the rest), "
+                                           "'none' (tables only).")]
+
+
 class TUnit(str, enum.Enum):
     """A temperature unit of printed output (--unit): °C or °F."""
 

@@ -24,6 +24,8 @@ from .common import (
     SulfurOpt,
     MethodOpt,
     TdMethod,
+    PlotSet,
+    PlotsOpt,
     TUnit,
     UncertOpt,
     echo_json,
@@ -89,6 +91,7 @@ def yields(
     sigma_sg: SigSgOpt = 0.0005,
     sigma_sulfur: SigSOpt = 3.0,
     scale_cuts: ScaleOpt = False,
+    plots: PlotsOpt = PlotSet.main,
 ) -> None:
     """Cut assays at the cut points and report yields and qualities per cut (the main job).
 
@@ -117,7 +120,7 @@ def yields(
                    single_folder=out is not None and len(paths) == 1, inputs=inputs, uncertainty_draws=uncertainty,
                    sigmas=Sigmas(sigma_temp, sigma_pct, sigma_sg, sigma_sulfur / 100.0), rate_bbl_per_day=rate,
                    unit=unit.value, claims=new_claims(root) if root is not None and len(paths) > 1 else "",
-                   output=output, scale_cuts=scale_cuts)
+                   output=output, scale_cuts=scale_cuts, plots=plots.value)
     if root is not None and len(paths) <= BRIEF_OVER and sys.stderr.isatty():  # a batch shows a progress bar
         say("cutting and writing the report…", err=True)
     try:

@@ -7,7 +7,7 @@ import numpy as np
 from ..cutting.limits import limit_title
 from ..studies.compare import WORTH_CAVEAT
 from ..units import sg_to_density15
-from .plots import pyplot, save_png
+from .plots import save_png, subplots
 from .xlsx import finish_workbook, write_table
 
 COMPARE_LABELS = {"vol_pct": "Yield [vol %]", "wt_pct": "Yield [wt %]", "bbl_per_day": "Rate [bbl/d]",
@@ -123,14 +123,13 @@ def compare_workbook(results, table, worth, currency: str | None, products=None,
 
 def plot_compare(table, target) -> None:
     """Grouped bar chart of volume yields: one group per cut, one bar per crude."""
-    plt = pyplot()
     crudes = list(dict.fromkeys(table["crude"]))
     cuts = list(dict.fromkeys(table["cut"]))
     idx = table.set_index(["cut", "crude"])
     x = np.arange(len(cuts))
     width = 0.8 / max(len(crudes), 1)
     colours = ["#283593", "#ef6c00", "#2e7d32", "#6a1b9a", "#00838f", "#c62828", "#5d4037", "#9e9d24"]
-    fig, ax = plt.subplots(figsize=(max(9, 1.4 * len(cuts)), 5))
+    fig, ax = subplots(figsize=(max(9, 1.4 * len(cuts)), 5))
     for i, c in enumerate(crudes):
         vals = [idx.loc[(cut, c), "vol_pct"] for cut in cuts]
         ax.bar(x + (i - (len(crudes) - 1) / 2) * width, vals, width, label=c, color=colours[i % len(colours)])
@@ -139,8 +138,7 @@ def plot_compare(table, target) -> None:
     ax.set_title("Crude comparison: yields by cut (estimates for screening)")
     ax.grid(axis="y", alpha=0.3)
     ax.legend()
-    save_png(fig, target)
-    plt.close(fig)
+    save_png(fig, target, tight=True)
 
 
 def vectors_files(name: str, base, deltas: dict, step_c: float) -> dict[str, bytes]:
@@ -232,10 +230,9 @@ def plot_sweep(df, target, crude: str, limits: list | None = None, unit: str = "
         return f"{side}_{unit_key(q, unit)}"
 
     u = deg(unit)
-    plt = pyplot()
     lo, hi = df.attrs.get("lower", "lower cut"), df.attrs.get("upper", "upper cut")
     t = df[unit_key("cut_point_c", unit)]
-    fig, axs = plt.subplots(2, 2, figsize=(11, 7.5), sharex=True)
+    fig, axs = subplots(2, 2, figsize=(11, 7.5), sharex=True)
     (a1, a2), (a3, a4) = axs
     a1.plot(t, df["lower_vol_pct"], color=SIDE_COLOURS[0], label=f"{lo} vol %")
     a1.plot(t, df["upper_vol_pct"], color=SIDE_COLOURS[1], label=f"{hi} vol %")
@@ -282,8 +279,7 @@ def plot_sweep(df, target, crude: str, limits: list | None = None, unit: str = "
     for ax in (a3, a4):
         ax.set_xlabel(f"Cut point {lo} / {hi} [{u} TBP]")
     fig.suptitle(f"{crude}: cut-point sweep (estimates for screening)")
-    save_png(fig, target)
-    plt.close(fig)
+    save_png(fig, target, tight=True)
 
 
 def round_levels(lo: float, hi: float, n: int = 20) -> np.ndarray:
@@ -312,13 +308,12 @@ def plot_optimum(res, target, names_moved: list[str], title: str, objective_labe
     'F'); otherwise yields before and after."""
     from .tables import deg, temp_in_unit
 
-    plt = pyplot()
     g = dict(res.grid)
     if "x" in g:
         g["x"], g["y"] = (np.array([temp_in_unit(v, temp_unit) for v in g[k]]) for k in ("x", "y"))
         start = [temp_in_unit(v, temp_unit) for v in res.start_ends_c[res.var_index]]
         best = [temp_in_unit(v, temp_unit) for v in res.ends_c[res.var_index]]
-        fig, ax = plt.subplots(figsize=(8, 6))
+        fig, ax = subplots(figsize=(8, 6))
         obj = g["objective"].reshape(g["shape"])
         ok = g["feasible"].reshape(g["shape"])
         # the colour bar spans the feasible values; infeasible cells are clipped into it and hatched over
@@ -340,7 +335,7 @@ def plot_optimum(res, target, names_moved: list[str], title: str, objective_labe
         ax.text(0.01, 0.99, "hatched grey: breaks a product limit (infeasible)", transform=ax.transAxes, va="top",
                 fontsize=8, bbox={"fc": "white", "ec": "none", "alpha": 0.8})
     else:
-        fig, ax = plt.subplots(figsize=(9, 5))
+        fig, ax = subplots(figsize=(9, 5))
         x = np.arange(len(before))
         ax.bar(x - 0.2, before["vol_pct"], 0.4, label="start", color="#90a4ae")
         ax.bar(x + 0.2, after["vol_pct"], 0.4, label="optimum", color="#2e7d32")
@@ -349,8 +344,7 @@ def plot_optimum(res, target, names_moved: list[str], title: str, objective_labe
         ax.legend()
         ax.grid(axis="y", alpha=0.3)
     ax.set_title(title)
-    save_png(fig, target)
-    plt.close(fig)
+    save_png(fig, target, tight=True)
 
 
 def blend_plan_workbook(plan):
@@ -393,8 +387,7 @@ def blend_plan_workbook(plan):
 def plot_blend_plan(plan, target) -> None:
     """The :func:`blend_plan_figure` of ``plan`` as PNG into ``target``."""
     fig = blend_plan_figure(plan)
-    save_png(fig, target)
-    pyplot().close(fig)
+    save_png(fig, target, tight=True)
 
 
 def blend_plan_figure(plan):
@@ -403,8 +396,7 @@ def blend_plan_figure(plan):
     bounds with what the blend achieves, the slack and the marginal value."""
     from .precision import fixed, shown
 
-    plt = pyplot()
-    fig, (a1, a2, a3) = plt.subplots(1, 3, figsize=(14, 4.8), gridspec_kw={"width_ratios": [1.1, 1.0, 1.5]})
+    fig, (a1, a2, a3) = subplots(1, 3, figsize=(14, 4.8), gridspec_kw={"width_ratios": [1.1, 1.0, 1.5]})
     bounds = plan.share_bounds or [{"crude": k, "share_pct": x, "min_pct": 0.0, "max_pct": 100.0, "at": None,
                                     "marginal_per_pct": None} for k, x in plan.shares_pct.items()]
     y = np.arange(len(bounds))[::-1]

@@ -64,23 +64,33 @@ def png_bytes(plot, first, *rest, **kwargs) -> bytes:
     return buf.getvalue()
 
 
-def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (), unit: str = "C") -> list[Path]:
+PLOT_SETS = {"none": (), "main": ("tbp", "yields", "properties", "products"),
+             "all": ("tbp", "yields", "properties", "qualities", "products")}
+"""The plots of a yield report by the ``--plots`` choice: 'main' (the default) leaves out the qualities figure,
+which takes as long to draw as the others together; 'all' adds it; 'none' writes the tables only."""
+
+
+def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (), unit: str = "C",
+                       plots: str = "main") -> list[Path]:
     """Write the full yield report of one assay into ``outdir``.
 
     Files: ``<crude>_yields.xlsx`` (summary, cuts, qualities, curve, curve wt basis, limits, notes),
-    ``<crude>_cuts.csv``, ``<crude>_long.csv`` (one row per value), ``<crude>_summary.md``, ``<crude>_tbp.png``,
-    ``<crude>_yields.png``,
-    ``<crude>_properties.png``, ``<crude>_qualities.png`` (when the cuts have qualities beyond gravity and
-    sulfur), and with real-column overlaps ``<crude>_products.png``.  With ``unit`` 'F' the cut and quality
-    sheets and both CSVs give temperatures in °F; the plots, the Markdown summary and the limits stay in °C.
+    ``<crude>_cuts.csv``, ``<crude>_long.csv`` (one row per value), ``<crude>_summary.md``, and the plots of
+    :data:`PLOT_SETS` [``plots``]: ``<crude>_tbp.png``, ``<crude>_yields.png``, ``<crude>_properties.png``,
+    ``<crude>_qualities.png`` (when the cuts have qualities beyond gravity and sulfur), and with real-column
+    overlaps ``<crude>_products.png``.  A plot the set does not draw is removed from ``outdir`` if an earlier run
+    left it.  With ``unit`` 'F' the sheets, both CSVs and the Markdown summary give temperatures in °F; the
+    plots stay in °C.
 
     Returns
     -------
     list of pathlib.Path
     """
-    from . import plots
+    from . import plots as figures
     from .xlsx import yield_workbook
 
+    if plots not in PLOT_SETS:
+        raise ValueError(f"plots must be one of {', '.join(PLOT_SETS)}; got {plots!r}")
     outdir = Path(outdir)
     base = slug(result.assay.name)
     files: dict[str, bytes] = {}
@@ -93,14 +103,15 @@ def write_yield_report(result, outdir: str | Path, inputs: tuple[str, ...] = (),
     files[f"{base}_cuts.csv"] = csv_text([label_for(n) for n in names], rows).encode("utf-8")
     files[f"{base}_long.csv"] = csv_text(LONG_COLUMNS, long_rows(cuts, result.assay.name)).encode("utf-8")
     files[f"{base}_summary.md"] = markdown_summary(result, unit).encode("utf-8")
-    files[f"{base}_tbp.png"] = png_bytes(plots.plot_tbp, result)
-    files[f"{base}_yields.png"] = png_bytes(plots.plot_yields, result)
-    files[f"{base}_properties.png"] = png_bytes(plots.plot_properties, result)
-    if quality_names(result.cuts):
-        files[f"{base}_qualities.png"] = png_bytes(plots.plot_qualities, result)
-    if result.products is not None:
-        files[f"{base}_products.png"] = png_bytes(plots.plot_products, result)
-    return place_set(outdir, files, inputs, (f"{base}_qualities.png", f"{base}_products.png"))
+    wanted = PLOT_SETS[plots]
+    drawn = {"tbp": figures.plot_tbp, "yields": figures.plot_yields, "properties": figures.plot_properties,
+             "qualities": figures.plot_qualities, "products": figures.plot_products}
+    for name, plot in drawn.items():
+        if name not in wanted or (name == "qualities" and not quality_names(result.cuts)) \
+                or (name == "products" and result.products is None):
+            continue
+        files[f"{base}_{name}.png"] = png_bytes(plot, result)
+    return place_set(outdir, files, inputs, tuple(f"{base}_{name}.png" for name in drawn))
 
 
 def write_library_summary(results, cs, folder: Path, inputs) -> list[Path]:

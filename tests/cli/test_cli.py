@@ -57,9 +57,24 @@ def test_bare_command_writes_full_report(tmp_path, monkeypatch):
     folder = tmp_path / "reports" / "Selkie_Light"
     names = sorted(p.name for p in folder.iterdir())
     assert names == sorted(f"Selkie_Light_{s}" for s in ("yields.xlsx", "cuts.csv", "summary.md", "tbp.png",
-                                                          "yields.png", "properties.png", "qualities.png",
-                                                          "long.csv"))
+                                                          "yields.png", "properties.png", "long.csv"))
     assert not [p for p in folder.iterdir() if p.name.startswith(".")]  # no temporary files left
+
+
+def test_plots_all_adds_the_qualities_figure_none_draws_none_and_main_removes_a_stale_one(tmp_path):
+    folder = tmp_path / "r"
+
+    def pngs():
+        return sorted(p.name for p in folder.glob("*.png"))
+
+    assert runner.invoke(app, ["yields", "--plots", "all", "--out", str(folder)]).exit_code == 0
+    assert pngs() == [f"Selkie_Light_{s}.png" for s in ("properties", "qualities", "tbp", "yields")]
+    assert runner.invoke(app, ["yields", "--out", str(folder)]).exit_code == 0
+    assert pngs() == [f"Selkie_Light_{s}.png" for s in ("properties", "tbp", "yields")]  # the old one is gone
+    assert runner.invoke(app, ["yields", "--plots", "none", "--out", str(folder)]).exit_code == 0
+    assert pngs() == [] and (folder / "Selkie_Light_yields.xlsx").exists()
+    r = runner.invoke(app, ["yields", "--plots", "some", "--out", str(folder)])
+    assert r.exit_code == 2 and "main" in r.output and "all" in r.output
 
 
 def test_xlsx_report_has_numeric_cells_and_sheets(tmp_path):

@@ -167,7 +167,6 @@ def test_the_plan_figure_names_the_bound_a_share_sits_on(demos):
     # the picture says what the numbers say: a crude on its maximum share is marked, and the bound is a row of
     # the table with its marginal value (no longer "no target binding" beside a crude held at its bound)
     from assaycut.io.tomlfiles import read_prices
-    from assaycut.report.plots import pyplot
     from assaycut.report.studyreports import blend_plan_figure
     from tests.helpers import DEMO_PRICES
 
@@ -178,7 +177,6 @@ def test_the_plan_figure_names_the_bound_a_share_sits_on(demos):
     texts = [t.get_text() for ax in fig.axes for t in ax.texts]
     cells = {(r, c): cell.get_text().get_text() for ax in fig.axes for tab in ax.tables
              for (r, c), cell in tab.get_celld().items()}
-    pyplot().close(fig)
     assert any("(at its maximum)" in t for t in texts)
     row = next(r for (r, c), v in cells.items() if c == 0 and v == "Selkie Light share <= 80 %")
     assert cells[(row, 3)] == "yes" and cells[(row, 4)].startswith(("+", "-"))
