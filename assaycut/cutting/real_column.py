@@ -131,9 +131,11 @@ def targets_for(cut_set: CutSet, overlaps: dict[str, float]) -> np.ndarray:
     return np.array(out, dtype=float)
 
 
-def _slices(model: CrudeModel, ends):
-    """The crude in uniform volume slices with the cut points as edges: exact slice volumes, masses, sulfur
-    and mean temperatures from the crude model."""
+def crude_slices(model: CrudeModel, ends):
+    """The crude in uniform volume slices (:data:`N_SLICES`) with the cut points ``ends`` [°C] as edges:
+    {'va', 'vb', 'dv': slice bounds and volumes [vol %], 't_mean': mean TBP [°C], 'mass': SG x vol %,
+    'wa', 'wb': bounds on the weight basis [wt %], 't_edges': TBP at the slice edges [°C]}, exact from the
+    crude model."""
     curve = model.curve
     v_cut = np.asarray(curve.pct_at(ends), float)
     edges = np.unique(np.concatenate([np.linspace(0.0, 100.0, N_SLICES + 1), v_cut]))
@@ -146,14 +148,14 @@ def _slices(model: CrudeModel, ends):
     return sl
 
 
-def _cum_pct(f, dv):
+def product_cum_pct(f, dv):
     """Each product's cumulative volume percent of itself at the slice edges, shape (slices + 1, products)."""
     cum = np.concatenate([np.zeros((1, f.shape[1])), np.cumsum(f * dv[:, None], axis=0)], axis=0)
     with np.errstate(invalid="ignore", divide="ignore"):
         return 100.0 * cum / np.where(cum[-1] > 0, cum[-1], 1.0)[None, :]
 
 
-def _tbp_at(cum_pct_j, t_edges, pct) -> float:
+def product_tbp_at(cum_pct_j, t_edges, pct) -> float:
     """TBP of a product at ``pct`` % of itself (linear between slice edges)."""
     return float(np.interp(pct, cum_pct_j, t_edges))
 
@@ -161,8 +163,8 @@ def _tbp_at(cum_pct_j, t_edges, pct) -> float:
 def _overlap(sl, ends, widths, b) -> float:
     """TBP 95 % of product b minus TBP 5 % of product b + 1 for split widths ``widths``. [°C]"""
     f = split_fractions(sl["t_mean"], ends, widths)[:, b:b + 2]
-    cum = _cum_pct(f, sl["dv"])
-    return _tbp_at(cum[:, 0], sl["t_edges"], 95.0) - _tbp_at(cum[:, 1], sl["t_edges"], 5.0)
+    cum = product_cum_pct(f, sl["dv"])
+    return product_tbp_at(cum[:, 0], sl["t_edges"], 95.0) - product_tbp_at(cum[:, 1], sl["t_edges"], 5.0)
 
 
 def solve_split_widths(sl, ends, targets, ideal_overlap, label: str, names) -> np.ndarray:
@@ -175,7 +177,7 @@ def solve_split_widths(sl, ends, targets, ideal_overlap, label: str, names) -> n
     Parameters
     ----------
     sl : dict
-        Slices (:func:`_slices`).
+        Slices (:func:`crude_slices`).
     ends : numpy.ndarray
         Cut points. [°C]
     targets : numpy.ndarray
@@ -251,7 +253,7 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     names, ends = cut_set.reported()
     targets = targets_for(cut_set, overlaps)
     ideal = first_row(cut_columns(BatchModel([model]), ends[None, :]))
-    sl = _slices(model, ends)
+    sl = crude_slices(model, ends)
     widths = solve_split_widths(sl, ends, targets, ideal["overlap_c"][:-1], cut_set.label, names)
     va, vb, dv, t_mean, mass, wa, wb = (sl[k] for k in ("va", "vb", "dv", "t_mean", "mass", "wa", "wb"))
     if model.sulfur_dist is not None:
@@ -267,7 +269,7 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
         vabp = (f.T @ (t_mean * dv)) / vol
     wt = pmass / model.sg
     t_edges = sl["t_edges"]
-    cum_pct = _cum_pct(f, dv)
+    cum_pct = product_cum_pct(f, dv)
     split = np.isfinite(targets) & (widths > 0)
     lower_split = np.concatenate([[False], split])
     upper_split = np.concatenate([split, [False]])
@@ -280,7 +282,7 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
             tbp[j, 0] = t_start[j] if j > 0 else float(model.curve.temp_at(0.0))
         else:
             tbp[j, 0] = np.interp(TAIL_PCT, cum_pct[:, j], t_edges)
-    tbp_pts = np.stack([[_tbp_at(cum_pct[:, j], t_edges, float(p)) for p in TBP_POINTS]
+    tbp_pts = np.stack([[product_tbp_at(cum_pct[:, j], t_edges, float(p)) for p in TBP_POINTS]
                         for j in range(f.shape[1])])
     s_crude = np.nan if model.sulfur_wt_pct is None else model.sulfur_wt_pct
     cols = {"start_c": t_start, "end_c": t_end, "vol_pct": vol, "wt_pct": wt, "cum_vol_pct": np.cumsum(vol),

@@ -102,8 +102,8 @@ def _numbers_in_range(value, where: str, path: str) -> None:
                          file=path)
 
 
-def _load(path: str) -> dict:
-    """Parse a cut, limit or price file: UTF-8 TOML of at most :data:`TOML_MAX_BYTES`, keys and nesting
+def load_toml(path: str) -> dict:
+    """Parse a cut, limit, price or plant file: UTF-8 TOML of at most :data:`TOML_MAX_BYTES`, keys and nesting
     bounded before parsing (:func:`_bounded`), every number range-checked after (:func:`_numbers_in_range`)."""
     data = read_bytes(path, TOML_MAX_BYTES, "cut, limit and price files")
     try:
@@ -226,7 +226,7 @@ def read_cut_set(path: str) -> CutSet:
     -------
     CutSet
     """
-    return cut_set_from_dict(_load(path), path)
+    return cut_set_from_dict(load_toml(path), path)
 
 
 def cut_set_from_text(text: str, where: str) -> CutSet:
@@ -283,7 +283,7 @@ def read_limits(path: str | None = None) -> list[Limit]:
     if not Path(path).exists():
         raise InputError(f"file not found; give a limits file, or a shipped set: "
                          f"{', '.join(repr(k) for k in SHIPPED_LIMITS)}", file=path)
-    doc = _load(path)
+    doc = load_toml(path)
     unknown = set(doc) - {"limit"}
     if unknown:
         raise InputError(f"unknown table or key {sorted(unknown)[0]!r}; a limits file has only [[limit]] tables",
@@ -363,7 +363,7 @@ def read_prices(path: str):
     its own unit, by per_unit x (value - base) of the named property; optional ``min``/``max`` bound the
     adjusted price.
     """
-    doc = _load(path)
+    doc = load_toml(path)
     unknown = set(doc) - {"currency", "products", "crudes"}
     if unknown:
         raise InputError(f"unknown key {sorted(unknown)[0]!r}; a price file has currency, [products] and [crudes]",

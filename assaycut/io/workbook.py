@@ -13,6 +13,7 @@ from ..errors import InputError
 from ..methods.blending_indices import RULES
 from ..model.assay import Assay, CurveData, LightEnds, NarrowCuts
 from ..model.lightends import find_component, known_labels
+from ..studies.compatibility import IN_KEY, NUMBER_RANGE, SBN_KEY
 from ..text import escape_hidden, has_hidden_characters
 from ..units import api_to_sg, density15_to_sg, to_celsius
 from .cells import (
@@ -356,14 +357,22 @@ def _read_crude(ws, loc: SourceLocation):
                 if not 0.0 <= x <= 15.0:
                     raise loc.err(f"sulfur_wt_pct {x:g} is outside 0-15 wt %", r, "value")
                 sulfur = x
+        elif key in (SBN_KEY, IN_KEY):
+            x = to_number(val, loc, r, "value", allow_empty=True)
+            if not math.isnan(x):
+                lo, hi = NUMBER_RANGE
+                if not lo <= x <= hi:
+                    raise loc.err(f"{key} {x:g} is outside {lo:g}-{hi:g} (an oil-compatibility number measured by "
+                                  f"titration)", r, "value")
+                extras[key] = x
         elif UNIT_SUFFIX.match(key) or key in RULES:
             x = to_number(val, loc, r, "value", allow_empty=True)
             if not math.isnan(x):
                 extras[key] = x
         else:
             raise loc.err(f"unknown field {key!r}; expected name, origin, api_gravity, sg_60f, "
-                          f"density_15c_kg_m3, sulfur_wt_pct, notes, or an extra whose name ends in its unit "
-                          f"(e.g. pour_point_c)", r, "field")
+                          f"density_15c_kg_m3, sulfur_wt_pct, notes, {SBN_KEY}, {IN_KEY}, or an extra whose name "
+                          f"ends in its unit (e.g. pour_point_c)", r, "field")
     if not name:
         raise loc.err("no crude name: add a row 'name | <crude name>'")
     for key, text in (("name", name), ("origin", origin)):

@@ -220,6 +220,8 @@ def blend_plan_text(plan) -> list[str]:
     lines += wrap(f"Blend API {shown('api', plan.api)} °API, sulfur "
                   + (f"{shown('sulfur_wt_pct', s)} wt %" if s == s else "not given") + "; yields "
                   + ", ".join(f"{k} {shown('vol_pct', v)}" for k, v in plan.yields.items()) + " vol %", indent="  ")
+    if plan.compatibility is not None:
+        lines += wrap(plan.compatibility.text(), indent="  ")
     if plan.binding:
         lines += wrap("Binding targets: " + "; ".join(plan.binding), indent="  ")
     for t in plan.targets:
@@ -242,7 +244,7 @@ def blend_text(new) -> list[str]:
     s = new.sulfur_wt_pct
     return ([f"Blend {new.name}: {shown('api', new.api)} °API, SG {shown('sg', new.sg)}, sulfur "
              + (f"{shown('sulfur_wt_pct', s)} wt %" if s is not None else "not given")]
-            + [f"  {n}" for n in new.notes])
+            + [x for n in new.notes for x in wrap("  " + n, indent="    ")])
 
 
 SWEEP_COLUMNS = [("vol_pct", "vol %"), ("wt_pct", "wt %"), ("sg", "SG"), ("sulfur_wt_pct", "S wt %"),
@@ -375,3 +377,25 @@ def shift_text(delta, width: int | None = None, unit: str = "C") -> str:
     lines.append("* the cut's yield changed; Δ = new less base")
     lines += (["Limits that flip:"] + flips) if flips else ["No limit flips."]
     return "\n".join(lines)
+
+
+def calibration_text(crude: str, cal) -> list[str]:
+    """The calibration as printed: per boundary the fitted cut point and overlap with their standard
+    deviations, then every measurement beside its fitted value, the warnings and the caution."""
+    def pm(v, sd):
+        return "-" if v is None else fixed(v, 1) + ("" if sd is None else f" ± {fixed(sd, 1)}")
+
+    lines = wrap(f"{crude}: the column fitted to a test run ({cal.basis} % rates; weighted least squares)")
+    body = [[c["name"], pm(c["end_c"], c["end_c_sd"]), pm(c["overlap_c"], c["overlap_c_sd"]), c["fitted"]]
+            for c in cal.cut_points]
+    lines += grid(["End of", "cut point °C TBP", "overlap °C TBP 5-95", "fitted"], body, align="lrrl")
+    lines.append("")
+    body = [[r["product"], r["what"], fixed(r["measured"], 4 if "SG" in r["what"] else 2),
+             fixed(r["fitted"], 4 if "SG" in r["what"] else 2),
+             fixed((r["fitted"] - r["measured"]) / r["sigma"], 1, signed=True)] for r in cal.residuals]
+    lines += grid(["Product", "measured", "value", "fitted", "resid/σ"], body, align="llrrr", keep=2)
+    lines += wrap(f"Weighted sum of squares {fixed(cal.chi_square, 2)} on {cal.dof} degrees of freedom.")
+    lines += [w for x in cal.warnings for w in wrap(f"warning: {x}", indent="  ")]
+    lines += wrap("One test run of one column, at that day's rates, feed and operation: check the fitted cut "
+                  "points against other runs before relying on them.")
+    return lines

@@ -62,18 +62,35 @@ def cut_records(table) -> list[dict]:
     return out
 
 
+def assay_record(a, model) -> dict:
+    """The ``assay`` object of the JSON outputs: name, source, sha256, API, SG, density at 15 °C [kg/m³], the
+    given sulfur [wt %] and the closures of SG and sulfur."""
+    return {"name": a.name, "source": a.source, "sha256": a.sha256, "api": json_safe(a.api),
+            "sg": json_safe(a.sg), "density_15c_kg_m3": json_safe(sg_to_density15(a.sg)),
+            "sulfur_wt_pct": json_safe(model.given_sulfur_wt_pct), "sg_closure": json_safe(model.sg_closure),
+            "sulfur_closure_wt_pct": json_safe(model.sulfur_closure_wt_pct)}
+
+
+def calibration_json(a, model, cal) -> dict:
+    """``assaycut calibrate --json``: the assay (as in ``yields``), each boundary's fitted cut point and
+    overlap with their standard deviations [°C], every residual (measured and fitted), the warnings, and the
+    fit's basis, weights, weighted sum of squares and degrees of freedom."""
+    from ..studies.calibration import SIGMAS
+
+    return json_safe({"assay": assay_record(a, model), "cut_points": cal.cut_points, "residuals": cal.residuals,
+                      "warnings": cal.warnings, "rate_basis": cal.basis, "sigmas": SIGMAS,
+                      "chi_square": cal.chi_square, "dof": cal.dof,
+                      "notes": ["one test run of one column: check against other runs before relying on it; "
+                                "distillation points are compared as TBP (D86 and D2887 converted)"]})
+
+
 def yield_json(result) -> dict:
     """The JSON object of one assay's yields (``assaycut yields --json``); each limit row carries the ``unit``
     of its property ('°C', 'wt %'...)."""
     from .tables import unit_of
 
-    a = result.assay
     doc = {
-        "assay": {"name": a.name, "source": a.source, "sha256": a.sha256, "api": json_safe(a.api),
-                  "sg": json_safe(a.sg), "density_15c_kg_m3": json_safe(sg_to_density15(a.sg)),
-                  "sulfur_wt_pct": json_safe(result.model.given_sulfur_wt_pct),
-                  "sg_closure": json_safe(result.model.sg_closure),
-                  "sulfur_closure_wt_pct": json_safe(result.model.sulfur_closure_wt_pct)},
+        "assay": assay_record(result.assay, result.model),
         "extension": extension_json(result.model),
         "cuts": cut_records(result.cuts),
         "limits": [{**row, "unit": unit_of(row["property"])} for row in records(result.limits)],
@@ -151,6 +168,7 @@ def blend_plan_json(plan) -> dict:
                       "shares_pct": plan.shares_pct, "api": plan.api, "sulfur_wt_pct": plan.sulfur_wt_pct,
                       "yields_vol_pct": plan.yields, "targets": plan.targets, "binding": plan.binding,
                       "share_bounds": plan.share_bounds,
+                      "compatibility": None if plan.compatibility is None else plan.compatibility.record(),
                       "shortfalls": plan.shortfalls,
                       "notes": ["linear blending rules, no shrinkage; worth ignores operating costs and unit "
                                 "limits; marginal_per_unit is the change of the objective's value per unit of "

@@ -367,7 +367,9 @@ def blend_plan_workbook(plan):
     for k, (lab, val, fmt) in enumerate([("Objective", plan.objective, None), ("Value", plan.value, "0.00"),
                                           ("Blend API [°API]", plan.api, "0.00"),
                                           ("Blend sulfur [wt %]", plan.sulfur_wt_pct, "0.000"),
-                                          ("Feasible", "yes" if plan.feasible else "no", None)]):
+                                          ("Feasible", "yes" if plan.feasible else "no", None),
+                                          ("Compatibility", plan.compatibility.text()
+                                           if plan.compatibility is not None else "not assessed", None)]):
         ws.cell(row=r + k, column=1, value=lab)
         c = ws.cell(row=r + k, column=2, value=val if val == val else None)
         if fmt:
@@ -453,6 +455,10 @@ def blend_plan_figure(plan):
     else:
         a3.text(0.5, 0.9, "no targets and no share bound binding", ha="center", fontsize=9)
     notes = [f"NOT MET: {k} (short by {fixed(v, 2)})" for k, v in plan.shortfalls.items()]
+    if plan.compatibility is not None:
+        c = plan.compatibility
+        notes.append(f"Crude compatibility: {c.word}" + (f" (S_BN {fixed(c.sbn_mix, 1)} vs I_N max "
+                                                         f"{fixed(c.in_max, 1)})" if c.sbn_mix is not None else ""))
     notes += ["Marginal: change of the objective per unit of a target", "or per vol % of a share bound "
               "(linear programme duals)"]
     a3.text(0.0, 0.02, "\n".join(notes), fontsize=7, va="bottom", wrap=True,
@@ -461,3 +467,14 @@ def blend_plan_figure(plan):
     fig.suptitle("Blend optimiser (linear blending rules; estimates for screening)")
     fig.tight_layout()
     return fig
+
+
+def calibration_csv(cal) -> bytes:
+    """Every measurement of the calibration beside its fitted value: product, what, measured, fitted, the
+    residual (fitted less measured) and the standard deviation that weighted it."""
+    from .write import csv_text
+
+    rows = [[r["product"], r["what"], r["measured"], r["fitted"], r["fitted"] - r["measured"], r["sigma"]]
+            for r in cal.residuals]
+    return csv_text(["Product", "Measured quantity", "Measured", "Fitted", "Residual (fitted - measured)",
+                     "Standard deviation"], rows).encode("utf-8")

@@ -32,6 +32,7 @@ from ..model.assay import Assay, CurveData, LightEnds, NarrowCuts
 from ..model.crude import CrudeModel
 from ..model.lightends import convert_basis, find_component
 from ..units import pct_text, sg_to_api
+from .compatibility import IN_KEY, SBN_KEY, assess, numbers_of
 
 FRACTION_TOL = 0.01
 """Blend fractions must add up to 100 within this much. [%]"""
@@ -76,12 +77,13 @@ def blend(parents: list[tuple[Assay, CrudeModel, float]], basis: str = "vol", na
     sulfur = None
     if all(m.given_sulfur_wt_pct is not None for m in models):
         sulfur = float(sum(wi * m.given_sulfur_wt_pct for wi, m in zip(w, models)))
-    extras = _extras(parents, w, notes)
+    extras = _extras(parents, v, w, notes)
     label = name or " + ".join(f"{a.name} {p:g}%" for (a, _, _), p in zip(parents, pct))
     notes.insert(0, f"blend on the {basis} basis: " + "; ".join(
         f"{a.name} {pct_text(p)} % (sha256 {a.sha256 or 'n/a'})" for (a, _, _), p in zip(parents, pct)))
     notes.append("curve: weighted sum of the parents' cumulative curves where all were measured; gravity by volume "
                  "on SG; sulfur and mass-based properties by weight; viscosity by Refutas")
+    notes.append(assess([a.name for a, _, _ in parents], [numbers_of(a.extras) for a, _, _ in parents], v).text())
     return Assay(name=label, sg=sg_blend, curves=[curve], origin="blend of " + ", ".join(a.name for a, _, _ in parents),
                  sulfur_wt_pct=sulfur, narrow_cuts=narrow, light_ends=light, extras=extras, notes=notes)
 
@@ -197,15 +199,20 @@ def _light_ends(parents, w) -> LightEnds | None:
     return LightEnds(amounts, "wt") if amounts else None
 
 
-def _extras(parents, w, notes: list[str]) -> dict[str, float]:
-    """Whole-crude extras every parent has: viscosities by Refutas, mass-based contents by weight; the rest
-    is named in the notes as not blended."""
+def _extras(parents, v, w, notes: list[str]) -> dict[str, float]:
+    """Whole-crude extras every parent has: viscosities by Refutas, mass-based contents by weight, the oil
+    compatibility numbers as the blend acts in a further blend (S_BN by volume, I_N the largest: Wiehe &
+    Kennedy 2000); the rest is named in the notes as not blended."""
     extras: dict[str, float] = {}
     keys = set.intersection(*[set(a.extras) for a, _, _ in parents]) if parents else set()
     dropped = sorted(set().union(*[set(a.extras) for a, _, _ in parents]) - keys)
     for k in sorted(keys):
         vals = np.array([float(a.extras[k]) for a, _, _ in parents])
-        if k.endswith("_cst") and np.all(vals > 0):
+        if k == SBN_KEY:
+            extras[k] = round(float((v * vals).sum()), 6)
+        elif k == IN_KEY:
+            extras[k] = float(vals.max())
+        elif k.endswith("_cst") and np.all(vals > 0):
             extras[k] = round(viscosity_from_vbn_refutas((w * vbn_refutas(vals)).sum()), 6)
         elif k.endswith(("_mg_koh_g", "_ppm", "_ppm_wt", "_mg_kg", "_wt_pct")):
             extras[k] = round(float((w * vals).sum()), 6)

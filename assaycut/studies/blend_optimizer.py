@@ -18,6 +18,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .compatibility import MARGIN_RATIO, Compatibility, assess, numbers_of
 from ..errors import StudyError
 from ..units import api_to_sg, sg_to_api
 from .compare import PriceSet, crude_properties, worth_table
@@ -50,6 +51,10 @@ class BlendPlan:
     """Each target: ``target`` (label), ``achieved``, ``limit``, ``unit``, ``slack`` (in the target's unit,
     >= 0 when met), ``binding``, and ``marginal_per_unit``: the change of the objective's value when the target
     moves by one unit (from the linear programme's duals; None when infeasible)."""
+    compatibility: Compatibility | None = None
+    """The blend's crude compatibility (Wiehe & Kennedy 2000, :func:`~.compatibility.assess`); when every
+    candidate has the numbers, the optimiser keeps S_BN,mix >= MARGIN_RATIO x I_N,max as a constraint (a
+    target row named 'compatibility: ...')."""
     share_bounds: list[dict] = field(default_factory=list)
     """Each crude's share bounds: ``crude``, ``min_pct``, ``max_pct``, ``share_pct``, ``at`` ('min', 'max' or
     None: where the share sits on a bound the user set, a minimum above 0 or a maximum below 100 %), and
@@ -97,17 +102,24 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
     c, label, sign = _objective(results, names, prices, objective)
     lo, hi = _share_bounds(bounds, names)
     rows, rhs, labels, scales = _target_rows(targets, sg, s, y, cuts)
+    numbers = [numbers_of(r.assay.extras) for r in results]
+    compat = None
+    if all(x is not None for x in numbers):  # compatibility as a constraint: the best over the sets of crudes used
+        res, rows, rhs, labels, scales, compat = _compatible_solve(c, rows, rhs, labels, scales, lo, hi, numbers,
+                                                                   names)
+    else:
+        res = _solve(c, rows, rhs, lo, hi)
     A = np.array(rows) if rows else None
     b = np.array(rhs) if rows else None
-    res = linprog(c, A_ub=A, b_ub=b, A_eq=np.ones((1, n)), b_eq=[1.0], bounds=list(zip(lo, hi)), method="highs")
     if res.status == 0:
         v = res.x
         slack = (b - A @ v) if rows else np.array([])
         binding = [lab for lab, sl, sc in zip(labels, slack, scales) if abs(sl) <= 1e-7 * max(1.0, sc * 100)]
         plan = _plan(True, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, {}, binding)
         duals = res.ineqlin.marginals if rows else np.array([])
-        plan.targets = _target_report(targets, plan, v, sg, labels, binding, duals, sign)
+        plan.targets = _target_report(targets, plan, v, sg, labels, binding, duals, sign, compat)
         plan.share_bounds = _bound_report(names, v, lo, hi, res.lower.marginals, res.upper.marginals, sign)
+        plan.compatibility = assess(names, numbers, v)
         return plan
     # elastic problem: minimise the scaled violations
     m = len(rows)
@@ -124,9 +136,62 @@ def optimize_blend(results, bounds: dict[str, tuple[float, float]], targets: Ble
         if amount > 1e-9:
             short[lab] = _in_target_units(lab, amount, row, v, sg)
     plan = _plan(False, names, v, label, float(sign * (c @ v)), sg, s, y, cuts, short, [])
-    plan.targets = _target_report(targets, plan, v, sg, labels, [], None, sign)
+    plan.targets = _target_report(targets, plan, v, sg, labels, [], None, sign, compat)
     plan.share_bounds = _bound_report(names, v, lo, hi, None, None, sign)
+    plan.compatibility = assess(names, numbers, v)
     return plan
+
+
+MAX_COMPAT_CRUDES = 10
+"""Up to this many candidates, compatibility is imposed exactly: one linear programme per set of crudes that
+may be present (I_N,max counts only the crudes used).  Above it, every candidate's I_N counts (conservative)."""
+
+
+def _solve(c, rows, rhs, lo, hi):
+    from scipy.optimize import linprog
+
+    return linprog(c, A_ub=np.array(rows) if rows else None, b_ub=np.array(rhs) if rows else None,
+                   A_eq=np.ones((1, len(c))), b_eq=[1.0], bounds=list(zip(lo, hi)), method="highs")
+
+
+def _compatible_solve(c, rows, rhs, labels, scales, lo, hi, numbers, names):
+    """The best blend that stays compatible with margin: S_BN,mix >= MARGIN_RATIO x I_N,max over the crudes
+    present (Wiehe & Kennedy 2000; :mod:`.compatibility`).  I_N,max depends on which crudes are used, so each
+    set of crudes that may be present (every crude with a minimum share in it) is solved as its own linear
+    programme, with the others held at 0, and the best feasible one kept; with more than
+    :data:`MAX_COMPAT_CRUDES` candidates, or when none is feasible, all crudes count.  Returns the solution,
+    the rows with the compatibility row added, and (limit, S_BN vector) of that row."""
+    import itertools
+
+    n = len(c)
+    sbn = np.array([x[0] for x in numbers])
+    ins = np.array([x[1] for x in numbers])
+    must = [k for k in range(n) if lo[k] > 0]
+
+    def problem(present):
+        limit = MARGIN_RATIO * float(ins[list(present)].max())
+        k_max = names[max(present, key=lambda k: ins[k])]
+        lab = (f"compatibility: S_BN of the blend >= {MARGIN_RATIO:g} x I_N max ({limit / MARGIN_RATIO:g}, "
+               f"{k_max})")
+        hi_p = np.array([hi[k] if k in present else 0.0 for k in range(n)])
+        return rows + [list(-sbn)], rhs + [-limit], labels + [lab], scales + [1.0], hi_p, limit
+
+    best = None
+    if n <= MAX_COMPAT_CRUDES:
+        for size in range(1, n + 1):
+            for present in itertools.combinations(range(n), size):
+                if not set(must) <= set(present):
+                    continue
+                r2, b2, l2, s2, hi_p, limit = problem(present)
+                if hi_p.sum() < 1 - 1e-9:
+                    continue
+                res = _solve(c, r2, b2, lo, hi_p)
+                if res.status == 0 and (best is None or c @ res.x < c @ best[0].x - 1e-12):
+                    best = (res, r2, b2, l2, s2, (limit, sbn))
+    if best is None:
+        r2, b2, l2, s2, _, limit = problem(tuple(range(n)))
+        best = (_solve(c, r2, b2, lo, hi), r2, b2, l2, s2, (limit, sbn))
+    return best
 
 
 BOUND_TOL = 1e-7
@@ -153,7 +218,8 @@ def _bound_report(names, v, lo, hi, lower_duals, upper_duals, sign) -> list[dict
     return out
 
 
-def _target_report(targets: BlendTargets, plan: BlendPlan, v, sg, labels, binding, duals, sign) -> list[dict]:
+def _target_report(targets: BlendTargets, plan: BlendPlan, v, sg, labels, binding, duals, sign,
+                   compat=None) -> list[dict]:
     """Each target's achieved value, slack and marginal value (see :attr:`BlendPlan.targets`).
 
     The duals of linprog (HiGHS) are d(objective)/d(b) of each row A v <= b; the marginal value of a target
@@ -182,6 +248,9 @@ def _target_report(targets: BlendTargets, plan: BlendPlan, v, sg, labels, bindin
         add(targets.sulfur_max, plan.sulfur_wt_pct, targets.sulfur_max - plan.sulfur_wt_pct, "wt %", sg_v)
     for cut, ymin in targets.min_yield.items():
         add(ymin, plan.yields[cut], plan.yields[cut] - ymin, "vol %", -1.0)
+    if compat is not None:  # the row -S_BN . v <= -limit: b moves by -1 per unit of the limit
+        limit, sbn = compat
+        add(limit, float(sbn @ v), float(sbn @ v) - limit, "S_BN", -1.0)
     return out
 
 
