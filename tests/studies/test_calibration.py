@@ -166,3 +166,40 @@ def test_a_bad_plant_file_is_one_line_naming_the_file_and_product(change, words,
     assert len(r.stderr.strip().splitlines()) == 1 and "run.toml" in r.stderr, r.stderr
     for w in words:
         assert w in r.stderr, r.stderr
+
+
+def test_rates_per_day_and_by_weight_give_the_same_fit(crude):
+    # t/d of a product = wt % x crude bbl/d x t per bbl of the crude (SG x 999.016 kg/m3 x 0.158987 m3, API MPMS
+    # 11.1): the same test run in t/d and in wt % is the same fit
+    from assaycut.units import barrel_mass_t
+
+    cs, r, prods = _test_run(crude, OVERLAPS)
+    by_wt = [PlantProduct(p.name, "wt_pct", row["wt_pct"], p.method, p.points, p.sg)
+             for p, row in zip(prods, r.cuts.rows())]
+    crude_t = 100000.0 * float(barrel_mass_t(crude[0].sg))
+    per_day = [PlantProduct(p.name, "t_per_day", p.rate * crude_t / 100.0, p.method, p.points, p.sg) for p in by_wt]
+    a = calibrate(crude[1], PlantRun(by_wt, label="wt"))
+    b = calibrate(crude[1], PlantRun(per_day, 100000.0, label="t/d"))
+    assert a.basis == b.basis == "wt"
+    for x, y, end in zip(a.cut_points, b.cut_points, cs.ends_c):
+        if x["name"] != "light ends":  # (its cut point lies in a gap between light-end components: any is one)
+            assert x["end_c"] == pytest.approx(y["end_c"], abs=1e-4)
+            assert x["end_c"] == pytest.approx(end, abs=0.2)
+
+
+def test_a_cut_file_must_name_the_plant_products(demo_paths, tmp_path):
+    plant = tmp_path / "run.toml"
+    plant.write_text(PLANT)
+    cuts = tmp_path / "cuts.toml"
+    cuts.write_text('[[cut]]\nname = "naphtha"\nend_c = 180\n\n[[cut]]\nname = "rest"\n')
+    r = runner.invoke(app, ["calibrate", demo_paths[1], "--plant", str(plant), "--cuts", str(cuts)])
+    assert r.exit_code == 2 and "cuts.toml" in r.stderr and "plant file's products" in r.stderr
+
+
+def test_the_shipped_demo_plant_file_runs(demo_paths, tmp_path):
+    from pathlib import Path
+
+    demo = Path(__file__).parents[2] / "assays_demo" / "plant_run_brannock.toml"
+    r = runner.invoke(app, ["calibrate", demo_paths[1], "--plant", str(demo), "--out", str(tmp_path)])
+    assert r.exit_code == 0, r.output
+    assert "Calibration written" in r.stdout
