@@ -1,7 +1,7 @@
 """Command line of assaycut: a thin shell over the readers, the core and the report writers.
 
 Each command family is a Typer app of its own (:mod:`.yields_cmd`, :mod:`.convert_cmd`, :mod:`.compare_cmd`,
-:mod:`.blend_cmd`, :mod:`.cutpoints_cmd`, :mod:`.calibrate_cmd`, :mod:`.explore_cmd`), composed here with ``add_typer``; the families
+:mod:`.blend_cmd`, :mod:`.cutpoints_cmd`, :mod:`.calibrate_cmd`, :mod:`.pseudo_cmd`, :mod:`.explore_cmd`), composed here with ``add_typer``; the families
 share :mod:`.common` and import neither each other nor this module.  :mod:`.batch_runner` runs the yield job
 over many files.
 """
@@ -14,7 +14,8 @@ import sys
 import typer
 from typer.core import TyperGroup
 
-from . import blend_cmd, calibrate_cmd, compare_cmd, convert_cmd, cutpoints_cmd, explore_cmd, yields_cmd
+from . import (blend_cmd, calibrate_cmd, compare_cmd, convert_cmd, cutpoints_cmd, explore_cmd, pseudo_cmd,
+               yields_cmd)
 from .common import TdMethod, error_line, interrupted, stop_now
 
 
@@ -68,7 +69,8 @@ app = typer.Typer(
     pretty_exceptions_enable=False,
     rich_markup_mode=None,
 )
-for _family in (yields_cmd, convert_cmd, compare_cmd, blend_cmd, cutpoints_cmd, calibrate_cmd, explore_cmd):
+for _family in (yields_cmd, convert_cmd, compare_cmd, blend_cmd, cutpoints_cmd, calibrate_cmd, pseudo_cmd,
+                explore_cmd):
     app.add_typer(_family.app)
 
 

@@ -10,6 +10,7 @@ are the customary hypothetical-liquid values, also from memory).
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 
@@ -31,6 +32,9 @@ class Component:
         Liquid specific gravity 60/60 °F. [-]
     mw : float
         Molar mass. [g/mol]
+    tc_k, pc_bar, omega, vc_m3_kmol : float
+        Critical temperature [K], critical pressure [bar], acentric factor [-] and critical volume [m³/kmol]:
+        the values of ``chemicals`` (rounded), for the pure components of ``assaycut pseudo``.
     """
 
     key: str
@@ -39,16 +43,20 @@ class Component:
     nbp_c: float
     sg: float
     mw: float
+    tc_k: float = math.nan
+    pc_bar: float = math.nan
+    omega: float = math.nan
+    vc_m3_kmol: float = math.nan
 
 
 COMPONENTS: tuple[Component, ...] = (
-    Component("C1", "methane", "74-82-8", -161.48, 0.3000, 16.043),
-    Component("C2", "ethane", "74-84-0", -88.58, 0.3562, 30.069),
-    Component("C3", "propane", "74-98-6", -42.11, 0.5070, 44.096),
-    Component("iC4", "isobutane", "75-28-5", -11.75, 0.5629, 58.122),
-    Component("nC4", "n-butane", "106-97-8", -0.49, 0.5840, 58.122),
-    Component("iC5", "isopentane", "78-78-4", 27.83, 0.6247, 72.149),
-    Component("nC5", "n-pentane", "109-66-0", 36.06, 0.6311, 72.149),
+    Component("C1", "methane", "74-82-8", -161.48, 0.3000, 16.043, 190.56, 45.992, 0.0114, 0.09863),
+    Component("C2", "ethane", "74-84-0", -88.58, 0.3562, 30.069, 305.32, 48.722, 0.0995, 0.14584),
+    Component("C3", "propane", "74-98-6", -42.11, 0.5070, 44.096, 369.89, 42.512, 0.1521, 0.2),
+    Component("iC4", "isobutane", "75-28-5", -11.75, 0.5629, 58.122, 407.81, 36.29, 0.184, 0.25775),
+    Component("nC4", "n-butane", "106-97-8", -0.49, 0.5840, 58.122, 425.12, 37.96, 0.201, 0.25492),
+    Component("iC5", "isopentane", "78-78-4", 27.83, 0.6247, 72.149, 460.35, 33.78, 0.2274, 0.30572),
+    Component("nC5", "n-pentane", "109-66-0", 36.06, 0.6311, 72.149, 469.7, 33.675, 0.251, 0.31153),
 )
 """Light-ends components in order of boiling point."""
 

@@ -399,3 +399,28 @@ def calibration_text(crude: str, cal) -> list[str]:
     lines += wrap("One test run of one column, at that day's rates, feed and operation: check the fitted cut "
                   "points against other runs before relying on them.")
     return lines
+
+
+def pseudo_text(assay, model, comps, method: str) -> list[str]:
+    """The components as printed: one row per component (NBP, SG, MW, Tc, Pc, ω, shares of the crude), then
+    the notes (method, recombination, range, caution)."""
+    from .studyreports import pseudo_notes
+
+    prod = "product" in comps[0]
+    head = ["Component"] + (["Product"] if prod else []) + ["NBP °C", "SG", "MW", "Tc °C", "Pc bar", "ω", "vol %",
+                                                            "wt %", "mol %"]
+    body = []
+    for c in comps:
+        body.append([c["name"] + ("" if c["in_range"] else "†")] + ([c["product"]] if prod else [])
+                    + [fixed(c["nbp_c"], 1), fixed(c["sg"], 4), fixed(c["mw"], 1), fixed(c["tc_c"], 1),
+                       fixed(c["pc_bar"], 2), fixed(c["omega"], 3), fixed(c["vol_pct"], 3), fixed(c["wt_pct"], 3),
+                       fixed(c["mol_pct"], 3)])
+    lines = [""] + wrap(f"{assay.name}: {len(comps)} components ({sum(c['pure'] for c in comps)} pure), method "
+                        f"{method}")
+    lines += grid(head, body, align="l" * (2 if prod else 1) + "r" * 9, keep=2 if prod else 1)
+    if any(not c["in_range"] for c in comps):
+        lines += wrap("† outside the method's fitted range: indicative only")
+    for topic, text in pseudo_notes(assay, model, comps, method)[2:]:
+        if topic != "Outside the method's range":
+            lines += wrap(f"{topic}: {text}", indent="  ")
+    return lines

@@ -84,6 +84,11 @@ def calibration_json(a, model, cal) -> dict:
                                 "distillation points are compared as TBP (D86 and D2887 converted)"]})
 
 
+def pseudo_json(assay, model, comps, method: str) -> dict:
+    """``assaycut pseudo --json`` of one assay: the assay (as in ``yields``), the method, the components."""
+    return json_safe({"assay": assay_record(assay, model), "method": method, "components": comps})
+
+
 def yield_json(result) -> dict:
     """The JSON object of one assay's yields (``assaycut yields --json``); each limit row carries the ``unit``
     of its property ('°C', 'wt %'...)."""

@@ -478,3 +478,65 @@ def calibration_csv(cal) -> bytes:
             for r in cal.residuals]
     return csv_text(["Product", "Measured quantity", "Measured", "Fitted", "Residual (fitted - measured)",
                      "Standard deviation"], rows).encode("utf-8")
+
+
+PSEUDO_COLUMNS = [("name", "Component"), ("product", "Product"), ("pure", "Pure component"), ("nbp_c", "NBP [°C]"),
+                  ("sg", "SG 60/60 °F [-]"), ("api", "API gravity [°API]"), ("watson_k", "Watson K [-]"),
+                  ("mw", "Molar mass [g/mol]"), ("tc_c", "Tc [°C]"), ("pc_bar", "Pc [bar]"),
+                  ("omega", "Acentric factor [-]"), ("vc_m3_kmol", "Vc [m³/kmol]"), ("zc", "Zc [-]"),
+                  ("vol_pct", "Crude [vol %]"), ("wt_pct", "Crude [wt %]"), ("mol_pct", "Crude [mol %]"),
+                  ("product_vol_pct", "Product [vol %]"), ("product_wt_pct", "Product [wt %]"),
+                  ("product_mol_pct", "Product [mol %]"), ("start_c", "From TBP [°C]"), ("end_c", "To TBP [°C]"),
+                  ("in_range", "Inside the method's range"), ("extrapolated", "On the fitted extension")]
+"""The neutral export of the pseudo-components: one row per component, these columns (those present)."""
+
+
+def pseudo_files(assay, model, comps, method: str) -> dict[str, bytes]:
+    """``<crude>_pseudo.csv`` (one row per component, units in the headers, the method in a column) and
+    ``<crude>_pseudo.xlsx`` (sheets 'components' and 'notes')."""
+    import io
+
+    import openpyxl
+
+    from .write import csv_text, slug
+
+    cols = [(k, h) for k, h in PSEUDO_COLUMNS if k in comps[0]]
+    heads = [h for _, h in cols] + ["Method"]
+    rows = [[c[k] for k, _ in cols] + ["chemicals (pure component)" if c["pure"] else method] for c in comps]
+    base = slug(assay.name)
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "components"
+    write_table(ws, heads, rows, keys=[k for k, _ in cols] + [None], widths=[16] * len(heads), freeze="B2")
+    ws = wb.create_sheet("notes")
+    write_table(ws, ["Topic", "Text"], [[k, v] for k, v in pseudo_notes(assay, model, comps, method)],
+                widths=[24, 120])
+    finish_workbook(wb, "Pseudo-components")
+    buf = io.BytesIO()
+    wb.save(buf)
+    return {f"{base}_pseudo.csv": csv_text(heads, rows).encode("utf-8"), f"{base}_pseudo.xlsx": buf.getvalue()}
+
+
+def pseudo_notes(assay, model, comps, method: str) -> list[tuple[str, str]]:
+    """What a reader of the components must know: the method, the pure components' source, the recombination
+    against the model and the crude, the slices outside the method's range or on the extension, the caution."""
+    sg_v = sum(c["vol_pct"] * c["sg"] for c in comps) / 100.0
+    out = [("Method", f"{method}: MW, Tc, Pc, acentric factor and Vc of each pseudo-component from its NBP and SG "
+                      f"(see the README's pseudo-components section)"),
+           ("Pure components", "light ends placed on the curve as pure components: NBP, MW, Tc, Pc, acentric "
+                               "factor and Vc of the chemicals library; SG from GPA 2145"),
+           ("Recombination", f"volume {sum(c['vol_pct'] for c in comps):.6f} %, weight "
+                             f"{sum(c['wt_pct'] for c in comps):.6f} %, moles {sum(c['mol_pct'] for c in comps):.6f} "
+                             f"%; volume-average SG {sg_v:.5f} against the model's {model.sg:.5f} and the whole "
+                             f"crude's {assay.sg:.5f} (the model keeps the narrow cuts as measured and reports the "
+                             f"difference as its closure)")]
+    outside = [c["name"] for c in comps if not c["in_range"]]
+    if outside:
+        out.append(("Outside the method's range", ", ".join(outside) + ": computed beyond the data the method "
+                                                                    "was fitted to; indicative only"))
+    ext = [c["name"] for c in comps if c["extrapolated"]]
+    if ext:
+        out.append(("Extrapolated", ", ".join(ext) + ": on the curve's fitted extension"))
+    out.append(("Caution", "estimates for screening, not measured properties: check the components against your "
+                           "simulator's own characterisation and the laboratory's data"))
+    return out
