@@ -24,7 +24,8 @@ import math
 import numpy as np
 
 from ..errors import CutSetError
-from ..methods.critical_properties import characterise
+from ..methods.characterisation import watson_k
+from ..methods.critical_properties import R_BAR_M3_KMOL_K, characterise
 from ..model.crude import CrudeModel
 from ..model.lightends import find_component
 from ..model.tbp_curve import STEP_C
@@ -164,9 +165,9 @@ def _finish(rows: list[dict], model: CrudeModel, cut_set: CutSet | None) -> list
         sg = float(mass[k] / vol[k])
         t_lo, t_hi = float(curve.temp_at(va[k])), float(curve.temp_at(vb[k]))
         row = {"name": r["name"] or f"NBP {r['nbp_c']:.0f}", "pure": r["pure"], "nbp_c": r["nbp_c"], "sg": sg,
-               "api": float(sg_to_api(sg)), "watson_k": ((r["nbp_c"] + 273.15) * 1.8) ** (1 / 3) / sg,
+               "api": float(sg_to_api(sg)), "watson_k": float(watson_k(r["nbp_c"], sg)),
                "mw": r["mw"], "tc_c": r["tc_k"] - 273.15, "pc_bar": r["pc_bar"], "omega": r["omega"],
-               "vc_m3_kmol": r["vc_m3_kmol"], "zc": r["pc_bar"] * r["vc_m3_kmol"] / (0.0831446 * r["tc_k"]),
+               "vc_m3_kmol": r["vc_m3_kmol"], "zc": r["pc_bar"] * r["vc_m3_kmol"] / (R_BAR_M3_KMOL_K * r["tc_k"]),
                "vol_pct": float(vol[k]), "wt_pct": float(100.0 * mass[k] / mass.sum()),
                "mol_pct": float(100.0 * moles[k] / moles.sum()), "start_c": t_lo, "end_c": t_hi,
                "cum_vol_pct": float(vb[k]), "in_range": r["in_range"],

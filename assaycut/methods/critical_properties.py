@@ -21,6 +21,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from .characterisation import mw_riazi_daubert_1987, watson_k
+
 R_BAR_M3_KMOL_K = 0.0831446
 """Gas constant. [bar·m³/(kmol·K)]"""
 PSIA_PER_BAR = 14.503774
@@ -59,8 +61,9 @@ def riazi_daubert_1987(tb_k, sg) -> dict[str, np.ndarray]:
     ===== ========== ======== ======== =========== ========= ==========
     Tc     9.5233     0.81067  0.53691  -9.314e-4   -0.544442 6.4791e-4
     Pc     3.1958e5   -0.4844  4.0846   -8.505e-3   -4.8014   5.749e-3
-    M      42.965     1.26007  4.98308  2.097e-4    -7.78712  2.08476e-3
     ===== ========== ======== ======== =========== ========= ==========
+
+    M by the same form, :func:`~assaycut.methods.characterisation.mw_riazi_daubert_1987` (API TDB 2B2.1).
 
     Range: Tb about 300-850 K, SG 0.6-1.0 (M: 70-700 g/mol).  Source: Riazi MNL50 (2005) Eq. 2.38, Table 2.5
     for Tc and Pc, Eq. 2.50 (API TDB 2B2.1) for M (constants recalled from memory, checked by the
@@ -77,7 +80,7 @@ def riazi_daubert_1987(tb_k, sg) -> dict[str, np.ndarray]:
     tb, s = np.asarray(tb_k, float), np.asarray(sg, float)
     return {"tc_k": _rd(9.5233, 0.81067, 0.53691, -9.314e-4, -0.544442, 6.4791e-4, tb, s),
             "pc_bar": _rd(3.1958e5, -0.4844, 4.0846, -8.505e-3, -4.8014, 5.749e-3, tb, s),
-            "mw": _rd(42.965, 1.26007, 4.98308, 2.097e-4, -7.78712, 2.08476e-3, tb, s)}
+            "mw": np.asarray(mw_riazi_daubert_1987(tb - 273.15, s), float)}
 
 
 def kesler_lee_1976(tb_k, sg) -> dict[str, np.ndarray]:
@@ -212,7 +215,7 @@ def omega_kesler_lee(tb_k, tc_k, sg) -> np.ndarray:
     .. math:: \\omega = -7.904 + 0.1352\\,K_w - 0.007465\\,K_w^2 + 8.359\\,T_{br} + (1.408 - 0.01063\\,K_w)/T_{br}
     """
     tbr = np.asarray(tb_k, float) / np.asarray(tc_k, float)
-    kw = (np.asarray(tb_k, float) * 1.8) ** (1.0 / 3.0) / np.asarray(sg, float)
+    kw = np.asarray(watson_k(np.asarray(tb_k, float) - 273.15, sg), float)
     return -7.904 + 0.1352 * kw - 0.007465 * kw ** 2 + 8.359 * tbr + (1.408 - 0.01063 * kw) / tbr
 
 
@@ -278,6 +281,6 @@ def characterise(tb_k, sg, method: str = "riazi-daubert-1987") -> dict[str, np.n
     else:
         out["zc"] = zc_pitzer(out["omega"])
         out["vc_m3_kmol"] = vc_from_zc(out["zc"], out["tc_k"], out["pc_bar"])
-    out["watson_k"] = (tb * 1.8) ** (1.0 / 3.0) / s
+    out["watson_k"] = np.asarray(watson_k(tb - 273.15, s), float)
     out["in_range"] = in_range(method, tb, s)
     return out
