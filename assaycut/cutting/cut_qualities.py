@@ -15,7 +15,10 @@ from __future__ import annotations
 import numpy as np
 
 from ..methods.blending_indices import VISCOSITY
+from ..methods.characterisation import mw_riazi_daubert_1987
 from ..methods.fraction_properties import (
+    hydrogen_in_range,
+    hydrogen_riazi_ch,
     aniline_point_api_2b9_1,
     aniline_point_in_range,
     cloud_point_api_2b12_1,
@@ -57,6 +60,7 @@ ESTIMATED = {
     "aniline_point_c": "API TDB 2B9.1 (SG 0.7-1.0, Tb 200-1100 °F)",
     "smoke_point_mm": "API TDB 2B10.1 (SG 0.70-0.86, Tb 200-550 °F)",
     "refractive_index_20c": "Riazi-Daubert 1987 parameter I (Tb 80-650 °F)",
+    "hydrogen_wt_pct": "Riazi MNL50 (2005) carbon-to-hydrogen weight ratio correlations from MeABP and SG (M 70-700)",
 }
 """The estimated qualities, with the correlation and the range each is used in."""
 NOT_ESTIMATED = ("nitrogen, metals, CCR, asphaltenes, wax, acid number, mercaptan sulfur, RVP, octane and PNA are "
@@ -265,6 +269,8 @@ def _estimates(meabp, sg, kw, ok) -> dict:
             "refractive_index_20c": (refractive_index_riazi_daubert_1987(meabp, sg),
                                      ok & refractive_index_in_range(meabp)),
         }
+        mw = mw_riazi_daubert_1987(meabp, sg)
+        est["hydrogen_wt_pct"] = (hydrogen_riazi_ch(meabp, sg, mw), ok & hydrogen_in_range(mw))
     return est
 
 
@@ -346,3 +352,16 @@ def residue_viscosities(values: dict[str, np.ndarray], estimated: dict[str, np.n
             cold = residue & estimated[n]
             values[n] = np.where(cold, np.nan, values[n])
             estimated[n] = estimated[n] & ~cold
+
+
+def add_indices(cols: dict) -> None:
+    """The indices that follow from a cut's other columns: ``n_plus_2a_vol_pct`` = naphthenes + 2 x aromatics
+    [vol %] where the cut has both (common practice, no source), estimated where either is."""
+    if "naphthenes_vol_pct" in cols and "aromatics_vol_pct" in cols:
+        n, a = np.asarray(cols["naphthenes_vol_pct"], float), np.asarray(cols["aromatics_vol_pct"], float)
+        cols["n_plus_2a_vol_pct"] = n + 2.0 * a
+        est = cols.get("estimated")
+        if est is not None:
+            est["n_plus_2a_vol_pct"] = (np.asarray(est.get("naphthenes_vol_pct", False))
+                                        | np.asarray(est.get("aromatics_vol_pct", False))) \
+                & np.isfinite(cols["n_plus_2a_vol_pct"])

@@ -36,13 +36,14 @@ from ..methods.characterisation import (
     watson_k,
 )
 from ..methods.d86 import D86_STD, tbp_to_d86_daubert_1994_array
+from ..methods.fraction_properties import bmci
 from ..methods.product_properties import cci_in_range, cetane_index_d4737, flash_in_range, flash_point_api_2b7_1
 from ..model.crude import CrudeModel
 from .model_rows import BatchModel
 from ..units import BBL_M3, barrel_mass_t, sg_to_api, sg_to_density15
 from .cut_table import CutTable
 from .cutset import CutSet
-from .cut_qualities import quality_columns, residue_viscosities
+from .cut_qualities import add_indices, quality_columns, residue_viscosities
 
 LIGHT_ENDS_MAX_C = 40.0
 """Cuts ending at or below this TBP are light ends: no D86 is estimated for them (D86 does not apply to
@@ -58,7 +59,8 @@ cut table. ``estimated``: the value rests in whole or part on a correlation wher
 
 CUT_COLUMNS = ["name", "start_c", "end_c", "vol_pct", "wt_pct", "cum_vol_pct", "cum_wt_pct", "tbp_5_c",
                "mid_vol_c", "tbp_95_c", "overlap_c", "vabp_c", "vabp_d86_c", "meabp_c", "sg", "api",
-               "density_15c_kg_m3", "watson_k", "sulfur_wt_pct", "sulfur_share_pct", "mw", "d86_c", "cetane_index_d4737", "flash_c_est", "extrapolated"]
+               "density_15c_kg_m3", "watson_k", "sulfur_wt_pct", "sulfur_share_pct", "mw", "bmci", "d86_c",
+               "cetane_index_d4737", "flash_c_est", "extrapolated"]
 
 
 def cut_table(model: CrudeModel, cut_set: CutSet) -> CutTable:
@@ -173,6 +175,7 @@ def cut_columns(model: BatchModel, ends: np.ndarray, only=None) -> dict[str, np.
     residue_viscosities(vals, est, t_start, t_end)
     out.update(vals)
     out["estimated"] = est
+    add_indices(out)
     out["extrapolated"] = (curve.is_extrapolated(va, vb) | _all_flag(model, vol)) & (vol > 1e-9)
     return out
 
@@ -214,7 +217,8 @@ def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, me
     Returns
     -------
     dict of str to numpy.ndarray
-        vabp_c, vabp_d86_c, meabp_c, sg, api, density_15c_kg_m3, watson_k, sulfur_wt_pct, sulfur_share_pct,
+        vabp_c, vabp_d86_c, meabp_c, bmci (Bureau of Mines correlation index from the TBP VABP, not for
+        light ends), sg, api, density_15c_kg_m3, watson_k, sulfur_wt_pct, sulfur_share_pct,
         mw, d86, cetane_index_d4737, flash_c_est (empty cuts give NaN, a zero sulfur share), and
         ``out_of_scope`` {column: bool array} for the last two.
     """
@@ -237,8 +241,10 @@ def derive_qualities(t_start, t_end, vol, wt, vabp, sg, sulfur, tbp, s_crude, me
     with np.errstate(invalid="ignore", divide="ignore"):
         share = sulfur * wt / s_crude
     some = vol > 1e-9
+    gas_cut = np.isfinite(t_end) & (t_end <= LIGHT_ENDS_MAX_C)  # no BMCI for gases
     return {
         "vabp_c": np.where(some, vabp, np.nan), "vabp_d86_c": vabp_d86, "meabp_c": np.where(some, meabp, np.nan),
+        "bmci": np.where(some & ~gas_cut, bmci(vabp, sg), np.nan),
         "sg": np.where(some, sg, np.nan),
         "api": np.where(some, sg_to_api(sg), np.nan), "density_15c_kg_m3": np.where(some, dens15, np.nan),
         "watson_k": np.where(some, kw, np.nan), "sulfur_wt_pct": np.where(some, sulfur, np.nan),

@@ -40,7 +40,7 @@ from .ideal import (
     derive_qualities,
     first_row,
 )
-from .cut_qualities import product_quality_columns, residue_viscosities
+from .cut_qualities import add_indices, product_quality_columns, residue_viscosities
 from .model_rows import BatchModel
 
 Z95 = 1.6448536269514722
@@ -297,6 +297,7 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     residue_viscosities(vals, est, t_start, t_end)
     cols.update(vals)
     cols["estimated"] = est
+    add_indices(cols)
     reach = (f * dv[:, None] > 1e-9 * dv.sum())
     out_of_range = model.curve.is_extrapolated(va, vb)[:, None]
     cols["extrapolated"] = (np.any(reach & out_of_range, axis=0) | bool(model.all_on_extension)) & (vol > 1e-9)

@@ -114,7 +114,7 @@ def _reciprocal(x):
 
 MASS_ADDITIVE = ("sulfur_wt_pct", "mercaptan_sulfur_wt_ppm", "nitrogen_wt_ppm", "basic_nitrogen_wt_ppm",
                  "nickel_wt_ppm", "vanadium_wt_ppm", "ccr_wt_pct", "asphaltenes_wt_pct", "wax_wt_pct",
-                 "acid_number_mg_koh_g")
+                 "acid_number_mg_koh_g", "hydrogen_wt_pct")
 """Properties that blend linearly by weight."""
 VOLUME_ADDITIVE = ("paraffins_vol_pct", "naphthenes_vol_pct", "aromatics_vol_pct")
 """Properties that blend linearly by volume."""

@@ -292,6 +292,61 @@ def refractive_index_in_range(tb_c):
     return _between(c_to_f(tb_c), 80.0, 650.0)
 
 
+def hydrogen_riazi_ch(tb_c, sg, mw):
+    """Hydrogen content [wt %] of a fraction from its carbon-to-hydrogen weight ratio, H = 100 / (1 + CH), by
+    the two CH correlations of Riazi, *Characterization and Properties of Petroleum Fractions*, ASTM MNL50
+    (2005), ch. 2 (Tb in K; constants recalled from memory, checked below and against the open assays'
+    measured hydrogen, README accuracy section):
+
+    .. math::
+        CH = 8.7743\\times10^{-10} \\exp(7.176\\times10^{-3} T_b + 30.06242\\,SG - 7.35\\times10^{-3} T_b SG)
+             \\,T_b^{-0.98445}\\,SG^{-18.2753}\\quad (70 \\le M \\le 300)
+
+        CH = 3.4707 \\exp(1.485\\times10^{-2} T_b + 16.94\\,SG - 1.2492\\times10^{-2} T_b SG)
+             \\,T_b^{-2.725}\\,SG^{-6.798}\\quad (300 < M \\le 700)
+
+    NaN outside M 70-700 (:func:`hydrogen_in_range`).
+
+    Examples
+    --------
+    n-Hexane (Tb 341.9 K, SG 0.6651, M 86.2): hydrogen 16.37 wt % by its formula C6H14 (arithmetic):
+
+    >>> round(float(hydrogen_riazi_ch(341.9 - 273.15, 0.6651, 86.2)), 2)
+    16.36
+    """
+    tb = np.asarray(tb_c, dtype=float) + 273.15
+    s = np.asarray(sg, dtype=float)
+    m = np.asarray(mw, dtype=float)
+    with np.errstate(over="ignore", invalid="ignore"):
+        light = 8.7743e-10 * np.exp(7.176e-3 * tb + 30.06242 * s - 7.35e-3 * tb * s) * tb ** -0.98445 * s ** -18.2753
+        heavy = 3.4707 * np.exp(1.485e-2 * tb + 16.94 * s - 1.2492e-2 * tb * s) * tb ** -2.725 * s ** -6.798
+        ch = np.where(m <= 300.0, light, heavy)
+        return np.where(hydrogen_in_range(m), 100.0 / (1.0 + ch), np.nan)
+
+
+def hydrogen_in_range(mw):
+    """The range of :func:`hydrogen_riazi_ch`: M 70-700 g/mol (bool array)."""
+    return _between(mw, 70.0, 700.0)
+
+
+def bmci(vabp_c, sg):
+    """Bureau of Mines correlation index (Smith 1940, U.S. Bureau of Mines Report of Investigations 3159),
+    from the volume-average boiling point and SG:
+
+    .. math:: BMCI = 48640 / VABP[K] + 473.7\\,SG - 456.8
+
+    0 for n-paraffins, 100 for benzene (by the index's definition).
+
+    Examples
+    --------
+    n-Hexane (341.9 K, SG 0.6640) and benzene (353.2 K, SG 0.8845):
+
+    >>> round(float(bmci(341.9 - 273.15, 0.6640)), 1), round(float(bmci(353.2 - 273.15, 0.8845)), 1)
+    (0.0, 99.9)
+    """
+    return 48640.0 / (np.asarray(vabp_c, dtype=float) + 273.15) + 473.7 * np.asarray(sg, dtype=float) - 456.8
+
+
 def sulfur_riazi_1999(mw, sg, ri, m):
     """Sulfur of a fraction, Riazi, Nasimi & Roomi (1999) [4]_, clipped at 0:
 

@@ -71,6 +71,9 @@ LABELS = {
     "smoke_point_mm": "Smoke point [mm]",
     "aniline_point_c": "Aniline point [°C]",
     "refractive_index_20c": "Refractive index 20 °C [-]",
+    "bmci": "BMCI [-]",
+    "hydrogen_wt_pct": "Hydrogen [wt %]",
+    "n_plus_2a_vol_pct": "N+2A [vol %]",
 }
 """Report header of each cut-table column, with its unit."""
 for _p in D86_STD:
@@ -323,7 +326,8 @@ TERMINAL_QUALITIES = [("freeze_point_c", "Freeze °C"), ("smoke_point_mm", "Smok
                       ("cloud_point_c", "Cloud °C"), ("pour_point_c", "Pour °C"),
                       ("viscosity_40c_cst", "ν40 cSt"), ("viscosity_100c_cst", "ν100 cSt"),
                       ("viscosity_135c_cst", "ν135 cSt"), ("nitrogen_wt_ppm", "N ppm"), ("ccr_wt_pct", "CCR wt %"),
-                      ("nickel_wt_ppm", "Ni ppm"), ("vanadium_wt_ppm", "V ppm")]
+                      ("nickel_wt_ppm", "Ni ppm"), ("vanadium_wt_ppm", "V ppm"), ("hydrogen_wt_pct", "H wt %"),
+                      ("bmci", "BMCI"), ("n_plus_2a_vol_pct", "N+2A vol %")]
 """The qualities the terminal shows, when present (all of them are in the report files and JSON)."""
 
 TERMINAL_LEGEND = {
