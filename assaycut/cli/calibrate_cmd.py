@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Annotated, Optional
+from typing import Annotated
 
 import typer
 
@@ -13,6 +13,7 @@ from .common import (
     CutsOpt,
     DensOpt,
     JsonOpt,
+    OutOpt,
     SgOpt,
     SulfurOpt,
     echo_json,
@@ -35,8 +36,7 @@ def calibrate(
                                         "points and SG.", dir_okay=False, metavar="FILE")] = ...,
     cuts: CutsOpt = None,
     json_out: JsonOpt = False,
-    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/.",
-                                                file_okay=False, metavar="DIR")] = None,
+    out: OutOpt = None,
     api: ApiOpt = None,
     sg: SgOpt = None,
     density: DensOpt = None,

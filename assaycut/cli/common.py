@@ -209,6 +209,10 @@ MethodOpt = Annotated[TdMethod, typer.Option("--method", help="TBP <-> D86 corre
                                              metavar="daubert-1994|riazi-daubert-1986")]
 
 
+OutOpt = Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/.",
+                                                file_okay=False, metavar="DIR")]
+
+
 class PlotSet(str, enum.Enum):
     """Which plots a yield report draws (--plots); see ``assaycut.report.write.PLOT_SETS``."""
 

@@ -15,6 +15,7 @@ from .common import (
     CutsOpt,
     DensOpt,
     EndOpt,
+    OutOpt,
     JsonOpt,
     LimitsOpt,
     PricesOpt,
@@ -37,8 +38,6 @@ from .common import (
 
 app = typer.Typer()
 
-OutOpt = Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/.",
-                                                file_okay=False, metavar="DIR")]
 
 
 @app.command()

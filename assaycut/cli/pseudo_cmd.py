@@ -13,6 +13,7 @@ from .common import (
     CutsOpt,
     DensOpt,
     JsonOpt,
+    OutOpt,
     SgOpt,
     SulfurOpt,
     check_whole_crude,
@@ -69,8 +70,7 @@ def pseudo(
                                                  help="Correlation for MW, Tc, Pc, ω and Vc.")]
     = PseudoMethod.riazi_daubert_1987,
     json_out: JsonOpt = False,
-    out: Annotated[Optional[Path], typer.Option("--out", help="Report folder. Default: reports/<crude>/.",
-                                                file_okay=False, metavar="DIR")] = None,
+    out: OutOpt = None,
     api: ApiOpt = None,
     sg: SgOpt = None,
     density: DensOpt = None,
