@@ -160,8 +160,9 @@ def product_tbp_at(cum_pct_j, t_edges, pct) -> float:
     return float(np.interp(pct, cum_pct_j, t_edges))
 
 
-def _overlap(sl, ends, widths, b) -> float:
-    """TBP 95 % of product b minus TBP 5 % of product b + 1 for split widths ``widths``. [°C]"""
+def boundary_overlap(sl, ends, widths, b) -> float:
+    """The TBP 5-95 overlap at boundary ``b``: TBP 95 % of product b minus TBP 5 % of product b + 1, for the
+    crude slices ``sl`` (:func:`crude_slices`), cut points ``ends`` and split widths ``widths``. [°C]"""
     f = split_fractions(sl["t_mean"], ends, widths)[:, b:b + 2]
     cum = product_cum_pct(f, sl["dv"])
     return product_tbp_at(cum[:, 0], sl["t_edges"], 95.0) - product_tbp_at(cum[:, 1], sl["t_edges"], 5.0)
@@ -209,7 +210,7 @@ def solve_split_widths(sl, ends, targets, ideal_overlap, label: str, names) -> n
             def g(w, b=b):
                 trial = widths.copy()
                 trial[b] = w
-                return _overlap(sl, ends, trial, b) - targets[b]
+                return boundary_overlap(sl, ends, trial, b) - targets[b]
 
             if abs(g(widths[b])) <= OVERLAP_TOL_C / 4:
                 continue
@@ -224,7 +225,7 @@ def solve_split_widths(sl, ends, targets, ideal_overlap, label: str, names) -> n
                                       f"on this crude")
             widths[b] = brentq(g, 0.0, hi, xtol=1e-4)
         for b in named:
-            worst = max(worst, abs(_overlap(sl, ends, widths, b) - targets[b]) if widths[b] > 0 else 0.0)
+            worst = max(worst, abs(boundary_overlap(sl, ends, widths, b) - targets[b]) if widths[b] > 0 else 0.0)
         if worst <= OVERLAP_TOL_C:
             return widths
     raise CutSetError(f"{label}: the overlaps asked could not all be met together (worst by {worst:.2f} °C)")

@@ -177,6 +177,11 @@ def in_fahrenheit(cuts):
     return CutTable(out, cuts.attrs)
 
 
+def _numbers_in_f(text: str) -> str:
+    """Every number of a limit's bounds text read as °C and written in °F with the same decimals."""
+    return NUMBER.sub(lambda m: f"{c_to_f(float(m.group(0))):.{len(m.group(1) or '')}f}", text)
+
+
 def limits_in_unit(rows: list[dict], unit: str = "C") -> list[dict]:
     """Checked limits (:func:`~assaycut.cutting.limits.check_limits` rows) for display, each with its ``unit``
     ('°C', 'wt %', 'kg/m³'...); with ``unit`` 'F', a temperature limit's value and bounds in °F (a bound
@@ -194,7 +199,7 @@ def limits_in_unit(rows: list[dict], unit: str = "C") -> list[dict]:
         temp = is_temperature(prop) and not prop.startswith("recovered_at_")
         r["unit"] = unit_of(prop)
         if temp and unit == "F":
-            r["limit"] = NUMBER.sub(lambda m: f"{c_to_f(float(m.group(0))):.{len(m.group(1) or '')}f}", r["limit"])
+            r["limit"] = _numbers_in_f(r["limit"])
             r["value"] = None if r["value"] is None else float(c_to_f(float(r["value"])))
             r["unit"] = "°F"
         out.append(r)
@@ -254,8 +259,7 @@ def limit_line_in_unit(text: str, prop: str, unit: str = "C") -> str:
     """
     if unit != "F" or not is_temperature(prop) or prop.startswith("recovered_at_"):
         return text
-    return _BOUNDS_AT_END.sub(lambda m: NUMBER.sub(
-        lambda n: f"{c_to_f(float(n.group(0))):.{len(n.group(1) or '')}f}", m.group(0)) + " °F", text)
+    return _BOUNDS_AT_END.sub(lambda m: _numbers_in_f(m.group(0)) + " °F", text)
 
 
 def unit_key(col: str, unit: str = "C") -> str:

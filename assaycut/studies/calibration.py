@@ -32,7 +32,7 @@ import numpy as np
 
 from ..errors import StudyError
 from ..cutting.cutset import Cut, CutSet
-from ..cutting.real_column import crude_slices, product_cum_pct, split_fractions
+from ..cutting.real_column import boundary_overlap, crude_slices, product_cum_pct, split_fractions
 from ..model.crude import CrudeModel
 from ..units import barrel_mass_t
 
@@ -168,8 +168,7 @@ class _Column:
         return np.interp(np.asarray(pcts, float), prod["cum"][:, j], prod["t_edges"])
 
     def overlap(self, ends, widths, b: int) -> float:
-        prod = self.products(ends, widths)
-        return float(self.tbp(prod, b, [95.0])[0] - self.tbp(prod, b + 1, [5.0])[0])
+        return float(boundary_overlap(crude_slices(self.model, ends), ends, widths, b))
 
 
 def calibrate(model: CrudeModel, run: PlantRun, start_ends_c=None) -> Calibration:
