@@ -43,10 +43,10 @@ def f_to_c(f):
     return np.nan if f is None else (f - 32.0) / 1.8
 
 
-def assay_of(rec: dict, keep=None) -> Assay:
+def assay_of(rec: dict, keep=None, extras=()) -> Assay:
     """The record as an Assay: the whole crude's gravity, sulfur and TBP curve (to 95 %), and the cuts at
     positions ``keep`` (all by default; none for whole-crude data only) as narrow cuts with their SG and
-    sulfur."""
+    sulfur, and the record fields named in ``extras`` (e.g. 'aromatics_vol_pct') as narrow-cut qualities."""
     cuts = rec["cuts"]
     keep = range(len(cuts)) if keep is None else list(keep)
     tbp = np.array(rec["tbp"], dtype=float)
@@ -57,7 +57,7 @@ def assay_of(rec: dict, keep=None) -> Assay:
         col = lambda key, f=float: np.array([np.nan if c[key] is None else f(c[key]) for c in sel])  # noqa: E731
         nc = NarrowCuts(np.array([f_to_c(c["start_f"]) for c in sel]), np.array([f_to_c(c["end_f"]) for c in sel]),
                         col("vol_pct"), np.full(len(sel), np.nan), col("density_g_cm3_15_6c") * SG_PER_G_CM3,
-                        col("sulfur_wt_pct"))
+                        col("sulfur_wt_pct"), extras={k: col(k) for k in extras})
     return Assay(rec["name"], rec["density_g_cm3_15_6c"] * SG_PER_G_CM3, [curve],
                  sulfur_wt_pct=rec["sulfur_wt_pct"], narrow_cuts=nc, source=rec["id"])
 
@@ -141,17 +141,19 @@ QUALITIES = {  # record field -> (tool column, conversion to the tool's unit, re
     "freeze_point_f": ("freeze_point_c", f_to_c, False),
     "smoke_point_mm": ("smoke_point_mm", float, False),
     "aniline_point_f": ("aniline_point_c", f_to_c, False),
+    "hydrogen_wt_pct": ("hydrogen_wt_pct", float, False),
 }
 """The records' other measured qualities compared with the tool's estimates."""
 
 
-def quality_errors() -> dict[str, list[dict]]:
+def quality_errors(extras=()) -> dict[str, list[dict]]:
     """Per quality, the tool's estimate against the record's measurement for every cut that has one: the
-    seven cuts given with their SG and sulfur only (the quality itself not given), at the record's own cut
-    points; model - measured, relative for viscosity [-], else in the quality's unit (°C, mm, index)."""
+    seven cuts given with their SG and sulfur only (and the record fields named in ``extras``; the quality
+    itself not given), at the record's own cut points; model - measured, relative for viscosity [-], else in
+    the quality's unit (°C, mm, index, wt %)."""
     out: dict[str, list[dict]] = {k: [] for k in QUALITIES}
     for rec in records():
-        rows = run_yields(assay_of(rec), own_cut_set(rec)).cuts.rows()
+        rows = run_yields(assay_of(rec, extras=extras), own_cut_set(rec)).cuts.rows()
         for k, (cut, row) in enumerate(zip(rec["cuts"], rows)):
             for field, (col, conv, rel) in QUALITIES.items():
                 meas = cut["viscosity_cst"].get("40.0") if field == "viscosity_40" else cut[field]
@@ -164,11 +166,12 @@ def quality_errors() -> dict[str, list[dict]]:
     return out
 
 
-def quality_table() -> list[dict]:
-    """Per quality and cut position, the number compared, the mean absolute error and the mean error."""
+def quality_table(extras=()) -> list[dict]:
+    """Per quality and cut position, the number compared, the mean absolute error and the mean error (the cuts
+    given as in :func:`quality_errors`)."""
     names = [c["name"] for c in records()[0]["cuts"]]
     table = []
-    for field, errs in quality_errors().items():
+    for field, errs in quality_errors(extras).items():
         for k in sorted({e["cut"] for e in errs}):
             e = np.array([x["err"] for x in errs if x["cut"] == k])
             table.append({"quality": field, "cut": names[k], "n": int(e.size), "mae": float(np.mean(np.abs(e))),
@@ -193,6 +196,11 @@ def main() -> None:
         f = (lambda x: f"{100 * x:+.0f} %") if r["relative"] else (lambda x: f"{x:+.1f}")
         print(f"  {r['quality']:<20}{r['cut']:<34}{r['n']:>4}{f(r['mae'])[1:]:>9}{f(r['bias']):>9}"
               + (f"  ({r['out_of_scope']} out of scope)" if r["out_of_scope"] else ""))
+    print("\nhydrogen, wt %, the cuts' measured aromatics also given (ASTM D3343 on the jet range): mean abs. "
+          "error, mean error")
+    for r in quality_table(("aromatics_vol_pct",)):
+        if r["quality"] == "hydrogen_wt_pct":
+            print(f"  {r['quality']:<20}{r['cut']:<34}{r['n']:>4}{r['mae']:>8.2f}{r['bias']:>+9.2f}")
 
 
 if __name__ == "__main__":

@@ -16,7 +16,10 @@ import numpy as np
 
 from ..methods.blending_indices import VISCOSITY
 from ..methods.characterisation import mw_riazi_daubert_1987
+from ..methods.d86 import D86_STD
 from ..methods.fraction_properties import (
+    hydrogen_astm_d3343,
+    hydrogen_d3343_in_range,
     hydrogen_in_range,
     hydrogen_riazi_ch,
     aniline_point_api_2b9_1,
@@ -60,7 +63,9 @@ ESTIMATED = {
     "aniline_point_c": "API TDB 2B9.1 (SG 0.7-1.0, Tb 200-1100 °F)",
     "smoke_point_mm": "API TDB 2B10.1 (SG 0.70-0.86, Tb 200-550 °F)",
     "refractive_index_20c": "Riazi-Daubert 1987 parameter I (Tb 80-650 °F)",
-    "hydrogen_wt_pct": "Riazi MNL50 (2005) carbon-to-hydrogen weight ratio correlations from MeABP and SG (M 70-700)",
+    "hydrogen_wt_pct": "ASTM D3343 (API, aromatics, D86 10/50/90 %) on jet-range cuts (D86 90 % <= 300 °C) with "
+                       "known aromatics; elsewhere Riazi MNL50 (2005) carbon-to-hydrogen weight ratio correlations "
+                       "from MeABP and SG (M 70-700)",
 }
 """The estimated qualities, with the correlation and the range each is used in."""
 NOT_ESTIMATED = ("nitrogen, metals, CCR, asphaltenes, wax, acid number, mercaptan sulfur, RVP, octane and PNA are "
@@ -313,14 +318,17 @@ def _d341_from_measured(values: dict[str, np.ndarray], estimated: dict[str, np.n
         estimated[name] = np.isfinite(v)
 
 
-def residue_viscosities(values: dict[str, np.ndarray], estimated: dict[str, np.ndarray], t_start, t_end) -> None:
-    """Viscosities of residues at the trade's temperatures, 100 and 135 °C (in place).
+def residue_estimates(values: dict[str, np.ndarray], estimated: dict[str, np.ndarray], t_start, t_end) -> None:
+    """Residues' estimates (in place): viscosities at the trade's temperatures, 100 and 135 °C, and no
+    correlation hydrogen.
 
     For each residue cut (the open last cut, ``t_end`` NaN, starting at or above :data:`RESIDUE_START_C`), ν at
     135 °C by ASTM D341 (Walther) from its ν at 100 °C and its value at the nearest other temperature,
     flagged estimated unless a narrow cut measured it; its *estimated* viscosities below 100 °C are left
     empty (a residue is not handled, nor its viscosity measured, that cold: a correlation's value there
-    reads as a fact).  Measured values are kept.
+    reads as a fact).  Its estimated hydrogen is left empty too: Riazi's CH forms, where a residue's
+    extrapolated MeABP keeps M inside 70-700, read 2.6 wt % high on the open assays' vacuum residues (3
+    records; README accuracy section).  Measured values are kept.
 
     Parameters
     ----------
@@ -330,6 +338,10 @@ def residue_viscosities(values: dict[str, np.ndarray], estimated: dict[str, np.n
         Each cut's TBP cut points, shaped like the values (NaN at the IBP and the end of the curve). [°C]
     """
     residue = np.isnan(t_end) & (np.asarray(t_start, dtype=float) >= RESIDUE_START_C)
+    if "hydrogen_wt_pct" in estimated:
+        drop = residue & estimated["hydrogen_wt_pct"]
+        values["hydrogen_wt_pct"] = np.where(drop, np.nan, values["hydrogen_wt_pct"])
+        estimated["hydrogen_wt_pct"] = estimated["hydrogen_wt_pct"] & ~drop
     v100 = values.get("viscosity_100c_cst")
     if v100 is None or not residue.any():
         return
@@ -354,14 +366,32 @@ def residue_viscosities(values: dict[str, np.ndarray], estimated: dict[str, np.n
             estimated[n] = estimated[n] & ~cold
 
 
-def add_indices(cols: dict) -> None:
-    """The indices that follow from a cut's other columns: ``n_plus_2a_vol_pct`` = naphthenes + 2 x aromatics
-    [vol %] where the cut has both (common practice, no source), estimated where either is."""
+def add_indices(cols: dict, hydrogen_measured=False) -> None:
+    """The values that follow from a cut's other columns.
+
+    - ``n_plus_2a_vol_pct`` = naphthenes + 2 x aromatics [vol %] where the cut has both (common practice, no
+      source), estimated where either is.
+    - ``hydrogen_wt_pct`` by ASTM D3343 (:func:`~assaycut.methods.fraction_properties.hydrogen_astm_d3343`) on
+      jet-range cuts (D86 90 % at or below 300 °C) with known aromatics, where the crude's narrow cuts did not
+      measure hydrogen (``hydrogen_measured``: bool, or one per row of a batch); it replaces Riazi's CH estimate
+      there and is flagged estimated.  A crude with measured hydrogen keeps it, with Riazi's estimate filling
+      the parts of a cut not measured.
+    """
+    est = cols.get("estimated")
     if "naphthenes_vol_pct" in cols and "aromatics_vol_pct" in cols:
         n, a = np.asarray(cols["naphthenes_vol_pct"], float), np.asarray(cols["aromatics_vol_pct"], float)
         cols["n_plus_2a_vol_pct"] = n + 2.0 * a
-        est = cols.get("estimated")
         if est is not None:
             est["n_plus_2a_vol_pct"] = (np.asarray(est.get("naphthenes_vol_pct", False))
                                         | np.asarray(est.get("aromatics_vol_pct", False))) \
                 & np.isfinite(cols["n_plus_2a_vol_pct"])
+    if "aromatics_vol_pct" in cols and "d86" in cols and "hydrogen_wt_pct" in cols:
+        d86 = np.asarray(cols["d86"], float)
+        i10, i50, i90 = (D86_STD.index(p) for p in (10, 50, 90))
+        with np.errstate(invalid="ignore"):
+            h = hydrogen_astm_d3343(cols["api"], cols["aromatics_vol_pct"], d86[..., i10], d86[..., i50],
+                                    d86[..., i90])
+            use = np.isfinite(h) & hydrogen_d3343_in_range(d86[..., i90]) & ~np.asarray(hydrogen_measured, bool)
+        cols["hydrogen_wt_pct"] = np.where(use, h, cols["hydrogen_wt_pct"])
+        if est is not None:
+            est["hydrogen_wt_pct"] = np.asarray(est.get("hydrogen_wt_pct", False)) | use

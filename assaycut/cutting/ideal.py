@@ -43,7 +43,7 @@ from .model_rows import BatchModel
 from ..units import BBL_M3, barrel_mass_t, sg_to_api, sg_to_density15
 from .cut_table import CutTable
 from .cutset import CutSet
-from .cut_qualities import add_indices, quality_columns, residue_viscosities
+from .cut_qualities import add_indices, quality_columns, residue_estimates
 
 LIGHT_ENDS_MAX_C = 40.0
 """Cuts ending at or below this TBP are light ends: no D86 is estimated for them (D86 does not apply to
@@ -172,10 +172,10 @@ def cut_columns(model: BatchModel, ends: np.ndarray, only=None) -> dict[str, np.
     gas = ~(np.isfinite(t_end) & ~(t_end <= LIGHT_ENDS_MAX_C)) & ~np.isnan(t_end)
     vals, est = quality_columns(model, va, vb, wa, wb, out["meabp_c"], out["sg"], out["watson_k"],
                                 gas | (vol <= 1e-9), only)
-    residue_viscosities(vals, est, t_start, t_end)
+    residue_estimates(vals, est, t_start, t_end)
     out.update(vals)
     out["estimated"] = est
-    add_indices(out)
+    add_indices(out, np.array(["hydrogen_wt_pct" in q for q in model.row_qualities]).reshape(-1, 1))
     out["extrapolated"] = (curve.is_extrapolated(va, vb) | _all_flag(model, vol)) & (vol > 1e-9)
     return out
 

@@ -40,7 +40,7 @@ from .ideal import (
     derive_qualities,
     first_row,
 )
-from .cut_qualities import add_indices, product_quality_columns, residue_viscosities
+from .cut_qualities import add_indices, product_quality_columns, residue_estimates
 from .model_rows import BatchModel
 
 Z95 = 1.6448536269514722
@@ -295,10 +295,10 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     gas = (np.isfinite(t_end) & (t_end <= LIGHT_ENDS_MAX_C)) | (vol <= 1e-9)
     vals, est = product_quality_columns(model, (va, vb, wa, wb), f, dv, mass, cols["meabp_c"], cols["sg"],
                                         cols["watson_k"], gas)
-    residue_viscosities(vals, est, t_start, t_end)
+    residue_estimates(vals, est, t_start, t_end)
     cols.update(vals)
     cols["estimated"] = est
-    add_indices(cols)
+    add_indices(cols, "hydrogen_wt_pct" in model.qualities)
     reach = (f * dv[:, None] > 1e-9 * dv.sum())
     out_of_range = model.curve.is_extrapolated(va, vb)[:, None]
     cols["extrapolated"] = (np.any(reach & out_of_range, axis=0) | bool(model.all_on_extension)) & (vol > 1e-9)

@@ -169,13 +169,13 @@ def test_pna_of_every_cut_adds_up_to_what_the_narrow_cuts_add_up_to():
     assert min(lab) == pytest.approx(99.609, abs=1e-6) and max(lab) == pytest.approx(100.001, abs=1e-6)
 
 
-def test_residue_viscosities_at_100_and_135_c():
+def test_residue_estimates_at_100_and_135_c():
     # ASTM D341 (Walther): log10 log10(ν + 0.7) is linear in log10 T[K].  The residue (open last cut from 566 °C)
     # reports ν at 100 and 135 °C; its 135 °C value is the D341 line through its 100 °C value and the nearest
     # other temperature's, and no estimated value below 100 °C is reported for it (common practice, no source:
     # residues are quoted at 100/135 °C).  Lighter cuts get no 135 °C value.
     from assaycut.io import load_assay
-    from assaycut.cutting.cut_qualities import residue_viscosities
+    from assaycut.cutting.cut_qualities import residue_estimates
 
     a = load_assay(str(Path(__file__).parents[2] / "assaycut" / "data" / "tarn_heavy.xlsx"))
     rows = run_yields(a, default_cut_set()).cuts.rows()
@@ -186,7 +186,7 @@ def test_residue_viscosities_at_100_and_135_c():
     nu40 = 119558.0
     vals = {"viscosity_40c_cst": np.array([nu40]), "viscosity_100c_cst": np.array([res["viscosity_100c_cst"]])}
     est = {"viscosity_40c_cst": np.array([True])}
-    residue_viscosities(vals, est, np.array([566.0]), np.array([np.nan]))
+    residue_estimates(vals, est, np.array([566.0]), np.array([np.nan]))
     w = lambda nu: np.log10(np.log10(nu + 0.7))  # noqa: E731
     t = np.log10(np.array([313.15, 373.15, 408.15]))
     line = w(res["viscosity_100c_cst"]) + (w(nu40) - w(res["viscosity_100c_cst"])) / (t[0] - t[1]) * (t[2] - t[1])
