@@ -39,6 +39,8 @@ from ..methods.d86 import D86_STD, tbp_to_d86_daubert_1994_array
 from ..methods.fraction_properties import bmci
 from ..methods.product_properties import cci_in_range, cetane_index_d4737, flash_in_range, flash_point_api_2b7_1
 from ..model.crude import CrudeModel
+from ..model.lightends import find_component
+from ..model.tbp_curve import STEP_C
 from .model_rows import BatchModel
 from ..units import BBL_M3, barrel_mass_t, sg_to_api, sg_to_density15
 from .cut_table import CutTable
@@ -79,6 +81,56 @@ def cut_table(model: CrudeModel, cut_set: CutSet) -> CutTable:
     """
     names, ends = cut_set.reported()
     return columns_table(names, first_row(cut_columns(BatchModel([model]), ends[None, :])))
+
+
+LPG_COLUMNS = (("C3", "lpg_c3_vol_pct"), ("iC4", "lpg_ic4_vol_pct"), ("nC4", "lpg_nc4_vol_pct"))
+"""The LPG components of a cut, as shares of the cut: (light-ends key, column). [vol % of the cut]"""
+
+
+def lpg_steps(model) -> np.ndarray:
+    """Where propane, isobutane and n-butane lie on each crude's curve: the vol % bounds of each component's
+    pure-component step (:mod:`~assaycut.model.lightends` boiling points, :data:`~assaycut.model.tbp_curve.STEP_C`
+    wide), shape (R, 3, 2); NaN for a crude whose curve carries no light-ends analysis.  A component the
+    analysis does not list has a step of no width. [vol %]"""
+    nbp = np.array([find_component(key).nbp_c for key, _ in LPG_COLUMNS])
+    temps = np.stack([nbp - STEP_C, nbp], axis=1).reshape(1, -1)
+    v = np.asarray(model.curve.pct_at(np.broadcast_to(temps, (model.n, temps.shape[1]))), float)
+    v = v.reshape(model.n, len(LPG_COLUMNS), 2)
+    return np.where(model.light_ends_placed[:, None, None], v, np.nan)
+
+
+def lpg_columns(steps: np.ndarray, va, vb, weights=None) -> dict[str, np.ndarray]:
+    """Each product's propane, isobutane and n-butane as shares of its volume (the LPG split), from the
+    analysis placed on the curve (:func:`lpg_steps`); NaN for a product with none of the three (or no
+    analysis).  Arithmetic: the overlap of each component's step with the product's volume range, over the
+    product's volume.
+
+    Parameters
+    ----------
+    steps : numpy.ndarray
+        (R, 3, 2) step bounds. [vol %]
+    va, vb : numpy.ndarray
+        Volume ranges, (R, n) (cuts) or (slices,) with ``weights``. [vol %]
+    weights : numpy.ndarray, optional
+        (slices, products): the fraction of each slice in each product (the real column, one crude).
+
+    Returns
+    -------
+    dict
+        {column of :data:`LPG_COLUMNS`: shares [vol % of the product]}.
+    """
+    va, vb = np.asarray(va, float), np.asarray(vb, float)
+    lo = steps[..., 0].reshape(steps.shape[0], 1, -1) if weights is None else steps[0, :, 0][None, :]
+    hi = steps[..., 1].reshape(steps.shape[0], 1, -1) if weights is None else steps[0, :, 1][None, :]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        part = np.clip(np.minimum(vb[..., None], hi) - np.maximum(va[..., None], lo), 0.0, None)
+        vol = vb - va
+        if weights is not None:
+            part = np.einsum("sp,sc->pc", weights, part)
+            vol = weights.T @ vol
+        share = 100.0 * part / vol[..., None]
+        share = np.where((part.sum(axis=-1, keepdims=True) > 1e-9) & np.isfinite(share), share, np.nan)
+    return {col: share[..., j] for j, (_, col) in enumerate(LPG_COLUMNS)}
 
 
 def first_row(cols: dict) -> dict:
@@ -156,6 +208,7 @@ def cut_columns(model: BatchModel, ends: np.ndarray, only=None) -> dict[str, np.
     nodes = 0.5 * (va + vb)[..., None] + 0.5 * vol[..., None] * _GL_X
     mid, ta, tb, tbp_all, t_nodes = _temps_at(curve, [0.5 * (va + vb), va, vb, slice_v, nodes])
     mid_vol_c = np.where(vol > 1e-9, mid, np.nan)
+    lpg = lpg_columns(lpg_steps(model), va, vb)
     vabp = curve.mean_temp(va, vb, ta, tb)
     sg = model.mean_sg(va, vb)
     sulfur = model.mean_sulfur(wa, wb)
@@ -176,6 +229,7 @@ def cut_columns(model: BatchModel, ends: np.ndarray, only=None) -> dict[str, np.
     out.update(vals)
     out["estimated"] = est
     add_indices(out, np.array(["hydrogen_wt_pct" in q for q in model.row_qualities]).reshape(-1, 1))
+    out.update(lpg)
     out["extrapolated"] = (curve.is_extrapolated(va, vb) | _all_flag(model, vol)) & (vol > 1e-9)
     return out
 

@@ -70,6 +70,9 @@ class BatchModel:
         (R,) True where the sulfur distribution is estimated from the whole crude.
     sg_rows_estimated : numpy.ndarray
         (R,) True where the density distribution is estimated (a Watson K fitted to the whole crude).
+    light_ends_placed : numpy.ndarray
+        (R,) True where a light-ends analysis is placed on the curve as pure-component steps (none for the
+        rows of uncertainty draws).
     """
 
     def __init__(self, models: list[CrudeModel]):
@@ -88,6 +91,7 @@ class BatchModel:
                     [np.nan if m.sulfur_wt_pct is None else m.sulfur_wt_pct for m in models],
                     [m.all_on_extension != "" for m in models], [m.qualities for m in models],
                     [m.sulfur_estimated for m in models], [m.watson_k_fit is not None for m in models])
+        self.light_ends_placed = np.array([m.curve.light_ends_pct > 0 for m in models])
 
     @classmethod
     def from_rows(cls, sets) -> "BatchModel":
@@ -105,6 +109,7 @@ class BatchModel:
                    np.array([t != "" for s in sets for t in s.on_ext]), [{}] * n,
                    np.concatenate([np.full(s.n, s.estimated) for s in sets]),
                    np.concatenate([~np.isnan(s.kw) for s in sets]))
+        out.light_ends_placed = np.zeros(n, dtype=bool)
         return out
 
     def _setup(self, curve, sg_dist, sulfur_dist, sg, sulfur_wt_pct, on_extension, qualities, estimated,

@@ -39,6 +39,8 @@ from .ideal import (
     cut_columns,
     derive_qualities,
     first_row,
+    lpg_columns,
+    lpg_steps,
 )
 from .cut_qualities import add_indices, product_quality_columns, residue_estimates
 from .model_rows import BatchModel
@@ -253,7 +255,8 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     """
     names, ends = cut_set.reported()
     targets = targets_for(cut_set, overlaps)
-    ideal = first_row(cut_columns(BatchModel([model]), ends[None, :]))
+    batch = BatchModel([model])
+    ideal = first_row(cut_columns(batch, ends[None, :]))
     sl = crude_slices(model, ends)
     widths = solve_split_widths(sl, ends, targets, ideal["overlap_c"][:-1], cut_set.label, names)
     va, vb, dv, t_mean, mass, wa, wb = (sl[k] for k in ("va", "vb", "dv", "t_mean", "mass", "wa", "wb"))
@@ -299,6 +302,7 @@ def fractionate(model: CrudeModel, cut_set: CutSet, overlaps: dict[str, float]):
     cols.update(vals)
     cols["estimated"] = est
     add_indices(cols, "hydrogen_wt_pct" in model.qualities)
+    cols.update(lpg_columns(lpg_steps(batch), va, vb, f))
     reach = (f * dv[:, None] > 1e-9 * dv.sum())
     out_of_range = model.curve.is_extrapolated(va, vb)[:, None]
     cols["extrapolated"] = (np.any(reach & out_of_range, axis=0) | bool(model.all_on_extension)) & (vol > 1e-9)

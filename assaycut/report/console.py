@@ -28,6 +28,7 @@ def yield_text(result, unit: str = "C") -> list[str]:
     q = quality_text_table(cuts)
     if q:
         lines += ["", q]
+    lines += lpg_lines(cuts)
     if result.bands is not None:
         lines += ["", *bands_text(result.bands)]
     fails = [x for x in limits_in_unit(result.limits.rows(), unit) if x["status"] == "fail"]
@@ -38,6 +39,19 @@ def yield_text(result, unit: str = "C") -> list[str]:
             lines += wrap(f"  {limit_title(x['cut'], x['label'] or x['property'])}: {_limit_value(x)}{u}, needs "
                           f"{x['limit']}{u}", indent="    ")
     return lines
+
+
+def lpg_lines(cuts) -> list[str]:
+    """One line per cut holding propane or butanes: its LPG split [vol % of the cut]."""
+    if "lpg_c3_vol_pct" not in cuts:
+        return []
+    out = []
+    for r in cuts.rows():
+        vals = [r.get(k) for k in ("lpg_c3_vol_pct", "lpg_ic4_vol_pct", "lpg_nc4_vol_pct")]
+        if all(v is not None and v == v for v in vals):
+            out += wrap(f"LPG split of {r['name']}: propane {vals[0]:.1f}, isobutane {vals[1]:.1f}, n-butane "
+                        f"{vals[2]:.1f} vol % of the cut (from the light-ends analysis)", indent="  ")
+    return [""] + out if out else []
 
 
 def bands_text(bands) -> list[str]:

@@ -11,6 +11,8 @@ import math
 
 import numpy as np
 
+from ..cutting.ideal import LPG_COLUMNS
+
 from .. import __version__
 from ..units import sg_to_density15
 
@@ -54,11 +56,16 @@ def frame_records(df) -> list[dict]:
 
 def cut_records(table) -> list[dict]:
     """The rows of a cut table as JSON-safe dicts, each cut's own TBP points gathered as ``tbp_c``
-    {"5", "50", "95"} [°C] (from tbp_5_c, mid_vol_c, tbp_95_c; mid_vol_c is kept as well)."""
+    {"5", "50", "95"} [°C] (from tbp_5_c, mid_vol_c, tbp_95_c; mid_vol_c is kept as well), and, with a
+    light-ends analysis, its LPG split as ``lpg_split`` {"c3_vol_pct", "ic4_vol_pct", "nc4_vol_pct"} [vol % of
+    the cut] (null for a cut without propane or butanes)."""
     out = records(table)
     for r in out:
         if "tbp_5_c" in r:
             r["tbp_c"] = {"5": r.pop("tbp_5_c"), "50": r.get("mid_vol_c"), "95": r.pop("tbp_95_c")}
+        if LPG_COLUMNS[0][1] in r:
+            split = {col[len("lpg_"):]: r.pop(col) for _, col in LPG_COLUMNS}
+            r["lpg_split"] = split if any(v is not None for v in split.values()) else None
     return out
 
 

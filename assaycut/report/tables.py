@@ -74,6 +74,9 @@ LABELS = {
     "bmci": "BMCI [-]",
     "hydrogen_wt_pct": "Hydrogen [wt %]",
     "n_plus_2a_vol_pct": "N+2A [vol %]",
+    "lpg_c3_vol_pct": "Propane [vol % of cut]",
+    "lpg_ic4_vol_pct": "Isobutane [vol % of cut]",
+    "lpg_nc4_vol_pct": "n-Butane [vol % of cut]",
 }
 """Report header of each cut-table column, with its unit."""
 for _p in D86_STD:
