@@ -26,6 +26,8 @@ import numpy as np
 from ..errors import CutSetError
 from ..methods.characterisation import watson_k
 from ..methods.critical_properties import R_BAR_M3_KMOL_K, characterise
+from ..methods.fraction_properties import hydrogen_riazi_ch
+from ..methods.heat_capacity import C_G_MOL, H_G_MOL, T_RANGE_K, cp_polynomial, similarity_variable
 from ..model.crude import CrudeModel
 from ..model.lightends import find_component
 from ..model.tbp_curve import STEP_C
@@ -148,6 +150,25 @@ def pseudo_components(model: CrudeModel, assay, method: str = "riazi-daubert-198
     return _finish(rows, model, cut_set)
 
 
+CP_FORM = (f"Cp° [J/(mol·K)] = a + b·T + c·T² + d·T³, T in K, fitted over {T_RANGE_K[0]:.0f}-{T_RANGE_K[1]:.0f} K "
+           f"to Lastovka & Shaw (2013) at the component's hydrogen content")
+"""What the ``cp_ideal_gas`` coefficients of a component mean."""
+
+
+def hydrogen_of(row: dict) -> tuple[float, bool]:
+    """A component's hydrogen content [wt %] for its heat capacity, and whether it is inside the correlation's
+    range: a pure light end's from its formula (the C1-C5 paraffins, CnH2n+2); a pseudo-component's by Riazi's
+    CH forms (:func:`~assaycut.methods.fraction_properties.hydrogen_riazi_ch`), outside M 70-700 the nearer
+    form extrapolated."""
+    if row["pure"]:
+        n = int(row["name"][-1])
+        h = (2 * n + 2) * H_G_MOL
+        return 100.0 * h / (n * C_G_MOL + h), True
+    mw = row["mw"]
+    h = float(hydrogen_riazi_ch(row["nbp_c"], row["sg"], min(max(mw, 70.0), 700.0)))
+    return h, 70.0 <= mw <= 700.0
+
+
 def _finish(rows: list[dict], model: CrudeModel, cut_set: CutSet | None) -> list[dict]:
     """Fractions of the crude (and of each product), names and the derived columns."""
     curve = model.curve
@@ -172,6 +193,11 @@ def _finish(rows: list[dict], model: CrudeModel, cut_set: CutSet | None) -> list
                "mol_pct": float(100.0 * moles[k] / moles.sum()), "start_c": t_lo, "end_c": t_hi,
                "cum_vol_pct": float(vb[k]), "in_range": r["in_range"],
                "extrapolated": bool(curve.is_extrapolated(va[k], vb[k]))}
+        h, h_ok = hydrogen_of(row)
+        coef, dev = cp_polynomial(similarity_variable(h), row["mw"])
+        row["hydrogen_wt_pct"] = h
+        row["cp_ideal_gas"] = {"a": float(coef[0]), "b": float(coef[1]), "c": float(coef[2]), "d": float(coef[3]),
+                               "fit_max_dev_pct": 100.0 * dev, "hydrogen_in_range": h_ok}
         if cut_set is not None:
             j = int(np.searchsorted(np.asarray(ends), r["nbp_c"]))
             row["product"] = names[min(j, len(names) - 1)]

@@ -5,6 +5,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..cutting.limits import limit_title
+from ..cutting.pseudo import CP_FORM
 from ..studies.compare import WORTH_CAVEAT
 from ..units import sg_to_density15
 from .plots import save_png, subplots
@@ -487,6 +488,8 @@ PSEUDO_COLUMNS = [("name", "Component"), ("product", "Product"), ("pure", "Pure 
                   ("vol_pct", "Crude [vol %]"), ("wt_pct", "Crude [wt %]"), ("mol_pct", "Crude [mol %]"),
                   ("product_vol_pct", "Product [vol %]"), ("product_wt_pct", "Product [wt %]"),
                   ("product_mol_pct", "Product [mol %]"), ("start_c", "From TBP [°C]"), ("end_c", "To TBP [°C]"),
+                  ("hydrogen_wt_pct", "Hydrogen for Cp [wt %]"), ("cp_a", "Cp° a [J/(mol·K)]"),
+                  ("cp_b", "Cp° b [J/(mol·K²)]"), ("cp_c", "Cp° c [J/(mol·K³)]"), ("cp_d", "Cp° d [J/(mol·K⁴)]"),
                   ("in_range", "Inside the method's range"), ("extrapolated", "On the fitted extension")]
 """The neutral export of the pseudo-components: one row per component, these columns (those present)."""
 
@@ -500,9 +503,10 @@ def pseudo_files(assay, model, comps, method: str) -> dict[str, bytes]:
 
     from .write import csv_text, slug
 
-    cols = [(k, h) for k, h in PSEUDO_COLUMNS if k in comps[0]]
+    flat = [{**c, **{f"cp_{k}": c["cp_ideal_gas"][k] for k in "abcd"}} for c in comps]
+    cols = [(k, h) for k, h in PSEUDO_COLUMNS if k in flat[0]]
     heads = [h for _, h in cols] + ["Method"]
-    rows = [[c[k] for k, _ in cols] + ["chemicals (pure component)" if c["pure"] else method] for c in comps]
+    rows = [[c[k] for k, _ in cols] + ["chemicals (pure component)" if c["pure"] else method] for c in flat]
     base = slug(assay.name)
     wb = openpyxl.Workbook()
     ws = wb.active
@@ -530,6 +534,12 @@ def pseudo_notes(assay, model, comps, method: str) -> list[tuple[str, str]]:
                              f"%; volume-average SG {sg_v:.5f} against the model's {model.sg:.5f} and the whole "
                              f"crude's {assay.sg:.5f} (the model keeps the narrow cuts as measured and reports the "
                              f"difference as its closure)")]
+    out.append(("Ideal-gas heat capacity", CP_FORM + "; the light ends at their formula's hydrogen, the "
+                "pseudo-components at Riazi's CH estimate from NBP and SG (whatever the method above)"))
+    h_out = [c["name"] for c in comps if not c["cp_ideal_gas"]["hydrogen_in_range"]]
+    if h_out:
+        out.append(("Hydrogen extrapolated", ", ".join(h_out) + ": outside M 70-700, Riazi's CH form "
+                                                                "extrapolated for the heat capacity"))
     outside = [c["name"] for c in comps if not c["in_range"]]
     if outside:
         out.append(("Outside the method's range", ", ".join(outside) + ": computed beyond the data the method "

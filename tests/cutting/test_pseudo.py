@@ -20,7 +20,7 @@ from assaycut.model.crude import build_model
 
 runner = CliRunner()
 KEYS = {"name", "pure", "nbp_c", "sg", "api", "watson_k", "mw", "tc_c", "pc_bar", "omega", "vc_m3_kmol", "vol_pct",
-        "wt_pct", "mol_pct"}
+        "wt_pct", "mol_pct", "cp_ideal_gas"}
 
 
 @pytest.mark.parametrize("path", demo_assay_paths())
@@ -51,6 +51,26 @@ def test_the_default_breakdown_and_the_pure_light_ends():
         assert round(c["end_c"], 6) % step == 0 or round(c["end_c"], 6) == 400.0, c["end_c"]
         assert 0 < width <= step + 1e-6 and (width == pytest.approx(step) or c["end_c"] == pytest.approx(400.0))
     assert m.curve.lumped_pct > 0 and comps[-1]["vol_pct"] == pytest.approx(m.curve.lumped_pct, abs=1e-9)
+
+
+def test_the_heat_capacity_coefficients_of_the_components():
+    # Source: propane's ideal-gas Cp in `chemicals` (TRC_gas_data fit) at 300-1000 K; bound 3 % on average
+    # over those temperatures, the average accuracy Lastovka & Shaw state for hydrocarbons (from memory: "a few
+    # percent"; the largest single deviation, at 300 K, is 4 %).
+    from chemicals.heat_capacity import TRC_gas_data, TRCCp
+
+    a = load_assay(demo_assay_paths()[0])
+    comps = pseudo_components(build_model(a), a)
+    c3 = next(c for c in comps if c["name"] == "C3")
+    r = TRC_gas_data.loc["74-98-6"]
+    dev = [sum(c3["cp_ideal_gas"][k] * t ** i for i, k in enumerate("abcd")) / TRCCp(t, *[r[f"a{i}"] for i in range(8)])
+           - 1.0 for t in np.arange(300.0, 1001.0, 100.0)]
+    assert float(np.mean(np.abs(dev))) <= 0.03
+    for c in comps:  # every cubic follows its correlation within about 1 %; heavier components hold more heat
+        assert c["cp_ideal_gas"]["fit_max_dev_pct"] <= 1.5
+    pseudo = [c for c in comps if not c["pure"]]
+    cp500 = [sum(c["cp_ideal_gas"][k] * 500.0 ** i for i, k in enumerate("abcd")) for c in pseudo]
+    assert all(b > a for a, b in zip(cp500, cp500[1:]))
 
 
 def test_a_count_and_given_boundaries_and_a_cut_set():
