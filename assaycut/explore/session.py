@@ -128,7 +128,7 @@ def _shown(v) -> str:
 
 PAGE_COLUMNS = ("vol_pct", "wt_pct", "api", "sg", "sulfur_wt_pct", "watson_k", "end_c", "d86_10_c", "d86_90_c",
                 "flash_c_est", "cetane_index_d4737", "freeze_point_c", "smoke_point_mm", "cloud_point_c",
-                "viscosity_40c_cst", "worth_per_bbl", "margin_per_bbl", "worth_per_day", "margin_per_day",
+                "viscosity_40c_cst", "hydrogen_wt_pct", "bmci", "worth_per_bbl", "margin_per_bbl", "worth_per_day", "margin_per_day",
                 "bbl_per_day")
 """The columns the explorer page shows (their digits come from :func:`~assaycut.report.precision.rule`, their
 units from :func:`~assaycut.report.tables.unit_of`)."""

@@ -13,9 +13,14 @@ from .xlsx import finish_workbook, write_table
 
 COMPARE_LABELS = {"vol_pct": "Yield [vol %]", "wt_pct": "Yield [wt %]", "bbl_per_day": "Rate [bbl/d]",
                   "t_per_day": "Rate [t/d]", "api": "API gravity [°API]", "sg": "SG 60/60 °F [-]",
-                  "sulfur_wt_pct": "Sulfur [wt %]", "watson_k": "Watson K [-]", "limits": "Limits",
-                  "extrapolated": "Extrapolated"}
+                  "sulfur_wt_pct": "Sulfur [wt %]", "watson_k": "Watson K [-]", "bmci": "BMCI [-]",
+                  "hydrogen_wt_pct": "Hydrogen [wt %]", "limits": "Limits", "extrapolated": "Extrapolated"}
 """The qualities of each cut in a comparison (those present), with their labels."""
+HEAVY_ONLY = ("bmci", "hydrogen_wt_pct")
+"""Qualities a comparison shows only for the heavy cuts, from :data:`HEAVY_START_C`."""
+HEAVY_START_C = 300.0
+"""Cuts starting at or above this TBP (vacuum gas oil, residues: the feeds of the conversion units, for which
+BMCI and hydrogen content are read) show :data:`HEAVY_ONLY` in a comparison (common practice, no source). [°C]"""
 SIDE_COLOURS = ("#283593", "#ef6c00")
 """Line colours of a sweep's lower and upper cut: a dark blue and an orange, apart for every colour vision."""
 WHOLE_CRUDE = "whole crude"
@@ -52,10 +57,16 @@ def compare_wide(table, whole: list[list] | None = None, unit: str = "C"):
         if "start_c" in table:
             rows.append([cut, f"TBP cut [{deg(unit)}]", "tbp_range"]
                         + [tbp(idx.loc[(cut, c), "start_c"], idx.loc[(cut, c), "end_c"]) for c in crudes])
+        heavy = "start_c" in table and all(idx.loc[(cut, c), "start_c"] >= HEAVY_START_C for c in crudes)
         for q, label in COMPARE_LABELS.items():
-            if q not in table:
+            if q not in table or (q in HEAVY_ONLY and not heavy):
                 continue
             vals = [idx.loc[(cut, c), q] for c in crudes]
+            if q == "hydrogen_wt_pct" and "hydrogen_estimated" in table:
+                if all(v != v for v in vals):
+                    continue
+                if any(bool(idx.loc[(cut, c), "hydrogen_estimated"]) for c in crudes):
+                    label = "Hydrogen, estimated [wt %]"
             if q == "extrapolated":
                 vals = ["yes" if v else "" for v in vals]
             rows.append([cut, label, q] + [None if isinstance(v, float) and v != v else v for v in vals])

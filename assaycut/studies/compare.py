@@ -141,7 +141,8 @@ def comparison_table(results):
     pandas.DataFrame
         One row per (cut, crude): start_c and end_c (the cut's TBP range, NaN for an open end) [°C], vol_pct,
         wt_pct, bbl_per_day and t_per_day (with a crude run), sg, api,
-        sulfur_wt_pct, watson_k, limits ('pass', 'fail', 'n/a' or '' when the cut has no limits; 'fail' if any
+        sulfur_wt_pct, watson_k, bmci, hydrogen_wt_pct (NaN where the cut has none) with hydrogen_estimated,
+        limits ('pass', 'fail', 'n/a' or '' when the cut has no limits; 'fail' if any
         limit fails), extrapolated (the cut rests partly on the fitted extension).
     """
     import pandas as pd
@@ -163,7 +164,10 @@ def comparison_table(results):
                          "vol_pct": c["vol_pct"], "wt_pct": c["wt_pct"],
                          **{k: c[k] for k in ("bbl_per_day", "t_per_day") if k in c},
                          "sg": c["sg"], "api": c["api"], "sulfur_wt_pct": c["sulfur_wt_pct"],
-                         "watson_k": c["watson_k"], "limits": status.get(c["name"], ""),
+                         "watson_k": c["watson_k"], "bmci": c.get("bmci", np.nan),
+                         "hydrogen_wt_pct": c.get("hydrogen_wt_pct", np.nan),
+                         "hydrogen_estimated": "hydrogen_wt_pct" in c.get("estimated", []),
+                         "limits": status.get(c["name"], ""),
                          "extrapolated": bool(c["extrapolated"])})
     return pd.DataFrame(rows)
 

@@ -133,3 +133,23 @@ def test_one_crude_alone_can_be_priced(demo_paths):
     assert r.exit_code == 0, r.stderr
     d = json.loads(r.stdout)
     assert [w["crude"] for w in d["worth"]] == ["Tarn Heavy"] and d["ranked_by"] == "margin_per_bbl"
+
+
+def test_the_heavy_cuts_show_bmci_and_hydrogen(demos):
+    # Source: BMCI's definition (Smith 1940): 48640 / VABP[K] + 473.7 SG - 456.8 from each cut's own VABP and
+    # SG in the yields table; the rows appear for the cuts from 300 °C only (common practice, no source).
+    from assaycut.report.studyreports import compare_wide
+    from assaycut.studies.compare import comparison_table
+
+    results = [run_yields(a, default_cut_set(), model=m) for a, m in demos]
+    crudes, rows = compare_wide(comparison_table(results))
+    shown = {(r[0], r[2]): dict(zip(crudes, r[3:])) for r in rows}
+    for res in results:
+        cuts = res.cuts
+        for j, cut in enumerate(cuts["name"]):
+            heavy = cuts["start_c"][j] >= 300.0
+            assert ((cut, "bmci") in shown) == heavy, cut
+            if heavy:
+                want = 48640.0 / (cuts["vabp_c"][j] + 273.15) + 473.7 * cuts["sg"][j] - 456.8
+                assert shown[(cut, "bmci")][res.assay.name] == pytest.approx(want, abs=1e-6)
+    assert ("vacuum gas oil", "hydrogen_wt_pct") in shown

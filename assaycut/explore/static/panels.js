@@ -20,6 +20,8 @@ const CUT_COLUMNS = [
   ["smoke_point_mm", "Smoke mm", "smoke_point_mm", false],
   ["cloud_point_c", "Cloud {T}", "cloud_point_c", false],
   ["viscosity_40c_cst", "ν40 cSt", "viscosity_40c_cst", false],
+  ["hydrogen_wt_pct", "H wt %", "hydrogen_wt_pct", false],
+  ["bmci", "BMCI", "bmci", false],
 ];
 // The columns in use: bbl/d with a crude run only.
 function cutColumns() { return CUT_COLUMNS.filter(c => c[0] !== "bbl_per_day" || state.rate); }
