@@ -30,8 +30,10 @@ D86_POINT = re.compile(r"^d86_(0|10|30|50|70|90|95)_c$")
 """Property name of a D86 point."""
 SCALAR_PROPERTIES = ("vol_pct", "wt_pct", "mid_vol_c", "vabp_c", "meabp_c", "sg", "api", "density_15c_kg_m3",
                      "watson_k", "sulfur_wt_pct", "mw", "cetane_index_d4737", "flash_c_est")
-UNAVAILABLE = {"d86_fbp_c": "the D86 final boiling point is not estimated (Daubert 1994 stops at 95 %)",
-               "d86_100_c": "the D86 final boiling point is not estimated (Daubert 1994 stops at 95 %)"}
+_NO_FBP = ("the D86 final boiling point is not estimated: the D86 estimate stops at 95 % (whether Daubert 1994's "
+           "end segment, used here for 90-95 %, runs to 95 % or to the final boiling point is not settled against "
+           "the primary source); limit the D86 95 % point, or the cut's end point, instead")
+UNAVAILABLE = {"d86_fbp_c": _NO_FBP, "d86_100_c": _NO_FBP}
 LIMIT_KEYS = ("cut", "property", "min", "max", "strict", "label", "source")
 """Keys of a limit as the limits file gives it."""
 TOL = 1e-6
