@@ -64,8 +64,8 @@ ESTIMATED = {
     "smoke_point_mm": "API TDB 2B10.1 (SG 0.70-0.86, Tb 200-550 °F)",
     "refractive_index_20c": "Riazi-Daubert 1987 parameter I (Tb 80-650 °F)",
     "hydrogen_wt_pct": "ASTM D3343 (API, aromatics, D86 10/50/90 %) on jet-range cuts (D86 90 % <= 300 °C) with "
-                       "known aromatics; elsewhere Riazi MNL50 (2005) carbon-to-hydrogen weight ratio correlations "
-                       "from MeABP and SG (M 70-700)",
+                       "known aromatics; elsewhere Riazi MNL50 (2005) carbon-to-hydrogen weight ratio correlation "
+                       "from MeABP and SG (M 70-700); none on residues",
 }
 """The estimated qualities, with the correlation and the range each is used in."""
 NOT_ESTIMATED = ("nitrogen, metals, CCR, asphaltenes, wax, acid number, mercaptan sulfur, RVP, octane and PNA are "
@@ -326,8 +326,8 @@ def residue_estimates(values: dict[str, np.ndarray], estimated: dict[str, np.nda
     135 °C by ASTM D341 (Walther) from its ν at 100 °C and its value at the nearest other temperature,
     flagged estimated unless a narrow cut measured it; its *estimated* viscosities below 100 °C are left
     empty (a residue is not handled, nor its viscosity measured, that cold: a correlation's value there
-    reads as a fact).  Its estimated hydrogen is left empty too: Riazi's CH forms, where a residue's
-    extrapolated MeABP keeps M inside 70-700, read 2.6 wt % high on the open assays' vacuum residues (3
+    reads as a fact).  Its estimated hydrogen is left empty too: Riazi's CH form, where a residue's
+    extrapolated MeABP keeps M inside 70-700, reads 1.4-3.2 wt % high on the open assays' vacuum residues (3
     records; README accuracy section).  Measured values are kept.
 
     Parameters

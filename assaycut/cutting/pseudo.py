@@ -158,8 +158,8 @@ CP_FORM = (f"Cp° [J/(mol·K)] = a + b·T + c·T² + d·T³, T in K, fitted over
 def hydrogen_of(row: dict) -> tuple[float, bool]:
     """A component's hydrogen content [wt %] for its heat capacity, and whether it is inside the correlation's
     range: a pure light end's from its formula (the C1-C5 paraffins, CnH2n+2); a pseudo-component's by Riazi's
-    CH forms (:func:`~assaycut.methods.fraction_properties.hydrogen_riazi_ch`), outside M 70-700 the nearer
-    form extrapolated."""
+    CH form (:func:`~assaycut.methods.fraction_properties.hydrogen_riazi_ch`), extrapolated outside M
+    70-700."""
     if row["pure"]:
         n = int(row["name"][-1])
         h = (2 * n + 2) * H_G_MOL
